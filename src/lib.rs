@@ -1,0 +1,16 @@
+//! sumpbook: a condition log and drift watch for the hydraulic power units of a press shop.
+//!
+//! Code map (the direction of knowledge is physics ← health ← app → store, exchange, report;
+//! cli and gui know only app):
+//! - `units`, `quantity`: SI newtypes, exact conversions, parsing `2500psi`.
+//! - `model`: the shop's records as plain data.
+//! - `physics`: pure fluid-power, viscosity, cleanliness, oil-life and trend functions.
+//! - `app`: one function per user action.
+//! - `cli`: the command line.
+
+pub mod app;
+pub mod cli;
+pub mod model;
+pub mod physics;
+pub mod quantity;
+pub mod units;

@@ -1,0 +1,313 @@
+//! The records of a shop, as the rest of the program sees them: machines, hydraulic units,
+//! fluids, checks, samples, events, baselines, acknowledgements, settings.
+//!
+//! Plain data in SI units (see `units`). The store reads and writes these; the health engine,
+//! the exchange formats, the reports and the UI consume them. Nothing here knows SQL, files
+//! or the UI, and nothing here computes health.
+
+use chrono::{DateTime, Utc};
+use serde::{Deserialize, Serialize};
+
+use crate::units::{Flow, Length, Pressure, Seconds, Temperature, UnitSystem, Viscosity, Volume};
+
+/// Database row id.
+pub type Id = i64;
+
+/// Defines a closed set of names that are written as text in the database and in CSV.
+macro_rules! text_enum {
+    ($(#[$doc:meta])* $name:ident { $($variant:ident = $text:literal),+ $(,)? }) => {
+        $(#[$doc])*
+        #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
+        pub enum $name { $(#[serde(rename = $text)] $variant),+ }
+
+        impl $name {
+            pub const ALL: &'static [$name] = &[$($name::$variant),+];
+            /// The name used in files, the database and the command line.
+            pub fn as_str(self) -> &'static str {
+                match self { $($name::$variant => $text),+ }
+            }
+            /// The names accepted, for error messages.
+            pub fn expected() -> String {
+                [$($text),+].join("|")
+            }
+        }
+
+        impl std::fmt::Display for $name {
+            fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+                f.write_str(self.as_str())
+            }
+        }
+
+        impl std::str::FromStr for $name {
+            type Err = String;
+            fn from_str(s: &str) -> Result<Self, String> {
+                match s.trim() {
+                    $($text => Ok($name::$variant),)+
+                    other => Err(format!("`{other}` is not one of {}", Self::expected())),
+                }
+            }
+        }
+    };
+}
+
+text_enum!(
+    /// Kind of the unit's main pump.
+    PumpKind { Gear = "gear", Vane = "vane", PistonFixed = "piston_fixed", PistonVariable = "piston_variable" }
+);
+
+text_enum!(
+    /// The most contamination-sensitive component of a circuit; sets the cleanliness target.
+    SensitiveComponent {
+        ServoValve = "servo_valve",
+        ProportionalValve = "proportional_valve",
+        PistonPumpVariable = "piston_pump_variable",
+        PistonPumpFixed = "piston_pump_fixed",
+        VanePump = "vane_pump",
+        GearPump = "gear_pump",
+        Cylinder = "cylinder",
+    }
+);
+
+text_enum!(
+    /// Which way the timed stroke moves: extending fills the full bore, retracting the annulus.
+    StrokeDirection { Extend = "extend", Retract = "retract" }
+);
+
+text_enum!(
+    /// Sight-glass reading at a check.
+    OilLevel { Ok = "ok", Low = "low" }
+);
+
+text_enum!(
+    /// Filter clogging indicator at a check.
+    FilterState { Ok = "ok", Alert = "alert", Bypass = "bypass" }
+);
+
+text_enum!(
+    /// What was done to a unit.
+    EventKind {
+        FluidChange = "fluid_change",
+        TopUp = "top_up",
+        FilterChange = "filter_change",
+        Rebuild = "rebuild",
+        Repair = "repair",
+        CoolerClean = "cooler_clean",
+        Note = "note",
+    }
+);
+
+impl EventKind {
+    /// A fluid change or a rebuild starts a new era, and with it a new baseline.
+    pub fn starts_era(self) -> bool {
+        matches!(self, EventKind::FluidChange | EventKind::Rebuild)
+    }
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Machine {
+    pub id: Id,
+    /// Unique shop tag, e.g. `PR-07`.
+    pub tag: String,
+    pub name: String,
+    /// Press, press brake, injection moulder, shear, ...
+    pub kind: String,
+    /// Order of the walk-round.
+    pub route_order: i64,
+    pub notes: String,
+    pub archived: bool,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Fluid {
+    pub id: Id,
+    pub name: String,
+    /// ISO 3448 viscosity grade (e.g. 46).
+    pub iso_vg: Option<u32>,
+    /// Kinematic viscosity of new oil at 40 °C.
+    pub kv40_new: Option<Viscosity>,
+    /// Kinematic viscosity of new oil at 100 °C.
+    pub kv100_new: Option<Viscosity>,
+    /// Acid number of new oil, mg KOH/g.
+    pub acid_new_mgkoh_g: Option<f64>,
+    /// Mineral, synthetic ester, water glycol, ...
+    pub base_type: String,
+}
+
+/// The fixed, repeatable stroke a technician times at each check.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TimedStroke {
+    pub bore: Length,
+    /// Rod diameter; needed only for a retracting stroke.
+    pub rod: Option<Length>,
+    pub length: Length,
+    pub direction: StrokeDirection,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Unit {
+    pub id: Id,
+    pub machine_id: Id,
+    /// Unique shop tag, e.g. `PR-07-A`.
+    pub tag: String,
+    pub pump_kind: PumpKind,
+    /// Rated pump flow at operating speed.
+    pub rated_flow: Option<Flow>,
+    pub relief: Option<Pressure>,
+    pub reservoir: Option<Volume>,
+    pub sensitive_component: SensitiveComponent,
+    pub fluid_id: Option<Id>,
+    pub stroke: Option<TimedStroke>,
+    pub route_order: i64,
+    pub archived: bool,
+}
+
+/// One walk-round reading of one unit. Everything but unit and time is optional.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Check {
+    pub id: Id,
+    pub unit_id: Id,
+    pub taken_at: DateTime<Utc>,
+    pub reservoir_temp: Option<Temperature>,
+    pub ambient_temp: Option<Temperature>,
+    pub pressure: Option<Pressure>,
+    /// Time of the unit's timed stroke.
+    pub stroke_time: Option<Seconds>,
+    /// Time of a whole machine cycle; trended only.
+    pub cycle_time: Option<Seconds>,
+    pub oil_level: Option<OilLevel>,
+    pub filter: Option<FilterState>,
+    /// Hour-meter reading.
+    pub hours: Option<f64>,
+    pub case_drain: Option<Flow>,
+    pub by: String,
+    pub note: String,
+}
+
+/// A viscosity read at some temperature other than 40 °C (field viscometer).
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct ViscReading {
+    pub visc: Viscosity,
+    pub at: Temperature,
+}
+
+/// One fluid sample result from a lab or a bench counter; any subset of fields.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Sample {
+    pub id: Id,
+    pub unit_id: Id,
+    pub sampled_at: DateTime<Utc>,
+    pub kv40: Option<Viscosity>,
+    pub kv100: Option<Viscosity>,
+    pub visc_reading: Option<ViscReading>,
+    /// Particles per mL at ≥4, ≥6 and ≥14 µm(c).
+    pub counts_per_ml: [Option<f64>; 3],
+    /// A written ISO 4406 code as reported (e.g. `18/16/13`), when counts are not given.
+    pub iso4406: Option<String>,
+    pub water_ppm: Option<f64>,
+    pub acid_mgkoh_g: Option<f64>,
+    pub lab_ref: String,
+    pub note: String,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Event {
+    pub id: Id,
+    pub unit_id: Id,
+    pub done_at: DateTime<Utc>,
+    pub kind: EventKind,
+    pub volume: Option<Volume>,
+    /// The fluid put in (fluid change, top-up).
+    pub fluid_id: Option<Id>,
+    pub by: String,
+    pub note: String,
+}
+
+/// Someone has seen a flag; it stays marked until the flag's state changes.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Acknowledgement {
+    pub id: Id,
+    pub unit_id: Id,
+    /// Flag kind (`lost_flow`, `water`, ...).
+    pub kind: String,
+    /// The flag state that was seen (`watch` or `act`).
+    pub state: String,
+    pub by: String,
+    pub note: String,
+    pub at: DateTime<Utc>,
+}
+
+/// A hand-entered baseline value for one indicator of one era.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct ManualBaseline {
+    pub id: Id,
+    pub unit_id: Id,
+    /// Start of the era it belongs to.
+    pub era_start: DateTime<Utc>,
+    /// Indicator key, e.g. `effective_flow`.
+    pub indicator: String,
+    /// Reference value in SI.
+    pub value: f64,
+    /// Spread (one standard deviation) in SI.
+    pub spread: f64,
+    pub entered_by: String,
+    pub entered_at: DateTime<Utc>,
+}
+
+/// A stored limit: a shop default when `unit_id` is `None`, else an override for one unit.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct LimitSetting {
+    pub unit_id: Option<Id>,
+    /// Limit key, e.g. `lost_flow_pct`, `water_ppm`, `sample_interval_weeks`.
+    pub key: String,
+    pub watch: Option<f64>,
+    pub act: Option<f64>,
+}
+
+/// Shop-wide settings.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Settings {
+    pub shop_name: String,
+    pub unit_system: UnitSystem,
+    /// IANA time zone name for display, e.g. `Europe/Berlin`; timestamps are stored in UTC.
+    pub time_zone: String,
+}
+
+impl Default for Settings {
+    fn default() -> Self {
+        Settings { shop_name: "New shop".into(), unit_system: UnitSystem::Metric, time_zone: "UTC".into() }
+    }
+}
+
+/// One kept value from the edit history: what a stored reading was before it changed.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct EditRecord {
+    pub id: Id,
+    pub table: String,
+    pub row_id: Id,
+    /// `update` or `delete`.
+    pub action: String,
+    /// The old row as JSON.
+    pub old_value: String,
+    /// The new row as JSON (null on delete).
+    pub new_value: Option<String>,
+    pub by: String,
+    pub reason: String,
+    pub at: DateTime<Utc>,
+}
+
+/// Everything the health engine needs of one unit, read in one go.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct UnitHistory {
+    pub machine: Machine,
+    pub unit: Unit,
+    /// The fluid in service.
+    pub fluid: Option<Fluid>,
+    /// Oldest first.
+    pub checks: Vec<Check>,
+    /// Oldest first.
+    pub samples: Vec<Sample>,
+    /// Oldest first.
+    pub events: Vec<Event>,
+    pub manual_baselines: Vec<ManualBaseline>,
+    pub acknowledgements: Vec<Acknowledgement>,
+}

@@ -1,0 +1,247 @@
+//! Fluid-power arithmetic of a unit's timed stroke: displaced volume, effective flow, lost
+//! flow, volumetric efficiency, hydraulic and heat power, and the temperature-compensated
+//! leak conductance.
+//!
+//! Pure functions in SI. They validate what would make the arithmetic meaningless (zero or
+//! negative sizes and times) and leave judging the result to the health engine.
+
+use serde::{Deserialize, Serialize};
+
+use super::{finite, positive, show_mm, PhysicsError};
+use crate::model::{StrokeDirection, TimedStroke};
+use crate::units::{Area, Flow, Length, Power, Pressure, Seconds, Viscosity, Volume};
+
+fn show_s(v: f64) -> String {
+    format!("{} s", super::num(v))
+}
+
+fn show_lpm(v: f64) -> String {
+    format!("{} L/min", super::num(Flow(v).lpm()))
+}
+
+fn show_bar(v: f64) -> String {
+    format!("{} bar", super::num(Pressure(v).bar()))
+}
+
+/// Area of a circle of diameter `d`: π/4 · d².
+pub fn circle_area(d: Length) -> Area {
+    Area(std::f64::consts::FRAC_PI_4 * d.si() * d.si())
+}
+
+/// Full-bore piston area.
+pub fn piston_area(bore: Length) -> Result<Area, PhysicsError> {
+    positive("the bore", bore.si(), show_mm)?;
+    Ok(circle_area(bore))
+}
+
+/// Annulus area between bore and rod: π/4 · (D² − d²).
+pub fn annulus_area(bore: Length, rod: Length) -> Result<Area, PhysicsError> {
+    positive("the bore", bore.si(), show_mm)?;
+    positive("the rod", rod.si(), show_mm)?;
+    if rod.si() >= bore.si() {
+        return Err(PhysicsError::RodNotThinnerThanBore {
+            bore: show_mm(bore.si()),
+            rod: show_mm(rod.si()),
+        });
+    }
+    Ok(Area(circle_area(bore).si() - circle_area(rod).si()))
+}
+
+/// Oil displaced by the timed stroke: full bore × length when extending, annulus × length when
+/// retracting.
+pub fn displaced_volume(stroke: &TimedStroke) -> Result<Volume, PhysicsError> {
+    positive("the stroke length", stroke.length.si(), show_mm)?;
+    let area = match stroke.direction {
+        StrokeDirection::Extend => piston_area(stroke.bore)?,
+        StrokeDirection::Retract => {
+            annulus_area(stroke.bore, stroke.rod.ok_or(PhysicsError::RodMissing)?)?
+        }
+    };
+    Ok(Volume(area.si() * stroke.length.si()))
+}
+
+/// Flow that moved `volume` in `time`: Q = V / t.
+pub fn effective_flow(volume: Volume, time: Seconds) -> Result<Flow, PhysicsError> {
+    positive("the displaced volume", volume.si(), |v| {
+        format!("{} L", super::num(v * 1000.0))
+    })?;
+    positive("the stroke time", time.si(), show_s)?;
+    Ok(Flow(volume.si() / time.si()))
+}
+
+/// Effective flow of a timed stroke.
+pub fn stroke_flow(stroke: &TimedStroke, time: Seconds) -> Result<Flow, PhysicsError> {
+    effective_flow(displaced_volume(stroke)?, time)
+}
+
+/// Piston speed produced by `flow` on `area` (m/s). In US units this is the trade's
+/// speed (in/min) = 231 · GPM / area (in²).
+pub fn piston_speed(flow: Flow, area: Area) -> Result<f64, PhysicsError> {
+    finite("the flow", flow.si())?;
+    positive("the piston area", area.si(), |v| {
+        format!("{} mm²", super::num(v * 1.0e6))
+    })?;
+    Ok(flow.si() / area.si())
+}
+
+/// Fraction of the baseline flow that is lost: 1 − Q / Q_baseline (0.08 = 8 %).
+pub fn lost_flow(flow: Flow, baseline: Flow) -> Result<f64, PhysicsError> {
+    finite("the flow", flow.si())?;
+    positive("the baseline flow", baseline.si(), show_lpm)?;
+    Ok(1.0 - flow.si() / baseline.si())
+}
+
+/// Volumetric efficiency against the pump's rated flow: Q / Q_rated (0.92 = 92 %).
+pub fn vol_efficiency(flow: Flow, rated: Flow) -> Result<f64, PhysicsError> {
+    finite("the flow", flow.si())?;
+    positive("the rated pump flow", rated.si(), show_lpm)?;
+    Ok(flow.si() / rated.si())
+}
+
+/// Hydraulic power P = Q · p. With NIST SP 811 factors this is exactly the trade's
+/// hp = GPM · psi / 1714.29 (12000/7) and kW = L/min · bar / 600.
+pub fn hydraulic_power(flow: Flow, pressure: Pressure) -> Power {
+    Power(flow.si() * pressure.si())
+}
+
+/// Heat put into the oil by flow through a leakage or relief path: P = Q_leak · Δp. All of
+/// the pressure energy lost across the path turns to heat. Read it as `.kw()` or
+/// `.btu_per_h()`.
+pub fn heat_power(leak_flow: Flow, pressure_drop: Pressure) -> Power {
+    Power(leak_flow.si() * pressure_drop.si())
+}
+
+/// Leak conductance of a pump or circuit, corrected for viscosity.
+///
+/// Laminar gap leakage (Hagen–Poiseuille) is Q_leak ∝ Δp / μ, so G = Q_leak · ν / p, with
+/// Q_leak = Q_rated − Q, stays put as the oil warms and thins, and grows as gaps wear.
+/// Kinematic viscosity stands in for dynamic viscosity since density barely changes; the
+/// health engine compares G with the baseline's G, so the unit (m³/s · m²/s / Pa) cancels.
+#[derive(Clone, Copy, Debug, PartialEq, PartialOrd, Serialize, Deserialize)]
+#[serde(transparent)]
+pub struct LeakConductance(pub f64);
+
+impl LeakConductance {
+    pub fn si(self) -> f64 {
+        self.0
+    }
+
+    /// `self / baseline`; `None` when the baseline is not positive.
+    pub fn ratio_to(self, baseline: LeakConductance) -> Option<f64> {
+        (baseline.0 > 0.0 && baseline.0.is_finite()).then(|| self.0 / baseline.0)
+    }
+}
+
+/// G = (Q_rated − Q) · ν(T) / p (see [`LeakConductance`]). Negative when the measured flow
+/// exceeds the rated flow, which means a timing error or an understated rating: the caller
+/// decides what to make of it.
+pub fn leak_conductance(
+    rated: Flow,
+    flow: Flow,
+    visc: Viscosity,
+    pressure: Pressure,
+) -> Result<LeakConductance, PhysicsError> {
+    positive("the rated pump flow", rated.si(), show_lpm)?;
+    finite("the flow", flow.si())?;
+    positive("the viscosity", visc.si(), super::show_cst)?;
+    positive("the pressure", pressure.si(), show_bar)?;
+    Ok(LeakConductance(
+        (rated.si() - flow.si()) * visc.si() / pressure.si(),
+    ))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn stroke(
+        bore_mm: f64,
+        rod_mm: Option<f64>,
+        len_mm: f64,
+        direction: StrokeDirection,
+    ) -> TimedStroke {
+        TimedStroke {
+            bore: Length::from_mm(bore_mm),
+            rod: rod_mm.map(Length::from_mm),
+            length: Length::from_mm(len_mm),
+            direction,
+        }
+    }
+
+    #[test]
+    fn volumes_by_geometry() {
+        // Geometry: V = π/4 · D² · L; annulus π/4 · (D² − d²) · L.
+        let ext = displaced_volume(&stroke(100.0, None, 400.0, StrokeDirection::Extend)).unwrap();
+        assert!((ext.litres() - std::f64::consts::PI * 0.25 * 1.0 * 4.0).abs() < 1e-12);
+        let ret =
+            displaced_volume(&stroke(100.0, Some(56.0), 400.0, StrokeDirection::Retract)).unwrap();
+        let expected = std::f64::consts::FRAC_PI_4 * (1.0 - 0.56 * 0.56) * 4.0;
+        assert!((ret.litres() - expected).abs() < 1e-12);
+    }
+
+    #[test]
+    fn bad_strokes_are_refused() {
+        assert_eq!(
+            displaced_volume(&stroke(100.0, None, 400.0, StrokeDirection::Retract)),
+            Err(PhysicsError::RodMissing)
+        );
+        assert!(matches!(
+            displaced_volume(&stroke(50.0, Some(56.0), 400.0, StrokeDirection::Retract)),
+            Err(PhysicsError::RodNotThinnerThanBore { .. })
+        ));
+        assert!(matches!(
+            displaced_volume(&stroke(-50.0, None, 400.0, StrokeDirection::Extend)),
+            Err(PhysicsError::NotPositive {
+                what: "the bore",
+                ..
+            })
+        ));
+        assert!(matches!(
+            effective_flow(Volume::from_l(1.0), Seconds(0.0)),
+            Err(PhysicsError::NotPositive {
+                what: "the stroke time",
+                ..
+            })
+        ));
+        assert!(matches!(
+            effective_flow(Volume::from_l(1.0), Seconds(f64::NAN)),
+            Err(PhysicsError::NotFinite { .. })
+        ));
+    }
+
+    #[test]
+    fn ratios() {
+        // Definitions (design §3): lost flow 1 − Q/Q_baseline; volumetric efficiency Q/Q_rated.
+        let lf = lost_flow(Flow::from_lpm(46.0), Flow::from_lpm(50.0)).unwrap();
+        assert!((lf - 0.08).abs() < 1e-12);
+        let ve = vol_efficiency(Flow::from_lpm(45.0), Flow::from_lpm(50.0)).unwrap();
+        assert!((ve - 0.9).abs() < 1e-12);
+        assert!(vol_efficiency(Flow::from_lpm(45.0), Flow(0.0)).is_err());
+    }
+
+    #[test]
+    fn leak_conductance_is_temperature_compensated() {
+        // Hagen–Poiseuille gap flow: at fixed wear, Q_leak ∝ p/ν, so G = Q_leak·ν/p stays the same
+        // when the oil is half as viscous and leaks twice as much.
+        let rated = Flow::from_lpm(50.0);
+        let cold = leak_conductance(
+            rated,
+            Flow::from_lpm(48.0),
+            Viscosity::from_cst(46.0),
+            Pressure::from_bar(100.0),
+        )
+        .unwrap();
+        let warm = leak_conductance(
+            rated,
+            Flow::from_lpm(46.0),
+            Viscosity::from_cst(23.0),
+            Pressure::from_bar(100.0),
+        )
+        .unwrap();
+        assert!((cold.ratio_to(warm).unwrap() - 1.0).abs() < 1e-12);
+        // By hand: 2 L/min = 3.3333e-5 m³/s; × 46e-6 m²/s / 1e7 Pa = 1.5333e-16.
+        assert!((cold.si() - 2.0 / 60_000.0 * 46.0e-6 / 1.0e7).abs() < 1e-28);
+        assert!(leak_conductance(rated, rated, Viscosity::from_cst(46.0), Pressure(0.0)).is_err());
+        assert_eq!(cold.ratio_to(LeakConductance(0.0)), None);
+    }
+}

@@ -1,0 +1,3 @@
+//! The one integration-test binary; each file is a module.
+
+mod physics_reference;
