@@ -10,7 +10,13 @@
 
 pub mod app;
 pub mod cli;
+pub mod exchange;
+#[cfg(feature = "gui")]
+pub mod gui;
+pub mod health;
 pub mod model;
 pub mod physics;
 pub mod quantity;
+pub mod report;
+pub mod store;
 pub mod units;

@@ -274,7 +274,11 @@ pub struct Settings {
 
 impl Default for Settings {
     fn default() -> Self {
-        Settings { shop_name: "New shop".into(), unit_system: UnitSystem::Metric, time_zone: "UTC".into() }
+        Settings {
+            shop_name: "New shop".into(),
+            unit_system: UnitSystem::Metric,
+            time_zone: "UTC".into(),
+        }
     }
 }
 

@@ -1,3 +1,8 @@
-//! The one integration-test binary; each file is a module.
-
+mod cli;
+#[cfg(feature = "gui")]
+mod gui;
+mod health_scenarios;
 mod physics_reference;
+mod reliability;
+mod report;
+mod store_and_exchange;

@@ -2,7 +2,15 @@
 //! the desktop app. It opens the shop through the store, runs the health engine, and hands
 //! back plain result structs. It must not print, parse command lines or know slint.
 
+pub mod bench_shop;
 pub mod calc;
+pub mod entry;
+pub mod entry_check;
+pub mod figures;
+pub mod report;
+pub mod shop;
+pub mod status;
+pub mod work;
 
 /// Errors of the application layer, each with the exit code the command line reports.
 #[derive(Debug, thiserror::Error)]
@@ -13,6 +21,15 @@ pub enum AppError {
     /// Something else failed.
     #[error("{0}")]
     Failed(String),
+    /// The shop file or a value was refused, or the database failed.
+    #[error(transparent)]
+    Store(#[from] crate::store::StoreError),
+    /// An import found bad rows and wrote nothing; every bad row, as `FILE:LINE: COLUMN: reason`.
+    #[error("{} bad row(s); nothing was imported:\n{}", errors.len(),
+        errors.iter().map(ToString::to_string).collect::<Vec<_>>().join("\n"))]
+    Import {
+        errors: Vec<crate::exchange::RowError>,
+    },
 }
 
 impl AppError {
@@ -20,6 +37,9 @@ impl AppError {
         match self {
             AppError::BadInput(_) => 2,
             AppError::Failed(_) => 1,
+            AppError::Store(e) if shop::store_error_is_input(e) => 2,
+            AppError::Store(_) => 1,
+            AppError::Import { .. } => 2,
         }
     }
 }

@@ -7,7 +7,12 @@ use std::path::PathBuf;
 
 use clap::{Parser, Subcommand};
 
+pub mod bench;
 pub mod calc;
+pub mod data;
+pub mod entry;
+pub mod report;
+pub mod status;
 
 /// What went wrong, as the user is told it, and the exit code that goes with it.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -20,17 +25,26 @@ pub struct Failure {
 impl Failure {
     /// Bad usage or bad input: exit code 2.
     pub fn bad_input(message: impl Into<String>) -> Self {
-        Failure { code: 2, message: message.into() }
+        Failure {
+            code: 2,
+            message: message.into(),
+        }
     }
     /// The operation failed for another reason: exit code 1.
     pub fn failed(message: impl Into<String>) -> Self {
-        Failure { code: 1, message: message.into() }
+        Failure {
+            code: 1,
+            message: message.into(),
+        }
     }
 }
 
 impl From<crate::app::AppError> for Failure {
     fn from(e: crate::app::AppError) -> Self {
-        Failure { code: e.exit_code(), message: e.to_string() }
+        Failure {
+            code: e.exit_code(),
+            message: e.to_string(),
+        }
     }
 }
 
@@ -55,12 +69,69 @@ pub struct Cli {
 pub enum Command {
     /// Quick calculators for the bench: VI, viscosity, ISO 4406 code, flow, power.
     Calc(calc::CalcArgs),
+    /// Create a new, empty shop file (or confirm that the file is one).
+    Init(data::InitArgs),
+    /// Write the demo shop (an invented press shop with planted faults) into an empty shop.
+    Demo,
+    /// Import a CSV file: all rows or none, unless --keep-going.
+    Import(data::ImportArgs),
+    /// Export CSV (to standard output or --out FILE).
+    Export(data::ExportArgs),
+    /// Each unit's state, flags and key indicators, worst first (`--at DATE` replays the past).
+    Status(status::StatusArgs),
+    /// Work due across the fleet, overdue first: fluid and filter changes, samples, checks.
+    Due(status::DueArgs),
+    /// Record that you have seen a flag; it stays marked until its state changes.
+    Ack(status::AckArgs),
+    /// Record work done (fluid change, top-up, filter change, rebuild, ...).
+    LogEvent(status::LogEventArgs),
+    /// Record one walk-round check of a unit (values with units: 45C, 172bar, 3.9s).
+    LogCheck(entry::LogCheckArgs),
+    /// List the limits in force (shop or one unit), or set and reset them.
+    Limits(status::LimitsArgs),
+    /// Write a consistent copy of the shop file while it stays in use.
+    Backup(data::BackupArgs),
+    /// Write the PDF condition report: fleet page, then one page per unit with charts.
+    Report(report::ReportArgs),
+    /// Make a large generated shop for the benchmarks in benches/ (hidden).
+    #[command(hide = true)]
+    BenchShop(bench::BenchShopArgs),
 }
 
 /// Runs a parsed command line; `None` means "open the app".
 pub fn run(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
     match &cli.command {
         Some(Command::Calc(args)) => calc::run(args, out),
-        None => Err(Failure::bad_input("no command given; see `sumpbook --help`")),
+        Some(Command::Init(args)) => data::run_init(cli.db.as_deref(), args, out),
+        Some(Command::Demo) => data::run_demo(cli.db.as_deref(), out),
+        Some(Command::Import(args)) => data::run_import(cli.db.as_deref(), args, out),
+        Some(Command::Export(args)) => data::run_export(cli.db.as_deref(), args, out),
+        Some(Command::Status(args)) => {
+            status::run_status(&data::open_shop(cli.db.as_deref())?, args, out)
+        }
+        Some(Command::Due(args)) => {
+            status::run_due(&data::open_shop(cli.db.as_deref())?, args, out)
+        }
+        Some(Command::Ack(args)) => {
+            status::run_ack(&data::open_shop(cli.db.as_deref())?, args, out)
+        }
+        Some(Command::LogEvent(args)) => {
+            status::run_log_event(&data::open_shop(cli.db.as_deref())?, args, out)
+        }
+        Some(Command::LogCheck(args)) => {
+            entry::run_log_check(&data::open_shop(cli.db.as_deref())?, args, out)
+        }
+        Some(Command::Limits(args)) => {
+            status::run_limits(&data::open_shop(cli.db.as_deref())?, args, out)
+        }
+        Some(Command::Backup(args)) => data::run_backup(cli.db.as_deref(), args, out),
+        Some(Command::Report(args)) => report::run(&data::open_shop(cli.db.as_deref())?, args, out),
+        Some(Command::BenchShop(args)) => bench::run(cli.db.as_deref(), args, out),
+        // No subcommand: the desktop app, on --db or the default shop.
+        #[cfg(feature = "gui")]
+        None => crate::gui::run(cli.db.as_deref()).map_err(Failure::from),
+        // Built without the app: the stored status of the shop.
+        #[cfg(not(feature = "gui"))]
+        None => data::run_stored_status(cli.db.as_deref(), &data::StoredStatusArgs::default(), out),
     }
 }

@@ -1,0 +1,278 @@
+//! The open shop and the actions on its data as a whole: create or open a shop file, load the
+//! demo, import and export CSV, back up, and a plain listing of what is stored per unit.
+//!
+//! One [`Shop`] holds the store of one file. The command line and the desktop app call these
+//! functions; they print nothing and parse no command lines. No SQL here (that is the store's)
+//! and no health rules (that is `app::status`).
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use serde::Serialize;
+
+use super::AppError;
+use crate::exchange::demo::{self, DemoCounts};
+use crate::exchange::{csv_in, csv_out, ExchangeError, FileKind, ImportSummary};
+use crate::model::{Check, Sample};
+use crate::store::{OpenMode, Store, StoreError};
+use crate::units::UnitSystem;
+
+/// An open shop database.
+#[derive(Debug)]
+pub struct Shop {
+    store: Store,
+    path: PathBuf,
+}
+
+/// What `init` found or did.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+pub struct InitOutcome {
+    pub path: PathBuf,
+    /// A new shop file was made (false: the file was already a shop).
+    pub created: bool,
+    pub schema_version: usize,
+}
+
+/// One unit and what is stored about it, without any judgement of its health.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct StoredUnit {
+    pub machine_tag: String,
+    pub machine_name: String,
+    pub unit_tag: String,
+    pub archived: bool,
+    pub checks: u64,
+    pub samples: u64,
+    pub latest_check: Option<Check>,
+    pub latest_sample: Option<Sample>,
+}
+
+/// The shop's units in route order with their latest stored readings.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct StoredStatus {
+    pub shop_name: String,
+    pub unit_system: UnitSystem,
+    pub units: Vec<StoredUnit>,
+}
+
+impl Shop {
+    /// Opens an existing shop file.
+    pub fn open(path: &Path) -> Result<Shop, AppError> {
+        let store = Store::open(path, OpenMode::MustExist)?;
+        Ok(Shop {
+            store,
+            path: path.to_path_buf(),
+        })
+    }
+
+    /// Opens the shop file at `path`, creating an empty shop there if the file is missing.
+    pub fn create(path: &Path) -> Result<Shop, AppError> {
+        let store = Store::open(path, OpenMode::Create)?;
+        Ok(Shop {
+            store,
+            path: path.to_path_buf(),
+        })
+    }
+
+    /// Makes a new shop file at `path` with the demo shop in it. Refuses an existing file.
+    pub fn create_demo(path: &Path) -> Result<Shop, AppError> {
+        if path.exists() {
+            return Err(AppError::BadInput(format!(
+                "{}: the file exists; the demo shop is only written into a new file",
+                path.display()
+            )));
+        }
+        let mut shop = Shop::create(path)?;
+        shop.load_demo()?;
+        Ok(shop)
+    }
+
+    /// `sumpbook.sqlite` in the platform's data directory for this user.
+    pub fn default_path() -> Result<PathBuf, AppError> {
+        let dirs = directories::ProjectDirs::from("", "", "sumpbook").ok_or_else(|| {
+            AppError::Failed("cannot find a data directory for this user; give --db FILE".into())
+        })?;
+        Ok(dirs.data_dir().join("sumpbook.sqlite"))
+    }
+
+    /// Opens the default shop; on first start (no file yet) creates it with the demo shop.
+    pub fn open_default() -> Result<Shop, AppError> {
+        let path = Shop::default_path()?;
+        if path.exists() {
+            return Shop::open(&path);
+        }
+        if let Some(dir) = path.parent() {
+            std::fs::create_dir_all(dir)
+                .map_err(|e| AppError::Failed(format!("{}: {e}", dir.display())))?;
+        }
+        Shop::create_demo(&path)
+    }
+
+    /// Creates a new empty shop at `path` (optionally naming it), or confirms that the file is
+    /// already a shop.
+    pub fn init(path: &Path, shop_name: Option<&str>) -> Result<(Shop, InitOutcome), AppError> {
+        let existed = path.exists();
+        let shop = if existed {
+            Shop::open(path)?
+        } else {
+            Shop::create(path)?
+        };
+        if let Some(name) = shop_name {
+            if name.trim().is_empty() {
+                return Err(AppError::BadInput("the shop name must not be empty".into()));
+            }
+            let mut settings = shop.store.settings()?;
+            if settings.shop_name != name.trim() {
+                settings.shop_name = name.trim().to_string();
+                shop.store
+                    .set_settings(&settings, "sumpbook init", "shop named at init")?;
+            }
+        }
+        let outcome = InitOutcome {
+            path: path.to_path_buf(),
+            created: !existed,
+            schema_version: shop.store.schema_version()?,
+        };
+        Ok((shop, outcome))
+    }
+
+    pub fn store(&self) -> &Store {
+        &self.store
+    }
+
+    pub fn store_mut(&mut self) -> &mut Store {
+        &mut self.store
+    }
+
+    pub fn path(&self) -> &Path {
+        &self.path
+    }
+
+    /// Writes the demo shop into this shop, which must have no units yet.
+    pub fn load_demo(&mut self) -> Result<DemoCounts, AppError> {
+        let n = self.store.unit_count()?;
+        if n > 0 {
+            return Err(AppError::BadInput(format!(
+                "{}: the shop already has {n} unit(s); the demo is only loaded into an empty shop \
+                 (use a new file, e.g. --db demo.sqlite)",
+                self.path.display()
+            )));
+        }
+        let shop = demo::generate().map_err(|e| AppError::Failed(e.to_string()))?;
+        demo::load(&mut self.store, &shop).map_err(|e| match e {
+            demo::DemoError::Store(s) => AppError::Store(s),
+            other => AppError::Failed(other.to_string()),
+        })
+    }
+
+    /// Imports a CSV file: all or nothing, or with `keep_going` the good rows and a side file
+    /// of rejects. Bad rows come back as [`AppError::Import`].
+    pub fn import(
+        &mut self,
+        kind: FileKind,
+        file: &Path,
+        keep_going: bool,
+    ) -> Result<ImportSummary, AppError> {
+        csv_in::import_file(&mut self.store, kind, file, keep_going).map_err(AppError::from)
+    }
+
+    /// Writes all rows of `kind` as CSV, in `system` or else the shop's own unit system.
+    pub fn export(
+        &self,
+        kind: FileKind,
+        out: &mut dyn Write,
+        system: Option<UnitSystem>,
+    ) -> Result<u64, AppError> {
+        let system = match system {
+            Some(s) => s,
+            None => self.store.settings()?.unit_system,
+        };
+        csv_out::export(&self.store, kind, out, system).map_err(AppError::from)
+    }
+
+    /// Writes a consistent copy of the shop to `dest` (a new file) while it stays in use.
+    pub fn backup(&self, dest: &Path) -> Result<(), AppError> {
+        if dest.exists() {
+            return Err(AppError::BadInput(format!(
+                "{}: the file exists; choose a new name",
+                dest.display()
+            )));
+        }
+        self.store.backup_to(dest).map_err(AppError::from)
+    }
+
+    /// Every unit in route order with its machine, counts and latest check and sample, as stored.
+    pub fn stored_status(&self) -> Result<StoredStatus, AppError> {
+        let settings = self.store.settings()?;
+        let machines = self.store.machines()?;
+        let mut checks: std::collections::HashMap<_, _> = self
+            .store
+            .latest_checks()?
+            .into_iter()
+            .map(|c| (c.unit_id, c))
+            .collect();
+        let mut samples: std::collections::HashMap<_, _> = self
+            .store
+            .latest_samples()?
+            .into_iter()
+            .map(|s| (s.unit_id, s))
+            .collect();
+        let counts = self.store.reading_counts()?;
+        let mut units = Vec::new();
+        for u in self.store.units()? {
+            let m = machines.iter().find(|m| m.id == u.machine_id);
+            let (nc, ns) = counts.get(&u.id).copied().unwrap_or((0, 0));
+            units.push(StoredUnit {
+                machine_tag: m.map(|m| m.tag.clone()).unwrap_or_default(),
+                machine_name: m.map(|m| m.name.clone()).unwrap_or_default(),
+                archived: u.archived || m.is_some_and(|m| m.archived),
+                checks: nc,
+                samples: ns,
+                latest_check: checks.remove(&u.id),
+                latest_sample: samples.remove(&u.id),
+                unit_tag: u.tag,
+            });
+        }
+        Ok(StoredStatus {
+            shop_name: settings.shop_name,
+            unit_system: settings.unit_system,
+            units,
+        })
+    }
+}
+
+impl From<ExchangeError> for AppError {
+    fn from(e: ExchangeError) -> Self {
+        match e {
+            ExchangeError::Rows(errors) => AppError::Import { errors },
+            ExchangeError::Io { path, source } => {
+                AppError::BadInput(format!("{}: {source}", path.display()))
+            }
+            ExchangeError::Write(e) => AppError::Failed(format!("cannot write: {e}")),
+            ExchangeError::Store(s) => AppError::Store(s),
+        }
+    }
+}
+
+/// Whether a store error is about the file or the input the user gave (a wrong, damaged or
+/// locked file, a refused value): exit code 2.
+pub(crate) fn store_error_is_input(e: &StoreError) -> bool {
+    matches!(
+        e,
+        StoreError::Missing { .. }
+            | StoreError::NotSqlite { .. }
+            | StoreError::NotSumpbook { .. }
+            | StoreError::TooNew { .. }
+            | StoreError::CannotOpen { .. }
+            | StoreError::ReadOnlyFile { .. }
+            | StoreError::Locked { .. }
+            | StoreError::Busy
+            | StoreError::Damaged { .. }
+            | StoreError::Corrupt(_)
+            | StoreError::Invalid { .. }
+            | StoreError::Duplicate { .. }
+            | StoreError::NotFound(_)
+            | StoreError::BadReference
+            | StoreError::NoEditContext
+            | StoreError::Refused(_)
+    )
+}

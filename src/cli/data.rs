@@ -1,0 +1,386 @@
+//! `sumpbook init`, `demo`, `import`, `export`, `status` (plain, as stored) and `backup`: the
+//! shop's data as a whole on the command line.
+//!
+//! Parses what was typed, calls `app::shop` and prints. No rules and no SQL here. Bad input
+//! (a wrong file, bad rows) exits with code 2 and says what was wrong.
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use clap::{Args, ValueEnum};
+
+use super::Failure;
+use crate::app::shop::{Shop, StoredStatus};
+use crate::exchange::FileKind;
+use crate::store::columns;
+use crate::units::UnitSystem;
+
+/// The kinds of CSV file, as typed on the command line.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum KindArg {
+    /// The unit register: machines, hydraulic units, fluids.
+    Units,
+    /// Walk-round checks.
+    Checks,
+    /// Fluid sample results.
+    Samples,
+    /// Maintenance events.
+    Events,
+}
+
+impl From<KindArg> for FileKind {
+    fn from(k: KindArg) -> Self {
+        match k {
+            KindArg::Units => FileKind::Units,
+            KindArg::Checks => FileKind::Checks,
+            KindArg::Samples => FileKind::Samples,
+            KindArg::Events => FileKind::Events,
+        }
+    }
+}
+
+/// Unit systems, as typed on the command line.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum UnitsArg {
+    /// °C, bar, L/min, L, mm.
+    Metric,
+    /// °F, psi, US gal/min, US gal, in.
+    Us,
+}
+
+impl From<UnitsArg> for UnitSystem {
+    fn from(u: UnitsArg) -> Self {
+        match u {
+            UnitsArg::Metric => UnitSystem::Metric,
+            UnitsArg::Us => UnitSystem::Us,
+        }
+    }
+}
+
+#[derive(Args, Debug, Clone, PartialEq)]
+pub struct InitArgs {
+    /// Name the shop (shown on reports).
+    #[arg(long, value_name = "NAME")]
+    pub name: Option<String>,
+}
+
+#[derive(Args, Debug, Clone, PartialEq)]
+pub struct ImportArgs {
+    /// What the file holds.
+    #[arg(value_enum)]
+    pub kind: KindArg,
+    /// The CSV file (`,` `;` or tab separated; UTF-8).
+    pub file: PathBuf,
+    /// Import the good rows and write the refused ones to FILE.rejects.csv, instead of
+    /// importing nothing when any row is bad.
+    #[arg(long)]
+    pub keep_going: bool,
+    /// Print the summary as JSON.
+    #[arg(long)]
+    pub json: bool,
+}
+
+#[derive(Args, Debug, Clone, PartialEq)]
+pub struct ExportArgs {
+    /// What to export.
+    #[arg(value_enum)]
+    pub kind: KindArg,
+    /// Write to this file instead of standard output.
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+    /// Unit system of the numbers (default: the shop's).
+    #[arg(long, value_enum)]
+    pub units: Option<UnitsArg>,
+}
+
+#[derive(Args, Debug, Clone, PartialEq, Default)]
+pub struct StoredStatusArgs {
+    /// Print JSON instead of the table.
+    #[arg(long)]
+    pub json: bool,
+}
+
+#[derive(Args, Debug, Clone, PartialEq)]
+pub struct BackupArgs {
+    /// The backup file to write (must not exist yet).
+    #[arg(long, value_name = "FILE")]
+    pub out: PathBuf,
+}
+
+fn db_path(db: Option<&Path>) -> Result<PathBuf, Failure> {
+    match db {
+        Some(p) => Ok(p.to_path_buf()),
+        None => Ok(Shop::default_path()?),
+    }
+}
+
+/// Opens the shop named by `--db` (it must exist), or the default shop (created with the demo
+/// on first start).
+pub fn open_shop(db: Option<&Path>) -> Result<Shop, Failure> {
+    match db {
+        Some(p) => Ok(Shop::open(p)?),
+        None => Ok(Shop::open_default()?),
+    }
+}
+
+pub fn run_init(db: Option<&Path>, args: &InitArgs, out: &mut dyn Write) -> Result<(), Failure> {
+    let path = db_path(db)?;
+    if let Some(dir) = path
+        .parent()
+        .filter(|d| !d.as_os_str().is_empty() && !d.exists())
+    {
+        std::fs::create_dir_all(dir)
+            .map_err(|e| Failure::failed(format!("{}: {e}", dir.display())))?;
+    }
+    let (_, outcome) = Shop::init(&path, args.name.as_deref())?;
+    if outcome.created {
+        writeln!(
+            out,
+            "created shop {} (schema version {})",
+            path.display(),
+            outcome.schema_version
+        )?;
+    } else {
+        writeln!(
+            out,
+            "{} is already a shop (schema version {})",
+            path.display(),
+            outcome.schema_version
+        )?;
+    }
+    Ok(())
+}
+
+pub fn run_demo(db: Option<&Path>, out: &mut dyn Write) -> Result<(), Failure> {
+    let path = db_path(db)?;
+    let mut shop = if path.exists() {
+        Shop::open(&path)?
+    } else {
+        Shop::create(&path)?
+    };
+    let n = shop.load_demo()?;
+    writeln!(
+        out,
+        "demo shop written to {}: {} machines, {} units, {} fluids, {} checks, {} samples, {} events",
+        path.display(),
+        n.machines,
+        n.units,
+        n.fluids,
+        n.checks,
+        n.samples,
+        n.events
+    )?;
+    Ok(())
+}
+
+pub fn run_import(
+    db: Option<&Path>,
+    args: &ImportArgs,
+    out: &mut dyn Write,
+) -> Result<(), Failure> {
+    let mut shop = open_shop(db)?;
+    let kind = FileKind::from(args.kind);
+    let s = shop.import(kind, &args.file, args.keep_going)?;
+    if args.json {
+        let text = serde_json::to_string_pretty(&s).map_err(|e| Failure::failed(e.to_string()))?;
+        writeln!(out, "{text}")?;
+        return Ok(());
+    }
+    write!(
+        out,
+        "{}: {} rows read, {} added, {} already stored",
+        args.file.display(),
+        s.rows,
+        s.inserted,
+        s.unchanged
+    )?;
+    if kind == FileKind::Units {
+        write!(
+            out,
+            " ({} machines and {} fluids added)",
+            s.machines_added, s.fluids_added
+        )?;
+    }
+    if args.keep_going {
+        write!(out, ", {} refused", s.rejected)?;
+        if let Some(p) = &s.rejects_file {
+            write!(out, " (written to {})", p.display())?;
+        }
+    }
+    writeln!(out)?;
+    Ok(())
+}
+
+pub fn run_export(
+    db: Option<&Path>,
+    args: &ExportArgs,
+    out: &mut dyn Write,
+) -> Result<(), Failure> {
+    let shop = open_shop(db)?;
+    let kind = FileKind::from(args.kind);
+    let system = args.units.map(UnitSystem::from);
+    match &args.out {
+        None => {
+            shop.export(kind, out, system)?;
+        }
+        Some(path) => {
+            // A regular file is written beside the target and renamed, so that a failed export
+            // leaves no half file; anything else (a device such as /dev/null, a pipe) is
+            // written in place and never replaced.
+            let regular = match std::fs::metadata(path) {
+                Ok(m) => m.is_file(),
+                Err(_) => true,
+            };
+            let target = if regular {
+                let mut tmp_name = path
+                    .file_name()
+                    .map(|n| n.to_os_string())
+                    .unwrap_or_default();
+                tmp_name.push(".partial");
+                path.with_file_name(tmp_name)
+            } else {
+                path.clone()
+            };
+            let file = if regular {
+                std::fs::File::create(&target)
+            } else {
+                std::fs::OpenOptions::new().write(true).open(&target)
+            }
+            .map_err(|e| Failure::bad_input(format!("{}: {e}", target.display())))?;
+            let mut w = std::io::BufWriter::new(file);
+            let result = shop.export(kind, &mut w, system).and_then(|n| {
+                w.flush().map_err(|e| {
+                    crate::app::AppError::Failed(format!("{}: {e}", target.display()))
+                })?;
+                Ok(n)
+            });
+            drop(w);
+            let n = match result {
+                Ok(n) => n,
+                Err(e) => {
+                    if regular {
+                        let _ = std::fs::remove_file(&target);
+                    }
+                    return Err(e.into());
+                }
+            };
+            if regular {
+                std::fs::rename(&target, path)
+                    .map_err(|e| Failure::failed(format!("{}: {e}", path.display())))?;
+            }
+            writeln!(out, "{n} {kind} rows written to {}", path.display())?;
+        }
+    }
+    Ok(())
+}
+
+pub fn run_backup(
+    db: Option<&Path>,
+    args: &BackupArgs,
+    out: &mut dyn Write,
+) -> Result<(), Failure> {
+    let shop = open_shop(db)?;
+    shop.backup(&args.out)?;
+    writeln!(
+        out,
+        "backup of {} written to {}",
+        shop.path().display(),
+        args.out.display()
+    )?;
+    Ok(())
+}
+
+pub fn run_stored_status(
+    db: Option<&Path>,
+    args: &StoredStatusArgs,
+    out: &mut dyn Write,
+) -> Result<(), Failure> {
+    let shop = open_shop(db)?;
+    let status = shop.stored_status()?;
+    if args.json {
+        let text =
+            serde_json::to_string_pretty(&status).map_err(|e| Failure::failed(e.to_string()))?;
+        writeln!(out, "{text}")?;
+        return Ok(());
+    }
+    print_status(&status, out)
+}
+
+fn print_status(s: &StoredStatus, out: &mut dyn Write) -> Result<(), Failure> {
+    let us = s.unit_system == UnitSystem::Us;
+    let (t_unit, p_unit) = if us { ("°F", "psi") } else { ("°C", "bar") };
+    writeln!(
+        out,
+        "{} — {} unit(s); latest stored readings",
+        s.shop_name,
+        s.units.len()
+    )?;
+    writeln!(
+        out,
+        "{:<10} {:<8} {:>6}  {:<17} {:>7} {:>7} {:>8}  {:>7}  {:<17} {:<10} {:>7}",
+        "unit",
+        "machine",
+        "checks",
+        "last check (UTC)",
+        format!("oil {t_unit}"),
+        p_unit,
+        "stroke s",
+        "samples",
+        "last sample (UTC)",
+        "ISO 4406",
+        "water"
+    )?;
+    for u in &s.units {
+        let c = u.latest_check.as_ref();
+        let smp = u.latest_sample.as_ref();
+        let opt = |v: Option<f64>| {
+            v.map(|x| format!("{}", (x * 10.0).round() / 10.0))
+                .unwrap_or_else(|| "-".into())
+        };
+        let when = |t: Option<chrono::DateTime<chrono::Utc>>| {
+            t.map(|t| t.format("%Y-%m-%d %H:%M").to_string())
+                .unwrap_or_else(|| "-".into())
+        };
+        let temp = c.and_then(|c| c.reservoir_temp).map(|t| {
+            if us {
+                columns::temp_f(t)
+            } else {
+                columns::temp_c(t)
+            }
+        });
+        let pressure =
+            c.and_then(|c| c.pressure)
+                .map(|p| if us { columns::psi(p) } else { columns::bar(p) });
+        let code = smp.and_then(|s| {
+            s.iso4406.clone().or_else(|| match s.counts_per_ml {
+                [Some(a), Some(b), Some(c)] => {
+                    crate::physics::cleanliness::code_from_counts([a, b, c], None)
+                        .ok()
+                        .map(|k| k.to_string())
+                }
+                _ => None,
+            })
+        });
+        writeln!(
+            out,
+            "{:<10} {:<8} {:>6}  {:<17} {:>7} {:>7} {:>8}  {:>7}  {:<17} {:<10} {:>7}{}",
+            u.unit_tag,
+            u.machine_tag,
+            u.checks,
+            when(c.map(|c| c.taken_at)),
+            opt(temp),
+            opt(pressure),
+            c.and_then(|c| c.stroke_time)
+                .map(|t| format!("{}", t.0))
+                .unwrap_or_else(|| "-".into()),
+            u.samples,
+            when(smp.map(|s| s.sampled_at)),
+            code.unwrap_or_else(|| "-".into()),
+            smp.and_then(|s| s.water_ppm)
+                .map(|w| format!("{w} ppm"))
+                .unwrap_or_else(|| "-".into()),
+            if u.archived { "  (archived)" } else { "" }
+        )?;
+    }
+    Ok(())
+}

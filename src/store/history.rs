@@ -1,0 +1,192 @@
+//! Loading everything the health engine needs: one unit's history, or the whole shop's in a
+//! fixed number of queries (one per table, grouped here), whatever the size of the fleet.
+
+use std::collections::HashMap;
+
+use chrono::{DateTime, Utc};
+
+use super::acks::{ack_from_row, ACK_COLS};
+use super::baselines_limits::{baseline_from_row, baseline_sql};
+use super::checks::{check_from_row, CHECK_COLS};
+use super::events::{event_from_row, EVENT_COLS};
+use super::samples::{sample_from_row, SAMPLE_COLS};
+use super::{fmt_time_stamp, Store, StoreError};
+use crate::model::{Id, UnitHistory};
+
+/// The upper time bound of a history as column text; `None` means everything.
+pub(crate) fn until_text(at: Option<DateTime<Utc>>) -> String {
+    match at {
+        Some(t) => fmt_time_stamp(&t),
+        None => "9999-12-31T23:59:59Z".to_string(),
+    }
+}
+
+impl Store {
+    /// The history of every active unit (neither the unit nor its machine archived), in route
+    /// order, with records up to `at` (all when `None`). Runs one query per table.
+    pub fn unit_histories(
+        &self,
+        at: Option<DateTime<Utc>>,
+    ) -> Result<Vec<UnitHistory>, StoreError> {
+        let until = until_text(at);
+        let machines: HashMap<Id, _> = self.machines()?.into_iter().map(|m| (m.id, m)).collect();
+        let fluids: HashMap<Id, _> = self.fluids()?.into_iter().map(|f| (f.id, f)).collect();
+        let mut out = Vec::new();
+        let mut slot: HashMap<Id, usize> = HashMap::new();
+        for unit in self.units()? {
+            let Some(machine) = machines.get(&unit.machine_id) else {
+                continue;
+            };
+            if unit.archived || machine.archived {
+                continue;
+            }
+            slot.insert(unit.id, out.len());
+            out.push(UnitHistory {
+                machine: machine.clone(),
+                fluid: unit.fluid_id.and_then(|f| fluids.get(&f).cloned()),
+                unit,
+                checks: Vec::new(),
+                samples: Vec::new(),
+                events: Vec::new(),
+                manual_baselines: Vec::new(),
+                acknowledgements: Vec::new(),
+            });
+        }
+
+        let sql = format!(
+            "SELECT {CHECK_COLS} FROM checks WHERE taken_at <= ?1 ORDER BY unit_id, taken_at"
+        );
+        let mut st = self.stmt(&sql)?;
+        for c in st.query_map([&until], check_from_row)? {
+            let c = c?;
+            if let Some(&i) = slot.get(&c.unit_id) {
+                out[i].checks.push(c);
+            }
+        }
+        let sql = format!(
+            "SELECT {SAMPLE_COLS} FROM samples WHERE sampled_at <= ?1 ORDER BY unit_id, sampled_at"
+        );
+        let mut st = self.stmt(&sql)?;
+        for s in st.query_map([&until], sample_from_row)? {
+            let s = s?;
+            if let Some(&i) = slot.get(&s.unit_id) {
+                out[i].samples.push(s);
+            }
+        }
+        let sql = format!("SELECT {EVENT_COLS} FROM events WHERE done_at <= ?1 ORDER BY unit_id, done_at, kind, id");
+        let mut st = self.stmt(&sql)?;
+        for e in st.query_map([&until], event_from_row)? {
+            let e = e?;
+            if let Some(&i) = slot.get(&e.unit_id) {
+                out[i].events.push(e);
+            }
+        }
+        let sql = format!(
+            "{} WHERE entered_at <= ?1 ORDER BY unit_id, era_start, entered_at, id",
+            baseline_sql()
+        );
+        let mut st = self.stmt(&sql)?;
+        for b in st.query_map([&until], baseline_from_row)? {
+            let b = b?;
+            if let Some(&i) = slot.get(&b.unit_id) {
+                out[i].manual_baselines.push(b);
+            }
+        }
+        let sql =
+            format!("SELECT {ACK_COLS} FROM acknowledgements WHERE acked_at <= ?1 ORDER BY unit_id, acked_at, id");
+        let mut st = self.stmt(&sql)?;
+        for a in st.query_map([&until], ack_from_row)? {
+            let a = a?;
+            if let Some(&i) = slot.get(&a.unit_id) {
+                out[i].acknowledgements.push(a);
+            }
+        }
+        Ok(out)
+    }
+
+    /// The history of one unit (archived or not) up to `at`; `None` if there is no such unit.
+    pub fn unit_history(
+        &self,
+        unit_id: Id,
+        at: Option<DateTime<Utc>>,
+    ) -> Result<Option<UnitHistory>, StoreError> {
+        let Some(unit) = self.unit(unit_id)? else {
+            return Ok(None);
+        };
+        let Some(machine) = self.machine(unit.machine_id)? else {
+            return Err(StoreError::Corrupt(format!(
+                "unit {} has no machine",
+                unit.tag
+            )));
+        };
+        let fluid = match unit.fluid_id {
+            Some(f) => self.fluid(f)?,
+            None => None,
+        };
+        let until = until_text(at);
+        let checks = self.checks_for_unit(unit_id, at)?;
+        let samples = self.samples_for_unit(unit_id, at)?;
+        let events = self.events_for_unit(unit_id, at)?;
+        let manual_baselines = self
+            .manual_baselines(unit_id)?
+            .into_iter()
+            .filter(|b| fmt_time_stamp(&b.entered_at) <= until)
+            .collect();
+        let acknowledgements = self
+            .acks(unit_id)?
+            .into_iter()
+            .filter(|a| fmt_time_stamp(&a.at) <= until)
+            .collect();
+        Ok(Some(UnitHistory {
+            machine,
+            unit,
+            fluid,
+            checks,
+            samples,
+            events,
+            manual_baselines,
+            acknowledgements,
+        }))
+    }
+}
+
+impl Store {
+    /// Number of checks and samples stored per unit (units with neither are absent).
+    pub fn reading_counts(&self) -> Result<HashMap<Id, (u64, u64)>, StoreError> {
+        let mut out: HashMap<Id, (u64, u64)> = HashMap::new();
+        let mut st = self.stmt("SELECT unit_id, count(*) FROM checks GROUP BY unit_id")?;
+        for r in st.query_map([], |r| Ok((r.get::<_, Id>(0)?, r.get::<_, i64>(1)?)))? {
+            let (u, n) = r?;
+            out.entry(u).or_default().0 = n.max(0) as u64;
+        }
+        let mut st = self.stmt("SELECT unit_id, count(*) FROM samples GROUP BY unit_id")?;
+        for r in st.query_map([], |r| Ok((r.get::<_, Id>(0)?, r.get::<_, i64>(1)?)))? {
+            let (u, n) = r?;
+            out.entry(u).or_default().1 = n.max(0) as u64;
+        }
+        Ok(out)
+    }
+}
+
+impl Store {
+    /// `EXPLAIN QUERY PLAN` of the per-unit reads of a unit page (checks, samples and events of
+    /// one unit), as `(query, plan)`: lets a test prove that they use the indexes.
+    pub fn unit_page_query_plans(&self) -> Result<Vec<(String, String)>, StoreError> {
+        let mut out = Vec::new();
+        for sql in [
+            super::checks::unit_checks_sql(),
+            super::samples::unit_samples_sql(),
+            super::events::unit_events_sql(),
+        ] {
+            let mut st = self.stmt(&format!("EXPLAIN QUERY PLAN {sql}"))?;
+            let plan = st
+                .query_map(rusqlite::params![1, "9999-12-31T23:59:59Z"], |r| {
+                    r.get::<_, String>(3)
+                })?
+                .collect::<Result<Vec<_>, _>>()?
+                .join("; ");
+            out.push((sql, plan));
+        }
+        Ok(out)
+    }
+}

@@ -1,0 +1,817 @@
+//! The shop database: the only code in sumpbook that holds SQL.
+//!
+//! One SQLite file is one shop. This module opens it (refusing files that are not SQLite, SQLite
+//! files of another program and files from a newer sumpbook), applies the versioned migrations in
+//! `migrations/` (taking an online backup first when an existing shop is upgraded), and offers
+//! typed functions per table family that take and return the records of `crate::model`.
+//! Conversion between the SI values of the model and the units named in the column names
+//! (`temp_c`, `pressure_bar`, `flow_lpm`, ...) happens here and nowhere else (see `columns`).
+//!
+//! It must not know about CSV, the command line or the UI, and it computes no health.
+//!
+//! Every UPDATE or DELETE of stored data goes through [`Store::with_edit`], which states who and
+//! why in `edit_context` inside the edit's own transaction; the schema's triggers copy the old
+//! and new row into `edit_log` and refuse an edit without that context.
+
+use std::cell::Cell;
+use std::io::Read;
+use std::path::{Path, PathBuf};
+use std::sync::LazyLock;
+use std::time::Duration;
+
+use chrono::{DateTime, Datelike, NaiveDate, Timelike, Utc};
+use include_dir::{include_dir, Dir};
+use rusqlite::{Connection, OpenFlags};
+use rusqlite_migration::{Migrations, SchemaVersion};
+
+pub mod acks;
+pub mod baselines_limits;
+pub mod bulk;
+pub mod checks;
+pub mod columns;
+pub mod edit_log;
+pub mod events;
+pub mod fluids;
+pub mod history;
+pub mod machines_units;
+pub mod samples;
+pub mod settings;
+
+pub use bulk::{Bulk, Put};
+
+static MIGRATION_DIR: Dir<'static> = include_dir!("$CARGO_MANIFEST_DIR/migrations");
+
+/// The schema migrations, embedded at build time from `migrations/N-name/up.sql`.
+///
+/// A malformed migration folder is a build defect; it yields an empty set here, which
+/// [`Store::open`] reports as [`StoreError::Migration`] and `MIGRATIONS.validate()` fails on.
+pub static MIGRATIONS: LazyLock<Migrations<'static>> = LazyLock::new(|| {
+    Migrations::from_directory(&MIGRATION_DIR).unwrap_or_else(|_| Migrations::new(Vec::new()))
+});
+
+/// `PRAGMA application_id` of a sumpbook shop: the bytes `SUMP`.
+pub const APPLICATION_ID: i32 = 0x5355_4D50;
+
+/// How long a second process waits for a lock before giving up.
+pub const BUSY_TIMEOUT: Duration = Duration::from_secs(10);
+
+/// Whether [`Store::open`] may create a new shop file.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum OpenMode {
+    /// The file must already exist (it may be an empty file, which becomes a new shop).
+    MustExist,
+    /// Create the file if it is missing; open it otherwise.
+    Create,
+}
+
+/// Everything the store can refuse or fail with, in terms the user can act on.
+#[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
+pub enum StoreError {
+    #[error("{}: no such file", path.display())]
+    Missing { path: PathBuf },
+    #[error("{}: not an SQLite database (is it the right file?)", path.display())]
+    NotSqlite { path: PathBuf },
+    #[error("{}: an SQLite database of another program, not a sumpbook shop", path.display())]
+    NotSumpbook { path: PathBuf },
+    #[error("{}: written by a newer sumpbook (schema version {found}; this program knows up to {known}); update sumpbook", path.display())]
+    TooNew {
+        path: PathBuf,
+        found: usize,
+        known: usize,
+    },
+    #[error("{}: cannot open: {reason}", path.display())]
+    CannotOpen { path: PathBuf, reason: String },
+    #[error("{}: the file is read-only; sumpbook needs to write to it", path.display())]
+    ReadOnlyFile { path: PathBuf },
+    #[error("the database is read-only")]
+    ReadOnly,
+    #[error("the database is locked by another program; try again when it is done")]
+    Busy,
+    #[error("{}: the database is locked by another program; try again when it is done", path.display())]
+    Locked { path: PathBuf },
+    #[error("{}: the shop file is damaged ({reason}); restore it from a backup", path.display())]
+    Damaged { path: PathBuf, reason: String },
+    #[error("cannot bring the database schema up to date: {0}")]
+    Migration(String),
+    /// A value was refused: `field` is the column, `reason` the rule it broke.
+    #[error("{field}: {reason}")]
+    Invalid { field: String, reason: String },
+    /// A row with the same identifying key exists.
+    #[error("{what} already exists")]
+    Duplicate { what: String },
+    #[error("{0} not found")]
+    NotFound(String),
+    /// A foreign key points at nothing.
+    #[error("refers to a machine, unit or fluid that does not exist")]
+    BadReference,
+    /// A stored row can only be changed with who and why stated.
+    #[error("an edit needs who made it and why")]
+    NoEditContext,
+    /// A trigger or another rule of the schema refused the change.
+    #[error("refused: {0}")]
+    Refused(String),
+    /// The file holds something this program cannot read back.
+    #[error("the shop file is damaged or was changed by another program: {0}")]
+    Corrupt(String),
+    #[error("{}: {source}", path.display())]
+    Io {
+        path: PathBuf,
+        source: std::io::Error,
+    },
+    #[error("database error: {0}")]
+    Sqlite(rusqlite::Error),
+}
+
+impl From<rusqlite::Error> for StoreError {
+    fn from(e: rusqlite::Error) -> Self {
+        classify(e)
+    }
+}
+
+/// Turns SQLite's message for a failed constraint into the field and rule it names.
+fn classify(e: rusqlite::Error) -> StoreError {
+    use rusqlite::ffi::ErrorCode;
+    let (code, msg) = match &e {
+        rusqlite::Error::SqliteFailure(f, msg) => (f.code, msg.clone().unwrap_or_default()),
+        rusqlite::Error::FromSqlConversionFailure(..)
+        | rusqlite::Error::InvalidColumnType(..)
+        | rusqlite::Error::IntegralValueOutOfRange(..) => {
+            return StoreError::Corrupt(e.to_string())
+        }
+        _ => return StoreError::Sqlite(e),
+    };
+    match code {
+        ErrorCode::DatabaseBusy | ErrorCode::DatabaseLocked => StoreError::Busy,
+        ErrorCode::ReadOnly => StoreError::ReadOnly,
+        ErrorCode::NotADatabase => StoreError::Corrupt("the file is not a database".into()),
+        ErrorCode::DatabaseCorrupt => StoreError::Corrupt(msg),
+        ErrorCode::ConstraintViolation => constraint_error(&msg).unwrap_or(StoreError::Sqlite(e)),
+        _ => StoreError::Sqlite(e),
+    }
+}
+
+fn constraint_error(msg: &str) -> Option<StoreError> {
+    if let Some(rest) = msg.strip_prefix("CHECK constraint failed: ") {
+        // Constraints are named "<column>: <rule>" in the schema.
+        return Some(match rest.split_once(": ") {
+            Some((field, reason)) => StoreError::Invalid {
+                field: field.into(),
+                reason: reason.into(),
+            },
+            None => StoreError::Invalid {
+                field: rest.into(),
+                reason: "value out of range".into(),
+            },
+        });
+    }
+    if let Some(rest) = msg.strip_prefix("NOT NULL constraint failed: ") {
+        if rest == "edit_log.edited_by" {
+            return Some(StoreError::NoEditContext);
+        }
+        let field = rest.rsplit('.').next().unwrap_or(rest);
+        return Some(StoreError::Invalid {
+            field: field.into(),
+            reason: "must be given".into(),
+        });
+    }
+    if let Some(rest) = msg.strip_prefix("UNIQUE constraint failed: ") {
+        let what = match rest {
+            "checks.unit_id, checks.taken_at" => "a check of this unit at this time",
+            "samples.unit_id, samples.sampled_at" => "a sample of this unit at this time",
+            "events.unit_id, events.done_at, events.kind" => {
+                "an event of this kind on this unit at this time"
+            }
+            "machines.tag" => "a machine with this tag",
+            "units.tag" => "a unit with this tag",
+            "fluids.name" => "a fluid with this name",
+            "index 'limits_scope_key'" => "a limit with this key",
+            other => {
+                return Some(StoreError::Duplicate {
+                    what: format!("a row with the same {other}"),
+                })
+            }
+        };
+        return Some(StoreError::Duplicate { what: what.into() });
+    }
+    if msg.starts_with("FOREIGN KEY constraint failed") {
+        return Some(StoreError::BadReference);
+    }
+    if let Some(rest) = msg.strip_prefix("cannot store ") {
+        // STRICT tables: "cannot store TEXT value in REAL column checks.pressure_bar"
+        let field = rest.rsplit('.').next().unwrap_or(rest);
+        return Some(StoreError::Invalid {
+            field: field.into(),
+            reason: format!("wrong type: cannot store {rest}"),
+        });
+    }
+    if !msg.is_empty() {
+        return Some(StoreError::Refused(msg.into()));
+    }
+    None
+}
+
+/// An open shop database.
+pub struct Store {
+    conn: Connection,
+    path: PathBuf,
+    queries: Cell<u64>,
+}
+
+impl std::fmt::Debug for Store {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Store")
+            .field("path", &self.path)
+            .finish_non_exhaustive()
+    }
+}
+
+const SQLITE_HEADER: &[u8; 16] = b"SQLite format 3\0";
+
+impl Store {
+    /// Opens (or with [`OpenMode::Create`] creates) a shop and brings its schema up to date.
+    pub fn open(path: &Path, mode: OpenMode) -> Result<Store, StoreError> {
+        let path_buf = path.to_path_buf();
+        match std::fs::metadata(path) {
+            Ok(meta) if meta.is_dir() => {
+                return Err(StoreError::CannotOpen {
+                    path: path_buf,
+                    reason: "it is a directory".into(),
+                })
+            }
+            Ok(meta) => {
+                if meta.permissions().readonly() {
+                    return Err(StoreError::ReadOnlyFile { path: path_buf });
+                }
+                if meta.len() > 0 {
+                    check_sqlite_header(path, meta.len())?;
+                }
+            }
+            Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
+                if mode == OpenMode::MustExist {
+                    return Err(StoreError::Missing { path: path_buf });
+                }
+            }
+            Err(e) => {
+                return Err(StoreError::Io {
+                    path: path_buf,
+                    source: e,
+                })
+            }
+        }
+        let mut flags = OpenFlags::SQLITE_OPEN_READ_WRITE | OpenFlags::SQLITE_OPEN_NO_MUTEX;
+        if mode == OpenMode::Create {
+            flags |= OpenFlags::SQLITE_OPEN_CREATE;
+        }
+        let conn =
+            Connection::open_with_flags(path, flags).map_err(|e| StoreError::CannotOpen {
+                path: path_buf.clone(),
+                reason: e.to_string(),
+            })?;
+        let mut store = Store {
+            conn,
+            path: path_buf,
+            queries: Cell::new(0),
+        };
+        store.prepare_connection().map_err(|e| match e {
+            StoreError::Busy => StoreError::Locked {
+                path: path.to_path_buf(),
+            },
+            StoreError::Corrupt(reason) => StoreError::Damaged {
+                path: path.to_path_buf(),
+                reason,
+            },
+            other => other,
+        })?;
+        Ok(store)
+    }
+
+    /// Opens a private in-memory shop (tests, previews); nothing is written to disk.
+    pub fn open_in_memory() -> Result<Store, StoreError> {
+        let conn = Connection::open_in_memory()?;
+        let mut store = Store {
+            conn,
+            path: PathBuf::from(":memory:"),
+            queries: Cell::new(0),
+        };
+        store.prepare_connection()?;
+        Ok(store)
+    }
+
+    fn prepare_connection(&mut self) -> Result<(), StoreError> {
+        let not_db = |e: rusqlite::Error, path: &Path| match classify(e) {
+            StoreError::Corrupt(_) => StoreError::NotSqlite {
+                path: path.to_path_buf(),
+            },
+            other => other,
+        };
+        self.conn
+            .busy_timeout(BUSY_TIMEOUT)
+            .map_err(|e| not_db(e, &self.path))?;
+        if self.conn.is_readonly(rusqlite::MAIN_DB).unwrap_or(false) {
+            return Err(StoreError::ReadOnlyFile {
+                path: self.path.clone(),
+            });
+        }
+        let app_id: i32 = self
+            .conn
+            .query_row("PRAGMA application_id", [], |r| r.get(0))
+            .map_err(|e| not_db(e, &self.path))?;
+        let objects: i64 = self
+            .conn
+            .query_row("SELECT count(*) FROM sqlite_schema", [], |r| r.get(0))?;
+        let has_meta: bool = self.conn.query_row(
+            "SELECT count(*) FROM sqlite_schema WHERE type = 'table' AND name = 'sumpbook_meta'",
+            [],
+            |r| r.get::<_, i64>(0).map(|n| n > 0),
+        )?;
+        let ours = app_id == APPLICATION_ID || (app_id == 0 && has_meta);
+        let empty = app_id == 0 && objects == 0;
+        if !ours && !empty {
+            return Err(StoreError::NotSumpbook {
+                path: self.path.clone(),
+            });
+        }
+        let known = Self::latest_schema_version();
+        let current = MIGRATIONS
+            .current_version(&self.conn)
+            .map_err(|e| StoreError::Migration(e.to_string()))?;
+        let found: usize = current.into();
+        if found > known {
+            return Err(StoreError::TooNew {
+                path: self.path.clone(),
+                found,
+                known,
+            });
+        }
+        if ours && found == 0 {
+            // The marker without a version: written by something that is not sumpbook.
+            return Err(StoreError::NotSumpbook {
+                path: self.path.clone(),
+            });
+        }
+
+        if self.path != Path::new(":memory:") {
+            let mode: String = self
+                .conn
+                .query_row("PRAGMA journal_mode = WAL", [], |r| r.get(0))?;
+            if !mode.eq_ignore_ascii_case("wal") {
+                return Err(StoreError::CannotOpen {
+                    path: self.path.clone(),
+                    reason: format!(
+                        "cannot switch to write-ahead logging (journal mode is {mode})"
+                    ),
+                });
+            }
+        }
+        self.conn.pragma_update(None, "foreign_keys", true)?;
+        // A larger page cache keeps bulk imports into indexed tables fast; bounded at 16 MiB.
+        self.conn.pragma_update(None, "cache_size", -16384)?;
+
+        if found < known {
+            self.migrate()?;
+        }
+        let app_id: i32 = self
+            .conn
+            .query_row("PRAGMA application_id", [], |r| r.get(0))?;
+        if app_id != APPLICATION_ID {
+            return Err(StoreError::Migration(
+                "the schema did not set the sumpbook marker".into(),
+            ));
+        }
+        Ok(())
+    }
+
+    /// Brings the schema to the latest version, one process at a time: the version is read
+    /// again under the lock (another process may have done it meanwhile), an existing shop is
+    /// backed up first (SQLite online backup beside the file), and the migrations run in one
+    /// transaction that takes the write lock at its start.
+    fn migrate(&mut self) -> Result<(), StoreError> {
+        let memory = self.path == Path::new(":memory:");
+        let _lock = if memory {
+            None
+        } else {
+            Some(MigrationLock::take(&self.path)?)
+        };
+        let known = Self::latest_schema_version();
+        let found = self.schema_version()?;
+        if found > known {
+            return Err(StoreError::TooNew {
+                path: self.path.clone(),
+                found,
+                known,
+            });
+        }
+        if found == known {
+            return Ok(());
+        }
+        if found > 0 && !memory {
+            let backup = backup_path_before_migration(&self.path, found);
+            self.backup_to(&backup)?;
+        }
+        self.conn
+            .set_transaction_behavior(rusqlite::TransactionBehavior::Immediate);
+        let result = MIGRATIONS.to_latest(&mut self.conn);
+        self.conn
+            .set_transaction_behavior(rusqlite::TransactionBehavior::Deferred);
+        result.map_err(|e| match e {
+            rusqlite_migration::Error::RusqliteError { err, .. } => match classify(err) {
+                StoreError::Busy => StoreError::Busy,
+                other => StoreError::Migration(other.to_string()),
+            },
+            other => StoreError::Migration(other.to_string()),
+        })
+    }
+
+    /// The schema version the file is at now.
+    pub fn schema_version(&self) -> Result<usize, StoreError> {
+        let v: SchemaVersion = MIGRATIONS
+            .current_version(&self.conn)
+            .map_err(|e| StoreError::Migration(e.to_string()))?;
+        Ok(v.into())
+    }
+
+    /// The newest schema version this program knows.
+    pub fn latest_schema_version() -> usize {
+        MIGRATION_DIR.dirs().count()
+    }
+
+    /// The file this store was opened from.
+    pub fn path(&self) -> &Path {
+        &self.path
+    }
+
+    /// How many SQL statements the store has run since it was opened. Lets tests prove that
+    /// loading the fleet costs a bounded number of queries, whatever its size.
+    pub fn query_count(&self) -> u64 {
+        self.queries.get()
+    }
+
+    /// Counts one statement execution.
+    fn count(&self) {
+        self.queries.set(self.queries.get() + 1);
+    }
+
+    /// Counts `n` statement executions (bulk writers).
+    fn count_n(&self, n: u64) {
+        self.queries.set(self.queries.get() + n);
+    }
+
+    /// A cached prepared statement, counted as one query.
+    fn stmt(&self, sql: &str) -> Result<rusqlite::CachedStatement<'_>, StoreError> {
+        self.count();
+        Ok(self.conn.prepare_cached(sql)?)
+    }
+
+    /// Writes a consistent copy of the whole shop to `dest` with SQLite's online backup, while
+    /// other readers and writers may go on using the file.
+    pub fn backup_to(&self, dest: &Path) -> Result<(), StoreError> {
+        if dest.exists() {
+            return Err(StoreError::CannotOpen {
+                path: dest.to_path_buf(),
+                reason: "the file already exists; choose a new name".into(),
+            });
+        }
+        self.count();
+        self.conn
+            .backup(rusqlite::MAIN_DB, dest, None)
+            .map_err(|e| StoreError::CannotOpen {
+                path: dest.to_path_buf(),
+                reason: e.to_string(),
+            })
+    }
+
+    /// `PRAGMA integrity_check` = ok.
+    pub fn integrity_ok(&self) -> Result<bool, StoreError> {
+        self.count();
+        let r: String = self
+            .conn
+            .query_row("PRAGMA integrity_check", [], |r| r.get(0))?;
+        Ok(r == "ok")
+    }
+
+    /// Begins a write transaction that takes the write lock at once (no lock upgrade later, so
+    /// two writers wait on each other instead of failing midway).
+    fn begin(&self) -> Result<TxGuard<'_>, StoreError> {
+        self.count();
+        self.conn.execute_batch("BEGIN IMMEDIATE")?;
+        Ok(TxGuard {
+            conn: &self.conn,
+            open: true,
+        })
+    }
+
+    /// Runs `f` in one transaction with `by` and `reason` recorded for the edit history.
+    /// Every UPDATE or DELETE of stored data must go through here.
+    pub(crate) fn with_edit<T>(
+        &self,
+        by: &str,
+        reason: &str,
+        f: impl FnOnce(&Self) -> Result<T, StoreError>,
+    ) -> Result<T, StoreError> {
+        if by.trim().is_empty() {
+            return Err(StoreError::Invalid {
+                field: "by".into(),
+                reason: "who made the change must be given".into(),
+            });
+        }
+        let tx = self.begin()?;
+        self.stmt("INSERT OR REPLACE INTO edit_context (id, edited_by, reason, edited_at) VALUES (1, ?1, ?2, ?3)")?
+            .execute(rusqlite::params![by.trim(), reason, fmt_time_stamp(&Utc::now())])?;
+        let out = f(self)?;
+        self.stmt("DELETE FROM edit_context")?.execute([])?;
+        tx.commit()?;
+        Ok(out)
+    }
+}
+
+/// Rolls back on drop unless committed.
+struct TxGuard<'c> {
+    conn: &'c Connection,
+    open: bool,
+}
+
+impl TxGuard<'_> {
+    fn commit(mut self) -> Result<(), StoreError> {
+        self.conn.execute_batch("COMMIT")?;
+        self.open = false;
+        Ok(())
+    }
+}
+
+impl Drop for TxGuard<'_> {
+    fn drop(&mut self) {
+        if self.open && !self.conn.is_autocommit() {
+            // Nothing useful can be done with a failed rollback here; SQLite rolls back the
+            // journal on the next open in any case.
+            let _ = self.conn.execute_batch("ROLLBACK");
+        }
+    }
+}
+
+/// Refuses a file that is not SQLite, and an SQLite file shorter than its own header says
+/// (a half-copied or truncated file), before SQLite is asked to read it.
+fn check_sqlite_header(path: &Path, file_len: u64) -> Result<(), StoreError> {
+    let mut head = [0u8; 100];
+    let mut file = std::fs::File::open(path).map_err(|e| StoreError::Io {
+        path: path.to_path_buf(),
+        source: e,
+    })?;
+    let mut read = 0;
+    while read < head.len() {
+        match file.read(&mut head[read..]) {
+            Ok(0) => break,
+            Ok(n) => read += n,
+            Err(e) => {
+                return Err(StoreError::Io {
+                    path: path.to_path_buf(),
+                    source: e,
+                })
+            }
+        }
+    }
+    if read < 16 || &head[..16] != SQLITE_HEADER {
+        return Err(StoreError::NotSqlite {
+            path: path.to_path_buf(),
+        });
+    }
+    let damaged = |reason: String| StoreError::Damaged {
+        path: path.to_path_buf(),
+        reason,
+    };
+    if read < head.len() {
+        return Err(damaged(format!("only {file_len} bytes")));
+    }
+    // File format: page size at offset 16 (1 means 65536), the change counter at 24, the size
+    // in pages at 28, valid when the "version-valid-for" number at 92 equals the counter.
+    let be32 = |at: usize| u32::from_be_bytes([head[at], head[at + 1], head[at + 2], head[at + 3]]);
+    let page_size = match u16::from_be_bytes([head[16], head[17]]) {
+        1 => 65_536u64,
+        n => u64::from(n),
+    };
+    let pages = u64::from(be32(28));
+    if be32(92) == be32(24) && pages > 0 && pages * page_size > file_len {
+        return Err(damaged(format!(
+            "it holds {file_len} bytes but should hold {} pages of {page_size} bytes",
+            pages
+        )));
+    }
+    Ok(())
+}
+
+/// Keeps a second process from upgrading or creating the same shop at the same moment: an
+/// exclusive lock on a file beside the shop, held while the schema is checked, backed up and
+/// migrated, removed afterwards.
+struct MigrationLock {
+    file: std::fs::File,
+    path: PathBuf,
+}
+
+impl MigrationLock {
+    fn take(db: &Path) -> Result<MigrationLock, StoreError> {
+        let mut name = db.file_name().map(|n| n.to_os_string()).unwrap_or_default();
+        name.push(".upgrading");
+        let path = db.with_file_name(name);
+        let io = |e: std::io::Error| StoreError::Io {
+            path: path.clone(),
+            source: e,
+        };
+        let file = std::fs::OpenOptions::new()
+            .create(true)
+            .truncate(false)
+            .write(true)
+            .open(&path)
+            .map_err(io)?;
+        file.lock().map_err(io)?;
+        Ok(MigrationLock { file, path })
+    }
+}
+
+impl Drop for MigrationLock {
+    fn drop(&mut self) {
+        // A leftover file does no harm; the lock goes with the handle.
+        let _ = std::fs::remove_file(&self.path);
+        let _ = self.file.unlock();
+    }
+}
+
+/// Where the automatic backup before upgrading from schema `version` goes.
+pub fn backup_path_before_migration(path: &Path, version: usize) -> PathBuf {
+    let mut name = path
+        .file_name()
+        .map(|n| n.to_os_string())
+        .unwrap_or_default();
+    name.push(format!(".before-schema-{}.sqlite", version + 1));
+    let mut candidate = path.with_file_name(&name);
+    let mut n = 2;
+    while candidate.exists() {
+        let mut numbered = name.clone();
+        numbered.push(format!(".{n}"));
+        candidate = path.with_file_name(numbered);
+        n += 1;
+    }
+    candidate
+}
+
+/// Formats a time for a column: `YYYY-MM-DDTHH:MM:SSZ`. Sub-second parts are refused, not
+/// dropped, because stored readings are evidence.
+pub fn fmt_time(field: &str, t: &DateTime<Utc>) -> Result<String, StoreError> {
+    if t.nanosecond() != 0 {
+        return Err(StoreError::Invalid {
+            field: field.into(),
+            reason: "times are kept to the second; fractions of a second are not stored".into(),
+        });
+    }
+    Ok(fmt_time_stamp(t))
+}
+
+/// Formats a time to the second, dropping any fraction: for stamps the program makes itself
+/// (edit times, acknowledgement times), not for readings.
+pub fn fmt_time_stamp(t: &DateTime<Utc>) -> String {
+    let mut s = String::with_capacity(20);
+    use std::fmt::Write;
+    // Writing to a String cannot fail.
+    let _ = write!(
+        s,
+        "{:04}-{:02}-{:02}T{:02}:{:02}:{:02}Z",
+        t.year(),
+        t.month(),
+        t.day(),
+        t.hour(),
+        t.minute(),
+        t.second()
+    );
+    s
+}
+
+/// Parses a stored `YYYY-MM-DDTHH:MM:SSZ`.
+pub fn parse_time(s: &str) -> Result<DateTime<Utc>, StoreError> {
+    let bad = || StoreError::Corrupt(format!("`{s}` is not a stored time"));
+    let b = s.as_bytes();
+    if b.len() != 20
+        || b[4] != b'-'
+        || b[7] != b'-'
+        || b[10] != b'T'
+        || b[13] != b':'
+        || b[16] != b':'
+        || b[19] != b'Z'
+    {
+        return Err(bad());
+    }
+    let num = |range: std::ops::Range<usize>| -> Result<u32, StoreError> {
+        let mut v = 0u32;
+        for &c in &b[range] {
+            if !c.is_ascii_digit() {
+                return Err(bad());
+            }
+            v = v * 10 + u32::from(c - b'0');
+        }
+        Ok(v)
+    };
+    let year = i32::try_from(num(0..4)?).map_err(|_| bad())?;
+    let date = NaiveDate::from_ymd_opt(year, num(5..7)?, num(8..10)?).ok_or_else(bad)?;
+    let dt = date
+        .and_hms_opt(num(11..13)?, num(14..16)?, num(17..19)?)
+        .ok_or_else(bad)?;
+    Ok(dt.and_utc())
+}
+
+/// A column time read from a row, as a model time.
+fn time_col(row: &rusqlite::Row<'_>, idx: usize) -> rusqlite::Result<DateTime<Utc>> {
+    let s: String = row.get(idx)?;
+    parse_time(&s).map_err(|e| {
+        rusqlite::Error::FromSqlConversionFailure(
+            idx,
+            rusqlite::types::Type::Text,
+            Box::new(CorruptValue(e.to_string())),
+        )
+    })
+}
+
+/// A text column holding one of a closed set of names.
+fn enum_col<T: std::str::FromStr<Err = String>>(
+    row: &rusqlite::Row<'_>,
+    idx: usize,
+) -> rusqlite::Result<T> {
+    let s: String = row.get(idx)?;
+    s.parse::<T>().map_err(|e| {
+        rusqlite::Error::FromSqlConversionFailure(
+            idx,
+            rusqlite::types::Type::Text,
+            Box::new(CorruptValue(e)),
+        )
+    })
+}
+
+fn opt_enum_col<T: std::str::FromStr<Err = String>>(
+    row: &rusqlite::Row<'_>,
+    idx: usize,
+) -> rusqlite::Result<Option<T>> {
+    let s: Option<String> = row.get(idx)?;
+    s.map(|s| {
+        s.parse::<T>().map_err(|e| {
+            rusqlite::Error::FromSqlConversionFailure(
+                idx,
+                rusqlite::types::Type::Text,
+                Box::new(CorruptValue(e)),
+            )
+        })
+    })
+    .transpose()
+}
+
+#[derive(Debug)]
+struct CorruptValue(String);
+
+impl std::fmt::Display for CorruptValue {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.0)
+    }
+}
+
+impl std::error::Error for CorruptValue {}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn stored_times_round_trip_and_sort_as_text() {
+        let t = parse_time("2024-02-29T23:59:07Z").unwrap();
+        assert_eq!(fmt_time("taken_at", &t).unwrap(), "2024-02-29T23:59:07Z");
+        assert!(parse_time("2025-02-29T00:00:00Z").is_err());
+        assert!(parse_time("2025-01-01 00:00:00Z").is_err());
+        let frac = t + chrono::Duration::milliseconds(5);
+        assert!(
+            matches!(fmt_time("taken_at", &frac), Err(StoreError::Invalid { field, .. }) if field == "taken_at")
+        );
+        assert_eq!(fmt_time_stamp(&frac), "2024-02-29T23:59:07Z");
+    }
+
+    #[test]
+    fn constraint_messages_name_the_field() {
+        let e = constraint_error(
+            "CHECK constraint failed: pressure_bar: must be between 0 and 1000 bar",
+        )
+        .unwrap();
+        assert!(
+            matches!(e, StoreError::Invalid { ref field, .. } if field == "pressure_bar"),
+            "{e:?}"
+        );
+        let e = constraint_error("NOT NULL constraint failed: checks.unit_id").unwrap();
+        assert!(
+            matches!(e, StoreError::Invalid { ref field, .. } if field == "unit_id"),
+            "{e:?}"
+        );
+        let e = constraint_error("NOT NULL constraint failed: edit_log.edited_by").unwrap();
+        assert!(matches!(e, StoreError::NoEditContext));
+        let e = constraint_error("UNIQUE constraint failed: units.tag").unwrap();
+        assert_eq!(e.to_string(), "a unit with this tag already exists");
+    }
+
+    #[test]
+    fn every_migration_applies_in_memory() {
+        MIGRATIONS.validate().unwrap();
+        assert_eq!(Store::latest_schema_version(), 2);
+    }
+}

@@ -1,0 +1,55 @@
+//! Shop-wide settings (the one row of `settings`) and the file's `sumpbook_meta` facts.
+
+use rusqlite::{params, OptionalExtension};
+
+use super::{Store, StoreError};
+use crate::model::Settings;
+use crate::units::UnitSystem;
+
+fn unit_system_text(u: UnitSystem) -> &'static str {
+    match u {
+        UnitSystem::Metric => "metric",
+        UnitSystem::Us => "us",
+    }
+}
+
+impl Store {
+    pub fn settings(&self) -> Result<Settings, StoreError> {
+        let (shop_name, system, time_zone): (String, String, String) = self
+            .stmt("SELECT shop_name, unit_system, time_zone FROM settings WHERE id = 1")?
+            .query_row([], |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)))?;
+        let unit_system = match system.as_str() {
+            "metric" => UnitSystem::Metric,
+            "us" => UnitSystem::Us,
+            other => return Err(StoreError::Corrupt(format!("unit system `{other}`"))),
+        };
+        Ok(Settings {
+            shop_name,
+            unit_system,
+            time_zone,
+        })
+    }
+
+    /// Changes the settings; the old values are kept in the edit history.
+    pub fn set_settings(&self, s: &Settings, by: &str, reason: &str) -> Result<(), StoreError> {
+        self.with_edit(by, reason, |st| {
+            st.stmt(
+                "UPDATE settings SET shop_name = ?1, unit_system = ?2, time_zone = ?3 WHERE id = 1",
+            )?
+            .execute(params![
+                s.shop_name.trim(),
+                unit_system_text(s.unit_system),
+                s.time_zone.trim()
+            ])?;
+            Ok(())
+        })
+    }
+
+    /// A fact about the file from `sumpbook_meta` (e.g. `application`, `created_with_schema`).
+    pub fn meta(&self, key: &str) -> Result<Option<String>, StoreError> {
+        Ok(self
+            .stmt("SELECT value FROM sumpbook_meta WHERE key = ?1")?
+            .query_row([key], |r| r.get(0))
+            .optional()?)
+    }
+}

@@ -1,0 +1,228 @@
+//! The `sumpbook` binary on real files: init, demo, import, export, backup, the default shop
+//! (made with the demo on first use), and clear refusals (exit code 2, no panic) for wrong
+//! files and bad rows.
+
+use std::path::Path;
+use std::process::{Command, Output};
+
+fn sumpbook(dir: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_sumpbook"))
+        .args(args)
+        .current_dir(dir)
+        // Keep the default shop of these runs inside the test's directory.
+        .env("HOME", dir)
+        .env("XDG_DATA_HOME", dir.join("data"))
+        .output()
+        .unwrap()
+}
+
+fn text(b: &[u8]) -> String {
+    String::from_utf8_lossy(b).into_owned()
+}
+
+fn ok(dir: &Path, args: &[&str]) -> String {
+    let out = sumpbook(dir, args);
+    assert!(
+        out.status.success(),
+        "{args:?} failed: {}{}",
+        text(&out.stdout),
+        text(&out.stderr)
+    );
+    text(&out.stdout)
+}
+
+/// Exit code 2, a message on stderr that contains `needle`, and no panic.
+fn refused(dir: &Path, args: &[&str], needle: &str) -> String {
+    let out = sumpbook(dir, args);
+    let err = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+    assert!(
+        err.contains(needle),
+        "{args:?}: expected `{needle}` in: {err}"
+    );
+    assert!(!err.contains("panicked"), "{err}");
+    err
+}
+
+#[test]
+fn init_demo_export_import_and_backup_through_the_binary() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let out = ok(d, &["--db", "shop.sqlite", "init", "--name", "Test works"]);
+    assert!(out.contains("created shop"), "{out}");
+    let out = ok(d, &["--db", "shop.sqlite", "init"]);
+    assert!(out.contains("already a shop"), "{out}");
+
+    let out = ok(d, &["--db", "demo.sqlite", "demo"]);
+    assert!(out.contains("11 units"), "{out}");
+    refused(
+        d,
+        &["--db", "demo.sqlite", "demo"],
+        "already has 11 unit(s)",
+    );
+
+    for kind in ["units", "checks", "samples", "events"] {
+        ok(
+            d,
+            &[
+                "--db",
+                "demo.sqlite",
+                "export",
+                kind,
+                "--units",
+                "us",
+                "--out",
+                &format!("{kind}.csv"),
+            ],
+        );
+        let out = ok(
+            d,
+            &[
+                "--db",
+                "shop.sqlite",
+                "import",
+                kind,
+                &format!("{kind}.csv"),
+            ],
+        );
+        assert!(out.contains("added"), "{out}");
+    }
+    let again = ok(
+        d,
+        &["--db", "shop.sqlite", "import", "checks", "checks.csv"],
+    );
+    assert!(again.contains(" 0 added, 1147 already stored"), "{again}");
+    // Exported to standard output in metric, the copy is the original.
+    let a = ok(
+        d,
+        &[
+            "--db",
+            "demo.sqlite",
+            "export",
+            "checks",
+            "--units",
+            "metric",
+        ],
+    );
+    let b = ok(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "export",
+            "checks",
+            "--units",
+            "metric",
+        ],
+    );
+    assert_eq!(a, b);
+    assert!(a.starts_with("unit_tag,taken_at,reservoir_temp_c,"));
+
+    let out = ok(
+        d,
+        &["--db", "demo.sqlite", "backup", "--out", "copy.sqlite"],
+    );
+    assert!(out.contains("copy.sqlite"));
+    let c = ok(
+        d,
+        &[
+            "--db",
+            "copy.sqlite",
+            "export",
+            "checks",
+            "--units",
+            "metric",
+        ],
+    );
+    assert_eq!(a, c);
+    refused(
+        d,
+        &["--db", "demo.sqlite", "backup", "--out", "copy.sqlite"],
+        "exists",
+    );
+
+    let out = ok(d, &["--db", "demo.sqlite", "status"]);
+    assert!(
+        out.contains("PB-03-A") && out.contains("Quarry Lane Forming Works"),
+        "{out}"
+    );
+}
+
+#[test]
+fn without_db_the_default_shop_is_used_and_starts_as_the_demo() {
+    let dir = tempfile::tempdir().unwrap();
+    let default = dir.path().join("data/sumpbook/sumpbook.sqlite");
+    assert!(!default.exists());
+    let out = ok(dir.path(), &["export", "units"]);
+    assert!(out.contains("PB-03-A"), "{out}");
+    assert!(default.is_file());
+    let again = ok(
+        dir.path(),
+        &["--db", default.to_str().unwrap(), "export", "units"],
+    );
+    assert_eq!(out, again);
+}
+
+#[test]
+fn wrong_files_as_db_give_exit_code_2_and_a_clear_message() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    std::fs::write(d.join("notes.txt"), "not a database at all\n").unwrap();
+    refused(
+        d,
+        &["--db", "notes.txt", "status"],
+        "not an SQLite database",
+    );
+    refused(
+        d,
+        &["--db", "notes.txt", "export", "checks"],
+        "not an SQLite database",
+    );
+    {
+        let c = rusqlite::Connection::open(d.join("other.sqlite")).unwrap();
+        c.execute_batch("CREATE TABLE t (x)").unwrap();
+    }
+    refused(
+        d,
+        &["--db", "other.sqlite", "export", "units"],
+        "not a sumpbook shop",
+    );
+    refused(
+        d,
+        &["--db", "missing.sqlite", "import", "checks", "x.csv"],
+        "no such file",
+    );
+    assert!(!d.join("missing.sqlite").exists());
+}
+
+#[test]
+fn an_import_with_bad_rows_exits_2_and_lists_every_bad_row() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    ok(d, &["--db", "demo.sqlite", "demo"]);
+    std::fs::write(
+        d.join("week.csv"),
+        "unit_tag,taken_at,reservoir_temp_c,pressure_bar\n\
+         PR-01-M,2026-11-30T06:00:00Z,41,120\n\
+         PR-01-M,03/12/2026,41,120\n\
+         PR-77-X,2026-11-30T06:00:00Z,41,120\n",
+    )
+    .unwrap();
+    let err = refused(
+        d,
+        &["--db", "demo.sqlite", "import", "checks", "week.csv"],
+        "nothing was imported",
+    );
+    assert!(err.contains("week.csv:3: taken_at:"), "{err}");
+    assert!(
+        err.contains("week.csv:4: unit_tag: no unit `PR-77-X`"),
+        "{err}"
+    );
+    let checks = ok(d, &["--db", "demo.sqlite", "export", "checks"]);
+    assert!(!checks.contains("2026-11-30"), "nothing may be written");
+    refused(
+        d,
+        &["--db", "demo.sqlite", "import", "checks", "absent.csv"],
+        "absent.csv",
+    );
+}
