@@ -1,0 +1,305 @@
+//! The one evaluation path: the state of the fleet, or of one unit, at a date.
+//!
+//! Reads the shop through the store in a bounded number of queries (one per table, whatever
+//! the fleet's size), resolves the limits of each unit, runs the health engine
+//! (`health::evaluate`) and hands back serialisable results that the command line, the app and
+//! the reports all render. No health rule lives here, and nothing here prints.
+
+use chrono::{DateTime, NaiveDate, Utc};
+use serde::{Deserialize, Serialize};
+
+use super::AppError;
+use crate::health::{self, Flag, Limits, State, UnitHealth, WorkItem};
+use crate::model::{Fluid, LimitSetting, Settings, UnitHistory};
+use crate::store::{Store, StoreError};
+use crate::units::UnitSystem;
+
+/// A store failure as the application reports it (refusals of the input are bad input, exit 2).
+pub(crate) fn store_error(e: StoreError) -> AppError {
+    AppError::Store(e)
+}
+
+/// How much of each unit's findings to keep.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Detail {
+    /// State, indicators, flags, tiles and work: enough for a fleet board or summary page.
+    Summary,
+    /// Everything, with chart series and the per-check and per-sample rows: a unit page.
+    Full,
+}
+
+/// Counts of units by state.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct StateCounts {
+    pub steady: usize,
+    pub watch: usize,
+    pub act: usize,
+}
+
+/// One unit's identity and findings.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct UnitStatus {
+    pub unit_id: i64,
+    /// Unit tag.
+    pub unit: String,
+    /// Machine tag.
+    pub machine: String,
+    pub machine_name: String,
+    pub machine_kind: String,
+    pub route_order: i64,
+    pub state: State,
+    /// Name of the fluid in service in the era in force.
+    pub fluid: Option<String>,
+    /// The earliest planned work.
+    pub next_due: Option<WorkItem>,
+    /// Everything the engine found (series and rows emptied at `Detail::Summary`).
+    pub health: UnitHealth,
+}
+
+/// The whole fleet at one date, worst first.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FleetStatus {
+    pub shop_name: String,
+    pub unit_system: UnitSystem,
+    /// The date evaluated.
+    pub at: DateTime<Utc>,
+    /// Whether `at` was asked for (a replay) rather than now.
+    pub replay: bool,
+    pub counts: StateCounts,
+    /// Worst state first; within a state, the route order.
+    pub units: Vec<UnitStatus>,
+}
+
+/// What the evaluation reads of a shop, besides the histories.
+struct ShopData {
+    settings: Settings,
+    fluids: Vec<Fluid>,
+    limit_rows: Vec<LimitSetting>,
+}
+
+fn shop_data(store: &Store) -> Result<ShopData, AppError> {
+    Ok(ShopData {
+        settings: store.settings().map_err(store_error)?,
+        fluids: store.fluids().map_err(store_error)?,
+        limit_rows: store.limits().map_err(store_error)?,
+    })
+}
+
+fn unit_status(h: &UnitHistory, data: &ShopData, at: DateTime<Utc>, detail: Detail) -> UnitStatus {
+    let limits = Limits::resolve(&data.limit_rows, Some(h.unit.id));
+    let mut health = health::evaluate(h, &data.fluids, &limits, at, data.settings.unit_system);
+    if detail == Detail::Summary {
+        health.series.clear();
+        health.checks.clear();
+        health.samples.clear();
+    }
+    UnitStatus {
+        unit_id: h.unit.id,
+        unit: h.unit.tag.clone(),
+        machine: h.machine.tag.clone(),
+        machine_name: h.machine.name.clone(),
+        machine_kind: h.machine.kind.clone(),
+        route_order: h.unit.route_order,
+        state: health.state,
+        fluid: health.fluid.as_ref().map(|f| f.name.clone()),
+        next_due: health.work.iter().min_by_key(|w| w.due).cloned(),
+        health,
+    }
+}
+
+fn sort_worst_first(units: &mut [UnitStatus]) {
+    units.sort_by(|a, b| {
+        b.state
+            .cmp(&a.state)
+            .then(b.health.flags.len().cmp(&a.health.flags.len()))
+            .then(a.route_order.cmp(&b.route_order))
+            .then(a.unit.cmp(&b.unit))
+    });
+}
+
+/// The fleet (every unit not archived) as it stood at `at` (now when `None`): only what was
+/// recorded up to then is used, so a trend can be replayed date by date.
+pub fn fleet_status_in(
+    store: &Store,
+    at: Option<DateTime<Utc>>,
+    detail: Detail,
+) -> Result<FleetStatus, AppError> {
+    let when = at.unwrap_or_else(Utc::now);
+    let data = shop_data(store)?;
+    let histories = store.unit_histories(Some(when)).map_err(store_error)?;
+    let mut units: Vec<UnitStatus> = histories
+        .iter()
+        .map(|h| unit_status(h, &data, when, detail))
+        .collect();
+    sort_worst_first(&mut units);
+    let mut counts = StateCounts::default();
+    for u in &units {
+        match u.state {
+            State::Steady => counts.steady += 1,
+            State::Watch => counts.watch += 1,
+            State::Act => counts.act += 1,
+        }
+    }
+    Ok(FleetStatus {
+        shop_name: data.settings.shop_name.clone(),
+        unit_system: data.settings.unit_system,
+        at: when,
+        replay: at.is_some(),
+        counts,
+        units,
+    })
+}
+
+/// One unit (by tag, archived or not) at `at`, with everything a unit page shows.
+pub fn unit_status_in(
+    store: &Store,
+    tag: &str,
+    at: Option<DateTime<Utc>>,
+) -> Result<UnitStatus, AppError> {
+    let when = at.unwrap_or_else(Utc::now);
+    let unit = store
+        .unit_by_tag(tag)
+        .map_err(store_error)?
+        .ok_or_else(|| AppError::BadInput(format!("no unit `{}` in this shop", tag.trim())))?;
+    let h = store
+        .unit_history(unit.id, Some(when))
+        .map_err(store_error)?
+        .ok_or_else(|| AppError::BadInput(format!("no unit `{}` in this shop", tag.trim())))?;
+    let data = shop_data(store)?;
+    Ok(unit_status(&h, &data, when, Detail::Full))
+}
+
+/// The fleet status of the shop at `at` (now when `None`).
+pub fn fleet_status(
+    shop: &super::shop::Shop,
+    at: Option<DateTime<Utc>>,
+) -> Result<FleetStatus, AppError> {
+    fleet_status_in(shop.store(), at, Detail::Summary)
+}
+
+/// The fleet status with every unit's chart series and rows (for a report).
+pub fn fleet_status_full(
+    shop: &super::shop::Shop,
+    at: Option<DateTime<Utc>>,
+) -> Result<FleetStatus, AppError> {
+    fleet_status_in(shop.store(), at, Detail::Full)
+}
+
+/// One unit's status at `at` (now when `None`).
+pub fn unit_status_of(
+    shop: &super::shop::Shop,
+    tag: &str,
+    at: Option<DateTime<Utc>>,
+) -> Result<UnitStatus, AppError> {
+    unit_status_in(shop.store(), tag, at)
+}
+
+// ---------------------------------------------------------------------------------------------
+// The fixed JSON of `status --json`.
+
+/// `status --json`: `{"units": [...]}` with fixed keys.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct StatusJson {
+    pub units: Vec<UnitJson>,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct UnitJson {
+    pub unit: String,
+    pub machine: String,
+    pub state: State,
+    pub indicators: IndicatorsJson,
+    pub flags: Vec<FlagJson>,
+}
+
+/// The key indicators; `null` where there is no data.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct IndicatorsJson {
+    pub lost_flow_pct: Option<f64>,
+    pub vol_eff_pct: Option<f64>,
+    pub heat_rise_k: Option<f64>,
+    pub heat_rise_drift_k: Option<f64>,
+    pub leak_conductance_ratio: Option<f64>,
+    pub kv40_cst: Option<f64>,
+    pub kv40_drift_pct: Option<f64>,
+    pub iso4406: Option<String>,
+    pub iso4406_target: Option<String>,
+    pub water_ppm: Option<f64>,
+    pub acid_rise: Option<f64>,
+    pub oil_life_used_pct: Option<f64>,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FlagJson {
+    pub kind: String,
+    pub state: State,
+    pub value: Option<f64>,
+    pub limit: Option<f64>,
+    pub since: NaiveDate,
+    pub message: String,
+    pub acknowledged: bool,
+}
+
+/// `v` rounded to `d` decimals (figures in JSON carry no false precision).
+fn round(v: Option<f64>, d: i32) -> Option<f64> {
+    let f = 10f64.powi(d);
+    v.filter(|x| x.is_finite()).map(|x| (x * f).round() / f)
+}
+
+impl From<&Flag> for FlagJson {
+    fn from(f: &Flag) -> Self {
+        FlagJson {
+            kind: f.kind.as_str().to_string(),
+            state: f.state,
+            value: round(f.value, 3),
+            limit: round(f.limit, 3),
+            since: f.since,
+            message: f.message.clone(),
+            acknowledged: f.acknowledged,
+        }
+    }
+}
+
+impl From<&UnitStatus> for UnitJson {
+    fn from(u: &UnitStatus) -> Self {
+        let i = &u.health.indicators;
+        UnitJson {
+            unit: u.unit.clone(),
+            machine: u.machine.clone(),
+            state: u.state,
+            indicators: IndicatorsJson {
+                lost_flow_pct: round(i.lost_flow_pct, 2),
+                vol_eff_pct: round(i.vol_eff_pct, 2),
+                heat_rise_k: round(i.heat_rise_k, 2),
+                heat_rise_drift_k: round(i.heat_rise_drift_k, 2),
+                leak_conductance_ratio: round(i.leak_conductance_ratio, 3),
+                kv40_cst: round(i.kv40_cst, 2),
+                kv40_drift_pct: round(i.kv40_drift_pct, 2),
+                iso4406: i.iso4406.clone(),
+                iso4406_target: i.iso4406_target.clone(),
+                water_ppm: round(i.water_ppm, 1),
+                acid_rise: round(i.acid_rise, 3),
+                oil_life_used_pct: round(i.oil_life_used_pct, 1),
+            },
+            flags: u.health.flags.iter().map(FlagJson::from).collect(),
+        }
+    }
+}
+
+impl FleetStatus {
+    /// The fixed-key JSON view.
+    pub fn to_json_view(&self) -> StatusJson {
+        StatusJson {
+            units: self.units.iter().map(UnitJson::from).collect(),
+        }
+    }
+}
+
+impl UnitStatus {
+    /// The fixed-key JSON view of one unit, as `{"units": [..]}`.
+    pub fn to_json_view(&self) -> StatusJson {
+        StatusJson {
+            units: vec![UnitJson::from(self)],
+        }
+    }
+}

@@ -1,0 +1,1227 @@
+//! Indicators of one unit's era in force: per check (effective flow, lost flow, volumetric
+//! efficiency, hydraulic power, heat rise and its drift, leak conductance ratio, case-drain
+//! change, EWMA and CUSUM), per sample (KV40, viscosity drift, ISO VG band, VI, ISO 4406 code
+//! against the target, water, acid rise), and over the era (oil life used, top-up rate); then
+//! the tiles and chart series a unit page or report shows.
+//!
+//! Pure: records in, figures out. The formulas themselves live in `physics`; this module
+//! decides which readings feed them and against what they are measured.
+
+use chrono::{DateTime, Utc};
+use serde::{Deserialize, Serialize};
+
+use super::baseline::{self, Baseline, BaselineIndicator, BaselineSource, Era};
+use super::flags::Flag;
+use super::limits::{LimitKey, Limits};
+use super::State;
+use crate::model::{Check, EventKind, FilterState, Fluid, Id, OilLevel, Sample, UnitHistory};
+use crate::physics::cleanliness::{self as clean, Iso4406Code};
+use crate::physics::hydraulics as hyd;
+use crate::physics::oil_life;
+use crate::physics::stats;
+use crate::physics::viscosity::{self as visc, Walther};
+use crate::units::{Flow, Pressure, Temperature, Viscosity};
+
+/// How many checks the median of a check indicator is taken over (design §4: lost flow).
+pub const MEDIAN_OF: usize = 3;
+/// How many points a trend line is fitted to (design §3).
+pub const TREND_POINTS: usize = 12;
+
+/// One detector's reading at one check.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct DriftPoint {
+    pub indicator: BaselineIndicator,
+    /// EWMA of the indicator, SI.
+    pub ewma: f64,
+    /// The EWMA control limit on the side that means trouble, SI.
+    pub ewma_limit: f64,
+    /// Tabular CUSUM on the side that means trouble, in σ of the baseline.
+    pub cusum_sigma: f64,
+    /// Whether either detector signals at this check.
+    pub signal: bool,
+    /// Consecutive checks signalling, this one included (0 when it does not signal).
+    pub run: usize,
+}
+
+/// The indicators of one check. SI values unless the name carries a unit.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct CheckPoint {
+    pub check_id: Id,
+    pub at: DateTime<Utc>,
+    /// Whether this check is one of those the baseline was computed from.
+    pub in_baseline: bool,
+    pub reservoir_temp: Option<f64>,
+    pub ambient_temp: Option<f64>,
+    pub pressure: Option<f64>,
+    pub hours: Option<f64>,
+    pub effective_flow: Option<f64>,
+    /// Effective flow corrected to the baseline's oil viscosity and pressure:
+    /// Q_rated − (Q_rated − Q)·(ν/ν_ref)·(p_ref/p). Only wear moves it.
+    pub corrected_flow: Option<f64>,
+    pub lost_flow_pct: Option<f64>,
+    /// Median of the lost flow of the last 3 checks of the era that have one.
+    pub lost_flow_median_pct: Option<f64>,
+    pub vol_eff_pct: Option<f64>,
+    pub hydraulic_power: Option<f64>,
+    pub heat_rise: Option<f64>,
+    pub heat_rise_drift: Option<f64>,
+    pub heat_rise_drift_median: Option<f64>,
+    /// Kinematic viscosity of the oil at the check's temperature (D341 fit of the fluid).
+    pub viscosity_at_temp: Option<f64>,
+    pub leak_conductance: Option<f64>,
+    pub leak_ratio: Option<f64>,
+    pub leak_ratio_median: Option<f64>,
+    pub case_drain: Option<f64>,
+    /// Case-drain flow corrected to the baseline's oil viscosity and pressure (leakage flow
+    /// ∝ p/ν), so a hot day does not read as wear; the raw flow where ν or p is unknown.
+    pub case_drain_corrected: Option<f64>,
+    pub case_drain_rise_pct: Option<f64>,
+    pub case_drain_rise_median_pct: Option<f64>,
+    pub filter: Option<FilterState>,
+    pub oil_level: Option<OilLevel>,
+    pub drift: Vec<DriftPoint>,
+}
+
+/// Where a sample's KV40 came from.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+pub enum Kv40Source {
+    Measured,
+    /// A field reading at another temperature, shifted along the fluid's D341 line.
+    FieldReading {
+        at_k: f64,
+    },
+}
+
+/// The indicators of one sample.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct SamplePoint {
+    pub sample_id: Id,
+    pub at: DateTime<Utc>,
+    pub kv40: Option<f64>,
+    pub kv40_source: Option<Kv40Source>,
+    pub kv40_drift_pct: Option<f64>,
+    /// ISO 3448 band of the fluid's grade, m²/s.
+    pub vg_band: Option<(f64, f64)>,
+    pub in_vg_band: Option<bool>,
+    pub viscosity_index: Option<f64>,
+    /// ISO 4406 code at ≥4, ≥6, ≥14 µm(c), from the counts or as written.
+    pub code: Option<Iso4406Code>,
+    /// log2 of the counts per mL, where counts were given (the trended form).
+    pub log2_counts: [Option<f64>; 3],
+    /// Range numbers above the target, per size.
+    pub over_target: [Option<i32>; 3],
+    /// The largest of `over_target`.
+    pub over_target_max: Option<i32>,
+    pub water_ppm: Option<f64>,
+    pub acid_mgkoh_g: Option<f64>,
+    pub acid_rise: Option<f64>,
+}
+
+/// The key indicators of a unit now: the fixed set of `status --json` plus a few more for the
+/// fleet board. Units are in the names; `None` means no data.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct Indicators {
+    pub lost_flow_pct: Option<f64>,
+    pub vol_eff_pct: Option<f64>,
+    pub heat_rise_k: Option<f64>,
+    pub heat_rise_drift_k: Option<f64>,
+    pub leak_conductance_ratio: Option<f64>,
+    pub kv40_cst: Option<f64>,
+    pub kv40_drift_pct: Option<f64>,
+    pub iso4406: Option<String>,
+    pub iso4406_target: Option<String>,
+    pub water_ppm: Option<f64>,
+    pub acid_rise: Option<f64>,
+    pub oil_life_used_pct: Option<f64>,
+    // Beyond the fixed set.
+    pub effective_flow_lpm: Option<f64>,
+    pub hydraulic_power_kw: Option<f64>,
+    pub reservoir_temp_c: Option<f64>,
+    pub case_drain_rise_pct: Option<f64>,
+    pub viscosity_index: Option<f64>,
+    pub top_up_l_per_100h: Option<f64>,
+    pub oil_equivalent_hours: Option<f64>,
+    pub era_run_hours: Option<f64>,
+}
+
+/// What `compute` hands to the flag and plan steps.
+#[derive(Clone, Debug, Default)]
+pub struct Computed {
+    pub era: Option<Era>,
+    pub fluid: Option<Fluid>,
+    pub baseline: Baseline,
+    /// Checks of the era in force.
+    pub checks: Vec<CheckPoint>,
+    /// Samples of the era in force.
+    pub samples: Vec<SamplePoint>,
+    pub target: Option<Iso4406Code>,
+    pub summary: Indicators,
+    /// Run-hours per day over the last 13 weeks of hour-meter readings.
+    pub hours_per_day: Option<f64>,
+    /// Equivalent oil hours per day over the same window.
+    pub equiv_hours_per_day: Option<f64>,
+    /// The oil conditions the corrected flows refer to.
+    pub reference: Option<Reference>,
+    /// Whether the baseline leakage is large enough against the scatter of the timed flow for
+    /// the leak conductance to be judged (`None`: no baseline to tell).
+    pub leak_resolved: Option<bool>,
+}
+
+/// The mean oil viscosity and pressure of the baseline checks: corrected flows are the flows
+/// at these conditions.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Reference {
+    /// m²/s.
+    pub viscosity: f64,
+    /// Pa.
+    pub pressure: f64,
+}
+
+/// The value of a baselined indicator at a check.
+fn value_of(p: &CheckPoint, ind: BaselineIndicator) -> Option<f64> {
+    match ind {
+        BaselineIndicator::EffectiveFlow => p.effective_flow,
+        BaselineIndicator::CorrectedFlow => p.corrected_flow,
+        BaselineIndicator::HeatRise => p.heat_rise,
+        BaselineIndicator::LeakConductance => p.leak_conductance,
+        BaselineIndicator::CaseDrain => p.case_drain_corrected,
+    }
+}
+
+fn median_last(values: &[f64]) -> Option<f64> {
+    stats::median_of_last(values, MEDIAN_OF)
+}
+
+/// The checks of an era, in time order.
+fn era_checks<'a>(h: &'a UnitHistory, era: Option<&Era>) -> Vec<&'a Check> {
+    match era {
+        Some(e) => h.checks.iter().filter(|c| e.contains(c.taken_at)).collect(),
+        None => Vec::new(),
+    }
+}
+
+/// Computes the indicators of the era in force (`era`), with `fluid` its fluid.
+pub fn compute(
+    h: &UnitHistory,
+    era: Option<&Era>,
+    fluid: Option<&Fluid>,
+    limits: &Limits,
+) -> Computed {
+    let unit = &h.unit;
+    let walther = fluid.and_then(|f| Walther::from_kv40_kv100(f.kv40_new?, f.kv100_new?).ok());
+    let volume = unit
+        .stroke
+        .as_ref()
+        .and_then(|s| hyd::displaced_volume(s).ok());
+    let rated = unit.rated_flow.filter(|q| q.si() > 0.0);
+
+    // Raw per-check values, before the baseline.
+    let checks = era_checks(h, era);
+    let mut points: Vec<CheckPoint> = checks
+        .iter()
+        .map(|c| {
+            let t_res = c.reservoir_temp.map(|t| t.si());
+            let q: Option<Flow> = match (volume, c.stroke_time) {
+                (Some(v), Some(t)) => hyd::effective_flow(v, t).ok(),
+                _ => None,
+            };
+            let p: Option<Pressure> = c.pressure.filter(|p| p.si() > 0.0);
+            let nu: Option<Viscosity> = match (walther, c.reservoir_temp) {
+                (Some(w), Some(t)) => Some(w.at(t)).filter(|v| v.si().is_finite() && v.si() > 0.0),
+                _ => None,
+            };
+            // Laminar gap leakage Q_leak ∝ Δp/μ, so (Q_rated − Q)·ν/p stays put while only the
+            // oil temperature moves (Hagen–Poiseuille gap flow).
+            let leak = match (rated, q, nu, p) {
+                (Some(r), Some(q), Some(nu), Some(p)) => {
+                    hyd::leak_conductance(r, q, nu, p).ok().map(|g| g.si())
+                }
+                _ => None,
+            };
+            CheckPoint {
+                check_id: c.id,
+                at: c.taken_at,
+                reservoir_temp: t_res,
+                ambient_temp: c.ambient_temp.map(|t| t.si()),
+                pressure: p.map(|p| p.si()),
+                hours: c.hours.filter(|v| v.is_finite()),
+                effective_flow: q.map(|q| q.si()),
+                vol_eff_pct: match (q, rated) {
+                    (Some(q), Some(r)) => hyd::vol_efficiency(q, r).ok().map(|e| e * 100.0),
+                    _ => None,
+                },
+                hydraulic_power: match (q, p) {
+                    (Some(q), Some(p)) => Some(hyd::hydraulic_power(q, p).si()),
+                    _ => None,
+                },
+                heat_rise: match (c.reservoir_temp, c.ambient_temp) {
+                    (Some(r), Some(a)) => Some(r.minus(a).k()),
+                    _ => None,
+                },
+                viscosity_at_temp: nu.map(|v| v.si()),
+                leak_conductance: leak,
+                case_drain: c.case_drain.map(|f| f.si()).filter(|f| *f >= 0.0),
+                filter: c.filter,
+                oil_level: c.oil_level,
+                ..CheckPoint::default()
+            }
+        })
+        .collect();
+
+    // The reference conditions: mean viscosity and pressure of the era's first N checks that
+    // have both. Leakage flow goes as p/ν (laminar gaps), so a leakage seen at (ν, p) would be
+    // (ν/ν_ref)·(p_ref/p) times as large at the reference conditions.
+    let n = limits.value(LimitKey::BaselineChecks).round().max(0.0) as usize;
+    let cond: Vec<(f64, f64)> = points
+        .iter()
+        .filter_map(|p| Some((p.viscosity_at_temp?, p.pressure?)))
+        .take(n)
+        .collect();
+    let reference = (n > 0 && cond.len() == n).then(|| Reference {
+        viscosity: cond.iter().map(|c| c.0).sum::<f64>() / n as f64,
+        pressure: cond.iter().map(|c| c.1).sum::<f64>() / n as f64,
+    });
+    for p in points.iter_mut() {
+        let scale = match (reference, p.viscosity_at_temp, p.pressure) {
+            (Some(r), Some(nu), Some(pr)) => Some(nu / r.viscosity * r.pressure / pr),
+            _ => None,
+        };
+        p.corrected_flow = match (rated, p.effective_flow, scale) {
+            (Some(r), Some(q), Some(k)) => Some(r.si() - (r.si() - q) * k),
+            _ => None,
+        };
+        p.case_drain_corrected = match (p.case_drain, scale) {
+            (Some(c), Some(k)) => Some(c * k),
+            (c, _) => c,
+        };
+    }
+
+    // Baseline from the first N checks of the era.
+    let series_of = |ind: BaselineIndicator| -> Vec<(Id, DateTime<Utc>, f64)> {
+        points
+            .iter()
+            .filter_map(|p| {
+                let v = value_of(p, ind)?;
+                Some((p.check_id, p.at, v))
+            })
+            .collect()
+    };
+    let per: Vec<_> = BaselineIndicator::ALL
+        .iter()
+        .map(|&i| (i, series_of(i)))
+        .collect();
+    let baseline = match era {
+        Some(e) => baseline::build_baseline(e, n, &per, &h.manual_baselines),
+        None => Baseline::default(),
+    };
+    let base = |i: BaselineIndicator| baseline.get(i).map(|b| b.value);
+    let in_baseline: Vec<Id> = baseline
+        .values
+        .iter()
+        .filter_map(|v| match &v.source {
+            BaselineSource::Checks { check_ids, .. } => Some(check_ids.clone()),
+            BaselineSource::Manual { .. } => None,
+        })
+        .flatten()
+        .collect();
+
+    // Values against the baseline, and the medians of the last 3.
+    let (mut lf, mut lr, mut cd, mut hd) = (Vec::new(), Vec::new(), Vec::new(), Vec::new());
+    for p in points.iter_mut() {
+        p.in_baseline = in_baseline.contains(&p.check_id);
+        if let (Some(q), Some(qb)) = (p.effective_flow, base(BaselineIndicator::EffectiveFlow)) {
+            if let Ok(lost) = hyd::lost_flow(Flow(q), Flow(qb)) {
+                let v = lost * 100.0;
+                p.lost_flow_pct = Some(v);
+                lf.push(v);
+                p.lost_flow_median_pct = median_last(&lf);
+            }
+        }
+        let ratio = |g: f64, gb: f64| hyd::LeakConductance(g).ratio_to(hyd::LeakConductance(gb));
+        if let Some(v) = p
+            .leak_conductance
+            .zip(base(BaselineIndicator::LeakConductance))
+            .and_then(|(g, gb)| ratio(g, gb))
+        {
+            p.leak_ratio = Some(v);
+            lr.push(v);
+            p.leak_ratio_median = median_last(&lr);
+        }
+        if let (Some(c), Some(cb)) = (
+            p.case_drain_corrected,
+            base(BaselineIndicator::CaseDrain).filter(|v| *v > 0.0),
+        ) {
+            let v = (c / cb - 1.0) * 100.0;
+            p.case_drain_rise_pct = Some(v);
+            cd.push(v);
+            p.case_drain_rise_median_pct = median_last(&cd);
+        }
+        if let (Some(d), Some(db)) = (p.heat_rise, base(BaselineIndicator::HeatRise)) {
+            let v = d - db;
+            p.heat_rise_drift = Some(v);
+            hd.push(v);
+            p.heat_rise_drift_median = median_last(&hd);
+        }
+    }
+
+    run_detectors(&mut points, &baseline, limits);
+
+    // Can a stopwatch resolve the leakage at all? Baseline leakage against the spread of the
+    // (corrected) timed flow, never taken below the stopwatch floor.
+    let floor_rel = limits.value(LimitKey::MinSpreadPct) / 100.0;
+    let leak_resolved = match baseline.get(BaselineIndicator::LeakConductance) {
+        Some(b) if matches!(b.source, BaselineSource::Manual { .. }) => Some(true),
+        Some(_) => {
+            let flow_base = baseline
+                .get(BaselineIndicator::CorrectedFlow)
+                .or(baseline.get(BaselineIndicator::EffectiveFlow));
+            match (rated, flow_base) {
+                (Some(r), Some(q)) => {
+                    let sigma = q.spread.max(floor_rel * q.value.abs());
+                    Some(r.si() - q.value >= limits.value(LimitKey::LeakMinSpreads) * sigma)
+                }
+                _ => None,
+            }
+        }
+        None => None,
+    };
+
+    // The target goes by working pressure: the relief setting, or the highest pressure logged.
+    let target = era.map(|_| {
+        let working = unit.relief.or_else(|| {
+            points
+                .iter()
+                .filter_map(|p| p.pressure)
+                .reduce(f64::max)
+                .map(Pressure)
+        });
+        clean::target_for(unit.sensitive_component, working)
+    });
+    let samples = sample_points(h, era, fluid, walther, target);
+
+    let mut c = Computed {
+        era: era.cloned(),
+        fluid: fluid.cloned(),
+        baseline,
+        checks: points,
+        samples,
+        target,
+        reference,
+        leak_resolved,
+        ..Computed::default()
+    };
+    c.hours_per_day = hours_per_day(h);
+    c.equiv_hours_per_day = equiv_hours_per_day(h);
+    c.summary = summarise(h, &c, limits);
+    c
+}
+
+/// EWMA and one-sided tabular CUSUM of each baselined indicator, on the side that means
+/// trouble (flow falling; heat and case drain rising), over the era's checks after those that
+/// formed the baseline (all checks of the era for a hand-entered baseline).
+///
+/// The baseline mean of N checks is itself uncertain by σ/√N, and a chart run on an estimated
+/// mean as if it were known signals on that error alone (Montgomery discusses the effect of
+/// estimated parameters). So the EWMA limits are widened to L·√(σ_z² + σ²/N) — the spread of
+/// the difference between the EWMA and an N-check mean — and the CUSUM only accumulates shifts
+/// beyond k·σ + σ/√N. A hand-entered baseline is taken as known.
+fn run_detectors(points: &mut [CheckPoint], baseline: &Baseline, limits: &Limits) {
+    let lambda = limits.value(LimitKey::EwmaLambda);
+    let l = limits.value(LimitKey::EwmaL);
+    let k = limits.value(LimitKey::CusumK);
+    let hh = limits.value(LimitKey::CusumH);
+    let floor_rel = limits.value(LimitKey::MinSpreadPct) / 100.0;
+    let floor_heat = limits.value(LimitKey::MinSpreadHeatK);
+    // Flow is watched corrected for the oil's temperature where that can be done (a hot spell
+    // is not wear), else as timed; leak conductance carries the same information as the
+    // corrected flow with the scatter of a small difference, so it is not watched twice.
+    let watched: Vec<&super::baseline::BaselineValue> = baseline
+        .values
+        .iter()
+        .filter(|b| match b.indicator {
+            BaselineIndicator::LeakConductance => false,
+            BaselineIndicator::EffectiveFlow => {
+                baseline.get(BaselineIndicator::CorrectedFlow).is_none()
+            }
+            _ => true,
+        })
+        .collect();
+    for b in watched {
+        let falling = matches!(
+            b.indicator,
+            BaselineIndicator::EffectiveFlow | BaselineIndicator::CorrectedFlow
+        );
+        let floor = match b.indicator {
+            BaselineIndicator::HeatRise => floor_heat,
+            _ => floor_rel * b.value.abs(),
+        };
+        let sigma = b.spread.max(floor);
+        if sigma.is_nan() || sigma <= 0.0 {
+            continue;
+        }
+        let se = match &b.source {
+            BaselineSource::Checks { check_ids, .. } if !check_ids.is_empty() => {
+                sigma / (check_ids.len() as f64).sqrt()
+            }
+            _ => 0.0,
+        };
+        let (Ok(mut ewma), Ok(mut cusum)) = (
+            stats::Ewma::with_params(b.value, sigma, lambda, l),
+            stats::Cusum::with_params(b.value, sigma, k + se / sigma, hh),
+        ) else {
+            continue;
+        };
+        let bad = if falling {
+            stats::Side::Low
+        } else {
+            stats::Side::High
+        };
+        let manual = matches!(b.source, BaselineSource::Manual { .. });
+        let mut run = 0usize;
+        for p in points.iter_mut().filter(|p| manual || !p.in_baseline) {
+            let Some(x) = value_of(p, b.indicator) else {
+                continue;
+            };
+            let (Ok(e), Ok(c)) = (ewma.update(x), cusum.update(x)) else {
+                continue;
+            };
+            // σ_z of this step, read back from the chart's own limit: (upper − μ0)/L.
+            let sigma_z = (e.upper - b.value) / l;
+            let half = l * (sigma_z * sigma_z + se * se).sqrt();
+            let (z, ewma_limit, sum) = if falling {
+                (e.z, b.value - half, c.lo)
+            } else {
+                (e.z, b.value + half, c.hi)
+            };
+            let beyond = if falling {
+                z < ewma_limit
+            } else {
+                z > ewma_limit
+            };
+            let signal = beyond || c.signal == Some(bad);
+            run = if signal { run + 1 } else { 0 };
+            p.drift.push(DriftPoint {
+                indicator: b.indicator,
+                ewma: z,
+                ewma_limit,
+                cusum_sigma: sum / sigma,
+                signal,
+                run,
+            });
+        }
+    }
+}
+
+fn sample_points(
+    h: &UnitHistory,
+    era: Option<&Era>,
+    fluid: Option<&Fluid>,
+    walther: Option<Walther>,
+    target: Option<Iso4406Code>,
+) -> Vec<SamplePoint> {
+    let Some(era) = era else { return Vec::new() };
+    let era_samples: Vec<&Sample> = h
+        .samples
+        .iter()
+        .filter(|s| era.contains(s.sampled_at))
+        .collect();
+    let kv40_new = fluid.and_then(|f| f.kv40_new).filter(|v| v.si() > 0.0);
+    // Acid rise is over the new oil; where the fluid record has no new-oil figure, over the
+    // era's first acid reading.
+    let acid_ref = fluid
+        .and_then(|f| f.acid_new_mgkoh_g)
+        .or_else(|| era_samples.iter().find_map(|s| s.acid_mgkoh_g));
+    let band = fluid
+        .and_then(|f| f.iso_vg)
+        .and_then(|vg| visc::iso_vg_band(vg).ok());
+    era_samples
+        .iter()
+        .map(|s| {
+            let (kv40, src) = match (s.kv40, s.visc_reading, walther) {
+                (Some(v), _, _) => (Some(v), Some(Kv40Source::Measured)),
+                (None, Some(r), Some(w)) => (
+                    w.kv40_from_reading(r.visc, r.at).ok(),
+                    Some(Kv40Source::FieldReading { at_k: r.at.si() }),
+                ),
+                _ => (None, None),
+            };
+            let code = sample_code(s);
+            let over = match (code, target) {
+                (Some(c), Some(t)) => clean::ranges_above(&c, &t),
+                _ => [None; 3],
+            };
+            SamplePoint {
+                sample_id: s.id,
+                at: s.sampled_at,
+                kv40: kv40.map(|v| v.si()),
+                kv40_source: kv40.and(src),
+                kv40_drift_pct: match (kv40, kv40_new) {
+                    (Some(v), Some(n)) => visc::viscosity_drift(v, n).ok().map(|d| d * 100.0),
+                    _ => None,
+                },
+                vg_band: band.map(|b| (b.min.si(), b.max.si())),
+                in_vg_band: match (kv40, band) {
+                    (Some(v), Some(b)) => Some(b.contains(v)),
+                    _ => None,
+                },
+                viscosity_index: match (kv40, s.kv100) {
+                    (Some(a), Some(b)) => visc::viscosity_index(a, b).ok().map(|r| r.vi),
+                    _ => None,
+                },
+                code,
+                log2_counts: s.counts_per_ml.map(|c| c.and_then(clean::log2_count)),
+                over_target: over,
+                over_target_max: over.iter().flatten().copied().max(),
+                water_ppm: s.water_ppm,
+                acid_mgkoh_g: s.acid_mgkoh_g,
+                acid_rise: match (s.acid_mgkoh_g, acid_ref) {
+                    (Some(a), Some(r)) => Some(a - r),
+                    _ => None,
+                },
+            }
+        })
+        .collect()
+}
+
+/// The ISO 4406 code of a sample: from its counts where all three were given, else per size
+/// from the counts there are, else as written.
+fn sample_code(s: &Sample) -> Option<Iso4406Code> {
+    match s.counts_per_ml {
+        [Some(a), Some(b), Some(c)] => clean::code_from_counts([a, b, c], None).ok(),
+        counts if counts.iter().any(Option::is_some) => {
+            let mut parts = [clean::CodePart {
+                scale: None,
+                at_least: false,
+            }; 3];
+            for (part, c) in parts.iter_mut().zip(counts) {
+                part.scale = c.and_then(|c| clean::scale_number(c).ok());
+            }
+            Some(Iso4406Code { parts })
+        }
+        _ => s.iso4406.as_deref().and_then(|t| t.parse().ok()),
+    }
+}
+
+/// Hour-meter readings (time, hours, oil temperature) in time order, dropping any that go
+/// backwards (a replaced meter).
+fn hour_readings(h: &UnitHistory) -> Vec<(DateTime<Utc>, f64, Option<Temperature>)> {
+    let mut out: Vec<(DateTime<Utc>, f64, Option<Temperature>)> = Vec::new();
+    for c in &h.checks {
+        let Some(hrs) = c.hours.filter(|v| v.is_finite() && *v >= 0.0) else {
+            continue;
+        };
+        if out.last().is_some_and(|l| hrs < l.1) {
+            continue;
+        }
+        out.push((c.taken_at, hrs, c.reservoir_temp));
+    }
+    out
+}
+
+/// Equivalent oil hours over consecutive readings (`physics::oil_life`). A reading without an
+/// oil temperature takes its neighbour's, and with none known the hours count at the rate of
+/// cool oil (1 per run-hour).
+fn equivalent_over(r: &[(DateTime<Utc>, f64, Option<Temperature>)]) -> f64 {
+    let cool = oil_life::AgeingRule::default().threshold;
+    let pts: Vec<(f64, Temperature)> = r
+        .iter()
+        .enumerate()
+        .map(|(i, x)| {
+            let t =
+                x.2.or_else(|| r.get(i + 1).and_then(|n| n.2))
+                    .or_else(|| i.checked_sub(1).and_then(|p| r[p].2));
+            (x.1, t.unwrap_or(cool))
+        })
+        .collect();
+    oil_life::equivalent_hours(&pts).unwrap_or(0.0)
+}
+
+const RATE_WINDOW_DAYS: i64 = 91;
+
+fn rate_window(h: &UnitHistory) -> Vec<(DateTime<Utc>, f64, Option<Temperature>)> {
+    let r = hour_readings(h);
+    let Some(last) = r.last().map(|l| l.0) else {
+        return r;
+    };
+    let from = last - chrono::Duration::days(RATE_WINDOW_DAYS);
+    r.into_iter().filter(|x| x.0 >= from).collect()
+}
+
+fn per_day(first: DateTime<Utc>, last: DateTime<Utc>, amount: f64) -> Option<f64> {
+    let days = (last - first).num_seconds() as f64 / 86_400.0;
+    (days >= 1.0 && amount >= 0.0).then(|| amount / days)
+}
+
+pub(crate) fn hours_per_day(h: &UnitHistory) -> Option<f64> {
+    let r = rate_window(h);
+    let (f, l) = (r.first()?, r.last()?);
+    per_day(f.0, l.0, l.1 - f.1)
+}
+
+fn equiv_hours_per_day(h: &UnitHistory) -> Option<f64> {
+    let r = rate_window(h);
+    per_day(r.first()?.0, r.last()?.0, equivalent_over(&r))
+}
+
+/// The hour-meter reading at `t`, interpolated between the readings around it (or the nearest
+/// reading when `t` is outside them).
+pub(crate) fn hours_at(h: &UnitHistory, t: DateTime<Utc>) -> Option<f64> {
+    let r = hour_readings(h);
+    let after = r.iter().position(|x| x.0 >= t);
+    match after {
+        Some(0) => r.first().map(|x| x.1),
+        Some(i) => {
+            let (a, b) = (&r[i - 1], &r[i]);
+            let span = (b.0 - a.0).num_seconds() as f64;
+            if span <= 0.0 {
+                return Some(b.1);
+            }
+            let frac = (t - a.0).num_seconds() as f64 / span;
+            Some(a.1 + frac * (b.1 - a.1))
+        }
+        None => r.last().map(|x| x.1),
+    }
+}
+
+fn summarise(h: &UnitHistory, c: &Computed, limits: &Limits) -> Indicators {
+    let last = |f: &dyn Fn(&CheckPoint) -> Option<f64>| c.checks.iter().rev().find_map(f);
+    let last_s = |f: &dyn Fn(&SamplePoint) -> Option<f64>| c.samples.iter().rev().find_map(f);
+    let mut s = Indicators {
+        lost_flow_pct: last(&|p| p.lost_flow_median_pct),
+        vol_eff_pct: last(&|p| p.vol_eff_pct),
+        heat_rise_k: last(&|p| p.heat_rise),
+        heat_rise_drift_k: last(&|p| p.heat_rise_drift_median),
+        leak_conductance_ratio: if c.leak_resolved == Some(false) {
+            None
+        } else {
+            last(&|p| p.leak_ratio_median)
+        },
+        kv40_cst: last_s(&|p| p.kv40).map(|v| v * 1.0e6),
+        kv40_drift_pct: last_s(&|p| p.kv40_drift_pct),
+        iso4406: c
+            .samples
+            .iter()
+            .rev()
+            .find_map(|p| p.code.map(|c| c.to_string())),
+        iso4406_target: c.target.map(|t| t.to_string()),
+        water_ppm: last_s(&|p| p.water_ppm),
+        acid_rise: last_s(&|p| p.acid_rise),
+        effective_flow_lpm: last(&|p| p.effective_flow).map(|q| q * 60_000.0),
+        hydraulic_power_kw: last(&|p| p.hydraulic_power).map(|w| w / 1000.0),
+        reservoir_temp_c: h
+            .checks
+            .iter()
+            .rev()
+            .find_map(|ch| ch.reservoir_temp)
+            .map(|t| t.c()),
+        case_drain_rise_pct: last(&|p| p.case_drain_rise_median_pct),
+        viscosity_index: last_s(&|p| p.viscosity_index),
+        ..Indicators::default()
+    };
+    // Oil life and top-ups over the era.
+    if let Some(era) = &c.era {
+        let r: Vec<_> = hour_readings(h)
+            .into_iter()
+            .filter(|x| era.contains(x.0))
+            .collect();
+        if let (Some(f), Some(l)) = (r.first(), r.last()) {
+            let run = l.1 - f.1;
+            let eq = equivalent_over(&r);
+            s.era_run_hours = Some(run);
+            s.oil_equivalent_hours = Some(eq);
+            let life = limits.value(LimitKey::OilLifeEquivHours);
+            if life > 0.0 {
+                s.oil_life_used_pct = Some(eq / life * 100.0);
+            }
+            let topped: f64 = h
+                .events
+                .iter()
+                .filter(|e| e.kind == EventKind::TopUp && era.contains(e.done_at))
+                .filter_map(|e| e.volume.map(|v| v.litres()))
+                .sum();
+            // Fewer than 50 run-hours say nothing about a rate.
+            if run >= 50.0 {
+                s.top_up_l_per_100h = Some(topped / run * 100.0);
+            }
+        }
+    }
+    s
+}
+
+// ---------------------------------------------------------------------------------------------
+// Tiles and chart series.
+
+/// The dimension of a tile or series value, so that a screen or report can convert and label
+/// it. Physical values are SI (m³/s, K, m²/s); the others are plain numbers in the unit named.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Dim {
+    Flow,
+    Temperature,
+    TempDiff,
+    Viscosity,
+    Percent,
+    Ratio,
+    Ppm,
+    AcidNumber,
+    /// ISO 4406 range numbers.
+    RangeNumber,
+}
+
+/// Direction of a trend, as an arrow would show it.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Direction {
+    Rising,
+    Falling,
+    /// The slope is not significant (|t| < 2).
+    Flat,
+}
+
+/// When a trend line reaches a limit, with its range (slope ± 2 standard errors).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Forecast {
+    pub state: State,
+    pub limit: f64,
+    pub date: DateTime<Utc>,
+    pub earliest: DateTime<Utc>,
+    /// `None` when the shallow side of the range never reaches the limit.
+    pub latest: Option<DateTime<Utc>>,
+}
+
+/// Least-squares trend over the last 12 points.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Trend {
+    /// Change per week, in the tile's dimension.
+    pub slope_per_week: f64,
+    pub slope_se: f64,
+    pub t: f64,
+    pub points: usize,
+    pub direction: Direction,
+    pub forecast: Option<Forecast>,
+}
+
+/// One indicator as a unit page or report shows it.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Tile {
+    /// Indicator key: `lost_flow`, `effective_flow`, `heat_rise`, ...
+    pub key: String,
+    pub label: String,
+    pub dim: Dim,
+    pub value: Option<f64>,
+    /// Text form where a number does not say it (an ISO 4406 code).
+    pub text: Option<String>,
+    pub at: Option<DateTime<Utc>>,
+    pub baseline: Option<f64>,
+    pub baseline_spread: Option<f64>,
+    /// Limit lines in the tile's dimension (two for a two-sided limit).
+    pub watch: Vec<f64>,
+    pub act: Vec<f64>,
+    pub state: State,
+    pub trend: Option<Trend>,
+}
+
+/// A point of a chart series.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SeriesPoint {
+    pub at: DateTime<Utc>,
+    pub value: f64,
+}
+
+/// A chart: points of the era in force with the baseline band and limit lines.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Series {
+    pub key: String,
+    pub label: String,
+    pub dim: Dim,
+    pub points: Vec<SeriesPoint>,
+    pub baseline: Option<f64>,
+    pub baseline_spread: Option<f64>,
+    pub watch: Vec<f64>,
+    pub act: Vec<f64>,
+}
+
+struct Spec {
+    key: &'static str,
+    label: &'static str,
+    dim: Dim,
+    flag: Option<super::flags::FlagKind>,
+    points: Vec<SeriesPoint>,
+    value: Option<(DateTime<Utc>, f64)>,
+    text: Option<String>,
+    baseline: Option<(f64, f64)>,
+    watch: Vec<f64>,
+    act: Vec<f64>,
+}
+
+fn pts(v: impl Iterator<Item = (DateTime<Utc>, Option<f64>)>) -> Vec<SeriesPoint> {
+    v.filter_map(|(at, x)| x.map(|value| SeriesPoint { at, value }))
+        .collect()
+}
+
+fn specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
+    use super::flags::FlagKind as K;
+    let lim = |k: LimitKey| limits.get(k);
+    let ck = |f: fn(&CheckPoint) -> Option<f64>| pts(c.checks.iter().map(|p| (p.at, f(p))));
+    let sk = |f: &dyn Fn(&SamplePoint) -> Option<f64>| pts(c.samples.iter().map(|p| (p.at, f(p))));
+    let last = |v: &[SeriesPoint]| v.last().map(|p| (p.at, p.value));
+    let bl = |i: BaselineIndicator| c.baseline.get(i).map(|b| (b.value, b.spread));
+    let mut out = Vec::new();
+
+    let lost = ck(|p| p.lost_flow_median_pct);
+    let l = lim(LimitKey::LostFlowPct);
+    out.push(Spec {
+        key: "lost_flow",
+        label: "Lost flow (median of 3)",
+        dim: Dim::Percent,
+        flag: Some(K::LostFlow),
+        value: last(&lost),
+        points: lost,
+        text: None,
+        baseline: bl(BaselineIndicator::EffectiveFlow).map(|_| (0.0, 0.0)),
+        watch: l.watch.into_iter().collect(),
+        act: l.act.into_iter().collect(),
+    });
+
+    let flow = ck(|p| p.effective_flow);
+    let qb = bl(BaselineIndicator::EffectiveFlow);
+    out.push(Spec {
+        key: "effective_flow",
+        label: "Effective flow",
+        dim: Dim::Flow,
+        flag: Some(K::LostFlow),
+        value: last(&flow),
+        points: flow,
+        text: None,
+        baseline: qb,
+        watch: qb
+            .iter()
+            .flat_map(|b| l.watch.map(|w| b.0 * (1.0 - w / 100.0)))
+            .collect(),
+        act: qb
+            .iter()
+            .flat_map(|b| l.act.map(|a| b.0 * (1.0 - a / 100.0)))
+            .collect(),
+    });
+
+    let corrected = ck(|p| p.corrected_flow);
+    if !corrected.is_empty() {
+        let cb = bl(BaselineIndicator::CorrectedFlow);
+        out.push(Spec {
+            key: "corrected_flow",
+            label: "Effective flow corrected to baseline oil",
+            dim: Dim::Flow,
+            flag: Some(K::Drift),
+            value: last(&corrected),
+            points: corrected,
+            text: None,
+            baseline: cb,
+            watch: Vec::new(),
+            act: Vec::new(),
+        });
+    }
+
+    let heat = ck(|p| p.heat_rise);
+    let hb = bl(BaselineIndicator::HeatRise);
+    let hl = lim(LimitKey::HeatRiseDriftK);
+    out.push(Spec {
+        key: "heat_rise",
+        label: "Heat rise (oil − ambient)",
+        dim: Dim::TempDiff,
+        flag: Some(K::HeatRise),
+        value: last(&heat),
+        points: heat,
+        text: None,
+        baseline: hb,
+        watch: hb.iter().flat_map(|b| hl.watch.map(|w| b.0 + w)).collect(),
+        act: hb.iter().flat_map(|b| hl.act.map(|a| b.0 + a)).collect(),
+    });
+
+    let leak = ck(|p| p.leak_ratio_median);
+    let ll = lim(LimitKey::LeakConductanceRatio);
+    let resolved = c.leak_resolved != Some(false);
+    out.push(Spec {
+        key: "leak_conductance",
+        label: "Leak conductance ratio (median of 3)",
+        dim: Dim::Ratio,
+        flag: Some(K::LeakConductance),
+        value: if resolved { last(&leak) } else { None },
+        points: leak,
+        text: (!resolved).then(|| "below stopwatch resolution".to_string()),
+        baseline: bl(BaselineIndicator::LeakConductance).map(|_| (1.0, 0.0)),
+        watch: ll.watch.into_iter().collect(),
+        act: ll.act.into_iter().collect(),
+    });
+
+    let drain = ck(|p| p.case_drain_corrected);
+    if !drain.is_empty() {
+        let db = bl(BaselineIndicator::CaseDrain);
+        let dl = lim(LimitKey::CaseDrainRisePct);
+        out.push(Spec {
+            key: "case_drain",
+            label: "Case drain (corrected to baseline oil)",
+            dim: Dim::Flow,
+            flag: Some(K::CaseDrain),
+            value: last(&drain),
+            points: drain,
+            text: None,
+            baseline: db,
+            watch: db
+                .iter()
+                .flat_map(|b| dl.watch.map(|w| b.0 * (1.0 + w / 100.0)))
+                .collect(),
+            act: db
+                .iter()
+                .flat_map(|b| dl.act.map(|a| b.0 * (1.0 + a / 100.0)))
+                .collect(),
+        });
+    }
+
+    let temp = ck(|p| p.reservoir_temp);
+    let tl = lim(LimitKey::ReservoirTempC);
+    out.push(Spec {
+        key: "reservoir_temp",
+        label: "Reservoir temperature",
+        dim: Dim::Temperature,
+        flag: Some(K::ReservoirTemp),
+        value: last(&temp),
+        points: temp,
+        text: None,
+        baseline: None,
+        watch: tl
+            .watch
+            .map(|w| w + crate::units::KELVIN_AT_0C)
+            .into_iter()
+            .collect(),
+        act: tl
+            .act
+            .map(|a| a + crate::units::KELVIN_AT_0C)
+            .into_iter()
+            .collect(),
+    });
+
+    let kv = sk(&|p| p.kv40);
+    let kl = lim(LimitKey::Kv40DriftPct);
+    let new = c.fluid.as_ref().and_then(|f| f.kv40_new).map(|v| v.si());
+    let two_sided = |n: f64, pct: Option<f64>| -> Vec<f64> {
+        pct.map(|p| vec![n * (1.0 - p / 100.0), n * (1.0 + p / 100.0)])
+            .unwrap_or_default()
+    };
+    out.push(Spec {
+        key: "kv40",
+        label: "KV40",
+        dim: Dim::Viscosity,
+        flag: Some(K::Viscosity),
+        value: last(&kv),
+        points: kv,
+        text: None,
+        baseline: new.map(|n| (n, 0.0)),
+        watch: new.map(|n| two_sided(n, kl.watch)).unwrap_or_default(),
+        act: new.map(|n| two_sided(n, kl.act)).unwrap_or_default(),
+    });
+
+    let over = sk(&|p| p.over_target_max.map(f64::from));
+    let cl = lim(LimitKey::CleanlinessOverTarget);
+    out.push(Spec {
+        key: "cleanliness",
+        label: "ISO 4406 over target (range numbers)",
+        dim: Dim::RangeNumber,
+        flag: Some(K::Cleanliness),
+        value: last(&over),
+        text: c
+            .samples
+            .iter()
+            .rev()
+            .find_map(|p| p.code.map(|c| c.to_string())),
+        points: over,
+        baseline: Some((0.0, 0.0)),
+        watch: cl.watch.into_iter().collect(),
+        act: cl.act.into_iter().collect(),
+    });
+    for (i, size) in ["4", "6", "14"].iter().enumerate() {
+        let code = sk(&|p| {
+            p.code
+                .and_then(|c| c.parts[i].scale)
+                .map(|s| f64::from(s.rank()))
+        });
+        if code.is_empty() {
+            continue;
+        }
+        let t = c
+            .target
+            .and_then(|t| t.parts[i].scale)
+            .map(|s| f64::from(s.rank()));
+        out.push(Spec {
+            key: match i {
+                0 => "iso4406_4um",
+                1 => "iso4406_6um",
+                _ => "iso4406_14um",
+            },
+            label: match *size {
+                "4" => "ISO 4406 ≥4 µm(c)",
+                "6" => "ISO 4406 ≥6 µm(c)",
+                _ => "ISO 4406 ≥14 µm(c)",
+            },
+            dim: Dim::RangeNumber,
+            flag: None,
+            value: last(&code),
+            points: code,
+            text: None,
+            baseline: t.map(|t| (t, 0.0)),
+            watch: t.iter().flat_map(|t| cl.watch.map(|w| t + w)).collect(),
+            act: t.iter().flat_map(|t| cl.act.map(|a| t + a)).collect(),
+        });
+    }
+
+    let water = sk(&|p| p.water_ppm);
+    let wl = lim(LimitKey::WaterPpm);
+    out.push(Spec {
+        key: "water",
+        label: "Water",
+        dim: Dim::Ppm,
+        flag: Some(K::Water),
+        value: last(&water),
+        points: water,
+        text: None,
+        baseline: None,
+        watch: wl.watch.into_iter().collect(),
+        act: wl.act.into_iter().collect(),
+    });
+
+    let acid = sk(&|p| p.acid_rise);
+    let al = lim(LimitKey::AcidRiseMgKohG);
+    out.push(Spec {
+        key: "acid_rise",
+        label: "Acid number rise",
+        dim: Dim::AcidNumber,
+        flag: Some(K::Acid),
+        value: last(&acid),
+        points: acid,
+        text: None,
+        baseline: Some((0.0, 0.0)),
+        watch: al.watch.into_iter().collect(),
+        act: al.act.into_iter().collect(),
+    });
+    out
+}
+
+/// Least-squares trend of the last 12 points (`physics::stats`), with the date the first
+/// limit line ahead is reached when the slope is significant.
+pub fn trend(points: &[SeriesPoint], watch: &[f64], act: &[f64]) -> Option<Trend> {
+    let from = points.len().saturating_sub(TREND_POINTS);
+    let p: Vec<(DateTime<Utc>, f64)> = points[from..].iter().map(|q| (q.at, q.value)).collect();
+    let tt = stats::linear_trend_over_time(&p).ok()?;
+    let t = tt.trend.t_stat();
+    let direction = match (tt.is_significant(), tt.slope_per_week() > 0.0) {
+        (false, _) => Direction::Flat,
+        (true, true) => Direction::Rising,
+        (true, false) => Direction::Falling,
+    };
+    let forecast = watch
+        .iter()
+        .map(|&v| (v, State::Watch))
+        .chain(act.iter().map(|&v| (v, State::Act)))
+        .filter_map(|(limit, state)| {
+            let f = tt.forecast(limit)?;
+            Some(Forecast {
+                state,
+                limit,
+                date: f.at,
+                earliest: f.earliest,
+                latest: f.latest,
+            })
+        })
+        .min_by_key(|f| f.date);
+    Some(Trend {
+        slope_per_week: tt.slope_per_week(),
+        slope_se: tt.trend.slope_se,
+        t,
+        points: p.len(),
+        direction,
+        forecast,
+    })
+}
+
+/// Tiles of the era in force, in a fixed order; the state of each is that of its flag.
+pub fn tiles(c: &Computed, limits: &Limits, flags: &[Flag]) -> Vec<Tile> {
+    specs(c, limits)
+        .into_iter()
+        .filter(|s| !s.key.starts_with("iso4406_") && s.key != "corrected_flow")
+        .map(|s| {
+            let state = s
+                .flag
+                .and_then(|k| flags.iter().find(|f| f.kind == k))
+                .map(|f| f.state)
+                .unwrap_or(State::Steady);
+            Tile {
+                key: s.key.to_string(),
+                label: s.label.to_string(),
+                dim: s.dim,
+                value: s.value.map(|v| v.1),
+                text: s.text,
+                at: s.value.map(|v| v.0),
+                baseline: s.baseline.map(|b| b.0),
+                baseline_spread: s.baseline.map(|b| b.1),
+                trend: trend(&s.points, &s.watch, &s.act),
+                watch: s.watch,
+                act: s.act,
+                state,
+            }
+        })
+        .collect()
+}
+
+/// Chart series of the era in force.
+pub fn series(c: &Computed, limits: &Limits) -> Vec<Series> {
+    specs(c, limits)
+        .into_iter()
+        .map(|s| Series {
+            key: s.key.to_string(),
+            label: s.label.to_string(),
+            dim: s.dim,
+            points: s.points,
+            baseline: s.baseline.map(|b| b.0),
+            baseline_spread: s.baseline.map(|b| b.1),
+            watch: s.watch,
+            act: s.act,
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn sp(week: f64, v: f64) -> SeriesPoint {
+        let t0: DateTime<Utc> = "2024-01-01T00:00:00Z".parse().unwrap();
+        SeriesPoint {
+            at: t0 + chrono::Duration::seconds((week * 7.0 * 86_400.0) as i64),
+            value: v,
+        }
+    }
+
+    #[test]
+    fn a_significant_trend_forecasts_the_next_limit() {
+        // y = 1 + 0.5·x exactly (weeks 0..5): slope 0.5/week, se 0, limit 8 reached at x = 14
+        // (worked by hand: (8 − 1)/0.5 = 14 weeks after the first point).
+        let p: Vec<SeriesPoint> = (0..6)
+            .map(|i| sp(f64::from(i), 1.0 + 0.5 * f64::from(i)))
+            .collect();
+        let tr = trend(&p, &[8.0], &[15.0]).unwrap();
+        assert!((tr.slope_per_week - 0.5).abs() < 1e-9);
+        assert_eq!(tr.direction, Direction::Rising);
+        let f = tr.forecast.unwrap();
+        assert_eq!(f.state, State::Watch);
+        assert_eq!(f.date, sp(14.0, 0.0).at);
+        // Flat noise: no forecast.
+        let n: Vec<SeriesPoint> = [5.0, 5.2, 4.9, 5.1, 5.0, 4.8]
+            .iter()
+            .enumerate()
+            .map(|(i, v)| sp(i as f64, *v))
+            .collect();
+        let tr = trend(&n, &[8.0], &[15.0]).unwrap();
+        assert_eq!(tr.direction, Direction::Flat);
+        assert!(tr.forecast.is_none());
+    }
+}

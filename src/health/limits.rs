@@ -1,0 +1,486 @@
+//! Limits and intervals of the health engine: the built-in shop defaults, the stored shop
+//! defaults and per-unit overrides merged into the set in force for one unit.
+//!
+//! Pure: the stored rows (`model::LimitSetting`) come in, a `Limits` value goes out. Reading and
+//! writing the rows is the store's job, choosing which unit is the application layer's.
+//!
+//! Every built-in value below is *common practice* (a rule of thumb of the trade with no
+//! published source) unless its comment names a source, and every one can be overridden for the
+//! shop or for one unit.
+
+use serde::{Deserialize, Serialize};
+
+use crate::model::{Id, LimitSetting};
+
+/// How a value is compared with a limit.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Compare {
+    /// The limit is reached when the value is equal to it or beyond (`≥`).
+    AtLeast,
+    /// The limit is passed only when the value is strictly beyond it (`>`).
+    Above,
+}
+
+impl Compare {
+    /// Whether `value` has reached `limit` under this comparison. A value within rounding noise
+    /// of the limit (1e-9 of it) counts as equal to it, so that a computed 7.999999999999 %
+    /// is at an 8 % limit and 60.000000000001 °C is not above a 60 °C one.
+    pub fn reached(self, value: f64, limit: f64) -> bool {
+        let eps = 1e-9 * limit.abs().max(1.0);
+        match self {
+            Compare::AtLeast => value >= limit - eps,
+            Compare::Above => value > limit + eps,
+        }
+    }
+
+    /// The sign a person reads (`≥` or `>`).
+    pub fn symbol(self) -> &'static str {
+        match self {
+            Compare::AtLeast => "≥",
+            Compare::Above => ">",
+        }
+    }
+}
+
+/// Whether a key holds a pair of limits or a single setting.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum LimitShape {
+    /// `watch` and `act` limits (either may be absent).
+    Threshold(Compare),
+    /// One value (an interval or a detector parameter), stored in the `act` column.
+    Value,
+}
+
+macro_rules! limit_keys {
+    ($($variant:ident = $text:literal, $shape:expr, $watch:expr, $act:expr, $unit:literal, $what:literal;)+) => {
+        /// Every limit and interval the engine knows, by its stored key.
+        #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
+        pub enum LimitKey { $(#[serde(rename = $text)] $variant),+ }
+
+        impl LimitKey {
+            pub const ALL: &'static [LimitKey] = &[$(LimitKey::$variant),+];
+
+            /// The key as stored and typed on the command line.
+            pub fn as_str(self) -> &'static str {
+                match self { $(LimitKey::$variant => $text),+ }
+            }
+            pub fn shape(self) -> LimitShape {
+                match self { $(LimitKey::$variant => $shape),+ }
+            }
+            /// The built-in default `(watch, act)`; a `Value` key has only `act`.
+            pub fn builtin(self) -> (Option<f64>, Option<f64>) {
+                match self { $(LimitKey::$variant => ($watch, $act)),+ }
+            }
+            /// The unit the value is written in (`%`, `K`, `°C`, `ppm`, ...).
+            pub fn unit(self) -> &'static str {
+                match self { $(LimitKey::$variant => $unit),+ }
+            }
+            /// One line saying what the key limits.
+            pub fn describe(self) -> &'static str {
+                match self { $(LimitKey::$variant => $what),+ }
+            }
+        }
+    };
+}
+
+use Compare::{Above, AtLeast};
+use LimitShape::{Threshold, Value};
+
+limit_keys! {
+    // Design §4 table; all common practice.
+    LostFlowPct = "lost_flow_pct", Threshold(AtLeast), Some(8.0), Some(15.0), "%",
+        "lost flow against the era baseline, median of the last 3 checks";
+    LeakConductanceRatio = "leak_conductance_ratio", Threshold(AtLeast), Some(1.3), Some(1.6), "x",
+        "temperature-compensated leak conductance against the baseline, median of the last 3 checks";
+    CaseDrainRisePct = "case_drain_rise_pct", Threshold(AtLeast), Some(50.0), Some(100.0), "%",
+        "case-drain flow rise over the baseline, median of the last 3 checks";
+    HeatRiseDriftK = "heat_rise_drift_k", Threshold(AtLeast), Some(5.0), Some(10.0), "K",
+        "heat rise (oil minus ambient) above the baseline, median of the last 3 checks";
+    ReservoirTempC = "reservoir_temp_c", Threshold(Above), Some(60.0), Some(70.0), "°C",
+        "reservoir oil temperature at a check";
+    ReservoirTempCeilingC = "reservoir_temp_ceiling_c", Threshold(Above), None, Some(82.0), "°C",
+        "reservoir temperature that is always `act`, whatever reservoir_temp_c says";
+    Kv40DriftPct = "kv40_drift_pct", Threshold(AtLeast), Some(5.0), Some(10.0), "%",
+        "KV40 of a sample against the new oil, either way (outside the ISO VG band is always act)";
+    CleanlinessOverTarget = "cleanliness_over_target", Threshold(AtLeast), Some(1.0), Some(2.0), "range numbers",
+        "ISO 4406 range numbers above the unit's target on any size";
+    WaterPpm = "water_ppm", Threshold(Above), Some(200.0), Some(500.0), "ppm",
+        "water in a sample";
+    AcidRiseMgKohG = "acid_rise_mgkoh_g", Threshold(Above), Some(0.2), Some(0.3), "mg KOH/g",
+        "acid number rise over the new oil";
+    DriftChecks = "drift_checks", Threshold(AtLeast), Some(2.0), Some(3.0), "checks",
+        "consecutive checks with an EWMA or CUSUM signal (2 = confirmed by the next check)";
+    OverdueDays = "overdue_days", Threshold(AtLeast), Some(1.0), Some(14.0), "days",
+        "days past the due date of planned work";
+    // Intervals (design §5); common practice for mineral hydraulic oil in a shop that samples
+    // its oil and changes it on condition: the calendar and hour limits are the backstop, not
+    // the rule.
+    CheckIntervalDays = "check_interval_days", Value, None, Some(7.0), "days",
+        "walk-round check interval";
+    SampleIntervalWeeks = "sample_interval_weeks", Value, None, Some(13.0), "weeks",
+        "fluid sample interval";
+    FluidChangeHours = "fluid_change_hours", Value, None, Some(10000.0), "h",
+        "fluid change interval in run-hours";
+    FluidChangeMonths = "fluid_change_months", Value, None, Some(36.0), "months",
+        "fluid change interval in calendar months";
+    OilLifeEquivHours = "oil_life_equiv_hours", Value, None, Some(10000.0), "equivalent h",
+        "fluid life in equivalent hours at 60 °C (ageing doubles per 10 °C above)";
+    FilterChangeHours = "filter_change_hours", Value, None, Some(5000.0), "h",
+        "filter change interval in run-hours (or at once on the indicator)";
+    DueSoonDays = "due_soon_days", Value, None, Some(14.0), "days",
+        "work due within this many days is listed as due soon";
+    // Baseline and drift detectors.
+    BaselineChecks = "baseline_checks", Value, None, Some(4.0), "checks",
+        "checks at the start of an era that form its baseline";
+    // λ = 0.2, L = 3, k = 0.5σ, h = 5σ: the usual choices in D. C. Montgomery,
+    // Introduction to Statistical Quality Control (EWMA and tabular CUSUM chapters).
+    EwmaLambda = "ewma_lambda", Value, None, Some(0.2), "",
+        "EWMA smoothing weight λ";
+    EwmaL = "ewma_l", Value, None, Some(3.0), "σ",
+        "EWMA control-limit width L";
+    CusumK = "cusum_k", Value, None, Some(0.5), "σ",
+        "CUSUM reference value k";
+    CusumH = "cusum_h", Value, None, Some(5.0), "σ",
+        "CUSUM decision interval h";
+    // A baseline of 4 hand-timed strokes can by chance have a tiny spread; a stopwatch is good
+    // to about 5 % on a 4 s stroke (design §1), so the spread used by the detectors is never
+    // taken below these floors. Heat rise moves by a few kelvin with load and season (a warmer
+    // hall, thinner oil leaking more), which the 4 checks of a winter baseline cannot show.
+    MinSpreadPct = "min_spread_pct", Value, None, Some(2.5), "%",
+        "smallest relative spread used for flow, conductance and case-drain baselines";
+    MinSpreadHeatK = "min_spread_heat_k", Value, None, Some(2.5), "K",
+        "smallest spread used for the heat-rise baseline";
+    // Leakage is the small difference of two flows: a leak of 3 % of the pump's flow cannot be
+    // told from a 2.5 % stopwatch scatter. The leak conductance is judged only where the
+    // baseline leakage is at least this many spreads of the timed flow (statistics of a
+    // difference; the factor is common practice, no published source).
+    LeakMinSpreads = "leak_min_spreads", Value, None, Some(4.0), "spreads",
+        "baseline leakage, in spreads of the timed flow, below which leak conductance is not judged";
+}
+
+impl std::fmt::Display for LimitKey {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.as_str())
+    }
+}
+
+impl std::str::FromStr for LimitKey {
+    type Err = LimitError;
+    fn from_str(s: &str) -> Result<Self, LimitError> {
+        let s = s.trim();
+        LimitKey::ALL
+            .iter()
+            .copied()
+            .find(|k| k.as_str() == s)
+            .ok_or_else(|| LimitError::UnknownKey(s.to_string()))
+    }
+}
+
+/// Where a limit in force came from.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum LimitOrigin {
+    Builtin,
+    Shop,
+    Unit,
+}
+
+/// One limit in force.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Limit {
+    pub key: LimitKey,
+    pub watch: Option<f64>,
+    pub act: Option<f64>,
+    /// Where `watch` came from.
+    pub watch_origin: LimitOrigin,
+    /// Where `act` came from.
+    pub act_origin: LimitOrigin,
+}
+
+impl Limit {
+    /// The state `value` reaches: `Some(true)` = act, `Some(false)` = watch, `None` = neither.
+    pub fn grade(&self, value: f64) -> Option<bool> {
+        let cmp = match self.key.shape() {
+            Threshold(c) => c,
+            Value => return None,
+        };
+        if !value.is_finite() {
+            return None;
+        }
+        if self.act.is_some_and(|a| cmp.reached(value, a)) {
+            Some(true)
+        } else if self.watch.is_some_and(|w| cmp.reached(value, w)) {
+            Some(false)
+        } else {
+            None
+        }
+    }
+
+    /// The comparison of a threshold key (`AtLeast` for a value key, where it is not used).
+    pub fn compare(&self) -> Compare {
+        match self.key.shape() {
+            Threshold(c) => c,
+            Value => AtLeast,
+        }
+    }
+}
+
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum LimitError {
+    #[error("`{0}` is not a limit key; known keys: {keys}", keys = LimitKey::ALL.iter().map(|k| k.as_str()).collect::<Vec<_>>().join(", "))]
+    UnknownKey(String),
+    #[error("{key}: {reason}")]
+    Invalid { key: LimitKey, reason: String },
+}
+
+/// The limits and intervals in force for one unit (or for the shop when no unit is given).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Limits {
+    limits: Vec<Limit>,
+}
+
+impl Default for Limits {
+    fn default() -> Self {
+        Limits::builtin()
+    }
+}
+
+impl Limits {
+    /// The built-in defaults.
+    pub fn builtin() -> Self {
+        let limits = LimitKey::ALL
+            .iter()
+            .map(|&key| {
+                let (watch, act) = key.builtin();
+                Limit {
+                    key,
+                    watch,
+                    act,
+                    watch_origin: LimitOrigin::Builtin,
+                    act_origin: LimitOrigin::Builtin,
+                }
+            })
+            .collect();
+        Limits { limits }
+    }
+
+    /// Merges stored rows: built-in defaults, then the shop's rows (`unit_id` `None`), then the
+    /// rows of `unit` — a per-unit value wins over the shop's, a missing one inherits it. Rows of
+    /// other units and unknown keys (written by a newer version) are skipped.
+    pub fn resolve(rows: &[LimitSetting], unit: Option<Id>) -> Self {
+        let mut limits = Limits::builtin();
+        let layers = [(None, LimitOrigin::Shop), (unit, LimitOrigin::Unit)];
+        for (layer, origin) in layers {
+            if origin == LimitOrigin::Unit && unit.is_none() {
+                continue;
+            }
+            for row in rows.iter().filter(|r| r.unit_id == layer) {
+                let Ok(key) = row.key.parse::<LimitKey>() else {
+                    continue;
+                };
+                let l = limits.entry_mut(key);
+                if let Some(w) = row.watch {
+                    l.watch = Some(w);
+                    l.watch_origin = origin;
+                }
+                if let Some(a) = row.act {
+                    l.act = Some(a);
+                    l.act_origin = origin;
+                }
+            }
+        }
+        limits
+    }
+
+    fn entry_mut(&mut self, key: LimitKey) -> &mut Limit {
+        let i = LimitKey::ALL.iter().position(|&k| k == key).unwrap_or(0);
+        &mut self.limits[i]
+    }
+
+    /// The limit in force for `key`.
+    pub fn get(&self, key: LimitKey) -> Limit {
+        let i = LimitKey::ALL.iter().position(|&k| k == key).unwrap_or(0);
+        self.limits[i]
+    }
+
+    /// The single value of a `Value` key (its `act`), or the built-in one if it was cleared.
+    pub fn value(&self, key: LimitKey) -> f64 {
+        self.get(key).act.or(key.builtin().1).unwrap_or(0.0)
+    }
+
+    /// All limits in force, in key order.
+    pub fn all(&self) -> &[Limit] {
+        &self.limits
+    }
+
+    /// Sets one limit in memory (after `validate_setting`); used by tests and previews.
+    pub fn with(mut self, key: LimitKey, watch: Option<f64>, act: Option<f64>) -> Self {
+        let l = self.entry_mut(key);
+        if watch.is_some() {
+            l.watch = watch;
+            l.watch_origin = LimitOrigin::Unit;
+        }
+        if act.is_some() {
+            l.act = act;
+            l.act_origin = LimitOrigin::Unit;
+        }
+        self
+    }
+}
+
+/// Checks a limit a person wants to store, against the limits already in force (so that a new
+/// `watch` alone is checked against the `act` it will sit beside). Returns the row to store.
+pub fn validate_setting(
+    key: LimitKey,
+    watch: Option<f64>,
+    act: Option<f64>,
+    current: &Limits,
+) -> Result<(Option<f64>, Option<f64>), LimitError> {
+    let invalid = |reason: String| LimitError::Invalid { key, reason };
+    if watch.is_none() && act.is_none() {
+        return Err(invalid("give --watch, --act or both".into()));
+    }
+    for v in [watch, act].into_iter().flatten() {
+        if !v.is_finite() {
+            return Err(invalid(format!("{v} is not a number")));
+        }
+    }
+    match key.shape() {
+        Value => {
+            if watch.is_some() {
+                return Err(invalid(
+                    "is a single setting: give it with --act (or --value)".into(),
+                ));
+            }
+            let v = act.unwrap_or(0.0);
+            let ok = match key {
+                LimitKey::EwmaLambda => v > 0.0 && v <= 1.0,
+                LimitKey::BaselineChecks => v >= 2.0 && v.fract() == 0.0 && v <= 50.0,
+                LimitKey::MinSpreadPct | LimitKey::MinSpreadHeatK => v >= 0.0,
+                _ => v > 0.0,
+            };
+            if !ok {
+                let want = match key {
+                    LimitKey::EwmaLambda => "a weight in (0, 1]",
+                    LimitKey::BaselineChecks => "a whole number of checks from 2 to 50",
+                    LimitKey::MinSpreadPct | LimitKey::MinSpreadHeatK => "zero or more",
+                    _ => "a positive number",
+                };
+                return Err(invalid(format!("{v} {}: expected {want}", key.unit())));
+            }
+        }
+        Threshold(_) => {
+            let cur = current.get(key);
+            let w = watch.or(cur.watch);
+            let a = act.or(cur.act);
+            if let (Some(w), Some(a)) = (w, a) {
+                if w > a {
+                    return Err(invalid(format!(
+                        "watch {w} {u} would be beyond act {a} {u}; watch must come first",
+                        u = key.unit()
+                    )));
+                }
+            }
+            let non_negative = !matches!(
+                key,
+                LimitKey::ReservoirTempC | LimitKey::ReservoirTempCeilingC
+            );
+            if non_negative && [watch, act].into_iter().flatten().any(|v| v < 0.0) {
+                return Err(invalid("must not be negative".into()));
+            }
+            if key == LimitKey::LeakConductanceRatio
+                && [watch, act].into_iter().flatten().any(|v| v <= 1.0)
+            {
+                return Err(invalid(
+                    "is a ratio to the baseline: it must be above 1".into(),
+                ));
+            }
+        }
+    }
+    Ok((watch, act))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn row(unit: Option<Id>, key: &str, watch: Option<f64>, act: Option<f64>) -> LimitSetting {
+        LimitSetting {
+            unit_id: unit,
+            key: key.into(),
+            watch,
+            act,
+        }
+    }
+
+    #[test]
+    fn builtin_defaults_are_the_design_table() {
+        // Design §4 (common practice, no published source).
+        let l = Limits::builtin();
+        let lf = l.get(LimitKey::LostFlowPct);
+        assert_eq!((lf.watch, lf.act), (Some(8.0), Some(15.0)));
+        let w = l.get(LimitKey::WaterPpm);
+        assert_eq!((w.watch, w.act), (Some(200.0), Some(500.0)));
+        assert_eq!(l.value(LimitKey::BaselineChecks), 4.0);
+        assert_eq!(l.value(LimitKey::CheckIntervalDays), 7.0);
+    }
+
+    #[test]
+    fn at_least_and_above_differ_only_at_the_boundary() {
+        let l = Limits::builtin();
+        let lf = l.get(LimitKey::LostFlowPct); // ≥ 8 / ≥ 15
+        assert_eq!(lf.grade(7.999), None);
+        assert_eq!(lf.grade(8.0), Some(false));
+        assert_eq!(lf.grade(14.999), Some(false));
+        assert_eq!(lf.grade(15.0), Some(true));
+        let w = l.get(LimitKey::WaterPpm); // > 200 / > 500
+        assert_eq!(w.grade(200.0), None);
+        assert_eq!(w.grade(200.001), Some(false));
+        assert_eq!(w.grade(500.0), Some(false));
+        assert_eq!(w.grade(500.001), Some(true));
+        assert_eq!(w.grade(f64::NAN), None);
+        // Rounding noise of a computed value does not move it across a boundary.
+        assert_eq!(lf.grade(8.0 - 1e-12), Some(false));
+        assert_eq!(w.grade(200.0 + 1e-10), None);
+        let t = l.get(LimitKey::ReservoirTempC);
+        assert_eq!(t.grade(crate::units::Temperature::from_c(60.0).c()), None);
+    }
+
+    #[test]
+    fn unit_override_wins_over_shop_and_shop_over_builtin() {
+        let rows = vec![
+            row(None, "water_ppm", Some(150.0), None),
+            row(Some(7), "water_ppm", None, Some(300.0)),
+            row(Some(8), "water_ppm", Some(100.0), Some(120.0)),
+            row(None, "no_such_key", Some(1.0), None),
+        ];
+        let shop = Limits::resolve(&rows, None).get(LimitKey::WaterPpm);
+        assert_eq!((shop.watch, shop.act), (Some(150.0), Some(500.0)));
+        assert_eq!(
+            (shop.watch_origin, shop.act_origin),
+            (LimitOrigin::Shop, LimitOrigin::Builtin)
+        );
+        let u7 = Limits::resolve(&rows, Some(7)).get(LimitKey::WaterPpm);
+        assert_eq!((u7.watch, u7.act), (Some(150.0), Some(300.0)));
+        assert_eq!(u7.act_origin, LimitOrigin::Unit);
+        let u9 = Limits::resolve(&rows, Some(9)).get(LimitKey::WaterPpm);
+        assert_eq!((u9.watch, u9.act), (Some(150.0), Some(500.0)));
+    }
+
+    #[test]
+    fn settings_are_checked_before_they_are_stored() {
+        let cur = Limits::builtin();
+        assert!(validate_setting(LimitKey::LostFlowPct, Some(10.0), Some(20.0), &cur).is_ok());
+        // A watch beyond the act in force is refused.
+        assert!(validate_setting(LimitKey::LostFlowPct, Some(16.0), None, &cur).is_err());
+        assert!(validate_setting(LimitKey::LostFlowPct, None, None, &cur).is_err());
+        assert!(validate_setting(LimitKey::BaselineChecks, None, Some(4.5), &cur).is_err());
+        assert!(validate_setting(LimitKey::BaselineChecks, Some(3.0), None, &cur).is_err());
+        assert!(validate_setting(LimitKey::BaselineChecks, None, Some(6.0), &cur).is_ok());
+        assert!(validate_setting(LimitKey::LeakConductanceRatio, Some(0.9), None, &cur).is_err());
+        assert!("lost_flow".parse::<LimitKey>().is_err());
+        assert_eq!("water_ppm".parse::<LimitKey>(), Ok(LimitKey::WaterPpm));
+    }
+}
