@@ -1,0 +1,117 @@
+//! How the health engine's figures read in the shop's units, for every face alike: the command
+//! line, the desktop app and the PDF report all write a tile value, a change or a trend arrow
+//! through these functions, so the same figure never reads two ways.
+//!
+//! Display only: conversion from SI to the display unit and a fixed number of decimals per
+//! dimension. Nothing here decides a state or a limit.
+
+use crate::health::indicators::{Dim, Direction};
+use crate::quantity::{format, Kind, Quantity};
+use crate::units::{Flow, TempDiff, Temperature, UnitSystem, Viscosity};
+
+/// The unit a dimension is shown in (`""` for a bare ISO 4406 range number).
+pub fn unit(dim: Dim, sys: UnitSystem) -> &'static str {
+    match (dim, sys) {
+        (Dim::Flow, UnitSystem::Metric) => "L/min",
+        (Dim::Flow, UnitSystem::Us) => "gpm",
+        (Dim::Temperature, UnitSystem::Metric) => "°C",
+        (Dim::Temperature, UnitSystem::Us) => "°F",
+        (Dim::TempDiff, UnitSystem::Metric) => "K",
+        (Dim::TempDiff, UnitSystem::Us) => "°F",
+        (Dim::Viscosity, _) => "cSt",
+        (Dim::Percent, _) => "%",
+        (Dim::Ratio, _) => "×",
+        (Dim::Ppm, _) => "ppm",
+        (Dim::AcidNumber, _) => "mg KOH/g",
+        (Dim::RangeNumber, _) => "",
+    }
+}
+
+/// A value of the health engine (SI for physical dimensions) as a number in the display unit.
+pub fn value(dim: Dim, si: f64, sys: UnitSystem) -> f64 {
+    match (dim, sys) {
+        (Dim::Flow, UnitSystem::Metric) => Flow(si).lpm(),
+        (Dim::Flow, UnitSystem::Us) => Flow(si).gpm(),
+        (Dim::Temperature, UnitSystem::Metric) => Temperature(si).c(),
+        (Dim::Temperature, UnitSystem::Us) => Temperature(si).f(),
+        (Dim::TempDiff, UnitSystem::Metric) => TempDiff(si).k(),
+        (Dim::TempDiff, UnitSystem::Us) => TempDiff(si).f_steps(),
+        (Dim::Viscosity, _) => Viscosity(si).cst(),
+        _ => si,
+    }
+}
+
+/// A temperature difference in K or °F steps, optionally signed: `4.9 K`, `+8.8 °F`.
+pub fn temp_diff(k: f64, sys: UnitSystem, signed: bool) -> String {
+    let v = value(Dim::TempDiff, k, sys);
+    let u = unit(Dim::TempDiff, sys);
+    if signed {
+        format!("{v:+.1} {u}")
+    } else {
+        format!("{v:.1} {u}")
+    }
+}
+
+/// A tile or series value with its unit: `90.0 L/min`, `46.1 cSt`, `742 ppm`, `1.32×`.
+pub fn text(dim: Dim, si: f64, sys: UnitSystem) -> String {
+    match dim {
+        Dim::Flow => format(Quantity::Flow(Flow(si)), sys),
+        Dim::Temperature => format(Quantity::Temperature(Temperature(si)), sys),
+        Dim::TempDiff => temp_diff(si, sys, false),
+        Dim::Viscosity => format(Quantity::Viscosity(Viscosity(si)), sys),
+        Dim::Percent => format!("{si:.1} %"),
+        Dim::Ratio => format!("{si:.2}×"),
+        Dim::Ppm => format!("{si:.0} ppm"),
+        Dim::AcidNumber => format!("{si:.2} mg KOH/g"),
+        Dim::RangeNumber => format!("{si:+.0}"),
+    }
+}
+
+/// A signed change of a value (a slope or a difference over a period): temperatures change by
+/// a difference, not to a temperature, and small changes keep their decimals.
+pub fn change(dim: Dim, d: f64, sys: UnitSystem) -> String {
+    match dim {
+        Dim::Temperature | Dim::TempDiff => temp_diff(d, sys, true),
+        Dim::Flow => {
+            let u = Kind::Flow.display_unit(sys);
+            format!("{:+.2} {}", u.from_si(d), u.symbol())
+        }
+        Dim::Viscosity => format!("{:+.3} cSt", Viscosity(d).cst()),
+        Dim::Percent => format!("{d:+.2} %"),
+        Dim::Ratio => format!("{d:+.3}×"),
+        Dim::Ppm => format!("{d:+.1} ppm"),
+        Dim::AcidNumber => format!("{d:+.3} mg KOH/g"),
+        Dim::RangeNumber => format!("{d:+.2}"),
+    }
+}
+
+/// The arrow of a trend direction.
+pub fn arrow(d: Direction) -> &'static str {
+    match d {
+        Direction::Rising => "↑",
+        Direction::Falling => "↓",
+        Direction::Flat => "→",
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn differences_convert_without_the_offset() {
+        // 5 K = 9 °F of difference (the Fahrenheit degree is 5/9 K by definition, NIST SP 811).
+        assert_eq!(temp_diff(5.0, UnitSystem::Us, true), "+9.0 °F");
+        assert_eq!(change(Dim::Temperature, -5.0, UnitSystem::Metric), "-5.0 K");
+        // 313.15 K = 40 °C = 104 °F (NIST SP 811 definitions).
+        assert!((value(Dim::Temperature, 313.15, UnitSystem::Us) - 104.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn flows_read_in_the_shop_units() {
+        // 1 US gal = 3.785411784 L exactly (NIST SP 811): 37.85411784 L/min = 10 gpm.
+        let si = 37.854_117_84 / 60_000.0;
+        assert!((value(Dim::Flow, si, UnitSystem::Us) - 10.0).abs() < 1e-9);
+        assert_eq!(unit(Dim::Flow, UnitSystem::Us), "gpm");
+    }
+}

@@ -1,0 +1,79 @@
+//! `sumpbook report`: write the PDF condition report of the fleet or of chosen units.
+//!
+//! Parses the options, calls `app::report::write_report` and prints what was written (or JSON
+//! with `--json`). No layout, no health rules, no SQL here.
+
+use std::path::PathBuf;
+
+use chrono::NaiveDate;
+use clap::Args;
+
+use super::Failure;
+use crate::app::report::{write_report, ReportOptions};
+use crate::app::shop::Shop;
+use crate::report::Paper;
+
+#[derive(Args, Debug, Clone, PartialEq)]
+pub struct ReportArgs {
+    /// The PDF file to write.
+    #[arg(long, value_name = "FILE.pdf")]
+    pub out: PathBuf,
+    /// A unit to include (repeat for more); default: every unit, worst first.
+    #[arg(long = "unit", value_name = "TAG")]
+    pub units: Vec<String>,
+    /// First day of the period (YYYY-MM-DD); default: 91 days before --to.
+    #[arg(long, value_name = "DATE", value_parser = parse_date)]
+    pub from: Option<NaiveDate>,
+    /// Last day of the period (YYYY-MM-DD), the day the units are judged at; default: today.
+    #[arg(long, value_name = "DATE", value_parser = parse_date)]
+    pub to: Option<NaiveDate>,
+    /// Paper size.
+    #[arg(long, value_name = "a4|letter", default_value = "a4", value_parser = parse_paper)]
+    pub paper: Paper,
+    /// Who prepared the report, printed on every page.
+    #[arg(long = "by", value_name = "NAME", default_value = "")]
+    pub by: String,
+    /// Print what was written as JSON.
+    #[arg(long)]
+    pub json: bool,
+}
+
+fn parse_date(s: &str) -> Result<NaiveDate, String> {
+    NaiveDate::parse_from_str(s.trim(), "%Y-%m-%d")
+        .map_err(|_| format!("`{s}` is not a date; expected YYYY-MM-DD"))
+}
+
+fn parse_paper(s: &str) -> Result<Paper, String> {
+    s.parse()
+}
+
+pub fn run(shop: &Shop, args: &ReportArgs, out: &mut dyn std::io::Write) -> Result<(), Failure> {
+    let opts = ReportOptions {
+        out: args.out.clone(),
+        units: args.units.clone(),
+        from: args.from,
+        to: args.to,
+        paper: args.paper,
+        prepared_by: args.by.clone(),
+    };
+    let summary = write_report(shop, &opts, &mut |_, _| true)?;
+    if args.json {
+        let text =
+            serde_json::to_string_pretty(&summary).map_err(|e| Failure::failed(e.to_string()))?;
+        writeln!(out, "{text}")?;
+    } else {
+        writeln!(
+            out,
+            "wrote {}: {} page{} ({} fleet, {} unit{}), {} – {}",
+            summary.path.display(),
+            summary.pages,
+            if summary.pages == 1 { "" } else { "s" },
+            summary.fleet_pages,
+            summary.units,
+            if summary.units == 1 { "" } else { "s" },
+            summary.from,
+            summary.to
+        )?;
+    }
+    Ok(())
+}

@@ -1,0 +1,779 @@
+//! Vector time charts for the unit pages, drawn with printpdf's own lines and shapes: one or
+//! more series over the report period, the baseline band, limit lines and event marks, with
+//! a legend that tells series and lines apart by marker shape and dash, not by colour alone.
+//!
+//! Values arrive already in display units; the chart only scales and draws them. It must not
+//! compute indicators, limits or states.
+
+use chrono::{DateTime, Datelike, Duration, NaiveDate, Utc};
+
+use super::layout::{size, Face, Fonts, Page, Rgbf, Stroke, BLACK, DARK, FAINT, LIGHT, MID, WHITE};
+use super::{days_since, Mark};
+
+/// One chart: a titled plot of values against dates.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Chart {
+    pub title: String,
+    /// Unit of the values, printed after the title (e.g. "%", "K", "cSt", "ISO 4406 scale").
+    pub unit: String,
+    pub from: NaiveDate,
+    pub to: NaiveDate,
+    pub series: Vec<Series>,
+    pub band: Option<Band>,
+    pub limits: Vec<LimitLine>,
+    pub events: Vec<EventMark>,
+    /// Printed in the plot when no series has a point.
+    pub empty_note: String,
+}
+
+/// A line of values.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Series {
+    pub label: String,
+    /// Oldest first.
+    pub points: Vec<(DateTime<Utc>, f64)>,
+}
+
+/// The baseline band of normal variation.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Band {
+    pub low: f64,
+    pub high: f64,
+    /// The baseline value itself, drawn as a thin line inside the band.
+    pub centre: Option<f64>,
+    pub label: String,
+}
+
+/// A horizontal limit line.
+#[derive(Clone, Debug, PartialEq)]
+pub struct LimitLine {
+    pub value: f64,
+    /// `Watch` or `Act` for a limit; `None` (or `Steady`) for a reference line such as a
+    /// target. Sets the dash pattern.
+    pub level: Mark,
+    /// Printed beside the line, e.g. "act 15".
+    pub label: String,
+}
+
+/// Something done to the unit (fluid change, filter change, rebuild), as a vertical mark.
+#[derive(Clone, Debug, PartialEq)]
+pub struct EventMark {
+    pub at: DateTime<Utc>,
+    /// One or two letters printed on the mark.
+    pub code: String,
+    /// Legend text, e.g. "fluid change 12 Feb".
+    pub label: String,
+}
+
+const SERIES_COLOURS: [Rgbf; 4] = [
+    Rgbf(0.10, 0.25, 0.55),
+    Rgbf(0.12, 0.45, 0.20),
+    Rgbf(0.50, 0.18, 0.50),
+    Rgbf(0.45, 0.30, 0.05),
+];
+const WATCH_COLOUR: Rgbf = Rgbf(0.80, 0.50, 0.0);
+const ACT_COLOUR: Rgbf = Rgbf(0.75, 0.08, 0.08);
+const BAND_COLOUR: Rgbf = Rgbf(0.86, 0.90, 0.96);
+
+fn series_stroke(i: usize) -> Stroke {
+    let c = SERIES_COLOURS[i % SERIES_COLOURS.len()];
+    match i % 4 {
+        0 => Stroke::solid(0.9, c),
+        1 => Stroke::dashed(0.9, c, &[3.0, 1.5]),
+        2 => Stroke::dashed(0.9, c, &[0.8, 1.2]),
+        _ => Stroke::dashed(0.9, c, &[4.0, 1.0, 1.0, 1.0]),
+    }
+}
+
+fn limit_stroke(level: Mark) -> Stroke {
+    match level {
+        Mark::Act => Stroke::dashed(1.0, ACT_COLOUR, &[5.0, 1.5, 1.0, 1.5]),
+        Mark::Watch => Stroke::dashed(0.8, WATCH_COLOUR, &[2.5, 1.5]),
+        // A reference such as a cleanliness target: thin, long dashes, grey.
+        Mark::Steady | Mark::None => Stroke::dashed(0.6, DARK, &[6.0, 2.0]),
+    }
+}
+
+fn limit_label_colour(level: Mark) -> Rgbf {
+    match level {
+        Mark::Act => ACT_COLOUR,
+        Mark::Watch => Rgbf(0.55, 0.35, 0.0),
+        Mark::Steady | Mark::None => DARK,
+    }
+}
+
+/// Marker of series `i`: circle, square, triangle, cross.
+fn marker(page: &mut Page, i: usize, cx: f32, cy: f32, r: f32) {
+    let c = SERIES_COLOURS[i % SERIES_COLOURS.len()];
+    let outline = Stroke::solid(0.5, c);
+    match i % 4 {
+        0 => {
+            let pts: Vec<(f32, f32)> = (0..12)
+                .map(|k| {
+                    let a = k as f32 / 12.0 * std::f32::consts::TAU;
+                    (cx + r * a.cos(), cy + r * a.sin())
+                })
+                .collect();
+            page.shape(&pts, Some(c), Some(&outline));
+        }
+        1 => page.rect(
+            cx - r,
+            cy - r,
+            2.0 * r,
+            2.0 * r,
+            Some(WHITE),
+            Some(&outline),
+        ),
+        2 => page.shape(
+            &[
+                (cx, cy - r * 1.2),
+                (cx + r * 1.1, cy + r * 0.8),
+                (cx - r * 1.1, cy + r * 0.8),
+            ],
+            Some(c),
+            Some(&outline),
+        ),
+        _ => {
+            page.line(cx - r, cy - r, cx + r, cy + r, &outline);
+            page.line(cx - r, cy + r, cx + r, cy - r, &outline);
+        }
+    }
+}
+
+/// Evenly spaced "nice" ticks (1, 2, 2.5, 5 × 10ⁿ) covering `lo..hi`; returns the widened
+/// range, the ticks and the decimals their labels need.
+pub fn nice_ticks(lo: f64, hi: f64, target: usize) -> (f64, f64, Vec<f64>, usize) {
+    let (mut lo, mut hi) = if lo.is_finite() && hi.is_finite() {
+        (lo.min(hi), lo.max(hi))
+    } else {
+        (0.0, 1.0)
+    };
+    if (hi - lo).abs() < 1e-12 {
+        let pad = if lo.abs() > 1e-12 {
+            lo.abs() * 0.1
+        } else {
+            1.0
+        };
+        lo -= pad;
+        hi += pad;
+    }
+    let raw = (hi - lo) / target.max(1) as f64;
+    let mag = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 2.5, 5.0, 10.0]
+        .iter()
+        .map(|m| m * mag)
+        .find(|s| *s >= raw * 0.999)
+        .unwrap_or(10.0 * mag);
+    let lo_t = (lo / step).floor() * step;
+    let hi_t = (hi / step).ceil() * step;
+    let n = ((hi_t - lo_t) / step).round() as usize;
+    let ticks: Vec<f64> = (0..=n).map(|k| lo_t + k as f64 * step).collect();
+    let mut decimals = 0;
+    while decimals < 6 {
+        let scaled = step * 10f64.powi(decimals as i32);
+        if (scaled - scaled.round()).abs() < 1e-6 {
+            break;
+        }
+        decimals += 1;
+    }
+    (lo_t, hi_t, ticks, decimals)
+}
+
+fn format_tick(v: f64, decimals: usize) -> String {
+    let v = if v.abs() < 1e-9 { 0.0 } else { v };
+    format!("{v:.decimals$}")
+}
+
+const MONTHS: [&str; 12] = [
+    "Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec",
+];
+
+fn month_name(d: NaiveDate) -> &'static str {
+    MONTHS[d.month0() as usize % 12]
+}
+
+/// Date ticks between `from` and `to` that fit `width` points: days, weeks or months.
+pub fn date_ticks(
+    fonts: &Fonts,
+    from: NaiveDate,
+    to: NaiveDate,
+    width: f32,
+) -> Vec<(NaiveDate, String)> {
+    let span = (to - from).num_days().max(1);
+    let fits = |ticks: &[(NaiveDate, String)]| {
+        let widest = ticks
+            .iter()
+            .map(|(_, s)| fonts.width(Face::Regular, size::TINY, s))
+            .fold(0.0f32, f32::max);
+        ticks.len() as f32 * (widest + 6.0) <= width
+    };
+    for step in [1i64, 2, 7, 14] {
+        if span / step > 16 {
+            continue;
+        }
+        let ticks: Vec<(NaiveDate, String)> = (0..=span / step)
+            .map(|k| from + Duration::days(k * step))
+            .map(|d| (d, format!("{} {}", d.day(), month_name(d))))
+            .collect();
+        if fits(&ticks) {
+            return ticks;
+        }
+    }
+    let multi_year = from.year() != to.year();
+    for months in [1u32, 2, 3, 6, 12] {
+        let mut ticks = Vec::new();
+        let mut y = from.year();
+        let mut m = from.month();
+        // The first month start on or after `from`.
+        if from.day() != 1 {
+            m += 1;
+            if m > 12 {
+                m = 1;
+                y += 1;
+            }
+        }
+        while let Some(d) = NaiveDate::from_ymd_opt(y, m, 1) {
+            if d > to {
+                break;
+            }
+            if (m - 1).is_multiple_of(months) {
+                let label = if multi_year || m == 1 || ticks.is_empty() {
+                    format!("{} {}", month_name(d), d.year())
+                } else {
+                    month_name(d).to_string()
+                };
+                ticks.push((d, label));
+            }
+            m += 1;
+            if m > 12 {
+                m = 1;
+                y += 1;
+            }
+        }
+        if fits(&ticks) {
+            return ticks;
+        }
+    }
+    vec![(from, from.to_string()), (to, to.to_string())]
+}
+
+/// A legend entry.
+enum Key<'a> {
+    Series(usize, &'a str),
+    Band(&'a str),
+    Event(&'a str, &'a str),
+}
+
+const KEY_SWATCH: f32 = 11.0;
+
+fn key_width(fonts: &Fonts, key: &Key) -> f32 {
+    let text = match key {
+        Key::Series(_, s) | Key::Band(s) => s.to_string(),
+        Key::Event(code, s) => format!("{code} {s}"),
+    };
+    KEY_SWATCH + 2.0 + fonts.width(Face::Regular, size::TINY, &text) + 6.0
+}
+
+fn legend_keys(chart: &Chart) -> Vec<Key<'_>> {
+    let mut keys: Vec<Key> = Vec::new();
+    if chart.series.len() > 1 {
+        keys.extend(
+            chart
+                .series
+                .iter()
+                .enumerate()
+                .map(|(i, s)| Key::Series(i, s.label.as_str())),
+        );
+    }
+    if let Some(b) = &chart.band {
+        keys.push(Key::Band(&b.label));
+    }
+    // Limit lines are labelled where they end, in the gutter; the legend does not repeat them.
+    let mut seen: Vec<(&str, &str)> = Vec::new();
+    for e in &chart.events {
+        if !seen.contains(&(e.code.as_str(), e.label.as_str())) {
+            seen.push((&e.code, &e.label));
+            keys.push(Key::Event(&e.code, &e.label));
+        }
+    }
+    keys
+}
+
+/// Splits legend keys into lines that fit `width`; an entry wider than a line gets a line.
+fn legend_lines<'a>(fonts: &Fonts, keys: Vec<Key<'a>>, width: f32) -> Vec<Vec<Key<'a>>> {
+    let mut lines: Vec<Vec<Key>> = Vec::new();
+    let mut used = 0.0;
+    for k in keys {
+        let w = key_width(fonts, &k);
+        if lines.is_empty() || used + w > width {
+            lines.push(Vec::new());
+            used = 0.0;
+        }
+        used += w;
+        if let Some(l) = lines.last_mut() {
+            l.push(k);
+        }
+    }
+    lines
+}
+
+const LEGEND_LINE: f32 = size::TINY * 1.35;
+
+/// Draws `chart` into the box with top-left (`x`, `top`), `w` × `h` points.
+pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: f32, h: f32) {
+    let title = if chart.unit.is_empty() {
+        chart.title.clone()
+    } else {
+        format!("{} ({})", chart.title, chart.unit)
+    };
+    let title = fonts.fit(Face::Bold, size::SMALL, &title, w);
+    page.text(
+        fonts,
+        Face::Bold,
+        size::SMALL,
+        BLACK,
+        x,
+        top + size::SMALL,
+        &title,
+    );
+
+    // Value range over everything drawn, so no point, band or limit falls off the plot.
+    let mut values: Vec<f64> = chart
+        .series
+        .iter()
+        .flat_map(|s| s.points.iter().map(|p| p.1))
+        .collect();
+    if let Some(b) = &chart.band {
+        values.extend([b.low, b.high]);
+    }
+    values.extend(chart.limits.iter().map(|l| l.value));
+    values.retain(|v| v.is_finite());
+    let (vmin, vmax) = values
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| {
+            (a.min(*v), b.max(*v))
+        });
+    let (vmin, vmax) = if values.is_empty() {
+        (0.0, 1.0)
+    } else {
+        (vmin, vmax)
+    };
+    let pad = (vmax - vmin) * 0.06;
+    let (lo, hi, ticks, decimals) = nice_ticks(vmin - pad, vmax + pad, 4);
+    let tick_labels: Vec<String> = ticks.iter().map(|t| format_tick(*t, decimals)).collect();
+    let y_label_w = tick_labels
+        .iter()
+        .map(|s| fonts.width(Face::Regular, size::TINY, s))
+        .fold(0.0f32, f32::max);
+    let limit_label_w = chart
+        .limits
+        .iter()
+        .map(|l| fonts.width(Face::Regular, size::TINY, &l.label))
+        .fold(0.0f32, f32::max);
+
+    let plot_x = x + y_label_w + 3.0;
+    let plot_r = x + w
+        - if limit_label_w > 0.0 {
+            limit_label_w + 3.0
+        } else {
+            2.0
+        };
+    let plot_w = (plot_r - plot_x).max(10.0);
+    let legend = legend_lines(fonts, legend_keys(chart), w);
+    // Room for the title and for the top tick label, which stands half above its line.
+    let plot_top = top + size::SMALL * 1.4 + size::TINY * 0.7;
+    let plot_bottom = top + h - size::TINY * 1.6 - legend.len() as f32 * LEGEND_LINE;
+    let plot_h = (plot_bottom - plot_top).max(10.0);
+
+    // The period runs to the end of its last day.
+    let span_days = days_since(
+        chart.from,
+        (chart.to + Duration::days(1))
+            .and_hms_opt(0, 0, 0)
+            .map(|d| d.and_utc())
+            .unwrap_or_default(),
+    )
+    .max(1.0);
+    let px = |at: DateTime<Utc>| plot_x + (days_since(chart.from, at) / span_days) as f32 * plot_w;
+    let py = |v: f64| plot_bottom - ((v - lo) / (hi - lo)) as f32 * plot_h;
+
+    // Frame and value grid.
+    page.rect(plot_x, plot_top, plot_w, plot_h, Some(WHITE), None);
+    for (t, label) in ticks.iter().zip(&tick_labels) {
+        let y = py(*t);
+        page.line(plot_x, y, plot_r, y, &Stroke::solid(0.3, FAINT));
+        page.text_right(
+            fonts,
+            Face::Regular,
+            size::TINY,
+            DARK,
+            plot_x - 2.0,
+            y + size::TINY * 0.35,
+            label,
+        );
+    }
+    // Date axis.
+    let mut label_end = f32::NEG_INFINITY;
+    for (d, label) in date_ticks(fonts, chart.from, chart.to, plot_w) {
+        let at = d
+            .and_hms_opt(0, 0, 0)
+            .map(|t| t.and_utc())
+            .unwrap_or_default();
+        let tx = px(at);
+        page.line(
+            tx,
+            plot_bottom,
+            tx,
+            plot_bottom + 2.0,
+            &Stroke::solid(0.4, MID),
+        );
+        page.line(tx, plot_top, tx, plot_bottom, &Stroke::solid(0.2, FAINT));
+        let lw = fonts.width(Face::Regular, size::TINY, &label);
+        // Kept clear of the value labels on the left and inside the box on the right.
+        let lx = (tx - lw / 2.0).max(plot_x - 1.0).min(x + w - lw);
+        // A label pushed against its neighbour is left out; its tick stays.
+        if lx < label_end + 3.0 {
+            continue;
+        }
+        label_end = lx + lw;
+        page.text(
+            fonts,
+            Face::Regular,
+            size::TINY,
+            DARK,
+            lx,
+            plot_bottom + 2.0 + size::TINY,
+            &label,
+        );
+    }
+
+    page.clip(plot_x, plot_top, plot_w, plot_h);
+    if let Some(b) = &chart.band {
+        let (y1, y2) = (py(b.high), py(b.low));
+        page.rect(
+            plot_x,
+            y1,
+            plot_w,
+            (y2 - y1).max(0.5),
+            Some(BAND_COLOUR),
+            None,
+        );
+        if let Some(c) = b.centre {
+            page.line(plot_x, py(c), plot_r, py(c), &Stroke::solid(0.5, MID));
+        }
+    }
+    for l in &chart.limits {
+        page.line(
+            plot_x,
+            py(l.value),
+            plot_r,
+            py(l.value),
+            &limit_stroke(l.level),
+        );
+    }
+    for e in &chart.events {
+        let ex = px(e.at);
+        page.line(
+            ex,
+            plot_top,
+            ex,
+            plot_bottom,
+            &Stroke::dashed(0.6, DARK, &[1.0, 1.5]),
+        );
+    }
+    let mut any_point = false;
+    for (i, s) in chart.series.iter().enumerate() {
+        let pts: Vec<(f32, f32)> = s
+            .points
+            .iter()
+            .filter(|p| p.1.is_finite())
+            .map(|p| (px(p.0), py(p.1)))
+            .collect();
+        any_point |= !pts.is_empty();
+        page.polyline(&pts, &series_stroke(i));
+        let r = if pts.len() > 40 { 1.0 } else { 1.5 };
+        for (cx, cy) in &pts {
+            marker(page, i, *cx, *cy, r);
+        }
+    }
+    page.unclip();
+
+    // Event codes sit on a white tab at the top of their line, inside the plot.
+    for e in &chart.events {
+        let ex = px(e.at);
+        if ex < plot_x - 0.5 || ex > plot_r + 0.5 {
+            continue;
+        }
+        let cw = fonts.width(Face::Bold, size::TINY, &e.code) + 2.0;
+        page.rect(
+            ex - cw / 2.0,
+            plot_top + 0.5,
+            cw,
+            size::TINY * 1.2,
+            Some(WHITE),
+            Some(&Stroke::solid(0.3, DARK)),
+        );
+        page.text_centred(
+            fonts,
+            Face::Bold,
+            size::TINY,
+            BLACK,
+            ex,
+            plot_top + 0.5 + size::TINY,
+            &e.code,
+        );
+    }
+    page.rect(
+        plot_x,
+        plot_top,
+        plot_w,
+        plot_h,
+        None,
+        Some(&Stroke::solid(0.5, MID)),
+    );
+
+    // Limit labels in the right gutter, pushed apart when two limits are close.
+    let mut label_ys: Vec<(f32, &LimitLine)> =
+        chart.limits.iter().map(|l| (py(l.value), l)).collect();
+    label_ys.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let mut last = f32::NEG_INFINITY;
+    for (y, l) in label_ys {
+        let base = (y + size::TINY * 0.35)
+            .max(last + size::TINY * 1.1)
+            .clamp(plot_top + size::TINY, plot_bottom + size::TINY);
+        let col = limit_label_colour(l.level);
+        page.text(
+            fonts,
+            Face::Regular,
+            size::TINY,
+            col,
+            plot_r + 2.0,
+            base,
+            &l.label,
+        );
+        last = base;
+    }
+
+    if !any_point {
+        let note = fonts.fit(Face::Regular, size::SMALL, &chart.empty_note, plot_w - 4.0);
+        page.text_centred(
+            fonts,
+            Face::Regular,
+            size::SMALL,
+            DARK,
+            plot_x + plot_w / 2.0,
+            plot_top + plot_h / 2.0,
+            &note,
+        );
+    }
+
+    // Legend.
+    let mut ly = plot_bottom + size::TINY * 1.6 + size::TINY;
+    for line in legend {
+        let mut lx = x;
+        for key in line {
+            let sw_y = ly - size::TINY * 0.35;
+            let text = match &key {
+                Key::Series(i, label) => {
+                    page.line(lx, sw_y, lx + KEY_SWATCH, sw_y, &series_stroke(*i));
+                    marker(page, *i, lx + KEY_SWATCH / 2.0, sw_y, 1.5);
+                    label.to_string()
+                }
+                Key::Band(label) => {
+                    page.rect(
+                        lx,
+                        sw_y - 2.5,
+                        KEY_SWATCH,
+                        5.0,
+                        Some(BAND_COLOUR),
+                        Some(&Stroke::solid(0.3, LIGHT)),
+                    );
+                    page.line(lx, sw_y, lx + KEY_SWATCH, sw_y, &Stroke::solid(0.5, MID));
+                    label.to_string()
+                }
+                Key::Event(code, label) => {
+                    page.text(fonts, Face::Bold, size::TINY, BLACK, lx + 2.0, ly, code);
+                    label.to_string()
+                }
+            };
+            let text = fonts.fit(
+                Face::Regular,
+                size::TINY,
+                &text,
+                (x + w - lx - KEY_SWATCH - 2.0).max(4.0),
+            );
+            page.text(
+                fonts,
+                Face::Regular,
+                size::TINY,
+                DARK,
+                lx + KEY_SWATCH + 2.0,
+                ly,
+                &text,
+            );
+            lx += key_width(fonts, &key);
+        }
+        ly += LEGEND_LINE;
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use chrono::TimeZone;
+
+    fn at(y: i32, m: u32, d: u32) -> DateTime<Utc> {
+        Utc.with_ymd_and_hms(y, m, d, 8, 0, 0).unwrap()
+    }
+
+    fn chart() -> Chart {
+        Chart {
+            title: "Lost flow".into(),
+            unit: "%".into(),
+            from: NaiveDate::from_ymd_opt(2024, 1, 1).unwrap(),
+            to: NaiveDate::from_ymd_opt(2024, 6, 30).unwrap(),
+            series: vec![Series {
+                label: "lost flow".into(),
+                points: vec![(at(2024, 1, 8), 1.0), (at(2024, 6, 24), 12.0)],
+            }],
+            band: Some(Band {
+                low: -2.0,
+                high: 2.0,
+                centre: Some(0.0),
+                label: "baseline band".into(),
+            }),
+            limits: vec![
+                LimitLine {
+                    value: 8.0,
+                    level: Mark::Watch,
+                    label: "watch 8".into(),
+                },
+                LimitLine {
+                    value: 15.0,
+                    level: Mark::Act,
+                    label: "act 15".into(),
+                },
+            ],
+            events: vec![EventMark {
+                at: at(2024, 3, 1),
+                code: "F".into(),
+                label: "fluid change 1 Mar".into(),
+            }],
+            empty_note: "no checks in this period".into(),
+        }
+    }
+
+    #[test]
+    fn nice_ticks_cover_the_range_with_round_steps() {
+        let (lo, hi, ticks, dec) = nice_ticks(-2.3, 15.4, 4);
+        assert!(lo <= -2.3 && hi >= 15.4);
+        assert_eq!(ticks.first().copied(), Some(lo));
+        assert_eq!(ticks.last().copied(), Some(hi));
+        assert_eq!(dec, 0);
+        let step = ticks[1] - ticks[0];
+        assert_eq!(step, 5.0);
+        let (_, _, t2, dec2) = nice_ticks(44.1, 45.0, 4);
+        assert!((t2[1] - t2[0] - 0.25).abs() < 1e-9);
+        assert_eq!(dec2, 2);
+        // A flat series still gets a range.
+        let (lo3, hi3, _, _) = nice_ticks(46.0, 46.0, 4);
+        assert!(lo3 < 46.0 && hi3 > 46.0);
+    }
+
+    #[test]
+    fn date_ticks_fit_and_stay_in_the_period() {
+        let fonts = Fonts::load().unwrap();
+        let from = NaiveDate::from_ymd_opt(2024, 1, 15).unwrap();
+        for (to, width) in [
+            (NaiveDate::from_ymd_opt(2024, 2, 10).unwrap(), 200.0),
+            (NaiveDate::from_ymd_opt(2025, 12, 31).unwrap(), 150.0),
+        ] {
+            let ticks = date_ticks(&fonts, from, to, width);
+            assert!(ticks.len() >= 2, "{ticks:?}");
+            for (d, _) in &ticks {
+                assert!(*d >= from && *d <= to);
+            }
+            let widest = ticks
+                .iter()
+                .map(|(_, s)| fonts.width(Face::Regular, size::TINY, s))
+                .fold(0.0, f32::max);
+            assert!(ticks.len() as f32 * widest <= width);
+        }
+    }
+
+    #[test]
+    fn a_chart_draws_its_limits_band_events_and_legend_inside_its_box() {
+        let fonts = Fonts::load().unwrap();
+        let mut page = Page::new(600.0, 800.0);
+        let (x, top, w, h) = (50.0, 100.0, 250.0, 120.0);
+        draw(&mut page, &fonts, &chart(), x, top, w, h);
+        for b in &page.text_boxes {
+            assert!(b.x >= x - 0.01 && b.x + b.width <= x + w + 0.01, "{b:?}");
+            assert!(
+                b.top >= top - 0.01 && b.top + b.height <= top + h + 2.0,
+                "{b:?}"
+            );
+        }
+        let texts: Vec<&str> = page.text_boxes.iter().map(|b| b.text.as_str()).collect();
+        for t in [
+            "Lost flow (%)",
+            "watch 8",
+            "act 15",
+            "F",
+            "fluid change 1 Mar",
+            "baseline band",
+        ] {
+            assert!(texts.contains(&t), "{t} missing from {texts:?}");
+        }
+        // Two limit lines and the band and points are drawn as vector operations.
+        let lines = page
+            .ops
+            .iter()
+            .filter(|o| matches!(o, printpdf::Op::DrawLine { .. }))
+            .count();
+        let shapes = page
+            .ops
+            .iter()
+            .filter(|o| matches!(o, printpdf::Op::DrawPolygon { .. }))
+            .count();
+        assert!(lines >= 5, "{lines} lines");
+        assert!(shapes >= 3, "{shapes} shapes");
+    }
+
+    #[test]
+    fn no_two_labels_of_a_chart_overlap_and_the_last_day_is_inside() {
+        let fonts = Fonts::load().unwrap();
+        let mut c = chart();
+        // A period that starts mid-month, as a default period does.
+        c.from = NaiveDate::from_ymd_opt(2026, 8, 28).unwrap();
+        c.to = NaiveDate::from_ymd_opt(2026, 11, 27).unwrap();
+        c.series[0].points = vec![(at(2026, 8, 28), 1.0), (at(2026, 11, 27), 12.0)];
+        c.events[0].at = at(2026, 10, 23);
+        for w in [180.0, 250.0, 400.0] {
+            let mut page = Page::new(600.0, 800.0);
+            draw(&mut page, &fonts, &c, 50.0, 100.0, w, 110.0);
+            let b = &page.text_boxes;
+            for i in 0..b.len() {
+                for j in i + 1..b.len() {
+                    let (p, q) = (&b[i], &b[j]);
+                    let ox = p.x < q.x + q.width && q.x < p.x + p.width;
+                    let oy = p.top < q.top + q.height / 1.25 && q.top < p.top + p.height / 1.25;
+                    assert!(!(ox && oy), "width {w}: {p:?} overlaps {q:?}");
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn an_empty_chart_says_so() {
+        let fonts = Fonts::load().unwrap();
+        let mut c = chart();
+        c.series[0].points.clear();
+        let mut page = Page::new(600.0, 800.0);
+        draw(&mut page, &fonts, &c, 50.0, 100.0, 250.0, 120.0);
+        assert!(page
+            .text_boxes
+            .iter()
+            .any(|b| b.text == "no checks in this period"));
+    }
+}
