@@ -448,6 +448,18 @@ fn wrong_files_are_refused_with_a_typed_error_never_a_panic() {
         Err(StoreError::Missing { .. })
     ));
     assert!(!missing.exists());
+    // A truncated shop (half copied) is damaged, and said to be so before anything is read.
+    let cut = dir.path().join("cut.sqlite");
+    {
+        let mut s = Store::open(&cut, OpenMode::Create).unwrap();
+        demo::load(&mut s, &demo::generate().unwrap()).unwrap();
+    }
+    let bytes = std::fs::read(&cut).unwrap();
+    std::fs::write(&cut, &bytes[..8192]).unwrap();
+    match Store::open(&cut, OpenMode::MustExist) {
+        Err(e @ StoreError::Damaged { .. }) => assert!(e.to_string().contains("damaged"), "{e}"),
+        other => panic!("expected Damaged, got {other:?}"),
+    }
     // An empty file becomes a shop.
     let empty = dir.path().join("empty.sqlite");
     std::fs::write(&empty, "").unwrap();
@@ -940,4 +952,33 @@ fn unit_page_reads_use_the_indexes() {
             "{sql}: {plan}"
         );
     }
+}
+
+#[cfg(unix)]
+#[test]
+fn keep_going_never_removes_or_replaces_a_rejects_target_that_is_not_a_regular_file() {
+    let dir = tmp();
+    let mut store = new_store(dir.path(), "target.sqlite");
+    small_shop(&store);
+    let link = dir.path().join("week.rejects.csv");
+    std::os::unix::fs::symlink("/dev/null", &link).unwrap();
+    let csv = format!("{CHECK_HEADER}PR-01-M,2025-01-13T07:30:00Z,45,21,-5,3.9,AK,\n");
+    let s = import_reader(
+        &mut store,
+        FileKind::Checks,
+        "week.csv",
+        csv.as_bytes(),
+        Some(link.clone()),
+    )
+    .unwrap();
+    assert_eq!(s.rejected, 1);
+    assert!(std::fs::symlink_metadata(&link)
+        .unwrap()
+        .file_type()
+        .is_symlink());
+    use std::os::unix::fs::FileTypeExt;
+    assert!(std::fs::metadata("/dev/null")
+        .unwrap()
+        .file_type()
+        .is_char_device());
 }

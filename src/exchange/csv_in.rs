@@ -8,7 +8,8 @@
 //! same format with a `reject_reason` column. A row whose key (unit + time, + kind for events,
 //! the unit tag for the register) is already stored adds nothing when the values it gives agree
 //! with the stored ones, and is refused when they differ: stored data is never overwritten.
-//! No SQL here; the store does that.
+//! A `reject_reason` column (a corrected rejects file) is ignored; a line longer than 1 MiB
+//! stops the import (nothing is written). No SQL here; the store does that.
 
 use std::collections::HashMap;
 use std::io::{BufRead, BufReader, Read};
@@ -865,8 +866,9 @@ pub fn import_reader<R: Read>(
     }
     let header = parse_header(kind, label, &rec).map_err(ExchangeError::Rows)?;
     if let Some(path) = &rejects {
-        // A rejects file from an earlier run is replaced, not appended to or left stale.
-        if path.exists() {
+        // A rejects file from an earlier run is replaced, not appended to or left stale. Only
+        // a regular file is removed: a device or pipe given as the target is left alone.
+        if std::fs::symlink_metadata(path).is_ok_and(|m| m.is_file()) {
             std::fs::remove_file(path).map_err(|e| ExchangeError::Io {
                 path: path.clone(),
                 source: e,

@@ -351,10 +351,31 @@ impl Store {
             });
         }
 
-        if self.path != Path::new(":memory:") {
-            let mode: String = self
-                .conn
-                .query_row("PRAGMA journal_mode = WAL", [], |r| r.get(0))?;
+        let memory = self.path == Path::new(":memory:");
+        // A new shop, or one to upgrade, is prepared by one process at a time.
+        let _lock = if found < known && !memory {
+            Some(MigrationLock::take(&self.path)?)
+        } else {
+            None
+        };
+        if !memory {
+            // Switching the journal mode can meet a lock without SQLite's busy handler being
+            // called (another process switching at the same moment); wait as for any lock.
+            let started = std::time::Instant::now();
+            let mode: String = loop {
+                match self
+                    .conn
+                    .query_row("PRAGMA journal_mode = WAL", [], |r| r.get(0))
+                {
+                    Ok(mode) => break mode,
+                    Err(e) => match classify(e) {
+                        StoreError::Busy if started.elapsed() < BUSY_TIMEOUT => {
+                            std::thread::sleep(Duration::from_millis(50))
+                        }
+                        other => return Err(other),
+                    },
+                }
+            };
             if !mode.eq_ignore_ascii_case("wal") {
                 return Err(StoreError::CannotOpen {
                     path: self.path.clone(),
@@ -383,16 +404,12 @@ impl Store {
     }
 
     /// Brings the schema to the latest version, one process at a time: the version is read
-    /// again under the lock (another process may have done it meanwhile), an existing shop is
+    /// again under the migration lock (another process may have done it meanwhile), an existing shop is
     /// backed up first (SQLite online backup beside the file), and the migrations run in one
     /// transaction that takes the write lock at its start.
+    /// The caller holds the [`MigrationLock`].
     fn migrate(&mut self) -> Result<(), StoreError> {
         let memory = self.path == Path::new(":memory:");
-        let _lock = if memory {
-            None
-        } else {
-            Some(MigrationLock::take(&self.path)?)
-        };
         let known = Self::latest_schema_version();
         let found = self.schema_version()?;
         if found > known {
@@ -590,7 +607,12 @@ fn check_sqlite_header(path: &Path, file_len: u64) -> Result<(), StoreError> {
         n => u64::from(n),
     };
     let pages = u64::from(be32(28));
-    if be32(92) == be32(24) && pages > 0 && pages * page_size > file_len {
+    // With a write-ahead log beside the file (after a crash, say) the log holds pages the file
+    // does not have yet, and SQLite recovers them: only a file without one must be complete.
+    let mut wal = path.as_os_str().to_owned();
+    wal.push("-wal");
+    let wal_has_frames = std::fs::metadata(PathBuf::from(wal)).is_ok_and(|m| m.len() > 0);
+    if !wal_has_frames && be32(92) == be32(24) && pages > 0 && pages * page_size > file_len {
         return Err(damaged(format!(
             "it holds {file_len} bytes but should hold {} pages of {page_size} bytes",
             pages
