@@ -819,3 +819,24 @@ fn cancelling_stops_the_report() {
     assert!(matches!(r, Err(sumpbook::report::ReportError::Cancelled)));
     assert_eq!(calls, vec![(1, 4), (2, 4)]);
 }
+
+#[test]
+fn a_report_to_a_device_writes_into_it_and_leaves_it_a_device() {
+    use std::os::unix::fs::FileTypeExt;
+    let dir = tempfile::tempdir().unwrap();
+    let db = demo_shop(dir.path());
+    ok(
+        dir.path(),
+        &[
+            "--db",
+            db.to_str().unwrap(),
+            "report",
+            "--unit",
+            "PR-01-M",
+            "--out",
+            "/dev/null",
+        ],
+    );
+    let kind = std::fs::metadata("/dev/null").unwrap().file_type();
+    assert!(kind.is_char_device(), "/dev/null was replaced");
+}

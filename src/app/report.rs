@@ -138,6 +138,11 @@ fn write_atomically(out: &Path, bytes: &[u8]) -> Result<(), AppError> {
     side.push(".part");
     let side = PathBuf::from(side);
     let fail = |e: std::io::Error| AppError::Failed(format!("cannot write {}: {e}", out.display()));
+    // A device or pipe (`/dev/null`, `/dev/stdout`) is written in place: renaming over it
+    // would replace the device with a regular file.
+    if std::fs::metadata(out).is_ok_and(|m| !m.is_file()) {
+        return std::fs::write(out, bytes).map_err(fail);
+    }
     std::fs::write(&side, bytes).map_err(fail)?;
     if let Err(e) = std::fs::rename(&side, out) {
         let _ = std::fs::remove_file(&side);
