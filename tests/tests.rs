@@ -1,3 +1,4 @@
+mod bench_plans;
 mod cli;
 #[cfg(feature = "gui")]
 mod gui;

@@ -1,0 +1,176 @@
+//! Fleet board adapter: the fleet status (worst first, as `app::status` orders it) as rows,
+//! with the state filter and the tag search applied to what is shown.
+
+use std::rc::Rc;
+
+use slint::ComponentHandle;
+
+use super::fmt::{dim_text, state_num};
+use super::ui::{FleetAdapter, FleetRow, Nav};
+use super::{model, s, unit, Ctx};
+use crate::app::status::{self, UnitStatus};
+use crate::health::indicators::Dim;
+use crate::health::{State, WorkKind};
+use crate::units::UnitSystem;
+
+pub(super) fn install(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<FleetAdapter>();
+    let c = Rc::downgrade(ctx);
+    a.on_filter_changed(move || {
+        if let Some(ctx) = c.upgrade() {
+            refresh(&ctx);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_open_unit(move |id| {
+        if let Some(ctx) = c.upgrade() {
+            unit::open(&ctx, i64::from(id));
+        }
+    });
+}
+
+/// The one or two figures that explain a unit's state: its worst flags, or when steady its
+/// key indicators.
+fn figures(u: &UnitStatus, sys: UnitSystem) -> String {
+    let flags: Vec<String> = u
+        .health
+        .flags
+        .iter()
+        .take(1)
+        .map(|f| f.what.clone())
+        .collect();
+    if !flags.is_empty() {
+        let more = u.health.flags.len().saturating_sub(1);
+        let mut t = flags.join(" · ");
+        if more > 0 {
+            t.push_str(&format!(
+                " (+{more} more flag{})",
+                if more == 1 { "" } else { "s" }
+            ));
+        }
+        return t;
+    }
+    let i = &u.health.indicators;
+    let mut parts = Vec::new();
+    if let Some(l) = i.lost_flow_pct {
+        parts.push(format!("lost flow {l:.1} %"));
+    }
+    if let Some(h) = i.heat_rise_k {
+        parts.push(format!("heat rise {}", dim_text(Dim::TempDiff, h, sys)));
+    }
+    if let Some(c) = &i.iso4406 {
+        parts.push(format!("ISO {c}"));
+    }
+    if parts.is_empty() {
+        "no readings yet".into()
+    } else {
+        parts.join(" · ")
+    }
+}
+
+fn next_due(u: &UnitStatus) -> (String, bool) {
+    match &u.next_due {
+        None => ("—".into(), false),
+        Some(w) => {
+            let when = if w.days_overdue > 0 {
+                format!("{} days late", w.days_overdue)
+            } else if w.days_overdue == 0 {
+                "today".into()
+            } else {
+                super::fmt::day(w.due)
+            };
+            let what = match w.kind {
+                WorkKind::Check => "check",
+                WorkKind::Sample => "sample",
+                WorkKind::FluidChange => "fluid change",
+                WorkKind::FilterChange => "filter change",
+            };
+            (format!("{what} {when}"), w.days_overdue > 0)
+        }
+    }
+}
+
+fn row(u: &UnitStatus, sys: UnitSystem) -> FleetRow {
+    let (due, overdue) = next_due(u);
+    let all_seen = !u.health.flags.is_empty() && u.health.flags.iter().all(|f| f.acknowledged);
+    FleetRow {
+        unit_id: u.unit_id as i32,
+        tag: s(&u.unit),
+        machine: s(format!("{} {}", u.machine, u.machine_name)),
+        state: state_num(u.state),
+        ack: if all_seen { s("seen") } else { s("") },
+        figures: s(figures(u, sys)),
+        last_check: s(u
+            .health
+            .last_check
+            .map(super::fmt::date)
+            .unwrap_or_else(|| "never".into())),
+        next_due: s(due),
+        overdue,
+    }
+}
+
+fn matches(u: &UnitStatus, state_filter: i32, search: &str) -> bool {
+    let state_ok = match state_filter {
+        1 => u.state == State::Act,
+        2 => u.state == State::Watch,
+        3 => u.state == State::Steady,
+        _ => true,
+    };
+    let q = search.trim().to_lowercase();
+    state_ok
+        && (q.is_empty()
+            || u.unit.to_lowercase().contains(&q)
+            || u.machine.to_lowercase().contains(&q)
+            || u.machine_name.to_lowercase().contains(&q))
+}
+
+pub(super) fn refresh(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<FleetAdapter>();
+    match status::fleet_status(&ctx.shop, None) {
+        Ok(fleet) => {
+            let sys = ctx.system.get();
+            let filter = a.get_state_filter();
+            let search = a.get_search().to_string();
+            let rows: Vec<FleetRow> = fleet
+                .units
+                .iter()
+                .filter(|u| matches(u, filter, &search))
+                .map(|u| row(u, sys))
+                .collect();
+            let c = fleet.counts;
+            a.set_summary(s(format!(
+                "{} units: {} act, {} watch, {} steady · as of {}",
+                fleet.units.len(),
+                c.act,
+                c.watch,
+                c.steady,
+                crate::app::entry::show_time(fleet.at)
+            )));
+            a.set_rows(model(rows));
+            a.set_message(s(""));
+            let nav = w.global::<Nav>();
+            nav.set_act_count(c.act as i32);
+            nav.set_watch_count(c.watch as i32);
+            let late = fleet
+                .units
+                .iter()
+                .flat_map(|u| u.health.work.iter())
+                .filter(|w| w.days_overdue > 0)
+                .count();
+            nav.set_overdue_count(late as i32);
+        }
+        Err(e) => a.set_message(s(super::err_text(&e))),
+    }
+}
+
+/// The worst unit (first on the board), for opening a unit page with no unit chosen.
+pub(super) fn first_unit(ctx: &Rc<Ctx>) -> Option<i64> {
+    status::fleet_status(&ctx.shop, None)
+        .ok()?
+        .units
+        .first()
+        .map(|u| u.unit_id)
+}

@@ -1,0 +1,49 @@
+//! Display helpers of the desktop app: the health engine's SI figures in the shop's units
+//! (through `app::figures`), states as numbers for the `.slint` side, dates.
+//!
+//! Conversion only; nothing here decides a state or a limit.
+
+use chrono::{DateTime, NaiveDate, Utc};
+
+use crate::app::figures;
+use crate::health::indicators::Dim;
+use crate::health::State;
+use crate::units::UnitSystem;
+
+/// The number the `.slint` state marks take: 0 steady, 1 watch, 2 act.
+pub fn state_num(s: State) -> i32 {
+    match s {
+        State::Steady => 0,
+        State::Watch => 1,
+        State::Act => 2,
+    }
+}
+
+/// The unit a dimension is shown in (the one formatter of `app::figures`, shared with the
+/// command line and the report).
+pub fn dim_unit(dim: Dim, sys: UnitSystem) -> &'static str {
+    figures::unit(dim, sys)
+}
+
+/// A value of the health engine (SI for physical dimensions) in the display unit.
+pub fn dim_value(dim: Dim, si: f64, sys: UnitSystem) -> f64 {
+    figures::value(dim, si, sys)
+}
+
+/// A figure with its unit: `36.4 L/min`, `7.2 K`.
+pub fn dim_text(dim: Dim, si: f64, sys: UnitSystem) -> String {
+    figures::text(dim, si, sys)
+}
+
+/// A change per week in the display unit (temperatures change as differences).
+pub fn slope_text(dim: Dim, per_week: f64, sys: UnitSystem) -> String {
+    format!("{}/wk", figures::change(dim, per_week, sys))
+}
+
+pub fn date(t: DateTime<Utc>) -> String {
+    crate::app::entry::show_date(t)
+}
+
+pub fn day(d: NaiveDate) -> String {
+    d.format("%Y-%m-%d").to_string()
+}

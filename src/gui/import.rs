@@ -1,0 +1,331 @@
+//! Import adapter: a path field, a preview with every bad row before anything is written, and
+//! the import itself on a worker thread with a progress bar and a cancel button. The rules
+//! (what a bad row is, all-or-nothing, cancel writes nothing) are `app::entry`'s and the
+//! importer's; this file runs them off the event loop and shows the results.
+
+use std::path::{Path, PathBuf};
+use std::rc::Rc;
+use std::sync::Arc;
+
+use slint::language::{StandardListViewItem, TableColumn};
+use slint::{ComponentHandle, ModelRc, VecModel};
+
+use super::ui::{ImportAdapter, ImportProblem};
+use super::{err_text, model, s, Ctx};
+use crate::app::entry::{self, Cancel, ImportPreview, ImportRun};
+use crate::exchange::{FileKind, ImportSummary};
+
+#[derive(Default)]
+pub(crate) struct ImportState {
+    /// The file and kind a successful preview accepted.
+    ready: Option<(PathBuf, FileKind)>,
+    cancel: Option<Arc<Cancel>>,
+}
+
+pub(super) fn install(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<ImportAdapter>();
+    let c = Rc::downgrade(ctx);
+    a.on_preview(move || {
+        if let Some(ctx) = c.upgrade() {
+            let Some(w) = ctx.win() else { return };
+            let path = w.global::<ImportAdapter>().get_path().to_string();
+            preview(&ctx, PathBuf::from(path.trim()));
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_start(move || {
+        if let Some(ctx) = c.upgrade() {
+            start(&ctx);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_cancel(move || {
+        if let Some(ctx) = c.upgrade() {
+            if let Some(flag) = ctx.import.borrow().cancel.as_ref() {
+                flag.cancel();
+            }
+        }
+    });
+}
+
+pub(super) fn refresh(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<ImportAdapter>();
+    if !a.get_running() && a.get_kind().is_empty() {
+        a.set_summary(s("Type the path of a CSV file and press Preview."));
+    }
+}
+
+fn kind_title(k: FileKind) -> &'static str {
+    match k {
+        FileKind::Units => "Unit register",
+        FileKind::Checks => "Walk-round checks",
+        FileKind::Samples => "Fluid samples",
+        FileKind::Events => "Events",
+    }
+}
+
+fn summary_text(sum: &ImportSummary) -> String {
+    let mut t = format!(
+        "{} rows: {} new, {} already stored",
+        sum.rows, sum.inserted, sum.unchanged
+    );
+    if sum.machines_added > 0 || sum.fluids_added > 0 {
+        t.push_str(&format!(
+            " ({} machines and {} fluids added with them)",
+            sum.machines_added, sum.fluids_added
+        ));
+    }
+    t
+}
+
+fn show_preview(ctx: &Rc<Ctx>, path: &Path, p: &ImportPreview) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<ImportAdapter>();
+    a.set_kind(s(kind_title(p.kind)));
+    let columns: Vec<TableColumn> = p
+        .header
+        .iter()
+        .enumerate()
+        .map(|(i, h)| {
+            // Wide enough for the title and the longest cell shown (about 9 px a character, plus
+            // the header's padding and sort mark).
+            let longest = p
+                .rows
+                .iter()
+                .filter_map(|r| r.get(i))
+                .map(|c| c.chars().count())
+                .max()
+                .unwrap_or(0);
+            let chars = h.chars().count().max(longest).min(40);
+            let mut c = TableColumn::default();
+            c.title = s(h);
+            c.min_width = (chars as f32 * 9.0 + 44.0).max(70.0);
+            c.width = c.min_width;
+            c
+        })
+        .collect();
+    a.set_columns(model(columns));
+    let rows: Vec<ModelRc<StandardListViewItem>> = p
+        .rows
+        .iter()
+        .map(|r| {
+            ModelRc::new(VecModel::from(
+                r.iter()
+                    .map(|c| StandardListViewItem::from(s(c)))
+                    .collect::<Vec<_>>(),
+            ))
+        })
+        .collect();
+    a.set_rows(model(rows));
+    match &p.outcome {
+        Ok(sum) => {
+            a.set_problems(model(Vec::new()));
+            a.set_summary(s(summary_text(sum)));
+            let can = sum.inserted > 0;
+            a.set_can_import(can);
+            a.set_message(s(if can {
+                "No problems found. Press Import to write the new rows (all in one go)."
+            } else {
+                "Everything in this file is already stored; importing would add nothing."
+            }));
+            a.set_message_level(0);
+            ctx.import.borrow_mut().ready = can.then(|| (path.to_path_buf(), p.kind));
+        }
+        Err(errors) => {
+            let problems: Vec<ImportProblem> = errors
+                .iter()
+                .map(|e| ImportProblem {
+                    line: s(e.line.to_string()),
+                    column: s(&e.column),
+                    reason: s(&e.reason),
+                })
+                .collect();
+            a.set_problems(model(problems));
+            a.set_summary(s(format!(
+                "{} problem(s) found; nothing can be imported until they are fixed.",
+                errors.len()
+            )));
+            a.set_can_import(false);
+            a.set_message(s(
+                "Fix the rows listed on the right in the file, then Preview again.",
+            ));
+            a.set_message_level(2);
+            ctx.import.borrow_mut().ready = None;
+        }
+    }
+}
+
+fn clear(a: &ImportAdapter<'_>) {
+    a.set_kind(s(""));
+    a.set_problems(model(Vec::new()));
+    a.set_rows(model(Vec::new()));
+    a.set_columns(model(Vec::new()));
+    a.set_can_import(false);
+    a.set_progress(0.0);
+    a.set_progress_text(s(""));
+}
+
+/// Previews on the event-loop thread (the screenshot script and small files).
+pub(super) fn preview_now(ctx: &Rc<Ctx>, path: &Path) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<ImportAdapter>();
+    a.set_path(s(path.display().to_string()));
+    clear(&a);
+    let cancel = Cancel::new();
+    match entry::preview_import(&ctx.db_path, path, &|_| {}, &cancel) {
+        Ok(Some(p)) => show_preview(ctx, path, &p),
+        Ok(None) => {}
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+}
+
+type Job<T> = Box<dyn FnOnce(&dyn Fn(f32), &Cancel) -> T + Send>;
+
+/// Runs `job` on a worker thread with progress and cancel wired to the screen; `done` gets
+/// the result back on the event loop.
+fn run_job<T: Send + 'static>(
+    ctx: &Rc<Ctx>,
+    label: &'static str,
+    job: Job<T>,
+    done: impl FnOnce(&Rc<Ctx>, T) + 'static,
+) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<ImportAdapter>();
+    a.set_running(true);
+    a.set_progress(0.0);
+    a.set_progress_text(s(label));
+    a.set_message(s(""));
+    let cancel = Arc::new(Cancel::new());
+    ctx.import.borrow_mut().cancel = Some(cancel.clone());
+    let weak = w.as_weak();
+    let ctx_weak = Rc::downgrade(ctx);
+    // The result travels back through a channel read on the event loop, where the Rc lives.
+    let (tx, rx) = std::sync::mpsc::channel::<T>();
+    let rx = std::cell::RefCell::new(Some((rx, done)));
+    let poll = slint::Timer::default();
+    let timer = Rc::new(poll);
+    let t2 = timer.clone();
+    timer.start(
+        slint::TimerMode::Repeated,
+        std::time::Duration::from_millis(50),
+        move || {
+            let ready = rx.borrow().as_ref().and_then(|(r, _)| r.try_recv().ok());
+            if let Some(result) = ready {
+                t2.stop();
+                if let (Some((_, done)), Some(ctx)) = (rx.borrow_mut().take(), ctx_weak.upgrade()) {
+                    if let Some(w) = ctx.win() {
+                        w.global::<ImportAdapter>().set_running(false);
+                    }
+                    ctx.import.borrow_mut().cancel = None;
+                    done(&ctx, result);
+                }
+            }
+        },
+    );
+    std::thread::spawn(move || {
+        let progress = |f: f32| {
+            let _ = weak.upgrade_in_event_loop(move |w| {
+                let a = w.global::<ImportAdapter>();
+                a.set_progress(f);
+                a.set_progress_text(s(format!("{label} {:.0} %", f * 100.0)));
+            });
+        };
+        let result = job(&progress, &cancel);
+        let _ = tx.send(result);
+    });
+}
+
+fn preview(ctx: &Rc<Ctx>, path: PathBuf) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<ImportAdapter>();
+    clear(&a);
+    if path.as_os_str().is_empty() {
+        a.set_message(s("Type the path of a CSV file first."));
+        a.set_message_level(2);
+        return;
+    }
+    let db = ctx.db_path.clone();
+    let file = path.clone();
+    run_job(
+        ctx,
+        "checking",
+        Box::new(move |progress, cancel| entry::preview_import(&db, &file, progress, cancel)),
+        move |ctx, result| {
+            let Some(w) = ctx.win() else { return };
+            let a = w.global::<ImportAdapter>();
+            a.set_progress_text(s(""));
+            a.set_progress(0.0);
+            match result {
+                Ok(Some(p)) => show_preview(ctx, &path, &p),
+                Ok(None) => {
+                    a.set_message(s("Preview cancelled."));
+                    a.set_message_level(0);
+                }
+                Err(e) => {
+                    a.set_message(s(err_text(&e)));
+                    a.set_message_level(2);
+                }
+            }
+        },
+    );
+}
+
+fn start(ctx: &Rc<Ctx>) {
+    let Some((file, kind)) = ctx.import.borrow().ready.clone() else {
+        return;
+    };
+    let db = ctx.db_path.clone();
+    run_job(
+        ctx,
+        "importing",
+        Box::new(move |progress, cancel| entry::run_import(&db, kind, &file, progress, cancel)),
+        move |ctx, result| {
+            let Some(w) = ctx.win() else { return };
+            let a = w.global::<ImportAdapter>();
+            ctx.import.borrow_mut().ready = None;
+            a.set_can_import(false);
+            match result {
+                Ok(ImportRun::Done(sum)) => {
+                    a.set_progress(1.0);
+                    a.set_progress_text(s("done"));
+                    a.set_message(s(format!("Imported. {}", summary_text(&sum))));
+                    a.set_message_level(0);
+                    super::refresh_all(ctx);
+                }
+                Ok(ImportRun::Cancelled) => {
+                    a.set_progress(0.0);
+                    a.set_progress_text(s("cancelled"));
+                    a.set_message(s("Import cancelled; nothing was written."));
+                    a.set_message_level(1);
+                }
+                Ok(ImportRun::Refused(errors)) => {
+                    a.set_progress_text(s(""));
+                    a.set_problems(model(
+                        errors
+                            .iter()
+                            .map(|e| ImportProblem {
+                                line: s(e.line.to_string()),
+                                column: s(&e.column),
+                                reason: s(&e.reason),
+                            })
+                            .collect(),
+                    ));
+                    a.set_message(s(
+                        "The file changed since the preview and has bad rows; nothing was written.",
+                    ));
+                    a.set_message_level(2);
+                }
+                Err(e) => {
+                    a.set_progress_text(s(""));
+                    a.set_message(s(err_text(&e)));
+                    a.set_message_level(2);
+                }
+            }
+        },
+    );
+}

@@ -1,0 +1,523 @@
+//! The desktop app: the slint window of `ui/app.slint` and the adapters that feed it.
+//!
+//! Each screen has one adapter file here that turns application-layer results (`crate::app`)
+//! into the slint models of its `…Adapter` global and answers that global's callbacks by
+//! calling the application layer again. No SQL and no business rule lives in this module:
+//! what is refused, unusual, due or flagged is decided by `app` and `health`; this module only
+//! shows it. `charts` draws the unit page's charts with plotters.
+
+use std::cell::{Cell, RefCell};
+use std::path::{Path, PathBuf};
+use std::rc::Rc;
+
+use chrono::{DateTime, Utc};
+use slint::{ComponentHandle, Model, ModelRc, SharedString, VecModel};
+
+use crate::app::entry::{self, Field, Problem, Verdict};
+use crate::app::shop::Shop;
+use crate::app::AppError;
+use crate::units::UnitSystem;
+
+pub mod charts;
+pub mod fmt;
+
+mod about;
+mod fleet;
+mod import;
+mod samples;
+mod setup;
+mod unit;
+mod walk;
+mod work;
+
+#[allow(clippy::all, clippy::pedantic, unused_qualifications)]
+pub mod ui {
+    slint::include_modules!();
+}
+
+pub use ui::AppWindow;
+use ui::{FormField, Nav};
+
+/// Screens, as `Nav.screen` numbers them.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Screen {
+    Fleet = 0,
+    Unit = 1,
+    Walk = 2,
+    Samples = 3,
+    Work = 4,
+    Import = 5,
+    Setup = 6,
+    About = 7,
+}
+
+impl Screen {
+    pub const ALL: [Screen; 8] = [
+        Screen::Fleet,
+        Screen::Unit,
+        Screen::Walk,
+        Screen::Samples,
+        Screen::Work,
+        Screen::Import,
+        Screen::Setup,
+        Screen::About,
+    ];
+
+    fn from_index(i: i32) -> Screen {
+        Screen::ALL
+            .iter()
+            .copied()
+            .find(|s| *s as i32 == i)
+            .unwrap_or(Screen::Fleet)
+    }
+}
+
+/// What every adapter shares: the shop, the window, the unit system and each screen's state.
+pub(crate) struct Ctx {
+    pub shop: Shop,
+    pub db_path: PathBuf,
+    pub window: slint::Weak<AppWindow>,
+    pub system: Cell<UnitSystem>,
+    /// The unit the unit page, the walk-round cursor and the sample form start from.
+    pub unit_id: Cell<Option<i64>>,
+    pub unit: RefCell<unit::UnitState>,
+    pub walk: RefCell<walk::WalkState>,
+    pub sample: RefCell<samples::SampleState>,
+    pub work: RefCell<work::WorkState>,
+    pub setup: RefCell<setup::SetupState>,
+    pub import: RefCell<import::ImportState>,
+}
+
+impl Ctx {
+    pub fn now(&self) -> DateTime<Utc> {
+        Utc::now()
+    }
+
+    pub fn win(&self) -> Option<AppWindow> {
+        self.window.upgrade()
+    }
+}
+
+/// The running app: its window and state. Tests drive it through the window.
+pub struct App {
+    window: AppWindow,
+    ctx: Rc<Ctx>,
+}
+
+fn ui_error(e: slint::PlatformError) -> AppError {
+    AppError::Failed(format!("cannot open the window: {e}"))
+}
+
+impl App {
+    /// Builds the window on the shop at `db` (which must already be a shop file).
+    pub fn open(db: &Path) -> Result<App, AppError> {
+        charts::register_fonts();
+        let shop = Shop::open(db)?;
+        let system = entry::shop_settings(&shop)?.unit_system;
+        let window = AppWindow::new().map_err(ui_error)?;
+        let ctx = Rc::new(Ctx {
+            shop,
+            db_path: db.to_path_buf(),
+            window: window.as_weak(),
+            system: Cell::new(system),
+            unit_id: Cell::new(None),
+            unit: RefCell::new(unit::UnitState::default()),
+            walk: RefCell::new(walk::WalkState::default()),
+            sample: RefCell::new(samples::SampleState::default()),
+            work: RefCell::new(work::WorkState::default()),
+            setup: RefCell::new(setup::SetupState::default()),
+            import: RefCell::new(import::ImportState::default()),
+        });
+        let app = App { window, ctx };
+        app.install();
+        refresh_all(&app.ctx);
+        Ok(app)
+    }
+
+    fn install(&self) {
+        let nav = self.window.global::<Nav>();
+        let ctx = Rc::downgrade(&self.ctx);
+        nav.on_navigate(move |i| {
+            if let Some(ctx) = ctx.upgrade() {
+                show(&ctx, Screen::from_index(i));
+            }
+        });
+        fleet::install(&self.ctx);
+        unit::install(&self.ctx);
+        walk::install(&self.ctx);
+        samples::install(&self.ctx);
+        work::install(&self.ctx);
+        import::install(&self.ctx);
+        setup::install(&self.ctx);
+        about::install(&self.ctx);
+    }
+
+    pub fn window(&self) -> &AppWindow {
+        &self.window
+    }
+
+    /// Shows a screen, refreshed from the shop.
+    pub fn show(&self, screen: Screen) {
+        show(&self.ctx, screen);
+    }
+
+    /// Opens a unit's page.
+    pub fn open_unit(&self, unit_id: i64) {
+        unit::open(&self.ctx, unit_id);
+    }
+
+    /// Runs the event loop until the window is closed.
+    pub fn run(&self) -> Result<(), AppError> {
+        self.window.run().map_err(ui_error)
+    }
+
+    /// Runs the app, stepping through `steps` and saving a snapshot of the window after each
+    /// into `dir` (for `scripts/screenshots.sh`); quits at the end.
+    pub fn run_screenshots(
+        &self,
+        dir: &Path,
+        import_file: Option<PathBuf>,
+    ) -> Result<(), AppError> {
+        std::fs::create_dir_all(dir)
+            .map_err(|e| AppError::Failed(format!("{}: {e}", dir.display())))?;
+        let steps = screenshot_steps(import_file);
+        let ctx = Rc::downgrade(&self.ctx);
+        let dir = dir.to_path_buf();
+        let index = Rc::new(Cell::new(0usize));
+        let timer = Rc::new(slint::Timer::default());
+        let t = timer.clone();
+        let phase = Rc::new(Cell::new(false));
+        timer.start(
+            slint::TimerMode::Repeated,
+            std::time::Duration::from_millis(900),
+            move || {
+                let Some(ctx) = ctx.upgrade() else { return };
+                let i = index.get();
+                if i >= steps.len() {
+                    t.stop();
+                    let _ = slint::quit_event_loop();
+                    return;
+                }
+                let (name, step) = &steps[i];
+                if !phase.get() {
+                    step(&ctx);
+                    phase.set(true);
+                } else {
+                    if let Some(w) = ctx.win() {
+                        if let Err(e) =
+                            save_snapshot(&w, &dir.join(format!("{:02}-{name}.ppm", i + 1)))
+                        {
+                            eprintln!("sumpbook: screenshot {name}: {e}");
+                        }
+                    }
+                    phase.set(false);
+                    index.set(i + 1);
+                }
+            },
+        );
+        self.window.run().map_err(ui_error)
+    }
+}
+
+type Step = Box<dyn Fn(&Rc<Ctx>)>;
+
+fn screenshot_steps(import_file: Option<PathBuf>) -> Vec<(&'static str, Step)> {
+    let tab = |t: i32| -> Step {
+        Box::new(move |ctx: &Rc<Ctx>| {
+            if ctx.unit_id.get().is_none() {
+                if let Some(first) = fleet::first_unit(ctx) {
+                    unit::open(ctx, first);
+                }
+            }
+            show(ctx, Screen::Unit);
+            if let Some(w) = ctx.win() {
+                w.global::<ui::UnitAdapter>().set_tab(t);
+            }
+        })
+    };
+    vec![
+        (
+            "fleet-board",
+            Box::new(|ctx: &Rc<Ctx>| show(ctx, Screen::Fleet)),
+        ),
+        (
+            "unit-overview",
+            Box::new(|ctx: &Rc<Ctx>| {
+                if let Some(first) = fleet::first_unit(ctx) {
+                    unit::open(ctx, first);
+                }
+            }),
+        ),
+        ("unit-charts", tab(1)),
+        (
+            "unit-history",
+            Box::new(move |ctx: &Rc<Ctx>| {
+                tab(2)(ctx);
+                unit::select_first_row(ctx);
+            }),
+        ),
+        (
+            "walk-round",
+            Box::new(|ctx: &Rc<Ctx>| {
+                show(ctx, Screen::Walk);
+                walk::demo_entry(ctx);
+            }),
+        ),
+        (
+            "samples",
+            Box::new(|ctx: &Rc<Ctx>| {
+                show(ctx, Screen::Samples);
+                samples::demo_entry(ctx);
+            }),
+        ),
+        (
+            "work-due",
+            Box::new(|ctx: &Rc<Ctx>| {
+                show(ctx, Screen::Work);
+                work::choose_first_to_mark(ctx);
+            }),
+        ),
+        (
+            "import",
+            Box::new(move |ctx: &Rc<Ctx>| {
+                show(ctx, Screen::Import);
+                if let Some(f) = &import_file {
+                    import::preview_now(ctx, f);
+                }
+            }),
+        ),
+        (
+            "setup-shop",
+            Box::new(|ctx: &Rc<Ctx>| setup::show_tab(ctx, 0)),
+        ),
+        (
+            "setup-units",
+            Box::new(|ctx: &Rc<Ctx>| setup::show_tab(ctx, 2)),
+        ),
+        (
+            "setup-limits",
+            Box::new(|ctx: &Rc<Ctx>| setup::show_tab(ctx, 4)),
+        ),
+        ("about", Box::new(|ctx: &Rc<Ctx>| show(ctx, Screen::About))),
+        (
+            "unit-overview-us",
+            Box::new(|ctx: &Rc<Ctx>| {
+                // The same unit after the metric/US switch of Setup.
+                if let Ok(mut st) = entry::shop_settings(&ctx.shop) {
+                    st.unit_system = UnitSystem::Us;
+                    let _ = entry::save_settings(&ctx.shop, &st, "screenshots", "show US units");
+                }
+                refresh_all(ctx);
+                if let Some(w) = ctx.win() {
+                    w.global::<ui::UnitAdapter>().set_tab(0);
+                }
+                show(ctx, Screen::Unit);
+            }),
+        ),
+        ("unit-charts-us", tab(1)),
+    ]
+}
+
+/// Writes the window's pixels as a binary PPM (the screenshot script converts it to PNG).
+fn save_snapshot(w: &AppWindow, path: &Path) -> Result<(), String> {
+    let shot = w.window().take_snapshot().map_err(|e| e.to_string())?;
+    let mut out = format!("P6\n{} {}\n255\n", shot.width(), shot.height()).into_bytes();
+    for p in shot.as_slice() {
+        out.extend_from_slice(&[p.r, p.g, p.b]);
+    }
+    std::fs::write(path, out).map_err(|e| e.to_string())
+}
+
+/// Switches to a screen and refreshes it from the shop.
+pub(crate) fn show(ctx: &Rc<Ctx>, screen: Screen) {
+    let Some(w) = ctx.win() else { return };
+    match screen {
+        Screen::Fleet => fleet::refresh(ctx),
+        Screen::Unit => unit::refresh(ctx),
+        Screen::Walk => walk::refresh(ctx),
+        Screen::Samples => samples::refresh(ctx),
+        Screen::Work => work::refresh(ctx),
+        Screen::Import => import::refresh(ctx),
+        Screen::Setup => setup::refresh(ctx),
+        Screen::About => about::refresh(ctx),
+    }
+    w.global::<Nav>().set_screen(screen as i32);
+}
+
+/// Refreshes every screen (after the unit system changed, an import, ...).
+pub(crate) fn refresh_all(ctx: &Rc<Ctx>) {
+    if let Ok(s) = entry::shop_settings(&ctx.shop) {
+        ctx.system.set(s.unit_system);
+        if let Some(w) = ctx.win() {
+            let nav = w.global::<Nav>();
+            nav.set_shop_name(s.shop_name.into());
+            nav.set_db_file(ctx.db_path.display().to_string().into());
+            nav.set_unit_system(
+                match s.unit_system {
+                    UnitSystem::Metric => "metric",
+                    UnitSystem::Us => "US customary",
+                }
+                .into(),
+            );
+        }
+    }
+    fleet::refresh(ctx);
+    unit::refresh(ctx);
+    walk::refresh(ctx);
+    samples::refresh(ctx);
+    work::refresh(ctx);
+    setup::refresh(ctx);
+    about::refresh(ctx);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Shared model helpers
+
+pub(crate) fn s(text: impl AsRef<str>) -> SharedString {
+    SharedString::from(text.as_ref())
+}
+
+pub(crate) fn model<T: Clone + 'static>(items: Vec<T>) -> ModelRc<T> {
+    ModelRc::new(VecModel::from(items))
+}
+
+pub(crate) fn strings(items: impl IntoIterator<Item = String>) -> ModelRc<SharedString> {
+    model(items.into_iter().map(SharedString::from).collect())
+}
+
+/// The slint form rows of entry fields, with each field's problem beside it.
+pub(crate) fn form_rows(
+    fields: &[Field],
+    texts: &entry::Entered,
+    problems: &[Problem],
+) -> Vec<FormField> {
+    fields
+        .iter()
+        .map(|f| {
+            let text = texts
+                .0
+                .iter()
+                .find(|(k, _)| *k == f.key)
+                .map(|(_, v)| v.clone())
+                .unwrap_or_else(|| f.value.clone());
+            let problem = problems
+                .iter()
+                .filter(|p| p.field == f.key)
+                .max_by_key(|p| p.verdict);
+            FormField {
+                key: s(&f.key),
+                label: s(&f.label),
+                unit: s(&f.unit),
+                choice: f.choices.iter().position(|c| *c == text).unwrap_or(0) as i32,
+                choices: strings(f.choices.clone()),
+                text: s(&text),
+                placeholder: s(&f.placeholder),
+                hint: s(&f.hint),
+                message: problem.map(|p| s(&p.message)).unwrap_or_default(),
+                level: match problem.map(|p| p.verdict) {
+                    Some(Verdict::Refused) => 2,
+                    Some(Verdict::Unusual) => 1,
+                    None => 0,
+                },
+            }
+        })
+        .collect()
+}
+
+/// Updates the problem shown beside each row of a form model in place (so a field being
+/// typed in keeps its focus and text).
+pub(crate) fn mark_problems(rows: &ModelRc<FormField>, problems: &[Problem]) {
+    for i in 0..rows.row_count() {
+        let Some(mut r) = rows.row_data(i) else {
+            continue;
+        };
+        let problem = problems
+            .iter()
+            .filter(|p| p.field == r.key.as_str())
+            .max_by_key(|p| p.verdict);
+        let (message, level) = match problem {
+            Some(p) => (
+                s(&p.message),
+                if p.verdict == Verdict::Refused { 2 } else { 1 },
+            ),
+            None => (SharedString::default(), 0),
+        };
+        if r.message != message || r.level != level {
+            r.message = message;
+            r.level = level;
+            rows.set_row_data(i, r);
+        }
+    }
+}
+
+/// One line summing up problems that belong to no single field, or all of them.
+pub(crate) fn problems_line(problems: &[Problem]) -> (String, i32) {
+    let refused: Vec<&Problem> = problems
+        .iter()
+        .filter(|p| p.verdict == Verdict::Refused)
+        .collect();
+    if !refused.is_empty() {
+        let general: Vec<&str> = refused
+            .iter()
+            .filter(|p| p.field.is_empty())
+            .map(|p| p.message.as_str())
+            .collect();
+        let n = refused.len();
+        let text = if general.is_empty() {
+            format!(
+                "Not saved: {n} value{} refused — {}",
+                if n == 1 { "" } else { "s" },
+                refused
+                    .iter()
+                    .map(|p| p.message.as_str())
+                    .collect::<Vec<_>>()
+                    .join("; ")
+            )
+        } else {
+            format!("Not saved: {}", general.join("; "))
+        };
+        return (text, 2);
+    }
+    if !problems.is_empty() {
+        return (
+            format!(
+                "Unusual: {} — check, then press Enter (or Save) again to keep the values as typed.",
+                problems.iter().map(|p| p.message.as_str()).collect::<Vec<_>>().join("; ")
+            ),
+            1,
+        );
+    }
+    (String::new(), 0)
+}
+
+/// The message of an application error, for a message bar.
+pub(crate) fn err_text(e: &AppError) -> String {
+    e.to_string()
+}
+
+/// Opens the app on `db`, or on the default shop file when `None` (created with the demo shop
+/// on first start), and runs it until the window closes. A `--db` file must already be a shop
+/// (`sumpbook --db FILE init` or `demo` makes one).
+pub fn run(db: Option<&Path>) -> Result<(), AppError> {
+    let path = match db {
+        Some(p) => {
+            if !p.exists() {
+                return Err(AppError::BadInput(format!(
+                    "{}: no such file; make a shop there with `sumpbook --db {} init` (empty) or `demo`",
+                    p.display(),
+                    p.display()
+                )));
+            }
+            p.to_path_buf()
+        }
+        None => Shop::open_default()?.path().to_path_buf(),
+    };
+    let app = App::open(&path)?;
+    match std::env::var_os("SUMPBOOK_SCREENSHOTS") {
+        Some(dir) => app.run_screenshots(
+            Path::new(&dir),
+            std::env::var_os("SUMPBOOK_SCREENSHOT_IMPORT").map(PathBuf::from),
+        ),
+        None => app.run(),
+    }
+}

@@ -1,0 +1,420 @@
+//! Setup adapter: shop settings (the metric/US switch refreshes every screen), machines,
+//! units and fluids (forms from `app::entry`), and limits (shop defaults and per-unit).
+
+use std::rc::Rc;
+
+use slint::ComponentHandle;
+
+use super::ui::{LimitRow, SetupAdapter};
+use super::{err_text, form_rows, mark_problems, model, problems_line, s, strings, Ctx, Screen};
+use crate::app::entry::{self, Entered, Field, LimitEdit, Record, SaveOutcome};
+use crate::app::work::LimitRow as AppLimitRow;
+use crate::health::limits::LimitOrigin;
+use crate::model::Settings;
+use crate::units::UnitSystem;
+
+#[derive(Default)]
+pub(crate) struct SetupState {
+    /// Ids of the records listed (machines, units or fluids, by tab).
+    ids: Vec<i64>,
+    /// The record in the form (`None`: a new one).
+    editing: Option<i64>,
+    fields: Vec<Field>,
+    entered: Entered,
+    /// Unit tags of the limit scopes after "Shop defaults".
+    scopes: Vec<String>,
+    limits: Vec<AppLimitRow>,
+    limit_edits: Vec<LimitEdit>,
+}
+
+fn record_of(tab: i32) -> Option<Record> {
+    match tab {
+        1 => Some(Record::Machine),
+        2 => Some(Record::Unit),
+        3 => Some(Record::Fluid),
+        _ => None,
+    }
+}
+
+pub(super) fn install(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<SetupAdapter>();
+    let c = Rc::downgrade(ctx);
+    a.on_tab_changed(move |_| {
+        if let Some(ctx) = c.upgrade() {
+            if let Some(w) = ctx.win() {
+                w.global::<SetupAdapter>().set_message(s(""));
+            }
+            refresh(&ctx);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_save_shop(move || {
+        if let Some(ctx) = c.upgrade() {
+            save_shop(&ctx);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_choose_record(move |i| {
+        if let Some(ctx) = c.upgrade() {
+            let id = ctx.setup.borrow().ids.get(i as usize).copied();
+            load_record(&ctx, id);
+            if let Some(w) = ctx.win() {
+                w.global::<SetupAdapter>().set_record_index(i);
+            }
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_new_record(move || {
+        if let Some(ctx) = c.upgrade() {
+            load_record(&ctx, None);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_field_edited(move |i, t| {
+        if let Some(ctx) = c.upgrade() {
+            let mut st = ctx.setup.borrow_mut();
+            if let Some(key) = st.fields.get(i as usize).map(|f| f.key.clone()) {
+                st.entered.set(&key, t.as_str());
+            }
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_save_record(move || {
+        if let Some(ctx) = c.upgrade() {
+            save_record(&ctx);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_choose_scope(move |_| {
+        if let Some(ctx) = c.upgrade() {
+            load_limits(&ctx);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_limit_edited(move |i, which, t| {
+        if let Some(ctx) = c.upgrade() {
+            let mut st = ctx.setup.borrow_mut();
+            if let Some(e) = st.limit_edits.get_mut(i as usize) {
+                if which == 0 {
+                    e.watch = t.to_string();
+                } else {
+                    e.act = t.to_string();
+                }
+            }
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_save_limits(move || {
+        if let Some(ctx) = c.upgrade() {
+            save_limits(&ctx);
+        }
+    });
+}
+
+/// Shows setup on one tab (0 shop, 1 machines, 2 units, 3 fluids, 4 limits).
+pub(super) fn show_tab(ctx: &Rc<Ctx>, tab: i32) {
+    if let Some(w) = ctx.win() {
+        w.global::<SetupAdapter>().set_tab(tab);
+    }
+    super::show(ctx, Screen::Setup);
+}
+
+pub(super) fn refresh(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<SetupAdapter>();
+    match entry::shop_settings(&ctx.shop) {
+        Ok(st) => {
+            a.set_shop_name(s(&st.shop_name));
+            a.set_unit_system(match st.unit_system {
+                UnitSystem::Metric => 0,
+                UnitSystem::Us => 1,
+            });
+            a.set_time_zone(s(&st.time_zone));
+        }
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+    let tab = a.get_tab();
+    if let Some(kind) = record_of(tab) {
+        load_list(ctx, kind);
+        let editing = ctx.setup.borrow().editing;
+        let still_there = editing.is_some_and(|id| ctx.setup.borrow().ids.contains(&id));
+        load_record(
+            ctx,
+            if still_there {
+                editing
+            } else {
+                ctx.setup.borrow().ids.first().copied()
+            },
+        );
+    }
+    if tab == 4 {
+        load_limits(ctx);
+    }
+}
+
+fn load_list(ctx: &Rc<Ctx>, kind: Record) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<SetupAdapter>();
+    match entry::records(&ctx.shop, kind) {
+        Ok(list) => {
+            a.set_records(strings(list.iter().map(|(_, t)| t.clone())));
+            a.set_new_label(s(match kind {
+                Record::Machine => "New machine",
+                Record::Unit => "New unit",
+                Record::Fluid => "New fluid",
+            }));
+            ctx.setup.borrow_mut().ids = list.into_iter().map(|(id, _)| id).collect();
+        }
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+}
+
+fn load_record(ctx: &Rc<Ctx>, id: Option<i64>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<SetupAdapter>();
+    let Some(kind) = record_of(a.get_tab()) else {
+        return;
+    };
+    match entry::record_fields(&ctx.shop, kind, id) {
+        Ok(fields) => {
+            let entered = Entered::from_fields(&fields);
+            a.set_fields(model(form_rows(&fields, &entered, &[])));
+            let name = match kind {
+                Record::Machine => "machine",
+                Record::Unit => "unit",
+                Record::Fluid => "fluid",
+            };
+            let title = match id {
+                Some(_) => format!(
+                    "Edit {name} {}",
+                    fields
+                        .iter()
+                        .find(|f| f.key == "tag" || f.key == "name")
+                        .map(|f| f.value.as_str())
+                        .unwrap_or("")
+                ),
+                None => format!("New {name}"),
+            };
+            a.set_record_title(s(title));
+            let index = id
+                .and_then(|id| ctx.setup.borrow().ids.iter().position(|x| *x == id))
+                .map(|i| i as i32)
+                .unwrap_or(-1);
+            a.set_record_index(index);
+            let mut st = ctx.setup.borrow_mut();
+            st.editing = id;
+            st.fields = fields;
+            st.entered = entered;
+        }
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+}
+
+fn save_shop(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<SetupAdapter>();
+    let new = Settings {
+        shop_name: a.get_shop_name().trim().to_string(),
+        unit_system: if a.get_unit_system() == 1 {
+            UnitSystem::Us
+        } else {
+            UnitSystem::Metric
+        },
+        time_zone: a.get_time_zone().trim().to_string(),
+    };
+    match entry::save_settings(&ctx.shop, &new, &a.get_by(), &a.get_reason()) {
+        Ok(()) => {
+            a.set_reason(s(""));
+            super::refresh_all(ctx);
+            a.set_message(s(format!(
+                "Saved. Figures are now shown in {} units.",
+                match new.unit_system {
+                    UnitSystem::Metric => "metric",
+                    UnitSystem::Us => "US customary",
+                }
+            )));
+            a.set_message_level(0);
+        }
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+}
+
+fn save_record(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<SetupAdapter>();
+    let Some(kind) = record_of(a.get_tab()) else {
+        return;
+    };
+    let (id, entered) = {
+        let st = ctx.setup.borrow();
+        (st.editing, st.entered.clone())
+    };
+    match entry::save_record(&ctx.shop, kind, id, &entered, &a.get_by(), &a.get_reason()) {
+        Ok(SaveOutcome::Saved(new_id)) => {
+            a.set_reason(s(""));
+            load_list(ctx, kind);
+            load_record(ctx, Some(new_id));
+            a.set_message(s(if id.is_some() {
+                "Saved; the old values are kept in the edit history."
+            } else {
+                "Added."
+            }));
+            a.set_message_level(0);
+            super::fleet::refresh(ctx);
+        }
+        Ok(SaveOutcome::Refused(p)) | Ok(SaveOutcome::NeedsConfirmation(p)) => {
+            mark_problems(&a.get_fields(), &p);
+            let (text, level) = problems_line(&p);
+            a.set_message(s(text));
+            a.set_message_level(level);
+        }
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+}
+
+fn origin(o: LimitOrigin) -> &'static str {
+    match o {
+        LimitOrigin::Builtin => "built-in",
+        LimitOrigin::Shop => "shop",
+        LimitOrigin::Unit => "this unit",
+    }
+}
+
+fn load_limits(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<SetupAdapter>();
+    let tags: Vec<String> = entry::route(&ctx.shop)
+        .unwrap_or_default()
+        .into_iter()
+        .map(|r| r.tag)
+        .collect();
+    let mut names = vec!["Shop defaults".to_string()];
+    names.extend(tags.iter().map(|t| format!("Unit {t}")));
+    a.set_limit_scopes(strings(names));
+    let scope_i = a.get_limit_scope().max(0) as usize;
+    let unit = scope_i.checked_sub(1).and_then(|i| tags.get(i)).cloned();
+    match entry::limits(&ctx.shop, unit.as_deref()) {
+        Ok(view) => {
+            let rows: Vec<LimitRow> = view
+                .rows
+                .iter()
+                .map(|r| {
+                    let f = |v: Option<f64>| v.map(|x| format!("{x}")).unwrap_or_default();
+                    let threshold = r.shape == "threshold";
+                    let src = if threshold {
+                        format!(
+                            "watch: {}, act: {}",
+                            origin(r.watch_origin),
+                            origin(r.act_origin)
+                        )
+                    } else {
+                        origin(r.act_origin).to_string()
+                    };
+                    LimitRow {
+                        key: s(&r.key),
+                        label: s(format!(
+                            "{}{}",
+                            r.description,
+                            r.compare
+                                .as_ref()
+                                .map(|c| format!(" ({c})"))
+                                .unwrap_or_default()
+                        )),
+                        unit: s(&r.unit),
+                        watch: s(if threshold { f(r.watch) } else { String::new() }),
+                        act: s(f(r.act)),
+                        source: s(src),
+                    }
+                })
+                .collect();
+            a.set_limits(model(rows));
+            let mut st = ctx.setup.borrow_mut();
+            st.limit_edits = view
+                .rows
+                .iter()
+                .map(|r| LimitEdit {
+                    key: r.key.clone(),
+                    watch: if r.shape == "threshold" {
+                        r.watch.map(|x| format!("{x}")).unwrap_or_default()
+                    } else {
+                        String::new()
+                    },
+                    act: r.act.map(|x| format!("{x}")).unwrap_or_default(),
+                })
+                .collect();
+            st.limits = view.rows;
+            st.scopes = tags;
+        }
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+}
+
+fn save_limits(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<SetupAdapter>();
+    let scope_i = a.get_limit_scope().max(0) as usize;
+    let (unit, changed) = {
+        let st = ctx.setup.borrow();
+        let unit = scope_i
+            .checked_sub(1)
+            .and_then(|i| st.scopes.get(i))
+            .cloned();
+        let fmt = |v: Option<f64>| v.map(|x| format!("{x}")).unwrap_or_default();
+        let changed: Vec<LimitEdit> = st
+            .limit_edits
+            .iter()
+            .zip(st.limits.iter())
+            .filter(|(e, r)| {
+                let w0 = if r.shape == "threshold" {
+                    fmt(r.watch)
+                } else {
+                    String::new()
+                };
+                e.watch.trim() != w0 || e.act.trim() != fmt(r.act)
+            })
+            .map(|(e, _)| e.clone())
+            .collect();
+        (unit, changed)
+    };
+    if changed.is_empty() {
+        a.set_message(s("Nothing changed."));
+        a.set_message_level(0);
+        return;
+    }
+    match entry::save_limits(&ctx.shop, unit.as_deref(), &changed, &a.get_by()) {
+        Ok(SaveOutcome::Saved(n)) => {
+            load_limits(ctx);
+            a.set_message(s(format!("{n} limit(s) saved.")));
+            a.set_message_level(0);
+            super::fleet::refresh(ctx);
+        }
+        Ok(SaveOutcome::Refused(p)) | Ok(SaveOutcome::NeedsConfirmation(p)) => {
+            let (text, level) = problems_line(&p);
+            a.set_message(s(text));
+            a.set_message_level(level);
+        }
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+}

@@ -1,0 +1,299 @@
+//! Walk-round adapter: the route, one check form per unit (built by `app::entry`), and the
+//! verdicts of saving — refused with the reason, unusual asking for Enter again, or saved with
+//! the unit's new state — then on to the next unit.
+
+use std::rc::Rc;
+
+use slint::ComponentHandle;
+
+use super::fmt::state_num;
+use super::ui::{RouteStop, WalkAdapter};
+use super::{err_text, form_rows, mark_problems, model, problems_line, s, Ctx};
+use crate::app::entry::{self, CheckForm, Entered, SaveOutcome};
+
+#[derive(Default)]
+pub(crate) struct WalkState {
+    stops: Vec<entry::RouteStop>,
+    /// Per stop: "", "saved" or "skipped" this session.
+    done: Vec<String>,
+    form: Option<CheckForm>,
+    entered: Entered,
+    /// The values last judged unusual; Enter again with the same values saves them.
+    pending_confirm: Option<Entered>,
+}
+
+pub(super) fn install(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WalkAdapter>();
+    let c = Rc::downgrade(ctx);
+    a.on_field_edited(move |i, t| {
+        if let Some(ctx) = c.upgrade() {
+            let mut st = ctx.walk.borrow_mut();
+            let key = st
+                .form
+                .as_ref()
+                .and_then(|f| f.fields.get(i as usize))
+                .map(|f| f.key.clone());
+            if let Some(key) = key {
+                st.entered.set(&key, t.as_str());
+            }
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_save(move || {
+        if let Some(ctx) = c.upgrade() {
+            save(&ctx);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_skip(move || {
+        if let Some(ctx) = c.upgrade() {
+            mark_and_advance(&ctx, "skipped");
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_select(move |i| {
+        if let Some(ctx) = c.upgrade() {
+            go_to(&ctx, i.max(0) as usize);
+        }
+    });
+}
+
+fn stop_rows(st: &WalkState) -> Vec<RouteStop> {
+    st.stops
+        .iter()
+        .enumerate()
+        .map(|(i, r)| RouteStop {
+            unit_id: r.unit_id as i32,
+            tag: s(&r.tag),
+            machine: s(&r.machine),
+            state: state_num(r.state),
+            done: s(st.done.get(i).cloned().unwrap_or_default()),
+            last_check: s(r.last_check.map(super::fmt::date).unwrap_or_default()),
+        })
+        .collect()
+}
+
+/// Reloads the route, keeping the cursor and this session's marks where units are unchanged.
+pub(super) fn refresh(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WalkAdapter>();
+    let stops = match entry::route(&ctx.shop) {
+        Ok(s) => s,
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+            return;
+        }
+    };
+    let current = a.get_current().max(0) as usize;
+    let current_id = ctx.walk.borrow().stops.get(current).map(|r| r.unit_id);
+    {
+        let mut st = ctx.walk.borrow_mut();
+        let old: Vec<(i64, String)> = st
+            .stops
+            .iter()
+            .map(|r| r.unit_id)
+            .zip(st.done.iter().cloned())
+            .collect();
+        st.done = stops
+            .iter()
+            .map(|r| {
+                old.iter()
+                    .find(|(id, _)| *id == r.unit_id)
+                    .map(|(_, d)| d.clone())
+                    .unwrap_or_default()
+            })
+            .collect();
+        st.stops = stops;
+    }
+    let index = {
+        let st = ctx.walk.borrow();
+        current_id
+            .and_then(|id| st.stops.iter().position(|r| r.unit_id == id))
+            .unwrap_or(0)
+    };
+    a.set_stops(model(stop_rows(&ctx.walk.borrow())));
+    load_form(ctx, index, false);
+}
+
+fn progress_text(st: &WalkState) -> String {
+    let saved = st.done.iter().filter(|d| *d == "saved").count();
+    let skipped = st.done.iter().filter(|d| *d == "skipped").count();
+    format!(
+        "{} units · {saved} saved · {skipped} skipped",
+        st.stops.len()
+    )
+}
+
+/// Shows the form of stop `index`; `keep_message` leaves the last save's message up.
+fn load_form(ctx: &Rc<Ctx>, index: usize, keep_message: bool) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WalkAdapter>();
+    let unit_id = ctx.walk.borrow().stops.get(index).map(|r| r.unit_id);
+    a.set_current(index as i32);
+    a.set_progress(s(progress_text(&ctx.walk.borrow())));
+    if !keep_message {
+        a.set_message(s(""));
+        a.set_message_level(0);
+    }
+    let Some(unit_id) = unit_id else {
+        a.set_unit_title(s("No units on the route"));
+        a.set_unit_detail(s("Add units in Setup or import a unit register."));
+        a.set_fields(model(Vec::new()));
+        return;
+    };
+    match entry::check_form(&ctx.shop, unit_id, ctx.now()) {
+        Ok(form) => {
+            a.set_unit_title(s(&form.tag));
+            a.set_unit_state(state_num(form.state));
+            a.set_unit_detail(s(format!("{} · {}", form.machine, form.detail)));
+            let entered = Entered::new();
+            // A new model recreates the fields: empty, with the cursor in the first.
+            a.set_fields(model(form_rows(&form.fields, &entered, &[])));
+            let mut st = ctx.walk.borrow_mut();
+            st.form = Some(form);
+            st.entered = entered;
+            st.pending_confirm = None;
+        }
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+}
+
+fn go_to(ctx: &Rc<Ctx>, index: usize) {
+    load_form(ctx, index, false);
+}
+
+/// Puts the walk-round cursor on a unit.
+pub(super) fn go_to_unit(ctx: &Rc<Ctx>, unit_id: i64) {
+    let index = ctx
+        .walk
+        .borrow()
+        .stops
+        .iter()
+        .position(|r| r.unit_id == unit_id);
+    if let Some(i) = index {
+        go_to(ctx, i);
+    }
+}
+
+fn mark_and_advance(ctx: &Rc<Ctx>, mark: &str) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WalkAdapter>();
+    let i = a.get_current().max(0) as usize;
+    let n = {
+        let mut st = ctx.walk.borrow_mut();
+        if let Some(d) = st.done.get_mut(i) {
+            *d = mark.to_string();
+        }
+        st.stops.len()
+    };
+    if mark == "skipped" {
+        let tag = ctx
+            .walk
+            .borrow()
+            .stops
+            .get(i)
+            .map(|r| r.tag.clone())
+            .unwrap_or_default();
+        a.set_message(s(format!("Skipped {tag}.")));
+        a.set_message_level(0);
+    }
+    a.set_stops(model(stop_rows(&ctx.walk.borrow())));
+    let next = if i + 1 < n { i + 1 } else { i };
+    load_form(ctx, next, true);
+    if i + 1 >= n {
+        a.set_message(s(format!("{} — end of the route.", a.get_message())));
+    }
+}
+
+fn save(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WalkAdapter>();
+    let (unit_id, entered, confirmed) = {
+        let st = ctx.walk.borrow();
+        let Some(form) = st.form.as_ref() else { return };
+        (
+            form.unit_id,
+            st.entered.clone(),
+            st.pending_confirm.as_ref() == Some(&st.entered),
+        )
+    };
+    let outcome = entry::save_check(
+        &ctx.shop,
+        unit_id,
+        &entered,
+        &a.get_taken_at(),
+        &a.get_by(),
+        confirmed,
+        ctx.now(),
+    );
+    match outcome {
+        Ok(SaveOutcome::Saved(saved)) => {
+            let st = &saved.status;
+            let why = st
+                .health
+                .flags
+                .first()
+                .map(|f| format!(" — {}", f.what))
+                .unwrap_or_default();
+            a.set_message(s(format!(
+                "Saved {}: now {}{why}.",
+                st.unit,
+                st.state.as_str().to_uppercase()
+            )));
+            a.set_message_level(0);
+            {
+                let mut ws = ctx.walk.borrow_mut();
+                let i = a.get_current().max(0) as usize;
+                if let Some(r) = ws.stops.get_mut(i) {
+                    r.state = st.state;
+                    r.last_check = st.health.last_check;
+                }
+            }
+            mark_and_advance(ctx, "saved");
+            super::fleet::refresh(ctx);
+        }
+        Ok(SaveOutcome::NeedsConfirmation(p)) => {
+            mark_problems(&a.get_fields(), &p);
+            let (text, level) = problems_line(&p);
+            a.set_message(s(text));
+            a.set_message_level(level);
+            ctx.walk.borrow_mut().pending_confirm = Some(entered);
+        }
+        Ok(SaveOutcome::Refused(p)) => {
+            mark_problems(&a.get_fields(), &p);
+            let (text, level) = problems_line(&p);
+            a.set_message(s(text));
+            a.set_message_level(level);
+            ctx.walk.borrow_mut().pending_confirm = None;
+        }
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+}
+
+/// For the screenshots: a technician's name and a refused value, as a person would see it.
+pub(super) fn demo_entry(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WalkAdapter>();
+    a.set_by(s("J. Doe"));
+    let hot = match ctx.system.get() {
+        crate::units::UnitSystem::Metric => "320",
+        crate::units::UnitSystem::Us => "600",
+    };
+    let fields = a.get_fields();
+    for (i, text) in [hot, "22", "160"].iter().enumerate() {
+        if let Some(mut r) = slint::Model::row_data(&fields, i) {
+            r.text = s(*text);
+            slint::Model::set_row_data(&fields, i, r);
+        }
+        a.invoke_field_edited(i as i32, s(*text));
+    }
+    a.invoke_save();
+}

@@ -1,0 +1,207 @@
+//! Work-due adapter: the fleet's due list (`app::work`) in its three groups, and marking work
+//! done, which records the event through `app::entry`. Sample and check work is done by
+//! entering the reading, so those lines lead to the Samples and Walk-round screens.
+
+use std::rc::Rc;
+
+use slint::ComponentHandle;
+
+use super::fmt::state_num;
+use super::ui::{WorkAdapter, WorkRow};
+use super::{err_text, model, s, Ctx, Screen};
+use crate::app::entry;
+use crate::app::work::{DueBucket, DueItem};
+use crate::health::plan::CAUTION_SHORT;
+use crate::health::WorkKind;
+use crate::quantity::Kind;
+
+#[derive(Default)]
+pub(crate) struct WorkState {
+    items: Vec<DueItem>,
+}
+
+pub(super) fn install(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WorkAdapter>();
+    a.set_safety(s(CAUTION_SHORT));
+    let c = Rc::downgrade(ctx);
+    a.on_choose(move |i| {
+        if let Some(ctx) = c.upgrade() {
+            choose(&ctx, i);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_mark_done(move || {
+        if let Some(ctx) = c.upgrade() {
+            mark_done(&ctx);
+        }
+    });
+}
+
+fn when(d: &DueItem) -> String {
+    match d.days_overdue {
+        n if n > 0 => format!("{} ({n} d late)", super::fmt::day(d.due)),
+        0 => format!("{} (today)", super::fmt::day(d.due)),
+        n => format!("{} (in {} d)", super::fmt::day(d.due), -n),
+    }
+}
+
+pub(super) fn refresh(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WorkAdapter>();
+    let list = match entry::due_list(&ctx.shop) {
+        Ok(l) => l,
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+            return;
+        }
+    };
+    let rows: Vec<WorkRow> = list
+        .items
+        .iter()
+        .enumerate()
+        .map(|(i, d)| WorkRow {
+            id: i as i32,
+            group: match d.bucket {
+                DueBucket::Overdue => 0,
+                DueBucket::DueSoon => 1,
+                DueBucket::Later => 2,
+            },
+            tag: s(&d.unit),
+            machine: s(&d.machine),
+            what: s(&d.task),
+            due: s(when(d)),
+            why: s(match &d.pulled_forward {
+                Some(_) => "brought forward by the unit's condition (see Mark done)".to_string(),
+                None => d.basis.clone(),
+            }),
+            detail: s(match &d.pulled_forward {
+                Some(p) => format!("{p}. Planned: {}.", d.basis),
+                None => d.basis.clone(),
+            }),
+            state: state_num(d.state.max(if d.bucket == DueBucket::Overdue {
+                crate::health::State::Watch
+            } else {
+                d.state
+            })),
+            caution: d.caution.is_some(),
+            action: s(match d.kind {
+                WorkKind::Sample => "Enter sample…",
+                WorkKind::Check => "Enter check…",
+                _ => "Mark done…",
+            }),
+        })
+        .collect();
+    let group = |g: i32| model(rows.iter().filter(|r| r.group == g).cloned().collect());
+    a.set_overdue(group(0));
+    a.set_soon(group(1));
+    a.set_later(group(2));
+    let count = |b: DueBucket| list.items.iter().filter(|d| d.bucket == b).count();
+    a.set_summary(s(format!(
+        "{} overdue · {} due within {} days · {} later",
+        count(DueBucket::Overdue),
+        count(DueBucket::DueSoon),
+        list.due_soon_days,
+        count(DueBucket::Later)
+    )));
+    a.set_rows(model(rows));
+    a.set_done_index(-1);
+    a.set_litres_unit(s(Kind::Volume.display_unit(ctx.system.get()).symbol()));
+    ctx.work.borrow_mut().items = list.items;
+}
+
+fn choose(ctx: &Rc<Ctx>, i: i32) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WorkAdapter>();
+    let item = ctx.work.borrow().items.get(i.max(0) as usize).cloned();
+    let Some(item) = item else { return };
+    a.set_message(s(""));
+    match item.kind {
+        WorkKind::Sample | WorkKind::Check => {
+            // Done by entering the reading: go where it is entered, on this unit.
+            let id = entry::route(&ctx.shop)
+                .ok()
+                .and_then(|r| r.into_iter().find(|s| s.tag == item.unit))
+                .map(|s| s.unit_id);
+            ctx.unit_id.set(id.or(ctx.unit_id.get()));
+            if item.kind == WorkKind::Sample {
+                super::show(ctx, Screen::Samples);
+            } else {
+                super::show(ctx, Screen::Walk);
+                if let Some(id) = id {
+                    super::walk::go_to_unit(ctx, id);
+                }
+            }
+        }
+        _ => {
+            a.set_needs_litres(item.kind == WorkKind::FluidChange);
+            a.set_done_index(i);
+        }
+    }
+}
+
+fn mark_done(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WorkAdapter>();
+    let i = a.get_done_index();
+    let item = ctx.work.borrow().items.get(i.max(0) as usize).cloned();
+    let Some(item) = item.filter(|_| i >= 0) else {
+        return;
+    };
+    let volume = if item.kind == WorkKind::FluidChange {
+        a.get_litres().to_string()
+    } else {
+        String::new()
+    };
+    match entry::mark_done(
+        &ctx.shop,
+        &item.unit,
+        item.kind,
+        &a.get_by(),
+        &a.get_note(),
+        &volume,
+        ctx.now(),
+    ) {
+        Ok(logged) => {
+            let next = logged
+                .work
+                .iter()
+                .find(|w| w.kind == item.kind)
+                .map(|w| super::fmt::day(w.due))
+                .unwrap_or_default();
+            a.set_note(s(""));
+            a.set_litres(s(""));
+            refresh(ctx);
+            a.set_message(s(format!(
+                "Recorded: {} on {}.{}",
+                item.task,
+                logged.unit,
+                if next.is_empty() {
+                    String::new()
+                } else {
+                    format!(" Next due {next}.")
+                }
+            )));
+            a.set_message_level(0);
+            super::fleet::refresh(ctx);
+        }
+        Err(e) => {
+            a.set_message(s(err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
+}
+
+/// For the screenshots: the first line that is marked done here (not by entering a reading).
+pub(super) fn choose_first_to_mark(ctx: &Rc<Ctx>) {
+    let first = ctx
+        .work
+        .borrow()
+        .items
+        .iter()
+        .position(|d| entry::event_for(d.kind).is_some());
+    if let Some(i) = first {
+        choose(ctx, i as i32);
+    }
+}

@@ -1,0 +1,426 @@
+//! The desktop app driven through its real slint components with slint's testing backend: find
+//! elements by accessible label, type with key events or set values as assistive technology
+//! would, press buttons by their default action, and read back what the shop file stored.
+//!
+//! Each test opens a fresh demo shop in a temporary directory; `init_no_event_loop` gives each
+//! test thread its own headless platform.
+
+use std::path::{Path, PathBuf};
+
+use i_slint_backend_testing::{AccessibleRole, ElementHandle, ElementQuery};
+use slint::platform::{Key, PointerEventButton, WindowEvent};
+use slint::{ComponentHandle, SharedString};
+use sumpbook::app::shop::Shop;
+use sumpbook::gui::ui::{Nav, SetupAdapter, WalkAdapter};
+use sumpbook::gui::{App, Screen};
+
+struct Fixture {
+    _dir: tempfile::TempDir,
+    path: PathBuf,
+    app: App,
+}
+
+fn open_demo() -> Fixture {
+    i_slint_backend_testing::init_no_event_loop();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("shop.sqlite");
+    Shop::create_demo(&path).unwrap();
+    let app = App::open(&path).unwrap();
+    // Tall enough that every list row of the demo is laid out (lists create visible rows only).
+    app.window()
+        .window()
+        .set_size(slint::LogicalSize::new(1280.0, 1400.0));
+    app.window().show().unwrap();
+    Fixture {
+        _dir: dir,
+        path,
+        app,
+    }
+}
+
+fn shop(path: &Path) -> Shop {
+    Shop::open(path).unwrap()
+}
+
+fn key(app: &App, text: impl Into<SharedString>) {
+    let text = text.into();
+    app.window()
+        .window()
+        .dispatch_event(WindowEvent::KeyPressed { text: text.clone() });
+    app.window()
+        .window()
+        .dispatch_event(WindowEvent::KeyReleased { text });
+}
+
+fn type_text(app: &App, s: &str) {
+    for c in s.chars() {
+        key(app, c.to_string());
+    }
+}
+
+fn by_label(app: &App, label: &str) -> ElementHandle {
+    let found: Vec<ElementHandle> =
+        ElementHandle::find_by_accessible_label(app.window(), label).collect();
+    assert!(!found.is_empty(), "no element labelled {label:?}");
+    found.into_iter().next().unwrap()
+}
+
+/// The element labelled `label` with accessible role `role` (a visible caption often carries
+/// the same words as the field it names).
+fn with_role(app: &App, label: &str, role: AccessibleRole) -> ElementHandle {
+    ElementHandle::find_by_accessible_label(app.window(), label)
+        .find(|e| e.accessible_role() == Some(role))
+        .unwrap_or_else(|| panic!("no {role:?} labelled {label:?}"))
+}
+
+fn field(app: &App, label: &str) -> ElementHandle {
+    with_role(app, label, AccessibleRole::TextInput)
+}
+
+fn button(app: &App, label: &str) -> ElementHandle {
+    with_role(app, label, AccessibleRole::Button)
+}
+
+fn try_label(app: &App, label: &str) -> Option<ElementHandle> {
+    ElementHandle::find_by_accessible_label(app.window(), label).next()
+}
+
+/// Accessible labels of elements whose label starts with `prefix`, top to bottom.
+fn labels_starting(app: &App, prefix: &'static str) -> Vec<String> {
+    let mut found: Vec<(f32, String)> = ElementQuery::from_root(app.window())
+        .match_predicate(move |e| e.accessible_label().is_some_and(|l| l.starts_with(prefix)))
+        .find_all()
+        .into_iter()
+        .map(|e| {
+            (
+                e.absolute_position().y,
+                e.accessible_label().unwrap_or_default().to_string(),
+            )
+        })
+        .collect();
+    found.sort_by(|a, b| a.0.total_cmp(&b.0));
+    found.into_iter().map(|(_, l)| l).collect()
+}
+
+fn message(app: &App) -> String {
+    ElementHandle::find_by_accessible_label(app.window(), "message")
+        .filter_map(|e| e.accessible_value())
+        .map(|v| v.to_string())
+        .filter(|v| !v.is_empty())
+        .collect::<Vec<_>>()
+        .join(" | ")
+}
+
+fn first_route_unit(path: &Path) -> (i64, String) {
+    let s = shop(path);
+    let stops = sumpbook::app::entry::route(&s).unwrap();
+    (stops[0].unit_id, stops[0].tag.clone())
+}
+
+#[test]
+fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
+    let f = open_demo();
+    let (unit_id, tag) = first_route_unit(&f.path);
+    let before = shop(&f.path)
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap();
+    let last = before.last().unwrap().clone();
+    f.app.show(Screen::Walk);
+    field(&f.app, "Technician").set_accessible_value("T. Tester");
+
+    // Values close to the unit's last check, so that none is unusual.
+    let oil = last.reservoir_temp.unwrap().c() + 1.0;
+    let air = last.ambient_temp.unwrap().c();
+    let bar = last.pressure.unwrap().bar();
+    let stroke = last.stroke_time.unwrap().si() * 1.02;
+    // The cursor starts in the first field of the form (Reservoir temperature).
+    type_text(&f.app, &format!("{oil:.1}"));
+    key(&f.app, Key::Tab);
+    type_text(&f.app, &format!("{air:.1}"));
+    key(&f.app, Key::Tab);
+    type_text(&f.app, &format!("{bar:.1}"));
+    key(&f.app, Key::Tab);
+    type_text(&f.app, &format!("{stroke:.2}"));
+    key(&f.app, Key::Tab);
+    type_text(&f.app, "o");
+    key(&f.app, Key::Return);
+
+    let after = shop(&f.path)
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap();
+    assert_eq!(
+        after.len(),
+        before.len() + 1,
+        "one check stored; screen says: {}",
+        message(&f.app)
+    );
+    let c = after
+        .iter()
+        .find(|c| c.by == "T. Tester")
+        .expect("the new check");
+    assert!((c.reservoir_temp.unwrap().c() - (oil * 10.0).round() / 10.0).abs() < 1e-9);
+    assert!((c.ambient_temp.unwrap().c() - (air * 10.0).round() / 10.0).abs() < 1e-9);
+    assert!((c.pressure.unwrap().bar() - (bar * 10.0).round() / 10.0).abs() < 1e-9);
+    assert!((c.stroke_time.unwrap().si() - (stroke * 100.0).round() / 100.0).abs() < 1e-9);
+    assert_eq!(c.oil_level, Some(sumpbook::model::OilLevel::Ok));
+    // Saved, with the unit's state, and on to the next unit.
+    let msg = message(&f.app);
+    assert!(msg.contains(&format!("Saved {tag}")), "{msg}");
+    assert_eq!(f.app.window().global::<WalkAdapter>().get_current(), 1);
+
+    // Page Down skips a unit: the cursor moves on and nothing is stored for it.
+    let s = shop(&f.path);
+    let second = sumpbook::app::entry::route(&s).unwrap()[1].unit_id;
+    let n = s.store().checks_for_unit(second, None).unwrap().len();
+    type_text(&f.app, "50");
+    key(&f.app, Key::PageDown);
+    assert_eq!(f.app.window().global::<WalkAdapter>().get_current(), 2);
+    assert_eq!(
+        shop(&f.path)
+            .store()
+            .checks_for_unit(second, None)
+            .unwrap()
+            .len(),
+        n
+    );
+    assert!(
+        message(&f.app).starts_with("Skipped"),
+        "{}",
+        message(&f.app)
+    );
+}
+
+#[test]
+fn an_impossible_value_shows_the_reason_and_stores_nothing() {
+    let f = open_demo();
+    let (unit_id, _) = first_route_unit(&f.path);
+    let before = shop(&f.path)
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap()
+        .len();
+    f.app.show(Screen::Walk);
+    field(&f.app, "Technician").set_accessible_value("T. Tester");
+    field(&f.app, "Reservoir temperature").set_accessible_value("320");
+    button(&f.app, "Save and next").invoke_accessible_default_action();
+
+    let problem = by_label(&f.app, "Reservoir temperature problem")
+        .accessible_value()
+        .unwrap_or_default();
+    // Design §10: temperatures above 150 °C are refused, with the range in the message.
+    assert!(problem.contains("150"), "{problem}");
+    assert!(
+        message(&f.app).starts_with("Not saved"),
+        "{}",
+        message(&f.app)
+    );
+    assert_eq!(
+        shop(&f.path)
+            .store()
+            .checks_for_unit(unit_id, None)
+            .unwrap()
+            .len(),
+        before
+    );
+    // Still on the same unit, so the value can be corrected.
+    assert_eq!(f.app.window().global::<WalkAdapter>().get_current(), 0);
+
+    // An unusual (possible) value asks first, and a second Save keeps it.
+    field(&f.app, "Reservoir temperature").set_accessible_value("95");
+    button(&f.app, "Save and next").invoke_accessible_default_action();
+    assert!(
+        message(&f.app).starts_with("Unusual"),
+        "{}",
+        message(&f.app)
+    );
+    assert_eq!(
+        shop(&f.path)
+            .store()
+            .checks_for_unit(unit_id, None)
+            .unwrap()
+            .len(),
+        before
+    );
+    button(&f.app, "Save and next").invoke_accessible_default_action();
+    assert_eq!(
+        shop(&f.path)
+            .store()
+            .checks_for_unit(unit_id, None)
+            .unwrap()
+            .len(),
+        before + 1
+    );
+}
+
+#[test]
+fn switching_to_us_units_changes_the_figures_shown() {
+    let f = open_demo();
+    let (unit_id, _) = first_route_unit(&f.path);
+    let last_c = shop(&f.path)
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap()
+        .last()
+        .unwrap()
+        .reservoir_temp
+        .unwrap()
+        .c();
+    // Beside the first walk-round field: last time's reservoir temperature, in °C.
+    f.app.show(Screen::Walk);
+    let (v, unit) = leading_figure(&walk_hint(&f.app));
+    assert_eq!(unit, "°C");
+    assert!((v - last_c).abs() < 0.051, "{v} against {last_c}");
+
+    // Setup: choose US customary in the drop-down from the keyboard, then save.
+    f.app.show(Screen::Setup);
+    with_role(&f.app, "Units of measure", AccessibleRole::Combobox)
+        .mock_single_click(PointerEventButton::Left);
+    key(&f.app, Key::DownArrow);
+    key(&f.app, Key::Return);
+    assert_eq!(
+        f.app.window().global::<SetupAdapter>().get_unit_system(),
+        1,
+        "US customary chosen"
+    );
+    field(&f.app, "Changed by").set_accessible_value("T. Tester");
+    button(&f.app, "Save shop settings").invoke_accessible_default_action();
+    assert_eq!(
+        shop(&f.path).store().settings().unwrap().unit_system,
+        sumpbook::units::UnitSystem::Us
+    );
+    assert_eq!(
+        f.app.window().global::<Nav>().get_unit_system(),
+        "US customary"
+    );
+
+    // The same reading now in °F: t_F = t_C × 9/5 + 32 (exact by definition of the scales).
+    f.app.show(Screen::Walk);
+    let (v, unit) = leading_figure(&walk_hint(&f.app));
+    assert_eq!(unit, "°F");
+    assert!((v - (last_c * 9.0 / 5.0 + 32.0)).abs() < 0.051, "{v}");
+    // The fleet board too: heat rise in °F steps, not K.
+    f.app.show(Screen::Fleet);
+    let rows = labels_starting(&f.app, "");
+    let row = rows
+        .iter()
+        .find(|l| l.contains("heat rise"))
+        .cloned()
+        .expect("a steady row with its heat rise");
+    assert!(row.contains("°F") && !row.contains(" K "), "{row}");
+}
+
+/// `93.0 °F · 4 d ago` → (93.0, "°F").
+fn leading_figure(text: &str) -> (f64, String) {
+    let mut parts = text.split_whitespace();
+    let v = parts
+        .next()
+        .and_then(|n| n.parse().ok())
+        .unwrap_or(f64::NAN);
+    (v, parts.next().unwrap_or("").to_string())
+}
+
+/// The text beside the first walk-round field (the last reservoir temperature).
+fn walk_hint(app: &App) -> String {
+    let rows = app.window().global::<WalkAdapter>().get_fields();
+    slint::Model::row_data(&rows, 0)
+        .map(|r| r.hint.to_string())
+        .unwrap_or_default()
+}
+
+#[test]
+fn acknowledging_a_flag_stores_who_and_why() {
+    let f = open_demo();
+    f.app.show(Screen::Fleet);
+    // The worst unit is at the top of the board; open it as a user would.
+    let rows = labels_starting(&f.app, "");
+    let top = rows
+        .iter()
+        .find(|l| l.contains(", ACT, "))
+        .cloned()
+        .expect("an act unit on the board");
+    let tag = top.split(',').next().unwrap().to_string();
+    by_label(&f.app, &top).invoke_accessible_default_action();
+    assert_eq!(
+        f.app.window().global::<Nav>().get_screen(),
+        Screen::Unit as i32
+    );
+
+    let label = labels_starting(&f.app, "Acknowledge ")
+        .into_iter()
+        .next()
+        .expect("a flag to acknowledge");
+    let kind = label.trim_start_matches("Acknowledge ").to_string();
+    button(&f.app, &label).invoke_accessible_default_action();
+    field(&f.app, "Acknowledged by").set_accessible_value("R. Engineer");
+    field(&f.app, "Acknowledgement note").set_accessible_value("pump inspection booked");
+    button(&f.app, "Save acknowledgement").invoke_accessible_default_action();
+
+    let s = shop(&f.path);
+    let unit = s.store().unit_by_tag(&tag).unwrap().unwrap();
+    let acks = s.store().acks(unit.id).unwrap();
+    assert_eq!(acks.len(), 1, "{}", message(&f.app));
+    assert_eq!(acks[0].kind, kind);
+    assert_eq!(acks[0].by, "R. Engineer");
+    assert_eq!(acks[0].note, "pump inspection booked");
+    // The page shows it seen.
+    assert!(try_label(&f.app, &format!("flag {kind}")).is_some());
+    assert!(
+        message(&f.app).contains("Acknowledged"),
+        "{}",
+        message(&f.app)
+    );
+}
+
+#[test]
+fn the_fleet_board_lists_the_demo_units_worst_first() {
+    let f = open_demo();
+    f.app.show(Screen::Fleet);
+    let s = shop(&f.path);
+    let units: Vec<String> = s
+        .store()
+        .units()
+        .unwrap()
+        .into_iter()
+        .filter(|u| !u.archived)
+        .map(|u| u.tag)
+        .collect();
+    let rows: Vec<String> = labels_starting(&f.app, "")
+        .into_iter()
+        .filter(|l| units.iter().any(|t| l.starts_with(&format!("{t}, "))))
+        .collect();
+    assert_eq!(rows.len(), units.len(), "every unit once: {rows:?}");
+    let rank = |l: &str| {
+        if l.contains(", ACT, ") {
+            2
+        } else if l.contains(", WATCH, ") {
+            1
+        } else {
+            assert!(l.contains(", steady, "), "{l}");
+            0
+        }
+    };
+    let ranks: Vec<i32> = rows.iter().map(|l| rank(l)).collect();
+    assert!(
+        ranks.windows(2).all(|w| w[0] >= w[1]),
+        "worst first: {rows:?}"
+    );
+    // The demo plants faults (pump wear, water ingress, ...): some units are at act, some steady.
+    assert!(ranks.contains(&2) && ranks.contains(&0), "{rows:?}");
+    // The board shows the one evaluation of the application layer, in its order.
+    let fleet = sumpbook::app::status::fleet_status(&s, None).unwrap();
+    let tags: Vec<String> = rows
+        .iter()
+        .map(|l| l.split(',').next().unwrap().to_string())
+        .collect();
+    let expected: Vec<String> = fleet.units.iter().map(|u| u.unit.clone()).collect();
+    assert_eq!(tags, expected);
+    // Searching by tag shows only that unit.
+    field(&f.app, "Search by tag").set_accessible_value(&tags[0]);
+    let filtered: Vec<String> = labels_starting(&f.app, "")
+        .into_iter()
+        .filter(|l| units.iter().any(|t| l.starts_with(&format!("{t}, "))))
+        .collect();
+    assert_eq!(filtered.len(), 1, "{filtered:?}");
+}
