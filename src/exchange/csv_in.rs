@@ -216,6 +216,177 @@ fn too_long(e: &std::io::Error) -> Option<&LineTooLong> {
         .and_then(|inner| inner.downcast_ref::<LineTooLong>())
 }
 
+/// The longest record read, in bytes, however many lines its quoted cells span; beyond it a
+/// quote is taken to be left open (memory would otherwise grow with the rest of the file).
+pub const MAX_RECORD_BYTES: usize = 1 << 20;
+
+/// Where a quoted cell that never closes was opened.
+#[derive(Debug)]
+struct QuoteLeftOpen {
+    line: u64,
+    field: usize,
+    /// Whether the file ended inside it (otherwise it ran on beyond [`MAX_RECORD_BYTES`]).
+    at_end: bool,
+}
+
+impl std::fmt::Display for QuoteLeftOpen {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        if self.at_end {
+            f.write_str("a quote (\") opened in this cell is never closed: the file ends inside it; close the quote")
+        } else {
+            write!(
+                f,
+                "a quote (\") opened in this cell runs on for more than {MAX_RECORD_BYTES} bytes (1 MiB) without \
+                 closing; close the quote"
+            )
+        }
+    }
+}
+
+impl std::error::Error for QuoteLeftOpen {}
+
+/// RFC 4180 quoting, as the `csv` reader applies it: a cell is quoted when it starts with `"`;
+/// inside, `""` is a quote and `"` then anything ends the quoted part.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Quoting {
+    /// At the start of a cell.
+    CellStart,
+    Unquoted,
+    Quoted,
+    /// A `"` inside a quoted cell: either the first of `""` or its end.
+    QuoteInQuoted,
+}
+
+/// Follows the quoting of the stream after the header line and fails when a quoted cell never
+/// closes (the `csv` reader would silently take the rest of the file into it) or runs on past
+/// [`MAX_RECORD_BYTES`].
+struct QuoteGuard<R> {
+    inner: R,
+    delimiter: u8,
+    state: Quoting,
+    line: u64,
+    field: usize,
+    record_bytes: usize,
+    open: (u64, usize),
+}
+
+impl<R> QuoteGuard<R> {
+    /// Starts after `first_line` (the header line, which may itself open a quote), which is
+    /// line 1.
+    fn new(inner: R, delimiter: u8, first_line: &[u8]) -> Self {
+        let mut g = QuoteGuard {
+            inner,
+            delimiter,
+            state: Quoting::CellStart,
+            line: 1,
+            field: 0,
+            record_bytes: 0,
+            open: (1, 0),
+        };
+        g.advance(first_line);
+        g
+    }
+
+    /// Follows `bytes`: quoted runs and plain runs are skipped to their next `"` at once, and
+    /// only quotes are looked at one by one (a per-byte walk costs as much as the CSV parse).
+    fn advance(&mut self, mut bytes: &[u8]) {
+        while !bytes.is_empty() {
+            let next_quote = bytes.iter().position(|&b| b == b'"');
+            if self.state == Quoting::Quoted {
+                // Everything up to the next quote belongs to the cell, line breaks too.
+                let run = next_quote.map_or(bytes.len(), |i| i + 1);
+                self.line += count(&bytes[..run], b'\n');
+                self.record_bytes += run;
+                if next_quote.is_some() {
+                    self.state = Quoting::QuoteInQuoted;
+                }
+                bytes = &bytes[run..];
+                continue;
+            }
+            let run = next_quote.unwrap_or(bytes.len());
+            if run > 0 {
+                self.plain(&bytes[..run]);
+                bytes = &bytes[run..];
+            }
+            if !bytes.is_empty() {
+                // A quote outside a quoted run.
+                self.record_bytes += 1;
+                self.state = match self.state {
+                    Quoting::CellStart => {
+                        self.open = (self.line, self.field);
+                        Quoting::Quoted
+                    }
+                    // `""` inside a quoted cell: a quote, and the cell goes on.
+                    Quoting::QuoteInQuoted => Quoting::Quoted,
+                    // Inside an unquoted cell a quote is just a character.
+                    other => other,
+                };
+                bytes = &bytes[1..];
+            }
+        }
+    }
+
+    /// A run without quotes, outside a quoted run (or just after one ended).
+    fn plain(&mut self, run: &[u8]) {
+        self.line += count(run, b'\n');
+        match run.iter().rposition(|&b| b == b'\n' || b == b'\r') {
+            Some(end) => {
+                self.field = count(&run[end + 1..], self.delimiter) as usize;
+                self.record_bytes = run.len() - end - 1;
+            }
+            None => {
+                self.field += count(run, self.delimiter) as usize;
+                self.record_bytes += run.len();
+            }
+        }
+        let last = run[run.len() - 1];
+        self.state = if last == self.delimiter || last == b'\n' || last == b'\r' {
+            Quoting::CellStart
+        } else {
+            Quoting::Unquoted
+        };
+    }
+
+    fn left_open(&self, at_end: bool) -> std::io::Error {
+        std::io::Error::new(
+            std::io::ErrorKind::InvalidData,
+            QuoteLeftOpen {
+                line: self.open.0,
+                field: self.open.1,
+                at_end,
+            },
+        )
+    }
+}
+
+impl<R: Read> Read for QuoteGuard<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let n = self.inner.read(buf)?;
+        if n == 0 {
+            if self.state == Quoting::Quoted {
+                return Err(self.left_open(true));
+            }
+            return Ok(0);
+        }
+        self.advance(&buf[..n]);
+        if self.record_bytes > MAX_RECORD_BYTES && self.state == Quoting::Quoted {
+            return Err(self.left_open(false));
+        }
+        Ok(n)
+    }
+}
+
+/// How many times `b` occurs in `bytes`.
+fn count(bytes: &[u8], b: u8) -> u64 {
+    bytes.iter().filter(|&&x| x == b).count() as u64
+}
+
+/// The place of a [`QuoteLeftOpen`] inside an I/O error, if that is what it is.
+fn quote_left_open(e: &std::io::Error) -> Option<&QuoteLeftOpen> {
+    e.get_ref()
+        .and_then(|inner| inner.downcast_ref::<QuoteLeftOpen>())
+}
+
 /// Where a field is in the file and in which unit.
 #[derive(Clone, Copy, Debug)]
 struct Slot {
@@ -833,7 +1004,13 @@ pub fn import_reader<R: Read>(
         .delimiter(delimiter)
         .has_headers(false)
         .flexible(true)
-        .from_reader(std::io::Cursor::new(first_line).chain(input));
+        .from_reader(
+            std::io::Cursor::new(first_line.clone()).chain(QuoteGuard::new(
+                input,
+                delimiter,
+                &first_line,
+            )),
+        );
 
     let mut rec = ByteRecord::new();
     let csv_err = |e: csv::Error| ExchangeError::Io {
@@ -849,6 +1026,14 @@ pub fn import_reader<R: Read>(
                         line: 1,
                         column: "header".into(),
                         reason: t.to_string(),
+                    }]));
+                }
+                if let Some(q) = quote_left_open(ioe) {
+                    return Err(ExchangeError::Rows(vec![RowError {
+                        file: label.into(),
+                        line: q.line,
+                        column: "header".into(),
+                        reason: q.to_string(),
                     }]));
                 }
             }
@@ -913,6 +1098,17 @@ pub fn import_reader<R: Read>(
                         bulk.rollback();
                         return Err(ExchangeError::Rows(errors));
                     }
+                    if let Some(q) = quote_left_open(ioe) {
+                        // Everything after the quote was read into one cell: nothing is imported.
+                        errors.push(RowError {
+                            file: label.into(),
+                            line: q.line,
+                            column: header.name_at(q.field),
+                            reason: q.to_string(),
+                        });
+                        bulk.rollback();
+                        return Err(ExchangeError::Rows(errors));
+                    }
                     return Err(csv_err(e));
                 }
                 let line = e.position().map_or(0, |p| p.line());
@@ -922,11 +1118,9 @@ pub fn import_reader<R: Read>(
                     column: "row".into(),
                     reason: format!("cannot read: {e}"),
                 };
-                if rejects.is_some() {
-                    summary.rejected += 1;
-                } else {
-                    errors.push(row_err);
-                }
+                // Not even keep-going passes this row over: its cells are not to hand, so it
+                // could not be written to the rejects file and would be lost.
+                errors.push(row_err);
                 continue;
             }
         }

@@ -31,6 +31,7 @@ pub mod checks;
 pub mod columns;
 pub mod edit_log;
 pub mod events;
+pub mod explain;
 pub mod fluids;
 pub mod history;
 pub mod machines_units;
@@ -431,6 +432,23 @@ impl Store {
         let result = MIGRATIONS.to_latest(&mut self.conn);
         self.conn
             .set_transaction_behavior(rusqlite::TransactionBehavior::Deferred);
+        if result.is_err() {
+            // The version is read before the migration's transaction takes the write lock, so
+            // another program may have upgraded the file while this one waited for the lock;
+            // its upgrade then fails on the objects already there and is rolled back whole.
+            // What counts is the version the file is at now.
+            match self.schema_version()? {
+                now if now == known => return Ok(()),
+                now if now > known => {
+                    return Err(StoreError::TooNew {
+                        path: self.path.clone(),
+                        found: now,
+                        known,
+                    })
+                }
+                _ => {}
+            }
+        }
         result.map_err(|e| match e {
             rusqlite_migration::Error::RusqliteError { err, .. } => match classify(err) {
                 StoreError::Busy => StoreError::Busy,
@@ -482,20 +500,52 @@ impl Store {
 
     /// Writes a consistent copy of the whole shop to `dest` with SQLite's online backup, while
     /// other readers and writers may go on using the file.
+    ///
+    /// The copy is written under a temporary name beside `dest` and renamed when complete, so a
+    /// file by the backup's name is always a whole backup, even when this process is killed
+    /// midway; a failed copy leaves nothing behind.
     pub fn backup_to(&self, dest: &Path) -> Result<(), StoreError> {
+        let exists = || StoreError::CannotOpen {
+            path: dest.to_path_buf(),
+            reason: "the file already exists; choose a new name".into(),
+        };
         if dest.exists() {
+            return Err(exists());
+        }
+        let mut name = dest
+            .file_name()
+            .map(|n| n.to_os_string())
+            .unwrap_or_default();
+        name.push(format!(".partial-{}", std::process::id()));
+        let tmp = dest.with_file_name(name);
+        let remove_tmp = || {
+            for suffix in ["", "-journal", "-wal", "-shm"] {
+                let mut p = tmp.as_os_str().to_os_string();
+                p.push(suffix);
+                // Nothing to do if it is not there.
+                let _ = std::fs::remove_file(PathBuf::from(p));
+            }
+        };
+        remove_tmp();
+        self.count();
+        if let Err(e) = self.conn.backup(rusqlite::MAIN_DB, &tmp, None) {
+            remove_tmp();
             return Err(StoreError::CannotOpen {
                 path: dest.to_path_buf(),
-                reason: "the file already exists; choose a new name".into(),
+                reason: e.to_string(),
             });
         }
-        self.count();
-        self.conn
-            .backup(rusqlite::MAIN_DB, dest, None)
-            .map_err(|e| StoreError::CannotOpen {
+        if dest.exists() {
+            remove_tmp();
+            return Err(exists());
+        }
+        std::fs::rename(&tmp, dest).map_err(|e| {
+            remove_tmp();
+            StoreError::Io {
                 path: dest.to_path_buf(),
-                reason: e.to_string(),
-            })
+                source: e,
+            }
+        })
     }
 
     /// `PRAGMA integrity_check` = ok.

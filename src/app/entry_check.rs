@@ -1,0 +1,121 @@
+//! Logging one walk-round check by unit tag: the command line's way in to the check form.
+//!
+//! The values are judged by the same rules as the desktop app's form (`entry::save_check`):
+//! impossible values are refused, unusual ones are kept only when confirmed. The reading is
+//! written through the store in a single statement, so a second process logging at the same
+//! moment waits for its turn (the store's busy timeout) instead of failing. No SQL, no printing.
+
+use chrono::{DateTime, Duration, SubsecRound, Timelike, Utc};
+use serde::Serialize;
+
+use super::entry::{self, Entered, Problem, SaveOutcome, Verdict};
+use super::shop::Shop;
+use super::status::UnitStatus;
+use super::AppError;
+
+/// The fields a check can carry, as typed: keys of the check form.
+pub const FIELDS: [&str; 9] = [
+    "reservoir_temp",
+    "ambient_temp",
+    "pressure",
+    "stroke_time",
+    "oil_level",
+    "filter",
+    "hours",
+    "case_drain",
+    "note",
+];
+
+/// A check as typed on the command line.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct CheckInput {
+    /// When it was taken; `None` is now.
+    pub at: Option<DateTime<Utc>>,
+    /// Field key (one of [`FIELDS`]) → text as typed (`45C`, `2500psi`, `ok`).
+    pub values: Vec<(String, String)>,
+    /// Who took it (required: the reading is evidence).
+    pub by: String,
+    /// Keep values that are possible but unusual.
+    pub confirmed: bool,
+}
+
+/// A saved check.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct LoggedCheck {
+    pub check_id: i64,
+    pub unit: String,
+    pub taken_at: DateTime<Utc>,
+    /// The unusual values that were confirmed, as `field: message`.
+    pub confirmed: Vec<String>,
+    /// The unit as it stands with this check.
+    pub status: UnitStatus,
+}
+
+/// How far ahead of the clock a reading may be dated (clocks of two computers disagree).
+const CLOCK_SLACK: Duration = Duration::minutes(60);
+
+fn listed(problems: &[Problem]) -> String {
+    problems
+        .iter()
+        .map(|p| format!("{}: {}", p.field, p.message))
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+/// Saves one check of the unit tagged `unit_tag`. Refused or unconfirmed unusual values are
+/// [`AppError::BadInput`] listing every field with its reason; nothing is written then.
+pub fn log_check(
+    shop: &Shop,
+    unit_tag: &str,
+    input: &CheckInput,
+    now: DateTime<Utc>,
+) -> Result<LoggedCheck, AppError> {
+    let store = shop.store();
+    let tag = unit_tag.trim();
+    let unit = store
+        .unit_by_tag(tag)
+        .map_err(AppError::Store)?
+        .ok_or_else(|| AppError::BadInput(format!("no unit `{tag}` in this shop")))?;
+    let mut entered = Entered::new();
+    for (key, text) in &input.values {
+        if !FIELDS.contains(&key.as_str()) {
+            return Err(AppError::BadInput(format!(
+                "`{key}` is not a field of a check; the fields are {}",
+                FIELDS.join(", ")
+            )));
+        }
+        entered.set(key, text);
+    }
+    let now = now.trunc_subsecs(0);
+    let at = input.at.unwrap_or(now);
+    if at.nanosecond() != 0 {
+        return Err(AppError::BadInput(
+            "--at: readings are kept to the second; leave out the fraction".into(),
+        ));
+    }
+    if at > now + CLOCK_SLACK {
+        return Err(AppError::BadInput(format!(
+            "--at: {} is in the future; record readings when they are taken",
+            at.format("%Y-%m-%dT%H:%M:%SZ")
+        )));
+    }
+    // The form's rules judge a reading as of the moment it was taken: an empty time there is
+    // "now", so the moment is passed as now.
+    match entry::save_check(shop, unit.id, &entered, "", &input.by, input.confirmed, at)? {
+        SaveOutcome::Saved(saved) => Ok(LoggedCheck {
+            check_id: saved.check_id,
+            unit: unit.tag,
+            taken_at: at,
+            confirmed: saved.confirmed.iter().map(|p| format!("{}: {}", p.field, p.message)).collect(),
+            status: saved.status,
+        }),
+        SaveOutcome::Refused(problems) => {
+            let refused: Vec<Problem> = problems.iter().filter(|p| p.verdict == Verdict::Refused).cloned().collect();
+            Err(AppError::BadInput(format!("the check was not saved:\n{}", listed(&refused))))
+        }
+        SaveOutcome::NeedsConfirmation(problems) => Err(AppError::BadInput(format!(
+            "the check was not saved; these values are unusual (repeat with --confirm to keep them):\n{}",
+            listed(&problems)
+        ))),
+    }
+}

@@ -1,0 +1,1669 @@
+//! Reliability (design §10): nothing entered is ever lost or silently changed.
+//!
+//! Drives the built `sumpbook` binary on real shop files in temporary directories:
+//! - the corpus of refused input in `tests/bad_input/` (files listed in `expected.tsv`, bad
+//!   quantities in `quantities.tsv`): each gives exit 2 and a message naming the file, line,
+//!   column and what was expected, and leaves the shop byte-for-byte as it was;
+//! - valid variants (byte-order mark, `;` and tab, CRLF, US units, quoted cells) import;
+//! - keep-going imports: good rows in, refused rows in a side file with their reasons;
+//! - SIGKILL at random moments of an import: integrity holds, the import is all or nothing;
+//! - two writers at once: no write lost, no "database is locked";
+//! - schema upgrades from every earlier version with data, the backup taken before them, and
+//!   refusal of a newer file; unusable files (missing, read-only, locked, text, foreign);
+//! - formula-safe export that import reverses;
+//! - properties of the CSV reader (proptest): no panic on any input, export ∘ import = identity.
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use rusqlite::{Connection, OpenFlags};
+
+// ---------------------------------------------------------------------------------------------
+// Helpers
+
+fn sumpbook() -> Command {
+    let mut c = Command::new(env!("CARGO_BIN_EXE_sumpbook"));
+    // Never touch the user's default shop from a test.
+    c.env(
+        "XDG_DATA_HOME",
+        std::env::temp_dir().join("sumpbook-reliability-no-default"),
+    );
+    c
+}
+
+/// Runs `sumpbook --db DB ARGS...`.
+fn run(db: &Path, args: &[&str]) -> Output {
+    sumpbook()
+        .arg("--db")
+        .arg(db)
+        .args(args)
+        .output()
+        .expect("the sumpbook binary runs")
+}
+
+fn text(b: &[u8]) -> String {
+    String::from_utf8_lossy(b).into_owned()
+}
+
+/// At most the first 2000 characters, for failure messages about huge outputs.
+fn short(s: &str) -> String {
+    match s.char_indices().nth(2000) {
+        Some((i, _)) => format!("{}… ({} bytes in all)", &s[..i], s.len()),
+        None => s.to_string(),
+    }
+}
+
+/// Runs and insists on exit 0; returns standard output.
+fn ok(db: &Path, args: &[&str]) -> String {
+    let out = run(db, args);
+    assert!(
+        out.status.success(),
+        "sumpbook {args:?} failed ({:?}):\n{}{}",
+        out.status.code(),
+        text(&out.stdout),
+        text(&out.stderr)
+    );
+    text(&out.stdout)
+}
+
+fn corpus() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bad_input")
+}
+
+fn path_str(p: &Path) -> &str {
+    p.to_str().expect("test paths are UTF-8")
+}
+
+/// A new shop with the corpus register (two units) and three checks.
+fn base_shop(dir: &Path) -> PathBuf {
+    let db = dir.join("shop.sqlite");
+    ok(&db, &["init", "--name", "Reliability test shop"]);
+    ok(
+        &db,
+        &[
+            "import",
+            "units",
+            path_str(&corpus().join("shop/units.csv")),
+        ],
+    );
+    ok(
+        &db,
+        &[
+            "import",
+            "checks",
+            path_str(&corpus().join("shop/checks.csv")),
+        ],
+    );
+    db
+}
+
+/// Everything stored, as text: schema, pragmas and every row of every table, in a fixed order.
+fn dump(db: &Path) -> String {
+    let conn = Connection::open_with_flags(db, OpenFlags::SQLITE_OPEN_READ_WRITE)
+        .expect("the shop opens for the dump");
+    let mut out = String::new();
+    for pragma in ["user_version", "application_id"] {
+        let v: i64 = conn
+            .query_row(&format!("PRAGMA {pragma}"), [], |r| r.get(0))
+            .unwrap();
+        out.push_str(&format!("{pragma} = {v}\n"));
+    }
+    let mut st = conn
+        .prepare("SELECT type, name, ifnull(sql, '') FROM sqlite_schema ORDER BY type, name")
+        .unwrap();
+    let objects: Vec<(String, String, String)> = st
+        .query_map([], |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)))
+        .unwrap()
+        .map(Result::unwrap)
+        .collect();
+    for (kind, name, sql) in &objects {
+        out.push_str(&format!("{kind} {name}: {sql}\n"));
+    }
+    for (kind, name, _) in &objects {
+        if kind != "table" || name.starts_with("sqlite_") {
+            continue;
+        }
+        let mut st = conn.prepare(&format!("SELECT * FROM \"{name}\"")).unwrap();
+        let n = st.column_count();
+        let mut rows: Vec<String> = st
+            .query_map([], |r| {
+                let cells: Vec<String> = (0..n)
+                    .map(|i| format!("{:?}", r.get_ref(i).map(|v| v.to_owned()).ok()))
+                    .collect();
+                Ok(cells.join("|"))
+            })
+            .unwrap()
+            .map(Result::unwrap)
+            .collect();
+        rows.sort();
+        out.push_str(&format!("-- {name}: {} rows\n", rows.len()));
+        for row in rows {
+            out.push_str(&row);
+            out.push('\n');
+        }
+    }
+    out
+}
+
+/// The shop file's bytes and the files SQLite keeps beside it (none after a clean exit).
+fn file_state(db: &Path) -> (Vec<u8>, bool) {
+    let wal = PathBuf::from(format!("{}-wal", db.display()));
+    (
+        std::fs::read(db).expect("the shop file is readable"),
+        wal.exists(),
+    )
+}
+
+fn count(db: &Path, table: &str) -> i64 {
+    let conn = Connection::open(db).unwrap();
+    conn.query_row(&format!("SELECT count(*) FROM {table}"), [], |r| r.get(0))
+        .unwrap()
+}
+
+/// Parses CSV text into rows of cells.
+fn csv_rows(text: &str) -> Vec<Vec<String>> {
+    let mut r = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .from_reader(text.as_bytes());
+    r.records()
+        .map(|rec| rec.unwrap().iter().map(str::to_string).collect())
+        .collect()
+}
+
+// ---------------------------------------------------------------------------------------------
+// 1. The corpus of refused input
+
+struct Expectation {
+    file: String,
+    kind: String,
+    line: u64,
+    column: String,
+    reason: String,
+}
+
+fn expectations() -> Vec<Expectation> {
+    let table = std::fs::read_to_string(corpus().join("expected.tsv")).unwrap();
+    table
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.trim().is_empty())
+        .map(|l| {
+            let f: Vec<&str> = l.split('\t').collect();
+            assert_eq!(
+                f.len(),
+                5,
+                "expected.tsv: five tab-separated fields in {l:?}"
+            );
+            Expectation {
+                file: f[0].into(),
+                kind: f[1].into(),
+                line: f[2].parse().unwrap(),
+                column: f[3].into(),
+                reason: f[4].into(),
+            }
+        })
+        .collect()
+}
+
+/// Imports `file` as `kind` into a copy of `base` and checks the refusal against `expect`.
+/// Returns what went wrong, if anything.
+fn refused_cleanly(
+    dir: &Path,
+    base: &Path,
+    n: usize,
+    file: &Path,
+    kind: &str,
+    expect: &Expectation,
+) -> Option<String> {
+    let db = dir.join(format!("case-{n}.sqlite"));
+    std::fs::copy(base, &db).unwrap();
+    let before = (file_state(&db), dump(&db));
+    let out = run(&db, &["import", kind, path_str(file)]);
+    let stderr = text(&out.stderr);
+    let after = (file_state(&db), dump(&db));
+    let mut problems = Vec::new();
+    if out.status.code() != Some(2) {
+        problems.push(format!("exit {:?}, expected 2", out.status.code()));
+    }
+    let place = format!("{}:{}: {}: ", file.display(), expect.line, expect.column);
+    let named = stderr.lines().find(|l| l.contains(&place));
+    match named {
+        None => problems.push(format!("no line with `{place}`")),
+        Some(l) if !l.contains(&expect.reason) => problems.push(format!(
+            "the line for `{place}` does not say `{}`",
+            expect.reason
+        )),
+        Some(_) => {}
+    }
+    if stderr.contains("panicked") {
+        problems.push("it panicked".into());
+    }
+    if after.0 != before.0 {
+        problems.push("the shop file's bytes changed".into());
+    }
+    if after.1 != before.1 {
+        problems.push("the stored data changed".into());
+    }
+    if problems.is_empty() {
+        None
+    } else {
+        Some(format!(
+            "{} ({kind}): {}\n  stderr: {}",
+            expect.file,
+            problems.join("; "),
+            short(stderr.trim_end())
+        ))
+    }
+}
+
+#[test]
+fn every_file_of_the_bad_input_corpus_is_refused_with_its_place_and_reason() {
+    let dir = tempfile::tempdir().unwrap();
+    let base = base_shop(dir.path());
+    let table = expectations();
+    assert!(
+        table.len() >= 40,
+        "the corpus holds {} refused files; at least 40 are wanted",
+        table.len()
+    );
+    for kind in ["units", "checks", "samples", "events"] {
+        assert!(
+            table.iter().filter(|e| e.kind == kind).count() >= 5,
+            "too few {kind} files in the corpus"
+        );
+    }
+    let mut failures = Vec::new();
+    for (n, e) in table.iter().enumerate() {
+        let file = corpus().join(&e.file);
+        assert!(
+            file.is_file(),
+            "{} is listed in expected.tsv but missing",
+            e.file
+        );
+        if let Some(f) = refused_cleanly(dir.path(), &base, n, &file, &e.kind, e) {
+            failures.push(f);
+        }
+    }
+    // Every corpus file is in the table, so none is forgotten.
+    for entry in std::fs::read_dir(corpus()).unwrap() {
+        let name = entry.unwrap().file_name().to_string_lossy().into_owned();
+        if name.ends_with(".csv") {
+            assert!(
+                table.iter().any(|e| e.file == name),
+                "{name} is in tests/bad_input but not in expected.tsv"
+            );
+        }
+    }
+    assert!(
+        failures.is_empty(),
+        "{} of {} corpus files misbehaved:\n{}",
+        failures.len(),
+        table.len(),
+        failures.join("\n")
+    );
+}
+
+/// Files too large to commit, made here: 10 MB on one line with no line break at all, a header
+/// followed by a single 10 MB row, and a quote left open before 10 MB of short lines.
+#[test]
+fn ten_megabytes_on_one_line_is_refused_without_harm() {
+    let dir = tempfile::tempdir().unwrap();
+    let base = base_shop(dir.path());
+    let ten_mb = 10 * 1024 * 1024;
+
+    let one_line = dir.path().join("one_line.csv");
+    let mut f = std::fs::File::create(&one_line).unwrap();
+    f.write_all(b"unit_tag,taken_at,").unwrap();
+    f.write_all(&vec![b'x'; ten_mb]).unwrap();
+    drop(f);
+    let e = Expectation {
+        file: "one_line.csv".into(),
+        kind: "checks".into(),
+        line: 1,
+        column: "header".into(),
+        reason: "longer than".into(),
+    };
+    let r1 = refused_cleanly(dir.path(), &base, 1, &one_line, "checks", &e);
+
+    let big_row = dir.path().join("big_row.csv");
+    let mut f = std::fs::File::create(&big_row).unwrap();
+    f.write_all(b"unit_tag,taken_at,note\nPR-07-HPU,2025-02-03T07:30:00Z,")
+        .unwrap();
+    f.write_all(&vec![b'y'; ten_mb]).unwrap();
+    drop(f);
+    let e = Expectation {
+        file: "big_row.csv".into(),
+        kind: "checks".into(),
+        line: 2,
+        column: "row".into(),
+        reason: "longer than".into(),
+    };
+    let r2 = refused_cleanly(dir.path(), &base, 2, &big_row, "checks", &e);
+
+    // A quote opened and never closed, followed by 10 MB of short lines: the reader would take
+    // them all into the one cell.
+    let run_on = dir.path().join("run_on.csv");
+    let mut f = std::io::BufWriter::new(std::fs::File::create(&run_on).unwrap());
+    f.write_all(b"unit_tag,taken_at,note\nPR-07-HPU,2025-02-03T07:30:00Z,\"opened here\n")
+        .unwrap();
+    for i in 0..(ten_mb / 40) {
+        writeln!(f, "PR-07-HPU,2025-02-04T07:30:00Z,line {i:>10}").unwrap();
+    }
+    drop(f);
+    let e = Expectation {
+        file: "run_on.csv".into(),
+        kind: "checks".into(),
+        line: 2,
+        column: "note".into(),
+        reason: "runs on for more than".into(),
+    };
+    let r3 = refused_cleanly(dir.path(), &base, 3, &run_on, "checks", &e);
+    let failures: Vec<String> = [r1, r2, r3].into_iter().flatten().collect();
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn valid_variants_import_bom_semicolon_tab_crlf_us_units_quotes() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let good = corpus().join("good");
+    let checks_before = count(&db, "checks");
+    for (file, kind, rows) in [
+        ("checks_bom.csv", "checks", 2),
+        ("checks_semicolon_crlf.csv", "checks", 2),
+        ("samples_tab.csv", "samples", 1),
+        ("checks_us_units.csv", "checks", 1),
+        ("checks_quoted_and_guarded.csv", "checks", 2),
+    ] {
+        let out = ok(&db, &["import", kind, path_str(&good.join(file)), "--json"]);
+        let summary: serde_json::Value = serde_json::from_str(&out).unwrap();
+        assert_eq!(summary["inserted"], rows, "{file}: {out}");
+        // A second import of the same file adds nothing.
+        let again: serde_json::Value = serde_json::from_str(&ok(
+            &db,
+            &["import", kind, path_str(&good.join(file)), "--json"],
+        ))
+        .unwrap();
+        assert_eq!(again["inserted"], 0, "{file}");
+        assert_eq!(again["unchanged"], rows, "{file}");
+    }
+    assert_eq!(count(&db, "checks"), checks_before + 7);
+    let conn = Connection::open(&db).unwrap();
+    let q = |sql: &str| -> String { conn.query_row(sql, [], |r| r.get(0)).unwrap() };
+    // The byte-order mark is not part of the first column's name, so the rows found their unit.
+    assert_eq!(
+        q("SELECT note FROM checks WHERE taken_at = '2025-02-13T07:30:00Z'"),
+        "hose; pump side"
+    );
+    assert_eq!(
+        q("SELECT note FROM checks WHERE taken_at = '2025-02-16T07:30:00Z'"),
+        "top-up, 2 L; see \"log\""
+    );
+    // The formula guard of an export is taken off again.
+    assert_eq!(
+        q("SELECT note FROM checks WHERE taken_at = '2025-02-17T07:30:00Z'"),
+        "=SUM(A1:A3)"
+    );
+    // 113 °F = 45 °C and 2500 psi = 172.369 bar (NIST SP 811: 1 psi = 6894.757293168 Pa).
+    let (t, p): (f64, f64) = conn
+        .query_row("SELECT reservoir_temp_c, pressure_bar FROM checks WHERE taken_at = '2025-02-15T07:30:00Z'", [], |r| {
+            Ok((r.get(0)?, r.get(1)?))
+        })
+        .unwrap();
+    assert!((t - 45.0).abs() < 1e-9, "{t}");
+    assert!((p - 2500.0 * 6894.757293168 / 1e5).abs() < 1e-6, "{p}");
+}
+
+/// The quantity parser's half of the corpus: bad quantities on the command line.
+#[test]
+fn bad_quantities_on_the_command_line_are_refused_with_what_is_expected() {
+    let table = std::fs::read_to_string(corpus().join("quantities.tsv")).unwrap();
+    let mut failures = Vec::new();
+    let mut n = 0;
+    for line in table
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.is_empty())
+    {
+        let f: Vec<&str> = line.split('\t').collect();
+        assert_eq!(f.len(), 3, "quantities.tsv: three fields in {line:?}");
+        let (option, value, expected) = (f[0], f[1], f[2]);
+        n += 1;
+        let args: Vec<&str> = match option {
+            "--pressure" => vec!["calc", "power", "--flow", "12gpm", "--pressure", value],
+            "--flow" => vec!["calc", "power", "--flow", value, "--pressure", "2500psi"],
+            "--at" => vec![
+                "calc", "visc", "--kv40", "46", "--kv100", "6.8", "--at", value,
+            ],
+            "--bore" => vec![
+                "calc", "flow", "--bore", value, "--stroke", "400mm", "--time", "2.5s",
+            ],
+            "--time" => vec![
+                "calc", "flow", "--bore", "100mm", "--stroke", "400mm", "--time", value,
+            ],
+            "--kv40" => vec![
+                "calc", "visc", "--kv40", value, "--kv100", "6.8", "--at", "20C",
+            ],
+            other => panic!("quantities.tsv: no command for {other}"),
+        };
+        let out = sumpbook().args(&args).output().unwrap();
+        let stderr = text(&out.stderr);
+        let want = format!("{option}: ");
+        if out.status.code() != Some(2)
+            || !stderr.contains(&want)
+            || !stderr.contains(expected)
+            || stderr.contains("panicked")
+        {
+            failures.push(format!(
+                "{option} {value:?}: exit {:?}, stderr {}",
+                out.status.code(),
+                stderr.trim_end()
+            ));
+        }
+    }
+    assert!(n >= 20, "only {n} bad quantities");
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+// ---------------------------------------------------------------------------------------------
+// 2. Keep-going imports
+
+#[test]
+fn keep_going_imports_good_rows_and_writes_each_refused_row_with_its_reason() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let header = "unit_tag,taken_at,reservoir_temp_c,ambient_temp_c,pressure_bar,stroke_time_s,cycle_time_s,oil_level,filter,hours,case_drain_lpm,by,note";
+    let lines = [
+        header,
+        "PR-07-HPU,2025-03-01T07:30:00Z,45,21,172,3.9,,ok,ok,10400,,AK,good one",
+        "PR-07-HPU,2025-03-02T07:30:00Z,500,21,172,3.9,,ok,ok,10440,,AK,too hot",
+        "BR-02-HPU,2025-03-02T07:40:00Z,41,21,150,2.1,,ok,ok,8000,,AK,good two",
+        "PR-07-HPU,03/04/2025,45,21,172,3.9,,ok,ok,10480,,AK,day or month?",
+        "",
+        "PR-07-HPU,2025-03-03T07:30:00Z,46,20,171,\"3.95\",,ok,alert,10520,,AK,\"good, three\"",
+        "PR-99-HPU,2025-03-03T07:30:00Z,45,21,172,3.9,,ok,ok,10520,,AK,no such unit",
+        // The same values as a stored check: nothing to write, not refused.
+        "PR-07-HPU,2025-01-06T07:30:00Z,45,21,172,3.9,,ok,ok,10040,,AK,",
+        "PR-07-HPU,2025-03-04T07:30:00Z,45,21,172,3.9,,ok,ok,10560,,AK,one too many,surplus",
+        "BR-02-HPU,2025-03-04T07:40:00Z,42,21,151,2.1,,ok,ok,8040,,AK,good four",
+    ];
+    let file = dir.path().join("mixed.csv");
+    std::fs::write(&file, lines.join("\n") + "\n").unwrap();
+    let checks_before = count(&db, "checks");
+
+    // All or nothing by default: refused, every bad row named, nothing written.
+    let before = dump(&db);
+    let out = run(&db, &["import", "checks", path_str(&file)]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = text(&out.stderr);
+    for line in [3, 5, 8, 10] {
+        assert!(
+            err.contains(&format!("{}:{line}: ", file.display())),
+            "line {line} not reported:\n{err}"
+        );
+    }
+    assert_eq!(dump(&db), before, "a refused import wrote something");
+
+    let out = ok(
+        &db,
+        &[
+            "import",
+            "checks",
+            path_str(&file),
+            "--keep-going",
+            "--json",
+        ],
+    );
+    let s: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(
+        (s["rows"].as_u64(), s["inserted"].as_u64()),
+        (Some(9), Some(4)),
+        "{out}"
+    );
+    assert_eq!(
+        (s["unchanged"].as_u64(), s["rejected"].as_u64()),
+        (Some(1), Some(4)),
+        "{out}"
+    );
+    assert_eq!(
+        s["rows"],
+        s["inserted"].as_u64().unwrap()
+            + s["unchanged"].as_u64().unwrap()
+            + s["rejected"].as_u64().unwrap()
+    );
+    assert_eq!(count(&db, "checks"), checks_before + 4);
+    let conn = Connection::open(&db).unwrap();
+    let notes: Vec<String> = conn
+        .prepare("SELECT note FROM checks WHERE taken_at >= '2025-03-01' ORDER BY taken_at")
+        .unwrap()
+        .query_map([], |r| r.get(0))
+        .unwrap()
+        .map(Result::unwrap)
+        .collect();
+    assert_eq!(notes, ["good one", "good two", "good, three", "good four"]);
+    drop(conn);
+
+    let rejects_path = PathBuf::from(s["rejects_file"].as_str().expect("a rejects file is named"));
+    assert_eq!(rejects_path, dir.path().join("mixed.rejects.csv"));
+    let rejects = csv_rows(&std::fs::read_to_string(&rejects_path).unwrap());
+    let mut head: Vec<String> = header.split(',').map(str::to_string).collect();
+    head.push("reject_reason".into());
+    assert_eq!(
+        rejects[0], head,
+        "the rejects file has the same columns plus the reason"
+    );
+    assert_eq!(rejects.len() - 1, 4, "one row per refused row");
+    let original = csv_rows(&(lines.join("\n") + "\n"));
+    for (reject, (source_line, reason)) in rejects[1..].iter().zip([
+        (2, "reservoir_temp_c: must be between -40 and 150 °C"),
+        (4, "taken_at: "),
+        (6, "unit_tag: no unit `PR-99-HPU` in this shop"),
+        (8, "has 14 cells but the header names 13 columns"),
+    ]) {
+        let src = original
+            .iter()
+            .filter(|r| r.iter().any(|c| !c.is_empty()))
+            .nth(source_line)
+            .unwrap();
+        assert_eq!(
+            &reject[..13],
+            &src[..13],
+            "the refused row is kept as written"
+        );
+        assert!(
+            reject[13].contains(reason),
+            "reason `{}` should say `{reason}`",
+            reject[13]
+        );
+    }
+    // The surplus cell of the too-long row is not lost: the reason quotes it.
+    assert!(rejects[4][13].contains("surplus"), "{}", rejects[4][13]);
+
+    // Again: nothing new, the same rows refused, and the rejects file replaced, not appended.
+    let s2: serde_json::Value = serde_json::from_str(&ok(
+        &db,
+        &[
+            "import",
+            "checks",
+            path_str(&file),
+            "--keep-going",
+            "--json",
+        ],
+    ))
+    .unwrap();
+    assert_eq!(
+        (
+            s2["inserted"].as_u64(),
+            s2["unchanged"].as_u64(),
+            s2["rejected"].as_u64()
+        ),
+        (Some(0), Some(5), Some(4))
+    );
+    assert_eq!(
+        csv_rows(&std::fs::read_to_string(&rejects_path).unwrap()).len(),
+        5
+    );
+
+    // The rejects file, once corrected, imports as it stands (its reason column is ignored).
+    let fixed = std::fs::read_to_string(&rejects_path)
+        .unwrap()
+        .replace(",500,", ",50,")
+        .replace("03/04/2025", "2025-03-05T07:30:00Z")
+        .replace("PR-99-HPU", "BR-02-HPU");
+    let fixed_path = dir.path().join("fixed.csv");
+    std::fs::write(&fixed_path, fixed).unwrap();
+    let s3: serde_json::Value = serde_json::from_str(&ok(
+        &db,
+        &["import", "checks", path_str(&fixed_path), "--json"],
+    ))
+    .unwrap();
+    assert_eq!(s3["inserted"].as_u64(), Some(4), "{s3}");
+    assert_eq!(count(&db, "checks"), checks_before + 8);
+}
+
+// ---------------------------------------------------------------------------------------------
+// 3. Killed at any moment
+
+/// A checks file of `n` rows for the two corpus units, starting at `start_day` (days after
+/// 2015-01-01), one row per unit and hour.
+fn big_checks_file(path: &Path, n: usize, start_day: i64) {
+    let start = chrono::NaiveDate::from_ymd_opt(2015, 1, 1)
+        .unwrap()
+        .and_hms_opt(0, 0, 0)
+        .unwrap()
+        .and_utc()
+        + chrono::Duration::days(start_day);
+    let mut f = std::io::BufWriter::new(std::fs::File::create(path).unwrap());
+    writeln!(
+        f,
+        "unit_tag,taken_at,reservoir_temp_c,ambient_temp_c,pressure_bar,stroke_time_s,hours,note"
+    )
+    .unwrap();
+    for i in 0..n {
+        let unit = if i % 2 == 0 { "PR-07-HPU" } else { "BR-02-HPU" };
+        let at = start + chrono::Duration::hours((i / 2) as i64);
+        writeln!(
+            f,
+            "{unit},{},{:.1},{:.1},{},{:.2},{},row {i}",
+            at.format("%Y-%m-%dT%H:%M:%SZ"),
+            40.0 + (i % 13) as f64 * 0.5,
+            18.0 + (i % 7) as f64,
+            160 + i % 20,
+            3.5 + (i % 11) as f64 * 0.03,
+            1000 + i / 2
+        )
+        .unwrap();
+    }
+}
+
+fn integrity(db: &Path) -> String {
+    let conn = Connection::open(db).unwrap();
+    conn.query_row("PRAGMA integrity_check", [], |r| r.get(0))
+        .unwrap()
+}
+
+#[test]
+fn an_import_killed_at_random_moments_is_wholly_present_or_wholly_absent() {
+    let dir = tempfile::tempdir().unwrap();
+    let base = base_shop(dir.path());
+    // Large enough that a kill usually lands inside the import's transaction, small enough to
+    // keep the test to a few seconds.
+    let rows = 2_500;
+    let file = dir.path().join("big.csv");
+    big_checks_file(&file, rows, 400);
+    let base_checks = count(&base, "checks");
+
+    // How long a whole import takes here, to aim the kills across all of it.
+    let timing = dir.path().join("timing.sqlite");
+    std::fs::copy(&base, &timing).unwrap();
+    let t0 = std::time::Instant::now();
+    ok(&timing, &["import", "checks", path_str(&file)]);
+    let full = t0.elapsed();
+    assert_eq!(count(&timing, "checks"), base_checks + rows as i64);
+
+    // A small generator of its own, seeded from the clock and printed, so a failure can be rerun.
+    let mut seed = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .unwrap()
+        .as_nanos() as u64
+        | 1;
+    eprintln!("kill test: seed {seed}, a whole import takes {full:?}");
+    let mut next = move || {
+        seed ^= seed << 13;
+        seed ^= seed >> 7;
+        seed ^= seed << 17;
+        seed
+    };
+    let (mut killed, mut absent, mut present) = (0, 0, 0);
+    // Until 20 kills have landed while the import ran (a busy machine makes some imports end
+    // sooner or later than the timing run), at most 60 rounds.
+    let mut rounds = 0;
+    while killed < 20 && rounds < 60 {
+        let round = rounds;
+        rounds += 1;
+        let db = dir.path().join(format!("kill-{round}.sqlite"));
+        std::fs::copy(&base, &db).unwrap();
+        let wait = full.mul_f64((next() % 1000) as f64 / 1000.0 * 0.8);
+        let mut child = sumpbook()
+            .arg("--db")
+            .arg(&db)
+            .args(["import", "checks", path_str(&file)])
+            .stdout(std::process::Stdio::null())
+            .stderr(std::process::Stdio::null())
+            .spawn()
+            .unwrap();
+        std::thread::sleep(wait);
+        // `kill` is SIGKILL on Unix: no chance to clean up.
+        let was_running = child.try_wait().unwrap().is_none();
+        child.kill().ok();
+        let status = child.wait().unwrap();
+        if was_running && !status.success() {
+            killed += 1;
+        }
+        assert_eq!(integrity(&db), "ok", "round {round}: killed after {wait:?}");
+        let n = count(&db, "checks");
+        if n == base_checks {
+            absent += 1;
+        } else if n == base_checks + rows as i64 {
+            present += 1;
+        } else {
+            panic!(
+                "round {round}: killed after {wait:?}, {} of {rows} rows are stored",
+                n - base_checks
+            );
+        }
+        if status.success() {
+            assert_eq!(
+                n,
+                base_checks + rows as i64,
+                "round {round}: exit 0 but the rows are missing"
+            );
+        }
+    }
+    eprintln!("kill test: {killed} killed mid-way, {absent} left nothing, {present} completed");
+    assert!(
+        killed >= 20,
+        "only {killed} of {rounds} kills landed while the import ran"
+    );
+}
+
+// ---------------------------------------------------------------------------------------------
+// 4. Two writers
+
+#[test]
+fn two_processes_importing_at_once_lose_nothing_and_never_report_a_lock() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let mut expected = count(&db, "checks");
+    for round in 0..3 {
+        let a = dir.path().join(format!("a-{round}.csv"));
+        let b = dir.path().join(format!("b-{round}.csv"));
+        // Disjoint days: 3000 rows each.
+        big_checks_file(&a, 3000, 600 + round * 200);
+        big_checks_file(&b, 3000, 700 + round * 200);
+        let spawn = |f: &Path| {
+            sumpbook()
+                .arg("--db")
+                .arg(&db)
+                .args(["import", "checks", path_str(f)])
+                .stdout(std::process::Stdio::piped())
+                .stderr(std::process::Stdio::piped())
+                .spawn()
+                .unwrap()
+        };
+        let (pa, pb) = (spawn(&a), spawn(&b));
+        for (name, p) in [("a", pa), ("b", pb)] {
+            let out = p.wait_with_output().unwrap();
+            let err = text(&out.stderr);
+            assert!(
+                out.status.success(),
+                "round {round} {name}: {}",
+                short(&err)
+            );
+            assert!(
+                !err.to_lowercase().contains("locked") && !err.to_lowercase().contains("busy"),
+                "{err}"
+            );
+        }
+        expected += 6000;
+        assert_eq!(count(&db, "checks"), expected, "round {round}");
+    }
+    assert_eq!(integrity(&db), "ok");
+}
+
+#[test]
+fn two_processes_logging_checks_at_once_lose_nothing_and_never_report_a_lock() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let before = count(&db, "checks");
+    let per_writer = 15;
+    let writer = |unit: &'static str, hour: u32| {
+        let db = db.clone();
+        std::thread::spawn(move || {
+            let mut failures = Vec::new();
+            for i in 0..per_writer {
+                let at = format!("2025-04-{:02}T{hour:02}:{:02}:00Z", 1 + i / 4, (i % 4) * 15);
+                let out = run(
+                    &db,
+                    &[
+                        "log-check",
+                        unit,
+                        "--at",
+                        &at,
+                        "--reservoir-temp",
+                        "45C",
+                        "--ambient-temp",
+                        "21C",
+                        "--pressure",
+                        "172bar",
+                        "--stroke-time",
+                        "3.9s",
+                        "--by",
+                        "AK",
+                        "--confirm",
+                    ],
+                );
+                let err = text(&out.stderr);
+                if !out.status.success()
+                    || err.to_lowercase().contains("locked")
+                    || err.to_lowercase().contains("busy")
+                {
+                    failures.push(format!("{unit} {at}: {:?} {err}", out.status.code()));
+                }
+            }
+            failures
+        })
+    };
+    let (a, b) = (writer("PR-07-HPU", 7), writer("BR-02-HPU", 8));
+    let failures: Vec<String> = a
+        .join()
+        .unwrap()
+        .into_iter()
+        .chain(b.join().unwrap())
+        .collect();
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+    assert_eq!(count(&db, "checks"), before + 2 * per_writer as i64);
+    let conn = Connection::open(&db).unwrap();
+    let n: i64 = conn
+        .query_row("SELECT count(*) FROM checks WHERE taken_at LIKE '2025-04-%' AND taken_by = 'AK' AND pressure_bar = 172", [], |r| r.get(0))
+        .unwrap();
+    assert_eq!(n, 2 * per_writer as i64, "every value arrived as typed");
+}
+
+#[test]
+fn log_check_refuses_impossible_values_and_names_the_field() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let before = dump(&db);
+    for (args, expect) in [
+        (vec!["--reservoir-temp", "500C"], "reservoir_temp"),
+        (vec!["--stroke-time", "-2s"], "stroke_time"),
+        (vec!["--pressure", "2500"], "pressure"),
+        (vec!["--at", "2099-01-01T00:00:00Z"], "in the future"),
+        (vec!["--at", "03/04/2025"], "--at"),
+        (vec!["--oil-level", "half"], "oil_level"),
+    ] {
+        let mut full = vec!["log-check", "PR-07-HPU", "--by", "AK"];
+        full.extend(args.iter());
+        let out = run(&db, &full);
+        let err = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+        assert!(err.contains(expect), "{args:?}: {err}");
+    }
+    let out = run(
+        &db,
+        &[
+            "log-check",
+            "PR-99-HPU",
+            "--by",
+            "AK",
+            "--reservoir-temp",
+            "45C",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(2));
+    assert!(text(&out.stderr).contains("PR-99-HPU"));
+    assert_eq!(dump(&db), before, "a refused check wrote something");
+}
+
+// ---------------------------------------------------------------------------------------------
+// 6. Unusable databases
+
+/// Runs read and write commands on `db`; each must exit 2 with a message containing `expect`
+/// and the file's name, must not panic, and must leave the file as it was (or absent).
+fn refused_database(db: &Path, expect: &str, dir: &Path) {
+    let before = std::fs::read(db).ok();
+    let units = corpus().join("shop/units.csv");
+    let backup = dir.join("never.sqlite");
+    let commands: [Vec<&str>; 5] = [
+        vec!["export", "checks"],
+        vec!["status"],
+        vec!["import", "units", path_str(&units)],
+        vec!["backup", "--out", path_str(&backup)],
+        vec![
+            "log-check",
+            "PR-07-HPU",
+            "--by",
+            "AK",
+            "--reservoir-temp",
+            "45C",
+        ],
+    ];
+    for args in &commands {
+        let out = run(db, args);
+        let err = text(&out.stderr);
+        assert_eq!(
+            out.status.code(),
+            Some(2),
+            "{args:?} on {}: {err}",
+            db.display()
+        );
+        assert!(
+            err.contains(expect),
+            "{args:?}: `{err}` should say `{expect}`"
+        );
+        let name = db.file_name().unwrap().to_string_lossy().into_owned();
+        assert!(
+            err.contains(&name),
+            "{args:?}: `{err}` should name the file"
+        );
+        assert!(!err.contains("panicked"), "{err}");
+        assert!(
+            out.stdout.is_empty(),
+            "{args:?} printed {}",
+            text(&out.stdout)
+        );
+        assert_eq!(
+            std::fs::read(db).ok(),
+            before,
+            "{args:?} changed {}",
+            db.display()
+        );
+        assert!(!backup.exists(), "a backup of an unusable file was written");
+    }
+}
+
+#[test]
+fn a_missing_file_given_with_db_is_refused_and_not_created() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("no-such-shop.sqlite");
+    refused_database(&db, "no such file", dir.path());
+    assert!(!db.exists());
+}
+
+#[test]
+fn a_read_only_file_is_refused_with_a_clear_message() {
+    use std::os::unix::fs::PermissionsExt;
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    std::fs::set_permissions(&db, std::fs::Permissions::from_mode(0o444)).unwrap();
+    refused_database(&db, "read-only", dir.path());
+}
+
+#[test]
+fn a_text_file_is_refused_as_not_a_database() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("notes.txt");
+    std::fs::write(&db, "unit_tag,taken_at\nPR-07-HPU,2025-02-03\n").unwrap();
+    refused_database(&db, "not an SQLite database", dir.path());
+}
+
+#[test]
+fn an_sqlite_file_of_another_program_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("inventory.sqlite");
+    let conn = Connection::open(&db).unwrap();
+    conn.execute_batch("CREATE TABLE parts (id INTEGER PRIMARY KEY, name TEXT); INSERT INTO parts (name) VALUES ('seal kit');")
+        .unwrap();
+    drop(conn);
+    refused_database(&db, "another program", dir.path());
+}
+
+#[test]
+fn a_damaged_shop_file_is_refused_with_a_clear_message() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    // Keep the header page and lose the rest, as a half-copied file would.
+    let bytes = std::fs::read(&db).unwrap();
+    let page = u16::from_be_bytes([bytes[16], bytes[17]]) as usize;
+    std::fs::write(&db, &bytes[..page * 2]).unwrap();
+    refused_database(&db, "damaged", dir.path());
+}
+
+#[test]
+fn a_directory_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("a-folder.sqlite");
+    std::fs::create_dir(&db).unwrap();
+    for args in [vec!["export", "checks"], vec!["status"]] {
+        let out = run(&db, &args);
+        assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
+        assert!(
+            text(&out.stderr).contains("directory"),
+            "{}",
+            text(&out.stderr)
+        );
+    }
+}
+
+#[test]
+fn a_file_locked_by_another_process_gives_a_clear_message_after_waiting() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    // This test process is the other program: it holds the file's exclusive lock.
+    let holder = Connection::open(&db).unwrap();
+    holder.execute_batch("PRAGMA locking_mode = EXCLUSIVE; BEGIN EXCLUSIVE; UPDATE settings SET shop_name = shop_name;").unwrap();
+    let t0 = std::time::Instant::now();
+    let out = run(&db, &["export", "checks"]);
+    let err = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("locked by another program"), "{err}");
+    assert!(err.contains("shop.sqlite"), "{err}");
+    // It waited for the lock (the store's busy timeout) before giving up.
+    assert!(
+        t0.elapsed() >= std::time::Duration::from_secs(5),
+        "gave up after {:?}",
+        t0.elapsed()
+    );
+    holder.execute_batch("ROLLBACK").unwrap();
+    drop(holder);
+    // Once the lock is gone the shop is as it was and opens.
+    assert_eq!(integrity(&db), "ok");
+    ok(&db, &["export", "checks"]);
+}
+
+// ---------------------------------------------------------------------------------------------
+// 7. Formula-safe export
+
+#[test]
+fn export_neutralises_formulas_keeps_numbers_and_import_reverses_it() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("a.sqlite");
+    ok(&db, &["init"]);
+    let units = dir.path().join("units.csv");
+    std::fs::write(
+        &units,
+        "machine_tag,machine_name,machine_kind,unit_tag,pump_kind,sensitive_component,fluid_name,fluid_vg,fluid_kv40_cst,fluid_kv100_cst\n\
+         PR-07,\"=HYPERLINK(\"\"http://example.invalid\"\",\"\"x\"\")\",-press-,PR-07-HPU,gear,cylinder,@fluid,46,46,6.8\n",
+    )
+    .unwrap();
+    ok(&db, &["import", "units", path_str(&units)]);
+    let notes = [
+        "=1+2",
+        "+33",
+        "-minus",
+        "@SUM(A1)",
+        "\tTab first",
+        "\rCR first",
+        "'quoted",
+        "plain",
+        "-5",
+    ];
+    let mut csv_text =
+        String::from("unit_tag,taken_at,reservoir_temp_c,ambient_temp_c,pressure_bar,stroke_time_s,hours,by,note\n");
+    for (i, note) in notes.iter().enumerate() {
+        let note = note.replace('"', "\"\"");
+        csv_text.push_str(&format!(
+            "PR-07-HPU,2025-01-{:02}T07:00:00Z,45.5,-30,0,3.9,{},=cmd|' /C calc'!A0,\"{note}\"\n",
+            i + 1,
+            100 + i
+        ));
+    }
+    let checks = dir.path().join("checks.csv");
+    std::fs::write(&checks, &csv_text).unwrap();
+    ok(&db, &["import", "checks", path_str(&checks)]);
+
+    let exported = ok(&db, &["export", "checks"]);
+    let rows = csv_rows(&exported);
+    let col = |name: &str| rows[0].iter().position(|h| h == name).unwrap();
+    let (note, by, amb) = (col("note"), col("by"), col("ambient_temp_c"));
+    assert_eq!(rows.len(), notes.len() + 1);
+    for (row, original) in rows[1..].iter().zip(notes) {
+        let cell = &row[note];
+        let leads = ['=', '+', '-', '@', '\t', '\r'];
+        assert!(!cell.starts_with(leads), "`{cell}` would run as a formula");
+        if original.starts_with(leads) {
+            assert_eq!(
+                cell,
+                &format!("'{original}"),
+                "text cells are guarded by a quote"
+            );
+        } else {
+            assert_eq!(cell, original);
+        }
+        assert_eq!(row[by], "'=cmd|' /C calc'!A0");
+        // Numbers, negative ones too, stay numbers.
+        assert_eq!(row[amb], "-30");
+        for (i, h) in rows[0].iter().enumerate() {
+            if h.ends_with("_c") || h.ends_with("_bar") || h.ends_with("_s") || h == "hours" {
+                assert!(
+                    row[i].is_empty() || row[i].parse::<f64>().is_ok(),
+                    "{h} = `{}` is not a plain number",
+                    row[i]
+                );
+            }
+        }
+    }
+    let us = ok(&db, &["export", "checks", "--units", "us"]);
+    let us_rows = csv_rows(&us);
+    let amb_f = us_rows[0]
+        .iter()
+        .position(|h| h == "ambient_temp_f")
+        .unwrap();
+    // −30 °C = −22 °F exactly (°F = °C × 9/5 + 32).
+    assert!(us_rows[1..].iter().all(|r| r[amb_f] == "-22"), "{us}");
+
+    let register = ok(&db, &["export", "units"]);
+    let reg = csv_rows(&register);
+    let rc = |name: &str| reg[0].iter().position(|h| h == name).unwrap();
+    assert_eq!(
+        reg[1][rc("machine_name")],
+        "'=HYPERLINK(\"http://example.invalid\",\"x\")"
+    );
+    assert_eq!(reg[1][rc("machine_kind")], "'-press-");
+    assert_eq!(reg[1][rc("fluid_name")], "'@fluid");
+
+    // Import reverses it: the exports read into a new shop give back the same text and values.
+    let db2 = dir.path().join("b.sqlite");
+    ok(&db2, &["init"]);
+    let (reg_file, checks_file) = (
+        dir.path().join("reg-out.csv"),
+        dir.path().join("checks-out.csv"),
+    );
+    std::fs::write(&reg_file, &register).unwrap();
+    std::fs::write(&checks_file, &exported).unwrap();
+    ok(&db2, &["import", "units", path_str(&reg_file)]);
+    ok(&db2, &["import", "checks", path_str(&checks_file)]);
+    assert_eq!(ok(&db2, &["export", "checks"]), exported);
+    assert_eq!(ok(&db2, &["export", "units"]), register);
+    let conn = Connection::open(&db2).unwrap();
+    let stored: Vec<String> = conn
+        .prepare("SELECT note FROM checks ORDER BY taken_at")
+        .unwrap()
+        .query_map([], |r| r.get(0))
+        .unwrap()
+        .map(Result::unwrap)
+        .collect();
+    assert_eq!(stored, notes);
+    let name: String = conn
+        .query_row("SELECT name FROM machines", [], |r| r.get(0))
+        .unwrap();
+    assert_eq!(name, "=HYPERLINK(\"http://example.invalid\",\"x\")");
+}
+
+// ---------------------------------------------------------------------------------------------
+// 5. Migrations, backups, newer files
+
+/// The migration folders `migrations/N-name/up.sql`, in order.
+fn migrations() -> Vec<(usize, String)> {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("migrations");
+    let mut out: Vec<(usize, String)> = std::fs::read_dir(&dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.is_dir())
+        .map(|p| {
+            let name = p.file_name().unwrap().to_string_lossy().into_owned();
+            let n: usize = name
+                .split('-')
+                .next()
+                .unwrap()
+                .parse()
+                .expect("migration folders are N-name");
+            (n, std::fs::read_to_string(p.join("up.sql")).unwrap())
+        })
+        .collect();
+    out.sort();
+    for (i, (n, _)) in out.iter().enumerate() {
+        assert_eq!(*n, i + 1, "migration numbers run 1, 2, 3, ... without gaps");
+    }
+    out
+}
+
+/// A shop file at schema `version` with that version's fixture rows, made the way that
+/// version of sumpbook made it: its migrations applied in order, `user_version` set, WAL on.
+fn shop_at_version(path: &Path, version: usize) {
+    let conn = Connection::open(path).unwrap();
+    conn.execute_batch("PRAGMA journal_mode = WAL; PRAGMA foreign_keys = ON;")
+        .unwrap();
+    for (n, sql) in migrations().into_iter().take(version) {
+        conn.execute_batch(&format!(
+            "BEGIN; {sql}\n; PRAGMA user_version = {n}; COMMIT;"
+        ))
+        .unwrap();
+    }
+    let data =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("tests/migrations/data-v{version}.sql"));
+    let rows = std::fs::read_to_string(&data).unwrap_or_else(|_| {
+        panic!(
+            "{} is missing: every earlier schema version needs its fixture rows",
+            data.display()
+        )
+    });
+    conn.execute_batch(&rows).unwrap();
+}
+
+/// Every row of every table as the columns it had at the older version, so that an upgrade
+/// that adds columns still compares equal on what was there.
+fn rows_by_table(db: &Path, tables: &[(String, Vec<String>)]) -> Vec<(String, Vec<String>)> {
+    let conn = Connection::open(db).unwrap();
+    tables
+        .iter()
+        .map(|(t, cols)| {
+            let list = cols
+                .iter()
+                .map(|c| format!("\"{c}\""))
+                .collect::<Vec<_>>()
+                .join(", ");
+            let mut st = conn
+                .prepare(&format!("SELECT {list} FROM \"{t}\""))
+                .unwrap();
+            let n = cols.len();
+            let mut rows: Vec<String> = st
+                .query_map([], |r| {
+                    Ok((0..n)
+                        .map(|i| format!("{:?}", r.get_ref(i).unwrap().to_owned()))
+                        .collect::<Vec<_>>()
+                        .join("|"))
+                })
+                .unwrap()
+                .map(Result::unwrap)
+                .collect();
+            rows.sort();
+            (t.clone(), rows)
+        })
+        .collect()
+}
+
+fn tables_and_columns(db: &Path) -> Vec<(String, Vec<String>)> {
+    let conn = Connection::open(db).unwrap();
+    let names: Vec<String> = conn
+        .prepare("SELECT name FROM sqlite_schema WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name")
+        .unwrap()
+        .query_map([], |r| r.get(0))
+        .unwrap()
+        .map(Result::unwrap)
+        .collect();
+    names
+        .into_iter()
+        .map(|t| {
+            let cols: Vec<String> = conn
+                .prepare(&format!(
+                    "SELECT name FROM pragma_table_info('{t}') ORDER BY cid"
+                ))
+                .unwrap()
+                .query_map([], |r| r.get(0))
+                .unwrap()
+                .map(Result::unwrap)
+                .collect();
+            (t, cols)
+        })
+        .collect()
+}
+
+fn user_version(db: &Path) -> usize {
+    let conn = Connection::open(db).unwrap();
+    conn.query_row("PRAGMA user_version", [], |r| r.get::<_, i64>(0))
+        .unwrap() as usize
+}
+
+#[test]
+fn a_shop_of_every_earlier_schema_version_upgrades_with_all_its_rows_and_a_backup_first() {
+    let latest = migrations().len();
+    assert!(latest >= 2, "there is a migration to upgrade through");
+    for version in 1..latest {
+        let dir = tempfile::tempdir().unwrap();
+        let db = dir.path().join("old.sqlite");
+        shop_at_version(&db, version);
+        let shape = tables_and_columns(&db);
+        let old_rows = rows_by_table(&db, &shape);
+        let old_dump = dump(&db);
+        assert!(
+            old_rows.iter().any(|(t, r)| t == "checks" && r.len() >= 5),
+            "the fixture has data"
+        );
+
+        // Any command opens the shop and upgrades it: here a read.
+        let exported = ok(&db, &["export", "checks", "--units", "metric"]);
+        assert_eq!(user_version(&db), latest, "upgraded from {version}");
+        assert_eq!(integrity(&db), "ok");
+        assert_eq!(
+            rows_by_table(&db, &shape),
+            old_rows,
+            "rows changed in the upgrade from {version}"
+        );
+        assert_eq!(csv_rows(&exported).len(), 1 + 6, "every check is exported");
+
+        // The backup beside the file is the shop exactly as it was before the upgrade.
+        let backup = dir
+            .path()
+            .join(format!("old.sqlite.before-schema-{}.sqlite", version + 1));
+        assert!(backup.is_file(), "no backup at {}", backup.display());
+        assert_eq!(dump(&backup), old_dump, "the backup is not the old shop");
+        assert_eq!(integrity(&backup), "ok");
+
+        // The upgraded shop works as a shop: health, export, another open (no second backup).
+        ok(&db, &["status"]);
+        ok(&db, &["export", "units"]);
+        let files = std::fs::read_dir(dir.path()).unwrap().count();
+        ok(&db, &["export", "checks"]);
+        assert_eq!(
+            std::fs::read_dir(dir.path()).unwrap().count(),
+            files,
+            "a second open made another backup"
+        );
+
+        // The same schema as a shop made new by this version.
+        let fresh = dir.path().join("fresh.sqlite");
+        ok(&fresh, &["init"]);
+        let schema = |p: &Path| -> Vec<(String, String)> {
+            let conn = Connection::open(p).unwrap();
+            let mut st = conn
+                .prepare("SELECT name, ifnull(sql, '') FROM sqlite_schema ORDER BY name")
+                .unwrap();
+            let rows: Vec<(String, String)> = st
+                .query_map([], |r| Ok((r.get(0)?, r.get(1)?)))
+                .unwrap()
+                .map(Result::unwrap)
+                .collect();
+            rows
+        };
+        assert_eq!(
+            schema(&db),
+            schema(&fresh),
+            "an upgraded shop differs from a new one"
+        );
+    }
+}
+
+/// The other program upgrades the file while sumpbook waits for the lock: sumpbook has seen the
+/// old version, finds the new one when its turn comes, and must not run the upgrade twice.
+#[test]
+fn an_upgrade_made_by_another_program_while_waiting_is_taken_as_done() {
+    let latest = migrations().len();
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("old.sqlite");
+    shop_at_version(&db, latest - 1);
+    let other = Connection::open(&db).unwrap();
+    other.execute_batch("BEGIN IMMEDIATE").unwrap();
+    let waiting = sumpbook()
+        .arg("--db")
+        .arg(&db)
+        .args(["export", "checks"])
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    // Long enough for it to read the old version and queue for the write lock.
+    std::thread::sleep(std::time::Duration::from_millis(1500));
+    for (n, sql) in migrations().into_iter().skip(latest - 1) {
+        other
+            .execute_batch(&format!("{sql}\n; PRAGMA user_version = {n};"))
+            .unwrap();
+    }
+    other.execute_batch("COMMIT").unwrap();
+    drop(other);
+    let out = waiting.wait_with_output().unwrap();
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    assert_eq!(csv_rows(&text(&out.stdout)).len(), 7);
+    assert_eq!(user_version(&db), latest);
+    assert_eq!(integrity(&db), "ok");
+}
+
+#[test]
+fn two_programs_opening_an_old_shop_at_once_both_succeed() {
+    let latest = migrations().len();
+    for round in 0..4 {
+        let dir = tempfile::tempdir().unwrap();
+        let db = dir.path().join("old.sqlite");
+        shop_at_version(&db, latest - 1);
+        let spawn = || {
+            sumpbook()
+                .arg("--db")
+                .arg(&db)
+                .args(["export", "checks"])
+                .stdout(std::process::Stdio::piped())
+                .stderr(std::process::Stdio::piped())
+                .spawn()
+                .unwrap()
+        };
+        let (a, b) = (spawn(), spawn());
+        for p in [a, b] {
+            let out = p.wait_with_output().unwrap();
+            assert!(out.status.success(), "round {round}: {}", text(&out.stderr));
+            assert_eq!(csv_rows(&text(&out.stdout)).len(), 7, "round {round}");
+        }
+        assert_eq!(user_version(&db), latest);
+        assert_eq!(integrity(&db), "ok");
+    }
+    // And two creating the same new shop at once.
+    for round in 0..4 {
+        let dir = tempfile::tempdir().unwrap();
+        let db = dir.path().join("new.sqlite");
+        let spawn = || {
+            sumpbook()
+                .arg("--db")
+                .arg(&db)
+                .arg("init")
+                .stdout(std::process::Stdio::piped())
+                .stderr(std::process::Stdio::piped())
+                .spawn()
+                .unwrap()
+        };
+        let (a, b) = (spawn(), spawn());
+        for p in [a, b] {
+            let out = p.wait_with_output().unwrap();
+            assert!(
+                out.status.success(),
+                "init round {round}: {}",
+                text(&out.stderr)
+            );
+        }
+        assert_eq!(user_version(&db), latest);
+    }
+}
+
+#[test]
+fn a_shop_from_a_newer_sumpbook_is_refused_and_left_alone() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let latest = migrations().len();
+    {
+        let conn = Connection::open(&db).unwrap();
+        conn.execute_batch(&format!(
+            "PRAGMA user_version = {}; CREATE TABLE from_the_future (id INTEGER PRIMARY KEY);",
+            latest + 1
+        ))
+        .unwrap();
+    }
+    let before = (file_state(&db), dump(&db));
+    for args in [
+        vec!["export", "checks"],
+        vec!["status"],
+        vec![
+            "import",
+            "checks",
+            path_str(&corpus().join("good/checks_bom.csv")),
+        ],
+    ] {
+        let out = run(&db, &args);
+        let err = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{err}");
+        assert!(
+            err.contains("newer sumpbook")
+                && err.contains(&format!("schema version {}", latest + 1)),
+            "{err}"
+        );
+    }
+    assert_eq!(
+        (file_state(&db), dump(&db)),
+        before,
+        "the newer file was changed"
+    );
+    assert!(!std::fs::read_dir(dir.path()).unwrap().any(|e| e
+        .unwrap()
+        .file_name()
+        .to_string_lossy()
+        .contains("before-schema")));
+}
+
+#[test]
+fn backup_on_demand_is_a_consistent_copy_even_while_another_process_imports() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let out_file = dir.path().join("copy.sqlite");
+    ok(&db, &["backup", "--out", path_str(&out_file)]);
+    assert_eq!(dump(&out_file), dump(&db));
+    assert_eq!(integrity(&out_file), "ok");
+    ok(&out_file, &["export", "checks"]);
+
+    // An existing file is never overwritten.
+    let before = std::fs::read(&out_file).unwrap();
+    let again = run(&db, &["backup", "--out", path_str(&out_file)]);
+    assert_eq!(again.status.code(), Some(2), "{}", text(&again.stderr));
+    assert!(text(&again.stderr).contains("exists"));
+    assert_eq!(std::fs::read(&out_file).unwrap(), before);
+
+    // Taken during an import: the copy holds all of it or none of it.
+    let base_checks = count(&db, "checks");
+    let big = dir.path().join("big.csv");
+    big_checks_file(&big, 6000, 900);
+    for round in 0..3 {
+        let mut import = sumpbook()
+            .arg("--db")
+            .arg(&db)
+            .args(["import", "checks", path_str(&big)])
+            .stdout(std::process::Stdio::null())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .unwrap();
+        std::thread::sleep(std::time::Duration::from_millis(30 * round));
+        let copy = dir.path().join(format!("during-{round}.sqlite"));
+        ok(&db, &["backup", "--out", path_str(&copy)]);
+        assert!(import.wait().unwrap().success());
+        let n = count(&copy, "checks");
+        assert!(
+            n == base_checks || n == base_checks + 6000,
+            "round {round}: the copy holds {n} checks"
+        );
+        assert_eq!(integrity(&copy), "ok");
+        // Undo for the next round, as a person would: restore the first copy.
+        std::fs::remove_file(&db).unwrap();
+        for side in ["-wal", "-shm"] {
+            let _ = std::fs::remove_file(format!("{}{side}", db.display()));
+        }
+        std::fs::copy(&out_file, &db).unwrap();
+    }
+}
+
+// ---------------------------------------------------------------------------------------------
+// 8. Properties of the CSV reader (the quantity parser's are beside it in src/quantity.rs)
+
+mod csv_properties {
+    use proptest::prelude::*;
+    use sumpbook::exchange::csv_in::import_reader;
+    use sumpbook::exchange::{csv_out, escape_cell, unescape_cell, FileKind};
+    use sumpbook::store::Store;
+    use sumpbook::units::UnitSystem;
+
+    const REGISTER: &str = "machine_tag,unit_tag,pump_kind,sensitive_component,fluid_name,fluid_vg,fluid_kv40_cst,fluid_kv100_cst\n\
+        PR-07,PR-07-HPU,piston_variable,proportional_valve,Shop HM 46,46,46,6.8\n\
+        BR-02,BR-02-HPU,gear,cylinder,Shop HM 46,46,46,6.8\n";
+
+    fn shop() -> Store {
+        let mut s = Store::open_in_memory().unwrap();
+        import_reader(
+            &mut s,
+            FileKind::Units,
+            "register.csv",
+            REGISTER.as_bytes(),
+            None,
+        )
+        .unwrap();
+        s
+    }
+
+    fn export_all(s: &Store) -> Vec<String> {
+        FileKind::ALL
+            .iter()
+            .map(|&k| {
+                let mut out = Vec::new();
+                csv_out::export(s, k, &mut out, UnitSystem::Metric).unwrap();
+                String::from_utf8(out).unwrap()
+            })
+            .collect()
+    }
+
+    fn kind() -> impl Strategy<Value = FileKind> {
+        prop::sample::select(FileKind::ALL.to_vec())
+    }
+
+    /// Cells made of what breaks CSV readers: delimiters, quotes, line ends, signs, units.
+    fn nasty_cell() -> impl Strategy<Value = String> {
+        prop_oneof![
+            "[,;\t\"\r\n '=+@-]{0,4}",
+            "[0-9.eE+-]{1,8}",
+            "(PR-07-HPU|BR-02-HPU|2025-02-03|2025-02-03T07:30:00Z|45C|NaN|inf|-1|1e309|18/16/13|ok|low|top_up)",
+            any::<String>(),
+        ]
+    }
+
+    fn header_of(kind: FileKind) -> String {
+        csv_out::header(kind, UnitSystem::Metric).join(",")
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 256, ..ProptestConfig::default() })]
+
+        /// Any bytes, with or without a valid header in front: no panic, counts add up, and a
+        /// refused import leaves the shop as it was.
+        #[test]
+        fn any_bytes_import_without_panic_and_a_refusal_writes_nothing(
+            kind in kind(), with_header in any::<bool>(), keep_going in any::<bool>(),
+            body in prop::collection::vec(any::<u8>(), 0..600),
+        ) {
+            let mut s = shop();
+            let before = export_all(&s);
+            let mut file = if with_header { format!("{}\n", header_of(kind)).into_bytes() } else { Vec::new() };
+            file.extend_from_slice(&body);
+            let rejects = keep_going.then(|| std::path::PathBuf::from("/dev/null"));
+            match import_reader(&mut s, kind, "any.csv", file.as_slice(), rejects) {
+                Ok(sum) => prop_assert_eq!(sum.rows, sum.inserted + sum.unchanged + sum.rejected),
+                Err(_) => prop_assert_eq!(export_all(&s), before),
+            }
+        }
+
+        /// Rows of troublesome cells under a valid header, joined by any of the delimiters.
+        #[test]
+        fn rows_of_nasty_cells_import_without_panic(
+            kind in kind(), delim in prop::sample::select(vec![",", ";", "\t"]),
+            rows in prop::collection::vec(prop::collection::vec(nasty_cell(), 0..16), 0..6),
+        ) {
+            let mut s = shop();
+            let before = export_all(&s);
+            let mut text = csv_out::header(kind, UnitSystem::Metric).join(delim);
+            for r in &rows {
+                text.push('\n');
+                text.push_str(&r.join(delim));
+            }
+            if import_reader(&mut s, kind, "nasty.csv", text.as_bytes(), None).is_err() {
+                prop_assert_eq!(export_all(&s), before);
+            }
+        }
+
+        /// Export ∘ import is the identity: checks with any note and by text and values in
+        /// range read back from an export exactly as they were typed.
+        #[test]
+        fn exported_checks_import_to_the_same_values_and_text(
+            checks in prop::collection::btree_map(
+                (0u32..2, 0i64..100_000),
+                (-400i32..=1500, 0u32..=10_000, 1u32..=36_000, any::<String>(), "[A-Za-z=+@' -]{0,6}"),
+                1..12,
+            )
+        ) {
+            let mut a = shop();
+            let mut text = String::from("unit_tag,taken_at,reservoir_temp_c,pressure_bar,stroke_time_s,by,note\n");
+            let mut typed = Vec::new();
+            for ((u, minute), (t10, p10, s100, note, by)) in &checks {
+                let unit = ["PR-07-HPU", "BR-02-HPU"][*u as usize];
+                let at = chrono::DateTime::from_timestamp(1_700_000_000 + minute * 60, 0).unwrap();
+                let at = at.format("%Y-%m-%dT%H:%M:%SZ").to_string();
+                let temp = f64::from(*t10) / 10.0;
+                let pressure = f64::from(*p10) / 10.0;
+                let stroke = f64::from(*s100) / 100.0;
+                let cell = |s: &str| format!("\"{}\"", escape_cell(s).replace('"', "\"\""));
+                text.push_str(&format!("{unit},{at},{temp},{pressure},{stroke},{},{}\n", cell(by), cell(note)));
+                typed.push((unit, at, temp, pressure, stroke, by.clone(), note.clone()));
+            }
+            let sum = import_reader(&mut a, FileKind::Checks, "typed.csv", text.as_bytes(), None).unwrap();
+            prop_assert_eq!(sum.inserted as usize, typed.len());
+            let first = export_all(&a);
+            let mut b = shop();
+            let sum_b = import_reader(&mut b, FileKind::Checks, "export.csv", first[1].as_bytes(), None).unwrap();
+            prop_assert_eq!(sum_b.inserted as usize, typed.len());
+            prop_assert_eq!(&export_all(&b), &first);
+            let back = b.checks_for_unit(b.unit_by_tag("PR-07-HPU").unwrap().unwrap().id, None).unwrap()
+                .into_iter()
+                .chain(b.checks_for_unit(b.unit_by_tag("BR-02-HPU").unwrap().unwrap().id, None).unwrap())
+                .count();
+            prop_assert_eq!(back, typed.len());
+            let rows = super::csv_rows(&first[1]);
+            for (unit, at, temp, pressure, stroke, by, note) in &typed {
+                let row = rows.iter().find(|r| &r[0] == unit && &r[1] == at).expect("every check is exported");
+                prop_assert_eq!(row[2].parse::<f64>().unwrap(), *temp);
+                prop_assert_eq!(row[4].parse::<f64>().unwrap(), *pressure);
+                prop_assert_eq!(row[5].parse::<f64>().unwrap(), *stroke);
+                // Text comes back as typed; only a cell of nothing but blanks is kept as empty.
+                let keep = |s: &str| if s.trim().is_empty() { String::new() } else { s.to_string() };
+                prop_assert_eq!(unescape_cell(&row[11]), keep(by));
+                prop_assert_eq!(unescape_cell(&row[12]), keep(note));
+            }
+        }
+
+        #[test]
+        fn escaping_is_reversed_and_never_leaves_a_formula(s in any::<String>()) {
+            let e = escape_cell(&s);
+            prop_assert_eq!(unescape_cell(&e), s.as_str());
+            prop_assert!(!e.starts_with(['=', '+', '-', '@', '\t', '\r']));
+        }
+    }
+}
