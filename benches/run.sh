@@ -1,0 +1,225 @@
+#!/usr/bin/env bash
+# Benchmarks against the floor (design §9), as ratios measured in one run on this machine:
+#   import      `sumpbook import checks` (full validation) vs the sqlite3 shell's `.import` of the
+#               same CSV into a plain table of the same columns; rows/s, ratio, peak memory at
+#               100 k and 1 M rows; also vs the shell putting the same CSV into the shop's
+#               own checks table (import_schema*.sql), which is what the schema costs
+#   status      `sumpbook status` on 1,000 units x 520 checks + 52 samples vs one full-scan
+#               aggregate query over the same tables in the sqlite3 shell
+#   start-up    app start to first frame on that shop vs on an empty shop (Xvfb)
+#   report      `sumpbook report` for 10 and 100 units (linear: 10x)
+# No absolute time is judged, only ratios. Each timing is the median of several runs, the two
+# sides of a ratio taken in turn so that they share the machine's noise.
+#
+# Usage: bash benches/run.sh            (builds the release binary first if it is missing)
+# Environment: REPS (default 5), IMPORT_REPS (default 3), BENCH_DIR (default target/bench),
+#              SUMPBOOK_BIN (default target/release/sumpbook), ONLY="import status startup report",
+#              REGEN=1 to make the generated shops again.
+# Needs: sqlite3 (Debian package sqlite3), /usr/bin/time (package time), xvfb-run (package xvfb).
+set -euo pipefail
+
+cd "$(dirname "$0")/.."
+ROOT=$(pwd)
+REPS=${REPS:-5}
+IMPORT_REPS=${IMPORT_REPS:-3}
+OUT=${BENCH_DIR:-$ROOT/target/bench}
+BIN=${SUMPBOOK_BIN:-$ROOT/target/release/sumpbook}
+ONLY=${ONLY:-"import status startup report"}
+mkdir -p "$OUT"
+RESULTS="$OUT/results.txt"
+: >"$RESULTS"
+
+for tool in sqlite3 /usr/bin/time; do
+    command -v "$tool" >/dev/null || { echo "benches/run.sh: needs $tool" >&2; exit 1; }
+done
+if [ ! -x "$BIN" ]; then
+    echo "building the release binary (cargo build --release) ..." >&2
+    cargo build --release >&2
+fi
+
+say() { echo "$@" | tee -a "$RESULTS"; }
+want() { case " $ONLY " in *" $1 "*) return 0 ;; *) return 1 ;; esac; }
+ns() { date +%s%N; }
+# secs START END: elapsed seconds between two `ns` stamps.
+secs() { awk -v a="$1" -v b="$2" 'BEGIN { printf "%.3f", (b - a) / 1e9 }'; }
+# median of the numbers given as arguments
+median() { printf '%s\n' "$@" | sort -g | awk '{ v[NR] = $1 } END { if (NR % 2) print v[(NR + 1) / 2]; else printf "%.3f\n", (v[NR / 2] + v[NR / 2 + 1]) / 2 }'; }
+ratio() { awk -v a="$1" -v b="$2" 'BEGIN { if (b > 0) printf "%.2f", a / b; else print "n/a" }'; }
+verdict() { # verdict VALUE OP LIMIT  -> PASS or MISS
+    awk -v v="$1" -v l="$3" -v op="$2" 'BEGIN { ok = (op == "<=") ? (v <= l) : (v >= l); print ok ? "PASS" : "MISS" }'
+}
+# timed OUTFILE RSSFILE CMD...: runs CMD, stdout to OUTFILE, peak RSS (KiB) to RSSFILE; prints seconds.
+timed() {
+    local out=$1 rss=$2; shift 2
+    local a b
+    a=$(ns)
+    /usr/bin/time -f %M -o "$rss" "$@" >"$out" 2>"$out.err" || { echo "failed: $*" >&2; cat "$out.err" >&2; exit 1; }
+    b=$(ns)
+    secs "$a" "$b"
+}
+fresh() { rm -f "$1" "$1-wal" "$1-shm"; }
+
+say "sumpbook benchmarks, $(date -u '+%Y-%m-%d %H:%M UTC')"
+say "machine: $(nproc) cores, $(awk '/MemTotal/ { printf "%.1f GiB", $2 / 1048576 }' /proc/meminfo), load $(cut -d' ' -f1-3 /proc/loadavg)"
+say "sqlite3 shell $(sqlite3 --version | cut -d' ' -f1); binary $BIN ($(git rev-parse --short HEAD 2>/dev/null || echo '?')$(git diff --quiet 2>/dev/null || echo '+changes'))"
+say "medians of $REPS runs ($IMPORT_REPS for the 1 M-row import)"
+say ""
+
+# ------------------------------------------------------------------------------------------
+# Generated shops (deterministic: made once, kept in $OUT).
+gen() { # gen NAME ARGS...: a shop file NAME.sqlite from `bench-shop ARGS`
+    local name=$1; shift
+    if [ -n "${REGEN:-}" ] || [ ! -f "$OUT/$name.sqlite" ]; then
+        fresh "$OUT/$name.sqlite"
+        rm -rf "$OUT/$name.csv.d"
+        echo "generating $name: bench-shop $*" >&2
+        "$BIN" --db "$OUT/$name.sqlite" bench-shop "$@" >&2
+    fi
+}
+
+SUMMARY=()
+
+# ------------------------------------------------------------------------------------------
+if want import; then
+    gen reg1m --units 1000 --checks 1000 --samples 0 --csv-dir "$OUT/reg1m.csv.d"
+    gen reg100k --units 1000 --checks 100 --samples 0 --csv-dir "$OUT/reg100k.csv.d"
+    say "== import: sumpbook import checks (validated) vs sqlite3 .import"
+    for size in 100k 1m; do
+        csv="$OUT/reg$size.csv.d/checks.csv"
+        rows=$(($(wc -l <"$csv") - 1))
+        reps=$REPS
+        [ "$size" = 1m ] && reps=$IMPORT_REPS
+        t_ours=() t_plain=() t_schema=() rss_ours=() rss_plain=()
+        for _ in $(seq "$reps"); do
+            db="$OUT/import-run.sqlite"
+            fresh "$db"; cp "$OUT/reg$size.sqlite" "$db"
+            t=$(timed "$OUT/import.out" "$OUT/rss" "$BIN" --db "$db" import checks "$csv")
+            grep -q "$rows added" "$OUT/import.out" || { echo "import did not add $rows rows:" >&2; cat "$OUT/import.out" >&2; exit 1; }
+            t_ours+=("$t"); rss_ours+=("$(cat "$OUT/rss")")
+
+            base="$OUT/import-plain.sqlite"
+            fresh "$base"; sqlite3 "$base" <"$ROOT/benches/import_plain.sql"
+            t=$(timed "$OUT/plain.out" "$OUT/rss" sqlite3 "$base" ".import --csv --skip 1 $csv checks_csv")
+            t_plain+=("$t"); rss_plain+=("$(cat "$OUT/rss")")
+            [ "$(sqlite3 "$base" 'SELECT count(*) FROM checks_csv')" = "$rows" ] || { echo ".import lost rows" >&2; exit 1; }
+
+            sch="$OUT/import-schema.sqlite"
+            fresh "$sch"; cp "$OUT/reg$size.sqlite" "$sch"
+            t=$(timed "$OUT/schema.out" "$OUT/rss" sqlite3 "$sch" ".read $ROOT/benches/import_schema.sql" \
+                ".import --csv --skip 1 $csv checks_csv" ".read $ROOT/benches/import_schema_insert.sql")
+            t_schema+=("$t")
+            [ "$(sqlite3 "$sch" 'SELECT count(*) FROM checks')" = "$rows" ] || { echo ".import into checks lost rows" >&2; exit 1; }
+        done
+        mo=$(median "${t_ours[@]}"); mp=$(median "${t_plain[@]}"); ms=$(median "${t_schema[@]}")
+        ro=$(awk -v n="$rows" -v t="$mo" 'BEGIN { printf "%.0f", n / t }')
+        rp=$(awk -v n="$rows" -v t="$mp" 'BEGIN { printf "%.0f", n / t }')
+        rs=$(awk -v n="$rows" -v t="$ms" 'BEGIN { printf "%.0f", n / t }')
+        mem=$(median "${rss_ours[@]}"); memp=$(median "${rss_plain[@]}")
+        memmib=$(awk -v k="$mem" 'BEGIN { printf "%.1f", k / 1024 }')
+        say "  $size rows ($rows): sumpbook ${mo}s = $ro rows/s, peak ${memmib} MiB"
+        say "      .import into a plain table of the same columns: ${mp}s = $rp rows/s (peak $(awk -v k="$memp" 'BEGIN { printf "%.1f", k / 1024 }') MiB)"
+        say "      .import + INSERT ... SELECT into the shop's checks table (its constraints and indexes): ${ms}s = $rs rows/s"
+        r1=$(ratio "$ro" "$rp"); r2=$(ratio "$ro" "$rs")
+        say "      ratio vs plain .import: ${r1}x (target >= 1.0: $(verdict "$r1" ">=" 1.0)); vs the shell into the checks table: ${r2}x"
+        eval "MEM_$size=$memmib"
+        if [ "$size" = 1m ]; then
+            SUMMARY+=("import 1M rows      ${r1}x plain .import (target >= 1.0x) $(verdict "$r1" ">=" 1.0); ${r2}x the shell into the same table")
+        fi
+    done
+    flat=$(awk -v a="$MEM_100k" -v b="$MEM_1m" 'BEGIN { printf "%.2f", b / a }')
+    say "  peak memory 1M / 100k: ${flat}x (flat = 1.0); ${MEM_1m} MiB at 1 M rows (target <= 64): $(verdict "$MEM_1m" "<=" 64)"
+    SUMMARY+=("import memory       ${MEM_100k} MiB at 100k, ${MEM_1m} MiB at 1M (target flat, <= 64 MiB) $(verdict "$MEM_1m" "<=" 64)")
+    say ""
+fi
+
+# ------------------------------------------------------------------------------------------
+if want status || want startup; then
+    gen large --units 1000 --checks 520 --samples 52
+fi
+if want status; then
+    say "== fleet status: sumpbook status vs one full-scan aggregate in the sqlite3 shell (1000 units x 520 checks + 52 samples)"
+    db="$OUT/large.sqlite"
+    # Warm the page cache for both.
+    "$BIN" --db "$db" status >/dev/null
+    sqlite3 "$db" <"$ROOT/benches/fleet_scan.sql" >/dev/null
+    t_ours=() t_scan=() t_group=() rss=()
+    for _ in $(seq "$REPS"); do
+        t_ours+=("$(timed "$OUT/status.out" "$OUT/rss" "$BIN" --db "$db" status)"); rss+=("$(cat "$OUT/rss")")
+        t_scan+=("$(timed "$OUT/scan.out" "$OUT/rss2" sqlite3 "$db" ".read $ROOT/benches/fleet_scan.sql")")
+        t_group+=("$(timed "$OUT/group.out" "$OUT/rss2" sqlite3 "$db" ".read $ROOT/benches/fleet_scan_grouped.sql")")
+    done
+    head -2 "$OUT/status.out" | tail -1 | sed 's/^/  sumpbook: /' | tee -a "$RESULTS"
+    mo=$(median "${t_ours[@]}"); ms=$(median "${t_scan[@]}"); mg=$(median "${t_group[@]}")
+    r=$(ratio "$mo" "$ms"); rg=$(ratio "$mo" "$mg")
+    say "  sumpbook status ${mo}s (peak $(awk -v k="$(median "${rss[@]}")" 'BEGIN { printf "%.0f", k / 1024 }') MiB); full-scan aggregate ${ms}s; per-unit grouped scan ${mg}s"
+    say "  ratio: ${r}x the full scan (target <= 2.0: $(verdict "$r" "<=" 2.0)); ${rg}x the grouped scan"
+    SUMMARY+=("fleet status        ${r}x one full-scan aggregate (target <= 2.0x) $(verdict "$r" "<=" 2.0)")
+    say ""
+fi
+
+# ------------------------------------------------------------------------------------------
+# Start-up needs the desktop app to report its first frame and exit; see DEVELOPERS.md.
+FIRST_FRAME_VAR=SUMPBOOK_EXIT_AFTER_FIRST_FRAME
+if want startup; then
+    say "== start-up: app start to first frame, large shop vs empty shop (xvfb-run, SLINT_BACKEND=winit-software)"
+    if ! command -v xvfb-run >/dev/null; then
+        say "  not measured: xvfb-run is missing (Debian package xvfb)"
+        SUMMARY+=("start-up            not measured (no xvfb-run)")
+    elif ! grep -q "$FIRST_FRAME_VAR" "$BIN"; then
+        say "  not measured: $BIN does not know $FIRST_FRAME_VAR (a build without the gui feature, or the app has no first-frame exit yet)"
+        SUMMARY+=("start-up            not measured (no first-frame exit in the app)")
+    else
+        empty="$OUT/empty.sqlite"
+        [ -f "$empty" ] || "$BIN" --db "$empty" init >/dev/null
+        startup() { # startup DB: seconds from exec to the app's exit after its first frame
+            local a b
+            a=$(ns)
+            env SLINT_BACKEND=winit-software "$FIRST_FRAME_VAR=1" xvfb-run -a -s "-screen 0 1280x800x24" \
+                "$BIN" --db "$1" >"$OUT/startup.out" 2>&1 || { cat "$OUT/startup.out" >&2; exit 1; }
+            b=$(ns)
+            secs "$a" "$b"
+        }
+        # xvfb-run itself takes a while to start the server: measured alone and taken off.
+        xv=() t_large=() t_empty=()
+        for _ in $(seq "$REPS"); do
+            a=$(ns); xvfb-run -a -s "-screen 0 1280x800x24" true; b=$(ns); xv+=("$(secs "$a" "$b")")
+            t_empty+=("$(startup "$empty")")
+            t_large+=("$(startup "$OUT/large.sqlite")")
+        done
+        mx=$(median "${xv[@]}"); me=$(median "${t_empty[@]}"); ml=$(median "${t_large[@]}")
+        ne=$(awk -v a="$me" -v x="$mx" 'BEGIN { printf "%.3f", a - x }'); nl=$(awk -v a="$ml" -v x="$mx" 'BEGIN { printf "%.3f", a - x }')
+        r=$(ratio "$nl" "$ne")
+        say "  empty shop ${ne}s, large shop ${nl}s (after taking off ${mx}s of xvfb-run start)"
+        say "  ratio: ${r}x (target <= 1.3: $(verdict "$r" "<=" 1.3))"
+        SUMMARY+=("start-up            ${r}x the empty shop (target <= 1.3x) $(verdict "$r" "<=" 1.3)")
+    fi
+    say ""
+fi
+
+# ------------------------------------------------------------------------------------------
+if want report; then
+    gen units10 --units 10 --checks 520 --samples 52
+    gen units100 --units 100 --checks 520 --samples 52
+    say "== report: sumpbook report, every unit with charts, 10 vs 100 units (520 checks + 52 samples each)"
+    t10=() t100=()
+    "$BIN" --db "$OUT/units10.sqlite" report --out "$OUT/r10.pdf" >/dev/null
+    for _ in $(seq "$REPS"); do
+        rm -f "$OUT/r10.pdf" "$OUT/r100.pdf"
+        t10+=("$(timed "$OUT/r10.out" "$OUT/rss" "$BIN" --db "$OUT/units10.sqlite" report --out "$OUT/r10.pdf")")
+        t100+=("$(timed "$OUT/r100.out" "$OUT/rss" "$BIN" --db "$OUT/units100.sqlite" report --out "$OUT/r100.pdf")")
+    done
+    m10=$(median "${t10[@]}"); m100=$(median "${t100[@]}")
+    r=$(ratio "$m100" "$m10")
+    per=$(awk -v a="$m10" -v b="$m100" 'BEGIN { printf "%.1f", (b - a) / 90 * 1000 }')
+    fixed=$(awk -v a="$m10" -v b="$m100" 'BEGIN { printf "%.3f", a - 10 * (b - a) / 90 }')
+    say "  $(cat "$OUT/r10.out")"
+    say "  $(cat "$OUT/r100.out")"
+    say "  10 units ${m10}s, 100 units ${m100}s: ${per} ms per unit plus ${fixed}s fixed"
+    say "  ratio: ${r}x (linear = 10; target <= 10: $(verdict "$r" "<=" 10.0))"
+    SUMMARY+=("report 100/10 units ${r}x (linear = 10x) $(verdict "$r" "<=" 10.0)")
+    say ""
+fi
+
+say "== summary"
+for line in "${SUMMARY[@]}"; do say "  $line"; done
+say "(written to $RESULTS)"
