@@ -817,3 +817,53 @@ fn the_healthy_demo_units_raise_no_act_flag_in_two_years() {
         "healthy demo units over 106 weekly replays: watch flags (unit, kind): weeks {watched:?}"
     );
 }
+
+#[test]
+fn a_baseline_entered_by_hand_replaces_the_computed_one_and_says_who() {
+    // Eight checks at a steady 60 L/min: the computed baseline is 60 L/min, lost flow 0.
+    let (_d, store) = new_shop();
+    let fluid = vg46(&store);
+    let unit = add_unit(&store, "HB-01", fluid, 1);
+    for w in 0..8 {
+        store
+            .insert_check(&check_at(unit, w, 60.0, 40.0, 20.0))
+            .unwrap();
+    }
+    let at = week(8);
+    sumpbook::app::work::set_baseline_in(
+        &store,
+        "HB-01",
+        "effective_flow",
+        "75lpm",
+        "1.5lpm",
+        "E. Engineer",
+        at,
+    )
+    .unwrap();
+    let s = unit_status_in(&store, "HB-01", Some(at)).unwrap();
+    let b = s
+        .health
+        .baseline
+        .get(sumpbook::health::baseline::BaselineIndicator::EffectiveFlow)
+        .unwrap();
+    // 75 L/min = 75/60000 m³/s (definition of the litre and minute).
+    assert!((b.value - 75.0 / 60_000.0).abs() < 1e-12);
+    assert!(
+        matches!(&b.source, sumpbook::health::BaselineSource::Manual { by, .. } if by == "E. Engineer")
+    );
+    // Lost flow = 1 − Q/Q_baseline (design §3 definition), worked by hand: 1 − 60/75 = 20 %.
+    let lost = s.health.indicators.lost_flow_pct.unwrap();
+    assert!((lost - 20.0).abs() < 0.05, "lost flow {lost}");
+    // Bad figures are refused with what was expected.
+    let e = sumpbook::app::work::set_baseline_in(
+        &store,
+        "HB-01",
+        "heat_rise",
+        "warm",
+        "1K",
+        "E. Engineer",
+        at,
+    )
+    .unwrap_err();
+    assert!(e.to_string().contains("expected e.g. 20.5K"), "{e}");
+}

@@ -85,6 +85,8 @@ pub enum Command {
     Ack(status::AckArgs),
     /// Record work done (fluid change, top-up, filter change, rebuild, ...).
     LogEvent(status::LogEventArgs),
+    /// Enter a unit's baseline by hand for its era in force.
+    Baseline(status::BaselineArgs),
     /// Record one walk-round check of a unit (values with units: 45C, 172bar, 3.9s).
     LogCheck(entry::LogCheckArgs),
     /// List the limits in force (shop or one unit), or set and reset them.
@@ -117,6 +119,9 @@ pub fn run(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
         }
         Some(Command::LogEvent(args)) => {
             status::run_log_event(&data::open_shop(cli.db.as_deref())?, args, out)
+        }
+        Some(Command::Baseline(args)) => {
+            status::run_baseline(&data::open_shop(cli.db.as_deref())?, args, out)
         }
         Some(Command::LogCheck(args)) => {
             entry::run_log_check(&data::open_shop(cli.db.as_deref())?, args, out)
