@@ -860,7 +860,10 @@ fn log_check_refuses_impossible_values_and_names_the_field() {
         (vec!["--stroke-time", "-2s"], "stroke_time"),
         (vec!["--pressure", "2500"], "pressure"),
         (vec!["--at", "2099-01-01T00:00:00Z"], "in the future"),
-        (vec!["--at", "03/04/2025"], "--at"),
+        (
+            vec!["--at", "03/04/2025"],
+            "dates like 03/04/2025 are refused",
+        ),
         (vec!["--oil-level", "half"], "oil_level"),
     ] {
         let mut full = vec!["log-check", "PR-07-HPU", "--by", "AK"];

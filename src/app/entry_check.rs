@@ -5,13 +5,14 @@
 //! written through the store in a single statement, so a second process logging at the same
 //! moment waits for its turn (the store's busy timeout) instead of failing. No SQL, no printing.
 
-use chrono::{DateTime, Duration, SubsecRound, Timelike, Utc};
+use chrono::{DateTime, Duration, SubsecRound, Utc};
 use serde::Serialize;
 
 use super::entry::{self, Entered, Problem, SaveOutcome, Verdict};
 use super::shop::Shop;
 use super::status::UnitStatus;
 use super::AppError;
+use crate::exchange::csv_in::parse_when;
 
 /// The fields a check can carry, as typed: keys of the check form.
 pub const FIELDS: [&str; 9] = [
@@ -29,8 +30,9 @@ pub const FIELDS: [&str; 9] = [
 /// A check as typed on the command line.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct CheckInput {
-    /// When it was taken; `None` is now.
-    pub at: Option<DateTime<Utc>>,
+    /// When it was taken, as typed (ISO 8601, as in the CSV files: `2025-03-04T07:30:00Z`, with
+    /// an offset, or a date; no zone is UTC); `None` is now.
+    pub at: Option<String>,
     /// Field key (one of [`FIELDS`]) → text as typed (`45C`, `2500psi`, `ok`).
     pub values: Vec<(String, String)>,
     /// Who took it (required: the reading is evidence).
@@ -87,15 +89,15 @@ pub fn log_check(
         entered.set(key, text);
     }
     let now = now.trunc_subsecs(0);
-    let at = input.at.unwrap_or(now);
-    if at.nanosecond() != 0 {
-        return Err(AppError::BadInput(
-            "--at: readings are kept to the second; leave out the fraction".into(),
-        ));
-    }
+    let at = match input.at.as_deref() {
+        None => now,
+        Some(text) => {
+            parse_when(text).map_err(|e| AppError::BadInput(format!("time of the check: {e}")))?
+        }
+    };
     if at > now + CLOCK_SLACK {
         return Err(AppError::BadInput(format!(
-            "--at: {} is in the future; record readings when they are taken",
+            "time of the check: {} is in the future; record readings when they are taken",
             at.format("%Y-%m-%dT%H:%M:%SZ")
         )));
     }

@@ -12,7 +12,6 @@ use clap::Args;
 use super::Failure;
 use crate::app::entry_check::{log_check, CheckInput};
 use crate::app::shop::Shop;
-use crate::exchange::csv_in::parse_when;
 
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct LogCheckArgs {
@@ -61,11 +60,6 @@ pub struct LogCheckArgs {
 }
 
 pub fn run_log_check(shop: &Shop, args: &LogCheckArgs, out: &mut dyn Write) -> Result<(), Failure> {
-    let at = args
-        .at
-        .as_deref()
-        .map(|t| parse_when(t).map_err(|e| Failure::bad_input(format!("--at: {e}"))))
-        .transpose()?;
     let mut values = Vec::new();
     for (key, v) in [
         ("reservoir_temp", &args.reservoir_temp),
@@ -85,7 +79,7 @@ pub fn run_log_check(shop: &Shop, args: &LogCheckArgs, out: &mut dyn Write) -> R
         values.push(("note".to_string(), args.note.clone()));
     }
     let input = CheckInput {
-        at,
+        at: args.at.clone(),
         values,
         by: args.by.clone(),
         confirmed: args.confirm,

@@ -268,6 +268,8 @@ struct QuoteGuard<R> {
     field: usize,
     record_bytes: usize,
     open: (u64, usize),
+    /// A quoted cell ran on past [`MAX_RECORD_BYTES`].
+    overrun: bool,
 }
 
 impl<R> QuoteGuard<R> {
@@ -282,6 +284,7 @@ impl<R> QuoteGuard<R> {
             field: 0,
             record_bytes: 0,
             open: (1, 0),
+            overrun: false,
         };
         g.advance(first_line);
         g
@@ -297,6 +300,10 @@ impl<R> QuoteGuard<R> {
                 let run = next_quote.map_or(bytes.len(), |i| i + 1);
                 self.line += count(&bytes[..run], b'\n');
                 self.record_bytes += run;
+                if self.record_bytes > MAX_RECORD_BYTES {
+                    self.overrun = true;
+                    return;
+                }
                 if next_quote.is_some() {
                     self.state = Quoting::QuoteInQuoted;
                 }
@@ -369,7 +376,7 @@ impl<R: Read> Read for QuoteGuard<R> {
             return Ok(0);
         }
         self.advance(&buf[..n]);
-        if self.record_bytes > MAX_RECORD_BYTES && self.state == Quoting::Quoted {
+        if self.overrun {
             return Err(self.left_open(false));
         }
         Ok(n)
@@ -2056,5 +2063,44 @@ mod tests {
         assert_eq!(detect_delimiter(b"unit_tag;taken_at;note\n"), b';');
         assert_eq!(detect_delimiter(b"unit_tag\ttaken_at\n"), b'\t');
         assert_eq!(detect_delimiter(b"\"a;b\",c\n"), b',');
+    }
+
+    /// Reads `body` (after the header `a,b,c`) through the guard; the place of an open quote.
+    fn guarded(body: &[u8]) -> Result<(), (u64, usize, bool)> {
+        let mut g = QuoteGuard::new(body, b',', b"a,b,c\n");
+        let mut sink = Vec::new();
+        match g.read_to_end(&mut sink) {
+            Ok(_) => Ok(()),
+            Err(e) => {
+                let q = quote_left_open(&e).expect("only an open quote fails");
+                Err((q.line, q.field, q.at_end))
+            }
+        }
+    }
+
+    #[test]
+    fn quotes_are_followed_as_the_csv_reader_reads_them() {
+        // Closed quotes, doubled quotes, line breaks inside quotes, a quote inside a plain cell.
+        assert_eq!(guarded(b"1,\"x, y\",3\n4,\"say \"\"hi\"\"\",6\n"), Ok(()));
+        assert_eq!(guarded(b"1,\"two\nlines\",3\r\n4,5,6\r\n"), Ok(()));
+        assert_eq!(guarded(b"1,5\" bore,3\n"), Ok(()));
+        assert_eq!(guarded(b""), Ok(()));
+        // Open at the end: line 3 (the header is line 1), third cell.
+        assert_eq!(guarded(b"1,2,3\n4,5,\"never closed\n"), Err((3, 2, true)));
+        assert_eq!(
+            guarded(b"1,2,3\n4,\"open\n5,6,7\n8,9,10\n"),
+            Err((3, 1, true))
+        );
+        // A quote that runs on past the record limit is stopped there, not read to the end.
+        let mut long = b"1,\"".to_vec();
+        long.extend(
+            std::iter::repeat_n(b"x,y,z\n".as_slice(), MAX_RECORD_BYTES / 6 + 10).flatten(),
+        );
+        long.extend_from_slice(b"\",3\n");
+        assert_eq!(guarded(&long), Err((2, 1, false)));
+        // The header line itself can open a quote.
+        let mut g = QuoteGuard::new(&b"still the header\",c\n1,2,3\n"[..], b',', b"a,\"b\n");
+        let mut sink = Vec::new();
+        assert!(g.read_to_end(&mut sink).is_ok());
     }
 }

@@ -18,6 +18,10 @@ impl Store {
     pub fn explain_fleet_queries(&self) -> Result<Vec<(String, String)>, StoreError> {
         use super::{checks, events, history, samples};
         let fleet = [
+            (
+                "fleet.check_counts",
+                history::fleet_check_counts_sql().to_string(),
+            ),
             ("fleet.checks", history::fleet_checks_sql()),
             ("fleet.samples", history::fleet_samples_sql()),
             ("fleet.events", history::fleet_events_sql()),

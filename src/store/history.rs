@@ -41,6 +41,15 @@ pub(crate) fn fleet_events_sql() -> String {
     )
 }
 
+/// How many checks each unit has up to a time (`?1`), read from the narrow (unit, time) index
+/// alone, so that each unit's list of checks is allocated once at its full size instead of
+/// growing while half a million rows are read (a tenth of the fleet status on 1,000 units with
+/// ten years of weekly checks). Samples are ten times fewer and just grow.
+pub(crate) fn fleet_check_counts_sql() -> &'static str {
+    "SELECT unit_id, count(*) FROM checks WHERE unit_id IN (SELECT id FROM units) AND taken_at <= ?1 \
+     GROUP BY unit_id"
+}
+
 /// The fleet's reads of hand-entered baselines and acknowledgements (few rows), unit by unit.
 pub(crate) fn fleet_baselines_sql() -> String {
     format!(
@@ -85,6 +94,13 @@ impl Store {
             });
         }
 
+        let mut st = self.stmt(fleet_check_counts_sql())?;
+        for r in st.query_map([&until], |r| Ok((r.get::<_, Id>(0)?, r.get::<_, i64>(1)?)))? {
+            let (unit_id, n) = r?;
+            if let Some(&i) = slot.get(&unit_id) {
+                out[i].checks.reserve_exact(usize::try_from(n).unwrap_or(0));
+            }
+        }
         let mut st = self.stmt(&fleet_checks_sql())?;
         for c in st.query_map([&until], check_from_row)? {
             let c = c?;

@@ -788,10 +788,43 @@ pub fn parse_time(s: &str) -> Result<DateTime<Utc>, StoreError> {
     Ok(dt.and_utc())
 }
 
+/// A text column read in place, without copying it into a `String` (the fleet reads do this for
+/// half a million rows): `None` for NULL. Another type, or text that is not UTF-8, is the same
+/// error `row.get::<_, String>` gives.
+fn text_col<'r>(row: &'r rusqlite::Row<'_>, idx: usize) -> rusqlite::Result<Option<&'r str>> {
+    use rusqlite::types::ValueRef;
+    match row.get_ref(idx)? {
+        ValueRef::Null => Ok(None),
+        v @ ValueRef::Text(_) => v.as_str().map(Some).map_err(|e| {
+            rusqlite::Error::FromSqlConversionFailure(idx, rusqlite::types::Type::Text, Box::new(e))
+        }),
+        other => Err(rusqlite::Error::InvalidColumnType(
+            idx,
+            column_name(row, idx),
+            other.data_type(),
+        )),
+    }
+}
+
+/// The error for NULL in a column that must hold a value, as `row.get::<_, String>` gives it.
+#[cold]
+fn null_column(row: &rusqlite::Row<'_>, idx: usize) -> rusqlite::Error {
+    rusqlite::Error::InvalidColumnType(idx, column_name(row, idx), rusqlite::types::Type::Null)
+}
+
+fn column_name(row: &rusqlite::Row<'_>, idx: usize) -> String {
+    row.as_ref()
+        .column_name(idx)
+        .map(str::to_string)
+        .unwrap_or_default()
+}
+
 /// A column time read from a row, as a model time.
 fn time_col(row: &rusqlite::Row<'_>, idx: usize) -> rusqlite::Result<DateTime<Utc>> {
-    let s: String = row.get(idx)?;
-    parse_time(&s).map_err(|e| {
+    let Some(s) = text_col(row, idx)? else {
+        return Err(null_column(row, idx));
+    };
+    parse_time(s).map_err(|e| {
         rusqlite::Error::FromSqlConversionFailure(
             idx,
             rusqlite::types::Type::Text,
@@ -805,7 +838,9 @@ fn enum_col<T: std::str::FromStr<Err = String>>(
     row: &rusqlite::Row<'_>,
     idx: usize,
 ) -> rusqlite::Result<T> {
-    let s: String = row.get(idx)?;
+    let Some(s) = text_col(row, idx)? else {
+        return Err(null_column(row, idx));
+    };
     s.parse::<T>().map_err(|e| {
         rusqlite::Error::FromSqlConversionFailure(
             idx,
@@ -819,17 +854,17 @@ fn opt_enum_col<T: std::str::FromStr<Err = String>>(
     row: &rusqlite::Row<'_>,
     idx: usize,
 ) -> rusqlite::Result<Option<T>> {
-    let s: Option<String> = row.get(idx)?;
-    s.map(|s| {
-        s.parse::<T>().map_err(|e| {
-            rusqlite::Error::FromSqlConversionFailure(
-                idx,
-                rusqlite::types::Type::Text,
-                Box::new(CorruptValue(e)),
-            )
+    text_col(row, idx)?
+        .map(|s| {
+            s.parse::<T>().map_err(|e| {
+                rusqlite::Error::FromSqlConversionFailure(
+                    idx,
+                    rusqlite::types::Type::Text,
+                    Box::new(CorruptValue(e)),
+                )
+            })
         })
-    })
-    .transpose()
+        .transpose()
 }
 
 #[derive(Debug)]
