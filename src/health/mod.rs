@@ -173,9 +173,9 @@ pub fn evaluate(
         None => h.fluid.clone(),
     };
 
-    let computed = indicators::compute(&h, era.as_ref(), fluid.as_ref(), limits);
-    let mut flags = flags::raise(&h, &computed, limits, units);
-    let work = plan::plan(&h, &computed, &flags, limits, at);
+    let computed = indicators::compute(h, era.as_ref(), fluid.as_ref(), limits);
+    let mut flags = flags::raise(h, &computed, limits, units);
+    let work = plan::plan(h, &computed, &flags, limits, at);
     flags.extend(flags::overdue(&work, limits, at));
     flags::mark_acknowledged(&mut flags, &h.acknowledgements);
     flags.sort_by(|a, b| {
