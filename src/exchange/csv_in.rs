@@ -383,6 +383,14 @@ impl<R: Read> Read for QuoteGuard<R> {
     }
 }
 
+/// At most `max` characters of `s`, marked when cut (a header cell can be a whole file).
+fn clip(s: &str, max: usize) -> String {
+    match s.char_indices().nth(max) {
+        Some((i, _)) => format!("{}…", &s[..i]),
+        None => s.to_string(),
+    }
+}
+
 /// How many times `b` occurs in `bytes`.
 fn count(bytes: &[u8], b: u8) -> u64 {
     bytes.iter().filter(|&&x| x == b).count() as u64
@@ -462,12 +470,21 @@ fn parse_header(kind: FileKind, file: &str, rec: &ByteRecord) -> Result<Header, 
             let shown = if name.is_empty() {
                 format!("column {}", pos + 1)
             } else {
-                name.to_string()
+                clip(name, 60)
             };
             let expected = specs.iter().map(|s| s.name).collect::<Vec<_>>().join(", ");
+            // Say what the line probably is, when it is plainly not a header as sumpbook reads it.
+            let hint = if parse_number(name).is_ok() || parse_when(name).is_ok() {
+                " (the first line must be the header naming the columns; is it missing?)"
+                    .to_string()
+            } else if let Some(sep) = name.chars().find(|c| ['|', '^', '~'].contains(c)) {
+                format!(" (is the file separated by `{sep}`? sumpbook reads `,`, `;` or tab)")
+            } else {
+                String::new()
+            };
             errors.push(err(
                 &shown,
-                format!("unknown column for a {kind} file; the columns are: {expected}"),
+                format!("unknown column for a {kind} file{hint}; the columns are: {expected}"),
             ));
             continue;
         };
@@ -703,7 +720,10 @@ impl<'r> RowReader<'r> {
                 }
             }
             Err(_) => {
-                self.err(slot.name, "not UTF-8 text");
+                self.err(
+                    slot.name,
+                    "not UTF-8 text; save the file as UTF-8 (in a spreadsheet: CSV UTF-8)",
+                );
                 None
             }
         }
@@ -775,7 +795,13 @@ impl<'r> RowReader<'r> {
         match parse_number(text) {
             Ok(v) => Some((v, s)),
             Err(e) => {
-                self.err(s.name, e);
+                let (sym, _) = unit_words(s.unit);
+                let expected = if sym.is_empty() {
+                    "expected a plain number such as 12.5".to_string()
+                } else {
+                    format!("expected a number in {sym} such as 12.5 (the unit is in the column's name)")
+                };
+                self.err(s.name, format!("{e}; {expected}"));
                 None
             }
         }
