@@ -543,7 +543,20 @@ fn number_and_unit(input: &str, kind: Option<Kind>) -> Result<(f64, String), Par
 
 fn build(input: &str, value: f64, unit: Unit) -> Result<Quantity, ParseError> {
     let si = unit.to_si(value);
-    if !si.is_finite() {
+    // Finite as typed but not in every unit of its kind (`.5e307m3` is infinite in litres), or
+    // so small that a unit holds it only with lost digits: it could not be shown, stored and
+    // read back, so it is refused like an infinite number.
+    let representable = Unit::ALL
+        .iter()
+        .filter(|u| u.kind() == unit.kind())
+        .map(|u| u.from_si(si))
+        .all(|x| {
+            // A temperature is 0 in °C or °F without being lost; any other zero here is an
+            // underflow of a value that was not zero.
+            let lost = x == 0.0 && si != 0.0 && unit.kind() != Kind::Temperature;
+            x.is_finite() && !x.is_subnormal() && !lost
+        });
+    if !si.is_finite() || !representable {
         return Err(ParseError::NotFinite {
             input: input.trim().to_string(),
             expected: expectation(Some(unit.kind())),
@@ -683,7 +696,65 @@ fn display_number(v: f64, min: usize) -> String {
     let first = format!("{v:.d$}");
     let rounded: f64 = first.parse().unwrap_or(v);
     let d2 = decimals_for(rounded, min);
-    tidy_zero(if d2 == d { first } else { format!("{v:.d2$}") })
+    tidy_zero(within_precision(
+        v,
+        if d2 == d { first } else { format!("{v:.d2$}") },
+    ))
+}
+
+/// Significant digits a double carries through a round trip of text.
+const MAX_DIGITS: usize = 15;
+
+/// `text` (the display of `v`) cut back to [`MAX_DIGITS`] significant digits, in exponent form
+/// when the integer part alone is longer: more digits are past a double's precision, and reading
+/// them back can land on a neighbouring value that displays differently.
+fn within_precision(v: f64, text: String) -> String {
+    let digits = text.bytes().filter(u8::is_ascii_digit).count();
+    let leading_zeros = text
+        .trim_start_matches('-')
+        .bytes()
+        .take_while(|&b| b == b'0' || b == b'.')
+        .filter(|&b| b == b'0')
+        .count();
+    if digits - leading_zeros <= MAX_DIGITS {
+        return text;
+    }
+    let int_digits = text
+        .trim_start_matches('-')
+        .split('.')
+        .next()
+        .map_or(0, str::len);
+    if int_digits < MAX_DIGITS {
+        let d = MAX_DIGITS - int_digits;
+        format!("{v:.d$}")
+    } else {
+        let e = MAX_DIGITS - 1;
+        format!("{v:.e$e}")
+    }
+}
+
+/// The display of a temperature `v` in `unit`, never rounded below absolute zero (0.001 K shown
+/// in °F to one decimal would be `-459.7`, colder than anything; it is shown as `-459.6`).
+fn display_temperature(v: f64, unit: Unit) -> String {
+    let text = display_number(v, unit.decimals());
+    match text.parse::<f64>() {
+        Ok(shown) if unit.to_si(shown) < 0.0 => {
+            let d = text.split('.').nth(1).map_or(0, str::len);
+            let step = 10f64.powi(-(d as i32));
+            let up = (v / step).ceil() * step;
+            tidy_zero(format!("{up:.d$}"))
+        }
+        _ => text,
+    }
+}
+
+/// The number of a display of `v` in `unit`.
+fn display_value(v: f64, unit: Unit) -> String {
+    if unit.kind() == Kind::Temperature {
+        display_temperature(v, unit)
+    } else {
+        display_number(v, unit.decimals())
+    }
 }
 
 /// Formats a quantity in `unit` for display: `172.4 bar`, `140.0 °F`; `None` when the unit is
@@ -691,11 +762,7 @@ fn display_number(v: f64, min: usize) -> String {
 /// significant digits.
 pub fn format_in(q: Quantity, unit: Unit) -> Option<String> {
     let v = q.value_in(unit)?;
-    Some(format!(
-        "{} {}",
-        display_number(v, unit.decimals()),
-        unit.symbol()
-    ))
+    Some(format!("{} {}", display_value(v, unit), unit.symbol()))
 }
 
 /// Formats a quantity for display in the shop's unit system (metric: °C bar L/min mm L cSt;
@@ -704,7 +771,7 @@ pub fn format_in(q: Quantity, unit: Unit) -> Option<String> {
 pub fn format(q: Quantity, system: UnitSystem) -> String {
     let unit = q.kind().display_unit(system);
     let v = unit.from_si(q.si());
-    format!("{} {}", display_number(v, unit.decimals()), unit.symbol())
+    format!("{} {}", display_value(v, unit), unit.symbol())
 }
 
 /// Formats a quantity with the shortest decimal that reads back to the same number in the
@@ -718,6 +785,67 @@ pub fn format_exact(q: Quantity, system: UnitSystem) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Shown in a unit system, read back, shown again: the same text; the exact form reads
+    /// back to the same SI value within one conversion's rounding.
+    fn reads_back(text: &str) {
+        let Ok(q) = parse(text) else { return };
+        for system in [UnitSystem::Metric, UnitSystem::Us] {
+            let shown = format(q, system);
+            let back = parse(&shown).unwrap_or_else(|e| panic!("{text}: shown {shown}: {e}"));
+            assert_eq!(format(back, system), shown, "{text}");
+            let exact = format_exact(q, system);
+            let back = parse(&exact).unwrap_or_else(|e| panic!("{text}: exact {exact}: {e}"));
+            // A temperature passes an offset of up to 459.67 on its way to °F.
+            let offset = if q.kind() == Kind::Temperature {
+                500.0
+            } else {
+                0.0
+            };
+            let tol = 8.0 * f64::EPSILON * (q.si().abs() + offset).max(f64::MIN_POSITIVE);
+            assert!(
+                (back.si() - q.si()).abs() <= tol,
+                "{text}: {exact} -> {back:?}"
+            );
+        }
+    }
+
+    #[test]
+    fn the_fuzzers_findings_read_back() {
+        // Inputs the `quantity` fuzz target stopped on: a temperature a hair above absolute
+        // zero (was shown as -459.7 °F and refused), a volume finite in m³ but infinite in
+        // litres (now refused on input), and displays past a double's 15 significant digits.
+        for t in [
+            "0.001K",
+            "0K",
+            "0.04K",
+            "1e-300K",
+            "155555555555555555555555555555552\t\t\tlpM",
+            "45555555555557.055555cSt",
+        ] {
+            reads_back(t);
+        }
+        assert!(parse(".5e307m3").is_err());
+    }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig { cases: 2000, ..Default::default() })]
+        #[test]
+        fn any_magnitude_reads_back(
+            mant in 1.0f64..10.0,
+            exp in -320i32..310,
+            neg in proptest::prelude::any::<bool>(),
+            unit in proptest::sample::select(vec![
+                "K", "C", "F", "psi", "bar", "lpm", "gpm", "L", "gal", "m3", "mm", "in",
+                "cSt", "s", "kW", "hp",
+            ]),
+        ) {
+            let v = if neg { -mant } else { mant } * 10f64.powi(exp);
+            if v.is_finite() {
+                reads_back(&format!("{v:e}{unit}"));
+            }
+        }
+    }
 
     #[test]
     fn the_forms_of_the_issue_parse() {
