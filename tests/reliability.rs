@@ -1670,3 +1670,44 @@ mod csv_properties {
         }
     }
 }
+
+#[test]
+fn two_processes_importing_the_same_register_at_once_both_succeed_and_store_it_once() {
+    // The second import waits for the first one's write lock; it must then see the register
+    // the first one stored and count its rows as already there, not try to add them again.
+    let units = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("sample-data/units.csv");
+    for round in 0..3 {
+        let dir = tempfile::tempdir().unwrap();
+        let db = dir.path().join("shop.sqlite");
+        let init = sumpbook()
+            .arg("--db")
+            .arg(&db)
+            .arg("init")
+            .output()
+            .unwrap();
+        assert!(init.status.success(), "{}", text(&init.stderr));
+        let spawn = || {
+            sumpbook()
+                .arg("--db")
+                .arg(&db)
+                .args(["import", "units", path_str(&units)])
+                .stdout(std::process::Stdio::piped())
+                .stderr(std::process::Stdio::piped())
+                .spawn()
+                .unwrap()
+        };
+        let (pa, pb) = (spawn(), spawn());
+        for (name, p) in [("a", pa), ("b", pb)] {
+            let out = p.wait_with_output().unwrap();
+            assert!(
+                out.status.success(),
+                "round {round} {name}: {}",
+                short(&text(&out.stderr))
+            );
+        }
+        // The demo register: 11 units on 8 machines (sample-data/README.md).
+        assert_eq!(count(&db, "units"), 11, "round {round}");
+        assert_eq!(count(&db, "machines"), 8, "round {round}");
+        assert_eq!(integrity(&db), "ok");
+    }
+}

@@ -63,6 +63,9 @@ impl Store {
     /// Opens a bulk-write transaction (it takes the write lock at once).
     pub fn bulk(&mut self) -> Result<Bulk<'_>, StoreError> {
         let store: &Store = self;
+        // Take the write lock first: an import that waited behind another writer must see the
+        // register as that writer left it, not as it was before the wait.
+        let tx = store.begin()?;
         let machines = store
             .machines()?
             .into_iter()
@@ -78,7 +81,6 @@ impl Store {
             .into_iter()
             .map(|f| (f.name.clone(), f))
             .collect();
-        let tx = store.begin()?;
         Ok(Bulk {
             store,
             tx,
