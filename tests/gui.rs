@@ -424,3 +424,143 @@ fn the_fleet_board_lists_the_demo_units_worst_first() {
         .collect();
     assert_eq!(filtered.len(), 1, "{filtered:?}");
 }
+
+/// Advances slint's mock clock (timers run) until `done` holds or ten seconds of real time
+/// have passed; for work handed to a worker thread.
+fn wait_for(done: impl Fn() -> bool) {
+    let start = std::time::Instant::now();
+    while !done() {
+        assert!(
+            start.elapsed() < std::time::Duration::from_secs(10),
+            "timed out"
+        );
+        i_slint_backend_testing::mock_elapsed_time(std::time::Duration::from_millis(50));
+        std::thread::sleep(std::time::Duration::from_millis(10));
+    }
+}
+
+fn pdf_text(pdf: &Path) -> String {
+    let out = std::process::Command::new("pdftotext")
+        .args(["-raw", pdf.to_str().unwrap(), "-"])
+        .output()
+        .expect("pdftotext (poppler-utils) runs");
+    String::from_utf8_lossy(&out.stdout).into_owned()
+}
+
+#[test]
+fn the_reports_screen_writes_the_chosen_units_and_opens_the_pdf() {
+    let f = open_demo();
+    f.app.run_jobs_inline();
+    let opened = std::rc::Rc::new(std::cell::RefCell::new(Vec::<PathBuf>::new()));
+    let o = opened.clone();
+    f.app.set_file_opener(move |p| {
+        o.borrow_mut().push(p.to_path_buf());
+        Ok(())
+    });
+    f.app.show(Screen::Reports);
+    // Every unit is listed, worst first as on the board, and starts ticked.
+    let s = shop(&f.path);
+    let fleet = sumpbook::app::status::fleet_status(&s, None).unwrap();
+    let listed: Vec<String> = labels_starting(&f.app, "include ")
+        .into_iter()
+        .map(|l| l.trim_start_matches("include ").to_string())
+        .collect();
+    let expected: Vec<String> = fleet.units.iter().map(|u| u.unit.clone()).collect();
+    assert_eq!(listed, expected);
+    // The period defaults to the last 91 days; the caution is on the screen.
+    let to = with_role(&f.app, "Report to", AccessibleRole::TextInput)
+        .accessible_value()
+        .unwrap();
+    assert_eq!(to.as_str(), chrono::Utc::now().date_naive().to_string());
+    let safety = by_label(&f.app, "safety").accessible_value().unwrap();
+    assert!(safety.contains("penetrate skin"), "{safety}");
+
+    // No unit chosen: refused with the reason, no file.
+    let out = f._dir.path().join("report");
+    field(&f.app, "Report file").set_accessible_value(out.to_str().unwrap());
+    button(&f.app, "Choose no unit").invoke_accessible_default_action();
+    button(&f.app, "Write report").invoke_accessible_default_action();
+    assert!(
+        message(&f.app).contains("choose at least one unit"),
+        "{}",
+        message(&f.app)
+    );
+    // A date that is not one is refused, naming the field.
+    by_label(&f.app, &format!("include {}", expected[0])).invoke_accessible_default_action();
+    by_label(&f.app, &format!("include {}", expected[2])).invoke_accessible_default_action();
+    field(&f.app, "Report from").set_accessible_value("2026-13-40");
+    button(&f.app, "Write report").invoke_accessible_default_action();
+    let m = message(&f.app);
+    assert!(m.contains("From") && m.contains("2026-13-40"), "{m}");
+    assert!(!out.with_extension("pdf").exists());
+
+    // Two units, letter paper, a name: written, reported and opened.
+    field(&f.app, "Report from").set_accessible_value("");
+    field(&f.app, "Prepared by").set_accessible_value("Night shift lead");
+    f.app
+        .window()
+        .global::<sumpbook::gui::ui::ReportAdapter>()
+        .set_paper(1);
+    button(&f.app, "Write report").invoke_accessible_default_action();
+    let pdf = out.with_extension("pdf");
+    let m = message(&f.app);
+    assert!(
+        m.contains("Wrote") && m.contains("(1 fleet, 2 units)"),
+        "{m}"
+    );
+    assert!(pdf.is_file(), "{m}");
+    assert_eq!(*opened.borrow(), vec![pdf.clone()]);
+    let text = pdf_text(&pdf);
+    // A unit page is headed "TAG · name": the two chosen have one, the one left out none.
+    assert!(text.contains(&format!("{} · ", expected[0])), "{text}");
+    assert!(text.contains(&format!("{} · ", expected[2])), "{text}");
+    assert!(!text.contains(&format!("{} · ", expected[1])), "{text}");
+    assert!(text.contains("Night shift lead"));
+    // The folder button opens the folder it was written to.
+    button(&f.app, "Open the report's folder").invoke_accessible_default_action();
+    assert_eq!(opened.borrow().last().unwrap(), f._dir.path());
+}
+
+#[test]
+fn a_report_cancelled_on_the_screen_writes_nothing() {
+    let f = open_demo();
+    f.app.set_file_opener(|_| Err("no viewer in tests".into()));
+    f.app.show(Screen::Reports);
+    let out = f._dir.path().join("cancelled.pdf");
+    field(&f.app, "Report file").set_accessible_value(out.to_str().unwrap());
+    button(&f.app, "Write report").invoke_accessible_default_action();
+    // The worker evaluates the fleet before its first progress step, where it sees the flag.
+    button(&f.app, "Cancel report").invoke_accessible_default_action();
+    let a = f.app.window().global::<sumpbook::gui::ui::ReportAdapter>();
+    wait_for(|| !a.get_running());
+    assert!(message(&f.app).contains("cancelled"), "{}", message(&f.app));
+    assert!(!out.exists());
+    // Written in full the next time; the viewer's failure is told, the file is kept.
+    button(&f.app, "Write report").invoke_accessible_default_action();
+    wait_for(|| !a.get_running());
+    let m = message(&f.app);
+    assert!(
+        m.contains("Wrote") && m.contains("no viewer in tests"),
+        "{m}"
+    );
+    assert!(out.is_file());
+}
+
+#[test]
+fn the_window_comes_up_before_the_fleet_is_evaluated_and_fills_after() {
+    i_slint_backend_testing::init_no_event_loop();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("shop.sqlite");
+    Shop::create_demo(&path).unwrap();
+    let app = App::open_loading(&path).unwrap();
+    let fleet = app.window().global::<sumpbook::gui::ui::FleetAdapter>();
+    // At once: the shop's name, and a board saying it is being read.
+    assert_eq!(
+        app.window().global::<Nav>().get_shop_name().as_str(),
+        shop(&path).store().settings().unwrap().shop_name
+    );
+    assert!(fleet.get_summary().starts_with("Reading the shop"));
+    wait_for(|| fleet.get_summary().starts_with("11 units"));
+    use slint::Model;
+    assert_eq!(fleet.get_rows().row_count(), 11);
+}

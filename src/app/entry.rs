@@ -344,7 +344,11 @@ pub struct RouteStop {
 
 /// The units not archived, in route order, with their state now.
 pub fn route(shop: &Shop) -> Result<Vec<RouteStop>, AppError> {
-    let fleet = super::status::fleet_status(shop, None)?;
+    Ok(route_from(&super::status::fleet_status(shop, None)?))
+}
+
+/// The walk-round order of a fleet status already evaluated.
+pub fn route_from(fleet: &super::status::FleetStatus) -> Vec<RouteStop> {
     let mut stops: Vec<(i64, RouteStop)> = fleet
         .units
         .iter()
@@ -362,7 +366,7 @@ pub fn route(shop: &Shop) -> Result<Vec<RouteStop>, AppError> {
         })
         .collect();
     stops.sort_by(|a, b| a.0.cmp(&b.0).then(a.1.tag.cmp(&b.1.tag)));
-    Ok(stops.into_iter().map(|s| s.1).collect())
+    stops.into_iter().map(|s| s.1).collect()
 }
 
 /// The form of one unit's check.
@@ -1268,6 +1272,22 @@ pub fn unit_view(shop: &Shop, unit_id: Id, now: DateTime<Utc>) -> Result<UnitVie
 /// The fleet's due list now: overdue, due soon, later.
 pub fn due_list(shop: &Shop) -> Result<work::DueList, AppError> {
     work::due_list_in(shop.store(), None, None)
+}
+
+/// The due list of a fleet status the caller has evaluated already.
+pub fn due_list_of(
+    shop: &Shop,
+    fleet: &super::status::FleetStatus,
+) -> Result<work::DueList, AppError> {
+    work::due_list_from(shop.store(), fleet, None)
+}
+
+/// Whether the shop's data may have changed since `stamp` was taken (by this program or any
+/// other); `None` before the first stamp. Lets the app keep one evaluation per change.
+pub fn shop_stamp(shop: &Shop) -> Result<(i64, u64), AppError> {
+    shop.store()
+        .change_stamp()
+        .map_err(super::status::store_error)
 }
 
 /// Acknowledges the `kind` flag of a unit.

@@ -151,6 +151,26 @@ fn write_atomically(out: &Path, bytes: &[u8]) -> Result<(), AppError> {
     Ok(())
 }
 
+/// Reads a day of the period as typed (`YYYY-MM-DD`); blank is `None` (the default).
+pub fn read_day(what: &str, text: &str) -> Result<Option<NaiveDate>, AppError> {
+    let text = text.trim();
+    if text.is_empty() {
+        return Ok(None);
+    }
+    NaiveDate::parse_from_str(text, "%Y-%m-%d")
+        .map(Some)
+        .map_err(|_| {
+            AppError::BadInput(format!(
+                "{what}: `{text}` is not a date; expected YYYY-MM-DD, e.g. 2026-03-31"
+            ))
+        })
+}
+
+/// The file name a report gets when none is chosen: the shop's report of `to`.
+pub fn default_file_name(to: NaiveDate) -> String {
+    format!("condition-report-{to}.pdf")
+}
+
 /// The first and last day of the period.
 fn period(opts: &ReportOptions, now: DateTime<Utc>) -> Result<(NaiveDate, NaiveDate), AppError> {
     let to = opts.to.unwrap_or_else(|| now.date_naive());

@@ -7,7 +7,7 @@
 use chrono::{DateTime, Duration, NaiveDate, SubsecRound, Utc};
 use serde::{Deserialize, Serialize};
 
-use super::status::{fleet_status_in, store_error, unit_status_in, Detail};
+use super::status::{fleet_status_in, store_error, unit_status_in, Detail, FleetStatus};
 use super::AppError;
 use crate::health::baseline::BaselineIndicator;
 use crate::health::limits::{validate_setting, LimitKey, LimitOrigin, LimitShape, Limits};
@@ -93,6 +93,15 @@ pub fn due_list_in(
         ));
     }
     let fleet = fleet_status_in(store, at, Detail::Summary)?;
+    due_list_from(store, &fleet, within_days)
+}
+
+/// The due list of a fleet status already evaluated (the app evaluates once per refresh).
+pub fn due_list_from(
+    store: &Store,
+    fleet: &FleetStatus,
+    within_days: Option<i64>,
+) -> Result<DueList, AppError> {
     let shop_limits = Limits::resolve(&store.limits().map_err(store_error)?, None);
     let soon = shop_limits.value(LimitKey::DueSoonDays).round() as i64;
     let mut items: Vec<(i64, DueItem)> = Vec::new();

@@ -9,7 +9,7 @@ use chrono::NaiveDate;
 use clap::Args;
 
 use super::Failure;
-use crate::app::report::{write_report, ReportOptions};
+use crate::app::report::{read_day, write_report, ReportOptions};
 use crate::app::shop::Shop;
 use crate::report::Paper;
 
@@ -39,8 +39,9 @@ pub struct ReportArgs {
 }
 
 fn parse_date(s: &str) -> Result<NaiveDate, String> {
-    NaiveDate::parse_from_str(s.trim(), "%Y-%m-%d")
-        .map_err(|_| format!("`{s}` is not a date; expected YYYY-MM-DD"))
+    read_day("date", s)
+        .map_err(|e| e.to_string())?
+        .ok_or_else(|| "a date is needed (YYYY-MM-DD)".to_string())
 }
 
 fn parse_paper(s: &str) -> Result<Paper, String> {

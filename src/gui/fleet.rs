@@ -8,7 +8,9 @@ use slint::ComponentHandle;
 use super::fmt::{dim_text, state_num};
 use super::ui::{FleetAdapter, FleetRow, Nav};
 use super::{model, s, unit, Ctx};
-use crate::app::status::{self, UnitStatus};
+use crate::app::entry;
+use crate::app::status::{self, FleetStatus, UnitStatus};
+use crate::app::AppError;
 use crate::health::indicators::Dim;
 use crate::health::{State, WorkKind};
 use crate::units::UnitSystem;
@@ -126,10 +128,35 @@ fn matches(u: &UnitStatus, state_filter: i32, search: &str) -> bool {
             || u.machine_name.to_lowercase().contains(&q))
 }
 
+/// How long an evaluation is reused while nothing is written: due dates and overdue days move
+/// with the clock, so the board is evaluated again at least this often.
+const REUSE_SECONDS: i64 = 60;
+
+/// The fleet status now, evaluated once per change of the shop's data (or per minute), so the
+/// screens refreshed together after a change share one evaluation.
+pub(super) fn current(ctx: &Rc<Ctx>) -> Result<Rc<FleetStatus>, AppError> {
+    let stamp = entry::shop_stamp(&ctx.shop)?;
+    let now = ctx.now();
+    if let Some((at, st, f)) = ctx.fleet.borrow().as_ref() {
+        if *st == stamp && (now - *at).num_seconds() < REUSE_SECONDS {
+            return Ok(f.clone());
+        }
+    }
+    let fleet = Rc::new(status::fleet_status(&ctx.shop, None)?);
+    *ctx.fleet.borrow_mut() = Some((fleet.at, stamp, fleet.clone()));
+    Ok(fleet)
+}
+
+/// Takes a fleet status evaluated elsewhere (the start-up worker) as the current one.
+/// `stamp` is the shop's change stamp from before that evaluation began.
+pub(super) fn adopt(ctx: &Rc<Ctx>, stamp: (i64, u64), fleet: FleetStatus) {
+    *ctx.fleet.borrow_mut() = Some((fleet.at, stamp, Rc::new(fleet)));
+}
+
 pub(super) fn refresh(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<FleetAdapter>();
-    match status::fleet_status(&ctx.shop, None) {
+    match current(ctx) {
         Ok(fleet) => {
             let sys = ctx.system.get();
             let filter = a.get_state_filter();
@@ -168,9 +195,5 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
 
 /// The worst unit (first on the board), for opening a unit page with no unit chosen.
 pub(super) fn first_unit(ctx: &Rc<Ctx>) -> Option<i64> {
-    status::fleet_status(&ctx.shop, None)
-        .ok()?
-        .units
-        .first()
-        .map(|u| u.unit_id)
+    current(ctx).ok()?.units.first().map(|u| u.unit_id)
 }

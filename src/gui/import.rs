@@ -10,6 +10,7 @@ use std::sync::Arc;
 use slint::language::{StandardListViewItem, TableColumn};
 use slint::{ComponentHandle, ModelRc, VecModel};
 
+use super::jobs::{self, Job, JobView};
 use super::ui::{ImportAdapter, ImportProblem};
 use super::{err_text, model, s, Ctx};
 use crate::app::entry::{self, Cancel, ImportPreview, ImportRun};
@@ -184,10 +185,7 @@ pub(super) fn preview_now(ctx: &Rc<Ctx>, path: &Path) {
     }
 }
 
-type Job<T> = Box<dyn FnOnce(&dyn Fn(f32), &Cancel) -> T + Send>;
-
-/// Runs `job` on a worker thread with progress and cancel wired to the screen; `done` gets
-/// the result back on the event loop.
+/// Runs an import step on a worker with this screen's progress bar and cancel button.
 fn run_job<T: Send + 'static>(
     ctx: &Rc<Ctx>,
     label: &'static str,
@@ -196,48 +194,24 @@ fn run_job<T: Send + 'static>(
 ) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<ImportAdapter>();
-    a.set_running(true);
-    a.set_progress(0.0);
     a.set_progress_text(s(label));
     a.set_message(s(""));
-    let cancel = Arc::new(Cancel::new());
-    ctx.import.borrow_mut().cancel = Some(cancel.clone());
-    let weak = w.as_weak();
-    let ctx_weak = Rc::downgrade(ctx);
-    // The result travels back through a channel read on the event loop, where the Rc lives.
-    let (tx, rx) = std::sync::mpsc::channel::<T>();
-    let rx = std::cell::RefCell::new(Some((rx, done)));
-    let poll = slint::Timer::default();
-    let timer = Rc::new(poll);
-    let t2 = timer.clone();
-    timer.start(
-        slint::TimerMode::Repeated,
-        std::time::Duration::from_millis(50),
-        move || {
-            let ready = rx.borrow().as_ref().and_then(|(r, _)| r.try_recv().ok());
-            if let Some(result) = ready {
-                t2.stop();
-                if let (Some((_, done)), Some(ctx)) = (rx.borrow_mut().take(), ctx_weak.upgrade()) {
-                    if let Some(w) = ctx.win() {
-                        w.global::<ImportAdapter>().set_running(false);
-                    }
-                    ctx.import.borrow_mut().cancel = None;
-                    done(&ctx, result);
-                }
-            }
-        },
-    );
-    std::thread::spawn(move || {
-        let progress = |f: f32| {
-            let _ = weak.upgrade_in_event_loop(move |w| {
-                let a = w.global::<ImportAdapter>();
-                a.set_progress(f);
-                a.set_progress_text(s(format!("{label} {:.0} %", f * 100.0)));
-            });
-        };
-        let result = job(&progress, &cancel);
-        let _ = tx.send(result);
+    let view = JobView {
+        running: |w, on| w.global::<ImportAdapter>().set_running(on),
+        progress: Arc::new(move |w, f| {
+            let a = w.global::<ImportAdapter>();
+            a.set_progress(f);
+            a.set_progress_text(s(format!("{label} {:.0} %", f * 100.0)));
+        }),
+    };
+    let cancel = jobs::run_job(ctx, view, job, move |ctx, result| {
+        ctx.import.borrow_mut().cancel = None;
+        done(ctx, result);
     });
+    // An inline job (tests) is over already and must not leave a cancel flag behind.
+    if w.global::<ImportAdapter>().get_running() {
+        ctx.import.borrow_mut().cancel = Some(cancel);
+    }
 }
 
 fn preview(ctx: &Rc<Ctx>, path: PathBuf) {

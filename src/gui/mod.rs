@@ -15,6 +15,7 @@ use slint::{ComponentHandle, Model, ModelRc, SharedString, VecModel};
 
 use crate::app::entry::{self, Field, Problem, Verdict};
 use crate::app::shop::Shop;
+use crate::app::status::FleetStatus;
 use crate::app::AppError;
 use crate::units::UnitSystem;
 
@@ -24,6 +25,8 @@ pub mod fmt;
 mod about;
 mod fleet;
 mod import;
+mod jobs;
+mod reports;
 mod samples;
 mod setup;
 mod unit;
@@ -49,15 +52,17 @@ pub enum Screen {
     Import = 5,
     Setup = 6,
     About = 7,
+    Reports = 8,
 }
 
 impl Screen {
-    pub const ALL: [Screen; 8] = [
+    pub const ALL: [Screen; 9] = [
         Screen::Fleet,
         Screen::Unit,
         Screen::Walk,
         Screen::Samples,
         Screen::Work,
+        Screen::Reports,
         Screen::Import,
         Screen::Setup,
         Screen::About,
@@ -86,7 +91,17 @@ pub(crate) struct Ctx {
     pub work: RefCell<work::WorkState>,
     pub setup: RefCell<setup::SetupState>,
     pub import: RefCell<import::ImportState>,
+    pub report: RefCell<reports::ReportState>,
+    /// The last fleet evaluation: when, the shop's change stamp then, and the result
+    /// (see `fleet::current`).
+    pub fleet: RefCell<Option<FleetCache>>,
+    /// Run long jobs on the calling thread (tests without an event loop).
+    pub inline_jobs: Cell<bool>,
+    /// Whether the start-up evaluation of `App::open_loading` is in.
+    pub loaded: Cell<bool>,
 }
+
+pub(crate) type FleetCache = (DateTime<Utc>, (i64, u64), Rc<FleetStatus>);
 
 impl Ctx {
     pub fn now(&self) -> DateTime<Utc> {
@@ -109,8 +124,50 @@ fn ui_error(e: slint::PlatformError) -> AppError {
 }
 
 impl App {
-    /// Builds the window on the shop at `db` (which must already be a shop file).
+    /// Builds the window on the shop at `db` (which must already be a shop file), every
+    /// screen filled before it returns.
     pub fn open(db: &Path) -> Result<App, AppError> {
+        let app = App::build(db)?;
+        refresh_all(&app.ctx);
+        Ok(app)
+    }
+
+    /// Builds the window with only the shop's name and settings filled, and evaluates the
+    /// fleet on a worker: on a large shop the window is up at once and the screens fill
+    /// when the evaluation is in (a second or so for 1,000 units).
+    pub fn open_loading(db: &Path) -> Result<App, AppError> {
+        let app = App::build(db)?;
+        let ctx = &app.ctx;
+        refresh_nav(ctx);
+        app.window
+            .global::<ui::FleetAdapter>()
+            .set_summary(s("Reading the shop and evaluating every unit…"));
+        let stamp = entry::shop_stamp(&ctx.shop)?;
+        let db = ctx.db_path.clone();
+        let view = jobs::JobView {
+            running: |_, _| {},
+            progress: std::sync::Arc::new(|_, _| {}),
+        };
+        jobs::run_job(
+            ctx,
+            view,
+            Box::new(move |_, _| {
+                let shop = Shop::open(&db)?;
+                crate::app::status::fleet_status(&shop, None)
+            }),
+            move |ctx, result| {
+                if let Ok(fleet) = result {
+                    fleet::adopt(ctx, stamp, fleet);
+                }
+                // On an error the screens evaluate (and show the error) themselves.
+                refresh_all(ctx);
+                ctx.loaded.set(true);
+            },
+        );
+        Ok(app)
+    }
+
+    fn build(db: &Path) -> Result<App, AppError> {
         charts::register_fonts();
         let shop = Shop::open(db)?;
         let system = entry::shop_settings(&shop)?.unit_system;
@@ -127,10 +184,13 @@ impl App {
             work: RefCell::new(work::WorkState::default()),
             setup: RefCell::new(setup::SetupState::default()),
             import: RefCell::new(import::ImportState::default()),
+            report: RefCell::new(reports::ReportState::default()),
+            fleet: RefCell::new(None),
+            inline_jobs: Cell::new(false),
+            loaded: Cell::new(false),
         });
         let app = App { window, ctx };
         app.install();
-        refresh_all(&app.ctx);
         Ok(app)
     }
 
@@ -148,8 +208,20 @@ impl App {
         samples::install(&self.ctx);
         work::install(&self.ctx);
         import::install(&self.ctx);
+        reports::install(&self.ctx);
         setup::install(&self.ctx);
         about::install(&self.ctx);
+    }
+
+    /// Runs long work (report writing) on the calling thread, for tests that drive the window
+    /// without an event loop.
+    pub fn run_jobs_inline(&self) {
+        self.ctx.inline_jobs.set(true);
+    }
+
+    /// Puts `opener` in place of the desktop's file opener (tests record what was opened).
+    pub fn set_file_opener(&self, opener: impl Fn(&Path) -> Result<(), String> + 'static) {
+        self.ctx.report.borrow_mut().opener = Rc::new(opener);
     }
 
     pub fn window(&self) -> &AppWindow {
@@ -164,6 +236,39 @@ impl App {
     /// Opens a unit's page.
     pub fn open_unit(&self, unit_id: i64) {
         unit::open(&self.ctx, unit_id);
+    }
+
+    /// Renders one frame as soon as the event loop runs (or once the start-up evaluation is in,
+    /// with `filled`), reports the time on stderr and quits.
+    fn exit_after_first_frame(&self, filled: bool) {
+        let start = std::time::Instant::now();
+        let ctx = Rc::downgrade(&self.ctx);
+        let timer = Rc::new(slint::Timer::default());
+        let t = timer.clone();
+        timer.start(
+            slint::TimerMode::Repeated,
+            std::time::Duration::from_millis(if filled { 5 } else { 0 }),
+            move || {
+                let Some(ctx) = ctx.upgrade() else { return };
+                if filled && !ctx.loaded.get() {
+                    return;
+                }
+                t.stop();
+                if let Some(w) = ctx.win() {
+                    let _ = w.window().take_snapshot();
+                }
+                eprintln!(
+                    "sumpbook: {} after {:.3} s of the event loop",
+                    if filled {
+                        "screens filled"
+                    } else {
+                        "first frame"
+                    },
+                    start.elapsed().as_secs_f64()
+                );
+                let _ = slint::quit_event_loop();
+            },
+        );
     }
 
     /// Runs the event loop until the window is closed.
@@ -278,6 +383,10 @@ fn screenshot_steps(import_file: Option<PathBuf>) -> Vec<(&'static str, Step)> {
             }),
         ),
         (
+            "reports",
+            Box::new(|ctx: &Rc<Ctx>| show(ctx, Screen::Reports)),
+        ),
+        (
             "import",
             Box::new(move |ctx: &Rc<Ctx>| {
                 show(ctx, Screen::Import);
@@ -340,12 +449,26 @@ pub(crate) fn show(ctx: &Rc<Ctx>, screen: Screen) {
         Screen::Import => import::refresh(ctx),
         Screen::Setup => setup::refresh(ctx),
         Screen::About => about::refresh(ctx),
+        Screen::Reports => reports::refresh(ctx),
     }
     w.global::<Nav>().set_screen(screen as i32);
 }
 
 /// Refreshes every screen (after the unit system changed, an import, ...).
 pub(crate) fn refresh_all(ctx: &Rc<Ctx>) {
+    refresh_nav(ctx);
+    fleet::refresh(ctx);
+    unit::refresh(ctx);
+    walk::refresh(ctx);
+    samples::refresh(ctx);
+    work::refresh(ctx);
+    setup::refresh(ctx);
+    about::refresh(ctx);
+    reports::refresh(ctx);
+}
+
+/// The shop's name, file and unit system in the navigation rail.
+fn refresh_nav(ctx: &Rc<Ctx>) {
     if let Ok(s) = entry::shop_settings(&ctx.shop) {
         ctx.system.set(s.unit_system);
         if let Some(w) = ctx.win() {
@@ -361,13 +484,11 @@ pub(crate) fn refresh_all(ctx: &Rc<Ctx>) {
             );
         }
     }
-    fleet::refresh(ctx);
-    unit::refresh(ctx);
-    walk::refresh(ctx);
-    samples::refresh(ctx);
-    work::refresh(ctx);
-    setup::refresh(ctx);
-    about::refresh(ctx);
+}
+
+/// The walk-round order, from the current fleet evaluation.
+pub(crate) fn route(ctx: &Rc<Ctx>) -> Result<Vec<entry::RouteStop>, AppError> {
+    fleet::current(ctx).map(|f| entry::route_from(&f))
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -495,6 +616,10 @@ pub(crate) fn err_text(e: &AppError) -> String {
     e.to_string()
 }
 
+/// The start-up benchmark's switch (benches/run.sh): `1` ends the app once its first frame is
+/// rendered, `filled` once the screens are filled after the start-up evaluation.
+const FIRST_FRAME_EXIT: &str = "SUMPBOOK_EXIT_AFTER_FIRST_FRAME";
+
 /// Opens the app on `db`, or on the default shop file when `None` (created with the demo shop
 /// on first start), and runs it until the window closes. A `--db` file must already be a shop
 /// (`sumpbook --db FILE init` or `demo` makes one).
@@ -512,12 +637,15 @@ pub fn run(db: Option<&Path>) -> Result<(), AppError> {
         }
         None => Shop::open_default()?.path().to_path_buf(),
     };
-    let app = App::open(&path)?;
-    match std::env::var_os("SUMPBOOK_SCREENSHOTS") {
-        Some(dir) => app.run_screenshots(
+    if let Some(dir) = std::env::var_os("SUMPBOOK_SCREENSHOTS") {
+        return App::open(&path)?.run_screenshots(
             Path::new(&dir),
             std::env::var_os("SUMPBOOK_SCREENSHOT_IMPORT").map(PathBuf::from),
-        ),
-        None => app.run(),
+        );
     }
+    let app = App::open_loading(&path)?;
+    if let Some(when) = std::env::var_os(FIRST_FRAME_EXIT) {
+        app.exit_after_first_frame(when == "filled");
+    }
+    app.run()
 }

@@ -74,7 +74,7 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
 pub(super) fn refresh(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<SampleAdapter>();
-    let stops = entry::route(&ctx.shop).unwrap_or_default();
+    let stops = super::route(ctx).unwrap_or_default();
     if ctx.unit_id.get().is_none() {
         ctx.unit_id.set(stops.first().map(|r| r.unit_id));
     }

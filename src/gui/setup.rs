@@ -299,7 +299,7 @@ fn origin(o: LimitOrigin) -> &'static str {
 fn load_limits(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<SetupAdapter>();
-    let tags: Vec<String> = entry::route(&ctx.shop)
+    let tags: Vec<String> = super::route(ctx)
         .unwrap_or_default()
         .into_iter()
         .map(|r| r.tag)

@@ -118,7 +118,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
     let a = w.global::<UnitAdapter>();
     let sys = ctx.system.get();
     // The chooser: every unit in route order.
-    let stops = entry::route(&ctx.shop).unwrap_or_default();
+    let stops = super::route(ctx).unwrap_or_default();
     if ctx.unit_id.get().is_none() {
         ctx.unit_id.set(super::fleet::first_unit(ctx));
     }

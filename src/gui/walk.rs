@@ -78,7 +78,7 @@ fn stop_rows(st: &WalkState) -> Vec<RouteStop> {
 pub(super) fn refresh(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<WalkAdapter>();
-    let stops = match entry::route(&ctx.shop) {
+    let stops = match super::route(ctx) {
         Ok(s) => s,
         Err(e) => {
             a.set_message(s(err_text(&e)));

@@ -49,7 +49,7 @@ fn when(d: &DueItem) -> String {
 pub(super) fn refresh(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<WorkAdapter>();
-    let list = match entry::due_list(&ctx.shop) {
+    let list = match super::fleet::current(ctx).and_then(|f| entry::due_list_of(&ctx.shop, &f)) {
         Ok(l) => l,
         Err(e) => {
             a.set_message(s(err_text(&e)));
@@ -120,7 +120,7 @@ fn choose(ctx: &Rc<Ctx>, i: i32) {
     match item.kind {
         WorkKind::Sample | WorkKind::Check => {
             // Done by entering the reading: go where it is entered, on this unit.
-            let id = entry::route(&ctx.shop)
+            let id = super::route(ctx)
                 .ok()
                 .and_then(|r| r.into_iter().find(|s| s.tag == item.unit))
                 .map(|s| s.unit_id);
