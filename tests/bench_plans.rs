@@ -18,6 +18,9 @@ fn assert_indexed_reads(store: &Store, when: &str) {
     let names: Vec<&str> = plans.iter().map(|(n, _)| n.as_str()).collect();
     for expected in [
         "fleet.checks",
+        "fleet.later_checks",
+        "fleet.first_check_time",
+        "fleet.last_check_time",
         "fleet.samples",
         "unit.checks",
         "unit.samples",
@@ -39,6 +42,7 @@ fn assert_indexed_reads(store: &Store, when: &str) {
     // Each reads its own table through an index, in the order it needs (no sort step).
     for (name, table) in [
         ("fleet.checks", "checks"),
+        ("fleet.later_checks", "checks"),
         ("fleet.samples", "samples"),
         ("unit.checks", "checks"),
         ("unit.samples", "samples"),
@@ -101,4 +105,34 @@ fn a_full_scan_is_recognised_in_a_plan() {
         full_scan_of("SEARCH checks USING INDEX i (unit_id=?)", "checks"),
         None
     );
+}
+
+#[test]
+fn the_split_fleet_read_gives_each_unit_the_rows_of_its_own_read() {
+    // Enough checks (80 units x 520, over the 40,000 of the split) for the fleet read to take the later half on a second
+    // connection; each unit's checks must be those the unit page's own query reads, in order.
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("shop.sqlite");
+    let mut store = Store::open(&path, OpenMode::Create).unwrap();
+    let spec = Spec {
+        units: 80,
+        checks: 520,
+        samples: 10,
+    };
+    large_shop::load(&mut store, &spec, false).unwrap();
+    for at in [None, Some(chrono::Utc::now() - chrono::Duration::days(900))] {
+        let fleet = store.unit_histories(at).unwrap();
+        assert_eq!(fleet.len(), 80);
+        let total: usize = fleet.iter().map(|h| h.checks.len()).sum();
+        assert!(total > 0);
+        if at.is_none() {
+            assert_eq!(total, 80 * 520);
+        }
+        for h in &fleet {
+            let own = store.unit_history(h.unit.id, at).unwrap().unwrap();
+            assert_eq!(h.checks, own.checks, "unit {}", h.unit.tag);
+            assert_eq!(h.samples, own.samples, "unit {}", h.unit.tag);
+            assert!(h.checks.windows(2).all(|w| w[0].taken_at < w[1].taken_at));
+        }
+    }
 }

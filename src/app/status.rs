@@ -127,10 +127,7 @@ pub fn fleet_status_in(
     let when = at.unwrap_or_else(Utc::now);
     let data = shop_data(store)?;
     let histories = store.unit_histories(Some(when)).map_err(store_error)?;
-    let mut units: Vec<UnitStatus> = histories
-        .iter()
-        .map(|h| unit_status(h, &data, when, detail))
-        .collect();
+    let mut units = evaluate_all(&histories, &data, when, detail);
     sort_worst_first(&mut units);
     let mut counts = StateCounts::default();
     for u in &units {
@@ -167,6 +164,44 @@ pub fn unit_status_in(
         .ok_or_else(|| AppError::BadInput(format!("no unit `{}` in this shop", tag.trim())))?;
     let data = shop_data(store)?;
     Ok(unit_status(&h, &data, when, Detail::Full))
+}
+
+/// Units below this many are evaluated on the calling thread; a thread costs more than it
+/// saves.
+const PARALLEL_UNITS: usize = 64;
+
+/// Every unit's status, in the order of `histories`. Units are independent, so a large fleet
+/// is split across the machine's cores.
+fn evaluate_all(
+    histories: &[UnitHistory],
+    data: &ShopData,
+    when: DateTime<Utc>,
+    detail: Detail,
+) -> Vec<UnitStatus> {
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
+    if histories.len() < PARALLEL_UNITS || threads < 2 {
+        return histories
+            .iter()
+            .map(|h| unit_status(h, data, when, detail))
+            .collect();
+    }
+    let per = histories.len().div_ceil(threads);
+    std::thread::scope(|s| {
+        let parts: Vec<_> = histories
+            .chunks(per)
+            .map(|part| {
+                s.spawn(move || {
+                    part.iter()
+                        .map(|h| unit_status(h, data, when, detail))
+                        .collect::<Vec<_>>()
+                })
+            })
+            .collect();
+        parts
+            .into_iter()
+            .flat_map(|p| p.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
+            .collect()
+    })
 }
 
 /// The fleet status of the shop at `at` (now when `None`).

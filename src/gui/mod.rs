@@ -254,16 +254,18 @@ impl App {
                     return;
                 }
                 t.stop();
-                if let Some(w) = ctx.win() {
-                    let _ = w.window().take_snapshot();
-                }
+                let frame = match ctx.win().map(|w| w.window().take_snapshot()) {
+                    Some(Ok(shot)) => format!("{}x{} px", shot.width(), shot.height()),
+                    Some(Err(e)) => format!("not rendered: {e}"),
+                    None => "no window".to_string(),
+                };
+                let what = if filled {
+                    "screens filled"
+                } else {
+                    "first frame"
+                };
                 eprintln!(
-                    "sumpbook: {} after {:.3} s of the event loop",
-                    if filled {
-                        "screens filled"
-                    } else {
-                        "first frame"
-                    },
+                    "sumpbook: {what} ({frame}) after {:.3} s of the event loop",
                     start.elapsed().as_secs_f64()
                 );
                 let _ = slint::quit_event_loop();

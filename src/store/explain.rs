@@ -37,6 +37,21 @@ impl Store {
         for (name, sql) in fleet {
             out.push((name.to_string(), self.plan(&sql, &[&UNTIL])?));
         }
+        // The split read of a large shop: the split point, then the later half of the checks.
+        for (name, sql) in [
+            ("fleet.first_check_time", history::first_check_time_sql()),
+            ("fleet.last_check_time", history::last_check_time_sql()),
+        ] {
+            let params: &[&dyn rusqlite::ToSql] = if sql.contains("?1") { &[&UNTIL] } else { &[] };
+            out.push((name.to_string(), self.plan(sql, params)?));
+        }
+        out.push((
+            "fleet.later_checks".to_string(),
+            self.plan(
+                &history::fleet_later_checks_sql(),
+                &[&"2000-01-01T00:00:00Z", &UNTIL],
+            )?,
+        ));
         for (name, sql) in unit {
             out.push((name.to_string(), self.plan(&sql, &[&1i64, &UNTIL])?));
         }

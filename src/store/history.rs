@@ -2,6 +2,9 @@
 //! fixed number of queries (one per table, grouped here), whatever the size of the fleet.
 
 use std::collections::HashMap;
+use std::path::Path;
+
+use rusqlite::{Connection, OpenFlags, OptionalExtension};
 
 use chrono::{DateTime, Utc};
 
@@ -10,8 +13,8 @@ use super::baselines_limits::{baseline_from_row, baseline_sql};
 use super::checks::{check_from_row, CHECK_COLS};
 use super::events::{event_from_row, EVENT_COLS};
 use super::samples::{sample_from_row, SAMPLE_COLS};
-use super::{fmt_time_stamp, Store, StoreError};
-use crate::model::{Id, UnitHistory};
+use super::{fmt_time_stamp, parse_time, Store, StoreError};
+use crate::model::{Check, Id, UnitHistory};
 
 /// The upper time bound of a history as column text; `None` means everything.
 pub(crate) fn until_text(at: Option<DateTime<Utc>>) -> String {
@@ -29,6 +32,42 @@ pub(crate) fn until_text(at: Option<DateTime<Utc>>) -> String {
 /// [`Store::unit_histories`], so each unit's rows stay in time order (events by time, kind, id).
 pub(crate) fn fleet_checks_sql() -> String {
     format!("SELECT {CHECK_COLS} FROM checks WHERE taken_at <= ?1 ORDER BY taken_at, unit_id")
+}
+
+/// The later part of the checks of [`fleet_checks_sql`] when the read is split in two
+/// (see [`Store::unit_histories`]): after `?1`, up to `?2`, in the same order.
+pub(crate) fn fleet_later_checks_sql() -> String {
+    format!(
+        "SELECT {CHECK_COLS} FROM checks WHERE taken_at > ?1 AND taken_at <= ?2 \
+         ORDER BY taken_at, unit_id"
+    )
+}
+
+/// The first and the last check time up to `?1`, each one step down the time index.
+pub(crate) fn first_check_time_sql() -> &'static str {
+    "SELECT min(taken_at) FROM checks"
+}
+
+pub(crate) fn last_check_time_sql() -> &'static str {
+    "SELECT max(taken_at) FROM checks WHERE taken_at <= ?1"
+}
+
+/// From this many checks on, the fleet read takes the later half of them on a second
+/// connection at the same time: reading through the time index is most of a fleet status on
+/// a large shop, and a second core halves it. Below it a thread costs more than it saves.
+const SPLIT_READ_CHECKS: i64 = 40_000;
+
+/// Reads the checks after `from` up to `until` on a connection of its own (read-only).
+fn read_later_checks(path: &Path, from: &str, until: &str) -> Result<Vec<Check>, StoreError> {
+    let conn = Connection::open_with_flags(
+        path,
+        OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )?;
+    conn.pragma_update(None, "cache_size", -16384)?;
+    let mut st = conn.prepare(&fleet_later_checks_sql())?;
+    let rows = st.query_map([from, until], check_from_row)?;
+    rows.collect::<Result<Vec<_>, _>>()
+        .map_err(StoreError::from)
 }
 
 pub(crate) fn fleet_samples_sql() -> String {
@@ -64,10 +103,57 @@ pub(crate) fn fleet_acks_sql() -> String {
 
 impl Store {
     /// The history of every active unit (neither the unit nor its machine archived), in route
-    /// order, with records up to `at` (all when `None`). Runs one query per table.
+    /// order, with records up to `at` (all when `None`). Runs one query per table; on a large
+    /// shop the later half of the checks is read at the same time on a second connection. If
+    /// another connection commits meanwhile, the two halves might not be of one moment, so
+    /// the read is done again on this connection alone.
     pub fn unit_histories(
         &self,
         at: Option<DateTime<Utc>>,
+    ) -> Result<Vec<UnitHistory>, StoreError> {
+        let version = |s: &Store| -> Result<i64, StoreError> {
+            Ok(s.conn.query_row("PRAGMA data_version", [], |r| r.get(0))?)
+        };
+        let before = version(self)?;
+        let out = self.read_histories(at, true)?;
+        if version(self)? == before {
+            return Ok(out);
+        }
+        self.read_histories(at, false)
+    }
+
+    /// The time halfway between the first and the last check up to `until`, if there are
+    /// enough checks to be worth a second reader.
+    fn split_time(&self, until: &str, checks: i64) -> Result<Option<String>, StoreError> {
+        if checks < SPLIT_READ_CHECKS || self.path == Path::new(":memory:") {
+            return Ok(None);
+        }
+        let first: Option<String> = self
+            .stmt(first_check_time_sql())?
+            .query_row([], |r| r.get(0))
+            .optional()?
+            .flatten();
+        let last: Option<String> = self
+            .stmt(last_check_time_sql())?
+            .query_row([until], |r| r.get(0))
+            .optional()?
+            .flatten();
+        let (Some(first), Some(last)) = (first, last) else {
+            return Ok(None);
+        };
+        let (Ok(a), Ok(b)) = (parse_time(&first), parse_time(&last)) else {
+            return Ok(None);
+        };
+        if b <= a {
+            return Ok(None);
+        }
+        Ok(Some(fmt_time_stamp(&(a + (b - a) / 2))))
+    }
+
+    fn read_histories(
+        &self,
+        at: Option<DateTime<Utc>>,
+        may_split: bool,
     ) -> Result<Vec<UnitHistory>, StoreError> {
         let until = until_text(at);
         let machines: HashMap<Id, _> = self.machines()?.into_iter().map(|m| (m.id, m)).collect();
@@ -95,19 +181,59 @@ impl Store {
         }
 
         let mut st = self.stmt(fleet_check_counts_sql())?;
+        let mut total = 0i64;
         for r in st.query_map([&until], |r| Ok((r.get::<_, Id>(0)?, r.get::<_, i64>(1)?)))? {
             let (unit_id, n) = r?;
+            total += n;
             if let Some(&i) = slot.get(&unit_id) {
                 out[i].checks.reserve_exact(usize::try_from(n).unwrap_or(0));
             }
         }
-        let mut st = self.stmt(&fleet_checks_sql())?;
-        for c in st.query_map([&until], check_from_row)? {
-            let c = c?;
-            if let Some(&i) = slot.get(&c.unit_id) {
-                out[i].checks.push(c);
+        let split = if may_split {
+            self.split_time(&until, total)?
+        } else {
+            None
+        };
+        std::thread::scope(|scope| -> Result<(), StoreError> {
+            let later = split.as_ref().map(|mid| {
+                let (path, until) = (self.path.clone(), until.clone());
+                scope.spawn(move || read_later_checks(&path, mid, &until))
+            });
+            // Checks up to the split (all of them without one), then the later half after
+            // them: both in time order, so each unit's rows stay in time order.
+            let first_until = split.as_deref().unwrap_or(&until);
+            let mut st = self.stmt(&fleet_checks_sql())?;
+            for c in st.query_map([first_until], check_from_row)? {
+                let c = c?;
+                if let Some(&i) = slot.get(&c.unit_id) {
+                    out[i].checks.push(c);
+                }
             }
-        }
+            drop(st);
+            self.read_other_rows(&until, &slot, &mut out)?;
+            if let Some(h) = later {
+                let rows = h
+                    .join()
+                    .map_err(|_| StoreError::Corrupt("the second reader stopped".into()))??;
+                for c in rows {
+                    if let Some(&i) = slot.get(&c.unit_id) {
+                        out[i].checks.push(c);
+                    }
+                }
+            }
+            Ok(())
+        })?;
+        Ok(out)
+    }
+
+    /// Samples, events, hand-entered baselines and acknowledgements up to `until`, into the
+    /// histories of `out` (indexed by unit through `slot`).
+    fn read_other_rows(
+        &self,
+        until: &str,
+        slot: &HashMap<Id, usize>,
+        out: &mut [UnitHistory],
+    ) -> Result<(), StoreError> {
         let mut st = self.stmt(&fleet_samples_sql())?;
         for s in st.query_map([&until], sample_from_row)? {
             let s = s?;
@@ -136,7 +262,7 @@ impl Store {
                 out[i].acknowledgements.push(a);
             }
         }
-        Ok(out)
+        Ok(())
     }
 
     /// The history of one unit (archived or not) up to `at`; `None` if there is no such unit.
