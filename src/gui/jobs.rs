@@ -19,11 +19,14 @@ use crate::app::entry::Cancel;
 /// The work: gets a progress callback (0.0 ..= 1.0) and the cancel flag.
 pub(crate) type Job<T> = Box<dyn FnOnce(&dyn Fn(f32), &Cancel) -> T + Send>;
 
+/// Shows how far a job is (0.0 ..= 1.0) on its screen; called on the event loop.
+pub(crate) type ShowProgress = Arc<dyn Fn(&AppWindow, f32) + Send + Sync>;
+
 /// How a screen shows a job: whether it runs, and how far it is.
 #[derive(Clone)]
 pub(crate) struct JobView {
     pub running: fn(&AppWindow, bool),
-    pub progress: Arc<dyn Fn(&AppWindow, f32) + Send + Sync>,
+    pub progress: ShowProgress,
 }
 
 /// Starts `job`; `done` gets its result on the event loop. Returns the job's cancel flag.
