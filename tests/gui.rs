@@ -127,6 +127,12 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
         .unwrap();
     let last = before.last().unwrap().clone();
     f.app.show(Screen::Walk);
+    // The walk-round's caution is on the screen (design §11).
+    let caution = by_label(&f.app, "safety").accessible_value().unwrap();
+    assert!(
+        caution.contains("penetrate skin") && caution.contains("walk-round"),
+        "{caution}"
+    );
     field(&f.app, "Technician").set_accessible_value("T. Tester");
 
     // Values close to the unit's last check, so that none is unusual.

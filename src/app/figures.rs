@@ -13,7 +13,7 @@ use crate::units::{Flow, TempDiff, Temperature, UnitSystem, Viscosity};
 pub fn unit(dim: Dim, sys: UnitSystem) -> &'static str {
     match (dim, sys) {
         (Dim::Flow, UnitSystem::Metric) => "L/min",
-        (Dim::Flow, UnitSystem::Us) => "gpm",
+        (Dim::Flow, UnitSystem::Us) => "GPM",
         (Dim::Temperature, UnitSystem::Metric) => "°C",
         (Dim::Temperature, UnitSystem::Us) => "°F",
         (Dim::TempDiff, UnitSystem::Metric) => "K",
@@ -109,9 +109,9 @@ mod tests {
 
     #[test]
     fn flows_read_in_the_shop_units() {
-        // 1 US gal = 3.785411784 L exactly (NIST SP 811): 37.85411784 L/min = 10 gpm.
+        // 1 US gal = 3.785411784 L exactly (NIST SP 811): 37.85411784 L/min = 10 GPM.
         let si = 37.854_117_84 / 60_000.0;
         assert!((value(Dim::Flow, si, UnitSystem::Us) - 10.0).abs() < 1e-9);
-        assert_eq!(unit(Dim::Flow, UnitSystem::Us), "gpm");
+        assert_eq!(unit(Dim::Flow, UnitSystem::Us), "GPM");
     }
 }

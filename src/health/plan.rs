@@ -25,6 +25,10 @@ pub const SAFETY_CAUTIONS: [&str; 5] = [
      people decide.",
 ];
 
+/// The caution of a walk-round, where the circuit stays closed but hot and under pressure.
+pub const WALK_ROUND_CAUTION: &str = "Hot oil and surfaces burn. Do not open a pressurised circuit on a \
+walk-round; pressurised fluid can penetrate skin — seek medical help at once, even for a small wound.";
+
 /// The cautions of design §11 in one line, for work that opens the circuit or takes oil out.
 pub const CAUTION_SHORT: &str = "Relieve pressure, lower or block loads, discharge accumulators and lock out first; \
 oil under pressure can pierce skin (get medical help at once); hot oil burns; dispose of used oil and filters \
