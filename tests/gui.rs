@@ -570,3 +570,56 @@ fn the_window_comes_up_before_the_fleet_is_evaluated_and_fills_after() {
     use slint::Model;
     assert_eq!(fleet.get_rows().row_count(), 11);
 }
+
+#[test]
+fn a_long_history_table_makes_only_the_rows_on_screen() {
+    // One unit with 5,000 weekly checks: the table holds them all, but only the rows a screen
+    // shows are made (design §9: tables scroll long histories without loading them all).
+    i_slint_backend_testing::init_no_event_loop();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("long.sqlite");
+    {
+        let mut store =
+            sumpbook::store::Store::open(&path, sumpbook::store::OpenMode::Create).unwrap();
+        let spec = sumpbook::exchange::large_shop::Spec {
+            units: 1,
+            checks: 5000,
+            samples: 50,
+        };
+        sumpbook::exchange::large_shop::load(&mut store, &spec, false).unwrap();
+    }
+    let app = App::open(&path).unwrap();
+    app.window()
+        .window()
+        .set_size(slint::LogicalSize::new(1280.0, 800.0));
+    app.window().show().unwrap();
+    let s = shop(&path);
+    let unit = s.store().units().unwrap().remove(0);
+    let checks = s.store().checks_for_unit(unit.id, None).unwrap();
+    app.open_unit(unit.id);
+    let a = app.window().global::<sumpbook::gui::ui::UnitAdapter>();
+    a.set_tab(2);
+    // Finding an element lays the screen out, which makes the table's visible rows.
+    let _ = labels_starting(&app, "");
+    use slint::Model;
+    let rows = a.get_rows();
+    assert_eq!(rows.row_count(), checks.len());
+    let lazy = rows
+        .as_any()
+        .downcast_ref::<sumpbook::gui::HistoryRows>()
+        .expect("the history table's rows are made on demand");
+    assert!(lazy.rows_made() > 0, "the rows on screen are made");
+    assert!(lazy.rows_made() < 200, "{} rows made", lazy.rows_made());
+    // Newest first, and a row asked for far down is the right one.
+    let newest = sumpbook::app::entry::show_time(checks.last().unwrap().taken_at);
+    let first = rows.row_data(0).unwrap().row_data(0).unwrap().text;
+    assert_eq!(first.as_str(), newest);
+    let oldest = sumpbook::app::entry::show_time(checks[0].taken_at);
+    let last = rows
+        .row_data(checks.len() - 1)
+        .unwrap()
+        .row_data(0)
+        .unwrap()
+        .text;
+    assert_eq!(last.as_str(), oldest);
+}

@@ -40,6 +40,7 @@ pub mod ui {
 
 pub use ui::AppWindow;
 use ui::{FormField, Nav};
+pub use unit::HistoryRows;
 
 /// Screens, as `Nav.screen` numbers them.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

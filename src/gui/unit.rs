@@ -1,6 +1,8 @@
 //! Unit page adapter: identity, era and baseline, tiles, flags and their acknowledgement,
 //! charts, and the history tables with corrections (who and why asked for every change).
 
+use std::cell::Cell;
+use std::collections::HashMap;
 use std::rc::Rc;
 
 use slint::language::{StandardListViewItem, TableColumn};
@@ -27,7 +29,7 @@ const CHART_H: u32 = 262;
 pub(crate) struct UnitState {
     /// Unit ids in the order of the unit chooser.
     choices: Vec<i64>,
-    view: Option<UnitView>,
+    view: Option<Rc<UnitView>>,
     /// Reading ids of the rows of the history table shown.
     row_ids: Vec<i64>,
     table: Option<Reading>,
@@ -164,7 +166,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
     {
         let mut u = ctx.unit.borrow_mut();
         u.choices = stops.iter().map(|r| r.unit_id).collect();
-        u.view = Some(view);
+        u.view = Some(Rc::new(view));
     }
     let table = ctx.unit.borrow().table.unwrap_or(Reading::Check);
     fill_table(ctx, table);
@@ -641,150 +643,209 @@ fn opt(v: Option<String>) -> String {
     v.unwrap_or_default()
 }
 
+/// The rows of a history table, newest first, made when the table asks for them: a table
+/// instantiates the rows on screen only, so a unit with 100,000 checks costs a screenful of
+/// rows, not all of them (design §9).
+pub struct HistoryRows {
+    count: usize,
+    make: RowMaker,
+    made: Cell<usize>,
+    notify: slint::ModelNotify,
+}
+
+type RowMaker = Box<dyn Fn(usize) -> Vec<StandardListViewItem>>;
+
+impl HistoryRows {
+    /// How many rows have been made so far (a table shows a screenful).
+    pub fn rows_made(&self) -> usize {
+        self.made.get()
+    }
+}
+
+impl Model for HistoryRows {
+    type Data = ModelRc<StandardListViewItem>;
+
+    fn row_count(&self) -> usize {
+        self.count
+    }
+
+    fn row_data(&self, row: usize) -> Option<Self::Data> {
+        if row >= self.count {
+            return None;
+        }
+        self.made.set(self.made.get() + 1);
+        Some(ModelRc::new(VecModel::from((self.make)(row))))
+    }
+
+    fn model_tracker(&self) -> &dyn slint::ModelTracker {
+        &self.notify
+    }
+
+    fn as_any(&self) -> &dyn std::any::Any {
+        self
+    }
+}
+
+fn num(x: Option<f64>, d: usize) -> String {
+    x.map(|v| format!("{v:.d$}")).unwrap_or_default()
+}
+
+fn check_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>, RowMaker) {
+    let t = |k: Kind| k.display_unit(sys).symbol();
+    let cols = vec![
+        col("Taken", 168.0),
+        col(&format!("Oil {}", t(Kind::Temperature)), 100.0),
+        col(&format!("Air {}", t(Kind::Temperature)), 100.0),
+        col(&format!("Press. {}", t(Kind::Pressure)), 118.0),
+        col("Stroke s", 108.0),
+        col(&format!("Flow {}", t(Kind::Flow)), 123.0),
+        col("Lost %", 98.0),
+        col("Level", 86.0),
+        col("Filter", 88.0),
+        col("Hours", 98.0),
+        col("By", 98.0),
+        col("Note", 238.0),
+    ];
+    let ids: Vec<i64> = v.history.checks.iter().rev().map(|c| c.id).collect();
+    // The engine's figures of each check, found by id once rather than per row shown.
+    let points: HashMap<i64, usize> = v
+        .status
+        .health
+        .checks
+        .iter()
+        .enumerate()
+        .map(|(i, p)| (p.check_id, i))
+        .collect();
+    let v = v.clone();
+    let make = move |i: usize| {
+        let c = &v.history.checks[v.history.checks.len() - 1 - i];
+        let point = points.get(&c.id).map(|&k| &v.status.health.checks[k]);
+        let conv = |k: Kind, si: Option<f64>| {
+            si.map(|x| format!("{:.1}", k.display_unit(sys).from_si(x)))
+                .unwrap_or_default()
+        };
+        vec![
+            cell(entry::show_time(c.taken_at)),
+            cell(conv(Kind::Temperature, c.reservoir_temp.map(|x| x.si()))),
+            cell(conv(Kind::Temperature, c.ambient_temp.map(|x| x.si()))),
+            cell(conv(Kind::Pressure, c.pressure.map(|x| x.si()))),
+            cell(num(c.stroke_time.map(|x| x.si()), 2)),
+            cell(
+                point
+                    .and_then(|p| p.effective_flow)
+                    .map(|q| format!("{:.1}", dim_value(Dim::Flow, q, sys)))
+                    .unwrap_or_default(),
+            ),
+            cell(num(point.and_then(|p| p.lost_flow_pct), 1)),
+            cell(opt(c.oil_level.map(|x| x.to_string()))),
+            cell(opt(c.filter.map(|x| x.to_string()))),
+            cell(num(c.hours, 0)),
+            cell(&c.by),
+            cell(&c.note),
+        ]
+    };
+    (cols, ids, Box::new(make))
+}
+
+fn sample_table(v: &Rc<UnitView>) -> (Vec<TableColumn>, Vec<i64>, RowMaker) {
+    let cols = vec![
+        col("Sampled", 168.0),
+        col("KV40 cSt", 113.0),
+        col("KV100 cSt", 118.0),
+        col("ISO 4406", 113.0),
+        col("≥4 /mL", 103.0),
+        col("≥6 /mL", 103.0),
+        col("≥14 /mL", 108.0),
+        col("Water ppm", 123.0),
+        col("Acid", 88.0),
+        col("Lab ref", 128.0),
+        col("Note", 238.0),
+    ];
+    let ids: Vec<i64> = v.history.samples.iter().rev().map(|c| c.id).collect();
+    let points: HashMap<i64, usize> = v
+        .status
+        .health
+        .samples
+        .iter()
+        .enumerate()
+        .map(|(i, p)| (p.sample_id, i))
+        .collect();
+    let v = v.clone();
+    let make = move |i: usize| {
+        let smp = &v.history.samples[v.history.samples.len() - 1 - i];
+        let point = points.get(&smp.id).map(|&k| &v.status.health.samples[k]);
+        let kv40 = smp
+            .kv40
+            .map(|k| k.cst())
+            .or_else(|| point.and_then(|p| p.kv40).map(|k| k * 1e6));
+        vec![
+            cell(entry::show_time(smp.sampled_at)),
+            cell(num(kv40, 1)),
+            cell(num(smp.kv100.map(|k| k.cst()), 2)),
+            cell(
+                point
+                    .and_then(|p| p.code)
+                    .map(|c| c.to_string())
+                    .or_else(|| smp.iso4406.clone())
+                    .unwrap_or_default(),
+            ),
+            cell(num(smp.counts_per_ml[0], 0)),
+            cell(num(smp.counts_per_ml[1], 0)),
+            cell(num(smp.counts_per_ml[2], 0)),
+            cell(num(smp.water_ppm, 0)),
+            cell(num(smp.acid_mgkoh_g, 2)),
+            cell(&smp.lab_ref),
+            cell(&smp.note),
+        ]
+    };
+    (cols, ids, Box::new(make))
+}
+
+fn event_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>, RowMaker) {
+    let t = |k: Kind| k.display_unit(sys).symbol();
+    let cols = vec![
+        col("Done", 168.0),
+        col("What", 138.0),
+        col(&format!("Volume {}", t(Kind::Volume)), 123.0),
+        col("Fluid", 168.0),
+        col("By", 98.0),
+        col("Note", 318.0),
+    ];
+    let ids: Vec<i64> = v.history.events.iter().rev().map(|c| c.id).collect();
+    let v = v.clone();
+    let make = move |i: usize| {
+        let e = &v.history.events[v.history.events.len() - 1 - i];
+        let fluid = e
+            .fluid_id
+            .and_then(|id| v.fluids.iter().find(|f| f.id == id))
+            .map(|f| f.name.clone());
+        vec![
+            cell(entry::show_time(e.done_at)),
+            cell(e.kind.as_str().replace('_', " ")),
+            cell(
+                e.volume
+                    .map(|x| format!("{:.1}", Kind::Volume.display_unit(sys).from_si(x.si())))
+                    .unwrap_or_default(),
+            ),
+            cell(opt(fluid)),
+            cell(&e.by),
+            cell(&e.note),
+        ]
+    };
+    (cols, ids, Box::new(make))
+}
+
 fn fill_table(ctx: &Rc<Ctx>, which: Reading) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<UnitAdapter>();
     let sys = ctx.system.get();
     let st = ctx.unit.borrow();
     let Some(v) = st.view.as_ref() else { return };
-    let t = |k: Kind| k.display_unit(sys).symbol();
-    let (columns, rows, ids): (Vec<TableColumn>, Vec<Vec<StandardListViewItem>>, Vec<i64>) =
-        match which {
-            Reading::Check => {
-                let cols = vec![
-                    col("Taken", 168.0),
-                    col(&format!("Oil {}", t(Kind::Temperature)), 100.0),
-                    col(&format!("Air {}", t(Kind::Temperature)), 100.0),
-                    col(&format!("Press. {}", t(Kind::Pressure)), 118.0),
-                    col("Stroke s", 108.0),
-                    col(&format!("Flow {}", t(Kind::Flow)), 123.0),
-                    col("Lost %", 98.0),
-                    col("Level", 86.0),
-                    col("Filter", 88.0),
-                    col("Hours", 98.0),
-                    col("By", 98.0),
-                    col("Note", 238.0),
-                ];
-                let num =
-                    |x: Option<f64>, d: usize| x.map(|v| format!("{v:.d$}")).unwrap_or_default();
-                let mut rows = Vec::new();
-                let mut ids = Vec::new();
-                for c in v.history.checks.iter().rev() {
-                    let point = v.status.health.checks.iter().find(|p| p.check_id == c.id);
-                    let conv = |k: Kind, si: Option<f64>| {
-                        si.map(|x| format!("{:.1}", k.display_unit(sys).from_si(x)))
-                            .unwrap_or_default()
-                    };
-                    rows.push(vec![
-                        cell(entry::show_time(c.taken_at)),
-                        cell(conv(Kind::Temperature, c.reservoir_temp.map(|x| x.si()))),
-                        cell(conv(Kind::Temperature, c.ambient_temp.map(|x| x.si()))),
-                        cell(conv(Kind::Pressure, c.pressure.map(|x| x.si()))),
-                        cell(num(c.stroke_time.map(|x| x.si()), 2)),
-                        cell(
-                            point
-                                .and_then(|p| p.effective_flow)
-                                .map(|q| format!("{:.1}", dim_value(Dim::Flow, q, sys)))
-                                .unwrap_or_default(),
-                        ),
-                        cell(num(point.and_then(|p| p.lost_flow_pct), 1)),
-                        cell(opt(c.oil_level.map(|x| x.to_string()))),
-                        cell(opt(c.filter.map(|x| x.to_string()))),
-                        cell(num(c.hours, 0)),
-                        cell(&c.by),
-                        cell(&c.note),
-                    ]);
-                    ids.push(c.id);
-                }
-                (cols, rows, ids)
-            }
-            Reading::Sample => {
-                let cols = vec![
-                    col("Sampled", 168.0),
-                    col("KV40 cSt", 113.0),
-                    col("KV100 cSt", 118.0),
-                    col("ISO 4406", 113.0),
-                    col("≥4 /mL", 103.0),
-                    col("≥6 /mL", 103.0),
-                    col("≥14 /mL", 108.0),
-                    col("Water ppm", 123.0),
-                    col("Acid", 88.0),
-                    col("Lab ref", 128.0),
-                    col("Note", 238.0),
-                ];
-                let num =
-                    |x: Option<f64>, d: usize| x.map(|v| format!("{v:.d$}")).unwrap_or_default();
-                let mut rows = Vec::new();
-                let mut ids = Vec::new();
-                for smp in v.history.samples.iter().rev() {
-                    let point = v
-                        .status
-                        .health
-                        .samples
-                        .iter()
-                        .find(|p| p.sample_id == smp.id);
-                    let kv40 = smp
-                        .kv40
-                        .map(|k| k.cst())
-                        .or_else(|| point.and_then(|p| p.kv40).map(|k| k * 1e6));
-                    rows.push(vec![
-                        cell(entry::show_time(smp.sampled_at)),
-                        cell(num(kv40, 1)),
-                        cell(num(smp.kv100.map(|k| k.cst()), 2)),
-                        cell(
-                            point
-                                .and_then(|p| p.code)
-                                .map(|c| c.to_string())
-                                .or_else(|| smp.iso4406.clone())
-                                .unwrap_or_default(),
-                        ),
-                        cell(num(smp.counts_per_ml[0], 0)),
-                        cell(num(smp.counts_per_ml[1], 0)),
-                        cell(num(smp.counts_per_ml[2], 0)),
-                        cell(num(smp.water_ppm, 0)),
-                        cell(num(smp.acid_mgkoh_g, 2)),
-                        cell(&smp.lab_ref),
-                        cell(&smp.note),
-                    ]);
-                    ids.push(smp.id);
-                }
-                (cols, rows, ids)
-            }
-            Reading::Event => {
-                let cols = vec![
-                    col("Done", 168.0),
-                    col("What", 138.0),
-                    col(&format!("Volume {}", t(Kind::Volume)), 123.0),
-                    col("Fluid", 168.0),
-                    col("By", 98.0),
-                    col("Note", 318.0),
-                ];
-                let mut rows = Vec::new();
-                let mut ids = Vec::new();
-                for e in v.history.events.iter().rev() {
-                    let fluid = e
-                        .fluid_id
-                        .and_then(|id| v.fluids.iter().find(|f| f.id == id))
-                        .map(|f| f.name.clone());
-                    rows.push(vec![
-                        cell(entry::show_time(e.done_at)),
-                        cell(e.kind.as_str().replace('_', " ")),
-                        cell(
-                            e.volume
-                                .map(|x| {
-                                    format!("{:.1}", Kind::Volume.display_unit(sys).from_si(x.si()))
-                                })
-                                .unwrap_or_default(),
-                        ),
-                        cell(opt(fluid)),
-                        cell(&e.by),
-                        cell(&e.note),
-                    ]);
-                    ids.push(e.id);
-                }
-                (cols, rows, ids)
-            }
-        };
+    let (columns, ids, make) = match which {
+        Reading::Check => check_table(v, sys),
+        Reading::Sample => sample_table(v),
+        Reading::Event => event_table(v, sys),
+    };
     let selected = st.selected;
     drop(st);
     a.set_table(match which {
@@ -793,11 +854,12 @@ fn fill_table(ctx: &Rc<Ctx>, which: Reading) {
         Reading::Event => 2,
     });
     a.set_columns(model(columns));
-    let row_models: Vec<ModelRc<StandardListViewItem>> = rows
-        .into_iter()
-        .map(|r| ModelRc::new(VecModel::from(r)))
-        .collect();
-    a.set_rows(model(row_models));
+    a.set_rows(ModelRc::new(HistoryRows {
+        count: ids.len(),
+        make,
+        made: Cell::new(0),
+        notify: Default::default(),
+    }));
     let keep = selected
         .filter(|(t, _)| *t == which)
         .and_then(|(_, id)| ids.iter().position(|x| *x == id));
