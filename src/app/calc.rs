@@ -39,8 +39,24 @@ fn check_positive(what: &str, v: f64, unit_text: &str) -> Result<(), AppError> {
         Ok(())
     } else {
         Err(AppError::BadInput(format!(
-            "{what} must be greater than zero, got {v} {unit_text}"
+            "{what} must be greater than zero, got {} {unit_text}",
+            short(v)
         )))
+    }
+}
+
+/// A value for a message: four significant digits, trailing zeros dropped (a pressure typed
+/// in psi is checked in bar, and its full binary expansion helps nobody).
+fn short(v: f64) -> String {
+    if !v.is_finite() || v == 0.0 {
+        return format!("{v}");
+    }
+    let decimals = (3 - v.abs().log10().floor() as i32).clamp(0, 6) as usize;
+    let s = format!("{v:.decimals$}");
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
     }
 }
 
@@ -214,6 +230,11 @@ mod tests {
         assert!(e.to_string().contains("-40 to 150"), "{e}");
         let e = power(Flow::from_gpm(0.0), Pressure::from_psi(2500.0)).unwrap_err();
         assert!(e.to_string().contains("greater than zero"), "{e}");
+        // -3000 psi = -206.84 bar (1 psi = 6894.757 Pa, NIST SP 811), shown to four digits.
+        let e = power(Flow::from_gpm(12.0), Pressure::from_psi(-3000.0)).unwrap_err();
+        assert!(e.to_string().ends_with("got -206.8 bar"), "{e}");
+        let e = power(Flow::from_lpm(-5.0), Pressure::from_bar(100.0)).unwrap_err();
+        assert!(e.to_string().ends_with("got -5 L/min"), "{e}");
         let input = FlowInput {
             bore: Length::from_mm(100.0),
             stroke: Length::from_mm(400.0),
