@@ -29,7 +29,9 @@ use crate::model::{
 use crate::physics::cleanliness::Iso4406Code;
 use crate::quantity::{self, Kind, Quantity};
 use crate::store::Store;
-use crate::units::{Flow, Length, Pressure, Seconds, Temperature, UnitSystem, Viscosity, Volume};
+use crate::units::{
+    Flow, Length, Pressure, Seconds, TempDiff, Temperature, UnitSystem, Viscosity, Volume,
+};
 
 // ---------------------------------------------------------------------------------------------
 // Shared vocabulary
@@ -2218,8 +2220,47 @@ pub fn save_record(
 }
 
 /// The limits in force for the shop (`unit` `None`) or one unit, with where each comes from.
+/// The limits in force, their values and units in the shop's unit system (a US shop sees the
+/// temperature limits in °F); [`save_limits`] reads edits the same way.
 pub fn limits(shop: &Shop, unit: Option<&str>) -> Result<work::LimitsView, AppError> {
-    work::limits_in(shop.store(), unit)
+    let system = shop_settings(shop)?.unit_system;
+    let mut view = work::limits_in(shop.store(), unit)?;
+    for r in &mut view.rows {
+        if let Some(scale) = LimitScale::of(&r.unit, system) {
+            // Two decimals: 82 °C shows as 179.6 °F, not as its binary expansion.
+            let show = |v: f64| ((scale.shown)(v) * 100.0).round() / 100.0;
+            r.watch = r.watch.map(show);
+            r.act = r.act.map(show);
+            r.unit = scale.unit.to_string();
+        }
+    }
+    Ok(view)
+}
+
+/// How a stored limit reads in a unit system other than the one it is stored in: only the
+/// temperature limits differ (°C and °F for the reservoir, K and °F steps for heat rise).
+struct LimitScale {
+    unit: &'static str,
+    shown: fn(f64) -> f64,
+    stored: fn(f64) -> f64,
+}
+
+impl LimitScale {
+    fn of(stored_unit: &str, system: UnitSystem) -> Option<LimitScale> {
+        match (stored_unit, system) {
+            ("°C", UnitSystem::Us) => Some(LimitScale {
+                unit: "°F",
+                shown: |c| Temperature::from_c(c).f(),
+                stored: |f| Temperature::from_f(f).c(),
+            }),
+            ("K", UnitSystem::Us) => Some(LimitScale {
+                unit: "°F",
+                shown: |k| TempDiff::from_k(k).f_steps(),
+                stored: |f| TempDiff::from_f_steps(f).k(),
+            }),
+            _ => None,
+        }
+    }
 }
 
 /// One limit as the setup screen edits it: blank watch and act = inherit.
@@ -2240,11 +2281,23 @@ pub fn save_limits(
 ) -> Result<SaveOutcome<usize>, AppError> {
     let by = need("Changed by", by)?;
     let store = shop.store();
+    let system = shop_settings(shop)?.unit_system;
+    let units: std::collections::HashMap<String, String> = work::limits_in(store, unit)?
+        .rows
+        .into_iter()
+        .map(|r| (r.key, r.unit))
+        .collect();
     let mut problems = Vec::new();
     let mut parsed = Vec::new();
     for e in edits {
-        let w = read_number(&e.watch);
-        let a = read_number(&e.act);
+        // Typed in the units the screen showed (`limits`), stored in the limit's own.
+        let scale = units.get(&e.key).and_then(|u| LimitScale::of(u, system));
+        let to_stored = |v: Option<f64>| match &scale {
+            Some(s) => v.map(s.stored),
+            None => v,
+        };
+        let w = read_number(&e.watch).map(to_stored);
+        let a = read_number(&e.act).map(to_stored);
         match (w, a) {
             (Ok(w), Ok(a)) => parsed.push((e.key.as_str(), w, a)),
             (Err(m), _) | (_, Err(m)) => problems.push(Problem::refused(&e.key, m)),
@@ -2542,6 +2595,53 @@ mod tests {
             e.set(k, v);
         }
         e
+    }
+
+    #[test]
+    fn a_us_shop_sees_and_sets_temperature_limits_in_fahrenheit() {
+        let (_d, shop) = demo();
+        let mut st = shop_settings(&shop).unwrap();
+        st.unit_system = UnitSystem::Us;
+        save_settings(&shop, &st, "tester", "US units").unwrap();
+        let view = limits(&shop, None).unwrap();
+        let row = |k: &str| view.rows.iter().find(|r| r.key == k).unwrap().clone();
+        // Built-in 60 / 70 °C = 140 / 158 °F; a 5 / 10 K rise = 9 / 18 °F steps
+        // (°F = °C × 9/5 + 32, NIST SP 811).
+        let t = row("reservoir_temp_c");
+        assert_eq!(
+            (t.watch, t.act, t.unit.as_str()),
+            (Some(140.0), Some(158.0), "°F")
+        );
+        let h = row("heat_rise_drift_k");
+        assert_eq!(
+            (h.watch, h.act, h.unit.as_str()),
+            (Some(9.0), Some(18.0), "°F")
+        );
+        // Units without a US form are unchanged.
+        assert_eq!(row("water_ppm").unit, "ppm");
+        // 149 °F typed = 65 °C stored; a 27 °F-step act = 15 K.
+        let edits = [
+            LimitEdit {
+                key: "reservoir_temp_c".into(),
+                watch: "149".into(),
+                act: "158".into(),
+            },
+            LimitEdit {
+                key: "heat_rise_drift_k".into(),
+                watch: "9".into(),
+                act: "27".into(),
+            },
+        ];
+        assert_eq!(
+            save_limits(&shop, None, &edits, "tester").unwrap(),
+            SaveOutcome::Saved(2)
+        );
+        let stored = work::limits_in(shop.store(), None).unwrap();
+        let srow = |k: &str| stored.rows.iter().find(|r| r.key == k).unwrap().clone();
+        let t = srow("reservoir_temp_c");
+        assert!((t.watch.unwrap() - 65.0).abs() < 1e-9 && (t.act.unwrap() - 70.0).abs() < 1e-9);
+        let h = srow("heat_rise_drift_k");
+        assert!((h.watch.unwrap() - 5.0).abs() < 1e-9 && (h.act.unwrap() - 15.0).abs() < 1e-9);
     }
 
     #[test]
