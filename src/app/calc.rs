@@ -40,23 +40,9 @@ fn check_positive(what: &str, v: f64, unit_text: &str) -> Result<(), AppError> {
     } else {
         Err(AppError::BadInput(format!(
             "{what} must be greater than zero, got {} {unit_text}",
-            short(v)
+            // A pressure typed in psi is checked in bar: its full binary expansion helps nobody.
+            super::figures::significant(v, 4, 6)
         )))
-    }
-}
-
-/// A value for a message: four significant digits, trailing zeros dropped (a pressure typed
-/// in psi is checked in bar, and its full binary expansion helps nobody).
-fn short(v: f64) -> String {
-    if !v.is_finite() || v == 0.0 {
-        return format!("{v}");
-    }
-    let decimals = (3 - v.abs().log10().floor() as i32).clamp(0, 6) as usize;
-    let s = format!("{v:.decimals$}");
-    if s.contains('.') {
-        s.trim_end_matches('0').trim_end_matches('.').to_string()
-    } else {
-        s
     }
 }
 

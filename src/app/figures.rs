@@ -94,6 +94,27 @@ pub fn arrow(d: Direction) -> &'static str {
     }
 }
 
+/// `v` to `digits` significant figures (at most `max_decimals` decimals), trailing zeros
+/// dropped: labels and messages (`96.2`, `3.51`, `16`, `-206.8`).
+pub fn significant(v: f64, digits: i32, max_decimals: usize) -> String {
+    let d = if v == 0.0 || !v.is_finite() {
+        0
+    } else {
+        ((digits - 1) - v.abs().log10().floor() as i32).clamp(0, max_decimals as i32) as usize
+    };
+    let s = format!("{v:.d$}");
+    let s = if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.')
+    } else {
+        s.as_str()
+    };
+    if s == "-0" {
+        "0".into()
+    } else {
+        s.to_string()
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -365,22 +365,7 @@ fn amount(f: &Flag, sys: UnitSystem) -> String {
 
 /// About three significant figures, trailing zeros dropped: chart labels (`96.2`, `3.51`, `16`).
 fn trim_number(v: f64) -> String {
-    let d = if v == 0.0 || !v.is_finite() {
-        0
-    } else {
-        (2 - v.abs().log10().floor() as i32).clamp(0, 2) as usize
-    };
-    let s = format!("{v:.d$}");
-    let s = if s.contains('.') {
-        s.trim_end_matches('0').trim_end_matches('.')
-    } else {
-        s.as_str()
-    };
-    if s == "-0" {
-        "0".into()
-    } else {
-        s.to_string()
-    }
+    figures::significant(v, 3, 2)
 }
 
 fn finding(tag: &str, f: &Flag, sys: UnitSystem) -> Finding {
