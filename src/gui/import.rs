@@ -12,7 +12,7 @@ use slint::{ComponentHandle, ModelRc, VecModel};
 
 use super::jobs::{self, Job, JobView};
 use super::ui::{ImportAdapter, ImportProblem};
-use super::{err_text, model, s, Ctx};
+use super::{err_text, model, on, s, Ctx};
 use crate::app::entry::{self, Cancel, ImportPreview, ImportRun};
 use crate::exchange::{FileKind, ImportSummary};
 
@@ -26,28 +26,17 @@ pub(crate) struct ImportState {
 pub(super) fn install(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<ImportAdapter>();
-    let c = Rc::downgrade(ctx);
-    a.on_preview(move || {
-        if let Some(ctx) = c.upgrade() {
-            let Some(w) = ctx.win() else { return };
-            let path = w.global::<ImportAdapter>().get_path().to_string();
-            preview(&ctx, PathBuf::from(path.trim()));
+    a.on_preview(on(ctx, |ctx| {
+        let Some(w) = ctx.win() else { return };
+        let path = w.global::<ImportAdapter>().get_path().to_string();
+        preview(ctx, PathBuf::from(path.trim()));
+    }));
+    a.on_start(on(ctx, start));
+    a.on_cancel(on(ctx, |ctx| {
+        if let Some(flag) = ctx.import.borrow().cancel.as_ref() {
+            flag.cancel();
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_start(move || {
-        if let Some(ctx) = c.upgrade() {
-            start(&ctx);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_cancel(move || {
-        if let Some(ctx) = c.upgrade() {
-            if let Some(flag) = ctx.import.borrow().cancel.as_ref() {
-                flag.cancel();
-            }
-        }
-    });
+    }));
 }
 
 pub(super) fn refresh(ctx: &Rc<Ctx>) {

@@ -495,7 +495,28 @@ pub(crate) fn route(ctx: &Rc<Ctx>) -> Result<Vec<entry::RouteStop>, AppError> {
 }
 
 // ---------------------------------------------------------------------------------------------
-// Shared model helpers
+// Shared callback and model helpers
+
+/// A slint callback that runs `f` on the app's context while it lives: adapters hold only a
+/// weak reference, so the window's callbacks do not keep the context alive.
+pub(crate) fn on(ctx: &Rc<Ctx>, f: impl Fn(&Rc<Ctx>) + 'static) -> impl Fn() + 'static {
+    let c = Rc::downgrade(ctx);
+    move || {
+        if let Some(ctx) = c.upgrade() {
+            f(&ctx);
+        }
+    }
+}
+
+/// [`on`] for a callback with one argument.
+pub(crate) fn on_arg<A>(ctx: &Rc<Ctx>, f: impl Fn(&Rc<Ctx>, A) + 'static) -> impl Fn(A) + 'static {
+    let c = Rc::downgrade(ctx);
+    move |arg| {
+        if let Some(ctx) = c.upgrade() {
+            f(&ctx, arg);
+        }
+    }
+}
 
 pub(crate) fn s(text: impl AsRef<str>) -> SharedString {
     SharedString::from(text.as_ref())

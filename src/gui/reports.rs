@@ -13,7 +13,7 @@ use slint::{ComponentHandle, Model, ModelRc};
 use super::fmt::state_num;
 use super::jobs::{self, JobView};
 use super::ui::{ReportAdapter, ReportUnit};
-use super::{err_text, model, s, Ctx};
+use super::{err_text, model, on, on_arg, s, Ctx};
 use crate::app::entry::Cancel;
 use crate::app::report::{
     default_file_name, read_day, write_report, ReportOptions, ReportSummary, DEFAULT_PERIOD_DAYS,
@@ -80,44 +80,16 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<ReportAdapter>();
     a.set_safety(s(SAFETY_CAUTIONS.join(" ")));
-    let c = Rc::downgrade(ctx);
-    a.on_toggle(move |i| {
-        if let Some(ctx) = c.upgrade() {
-            toggle(&ctx, i);
+    a.on_toggle(on_arg(ctx, toggle));
+    a.on_choose(on_arg(ctx, choose));
+    a.on_write(on(ctx, write));
+    a.on_cancel(on(ctx, |ctx| {
+        if let Some(flag) = ctx.report.borrow().cancel.as_ref() {
+            flag.cancel();
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_choose(move |which| {
-        if let Some(ctx) = c.upgrade() {
-            choose(&ctx, which);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_write(move || {
-        if let Some(ctx) = c.upgrade() {
-            write(&ctx);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_cancel(move || {
-        if let Some(ctx) = c.upgrade() {
-            if let Some(flag) = ctx.report.borrow().cancel.as_ref() {
-                flag.cancel();
-            }
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_open_file(move || {
-        if let Some(ctx) = c.upgrade() {
-            open_written(&ctx, false);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_open_folder(move || {
-        if let Some(ctx) = c.upgrade() {
-            open_written(&ctx, true);
-        }
-    });
+    }));
+    a.on_open_file(on(ctx, |ctx| open_written(ctx, false)));
+    a.on_open_folder(on(ctx, |ctx| open_written(ctx, true)));
 }
 
 /// Where a report goes by default: the user's documents folder, else home, else beside the

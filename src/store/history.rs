@@ -111,12 +111,10 @@ impl Store {
         &self,
         at: Option<DateTime<Utc>>,
     ) -> Result<Vec<UnitHistory>, StoreError> {
-        let version = |s: &Store| -> Result<i64, StoreError> {
-            Ok(s.conn.query_row("PRAGMA data_version", [], |r| r.get(0))?)
-        };
-        let before = version(self)?;
+        // The data version moves only with other connections' commits; this one only reads.
+        let before = self.change_stamp()?.0;
         let out = self.read_histories(at, true)?;
-        if version(self)? == before {
+        if self.change_stamp()?.0 == before {
             return Ok(out);
         }
         self.read_histories(at, false)
