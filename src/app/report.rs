@@ -300,7 +300,8 @@ pub fn build_report(
 
 fn mark(s: State) -> Mark {
     match s {
-        State::Steady => Mark::Steady,
+        // The word says "not judged yet"; the report draws no mark of its own for it yet.
+        State::Steady | State::NotJudged => Mark::Steady,
         State::Watch => Mark::Watch,
         State::Act => Mark::Act,
     }

@@ -32,6 +32,8 @@ pub enum Detail {
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
 pub struct StateCounts {
     pub steady: usize,
+    /// Units with nothing flagged but an indicator that cannot be judged yet.
+    pub not_judged: usize,
     pub watch: usize,
     pub act: usize,
 }
@@ -133,6 +135,7 @@ pub fn fleet_status_in(
     for u in &units {
         match u.state {
             State::Steady => counts.steady += 1,
+            State::NotJudged => counts.not_judged += 1,
             State::Watch => counts.watch += 1,
             State::Act => counts.act += 1,
         }

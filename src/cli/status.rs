@@ -180,6 +180,7 @@ fn state_word(s: State) -> &'static str {
     // Distinct in text as well as meaning: capitals for act.
     match s {
         State::Steady => "steady",
+        State::NotJudged => "not judged yet",
         State::Watch => "watch",
         State::Act => "ACT",
     }

@@ -13,7 +13,8 @@ use crate::units::UnitSystem;
 /// The number the `.slint` state marks take: 0 steady, 1 watch, 2 act.
 pub fn state_num(s: State) -> i32 {
     match s {
-        State::Steady => 0,
+        // Shown as steady's mark until the app draws its own "not judged yet" mark.
+        State::Steady | State::NotJudged => 0,
         State::Watch => 1,
         State::Act => 2,
     }

@@ -166,6 +166,8 @@ pub struct Computed {
     /// Whether the baseline leakage is large enough against the scatter of the timed flow for
     /// the leak conductance to be judged (`None`: no baseline to tell).
     pub leak_resolved: Option<bool>,
+    /// How many checks with a reading a computed baseline needs before it is formed.
+    pub baseline_needs: usize,
 }
 
 /// The mean oil viscosity and pressure of the baseline checks: corrected flows are the flows
@@ -409,6 +411,7 @@ pub fn compute(
         target,
         reference,
         leak_resolved,
+        baseline_needs: n,
         ..Computed::default()
     };
     c.hours_per_day = hours_per_day(h);
@@ -1143,17 +1146,28 @@ pub fn trend(points: &[SeriesPoint], watch: &[f64], act: &[f64]) -> Option<Trend
     })
 }
 
-/// Tiles of the era in force, in a fixed order; the state of each is that of its flag.
-pub fn tiles(c: &Computed, limits: &Limits, flags: &[Flag]) -> Vec<Tile> {
+/// Tiles of the era in force, in a fixed order; the state of each is that of its flag, or "not
+/// judged yet" where it is in `not_judged`, else steady.
+pub fn tiles(
+    c: &Computed,
+    limits: &Limits,
+    flags: &[Flag],
+    not_judged: &[super::judged::NotJudged],
+) -> Vec<Tile> {
     specs(c, limits)
         .into_iter()
         .filter(|s| !s.key.starts_with("iso4406_") && s.key != "corrected_flow")
         .map(|s| {
+            let judged = !not_judged.iter().any(|n| n.key == s.key);
             let state = s
                 .flag
                 .and_then(|k| flags.iter().find(|f| f.kind == k))
                 .map(|f| f.state)
-                .unwrap_or(State::Steady);
+                .unwrap_or(if judged {
+                    State::Steady
+                } else {
+                    State::NotJudged
+                });
             Tile {
                 key: s.key.to_string(),
                 label: s.label.to_string(),

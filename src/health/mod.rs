@@ -9,8 +9,10 @@
 pub mod baseline;
 pub mod flags;
 pub mod indicators;
+pub mod judged;
 pub mod limits;
 pub mod plan;
+pub mod screen;
 #[cfg(test)]
 pub(crate) mod testutil;
 mod text;
@@ -21,13 +23,16 @@ use serde::{Deserialize, Serialize};
 pub use baseline::{Baseline, BaselineIndicator, BaselineSource, BaselineValue, Era, EraStart};
 pub use flags::{Flag, FlagKind};
 pub use indicators::{CheckPoint, Indicators, SamplePoint, Series, Tile, Trend};
+pub use judged::NotJudged;
 pub use limits::{LimitKey, Limits};
 pub use plan::{WorkItem, WorkKind};
+pub use screen::{ConfirmedBy, SuspectReading};
 
 use crate::model::{Fluid, Id, UnitHistory};
 use crate::units::UnitSystem;
 
-/// Condition of an indicator, a flag or a unit. Ordered: `Steady < Watch < Act`.
+/// Condition of an indicator, a flag or a unit. Ordered: `Steady < NotJudged < Watch < Act`,
+/// so a list sorted worst first puts a unit that cannot be judged above the steady ones.
 #[derive(
     Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize, Default,
 )]
@@ -35,14 +40,28 @@ use crate::units::UnitSystem;
 pub enum State {
     #[default]
     Steady,
+    /// Readings or a baseline are missing: nothing can be said yet (never shown as steady).
+    NotJudged,
     Watch,
     Act,
 }
 
 impl State {
+    /// The text a person reads: `steady`, `not judged yet`, `watch`, `act`.
     pub fn as_str(self) -> &'static str {
         match self {
             State::Steady => "steady",
+            State::NotJudged => "not judged yet",
+            State::Watch => "watch",
+            State::Act => "act",
+        }
+    }
+
+    /// The key of the JSON output and of stored rows: `steady`, `not_judged`, `watch`, `act`.
+    pub fn key(self) -> &'static str {
+        match self {
+            State::Steady => "steady",
+            State::NotJudged => "not_judged",
             State::Watch => "watch",
             State::Act => "act",
         }
@@ -69,9 +88,12 @@ impl std::str::FromStr for State {
     fn from_str(s: &str) -> Result<Self, String> {
         match s.trim() {
             "steady" => Ok(State::Steady),
+            "not_judged" | "not judged yet" => Ok(State::NotJudged),
             "watch" => Ok(State::Watch),
             "act" => Ok(State::Act),
-            other => Err(format!("`{other}` is not one of steady|watch|act")),
+            other => Err(format!(
+                "`{other}` is not one of steady|not_judged|watch|act"
+            )),
         }
     }
 }
@@ -81,7 +103,8 @@ impl std::str::FromStr for State {
 pub struct UnitHealth {
     /// The date evaluated: only records up to it were used.
     pub at: DateTime<Utc>,
-    /// Worst flag (`Steady` when there is none).
+    /// Worst flag; with no flag at watch or act, `NotJudged` when an indicator the unit is
+    /// expected to have cannot be judged (see `not_judged`), else `Steady`.
     pub state: State,
     /// All eras up to `at`, oldest first; the last is in force.
     pub eras: Vec<Era>,
@@ -105,6 +128,11 @@ pub struct UnitHealth {
     pub samples: Vec<SamplePoint>,
     pub last_check: Option<DateTime<Utc>>,
     pub last_sample: Option<DateTime<Utc>>,
+    /// What cannot be judged yet, why and when it will be.
+    pub not_judged: Vec<NotJudged>,
+    /// Readings questioned by the screen (`screen`), oldest first, with whether each has been
+    /// confirmed; an unconfirmed one fed nothing above.
+    pub suspects: Vec<SuspectReading>,
 }
 
 /// The calendar date of an instant (UTC; the stored time base).
@@ -173,6 +201,16 @@ pub fn evaluate(
         None => h.fluid.clone(),
     };
 
+    // Readings that look like slips are kept out of everything below until confirmed.
+    let suspects = screen::screen_history(h, fluid.as_ref(), units);
+    let masked;
+    let h: &UnitHistory = if suspects.iter().any(|s| s.confirmed.is_none()) {
+        masked = screen::without_unconfirmed(h, &suspects);
+        &masked
+    } else {
+        h
+    };
+
     let computed = indicators::compute(h, era.as_ref(), fluid.as_ref(), limits);
     let mut flags = flags::raise(h, &computed, limits, units);
     let work = plan::plan(h, &computed, &flags, limits, at);
@@ -184,8 +222,16 @@ pub fn evaluate(
             .then(a.since.cmp(&b.since))
             .then(a.kind.cmp(&b.kind))
     });
-    let state = flags.iter().map(|f| f.state).max().unwrap_or(State::Steady);
-    let tiles = indicators::tiles(&computed, limits, &flags);
+    let not_judged = judged::not_judged(h, &computed, &work);
+    let flagged = flags.iter().map(|f| f.state).max().unwrap_or(State::Steady);
+    let state = if flagged >= State::Watch {
+        flagged
+    } else if not_judged.iter().any(|n| n.expected) {
+        State::NotJudged
+    } else {
+        State::Steady
+    };
+    let tiles = indicators::tiles(&computed, limits, &flags, &not_judged);
     let series = indicators::series(&computed, limits);
 
     UnitHealth {
@@ -203,6 +249,8 @@ pub fn evaluate(
         last_sample: h.samples.last().map(|s| s.sampled_at),
         checks: computed.checks,
         samples: computed.samples,
+        not_judged,
+        suspects,
     }
 }
 
@@ -283,8 +331,76 @@ mod tests {
         assert!((r.indicators.vol_eff_pct.unwrap() - q / 40.0 * 100.0).abs() < 1e-9);
         // Hydraulic power kW = L/min · bar / 600 (design §3) = 37.699 · 100 / 600 = 6.283 kW.
         assert!((r.indicators.hydraulic_power_kw.unwrap() - q * 100.0 / 600.0).abs() < 1e-9);
-        assert_eq!(r.state, State::Steady);
+        // Nothing flagged, but no sample yet: the fluid is not judged, so neither is the unit.
+        assert_eq!(r.state, State::NotJudged);
         assert!(r.flags.is_empty(), "{:?}", r.flags);
+        // The leakage (2.3 of 40 L/min) is below what a stopwatch resolves: not judged, and
+        // not expected of the unit; the samples are.
+        let fluid: Vec<&NotJudged> = r
+            .not_judged
+            .iter()
+            .filter(|n| n.key != "leak_conductance")
+            .collect();
+        let keys: Vec<&str> = fluid.iter().map(|n| n.key.as_str()).collect();
+        assert_eq!(keys, ["kv40", "cleanliness", "water", "acid_rise"]);
+        assert!(fluid
+            .iter()
+            .all(|n| n.until.starts_with("at the next sample, due")));
+        // The lab has never reported an acid number on this unit: not expected of it.
+        assert!(!fluid[3].expected && fluid[0].expected);
+        let water = r.tiles.iter().find(|t| t.key == "water").unwrap();
+        assert_eq!(water.state, State::NotJudged);
+        let lost = r.tiles.iter().find(|t| t.key == "lost_flow").unwrap();
+        assert_eq!(lost.state, State::Steady);
+        // With a sample of every kind, the unit is steady.
+        let mut h = stroke_history(4.0);
+        let mut s = sample(1, week(6));
+        s.kv40 = Some(Viscosity::from_cst(46.0));
+        s.iso4406 = Some("16/14/11".into());
+        s.water_ppm = Some(100.0);
+        h.samples.push(s);
+        let r = eval(&h, &Limits::builtin(), week(6));
+        assert!(
+            r.not_judged.iter().all(|n| !n.expected),
+            "{:?}",
+            r.not_judged
+        );
+        assert_eq!(r.state, State::Steady);
+    }
+
+    #[test]
+    fn a_new_unit_is_not_judged_yet_with_what_is_missing_and_when() {
+        let mut h = press();
+        h.checks.push(timed(1, 0, 4.0, 45.0, 20.0));
+        h.checks.push(timed(2, 1, 4.0, 45.0, 20.0));
+        let r = eval(&h, &Limits::builtin(), week(1));
+        assert_eq!(r.state, State::NotJudged);
+        assert!(r.state > State::Steady && r.state < State::Watch);
+        let lost = r.not_judged.iter().find(|n| n.key == "lost_flow").unwrap();
+        // The baseline takes 4 checks (the built-in `baseline_checks`): 2 more.
+        assert_eq!(lost.checks_needed, Some(2));
+        assert_eq!(lost.until, "after 2 more checks");
+        assert!(lost.missing.contains("2 of 4"), "{}", lost.missing);
+        assert!(lost.expected);
+        let heat = r.tiles.iter().find(|t| t.key == "heat_rise").unwrap();
+        assert_eq!(heat.state, State::NotJudged);
+        // The next check is due a week after the last.
+        assert_eq!(lost.due, Some(day(week(2))));
+        // No stroke geometry: never judged until it is set.
+        h.unit.stroke = None;
+        let r = eval(&h, &Limits::builtin(), week(1));
+        let lost = r.not_judged.iter().find(|n| n.key == "lost_flow").unwrap();
+        assert!(lost.missing.contains("no timed stroke"), "{}", lost.missing);
+        // An act flag wins over "not judged".
+        h.checks[1].reservoir_temp = Some(Temperature::from_c(75.0));
+        assert_eq!(eval(&h, &Limits::builtin(), week(1)).state, State::Act);
+        // The text and the JSON key.
+        assert_eq!(State::NotJudged.to_string(), "not judged yet");
+        assert_eq!(
+            serde_json::to_string(&State::NotJudged).unwrap(),
+            "\"not_judged\""
+        );
+        assert_eq!("not_judged".parse::<State>(), Ok(State::NotJudged));
     }
 
     /// Baseline at 36 L/min against 40 rated (leak 4 L/min), then 3 checks leaking `ratio`×4;

@@ -3,7 +3,7 @@
 //! Pure; no rules here.
 
 use crate::quantity::{format, Quantity};
-use crate::units::{Flow, Temperature, UnitSystem, Viscosity};
+use crate::units::{Flow, Pressure, Seconds, Temperature, UnitSystem, Viscosity};
 
 pub fn flow(si: f64, sys: UnitSystem) -> String {
     format(Quantity::Flow(Flow(si)), sys)
@@ -19,6 +19,14 @@ pub fn tdiff(k: f64, sys: UnitSystem) -> String {
         UnitSystem::Metric => format!("{k:.1} K"),
         UnitSystem::Us => format!("{:.1} °F", k * 9.0 / 5.0),
     }
+}
+
+pub fn pressure(si: f64, sys: UnitSystem) -> String {
+    format(Quantity::Pressure(Pressure(si)), sys)
+}
+
+pub fn seconds(si: f64) -> String {
+    format(Quantity::Time(Seconds(si)), UnitSystem::Metric)
 }
 
 pub fn visc(si: f64, sys: UnitSystem) -> String {

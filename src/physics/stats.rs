@@ -408,6 +408,27 @@ pub fn median_of_last(values: &[f64], n: usize) -> Option<f64> {
     })
 }
 
+/// Median of `values` (any order); `None` for none or any value that is not finite.
+pub fn median(values: &[f64]) -> Option<f64> {
+    if values.is_empty() || values.iter().any(|v| !v.is_finite()) {
+        return None;
+    }
+    median_of_last(values, values.len())
+}
+
+/// 1/Φ⁻¹(3/4): the median absolute deviation times this estimates σ of a normal sample
+/// (F. R. Hampel, "The influence curve and its role in robust estimation", JASA 1974;
+/// `scipy.stats.median_abs_deviation(scale="normal")` uses the same constant).
+pub const MAD_TO_SIGMA: f64 = 1.482_602_218_505_602;
+
+/// Median and scaled median absolute deviation (an estimate of σ that one gross reading in a
+/// small sample cannot move far): `(median, 1.4826 · median |x − median|)`.
+pub fn median_and_mad_sigma(values: &[f64]) -> Option<(f64, f64)> {
+    let m = median(values)?;
+    let dev: Vec<f64> = values.iter().map(|v| (v - m).abs()).collect();
+    Some((m, MAD_TO_SIGMA * median(&dev)?))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -458,6 +479,37 @@ mod tests {
         assert!(Cusum::new(1.0, -1.0).is_err());
         let mut e = Ewma::new(0.0, 1.0).unwrap();
         assert!(e.update(f64::INFINITY).is_err());
+    }
+
+    /// tests/reference/robust_cases.json: numpy and scipy results written by
+    /// tests/reference/make_robust_cases.py.
+    fn robust_cases() -> serde_json::Value {
+        serde_json::from_str(include_str!("../../tests/reference/robust_cases.json")).unwrap()
+    }
+
+    #[test]
+    fn median_and_scaled_mad_match_numpy_and_scipy() {
+        let doc = robust_cases();
+        let cases = doc["robust"].as_array().unwrap();
+        assert!(cases.len() >= 5);
+        for c in cases {
+            let x: Vec<f64> = c["x"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|v| v.as_f64().unwrap())
+                .collect();
+            let (m, s) = median_and_mad_sigma(&x).unwrap();
+            let name = c["name"].as_str().unwrap();
+            // numpy.median; scipy.stats.median_abs_deviation(scale="normal").
+            assert!((m - c["median"].as_f64().unwrap()).abs() < 1e-12, "{name}");
+            assert!(
+                (s - c["mad_sigma"].as_f64().unwrap()).abs() < 1e-12,
+                "{name}"
+            );
+        }
+        assert_eq!(median_and_mad_sigma(&[]), None);
+        assert_eq!(median(&[1.0, f64::NAN]), None);
     }
 
     #[test]
