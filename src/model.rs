@@ -181,6 +181,19 @@ pub struct Check {
     pub case_drain: Option<Flow>,
     pub by: String,
     pub note: String,
+    /// Who confirmed this reading after it was questioned, and when; `None` for a reading
+    /// nobody has confirmed (most readings: only a questioned one needs it).
+    #[serde(default)]
+    pub confirmed: Option<Confirmation>,
+}
+
+/// A person has looked at a questioned reading and says it is what was measured. A confirmed
+/// reading counts like any other; an unconfirmed questioned one is kept but held out of
+/// baselines and drift detectors.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Confirmation {
+    pub by: String,
+    pub at: DateTime<Utc>,
 }
 
 /// A viscosity read at some temperature other than 40 °C (field viscometer).
@@ -207,6 +220,9 @@ pub struct Sample {
     pub acid_mgkoh_g: Option<f64>,
     pub lab_ref: String,
     pub note: String,
+    /// Who confirmed this result after it was questioned, and when (see [`Confirmation`]).
+    #[serde(default)]
+    pub confirmed: Option<Confirmation>,
 }
 
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]

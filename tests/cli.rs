@@ -226,3 +226,164 @@ fn an_import_with_bad_rows_exits_2_and_lists_every_bad_row() {
         "absent.csv",
     );
 }
+
+#[test]
+fn confirm_marks_a_reading_by_unit_and_time_and_refuses_one_that_does_not_exist() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    ok(d, &["--db", "shop.sqlite", "demo"]);
+    let checks = ok(d, &["--db", "shop.sqlite", "export", "checks"]);
+    let row: Vec<&str> = checks
+        .lines()
+        .find(|l| l.starts_with("SH-04-A,"))
+        .unwrap()
+        .split(',')
+        .collect();
+    let (unit, at) = (row[0], row[1]);
+    let db = ["--db", "shop.sqlite"];
+    let args = |extra: &[&str]| -> Vec<String> {
+        db.iter()
+            .chain(["confirm", unit, "--at", at].iter())
+            .chain(extra.iter())
+            .map(|s| s.to_string())
+            .collect()
+    };
+    let run = |extra: &[&str]| {
+        ok(
+            d,
+            &args(extra).iter().map(String::as_str).collect::<Vec<_>>(),
+        )
+    };
+    let refuse = |extra: &[&str], needle: &str| {
+        refused(
+            d,
+            &args(extra).iter().map(String::as_str).collect::<Vec<_>>(),
+            needle,
+        )
+    };
+
+    let out = run(&["--by", "R. Quennell", "--note", "re-read the gauge"]);
+    assert!(out.contains("confirmed by R. Quennell"), "{out}");
+    refuse(&["--by", "AK"], "already confirmed by R. Quennell");
+    let exported = ok(d, &["--db", "shop.sqlite", "export", "checks"]);
+    let line = exported
+        .lines()
+        .find(|l| l.starts_with(&format!("{unit},{at},")))
+        .unwrap();
+    assert!(line.contains(",R. Quennell,"), "{line}");
+    assert!(exported
+        .lines()
+        .next()
+        .unwrap()
+        .ends_with("confirmed_by,confirmed_at"));
+
+    // Lifting needs a reason; the JSON says what was lifted.
+    refuse(&["--by", "AK", "--lift"], "why the confirmation is lifted");
+    let out = run(&[
+        "--by",
+        "AK",
+        "--lift",
+        "--note",
+        "gauge found broken",
+        "--json",
+    ]);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["action"], "lifted");
+    assert_eq!(v["lifted"]["by"], "R. Quennell");
+    assert_eq!(v["confirmed"], serde_json::Value::Null);
+    refuse(
+        &["--by", "AK", "--lift", "--note", "again"],
+        "is not confirmed",
+    );
+
+    // Both changes are in the edit history with who and why.
+    let conn = rusqlite::Connection::open(d.join("shop.sqlite")).unwrap();
+    let log: Vec<(String, String)> = conn
+        .prepare("SELECT edited_by, reason FROM edit_log WHERE table_name = 'checks' ORDER BY id")
+        .unwrap()
+        .query_map([], |r| Ok((r.get(0)?, r.get(1)?)))
+        .unwrap()
+        .map(Result::unwrap)
+        .collect();
+    assert_eq!(
+        log,
+        vec![
+            (
+                "R. Quennell".to_string(),
+                "reading confirmed as measured: re-read the gauge".to_string()
+            ),
+            (
+                "AK".to_string(),
+                "confirmation lifted: gauge found broken".to_string()
+            ),
+        ]
+    );
+
+    // No such reading: exit 2, naming the nearest readings; nothing written.
+    let e = refused(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "confirm",
+            unit,
+            "--at",
+            "2020-01-01T00:00:00Z",
+            "--by",
+            "AK",
+        ],
+        &format!("no check of {unit} taken at 2020-01-01T00:00:00Z"),
+    );
+    assert!(e.contains("the nearest checks"), "{e}");
+    refused(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "confirm",
+            unit,
+            "--at",
+            at,
+            "--sample",
+            "--by",
+            "AK",
+        ],
+        "no sample of",
+    );
+    refused(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "confirm",
+            "NO-SUCH",
+            "--at",
+            at,
+            "--by",
+            "AK",
+        ],
+        "no unit `NO-SUCH`",
+    );
+    refused(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "confirm",
+            unit,
+            "--at",
+            "03/04/2025",
+            "--by",
+            "AK",
+        ],
+        "--at:",
+    );
+    let n: i64 = conn
+        .query_row(
+            "SELECT count(*) FROM edit_log WHERE table_name = 'checks'",
+            [],
+            |r| r.get(0),
+        )
+        .unwrap();
+    assert_eq!(n, 2);
+}

@@ -103,6 +103,7 @@ fn check_at(unit: Id, w: i64, lpm: f64, oil_c: f64, ambient_c: f64) -> Check {
         case_drain: None,
         by: "T. Tech".into(),
         note: String::new(),
+        confirmed: None,
     }
 }
 
@@ -273,6 +274,7 @@ fn stored_limits_per_unit_win_over_shop_defaults_at_their_boundaries() {
                 acid_mgkoh_g: None,
                 lab_ref: String::new(),
                 note: String::new(),
+                confirmed: None,
             })
             .unwrap();
     }
@@ -507,6 +509,7 @@ fn fleet(store: &Store, units: usize, weeks: i64) {
                     acid_mgkoh_g: Some(0.55),
                     lab_ref: String::new(),
                     note: String::new(),
+                    confirmed: None,
                 })
                 .unwrap();
         }

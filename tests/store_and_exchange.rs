@@ -94,6 +94,7 @@ fn check(unit_id: i64, at: &str) -> Check {
         case_drain: Some(Flow::from_lpm(2.1)),
         by: "AK".into(),
         note: String::new(),
+        confirmed: None,
     }
 }
 
@@ -111,6 +112,7 @@ fn sample(unit_id: i64, at: &str) -> Sample {
         acid_mgkoh_g: Some(0.55),
         lab_ref: "L-1".into(),
         note: String::new(),
+        confirmed: None,
     }
 }
 
@@ -981,4 +983,194 @@ fn keep_going_never_removes_or_replaces_a_rejects_target_that_is_not_a_regular_f
         .unwrap()
         .file_type()
         .is_char_device());
+}
+
+#[test]
+fn a_confirmation_is_stored_read_back_lifted_and_each_change_is_in_the_edit_history() {
+    use sumpbook::model::Confirmation;
+    let dir = tmp();
+    let path = dir.path().join("confirm.sqlite");
+    let store = Store::open(&path, OpenMode::Create).unwrap();
+    let (u, _) = small_shop(&store);
+    // Oil typed as 4.65 for 46.5: the kind of reading a screening questions.
+    let mut slipped = check(u, "2025-02-03T07:30:00Z");
+    slipped.reservoir_temp = Some(Temperature::from_c(4.65));
+    let a = store.insert_check(&slipped).unwrap();
+    let s = store
+        .insert_sample(&sample(u, "2025-02-04T00:00:00Z"))
+        .unwrap();
+    assert_eq!(store.check(a).unwrap().unwrap().confirmed, None);
+    assert!(!store.any_confirmed_check().unwrap());
+
+    // A confirmation written with the reading (entry: the person confirmed before saving).
+    let at_entry = Confirmation {
+        by: "AK".into(),
+        at: t("2025-02-10T07:31:00Z"),
+    };
+    let mut confirmed_at_entry = check(u, "2025-02-10T07:30:00Z");
+    confirmed_at_entry.confirmed = Some(at_entry.clone());
+    let b = store.insert_check(&confirmed_at_entry).unwrap();
+    assert_eq!(store.check(b).unwrap().unwrap().confirmed, Some(at_entry));
+
+    // Confirmed later: the row changes only in its confirmation, and the log says who and why.
+    let k = Confirmation {
+        by: "R. Quennell".into(),
+        at: t("2025-02-05T09:00:00Z"),
+    };
+    store
+        .set_check_confirmation(a, Some(&k), "R. Quennell", "oil was cold after the weekend")
+        .unwrap();
+    let back = store.check(a).unwrap().unwrap();
+    assert_eq!(back.confirmed, Some(k.clone()));
+    assert_eq!(back.reservoir_temp, slipped.reservoir_temp);
+    assert!(store.any_confirmed_check().unwrap());
+    // The whole-shop read carries it too.
+    let h = store.unit_histories(None).unwrap();
+    assert_eq!(h[0].checks[0].confirmed, Some(k.clone()));
+    assert_eq!(
+        store
+            .check_at(u, &t("2025-02-03T07:30:00Z"))
+            .unwrap()
+            .unwrap()
+            .id,
+        a
+    );
+    assert!(store
+        .check_at(u, &t("2025-02-03T07:30:01Z"))
+        .unwrap()
+        .is_none());
+
+    store
+        .set_check_confirmation(a, None, "M. Okafor-Lund", "gauge found broken")
+        .unwrap();
+    assert_eq!(store.check(a).unwrap().unwrap().confirmed, None);
+    let log = store.edit_history("checks", a).unwrap();
+    assert_eq!(log.len(), 2, "{log:?}");
+    let new0: serde_json::Value =
+        serde_json::from_str(log[0].new_value.as_deref().unwrap()).unwrap();
+    let old0: serde_json::Value = serde_json::from_str(&log[0].old_value).unwrap();
+    assert_eq!(old0["confirmed_by"], serde_json::Value::Null);
+    assert_eq!(new0["confirmed_by"], "R. Quennell");
+    assert_eq!(new0["confirmed_at"], "2025-02-05T09:00:00Z");
+    assert_eq!(log[0].reason, "oil was cold after the weekend");
+    assert_eq!(log[1].by, "M. Okafor-Lund");
+    assert_eq!(log[1].reason, "gauge found broken");
+    let new1: serde_json::Value =
+        serde_json::from_str(log[1].new_value.as_deref().unwrap()).unwrap();
+    assert_eq!(new1["confirmed_by"], serde_json::Value::Null);
+
+    // Samples likewise.
+    store
+        .set_sample_confirmation(s, Some(&k), "R. Quennell", "lab re-ran it")
+        .unwrap();
+    assert_eq!(store.sample(s).unwrap().unwrap().confirmed, Some(k));
+    let slog = store.edit_history("samples", s).unwrap();
+    assert_eq!(slog.len(), 1);
+    assert_eq!(slog[0].reason, "lab re-ran it");
+
+    // Unknown rows and a nameless confirmation are refused.
+    assert!(matches!(
+        store.set_check_confirmation(9999, None, "AK", "x"),
+        Err(StoreError::NotFound(_))
+    ));
+    let nameless = Confirmation {
+        by: " ".into(),
+        at: t("2025-02-05T09:00:00Z"),
+    };
+    let e = store
+        .set_check_confirmation(a, Some(&nameless), "AK", "x")
+        .unwrap_err();
+    assert_eq!(invalid_field(e), "confirmed_by");
+    // The file itself refuses half a confirmation.
+    drop(store);
+    let raw = rusqlite::Connection::open(&path).unwrap();
+    raw.execute_batch("INSERT INTO edit_context VALUES (1, 'x', 'y', '2025-02-05T09:00:00Z');")
+        .unwrap();
+    let err = raw
+        .execute(
+            "UPDATE checks SET confirmed_by = 'AK' WHERE confirmed_by IS NULL",
+            [],
+        )
+        .unwrap_err();
+    assert!(
+        err.to_string()
+            .contains("who confirmed and when go together"),
+        "{err}"
+    );
+}
+
+#[test]
+fn confirmations_round_trip_through_export_and_import_and_a_shop_without_any_exports_as_before() {
+    use sumpbook::model::Confirmation;
+    let dir = tmp();
+    let a = new_store(dir.path(), "a.sqlite");
+    let (u, _) = small_shop(&a);
+    let c1 = a.insert_check(&check(u, "2025-03-03T07:30:00Z")).unwrap();
+    a.insert_check(&check(u, "2025-03-10T07:30:00Z")).unwrap();
+    let s1 = a.insert_sample(&sample(u, "2025-03-04T00:00:00Z")).unwrap();
+    let mut plain = Vec::new();
+    export(&a, FileKind::Checks, &mut plain, UnitSystem::Metric).unwrap();
+    let plain = String::from_utf8(plain).unwrap();
+    assert!(!plain.contains("confirmed_by"), "{plain}");
+
+    let k = Confirmation {
+        by: "=R. Quennell".into(),
+        at: t("2025-03-05T09:00:00Z"),
+    };
+    a.set_check_confirmation(c1, Some(&k), "RQ", "re-timed")
+        .unwrap();
+    a.set_sample_confirmation(s1, Some(&k), "RQ", "re-run")
+        .unwrap();
+    let files: Vec<(FileKind, Vec<u8>)> = [FileKind::Units, FileKind::Checks, FileKind::Samples]
+        .iter()
+        .map(|&kind| {
+            let mut out = Vec::new();
+            export(&a, kind, &mut out, UnitSystem::Us).unwrap();
+            (kind, out)
+        })
+        .collect();
+    let checks_csv = String::from_utf8(files[1].1.clone()).unwrap();
+    let lines: Vec<&str> = checks_csv.lines().collect();
+    assert!(
+        lines[0].ends_with(",confirmed_by,confirmed_at"),
+        "{}",
+        lines[0]
+    );
+    // The name is guarded like any text a spreadsheet would run.
+    assert!(
+        lines[1].ends_with(",'=R. Quennell,2025-03-05T09:00:00Z"),
+        "{}",
+        lines[1]
+    );
+    assert!(lines[2].ends_with(",,"), "{}", lines[2]);
+
+    let mut b = new_store(dir.path(), "b.sqlite");
+    for (kind, bytes) in &files {
+        let p = dir.path().join(kind.file_name());
+        std::fs::write(&p, bytes).unwrap();
+        import(&mut b, *kind, &p);
+    }
+    let hb = b.unit_histories(None).unwrap();
+    assert_eq!(hb[0].checks[0].confirmed, Some(k.clone()));
+    assert_eq!(hb[0].checks[1].confirmed, None);
+    assert_eq!(hb[0].samples[0].confirmed, Some(k.clone()));
+    // Importing the same file again adds nothing and changes nothing.
+    let p = dir.path().join(FileKind::Checks.file_name());
+    let again = import(&mut b, FileKind::Checks, &p);
+    assert_eq!(again.inserted, 0);
+
+    // Half a confirmation in a file is refused with its line and column.
+    let half = dir.path().join("half.csv");
+    std::fs::write(
+        &half,
+        "unit_tag,taken_at,pressure_bar,confirmed_by,confirmed_at\n\
+         PR-01-M,2025-04-01T07:30:00Z,170,AK,\n",
+    )
+    .unwrap();
+    let e = import_file(&mut b, FileKind::Checks, &half, false).unwrap_err();
+    let ExchangeError::Rows(rows) = e else {
+        panic!("expected bad rows, got {e:?}")
+    };
+    assert_eq!(rows[0].line, 2);
+    assert_eq!(rows[0].column, "confirmed_at");
 }

@@ -23,8 +23,9 @@ use super::AppError;
 use crate::exchange::{ExchangeError, FileKind, ImportSummary, RowError};
 use crate::health::{self, FlagKind, Limits, SamplePoint, State, WorkKind};
 use crate::model::{
-    Check, Event, EventKind, FilterState, Fluid, Id, Machine, OilLevel, PumpKind, Sample,
-    SensitiveComponent, Settings, StrokeDirection, TimedStroke, Unit, UnitHistory, ViscReading,
+    Check, Confirmation, Event, EventKind, FilterState, Fluid, Id, Machine, OilLevel, PumpKind,
+    Sample, SensitiveComponent, Settings, StrokeDirection, TimedStroke, Unit, UnitHistory,
+    ViscReading,
 };
 use crate::physics::cleanliness::Iso4406Code;
 use crate::quantity::{self, Kind, Quantity};
@@ -833,6 +834,7 @@ pub fn review_check(
         case_drain: None,
         by: by.trim().to_string(),
         note: String::new(),
+        confirmed: None,
     };
     let mut review = judge_check(&unit, &earlier, entered, base, system);
     if pre.iter().any(|p| p.verdict == Verdict::Refused) {
@@ -864,11 +866,19 @@ pub fn save_check(
     now: DateTime<Utc>,
 ) -> Result<SaveOutcome<SavedCheck>, AppError> {
     let review = review_check(shop, unit_id, entered, taken_at, by, now)?;
-    let Some(check) = review.check else {
+    let Some(mut check) = review.check else {
         return Ok(SaveOutcome::Refused(review.problems));
     };
     if !review.problems.is_empty() && !confirmed {
         return Ok(SaveOutcome::NeedsConfirmation(review.problems));
+    }
+    if !review.problems.is_empty() {
+        // The technician was asked and said the reading is right: it is stored as confirmed
+        // by them, now, so it counts in baselines and detectors like any other reading.
+        check.confirmed = Some(Confirmation {
+            by: check.by.clone(),
+            at: now.trunc_subsecs(0),
+        });
     }
     let store = shop.store();
     let id = store.insert_check(&check).map_err(store_error)?;
@@ -1161,6 +1171,7 @@ pub fn review_sample(
         acid_mgkoh_g: acid,
         lab_ref: entered.get("lab_ref").to_string(),
         note: format_note(entered.get("note"), &by),
+        confirmed: None,
     };
     let preview = preview_sample(store, &h, &sample, now, system)?;
     Ok(SampleReview {
@@ -1231,11 +1242,23 @@ pub fn save_sample(
     now: DateTime<Utc>,
 ) -> Result<SaveOutcome<SavedSample>, AppError> {
     let review = review_sample(shop, unit_id, entered, now)?;
-    let Some(sample) = review.sample else {
+    let Some(mut sample) = review.sample else {
         return Ok(SaveOutcome::Refused(review.problems));
     };
     if !review.problems.is_empty() && !confirmed {
         return Ok(SaveOutcome::NeedsConfirmation(review.problems));
+    }
+    if !review.problems.is_empty() {
+        // Asked and confirmed: stored as confirmed by whoever entered it, now.
+        let by = entered.get("by").trim();
+        sample.confirmed = Some(Confirmation {
+            by: if by.is_empty() {
+                "sample entry, no name given".to_string()
+            } else {
+                by.to_string()
+            },
+            at: now.trunc_subsecs(0),
+        });
     }
     let store = shop.store();
     let id = store.insert_sample(&sample).map_err(store_error)?;
@@ -2749,6 +2772,23 @@ mod tests {
             (stored.stroke_time.unwrap().si() - (last * 2.0 * 100.0).round() / 100.0).abs() < 1e-9
         );
         assert_eq!(stored.by, "T. T");
+        // Asked and kept: stored as confirmed by the technician at the moment of saving.
+        let k = stored
+            .confirmed
+            .expect("a confirmed unusual reading is stored as confirmed");
+        assert_eq!(k.by, "T. T");
+        assert!(k.at <= Utc::now() && k.at > Utc::now() - Duration::minutes(5));
+        // A reading nobody questioned is stored without a confirmation.
+        let plain = entered(&[("stroke_time", &format!("{:.2}", last * 2.0))]);
+        let later = Utc::now() + Duration::seconds(1);
+        let out = save_check(&shop, u.id, &plain, "", "T. T", false, later).unwrap();
+        let SaveOutcome::Saved(s) = out else {
+            panic!("the same time as the last check is not unusual: {out:?}")
+        };
+        assert_eq!(
+            shop.store().check(s.check_id).unwrap().unwrap().confirmed,
+            None
+        );
     }
 
     #[test]

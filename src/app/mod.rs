@@ -4,6 +4,7 @@
 
 pub mod bench_shop;
 pub mod calc;
+pub mod confirm;
 pub mod entry;
 pub mod entry_check;
 pub mod figures;

@@ -9,6 +9,7 @@ use clap::{Parser, Subcommand};
 
 pub mod bench;
 pub mod calc;
+pub mod confirm;
 pub mod data;
 pub mod entry;
 pub mod report;
@@ -89,6 +90,8 @@ pub enum Command {
     Baseline(status::BaselineArgs),
     /// Record one walk-round check of a unit (values with units: 45C, 172bar, 3.9s).
     LogCheck(entry::LogCheckArgs),
+    /// Confirm a questioned reading as measured (or --lift a confirmation), by unit and time.
+    Confirm(confirm::ConfirmArgs),
     /// List the limits in force (shop or one unit), or set and reset them.
     Limits(status::LimitsArgs),
     /// Write a consistent copy of the shop file while it stays in use.
@@ -125,6 +128,9 @@ pub fn run(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
         }
         Some(Command::LogCheck(args)) => {
             entry::run_log_check(&data::open_shop(cli.db.as_deref())?, args, out)
+        }
+        Some(Command::Confirm(args)) => {
+            confirm::run(&data::open_shop(cli.db.as_deref())?, args, out)
         }
         Some(Command::Limits(args)) => {
             status::run_limits(&data::open_shop(cli.db.as_deref())?, args, out)

@@ -21,8 +21,8 @@ use csv::ByteRecord;
 
 use super::{unescape_cell, ExchangeError, FileKind, ImportSummary, RowError};
 use crate::model::{
-    Check, Event, EventKind, FilterState, Fluid, Id, Machine, OilLevel, PumpKind, Sample,
-    SensitiveComponent, StrokeDirection, TimedStroke, Unit, ViscReading,
+    Check, Confirmation, Event, EventKind, FilterState, Fluid, Id, Machine, OilLevel, PumpKind,
+    Sample, SensitiveComponent, StrokeDirection, TimedStroke, Unit, ViscReading,
 };
 use crate::physics::cleanliness::Iso4406Code;
 use crate::physics::viscosity::ISO_VG_GRADES;
@@ -104,6 +104,8 @@ pub(crate) const CHECK_COLS: &[ColSpec] = &[
     col("case_drain", "case_drain_gpm", Gpm),
     col("by", "by", Plain),
     col("note", "note", Plain),
+    col("confirmed_by", "confirmed_by", Plain),
+    col("confirmed_at", "confirmed_at", Plain),
 ];
 
 pub(crate) const SAMPLE_COLS: &[ColSpec] = &[
@@ -122,6 +124,8 @@ pub(crate) const SAMPLE_COLS: &[ColSpec] = &[
     col("acid", "acid_mgkoh_g", Plain),
     col("lab_ref", "lab_ref", Plain),
     col("note", "note", Plain),
+    col("confirmed_by", "confirmed_by", Plain),
+    col("confirmed_at", "confirmed_at", Plain),
 ];
 
 pub(crate) const EVENT_COLS: &[ColSpec] = &[
@@ -1326,6 +1330,35 @@ impl Importer {
         }
     }
 
+    /// Who confirmed a questioned reading and when (`confirmed_by`, `confirmed_at`): both or
+    /// neither; absent columns are neither.
+    fn confirmation(&self, row: &mut RowReader<'_>) -> Option<Confirmation> {
+        let by_slot = self.slot("confirmed_by");
+        let at_slot = self.slot("confirmed_at");
+        let by = row.text(by_slot).map(str::to_string);
+        let at_given = row.text(at_slot).is_some();
+        match (by, at_given) {
+            (None, false) => None,
+            (Some(by), true) => row
+                .when(at_slot, "confirmed_at")
+                .map(|at| Confirmation { by, at }),
+            (Some(_), false) => {
+                row.err(
+                    &self.name("confirmed_at"),
+                    "confirmed_by needs the time of the confirmation in confirmed_at",
+                );
+                None
+            }
+            (None, true) => {
+                row.err(
+                    &self.name("confirmed_by"),
+                    "confirmed_at needs who confirmed the reading in confirmed_by",
+                );
+                None
+            }
+        }
+    }
+
     fn unit_id(&self, bulk: &Bulk<'_>, row: &mut RowReader<'_>) -> Option<Id> {
         let tag = row.need(self.slot("unit_tag"), "unit_tag")?;
         match bulk.unit_by_tag(tag) {
@@ -1364,6 +1397,7 @@ impl Importer {
         let case_drain = row.flow(self.slot("case_drain"), incl(0.0, 10000.0));
         let by = row.free(self.slot("by"));
         let note = row.free(self.slot("note"));
+        let confirmed = self.confirmation(row);
         let (Some(unit_id), Some(taken_at)) = (unit_id, taken_at) else {
             return Ok(None);
         };
@@ -1385,6 +1419,7 @@ impl Importer {
             case_drain,
             by,
             note,
+            confirmed,
         };
         match bulk.put_check(&check) {
             Ok(Put::Inserted(_)) => Ok(Some(Outcome::Inserted)),
@@ -1443,6 +1478,10 @@ impl Importer {
                 );
                 cmp("by", differs_text(&check.by, &stored.by));
                 cmp("note", differs_text(&check.note, &stored.note));
+                cmp(
+                    "confirmed_by",
+                    check.confirmed.is_some() && check.confirmed != stored.confirmed,
+                );
                 self.existing(row, "taken_at", "a check of this unit at this time", diff)
             }
             Err(e) => {
@@ -1500,6 +1539,7 @@ impl Importer {
         let acid = row.plain(self.slot("acid"), incl(0.0, 50.0));
         let lab_ref = row.free(self.slot("lab_ref"));
         let note = row.free(self.slot("note"));
+        let confirmed = self.confirmation(row);
         if let (Some(a), Some(b)) = (kv40, kv100) {
             if b >= a {
                 row.err(
@@ -1566,6 +1606,7 @@ impl Importer {
             acid_mgkoh_g: acid,
             lab_ref,
             note,
+            confirmed,
         };
         match bulk.put_sample(&sample) {
             Ok(Put::Inserted(_)) => Ok(Some(Outcome::Inserted)),
@@ -1604,6 +1645,10 @@ impl Importer {
                 cmp("acid", differs(sample.acid_mgkoh_g, st.acid_mgkoh_g));
                 cmp("lab_ref", differs_text(&sample.lab_ref, &st.lab_ref));
                 cmp("note", differs_text(&sample.note, &st.note));
+                cmp(
+                    "confirmed_by",
+                    sample.confirmed.is_some() && sample.confirmed != st.confirmed,
+                );
                 self.existing(
                     row,
                     "sampled_at",

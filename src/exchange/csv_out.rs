@@ -10,11 +10,26 @@ use std::collections::HashMap;
 use std::io::Write;
 
 use super::{escape_cell, ExchangeError, FileKind};
-use crate::model::{Check, Event, Fluid, Id, Machine, Sample, Unit};
+use crate::model::{Check, Confirmation, Event, Fluid, Id, Machine, Sample, Unit};
 use crate::store::{columns, fmt_time_stamp, Store, StoreError};
 use crate::units::UnitSystem;
 
-/// The header of an export of `kind` in `system`.
+/// The columns that say who confirmed a questioned reading and when. An export of checks or
+/// samples carries them only when the shop holds a confirmed reading of that kind, so a shop
+/// without any exports the same columns as before readings could be confirmed.
+pub const CONFIRMATION_COLS: [&str; 2] = ["confirmed_by", "confirmed_at"];
+
+/// The header of an export of `kind` in `system`, with the confirmation columns when
+/// `confirmations` (checks and samples only).
+pub fn header_with(kind: FileKind, system: UnitSystem, confirmations: bool) -> Vec<&'static str> {
+    let mut h = header(kind, system);
+    if confirmations && matches!(kind, FileKind::Checks | FileKind::Samples) {
+        h.extend(CONFIRMATION_COLS);
+    }
+    h
+}
+
+/// The header of an export of `kind` in `system`, without the confirmation columns.
 pub fn header(kind: FileKind, system: UnitSystem) -> Vec<&'static str> {
     let us = system == UnitSystem::Us;
     let pick = |metric: &'static str, us_name: &'static str| if us { us_name } else { metric };
@@ -103,7 +118,19 @@ pub fn export(
         .terminator(csv::Terminator::CRLF)
         .from_writer(out);
     let werr = |e: csv::Error| ExchangeError::Write(e.into());
-    w.write_record(header(kind, system)).map_err(werr)?;
+    let confirmations = match kind {
+        FileKind::Checks => store.any_confirmed_check()?,
+        FileKind::Samples => store.any_confirmed_sample()?,
+        FileKind::Units | FileKind::Events => false,
+    };
+    w.write_record(header_with(kind, system, confirmations))
+        .map_err(werr)?;
+    let confirmation = |k: &Option<Confirmation>| -> [String; 2] {
+        match k {
+            Some(k) => [text(&k.by), fmt_time_stamp(&k.at)],
+            None => [String::new(), String::new()],
+        }
+    };
     let us = system == UnitSystem::Us;
     let units: HashMap<Id, Unit> = store.units()?.into_iter().map(|u| (u.id, u)).collect();
     let fluids: HashMap<Id, Fluid> = store.fluids()?.into_iter().map(|f| (f.id, f)).collect();
@@ -176,7 +203,7 @@ pub fn export(
         }
         FileKind::Checks => {
             store.each_check(|c: Check| -> Result<(), ExchangeError> {
-                w.write_record([
+                let mut cells = vec![
                     tag(c.unit_id)?,
                     fmt_time_stamp(&c.taken_at),
                     temp(c.reservoir_temp),
@@ -190,15 +217,18 @@ pub fn export(
                     flow(c.case_drain),
                     text(&c.by),
                     text(&c.note),
-                ])
-                .map_err(werr)?;
+                ];
+                if confirmations {
+                    cells.extend(confirmation(&c.confirmed));
+                }
+                w.write_record(&cells).map_err(werr)?;
                 rows += 1;
                 Ok(())
             })?;
         }
         FileKind::Samples => {
             store.each_sample(|s: Sample| -> Result<(), ExchangeError> {
-                w.write_record([
+                let mut cells = vec![
                     tag(s.unit_id)?,
                     fmt_time_stamp(&s.sampled_at),
                     cst(s.kv40),
@@ -213,8 +243,11 @@ pub fn export(
                     num(s.acid_mgkoh_g.map(columns::tidy)),
                     text(&s.lab_ref),
                     text(&s.note),
-                ])
-                .map_err(werr)?;
+                ];
+                if confirmations {
+                    cells.extend(confirmation(&s.confirmed));
+                }
+                w.write_record(&cells).map_err(werr)?;
                 rows += 1;
                 Ok(())
             })?;

@@ -811,6 +811,7 @@ pub fn generate() -> Result<DemoShop, DemoError> {
                     case_drain,
                     by: technician.into(),
                     note: note.into(),
+                    confirmed: None,
                 });
                 if oil_low {
                     let litres = round_to(def.reservoir_l - level_l, 1.0).max(1.0);
@@ -897,6 +898,7 @@ pub fn generate() -> Result<DemoShop, DemoError> {
                         // Numbered below, in the order the lab receives them.
                         lab_ref: "lab".into(),
                         note: String::new(),
+                        confirmed: None,
                     }
                 } else {
                     let nu = model.walther.at(Temperature::from_c(t_oil)).cst()
@@ -923,6 +925,7 @@ pub fn generate() -> Result<DemoShop, DemoError> {
                         acid_mgkoh_g: None,
                         lab_ref: String::new(),
                         note: "bench".into(),
+                        confirmed: None,
                     }
                 };
                 samples.push(sample);

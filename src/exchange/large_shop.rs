@@ -311,6 +311,7 @@ impl UnitGen {
             }),
             by: PEOPLE[(week + self.index / 250) % PEOPLE.len()].to_string(),
             note: note.to_string(),
+            confirmed: None,
         }
     }
 
@@ -358,6 +359,7 @@ impl UnitGen {
             )),
             lab_ref: format!("BL{}-{:05}", self.index, self.lab_seq),
             note: String::new(),
+            confirmed: None,
         }
     }
 

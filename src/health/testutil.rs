@@ -67,6 +67,7 @@ pub fn check(id: Id, at: DateTime<Utc>) -> Check {
         case_drain: None,
         by: "T. Tech".into(),
         note: String::new(),
+        confirmed: None,
     }
 }
 
@@ -142,5 +143,6 @@ pub fn sample(id: Id, at: DateTime<Utc>) -> crate::model::Sample {
         acid_mgkoh_g: None,
         lab_ref: String::new(),
         note: String::new(),
+        confirmed: None,
     }
 }

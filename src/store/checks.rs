@@ -8,13 +8,17 @@ use chrono::{DateTime, Utc};
 use rusqlite::{params, OptionalExtension, Row};
 
 use super::columns::{bar, lpm, secs, temp_c, tidy};
-use super::{fmt_time, opt_enum_col, time_col, Store, StoreError};
-use crate::model::{Check, Id};
+use super::{
+    confirmation_cols, confirmation_time, fmt_time, fmt_time_stamp, opt_enum_col, time_col, Store,
+    StoreError,
+};
+use crate::model::{Check, Confirmation, Id};
 use crate::units::{Flow, Pressure, Seconds, Temperature};
 
 pub(crate) const CHECK_COLS: &str =
     "id, unit_id, taken_at, reservoir_temp_c, ambient_temp_c, pressure_bar, \
-     stroke_time_s, cycle_time_s, oil_level, filter, hours, case_drain_lpm, taken_by, note";
+     stroke_time_s, cycle_time_s, oil_level, filter, hours, case_drain_lpm, taken_by, note, \
+     confirmed_by, confirmed_at";
 
 pub(crate) fn check_from_row(r: &Row<'_>) -> rusqlite::Result<Check> {
     Ok(Check {
@@ -32,6 +36,7 @@ pub(crate) fn check_from_row(r: &Row<'_>) -> rusqlite::Result<Check> {
         case_drain: r.get::<_, Option<f64>>(11)?.map(Flow::from_lpm),
         by: r.get(12)?,
         note: r.get(13)?,
+        confirmed: confirmation_cols(r, 14)?,
     })
 }
 
@@ -51,6 +56,8 @@ pub(crate) struct CheckRow<'a> {
     pub case_drain_lpm: Option<f64>,
     pub taken_by: &'a str,
     pub note: &'a str,
+    pub confirmed_by: Option<&'a str>,
+    pub confirmed_at: Option<String>,
 }
 
 impl<'a> CheckRow<'a> {
@@ -69,10 +76,12 @@ impl<'a> CheckRow<'a> {
             case_drain_lpm: c.case_drain.map(lpm),
             taken_by: &c.by,
             note: &c.note,
+            confirmed_by: c.confirmed.as_ref().map(|k| k.by.as_str()),
+            confirmed_at: confirmation_time(&c.confirmed)?,
         })
     }
 
-    pub fn params(&self) -> [&dyn rusqlite::ToSql; 13] {
+    pub fn params(&self) -> [&dyn rusqlite::ToSql; 15] {
         [
             &self.unit_id,
             &self.taken_at,
@@ -87,6 +96,8 @@ impl<'a> CheckRow<'a> {
             &self.case_drain_lpm,
             &self.taken_by,
             &self.note,
+            &self.confirmed_by,
+            &self.confirmed_at,
         ]
     }
 }
@@ -99,8 +110,9 @@ pub(crate) fn unit_checks_sql() -> String {
 }
 
 pub(crate) const INSERT_CHECK: &str = "INSERT INTO checks (unit_id, taken_at, reservoir_temp_c, ambient_temp_c, \
-     pressure_bar, stroke_time_s, cycle_time_s, oil_level, filter, hours, case_drain_lpm, taken_by, note) \
-     VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13)";
+     pressure_bar, stroke_time_s, cycle_time_s, oil_level, filter, hours, case_drain_lpm, taken_by, note, \
+     confirmed_by, confirmed_at) \
+     VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15)";
 
 impl Store {
     /// Adds one check and returns its id. A check of the same unit at the same time is refused.
@@ -170,11 +182,51 @@ impl Store {
                 .stmt(
                     "UPDATE checks SET unit_id = ?1, taken_at = ?2, reservoir_temp_c = ?3, ambient_temp_c = ?4, \
                      pressure_bar = ?5, stroke_time_s = ?6, cycle_time_s = ?7, oil_level = ?8, filter = ?9, hours = ?10, \
-                     case_drain_lpm = ?11, taken_by = ?12, note = ?13 WHERE id = ?14",
+                     case_drain_lpm = ?11, taken_by = ?12, note = ?13, confirmed_by = ?14, confirmed_at = ?15 \
+                     WHERE id = ?16",
                 )?
                 .execute(&p[..])?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("check {}", c.id)));
+            }
+            Ok(())
+        })
+    }
+
+    /// The check of unit `unit_id` taken at exactly `at`, if there is one.
+    pub fn check_at(&self, unit_id: Id, at: &DateTime<Utc>) -> Result<Option<Check>, StoreError> {
+        let sql = format!("SELECT {CHECK_COLS} FROM checks WHERE unit_id = ?1 AND taken_at = ?2");
+        Ok(self
+            .stmt(&sql)?
+            .query_row(params![unit_id, fmt_time_stamp(at)], check_from_row)
+            .optional()?)
+    }
+
+    /// Whether any stored check is confirmed (an export then carries the confirmation columns).
+    pub fn any_confirmed_check(&self) -> Result<bool, StoreError> {
+        Ok(self
+            .stmt("SELECT EXISTS (SELECT 1 FROM checks WHERE confirmed_by IS NOT NULL)")?
+            .query_row([], |r| r.get(0))?)
+    }
+
+    /// Marks a stored check as confirmed by a person (`Some`), or lifts its confirmation
+    /// (`None`). Only the confirmation changes; the edit history keeps the row as it was with
+    /// `by` and `reason`. An unknown id is [`StoreError::NotFound`].
+    pub fn set_check_confirmation(
+        &self,
+        id: Id,
+        confirmed: Option<&Confirmation>,
+        by: &str,
+        reason: &str,
+    ) -> Result<(), StoreError> {
+        let at = confirmation_time(&confirmed.cloned())?;
+        let who = confirmed.map(|k| k.by.trim());
+        self.with_edit(by, reason, |s| {
+            let n = s
+                .stmt("UPDATE checks SET confirmed_by = ?1, confirmed_at = ?2 WHERE id = ?3")?
+                .execute(params![who, at, id])?;
+            if n == 0 {
+                return Err(StoreError::NotFound(format!("check {id}")));
             }
             Ok(())
         })

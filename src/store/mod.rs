@@ -897,6 +897,29 @@ fn opt_enum_col<T: std::str::FromStr<Err = String>>(
         .transpose()
 }
 
+/// Who confirmed a questioned reading and when, from the two columns `confirmed_by` and
+/// `confirmed_at` at `idx` and `idx + 1` (both NULL when nobody has).
+fn confirmation_cols(
+    row: &rusqlite::Row<'_>,
+    idx: usize,
+) -> rusqlite::Result<Option<crate::model::Confirmation>> {
+    let Some(by) = text_col(row, idx)? else {
+        return Ok(None);
+    };
+    let by = by.to_string();
+    Ok(Some(crate::model::Confirmation {
+        by,
+        at: time_col(row, idx + 1)?,
+    }))
+}
+
+/// The `confirmed_at` column text of a confirmation (`None` when there is none).
+fn confirmation_time(c: &Option<crate::model::Confirmation>) -> Result<Option<String>, StoreError> {
+    c.as_ref()
+        .map(|k| fmt_time("confirmed_at", &k.at))
+        .transpose()
+}
+
 #[derive(Debug)]
 struct CorruptValue(String);
 

@@ -7,12 +7,15 @@ use chrono::{DateTime, Utc};
 use rusqlite::{params, OptionalExtension, Row};
 
 use super::columns::{cst, temp_c, tidy};
-use super::{fmt_time, time_col, Store, StoreError};
-use crate::model::{Id, Sample, ViscReading};
+use super::{
+    confirmation_cols, confirmation_time, fmt_time, fmt_time_stamp, time_col, Store, StoreError,
+};
+use crate::model::{Confirmation, Id, Sample, ViscReading};
 use crate::units::{Temperature, Viscosity};
 
 pub(crate) const SAMPLE_COLS: &str = "id, unit_id, sampled_at, kv40_cst, kv100_cst, visc_cst, visc_temp_c, \
-     count_4um_per_ml, count_6um_per_ml, count_14um_per_ml, iso4406, water_ppm, acid_mgkoh_g, lab_ref, note";
+     count_4um_per_ml, count_6um_per_ml, count_14um_per_ml, iso4406, water_ppm, acid_mgkoh_g, lab_ref, note, \
+     confirmed_by, confirmed_at";
 
 pub(crate) fn sample_from_row(r: &Row<'_>) -> rusqlite::Result<Sample> {
     let visc: Option<f64> = r.get(5)?;
@@ -36,6 +39,7 @@ pub(crate) fn sample_from_row(r: &Row<'_>) -> rusqlite::Result<Sample> {
         acid_mgkoh_g: r.get(12)?,
         lab_ref: r.get(13)?,
         note: r.get(14)?,
+        confirmed: confirmation_cols(r, 15)?,
     })
 }
 
@@ -54,6 +58,8 @@ pub(crate) struct SampleRow<'a> {
     pub acid_mgkoh_g: Option<f64>,
     pub lab_ref: &'a str,
     pub note: &'a str,
+    pub confirmed_by: Option<&'a str>,
+    pub confirmed_at: Option<String>,
 }
 
 impl<'a> SampleRow<'a> {
@@ -71,10 +77,12 @@ impl<'a> SampleRow<'a> {
             acid_mgkoh_g: s.acid_mgkoh_g.map(tidy),
             lab_ref: &s.lab_ref,
             note: &s.note,
+            confirmed_by: s.confirmed.as_ref().map(|k| k.by.as_str()),
+            confirmed_at: confirmation_time(&s.confirmed)?,
         })
     }
 
-    pub fn params(&self) -> [&dyn rusqlite::ToSql; 14] {
+    pub fn params(&self) -> [&dyn rusqlite::ToSql; 16] {
         [
             &self.unit_id,
             &self.sampled_at,
@@ -90,6 +98,8 @@ impl<'a> SampleRow<'a> {
             &self.acid_mgkoh_g,
             &self.lab_ref,
             &self.note,
+            &self.confirmed_by,
+            &self.confirmed_at,
         ]
     }
 }
@@ -100,8 +110,9 @@ pub(crate) fn unit_samples_sql() -> String {
 }
 
 pub(crate) const INSERT_SAMPLE: &str = "INSERT INTO samples (unit_id, sampled_at, kv40_cst, kv100_cst, visc_cst, \
-     visc_temp_c, count_4um_per_ml, count_6um_per_ml, count_14um_per_ml, iso4406, water_ppm, acid_mgkoh_g, lab_ref, note) \
-     VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14)";
+     visc_temp_c, count_4um_per_ml, count_6um_per_ml, count_14um_per_ml, iso4406, water_ppm, acid_mgkoh_g, lab_ref, note, \
+     confirmed_by, confirmed_at) \
+     VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16)";
 
 impl Store {
     /// Adds one sample result and returns its id.
@@ -152,11 +163,51 @@ impl Store {
                 .stmt(
                     "UPDATE samples SET unit_id = ?1, sampled_at = ?2, kv40_cst = ?3, kv100_cst = ?4, visc_cst = ?5, \
                      visc_temp_c = ?6, count_4um_per_ml = ?7, count_6um_per_ml = ?8, count_14um_per_ml = ?9, \
-                     iso4406 = ?10, water_ppm = ?11, acid_mgkoh_g = ?12, lab_ref = ?13, note = ?14 WHERE id = ?15",
+                     iso4406 = ?10, water_ppm = ?11, acid_mgkoh_g = ?12, lab_ref = ?13, note = ?14, \
+                     confirmed_by = ?15, confirmed_at = ?16 WHERE id = ?17",
                 )?
                 .execute(&p[..])?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("sample {}", s.id)));
+            }
+            Ok(())
+        })
+    }
+
+    /// The sample of unit `unit_id` taken at exactly `at`, if there is one.
+    pub fn sample_at(&self, unit_id: Id, at: &DateTime<Utc>) -> Result<Option<Sample>, StoreError> {
+        let sql =
+            format!("SELECT {SAMPLE_COLS} FROM samples WHERE unit_id = ?1 AND sampled_at = ?2");
+        Ok(self
+            .stmt(&sql)?
+            .query_row(params![unit_id, fmt_time_stamp(at)], sample_from_row)
+            .optional()?)
+    }
+
+    /// Whether any stored sample is confirmed (an export then carries the confirmation columns).
+    pub fn any_confirmed_sample(&self) -> Result<bool, StoreError> {
+        Ok(self
+            .stmt("SELECT EXISTS (SELECT 1 FROM samples WHERE confirmed_by IS NOT NULL)")?
+            .query_row([], |r| r.get(0))?)
+    }
+
+    /// Marks a stored sample as confirmed by a person (`Some`), or lifts its confirmation
+    /// (`None`), keeping the row as it was in the edit history with `by` and `reason`.
+    pub fn set_sample_confirmation(
+        &self,
+        id: Id,
+        confirmed: Option<&Confirmation>,
+        by: &str,
+        reason: &str,
+    ) -> Result<(), StoreError> {
+        let at = confirmation_time(&confirmed.cloned())?;
+        let who = confirmed.map(|k| k.by.trim());
+        self.with_edit(by, reason, |s| {
+            let n = s
+                .stmt("UPDATE samples SET confirmed_by = ?1, confirmed_at = ?2 WHERE id = ?3")?
+                .execute(params![who, at, id])?;
+            if n == 0 {
+                return Err(StoreError::NotFound(format!("sample {id}")));
             }
             Ok(())
         })
