@@ -5,6 +5,7 @@
 //! - `units`, `quantity`: SI newtypes, exact conversions, parsing `2500psi`.
 //! - `model`: the shop's records as plain data.
 //! - `physics`: pure fluid-power, viscosity, cleanliness, oil-life and trend functions.
+//! - `outfile`: output files written whole beside a user's path, never through a link.
 //! - `app`: one function per user action.
 //! - `cli`: the command line.
 
@@ -15,6 +16,7 @@ pub mod exchange;
 pub mod gui;
 pub mod health;
 pub mod model;
+pub mod outfile;
 pub mod physics;
 pub mod quantity;
 pub mod report;

@@ -623,3 +623,41 @@ fn a_long_history_table_makes_only_the_rows_on_screen() {
         .text;
     assert_eq!(last.as_str(), oldest);
 }
+
+#[test]
+fn an_existing_report_file_is_replaced_only_when_written_to_again_and_the_default_is_free() {
+    let f = open_demo();
+    f.app.set_file_opener(|_| Ok(()));
+    // The proposed file is today's report under a name nothing is at yet.
+    let today = chrono::Utc::now().date_naive();
+    f.app.show(Screen::Reports);
+    let a = f.app.window().global::<sumpbook::gui::ui::ReportAdapter>();
+    let proposed = std::path::PathBuf::from(a.get_out().as_str());
+    let name = proposed.file_name().unwrap().to_string_lossy().into_owned();
+    assert!(
+        name.starts_with(&format!("condition-report-{today}")),
+        "{name}"
+    );
+    assert!(std::fs::symlink_metadata(&proposed).is_err(), "{name}");
+    let out = f._dir.path().join("kept.pdf");
+    std::fs::write(&out, "an earlier report").unwrap();
+    field(&f.app, "Report file").set_accessible_value(out.to_str().unwrap());
+    button(&f.app, "Write report").invoke_accessible_default_action();
+    let m = message(&f.app);
+    assert!(m.contains("already exists") && m.contains("again"), "{m}");
+    assert_eq!(std::fs::read_to_string(&out).unwrap(), "an earlier report");
+    // Asked and answered: the second press replaces it.
+    button(&f.app, "Write report").invoke_accessible_default_action();
+    wait_for(|| !a.get_running());
+    let m = message(&f.app);
+    assert!(m.contains("Wrote"), "{m}");
+    assert!(std::fs::read(&out).unwrap().starts_with(b"%PDF"));
+
+    // The default name never points at an existing file: the next free one is proposed.
+    let folder = f._dir.path();
+    std::fs::write(folder.join(format!("condition-report-{today}.pdf")), "x").unwrap();
+    assert_eq!(
+        sumpbook::app::report::default_out_path(folder, today),
+        folder.join(format!("condition-report-{today}-2.pdf"))
+    );
+}

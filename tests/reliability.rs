@@ -1711,3 +1711,210 @@ fn two_processes_importing_the_same_register_at_once_both_succeed_and_store_it_o
         assert_eq!(integrity(&db), "ok");
     }
 }
+
+// ---------------------------------------------------------------------------------------------
+// 9. Files written beside a user's path: never through a link, whole or not at all, an
+//    existing file replaced only when asked
+
+/// Names in `dir` that look like a side file of ours or of an earlier sumpbook (`.partial`,
+/// `.part`, `.upgrading`).
+fn side_files(dir: &Path) -> Vec<String> {
+    let mut v: Vec<String> = std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.contains(".partial") || n.ends_with(".part") || n.ends_with(".upgrading"))
+        .collect();
+    v.sort();
+    v
+}
+
+fn is_link(p: &Path) -> bool {
+    std::fs::symlink_metadata(p).is_ok_and(|m| m.file_type().is_symlink())
+}
+
+/// A checks file with one good and one refused row (500 °C).
+fn one_good_one_bad(path: &Path) {
+    std::fs::write(
+        path,
+        "unit_tag,taken_at,reservoir_temp_c,by\n\
+         PR-07-HPU,2025-04-01T07:30:00Z,45,AK\n\
+         PR-07-HPU,2025-04-02T07:30:00Z,500,AK\n",
+    )
+    .unwrap();
+}
+
+#[test]
+fn side_files_are_never_written_through_a_link_planted_at_their_name() {
+    use std::os::unix::fs::symlink;
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let victim = dir.path().join("victim.txt");
+    std::fs::write(&victim, "precious").unwrap();
+    let dangling = dir.path().join("made-through-a-link");
+
+    // The names the side files used to have, planted as links to the victim or to nothing.
+    let csv = dir.path().join("out.csv");
+    symlink(&victim, dir.path().join("out.csv.partial")).unwrap();
+    ok(&db, &["export", "checks", "--out", path_str(&csv)]);
+    let pdf = dir.path().join("r.pdf");
+    symlink(&dangling, dir.path().join("r.pdf.part")).unwrap();
+    ok(&db, &["report", "--out", path_str(&pdf)]);
+    assert!(!is_link(&csv) && csv.is_file() && !is_link(&pdf) && pdf.is_file());
+
+    // A link planted at the rejects file itself is replaced by the file, not written through.
+    let mixed = dir.path().join("mixed.csv");
+    one_good_one_bad(&mixed);
+    let rejects = dir.path().join("mixed.rejects.csv");
+    symlink(&victim, &rejects).unwrap();
+    ok(&db, &["import", "checks", path_str(&mixed), "--keep-going"]);
+    assert!(
+        !is_link(&rejects),
+        "the rejects file is still the planted link"
+    );
+    assert!(std::fs::read_to_string(&rejects)
+        .unwrap()
+        .contains("reject_reason"));
+
+    // The target itself a link: refused without --force; with it the link is replaced.
+    let linked = dir.path().join("linked.csv");
+    symlink(&victim, &linked).unwrap();
+    let out = run(&db, &["export", "checks", "--out", path_str(&linked)]);
+    assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
+    assert!(is_link(&linked));
+    ok(
+        &db,
+        &["export", "checks", "--out", path_str(&linked), "--force"],
+    );
+    assert!(!is_link(&linked) && linked.is_file());
+
+    assert_eq!(std::fs::read_to_string(&victim).unwrap(), "precious");
+    assert!(
+        std::fs::symlink_metadata(&dangling).is_err(),
+        "a dangling link's target was created"
+    );
+}
+
+#[test]
+fn an_existing_export_or_report_is_replaced_only_with_force() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    for (args, file) in [
+        (vec!["export", "checks"], "out.csv"),
+        (vec!["report"], "r.pdf"),
+    ] {
+        let target = dir.path().join(file);
+        std::fs::write(&target, "mine").unwrap();
+        let mut a = args.clone();
+        a.extend(["--out", path_str(&target)]);
+        let out = run(&db, &a);
+        let err = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{a:?}: {err}");
+        assert!(
+            err.contains("already exists") && err.contains("--force"),
+            "{err}"
+        );
+        assert_eq!(std::fs::read_to_string(&target).unwrap(), "mine");
+        a.push("--force");
+        ok(&db, &a);
+        assert_ne!(std::fs::read(&target).unwrap(), b"mine");
+        assert_eq!(side_files(dir.path()), Vec::<String>::new());
+    }
+    // A device is written in place, no --force needed, and stays a device.
+    ok(&db, &["export", "checks", "--out", "/dev/null"]);
+    use std::os::unix::fs::FileTypeExt;
+    assert!(std::fs::metadata("/dev/null")
+        .unwrap()
+        .file_type()
+        .is_char_device());
+}
+
+#[test]
+fn an_existing_rejects_file_stays_until_a_new_one_replaces_it() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let file = dir.path().join("round.csv");
+    one_good_one_bad(&file);
+    ok(&db, &["import", "checks", path_str(&file), "--keep-going"]);
+    let rejects = dir.path().join("round.rejects.csv");
+    let first = std::fs::read_to_string(&rejects).unwrap();
+    assert!(first.contains("500"), "{first}");
+
+    // Nothing refused this time: the earlier rejects file is left as it was.
+    std::fs::write(
+        &file,
+        "unit_tag,taken_at,reservoir_temp_c,by\nPR-07-HPU,2025-04-03T07:30:00Z,46,AK\n",
+    )
+    .unwrap();
+    let out = ok(&db, &["import", "checks", path_str(&file), "--keep-going"]);
+    assert!(out.contains("0 refused"), "{out}");
+    assert_eq!(std::fs::read_to_string(&rejects).unwrap(), first);
+
+    // A keep-going import that fails as a whole (a quote never closed) leaves it too, and no
+    // side file.
+    std::fs::write(
+        &file,
+        "unit_tag,taken_at,reservoir_temp_c,by\nPR-07-HPU,2025-04-04T07:30:00Z,900,AK\nPR-07-HPU,\"2025-04-05,46,AK\n",
+    )
+    .unwrap();
+    let out = run(&db, &["import", "checks", path_str(&file), "--keep-going"]);
+    assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
+    assert_eq!(std::fs::read_to_string(&rejects).unwrap(), first);
+    assert_eq!(side_files(dir.path()), Vec::<String>::new());
+
+    // Refused rows again: a new rejects file replaces the old one.
+    std::fs::write(
+        &file,
+        "unit_tag,taken_at,reservoir_temp_c,by\nPR-07-HPU,2025-04-06T07:30:00Z,-99,AK\n",
+    )
+    .unwrap();
+    ok(&db, &["import", "checks", path_str(&file), "--keep-going"]);
+    let second = std::fs::read_to_string(&rejects).unwrap();
+    assert!(
+        second.contains("-99") && !second.contains("500"),
+        "{second}"
+    );
+}
+
+/// Runs sumpbook with a file size limit of `blocks` (512-byte blocks, `ulimit -f` of `sh`),
+/// the signal for an overlong file ignored, so that a write past it fails as on a full disk.
+fn run_with_file_limit(db: &Path, blocks: u32, args: &[&str]) -> Output {
+    Command::new("sh")
+        .arg("-c")
+        .arg(format!(
+            "trap '' XFSZ; ulimit -f {blocks}; exec \"$0\" \"$@\""
+        ))
+        .arg(env!("CARGO_BIN_EXE_sumpbook"))
+        .arg("--db")
+        .arg(db)
+        .args(args)
+        .env(
+            "XDG_DATA_HOME",
+            std::env::temp_dir().join("sumpbook-reliability-no-default"),
+        )
+        .output()
+        .unwrap()
+}
+
+#[test]
+fn a_report_or_export_that_cannot_be_written_whole_leaves_no_file() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let big = dir.path().join("big.csv");
+    big_checks_file(&big, 3000, 400);
+    ok(&db, &["import", "checks", path_str(&big)]);
+    // 64 KiB: room for SQLite's own files beside the shop, not for the report or the export.
+    for (args, file) in [
+        (vec!["report"], "r.pdf"),
+        (vec!["export", "checks"], "out.csv"),
+    ] {
+        let target = dir.path().join(file);
+        let mut a = args.clone();
+        a.extend(["--out", path_str(&target)]);
+        let out = run_with_file_limit(&db, 128, &a);
+        let err = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(1), "{a:?}: {err}");
+        assert!(err.contains(file), "{err}");
+        assert!(!target.exists(), "{a:?} left {}", target.display());
+        assert_eq!(side_files(dir.path()), Vec::<String>::new(), "{a:?}");
+    }
+}

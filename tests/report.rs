@@ -613,6 +613,7 @@ fn chosen_units_come_in_the_order_asked_and_a_cancelled_report_writes_nothing() 
         to: chrono::NaiveDate::from_ymd_opt(2026, 11, 27),
         paper: Paper::Letter,
         prepared_by: String::new(),
+        replace: false,
     };
     let mut steps = Vec::new();
     let s = write_report(&shop, &opts, &mut |d, t| {
@@ -646,7 +647,12 @@ fn chosen_units_come_in_the_order_asked_and_a_cancelled_report_writes_nothing() 
     .unwrap();
     assert!(!s.completed);
     assert!(!cancelled.exists());
-    assert!(!dir.path().join("cancelled.pdf.part").exists());
+    let left: Vec<String> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.contains("cancelled"))
+        .collect();
+    assert!(left.is_empty(), "a cancelled report left {left:?}");
 }
 
 #[test]
@@ -668,6 +674,7 @@ fn a_us_customary_shop_gets_its_report_in_us_units() {
         to: chrono::NaiveDate::from_ymd_opt(2026, 11, 27),
         paper: Paper::Letter,
         prepared_by: "QA".into(),
+        replace: false,
     };
     let s = write_report(&shop, &opts, &mut |_, _| true).unwrap();
     assert_eq!(s.pages, s.fleet_pages + 1);

@@ -33,6 +33,16 @@ pub enum AppError {
     },
 }
 
+impl From<crate::outfile::OutFileError> for AppError {
+    fn from(e: crate::outfile::OutFileError) -> Self {
+        if e.is_input() {
+            AppError::BadInput(e.to_string())
+        } else {
+            AppError::Failed(e.to_string())
+        }
+    }
+}
+
 impl AppError {
     pub fn exit_code(&self) -> u8 {
         match self {

@@ -5,9 +5,11 @@
 //! from `work`, reads what the health results do not carry (unit register, events) through the
 //! store, and turns it all into the printed form of `report::ReportDoc`: figures in the shop's
 //! units, states in words and marks, chart series clipped to the period. No health rule is
-//! applied here; `report` lays out and draws. The PDF is written to a side file and renamed
-//! into place, so a failed or cancelled report never leaves half a file.
+//! applied here; `report` lays out and draws. The PDF is written to a new side file
+//! (`crate::outfile`) and renamed into place, so a failed or cancelled report never leaves half
+//! a file, and an existing file is replaced only when asked.
 
+use std::io::Write;
 use std::path::{Path, PathBuf};
 
 use chrono::{DateTime, Duration, NaiveDate, Utc};
@@ -22,6 +24,7 @@ use crate::health::indicators::{Dim, Direction, Tile};
 use crate::health::plan::SAFETY_CAUTIONS;
 use crate::health::{BaselineIndicator, BaselineSource, Flag, State};
 use crate::model::{EventKind, Fluid, Machine, StrokeDirection, Unit};
+use crate::outfile::{Options, OutFile};
 use crate::quantity::{format, Quantity};
 use crate::report::charts::{Band, Chart, EventMark, LimitLine, Series};
 use crate::report::{
@@ -49,6 +52,8 @@ pub struct ReportOptions {
     pub paper: Paper,
     /// Who prepared it, printed on every page.
     pub prepared_by: String,
+    /// Replace a file already at `out` (otherwise an existing file is refused).
+    pub replace: bool,
 }
 
 /// What was written.
@@ -75,6 +80,16 @@ pub fn write_report(
     progress: &mut dyn FnMut(usize, usize) -> bool,
 ) -> Result<ReportSummary, AppError> {
     check_out_path(&opts.out)?;
+    // Made first, so that an existing file is refused before the work; dropped unfinished on
+    // a cancel or a failure, which removes it.
+    let mut file = OutFile::create(
+        &opts.out,
+        Options {
+            replace: opts.replace,
+            devices_in_place: true,
+            can_force: true,
+        },
+    )?;
     let now = Utc::now();
     let (from, to) = period(opts, now)?;
     let doc = build_report(shop, opts, now)?;
@@ -97,7 +112,9 @@ pub fn write_report(
         Err(report::ReportError::Cancelled) => return Ok(not_done(0)),
         Err(e) => return Err(AppError::Failed(e.to_string())),
     };
-    write_atomically(&opts.out, &rendered.pdf)?;
+    file.write_all(&rendered.pdf)
+        .map_err(|e| AppError::Failed(format!("cannot write {}: {e}", opts.out.display())))?;
+    file.commit()?;
     Ok(ReportSummary {
         path: opts.out.clone(),
         pages: rendered.pages,
@@ -132,25 +149,6 @@ fn check_out_path(out: &Path) -> Result<(), AppError> {
     Ok(())
 }
 
-/// Writes beside the target and renames, so readers never see half a report.
-fn write_atomically(out: &Path, bytes: &[u8]) -> Result<(), AppError> {
-    let mut side = out.as_os_str().to_owned();
-    side.push(".part");
-    let side = PathBuf::from(side);
-    let fail = |e: std::io::Error| AppError::Failed(format!("cannot write {}: {e}", out.display()));
-    // A device or pipe (`/dev/null`, `/dev/stdout`) is written in place: renaming over it
-    // would replace the device with a regular file.
-    if std::fs::metadata(out).is_ok_and(|m| !m.is_file()) {
-        return std::fs::write(out, bytes).map_err(fail);
-    }
-    std::fs::write(&side, bytes).map_err(fail)?;
-    if let Err(e) = std::fs::rename(&side, out) {
-        let _ = std::fs::remove_file(&side);
-        return Err(fail(e));
-    }
-    Ok(())
-}
-
 /// Reads a day of the period as typed (`YYYY-MM-DD`); blank is `None` (the default).
 pub fn read_day(what: &str, text: &str) -> Result<Option<NaiveDate>, AppError> {
     let text = text.trim();
@@ -166,9 +164,15 @@ pub fn read_day(what: &str, text: &str) -> Result<Option<NaiveDate>, AppError> {
         })
 }
 
-/// The file name a report gets when none is chosen: the shop's report of `to`.
-pub fn default_file_name(to: NaiveDate) -> String {
-    format!("condition-report-{to}.pdf")
+/// Where a report of `to` goes in `folder` when no file is chosen: the default name, or the
+/// first numbered one (`-2`, `-3` …) that nothing is at yet, so a default never replaces.
+pub fn default_out_path(folder: &Path, to: NaiveDate) -> PathBuf {
+    crate::outfile::free_name(folder, &format!("condition-report-{to}"), "pdf")
+}
+
+/// Whether writing to `out` would replace a file already there (to be asked first).
+pub fn out_is_taken(out: &Path) -> bool {
+    crate::outfile::is_taken(out)
 }
 
 /// The first and last day of the period.
@@ -1027,6 +1031,7 @@ mod tests {
             to: None,
             paper: Paper::A4,
             prepared_by: String::new(),
+            replace: false,
         };
         let (f, t) = period(&o, now).unwrap();
         assert_eq!(t, now.date_naive());

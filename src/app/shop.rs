@@ -14,6 +14,7 @@ use super::AppError;
 use crate::exchange::demo::{self, DemoCounts};
 use crate::exchange::{csv_in, csv_out, ExchangeError, FileKind, ImportSummary};
 use crate::model::{Check, Sample};
+use crate::outfile::{Options, OutFile};
 use crate::store::{OpenMode, Store, StoreError};
 use crate::units::UnitSystem;
 
@@ -175,6 +176,36 @@ impl Shop {
         csv_in::import_file(&mut self.store, kind, file, keep_going).map_err(AppError::from)
     }
 
+    /// Writes all rows of `kind` as CSV to the file `path`: whole or not at all, an existing
+    /// file replaced only when `replace` is set (a device such as `/dev/null` is written in
+    /// place). Returns the rows written.
+    pub fn export_to_file(
+        &self,
+        kind: FileKind,
+        path: &Path,
+        system: Option<UnitSystem>,
+        replace: bool,
+    ) -> Result<u64, AppError> {
+        let out = OutFile::create(
+            path,
+            Options {
+                replace,
+                devices_in_place: true,
+                can_force: true,
+            },
+        )?;
+        let mut w = std::io::BufWriter::new(out);
+        let n = self.export(kind, &mut w, system).map_err(|e| match e {
+            AppError::Failed(m) => AppError::Failed(format!("{}: {m}", path.display())),
+            other => other,
+        })?;
+        let out = w.into_inner().map_err(|e| {
+            AppError::Failed(format!("cannot write {}: {}", path.display(), e.error()))
+        })?;
+        out.commit()?;
+        Ok(n)
+    }
+
     /// Writes all rows of `kind` as CSV, in `system` or else the shop's own unit system.
     pub fn export(
         &self,
@@ -249,6 +280,7 @@ impl From<ExchangeError> for AppError {
             }
             ExchangeError::Write(e) => AppError::Failed(format!("cannot write: {e}")),
             ExchangeError::Store(s) => AppError::Store(s),
+            ExchangeError::Out(o) => AppError::from(o),
         }
     }
 }

@@ -91,6 +91,9 @@ pub struct ExportArgs {
     /// Unit system of the numbers (default: the shop's).
     #[arg(long, value_enum)]
     pub units: Option<UnitsArg>,
+    /// Replace the file given with --out if it exists (otherwise an existing file is refused).
+    #[arg(long, requires = "out")]
+    pub force: bool,
 }
 
 #[derive(Args, Debug, Clone, PartialEq, Default)]
@@ -224,50 +227,7 @@ pub fn run_export(
             shop.export(kind, out, system)?;
         }
         Some(path) => {
-            // A regular file is written beside the target and renamed, so that a failed export
-            // leaves no half file; anything else (a device such as /dev/null, a pipe) is
-            // written in place and never replaced.
-            let regular = match std::fs::metadata(path) {
-                Ok(m) => m.is_file(),
-                Err(_) => true,
-            };
-            let target = if regular {
-                let mut tmp_name = path
-                    .file_name()
-                    .map(|n| n.to_os_string())
-                    .unwrap_or_default();
-                tmp_name.push(".partial");
-                path.with_file_name(tmp_name)
-            } else {
-                path.clone()
-            };
-            let file = if regular {
-                std::fs::File::create(&target)
-            } else {
-                std::fs::OpenOptions::new().write(true).open(&target)
-            }
-            .map_err(|e| Failure::bad_input(format!("{}: {e}", target.display())))?;
-            let mut w = std::io::BufWriter::new(file);
-            let result = shop.export(kind, &mut w, system).and_then(|n| {
-                w.flush().map_err(|e| {
-                    crate::app::AppError::Failed(format!("{}: {e}", target.display()))
-                })?;
-                Ok(n)
-            });
-            drop(w);
-            let n = match result {
-                Ok(n) => n,
-                Err(e) => {
-                    if regular {
-                        let _ = std::fs::remove_file(&target);
-                    }
-                    return Err(e.into());
-                }
-            };
-            if regular {
-                std::fs::rename(&target, path)
-                    .map_err(|e| Failure::failed(format!("{}: {e}", path.display())))?;
-            }
+            let n = shop.export_to_file(kind, path, system, args.force)?;
             writeln!(out, "{n} {kind} rows written to {}", path.display())?;
         }
     }

@@ -36,6 +36,9 @@ pub struct ReportArgs {
     /// Print what was written as JSON.
     #[arg(long)]
     pub json: bool,
+    /// Replace the file given with --out if it exists (otherwise an existing file is refused).
+    #[arg(long)]
+    pub force: bool,
 }
 
 fn parse_date(s: &str) -> Result<NaiveDate, String> {
@@ -56,6 +59,7 @@ pub fn run(shop: &Shop, args: &ReportArgs, out: &mut dyn std::io::Write) -> Resu
         to: args.to,
         paper: args.paper,
         prepared_by: args.by.clone(),
+        replace: args.force,
     };
     let summary = write_report(shop, &opts, &mut |_, _| true)?;
     if args.json {

@@ -5,7 +5,8 @@
 //! messages say `FILE:LINE: COLUMN: reason` in the file's own terms. By default the import is
 //! all-or-nothing: one bad row and nothing is written, with every bad row reported. With
 //! keep-going, good rows go in and each refused row is written to `FILE.rejects.csv` in the
-//! same format with a `reject_reason` column. A row whose key (unit + time, + kind for events,
+//! same format with a `reject_reason` column (written whole beside it and put in place when the
+//! import succeeds; an earlier rejects file stays when nothing is refused). A row whose key (unit + time, + kind for events,
 //! the unit tag for the register) is already stored adds nothing when the values it gives agree
 //! with the stored ones, and is refused when they differ: stored data is never overwritten.
 //! A `reject_reason` column (a corrected rejects file) is ignored; a line longer than 1 MiB
@@ -24,6 +25,7 @@ use crate::model::{
     Check, Confirmation, Event, EventKind, FilterState, Fluid, Id, Machine, OilLevel, PumpKind,
     Sample, SensitiveComponent, StrokeDirection, TimedStroke, Unit, ViscReading,
 };
+use crate::outfile::{Options, OutFile};
 use crate::physics::cleanliness::Iso4406Code;
 use crate::physics::viscosity::ISO_VG_GRADES;
 use crate::store::columns::{self, round_sig};
@@ -904,12 +906,14 @@ impl<'r> RowReader<'r> {
     }
 }
 
-/// Where the refused rows of a keep-going import go.
+/// Where the refused rows of a keep-going import go: a side file made on the first refused
+/// row and put in place over `path` only when the import succeeds (so an earlier rejects
+/// file stays until a new one replaces it, and a failed import leaves none).
 struct Rejects {
     path: PathBuf,
     delimiter: u8,
     header: ByteRecord,
-    writer: Option<csv::Writer<std::fs::File>>,
+    writer: Option<csv::Writer<OutFile>>,
 }
 
 impl Rejects {
@@ -919,11 +923,18 @@ impl Rejects {
             source: e.into(),
         };
         if self.writer.is_none() {
+            let out = OutFile::create(
+                &self.path,
+                Options {
+                    replace: true,
+                    devices_in_place: true,
+                    can_force: false,
+                },
+            )?;
             let mut w = csv::WriterBuilder::new()
                 .delimiter(self.delimiter)
                 .flexible(true)
-                .from_path(&self.path)
-                .map_err(|e| io(e, &self.path))?;
+                .from_writer(out);
             let mut head = self.header.clone();
             head.push_field(b"reject_reason");
             w.write_byte_record(&head).map_err(|e| io(e, &self.path))?;
@@ -940,14 +951,15 @@ impl Rejects {
         Ok(())
     }
 
+    /// Puts the rejects file in place (when a row was refused).
     fn finish(self) -> Result<Option<PathBuf>, ExchangeError> {
         match self.writer {
-            Some(mut w) => {
-                w.flush().map_err(|e| ExchangeError::Io {
+            Some(w) => {
+                let out = w.into_inner().map_err(|e| ExchangeError::Io {
                     path: self.path.clone(),
-                    source: e,
+                    source: e.into_error(),
                 })?;
-                Ok(Some(self.path))
+                Ok(Some(out.commit()?))
             }
             None => Ok(None),
         }
@@ -1087,16 +1099,6 @@ pub fn import_reader<R: Read>(
         }]));
     }
     let header = parse_header(kind, label, &rec).map_err(ExchangeError::Rows)?;
-    if let Some(path) = &rejects {
-        // A rejects file from an earlier run is replaced, not appended to or left stale. Only
-        // a regular file is removed: a device or pipe given as the target is left alone.
-        if std::fs::symlink_metadata(path).is_ok_and(|m| m.is_file()) {
-            std::fs::remove_file(path).map_err(|e| ExchangeError::Io {
-                path: path.clone(),
-                source: e,
-            })?;
-        }
-    }
     let mut rejects = rejects.map(|path| Rejects {
         path,
         delimiter,
@@ -1240,10 +1242,18 @@ pub fn import_reader<R: Read>(
         bulk.rollback();
         return Err(ExchangeError::Rows(errors));
     }
-    bulk.commit()?;
+    // The rejects are put in place before the rows are committed: a rejects file that cannot
+    // be written stops the import, so a refused row is never lost from view.
     if let Some(rj) = rejects {
-        summary.rejects_file = rj.finish()?;
+        match rj.finish() {
+            Ok(p) => summary.rejects_file = p,
+            Err(e) => {
+                bulk.rollback();
+                return Err(e);
+            }
+        }
     }
+    bulk.commit()?;
     Ok(summary)
 }
 

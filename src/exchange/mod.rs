@@ -141,6 +141,9 @@ pub enum ExchangeError {
     Write(std::io::Error),
     #[error(transparent)]
     Store(#[from] StoreError),
+    /// The rejects file could not be made.
+    #[error(transparent)]
+    Out(#[from] crate::outfile::OutFileError),
 }
 
 fn join_errors(errors: &[RowError]) -> String {

@@ -16,7 +16,8 @@ use super::ui::{ReportAdapter, ReportUnit};
 use super::{err_text, model, on, on_arg, s, Ctx};
 use crate::app::entry::Cancel;
 use crate::app::report::{
-    default_file_name, read_day, write_report, ReportOptions, ReportSummary, DEFAULT_PERIOD_DAYS,
+    default_out_path, out_is_taken, read_day, write_report, ReportOptions, ReportSummary,
+    DEFAULT_PERIOD_DAYS,
 };
 use crate::app::shop::Shop;
 use crate::app::AppError;
@@ -32,6 +33,8 @@ pub(crate) struct ReportState {
     cancel: Option<Arc<Cancel>>,
     /// Whether the period and file fields have been given their defaults.
     filled: bool,
+    /// A file that exists and that the user was asked about: writing to it again replaces it.
+    asked_replace: Option<PathBuf>,
     pub opener: Opener,
 }
 
@@ -40,6 +43,7 @@ impl Default for ReportState {
         ReportState {
             cancel: None,
             filled: false,
+            asked_replace: None,
             opener: Rc::new(open_with_desktop),
         }
     }
@@ -148,8 +152,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
             UnitSystem::Metric => 0,
             UnitSystem::Us => 1,
         });
-        a.set_out(s(default_folder(ctx)
-            .join(default_file_name(today))
+        a.set_out(s(default_out_path(&default_folder(ctx), today)
             .display()
             .to_string()));
         ctx.report.borrow_mut().filled = true;
@@ -223,9 +226,10 @@ fn options(ctx: &Ctx, a: &ReportAdapter<'_>) -> Result<ReportOptions, AppError> 
     }
     let mut out = PathBuf::from(a.get_out().trim());
     if out.as_os_str().is_empty() {
-        out = default_folder(ctx).join(default_file_name(
+        out = default_out_path(
+            &default_folder(ctx),
             to.unwrap_or_else(|| ctx.now().date_naive()),
-        ));
+        );
         a.set_out(s(out.display().to_string()));
     } else if out.extension().is_none() && !out.is_dir() {
         out.set_extension("pdf");
@@ -247,6 +251,7 @@ fn options(ctx: &Ctx, a: &ReportAdapter<'_>) -> Result<ReportOptions, AppError> 
             Paper::A4
         },
         prepared_by: a.get_by().trim().to_string(),
+        replace: false,
     })
 }
 
@@ -256,7 +261,7 @@ fn write(ctx: &Rc<Ctx>) {
     if a.get_running() {
         return;
     }
-    let opts = match options(ctx, &a) {
+    let mut opts = match options(ctx, &a) {
         Ok(o) => o,
         Err(e) => {
             a.set_message(s(format!("Not written: {}", err_text(&e))));
@@ -264,6 +269,21 @@ fn write(ctx: &Rc<Ctx>) {
             return;
         }
     };
+    // An existing file is replaced only when the user, told so, writes to it again.
+    if out_is_taken(&opts.out) {
+        let asked = ctx.report.borrow().asked_replace.as_ref() == Some(&opts.out);
+        if !asked {
+            a.set_message(s(format!(
+                "{} already exists. Press Write report again to replace it, or change the file name.",
+                opts.out.display()
+            )));
+            a.set_message_level(1);
+            ctx.report.borrow_mut().asked_replace = Some(opts.out.clone());
+            return;
+        }
+        opts.replace = true;
+    }
+    ctx.report.borrow_mut().asked_replace = None;
     a.set_message(s(""));
     a.set_progress_text(s("writing"));
     let db = ctx.db_path.clone();
