@@ -1787,6 +1787,17 @@ fn side_files_are_never_written_through_a_link_planted_at_their_name() {
     );
     assert!(!is_link(&linked) && linked.is_file());
 
+    // The lock file of a new or upgrading shop: a link there is refused, not followed.
+    let new = dir.path().join("new.sqlite");
+    symlink(&dangling, dir.path().join("new.sqlite.upgrading")).unwrap();
+    let out = run(&new, &["init", "--name", "New"]);
+    let err = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(
+        err.contains("new.sqlite.upgrading") && err.contains("link"),
+        "{err}"
+    );
+
     assert_eq!(std::fs::read_to_string(&victim).unwrap(), "precious");
     assert!(
         std::fs::symlink_metadata(&dangling).is_err(),
@@ -1917,4 +1928,65 @@ fn a_report_or_export_that_cannot_be_written_whole_leaves_no_file() {
         assert!(!target.exists(), "{a:?} left {}", target.display());
         assert_eq!(side_files(dir.path()), Vec::<String>::new(), "{a:?}");
     }
+}
+
+#[test]
+fn a_killed_backup_leaves_nothing_by_its_name_and_the_next_one_clears_what_it_left() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let big = dir.path().join("big.csv");
+    big_checks_file(&big, 6000, 400);
+    ok(&db, &["import", "checks", path_str(&big)]);
+    let copies = dir.path().join("copies");
+    std::fs::create_dir(&copies).unwrap();
+    let t0 = std::time::Instant::now();
+    ok(
+        &db,
+        &["backup", "--out", path_str(&copies.join("timing.sqlite"))],
+    );
+    let full = t0.elapsed();
+    let mut seed = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .unwrap()
+        .as_nanos() as u64
+        | 1;
+    eprintln!("backup kill test: seed {seed}, a whole backup takes {full:?}");
+    // Until 3 kills have left a side file, at most 150 rounds.
+    let (mut landed, mut rounds) = (0, 0);
+    while landed < 3 && rounds < 150 {
+        seed ^= seed << 13;
+        seed ^= seed >> 7;
+        seed ^= seed << 17;
+        let copy = copies.join(format!("copy-{rounds}.sqlite"));
+        rounds += 1;
+        let mut child = sumpbook()
+            .arg("--db")
+            .arg(&db)
+            .args(["backup", "--out", path_str(&copy)])
+            .stdout(std::process::Stdio::null())
+            .stderr(std::process::Stdio::null())
+            .spawn()
+            .unwrap();
+        std::thread::sleep(full.mul_f64((seed % 1000) as f64 / 1000.0));
+        child.kill().ok();
+        child.wait().unwrap();
+        if !side_files(&copies).is_empty() {
+            landed += 1;
+        }
+        // A file by the backup's name is a whole backup.
+        if copy.exists() {
+            assert_eq!(integrity(&copy), "ok");
+            assert_eq!(count(&copy, "checks"), count(&db, "checks"));
+        }
+    }
+    eprintln!("backup kill test: {landed} of {rounds} kills left a side file");
+    assert!(
+        landed >= 3,
+        "only {landed} of {rounds} kills landed mid-backup"
+    );
+    ok(
+        &db,
+        &["backup", "--out", path_str(&copies.join("next.sqlite"))],
+    );
+    assert_eq!(side_files(&copies), Vec::<String>::new());
 }

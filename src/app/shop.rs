@@ -222,12 +222,6 @@ impl Shop {
 
     /// Writes a consistent copy of the shop to `dest` (a new file) while it stays in use.
     pub fn backup(&self, dest: &Path) -> Result<(), AppError> {
-        if dest.exists() {
-            return Err(AppError::BadInput(format!(
-                "{}: the file exists; choose a new name",
-                dest.display()
-            )));
-        }
         self.store.backup_to(dest).map_err(AppError::from)
     }
 
@@ -288,6 +282,9 @@ impl From<ExchangeError> for AppError {
 /// Whether a store error is about the file or the input the user gave (a wrong, damaged or
 /// locked file, a refused value): exit code 2.
 pub(crate) fn store_error_is_input(e: &StoreError) -> bool {
+    if let StoreError::Out(o) = e {
+        return o.is_input();
+    }
     matches!(
         e,
         StoreError::Missing { .. }

@@ -122,6 +122,9 @@ pub enum StoreError {
     },
     #[error("database error: {0}")]
     Sqlite(rusqlite::Error),
+    /// A file beside the shop (a backup) could not be made.
+    #[error(transparent)]
+    Out(#[from] crate::outfile::OutFileError),
 }
 
 impl From<rusqlite::Error> for StoreError {
@@ -512,51 +515,64 @@ impl Store {
     /// Writes a consistent copy of the whole shop to `dest` with SQLite's online backup, while
     /// other readers and writers may go on using the file.
     ///
-    /// The copy is written under a temporary name beside `dest` and renamed when complete, so a
-    /// file by the backup's name is always a whole backup, even when this process is killed
-    /// midway; a failed copy leaves nothing behind.
+    /// The copy is written to a new side file beside `dest` (`crate::outfile`: random name,
+    /// opened without following links) and renamed when complete without overwriting, so a
+    /// file by the backup's name is always a whole backup; a failed copy leaves nothing behind.
     pub fn backup_to(&self, dest: &Path) -> Result<(), StoreError> {
-        let exists = || StoreError::CannotOpen {
-            path: dest.to_path_buf(),
-            reason: "the file already exists; choose a new name".into(),
+        use rusqlite::backup::{Backup, StepResult};
+        let out = crate::outfile::OutFile::create(
+            dest,
+            crate::outfile::Options {
+                replace: false,
+                devices_in_place: false,
+                can_force: false,
+            },
+        )?;
+        let Some(tmp) = out.side_path().map(Path::to_path_buf) else {
+            return Err(StoreError::CannotOpen {
+                path: dest.to_path_buf(),
+                reason: "not a regular file".into(),
+            });
         };
-        if dest.exists() {
-            return Err(exists());
-        }
-        let mut name = dest
-            .file_name()
-            .map(|n| n.to_os_string())
-            .unwrap_or_default();
-        name.push(format!(".partial-{}", std::process::id()));
-        let tmp = dest.with_file_name(name);
-        let remove_tmp = || {
-            for suffix in ["", "-journal", "-wal", "-shm"] {
+        let remove_sides = || {
+            for suffix in ["-journal", "-wal", "-shm"] {
                 let mut p = tmp.as_os_str().to_os_string();
                 p.push(suffix);
                 // Nothing to do if it is not there.
                 let _ = std::fs::remove_file(PathBuf::from(p));
             }
         };
-        remove_tmp();
         self.count();
-        if let Err(e) = self.conn.backup(rusqlite::MAIN_DB, &tmp, None) {
-            remove_tmp();
+        let copied = (|| -> Result<(), rusqlite::Error> {
+            let mut dst = Connection::open_with_flags(
+                &tmp,
+                OpenFlags::SQLITE_OPEN_READ_WRITE
+                    | OpenFlags::SQLITE_OPEN_NOFOLLOW
+                    | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+            )?;
+            let backup = Backup::new(&self.conn, &mut dst)?;
+            loop {
+                match backup.step(100)? {
+                    StepResult::More => {}
+                    StepResult::Done => return Ok(()),
+                    _ => {
+                        return Err(rusqlite::Error::SqliteFailure(
+                            rusqlite::ffi::Error::new(rusqlite::ffi::SQLITE_BUSY),
+                            Some("the shop is locked by another program".into()),
+                        ))
+                    }
+                }
+            }
+        })();
+        remove_sides();
+        if let Err(e) = copied {
             return Err(StoreError::CannotOpen {
                 path: dest.to_path_buf(),
                 reason: e.to_string(),
             });
         }
-        if dest.exists() {
-            remove_tmp();
-            return Err(exists());
-        }
-        std::fs::rename(&tmp, dest).map_err(|e| {
-            remove_tmp();
-            StoreError::Io {
-                path: dest.to_path_buf(),
-                source: e,
-            }
-        })
+        out.commit()?;
+        Ok(())
     }
 
     /// `PRAGMA integrity_check` = ok.
@@ -699,12 +715,33 @@ impl MigrationLock {
             path: path.clone(),
             source: e,
         };
-        let file = std::fs::OpenOptions::new()
-            .create(true)
-            .truncate(false)
-            .write(true)
-            .open(&path)
-            .map_err(io)?;
+        // Every process must find the same name, so it cannot be random; instead a link
+        // planted there is refused (O_NOFOLLOW), nothing is ever written to the file, and only
+        // a regular file is locked (a pipe would block, a device is not ours).
+        let mut opts = std::fs::OpenOptions::new();
+        opts.create(true).truncate(false).write(true);
+        #[cfg(unix)]
+        {
+            use std::os::unix::fs::OpenOptionsExt;
+            opts.custom_flags(libc::O_NOFOLLOW | libc::O_NONBLOCK)
+                .mode(0o600);
+        }
+        let file = opts.open(&path).map_err(|e| {
+            if std::fs::symlink_metadata(&path).is_ok_and(|m| m.file_type().is_symlink()) {
+                StoreError::CannotOpen {
+                    path: path.clone(),
+                    reason: "a link is in the place of sumpbook's lock file; remove it".into(),
+                }
+            } else {
+                io(e)
+            }
+        })?;
+        if !file.metadata().map_err(io)?.is_file() {
+            return Err(StoreError::CannotOpen {
+                path: path.clone(),
+                reason: "not a regular file in the place of sumpbook's lock file; remove it".into(),
+            });
+        }
         file.lock().map_err(io)?;
         Ok(MigrationLock { file, path })
     }
