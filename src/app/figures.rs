@@ -24,6 +24,7 @@ pub fn unit(dim: Dim, sys: UnitSystem) -> &'static str {
         (Dim::Ppm, _) => "ppm",
         (Dim::AcidNumber, _) => "mg KOH/g",
         (Dim::RangeNumber, _) => "",
+        (Dim::Days, _) => "days",
     }
 }
 
@@ -64,6 +65,7 @@ pub fn text(dim: Dim, si: f64, sys: UnitSystem) -> String {
         Dim::Ppm => format!("{si:.0} ppm"),
         Dim::AcidNumber => format!("{si:.2} mg KOH/g"),
         Dim::RangeNumber => format!("{si:+.0}"),
+        Dim::Days => format!("{si:.0} days"),
     }
 }
 
@@ -82,6 +84,7 @@ pub fn change(dim: Dim, d: f64, sys: UnitSystem) -> String {
         Dim::Ppm => format!("{d:+.1} ppm"),
         Dim::AcidNumber => format!("{d:+.3} mg KOH/g"),
         Dim::RangeNumber => format!("{d:+.2}"),
+        Dim::Days => format!("{d:+.0} days"),
     }
 }
 

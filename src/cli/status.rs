@@ -225,7 +225,7 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus) -> Result<(), Failure> {
     let cols: [(&str, usize); 11] = [
         ("UNIT", 10),
         ("MACHINE", 9),
-        ("STATE", 7),
+        ("STATE", 15),
         ("LOST", 8),
         ("LEAK", 7),
         ("HEAT+", 9),

@@ -1,9 +1,10 @@
 //! Eras and baselines of one unit.
 //!
 //! An era starts at commissioning (the unit's first check), at each fluid change and at each
-//! rebuild; its baseline is the mean and spread of the first N checks of the era, or a value a
-//! person entered by hand, and it always says where it came from. Pure: records in, eras and
-//! baselines out.
+//! rebuild; its baseline is the median and robust spread of the era's first checks — formed
+//! from a few and growing with each check until it is well determined — or a value a person
+//! entered by hand, and it always says where it came from and how sure it is. Pure: records
+//! in, eras and baselines out.
 
 use chrono::{DateTime, Utc};
 use serde::{Deserialize, Serialize};
@@ -152,7 +153,7 @@ impl BaselineIndicator {
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "kind", rename_all = "snake_case")]
 pub enum BaselineSource {
-    /// Mean and sample standard deviation of these checks (ids), the first of the era.
+    /// Median and scaled median absolute deviation of these checks (ids), the first of the era.
     Checks {
         check_ids: Vec<Id>,
         from: DateTime<Utc>,
@@ -168,8 +169,15 @@ pub struct BaselineValue {
     pub indicator: BaselineIndicator,
     /// Reference value, SI.
     pub value: f64,
-    /// One standard deviation, SI, as measured or entered (before any floor).
+    /// One standard deviation, SI, as measured (1.4826 × the median absolute deviation) or
+    /// entered (before any floor).
     pub spread: f64,
+    /// Standard error of `value` itself, SI, from the spread and the number of checks (0 for a
+    /// value entered by hand, which is taken as known).
+    pub value_se: f64,
+    /// Whether the baseline has all the checks it takes (`baseline_checks_max`); until then it
+    /// grows with each check of the era.
+    pub complete: bool,
     pub source: BaselineSource,
 }
 
@@ -203,20 +211,37 @@ pub fn mean_and_spread(values: &[f64]) -> Option<(f64, f64)> {
     Some((mean, (ss / (n - 1.0)).sqrt()))
 }
 
+/// √(π/2): the standard error of the median of n normal values is about √(π/2) · σ/√n, the
+/// median's asymptotic efficiency against the mean being 2/π (e.g. M. G. Kendall and A. Stuart,
+/// *The Advanced Theory of Statistics*, vol. 1, sampling distribution of the median).
+pub const MEDIAN_SE_FACTOR: f64 = 1.253_314_137_315_500_3;
+
+/// Median, robust spread (1.4826 · MAD) and the standard error of the median.
+pub fn robust_centre(values: &[f64]) -> Option<(f64, f64, f64)> {
+    let (m, s) = crate::physics::stats::median_and_mad_sigma(values)?;
+    let se = MEDIAN_SE_FACTOR * s / (values.len() as f64).sqrt();
+    Some((m, s, se))
+}
+
 /// Values of one indicator at the era's checks, in time order: (check id, time, SI value).
 pub type IndicatorPoints = Vec<(Id, DateTime<Utc>, f64)>;
 
 /// Builds an era's baseline.
 ///
-/// `samples` gives, per indicator, the values of the era's checks in time order with the check
-/// id and time; the first `n` of them form the computed baseline (none while fewer exist). A
-/// hand-entered value for the era (the latest entered, if several) replaces the computed one.
+/// `per_indicator` gives, per indicator, the values of the era's checks in time order with the
+/// check id and time. The baseline forms once `n_min` of them exist, from all there are up to
+/// `n_max` (the first `n_max` after that): a median and a robust spread, which one gross
+/// reading cannot drag, and the standard error of the median, which the detectors add to
+/// their limits while the baseline is young. A hand-entered value for the era (the latest
+/// entered, if several) replaces the computed one.
 pub fn build_baseline(
     era: &Era,
-    n: usize,
+    n_min: usize,
+    n_max: usize,
     per_indicator: &[(BaselineIndicator, IndicatorPoints)],
     manual: &[ManualBaseline],
 ) -> Baseline {
+    let n_max = n_max.max(n_min);
     let mut values = Vec::new();
     for &indicator in BaselineIndicator::ALL {
         let by_hand = manual
@@ -233,6 +258,8 @@ pub fn build_baseline(
                 indicator,
                 value: m.value,
                 spread: m.spread.abs(),
+                value_se: 0.0,
+                complete: true,
                 source: BaselineSource::Manual {
                     by: m.entered_by.clone(),
                     at: m.entered_at,
@@ -243,18 +270,21 @@ pub fn build_baseline(
         let Some((_, points)) = per_indicator.iter().find(|(i, _)| *i == indicator) else {
             continue;
         };
-        if n == 0 || points.len() < n {
+        if n_min == 0 || points.len() < n_min {
             continue;
         }
+        let n = points.len().min(n_max);
         let first = &points[..n];
         let vals: Vec<f64> = first.iter().map(|p| p.2).collect();
-        let Some((value, spread)) = mean_and_spread(&vals) else {
+        let Some((value, spread, value_se)) = robust_centre(&vals) else {
             continue;
         };
         values.push(BaselineValue {
             indicator,
             value,
             spread,
+            value_se,
+            complete: n == n_max,
             source: BaselineSource::Checks {
                 check_ids: first.iter().map(|p| p.0).collect(),
                 from: first[0].1,
@@ -311,7 +341,46 @@ mod tests {
     }
 
     #[test]
-    fn baseline_is_mean_and_sample_spread_of_the_first_n() {
+    fn baseline_is_the_median_and_robust_spread_and_grows_to_its_maximum() {
+        let era = Era {
+            start: t("2024-01-01"),
+            end: None,
+            started_by: EraStart::Commissioning,
+            event_id: None,
+            fluid_id: None,
+        };
+        let pts: Vec<(Id, DateTime<Utc>, f64)> = [10.0, 12.0, 11.0, 13.0, 30.0, 11.5, 9.0]
+            .iter()
+            .enumerate()
+            .map(|(i, v)| (i as Id, t("2024-01-01"), *v))
+            .collect();
+        let per = |k: usize| vec![(BaselineIndicator::HeatRise, pts[..k].to_vec())];
+        // Worked by hand: the first 5 (10, 12, 11, 13, 30) have median 12; deviations 2, 0, 1,
+        // 1, 18 → MAD 1, spread 1.4826; the 30 moves neither (a mean would be 15.2).
+        let b = build_baseline(&era, 4, 6, &per(5), &[]);
+        let v = b.get(BaselineIndicator::HeatRise).unwrap();
+        assert!((v.value - 12.0).abs() < 1e-12);
+        assert!((v.spread - crate::physics::stats::MAD_TO_SIGMA).abs() < 1e-12);
+        assert!((v.value_se - MEDIAN_SE_FACTOR * v.spread / 5f64.sqrt()).abs() < 1e-12);
+        assert!(!v.complete);
+        // It grows to 6 and stops there: the 7th check is not in it.
+        let b = build_baseline(&era, 4, 6, &per(7), &[]);
+        let v = b.get(BaselineIndicator::HeatRise).unwrap();
+        assert!(v.complete);
+        match &v.source {
+            BaselineSource::Checks { check_ids, .. } => {
+                assert_eq!(check_ids, &vec![0, 1, 2, 3, 4, 5])
+            }
+            other => panic!("unexpected {other:?}"),
+        }
+        // Median of 10, 12, 11, 13, 30, 11.5 = (11.5 + 12)/2 = 11.75.
+        assert!((v.value - 11.75).abs() < 1e-12);
+        // Three checks: not formed yet.
+        assert!(build_baseline(&era, 4, 6, &per(3), &[]).is_empty());
+    }
+
+    #[test]
+    fn mean_and_sample_spread_by_hand() {
         let era = Era {
             start: t("2024-01-01"),
             end: None,
@@ -324,19 +393,13 @@ mod tests {
             .enumerate()
             .map(|(i, v)| (i as Id, t("2024-01-01"), *v))
             .collect();
-        let b = build_baseline(&era, 4, &[(BaselineIndicator::HeatRise, pts.clone())], &[]);
-        let v = b.get(BaselineIndicator::HeatRise).unwrap();
+        let _ = era;
+        let vals: Vec<f64> = pts[..4].iter().map(|p| p.2).collect();
+        let (m, s) = mean_and_spread(&vals).unwrap();
         // Worked by hand: mean (10+12+11+13)/4 = 11.5; deviations −1.5, 0.5, −0.5, 1.5;
         // squares sum 2.25+0.25+0.25+2.25 = 5; s = √(5/3) = 1.290994.
-        assert!((v.value - 11.5).abs() < 1e-12);
-        assert!((v.spread - (5.0f64 / 3.0).sqrt()).abs() < 1e-12);
-        match &v.source {
-            BaselineSource::Checks { check_ids, .. } => assert_eq!(check_ids, &vec![0, 1, 2, 3]),
-            other => panic!("unexpected {other:?}"),
-        }
-        // Not yet enough checks: no baseline.
-        let b = build_baseline(&era, 6, &[(BaselineIndicator::HeatRise, pts)], &[]);
-        assert!(b.get(BaselineIndicator::HeatRise).is_none());
+        assert!((m - 11.5).abs() < 1e-12);
+        assert!((s - (5.0f64 / 3.0).sqrt()).abs() < 1e-12);
     }
 
     #[test]
@@ -363,6 +426,7 @@ mod tests {
         let b = build_baseline(
             &era,
             4,
+            8,
             &[(BaselineIndicator::HeatRise, pts)],
             &[m(1, 20.0, "2024-02-01"), m(2, 21.0, "2024-03-01")],
         );

@@ -8,7 +8,7 @@ use chrono::{DateTime, NaiveDate, Utc};
 use serde::{Deserialize, Serialize};
 
 use super::baseline::BaselineIndicator;
-use super::indicators::{CheckPoint, Computed, SamplePoint};
+use super::indicators::{CheckPoint, Computed, Dim, Restart, SamplePoint};
 use super::limits::{LimitKey, Limits};
 use super::plan::WorkItem;
 use super::text::{flow, num, tdiff, temp, visc};
@@ -105,6 +105,22 @@ pub struct Flag {
     pub next_step: String,
     pub acknowledged: bool,
     pub acknowledgement: Option<AckInfo>,
+    /// The figure that raised it, in the form a tile carries figures (SI for physical
+    /// dimensions), so every face shows the same number for it.
+    pub figure: Option<Figure>,
+    /// The last maintenance in the era that restarted this flag's detectors: the flag is
+    /// judged on what was read after it.
+    pub restarted: Option<Restart>,
+}
+
+/// A flag's figure: the judged value, the limit it reached and the baseline it is measured
+/// from, all in `dim` (SI for physical dimensions, as `Tile`).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Figure {
+    pub dim: Dim,
+    pub value: f64,
+    pub limit: Option<f64>,
+    pub baseline: Option<f64>,
 }
 
 /// One graded point of an indicator's history.
@@ -150,23 +166,34 @@ fn grade(limits: &Limits, key: LimitKey, value: f64) -> (State, Option<f64>) {
     (s, limit)
 }
 
-fn graded_checks(
+/// Grades the confirmed level (`level`) of a raw reading (`raw`) at each check: a check
+/// with a reading but no level yet (the first after a restart) is steady, which ends the run.
+fn graded_levels(
     points: &[CheckPoint],
     limits: &Limits,
     key: LimitKey,
-    f: fn(&CheckPoint) -> Option<f64>,
+    raw: fn(&CheckPoint) -> Option<f64>,
+    level: fn(&CheckPoint) -> Option<f64>,
 ) -> Vec<Graded> {
     points
         .iter()
-        .filter_map(|p| {
-            let v = f(p)?;
-            let (state, limit) = grade(limits, key, v);
-            Some(Graded {
+        .filter(|p| raw(p).is_some())
+        .map(|p| match level(p) {
+            Some(v) => {
+                let (state, limit) = grade(limits, key, v);
+                Graded {
+                    at: p.at,
+                    state,
+                    value: Some(v),
+                    limit,
+                }
+            }
+            None => Graded {
                 at: p.at,
-                state,
-                value: Some(v),
-                limit,
-            })
+                state: State::Steady,
+                value: None,
+                limit: None,
+            },
         })
         .collect()
 }
@@ -233,7 +260,38 @@ fn new_flag(
         next_step,
         acknowledged: false,
         acknowledgement: None,
+        figure: figure_of(kind, g),
+        restarted: None,
     }
+}
+
+/// The figure of a flag from its graded point (value and limit in the flag's `unit`).
+fn figure_of(kind: FlagKind, g: &Graded) -> Option<Figure> {
+    let dim = match kind {
+        FlagKind::LostFlow | FlagKind::CaseDrain | FlagKind::Viscosity => Dim::Percent,
+        FlagKind::LeakConductance => Dim::Ratio,
+        FlagKind::HeatRise => Dim::TempDiff,
+        FlagKind::ReservoirTemp => Dim::Temperature,
+        FlagKind::Cleanliness => Dim::RangeNumber,
+        FlagKind::Water => Dim::Ppm,
+        FlagKind::Acid => Dim::AcidNumber,
+        FlagKind::Overdue => Dim::Days,
+        // Filter and oil level are read, not measured; drift sets its own figure.
+        FlagKind::Filter | FlagKind::OilLevel | FlagKind::Drift => return None,
+    };
+    let si = |v: f64| {
+        if dim == Dim::Temperature {
+            v + crate::units::KELVIN_AT_0C
+        } else {
+            v
+        }
+    };
+    Some(Figure {
+        dim,
+        value: si(g.value?),
+        limit: g.limit.map(si),
+        baseline: None,
+    })
 }
 
 /// Raises the condition flags of one unit (all kinds but `overdue`, which comes from the plan).
@@ -256,17 +314,38 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
     // Checks against the era baseline (median of the last 3).
     push(
         FlagKind::LostFlow,
-        graded_checks(&c.checks, limits, LimitKey::LostFlowPct, |p| {
-            p.lost_flow_median_pct
-        }),
+        graded_levels(
+            &c.checks,
+            limits,
+            LimitKey::LostFlowPct,
+            |p| p.lost_flow_pct,
+            |p| p.lost_flow_median_pct,
+        ),
         &|g| {
-            let now = c.checks.iter().rev().find_map(|p| p.effective_flow);
-            let from = match (now, base(BaselineIndicator::EffectiveFlow)) {
+            // At the reference conditions (the baseline's oil viscosity and pressure) where the
+            // flow can be corrected to them, as the lost flow itself is.
+            let corrected = base(BaselineIndicator::CorrectedFlow).is_some();
+            let now = if corrected {
+                c.checks.iter().rev().find_map(|p| p.corrected_flow)
+            } else {
+                c.checks.iter().rev().find_map(|p| p.effective_flow)
+            };
+            let b = if corrected {
+                base(BaselineIndicator::CorrectedFlow)
+            } else {
+                base(BaselineIndicator::EffectiveFlow)
+            };
+            let from = match (now, b) {
                 (Some(n), Some(b)) => format!(" ({} against {})", flow(n, sys), flow(b, sys)),
                 _ => String::new(),
             };
+            let what = if corrected {
+                "Effective flow at baseline oil and pressure"
+            } else {
+                "Effective flow"
+            };
             format!(
-                "Effective flow is down {} % on the baseline{from} over the last 3 checks: check the pump for wear \
+                "{what} is down {} % on the baseline{from} over the last 3 checks: check the pump for wear \
                  (case drain, inlet, noise) and the relief valve for bypass first, then the cylinder seals.",
                 pct(g.value)
             )
@@ -278,9 +357,13 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
         if c.leak_resolved == Some(false) {
             Vec::new()
         } else {
-            graded_checks(&c.checks, limits, LimitKey::LeakConductanceRatio, |p| {
-                p.leak_ratio_median
-            })
+            graded_levels(
+                &c.checks,
+                limits,
+                LimitKey::LeakConductanceRatio,
+                |p| p.leak_ratio,
+                |p| p.leak_ratio_median,
+            )
         },
         &|g| {
             format!(
@@ -293,9 +376,13 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
     );
     push(
         FlagKind::CaseDrain,
-        graded_checks(&c.checks, limits, LimitKey::CaseDrainRisePct, |p| {
-            p.case_drain_rise_median_pct
-        }),
+        graded_levels(
+            &c.checks,
+            limits,
+            LimitKey::CaseDrainRisePct,
+            |p| p.case_drain_rise_pct,
+            |p| p.case_drain_rise_median_pct,
+        ),
         &|g| {
             format!(
                 "Case-drain flow is up {} % on the baseline over the last 3 checks: the pump is wearing inside; \
@@ -306,9 +393,13 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
     );
     push(
         FlagKind::HeatRise,
-        graded_checks(&c.checks, limits, LimitKey::HeatRiseDriftK, |p| {
-            p.heat_rise_drift_median
-        }),
+        graded_levels(
+            &c.checks,
+            limits,
+            LimitKey::HeatRiseDriftK,
+            |p| p.heat_rise_drift,
+            |p| p.heat_rise_drift_median,
+        ),
         &|g| {
             format!(
                 "The oil runs {} hotter over ambient than at baseline (median of the last 3 checks): clean the cooler \
@@ -318,14 +409,22 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
         },
     );
 
-    // Reservoir temperature: every check, against absolute limits.
+    // Reservoir temperature: every check, against absolute limits. A single reading at act
+    // shows watch until the next check confirms it; above the ceiling it is act at once.
     let ceiling = limits.get(LimitKey::ReservoirTempCeilingC);
+    let mut prev_act = false;
     let temps: Vec<Graded> = h
         .checks
         .iter()
         .filter_map(|ch| {
             let t = ch.reservoir_temp?.c();
             let (mut state, mut limit) = grade(limits, LimitKey::ReservoirTempC, t);
+            let at_act = state == State::Act;
+            if at_act && !prev_act {
+                state = State::Watch;
+                limit = limits.get(LimitKey::ReservoirTempC).watch.or(limit);
+            }
+            prev_act = at_act;
             if ceiling.grade(t) == Some(true) {
                 state = State::Act;
                 limit = ceiling.act;
@@ -401,13 +500,33 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             }
         )
     });
+    // Cleanliness: the samples since the last filter change of the era (those before it no
+    // longer stand for the oil).
+    let filtered_since = c
+        .restarts
+        .iter()
+        .filter(|r| r.event == EventKind::FilterChange)
+        .map(|r| r.at)
+        .max();
+    let clean_samples: Vec<SamplePoint> = c
+        .samples
+        .iter()
+        .filter(|s| filtered_since.is_none_or(|f| s.at > f))
+        .cloned()
+        .collect();
     push(
         FlagKind::Cleanliness,
-        graded_samples(&c.samples, limits, LimitKey::CleanlinessOverTarget, |s| {
-            s.over_target_max.map(f64::from)
-        }),
+        graded_samples(
+            &clean_samples,
+            limits,
+            LimitKey::CleanlinessOverTarget,
+            |s| s.over_target_max.map(f64::from),
+        ),
         &|g| {
-            let s = c.samples.iter().rev().find(|s| s.over_target_max.is_some());
+            let s = clean_samples
+                .iter()
+                .rev()
+                .find(|s| s.over_target_max.is_some());
             let code = s
                 .and_then(|s| s.code)
                 .map(|c| c.to_string())
@@ -595,6 +714,41 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
         format!("{what}: a small steady shift, not noise — look at it now, before it reaches the limits.")
     });
 
+    // The drift flag's figure: the EWMA of the indicator that drifted, its limit and baseline.
+    if let Some(f) = out.iter_mut().find(|f| f.kind == FlagKind::Drift) {
+        let p = c.checks.iter().rev().find(|p| !p.drift.is_empty());
+        if let Some(d) = p.and_then(|p| p.drift.iter().max_by_key(|d| d.run)) {
+            let dim = match d.indicator {
+                BaselineIndicator::HeatRise => Dim::TempDiff,
+                BaselineIndicator::LeakConductance => Dim::Ratio,
+                _ => Dim::Flow,
+            };
+            f.figure = Some(Figure {
+                dim,
+                value: d.ewma,
+                limit: Some(d.ewma_limit),
+                baseline: c.baseline.get(d.indicator).map(|b| b.value),
+            });
+        }
+    }
+    // Baselines of the figures measured against one, and the restart each flag follows.
+    for f in out.iter_mut() {
+        if let Some(fig) = f.figure.as_mut() {
+            fig.baseline = fig.baseline.or(match f.kind {
+                FlagKind::LostFlow | FlagKind::CaseDrain | FlagKind::Viscosity => Some(0.0),
+                FlagKind::LeakConductance => Some(1.0),
+                FlagKind::HeatRise => Some(0.0),
+                _ => None,
+            });
+        }
+        f.restarted = c
+            .restarts
+            .iter()
+            .rev()
+            .find(|r| r.flag_kinds().contains(&f.kind))
+            .cloned();
+    }
+
     out
 }
 
@@ -729,6 +883,8 @@ mod tests {
             next_step: String::new(),
             acknowledged: false,
             acknowledgement: None,
+            figure: None,
+            restarted: None,
         }
     }
 

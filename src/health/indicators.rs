@@ -143,6 +143,11 @@ pub struct Indicators {
     pub top_up_l_per_100h: Option<f64>,
     pub oil_equivalent_hours: Option<f64>,
     pub era_run_hours: Option<f64>,
+    /// Leak conductance now (the confirmed level of the last checks), m³/s · m²/s / Pa, with
+    /// its standard error; and the standard error of `leak_conductance_ratio`.
+    pub leak_conductance: Option<f64>,
+    pub leak_conductance_se: Option<f64>,
+    pub leak_conductance_ratio_se: Option<f64>,
 }
 
 /// What `compute` hands to the flag and plan steps.
@@ -168,6 +173,11 @@ pub struct Computed {
     pub leak_resolved: Option<bool>,
     /// How many checks with a reading a computed baseline needs before it is formed.
     pub baseline_needs: usize,
+    /// Displacement and leak conductance fitted over the baseline checks, where the era's
+    /// spread of p/ν resolves them.
+    pub fit: Option<hyd::LeakageFit>,
+    /// Maintenance in the era that restarted detectors and flags, in time order.
+    pub restarts: Vec<Restart>,
 }
 
 /// The mean oil viscosity and pressure of the baseline checks: corrected flows are the flows
@@ -233,14 +243,6 @@ pub fn compute(
                 (Some(w), Some(t)) => Some(w.at(t)).filter(|v| v.si().is_finite() && v.si() > 0.0),
                 _ => None,
             };
-            // Laminar gap leakage Q_leak ∝ Δp/μ, so (Q_rated − Q)·ν/p stays put while only the
-            // oil temperature moves (Hagen–Poiseuille gap flow).
-            let leak = match (rated, q, nu, p) {
-                (Some(r), Some(q), Some(nu), Some(p)) => {
-                    hyd::leak_conductance(r, q, nu, p).ok().map(|g| g.si())
-                }
-                _ => None,
-            };
             CheckPoint {
                 check_id: c.id,
                 at: c.taken_at,
@@ -262,7 +264,6 @@ pub fn compute(
                     _ => None,
                 },
                 viscosity_at_temp: nu.map(|v| v.si()),
-                leak_conductance: leak,
                 case_drain: c.case_drain.map(|f| f.si()).filter(|f| *f >= 0.0),
                 filter: c.filter,
                 oil_level: c.oil_level,
@@ -271,35 +272,66 @@ pub fn compute(
         })
         .collect();
 
-    // The reference conditions: mean viscosity and pressure of the era's first N checks that
-    // have both. Leakage flow goes as p/ν (laminar gaps), so a leakage seen at (ν, p) would be
-    // (ν/ν_ref)·(p_ref/p) times as large at the reference conditions.
-    let n = limits.value(LimitKey::BaselineChecks).round().max(0.0) as usize;
-    let cond: Vec<(f64, f64)> = points
+    // The baseline forms from the era's first `n_min` checks with a reading and grows to
+    // `n_max`.
+    let n_min = limits.value(LimitKey::BaselineChecks).round().max(0.0) as usize;
+    let n_max = (limits.value(LimitKey::BaselineChecksMax).round().max(0.0) as usize).max(n_min);
+
+    // The reference conditions: mean viscosity and pressure of the checks the baseline is
+    // formed from. Leakage flow goes as p/ν (laminar gaps), so a leakage seen at (ν, p) would
+    // be (ν/ν_ref)·(p_ref/p) times as large at the reference conditions.
+    let cond: Vec<(f64, f64, Option<f64>)> = points
         .iter()
-        .filter_map(|p| Some((p.viscosity_at_temp?, p.pressure?)))
-        .take(n)
+        .filter_map(|p| Some((p.viscosity_at_temp?, p.pressure?, p.effective_flow)))
+        .take(n_max)
         .collect();
-    let reference = (n > 0 && cond.len() == n).then(|| Reference {
-        viscosity: cond.iter().map(|c| c.0).sum::<f64>() / n as f64,
-        pressure: cond.iter().map(|c| c.1).sum::<f64>() / n as f64,
+    let reference = (n_min > 0 && cond.len() >= n_min).then(|| Reference {
+        viscosity: cond.iter().map(|c| c.0).sum::<f64>() / cond.len() as f64,
+        pressure: cond.iter().map(|c| c.1).sum::<f64>() / cond.len() as f64,
     });
+    // Displacement and leakage separated by the era's own spread of p/ν where it allows
+    // (`physics::hydraulics::fit_leakage`), else the rated flow stands in for the displacement.
+    let fit = reference.and_then(|_| {
+        let pts: Vec<(Flow, Viscosity, Pressure)> = cond
+            .iter()
+            .filter_map(|c| Some((Flow(c.2?), Viscosity(c.0), Pressure(c.1))))
+            .collect();
+        (pts.len() >= n_min)
+            .then(|| hyd::fit_leakage(&pts))
+            .flatten()
+    });
+    let displacement = fit.map(|f| f.displacement).or(rated.map(|r| r.si()));
     for p in points.iter_mut() {
         let scale = match (reference, p.viscosity_at_temp, p.pressure) {
             (Some(r), Some(nu), Some(pr)) => Some(nu / r.viscosity * r.pressure / pr),
             _ => None,
         };
-        p.corrected_flow = match (rated, p.effective_flow, scale) {
-            (Some(r), Some(q), Some(k)) => Some(r.si() - (r.si() - q) * k),
+        p.corrected_flow = match (displacement, p.effective_flow, scale) {
+            (Some(d), Some(q), Some(k)) => Some(d - (d - q) * k),
             _ => None,
         };
         p.case_drain_corrected = match (p.case_drain, scale) {
             (Some(c), Some(k)) => Some(c * k),
             (c, _) => c,
         };
+        // Laminar gap leakage Q_leak ∝ Δp/μ, so (D − Q)·ν/p stays put while only the oil
+        // temperature or the job pressure moves (Hagen–Poiseuille gap flow).
+        p.leak_conductance = match (
+            displacement,
+            p.effective_flow,
+            p.viscosity_at_temp,
+            p.pressure,
+        ) {
+            (Some(d), Some(q), Some(nu), Some(pr)) => {
+                hyd::leak_conductance(Flow(d), Flow(q), Viscosity(nu), Pressure(pr))
+                    .ok()
+                    .map(|g| g.si())
+            }
+            _ => None,
+        };
     }
 
-    // Baseline from the first N checks of the era.
+    // The baseline.
     let series_of = |ind: BaselineIndicator| -> Vec<(Id, DateTime<Utc>, f64)> {
         points
             .iter()
@@ -313,10 +345,24 @@ pub fn compute(
         .iter()
         .map(|&i| (i, series_of(i)))
         .collect();
-    let baseline = match era {
-        Some(e) => baseline::build_baseline(e, n, &per, &h.manual_baselines),
+    let mut baseline = match era {
+        Some(e) => baseline::build_baseline(e, n_min, n_max, &per, &h.manual_baselines),
         None => Baseline::default(),
     };
+    // The fitted conductance is the baseline's where the fit was made (a better estimate than
+    // the median of single checks, with its own standard error).
+    if let (Some(f), Some(b)) = (
+        fit,
+        baseline
+            .values
+            .iter_mut()
+            .find(|b| b.indicator == BaselineIndicator::LeakConductance),
+    ) {
+        if matches!(b.source, BaselineSource::Checks { .. }) {
+            b.value = f.conductance;
+            b.value_se = f.conductance_se;
+        }
+    }
     let base = |i: BaselineIndicator| baseline.get(i).map(|b| b.value);
     let in_baseline: Vec<Id> = baseline
         .values
@@ -328,16 +374,54 @@ pub fn compute(
         .flatten()
         .collect();
 
-    // Values against the baseline, and the medians of the last 3.
+    // Maintenance that restarts what it addresses.
+    let restarts = restarts_in(h, era);
+    let restarted = |ind: BaselineIndicator, from: DateTime<Utc>, to: DateTime<Utc>| {
+        restarts
+            .iter()
+            .any(|r| r.at > from && r.at <= to && r.addresses(ind))
+    };
+
+    // Values against the baseline, and the confirmed level of the last 3 (see
+    // `confirmed_level`). Lost flow is taken at the reference conditions where the flow can be
+    // corrected, so the seasons and the job pressure do not move it.
+    let by_hand = |i: BaselineIndicator| {
+        baseline
+            .get(i)
+            .is_some_and(|b| matches!(b.source, BaselineSource::Manual { .. }))
+    };
+    // A flow entered by hand is what a person says the pump gives: it wins over a computed
+    // corrected one.
+    let lost_base = if base(BaselineIndicator::CorrectedFlow).is_some()
+        && (by_hand(BaselineIndicator::CorrectedFlow) || !by_hand(BaselineIndicator::EffectiveFlow))
+    {
+        BaselineIndicator::CorrectedFlow
+    } else {
+        BaselineIndicator::EffectiveFlow
+    };
     let (mut lf, mut lr, mut cd, mut hd) = (Vec::new(), Vec::new(), Vec::new(), Vec::new());
+    let mut prev_at: Option<DateTime<Utc>> = None;
     for p in points.iter_mut() {
         p.in_baseline = in_baseline.contains(&p.check_id);
-        if let (Some(q), Some(qb)) = (p.effective_flow, base(BaselineIndicator::EffectiveFlow)) {
+        if let Some(from) = prev_at {
+            if restarted(BaselineIndicator::EffectiveFlow, from, p.at) {
+                lf.clear();
+                lr.clear();
+            }
+            if restarted(BaselineIndicator::CaseDrain, from, p.at) {
+                cd.clear();
+            }
+            if restarted(BaselineIndicator::HeatRise, from, p.at) {
+                hd.clear();
+            }
+        }
+        prev_at = Some(p.at);
+        if let (Some(q), Some(qb)) = (value_of(p, lost_base), base(lost_base)) {
             if let Ok(lost) = hyd::lost_flow(Flow(q), Flow(qb)) {
                 let v = lost * 100.0;
                 p.lost_flow_pct = Some(v);
                 lf.push(v);
-                p.lost_flow_median_pct = median_last(&lf);
+                p.lost_flow_median_pct = confirmed_level(&lf);
             }
         }
         let ratio = |g: f64, gb: f64| hyd::LeakConductance(g).ratio_to(hyd::LeakConductance(gb));
@@ -348,7 +432,7 @@ pub fn compute(
         {
             p.leak_ratio = Some(v);
             lr.push(v);
-            p.leak_ratio_median = median_last(&lr);
+            p.leak_ratio_median = confirmed_level(&lr);
         }
         if let (Some(c), Some(cb)) = (
             p.case_drain_corrected,
@@ -357,31 +441,50 @@ pub fn compute(
             let v = (c / cb - 1.0) * 100.0;
             p.case_drain_rise_pct = Some(v);
             cd.push(v);
-            p.case_drain_rise_median_pct = median_last(&cd);
+            p.case_drain_rise_median_pct = confirmed_level(&cd);
         }
         if let (Some(d), Some(db)) = (p.heat_rise, base(BaselineIndicator::HeatRise)) {
             let v = d - db;
             p.heat_rise_drift = Some(v);
             hd.push(v);
-            p.heat_rise_drift_median = median_last(&hd);
+            p.heat_rise_drift_median = confirmed_level(&hd);
         }
     }
 
-    run_detectors(&mut points, &baseline, limits);
+    run_detectors(&mut points, &baseline, limits, &restarts);
 
-    // Can a stopwatch resolve the leakage at all? Baseline leakage against the spread of the
+    // Can the leakage be resolved at all? Where the era's fit resolved it, yes; else the
+    // baseline leakage against the rated flow must stand well above the spread of the
     // (corrected) timed flow, never taken below the stopwatch floor.
     let floor_rel = limits.value(LimitKey::MinSpreadPct) / 100.0;
     let leak_resolved = match baseline.get(BaselineIndicator::LeakConductance) {
         Some(b) if matches!(b.source, BaselineSource::Manual { .. }) => Some(true),
+        Some(_) if fit.is_some() => Some(true),
         Some(_) => {
             let flow_base = baseline
                 .get(BaselineIndicator::CorrectedFlow)
                 .or(baseline.get(BaselineIndicator::EffectiveFlow));
             match (rated, flow_base) {
                 (Some(r), Some(q)) => {
+                    // The leakage D − Q_b must stand `leak_min_spreads` spreads of one timed
+                    // flow above zero, or its baseline's own standard error (the median's,
+                    // over the baseline checks) must be small enough to tell the watch limit
+                    // from 1 at two standard errors.
                     let sigma = q.spread.max(floor_rel * q.value.abs());
-                    Some(r.si() - q.value >= limits.value(LimitKey::LeakMinSpreads) * sigma)
+                    let leak = r.si() - q.value;
+                    let n = match &q.source {
+                        BaselineSource::Checks { check_ids, .. } => check_ids.len().max(1),
+                        BaselineSource::Manual { .. } => 1,
+                    } as f64;
+                    let rel_se = baseline::MEDIAN_SE_FACTOR * sigma / n.sqrt() / leak;
+                    let watch = limits
+                        .get(LimitKey::LeakConductanceRatio)
+                        .watch
+                        .unwrap_or(1.3);
+                    Some(
+                        leak >= limits.value(LimitKey::LeakMinSpreads) * sigma
+                            || (leak > 0.0 && 2.0 * rel_se <= watch - 1.0),
+                    )
                 }
                 _ => None,
             }
@@ -411,7 +514,9 @@ pub fn compute(
         target,
         reference,
         leak_resolved,
-        baseline_needs: n,
+        baseline_needs: n_min,
+        fit,
+        restarts,
         ..Computed::default()
     };
     c.hours_per_day = hours_per_day(h);
@@ -420,25 +525,95 @@ pub fn compute(
     c
 }
 
+/// The level a flag judges from the last readings of an indicator whose high values mean
+/// trouble: the median of the last 3, and of only 2 the lower — so a single reading never
+/// raises a flag on its own, and one normal reading after two takes it down.
+pub fn confirmed_level(values: &[f64]) -> Option<f64> {
+    match values.len() {
+        0 | 1 => None,
+        2 => Some(values[0].min(values[1])),
+        _ => median_last(values),
+    }
+}
+
+/// Maintenance that restarts the detectors and flags of what it addresses: a cooler clean the
+/// heat rise; a repair the flow, leakage and case drain; a filter change the cleanliness (its
+/// samples before the change no longer stand for the oil). Fluid changes and rebuilds start a
+/// new era instead.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Restart {
+    pub at: DateTime<Utc>,
+    pub event_id: Id,
+    pub event: EventKind,
+}
+
+impl Restart {
+    pub fn addresses(&self, ind: BaselineIndicator) -> bool {
+        match self.event {
+            EventKind::CoolerClean => ind == BaselineIndicator::HeatRise,
+            EventKind::Repair => ind != BaselineIndicator::HeatRise,
+            _ => false,
+        }
+    }
+
+    /// The flag kinds it restarts.
+    pub fn flag_kinds(&self) -> &'static [super::flags::FlagKind] {
+        use super::flags::FlagKind as K;
+        match self.event {
+            EventKind::CoolerClean => &[K::HeatRise, K::Drift],
+            EventKind::Repair => &[K::LostFlow, K::LeakConductance, K::CaseDrain, K::Drift],
+            EventKind::FilterChange => &[K::Cleanliness, K::Filter],
+            _ => &[],
+        }
+    }
+}
+
+/// The restarting events of the era, in time order.
+fn restarts_in(h: &UnitHistory, era: Option<&Era>) -> Vec<Restart> {
+    let Some(era) = era else { return Vec::new() };
+    h.events
+        .iter()
+        .filter(|e| {
+            matches!(
+                e.kind,
+                EventKind::CoolerClean | EventKind::Repair | EventKind::FilterChange
+            ) && era.contains(e.done_at)
+        })
+        .map(|e| Restart {
+            at: e.done_at,
+            event_id: e.id,
+            event: e.kind,
+        })
+        .collect()
+}
+
 /// EWMA and one-sided tabular CUSUM of each baselined indicator, on the side that means
 /// trouble (flow falling; heat and case drain rising), over the era's checks after those that
-/// formed the baseline (all checks of the era for a hand-entered baseline).
+/// formed the baseline (all checks of the era for a hand-entered baseline), both started
+/// afresh after maintenance that addresses the indicator (`Restart`).
 ///
-/// The baseline mean of N checks is itself uncertain by σ/√N, and a chart run on an estimated
-/// mean as if it were known signals on that error alone (Montgomery discusses the effect of
-/// estimated parameters). So the EWMA limits are widened to L·√(σ_z² + σ²/N) — the spread of
-/// the difference between the EWMA and an N-check mean — and the CUSUM only accumulates shifts
-/// beyond k·σ + σ/√N. A hand-entered baseline is taken as known.
-fn run_detectors(points: &mut [CheckPoint], baseline: &Baseline, limits: &Limits) {
+/// The baseline median of N checks is itself uncertain (its standard error, `value_se`), and
+/// a chart run on an estimated centre as if it were known signals on that error alone
+/// (Montgomery discusses the effect of estimated parameters). So the EWMA limits are widened
+/// to L·√(σ_z² + se²) — the spread of the difference between the EWMA and the baseline — and
+/// the CUSUM only accumulates shifts beyond k·σ + se. A hand-entered baseline is taken as
+/// known. A check signals only while its own reading is on the side that means trouble,
+/// beyond k·σ + se, so a signal ends with the first normal check once its cause is gone.
+fn run_detectors(
+    points: &mut [CheckPoint],
+    baseline: &Baseline,
+    limits: &Limits,
+    restarts: &[Restart],
+) {
     let lambda = limits.value(LimitKey::EwmaLambda);
     let l = limits.value(LimitKey::EwmaL);
     let k = limits.value(LimitKey::CusumK);
     let hh = limits.value(LimitKey::CusumH);
     let floor_rel = limits.value(LimitKey::MinSpreadPct) / 100.0;
     let floor_heat = limits.value(LimitKey::MinSpreadHeatK);
-    // Flow is watched corrected for the oil's temperature where that can be done (a hot spell
-    // is not wear), else as timed; leak conductance carries the same information as the
-    // corrected flow with the scatter of a small difference, so it is not watched twice.
+    // Flow is watched corrected for the oil's temperature and the job pressure where that can
+    // be done, else as timed; leak conductance carries the same information as the corrected
+    // flow with the scatter of a small difference, so it is not watched twice.
     let watched: Vec<&super::baseline::BaselineValue> = baseline
         .values
         .iter()
@@ -465,14 +640,17 @@ fn run_detectors(points: &mut [CheckPoint], baseline: &Baseline, limits: &Limits
         }
         let se = match &b.source {
             BaselineSource::Checks { check_ids, .. } if !check_ids.is_empty() => {
-                sigma / (check_ids.len() as f64).sqrt()
+                baseline::MEDIAN_SE_FACTOR * sigma / (check_ids.len() as f64).sqrt()
             }
             _ => 0.0,
         };
-        let (Ok(mut ewma), Ok(mut cusum)) = (
-            stats::Ewma::with_params(b.value, sigma, lambda, l),
-            stats::Cusum::with_params(b.value, sigma, k + se / sigma, hh),
-        ) else {
+        let start = || {
+            Some((
+                stats::Ewma::with_params(b.value, sigma, lambda, l).ok()?,
+                stats::Cusum::with_params(b.value, sigma, k + se / sigma, hh).ok()?,
+            ))
+        };
+        let Some((mut ewma, mut cusum)) = start() else {
             continue;
         };
         let bad = if falling {
@@ -482,10 +660,24 @@ fn run_detectors(points: &mut [CheckPoint], baseline: &Baseline, limits: &Limits
         };
         let manual = matches!(b.source, BaselineSource::Manual { .. });
         let mut run = 0usize;
+        let mut prev_at: Option<DateTime<Utc>> = None;
         for p in points.iter_mut().filter(|p| manual || !p.in_baseline) {
             let Some(x) = value_of(p, b.indicator) else {
                 continue;
             };
+            if let Some(from) = prev_at {
+                if restarts
+                    .iter()
+                    .any(|r| r.at > from && r.at <= p.at && r.addresses(b.indicator))
+                {
+                    if let Some((e, c)) = start() {
+                        ewma = e;
+                        cusum = c;
+                    }
+                    run = 0;
+                }
+            }
+            prev_at = Some(p.at);
             let (Ok(e), Ok(c)) = (ewma.update(x), cusum.update(x)) else {
                 continue;
             };
@@ -502,7 +694,13 @@ fn run_detectors(points: &mut [CheckPoint], baseline: &Baseline, limits: &Limits
             } else {
                 z > ewma_limit
             };
-            let signal = beyond || c.signal == Some(bad);
+            let margin = k * sigma + se;
+            let reading_bad = if falling {
+                x < b.value - margin
+            } else {
+                x > b.value + margin
+            };
+            let signal = (beyond || c.signal == Some(bad)) && reading_bad;
             run = if signal { run + 1 } else { 0 };
             p.drift.push(DriftPoint {
                 indicator: b.indicator,
@@ -690,16 +888,24 @@ pub(crate) fn hours_at(h: &UnitHistory, t: DateTime<Utc>) -> Option<f64> {
 fn summarise(h: &UnitHistory, c: &Computed, limits: &Limits) -> Indicators {
     let last = |f: &dyn Fn(&CheckPoint) -> Option<f64>| c.checks.iter().rev().find_map(f);
     let last_s = |f: &dyn Fn(&SamplePoint) -> Option<f64>| c.samples.iter().rev().find_map(f);
+    // The level at the last check with a reading: its confirmed level, or its own reading
+    // where there is no level yet (the first check after a restart).
+    let level = |raw: fn(&CheckPoint) -> Option<f64>, lvl: fn(&CheckPoint) -> Option<f64>| {
+        c.checks
+            .iter()
+            .rev()
+            .find(|p| raw(p).is_some())
+            .and_then(|p| lvl(p).or(raw(p)))
+    };
     let mut s = Indicators {
-        lost_flow_pct: last(&|p| p.lost_flow_median_pct),
+        lost_flow_pct: level(|p| p.lost_flow_pct, |p| p.lost_flow_median_pct),
         vol_eff_pct: last(&|p| p.vol_eff_pct),
         heat_rise_k: last(&|p| p.heat_rise),
-        heat_rise_drift_k: last(&|p| p.heat_rise_drift_median),
-        leak_conductance_ratio: if c.leak_resolved == Some(false) {
-            None
-        } else {
-            last(&|p| p.leak_ratio_median)
-        },
+        heat_rise_drift_k: level(|p| p.heat_rise_drift, |p| p.heat_rise_drift_median),
+        // The ratio where the leakage is resolved well enough to be judged; the tile shows it
+        // with its uncertainty in any case, and `leak_conductance` carries the number.
+        leak_conductance_ratio: level(|p| p.leak_ratio, |p| p.leak_ratio_median)
+            .filter(|_| c.leak_resolved != Some(false)),
         kv40_cst: last_s(&|p| p.kv40).map(|v| v * 1.0e6),
         kv40_drift_pct: last_s(&|p| p.kv40_drift_pct),
         iso4406: c
@@ -718,10 +924,46 @@ fn summarise(h: &UnitHistory, c: &Computed, limits: &Limits) -> Indicators {
             .rev()
             .find_map(|ch| ch.reservoir_temp)
             .map(|t| t.c()),
-        case_drain_rise_pct: last(&|p| p.case_drain_rise_median_pct),
+        case_drain_rise_pct: level(|p| p.case_drain_rise_pct, |p| p.case_drain_rise_median_pct),
         viscosity_index: last_s(&|p| p.viscosity_index),
         ..Indicators::default()
     };
+    // The leak conductance as a number with its uncertainty: each check's G = (D − Q)·ν/p
+    // carries the flow's scatter divided by its p/ν; the level of the last 3 is a median
+    // (standard error √(π/2)·σ/√n), the baseline's is the fit's or the median's own.
+    let ratio_now = level(|p| p.leak_ratio, |p| p.leak_ratio_median);
+    if ratio_now.is_some() {
+        let floor_rel = limits.value(LimitKey::MinSpreadPct) / 100.0;
+        let flow_sd = c.fit.map(|f| f.residual_sd).or_else(|| {
+            c.baseline
+                .get(BaselineIndicator::CorrectedFlow)
+                .or(c.baseline.get(BaselineIndicator::EffectiveFlow))
+                .map(|b| b.spread.max(floor_rel * b.value.abs()))
+        });
+        let recent: Vec<&CheckPoint> = c
+            .checks
+            .iter()
+            .rev()
+            .filter(|p| p.leak_ratio.is_some())
+            .take(MEDIAN_OF)
+            .collect();
+        let sd_g: Vec<f64> = recent
+            .iter()
+            .filter_map(|p| Some(flow_sd? * p.viscosity_at_temp? / p.pressure?))
+            .collect();
+        let g_base = c.baseline.get(BaselineIndicator::LeakConductance);
+        if let (Some(ratio), Some(b), false) = (ratio_now, g_base, sd_g.is_empty()) {
+            let n = sd_g.len() as f64;
+            let se = baseline::MEDIAN_SE_FACTOR * (sd_g.iter().sum::<f64>() / n) / n.sqrt();
+            let g = ratio * b.value;
+            s.leak_conductance = Some(g);
+            s.leak_conductance_se = Some(se);
+            if g != 0.0 && b.value != 0.0 {
+                s.leak_conductance_ratio_se =
+                    Some(ratio.abs() * ((se / g).powi(2) + (b.value_se / b.value).powi(2)).sqrt());
+            }
+        }
+    }
     // Oil life and top-ups over the era.
     if let Some(era) = &c.era {
         let r: Vec<_> = hour_readings(h)
@@ -770,6 +1012,8 @@ pub enum Dim {
     AcidNumber,
     /// ISO 4406 range numbers.
     RangeNumber,
+    /// Calendar days (work overdue).
+    Days,
 }
 
 /// Direction of a trend, as an arrow would show it.
@@ -823,6 +1067,8 @@ pub struct Tile {
     pub act: Vec<f64>,
     pub state: State,
     pub trend: Option<Trend>,
+    /// One standard error of `value`, where the engine knows it (the leak conductance ratio).
+    pub uncertainty: Option<f64>,
 }
 
 /// A point of a chart series.
@@ -949,9 +1195,9 @@ fn specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
         label: "Leak conductance ratio (median of 3)",
         dim: Dim::Ratio,
         flag: Some(K::LeakConductance),
-        value: if resolved { last(&leak) } else { None },
+        value: last(&leak),
         points: leak,
-        text: (!resolved).then(|| "below stopwatch resolution".to_string()),
+        text: (!resolved).then(|| "too uncertain to judge".to_string()),
         baseline: bl(BaselineIndicator::LeakConductance).map(|_| (1.0, 0.0)),
         watch: ll.watch.into_iter().collect(),
         act: ll.act.into_iter().collect(),
@@ -1178,6 +1424,11 @@ pub fn tiles(
                 baseline: s.baseline.map(|b| b.0),
                 baseline_spread: s.baseline.map(|b| b.1),
                 trend: trend(&s.points, &s.watch, &s.act),
+                uncertainty: if s.key == "leak_conductance" {
+                    c.summary.leak_conductance_ratio_se
+                } else {
+                    None
+                },
                 watch: s.watch,
                 act: s.act,
                 state,

@@ -271,7 +271,38 @@ pub fn not_judged(h: &UnitHistory, c: &Computed, work: &[WorkItem]) -> Vec<NotJu
             ));
         }
     }
-    if !c.samples.iter().any(|s| s.over_target_max.is_some()) {
+    let filtered = c
+        .restarts
+        .iter()
+        .filter(|r| r.event == crate::model::EventKind::FilterChange)
+        .map(|r| r.at)
+        .max();
+    let counted_since_filter = c
+        .samples
+        .iter()
+        .any(|s| s.over_target_max.is_some() && filtered.is_none_or(|f| s.at > f));
+    // A filter change lifts a cleanliness flag until the next sample tells; a last count
+    // within the target still stands (a new element only makes the oil cleaner).
+    let over_before = c
+        .samples
+        .iter()
+        .rev()
+        .find_map(|s| s.over_target_max)
+        .is_some_and(|o| o > 0);
+    if let (Some(f), false, true) = (filtered, counted_since_filter, over_before) {
+        out.push(nj(
+            "cleanliness",
+            "Cleanliness",
+            format!(
+                "no particle count since the filter change of {}",
+                f.date_naive()
+            ),
+            at_next("sample", next_sample),
+            None,
+            next_sample,
+            true,
+        ));
+    } else if !c.samples.iter().any(|s| s.over_target_max.is_some()) {
         out.push(nj(
             "cleanliness",
             "Cleanliness",

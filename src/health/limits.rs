@@ -132,8 +132,14 @@ limit_keys! {
     DueSoonDays = "due_soon_days", Value, None, Some(14.0), "days",
         "work due within this many days is listed as due soon";
     // Baseline and drift detectors.
+    // A baseline forms from the era's first `baseline_checks` and keeps growing with each check
+    // to `baseline_checks_max`: with a stopwatch's 2–4 % scatter the median of 4 is off by
+    // about 1.25·σ/√4 ≈ 2 %, of 12 by about 1 % (the standard error of a median); until it is
+    // complete, the detectors widen their limits by that error.
     BaselineChecks = "baseline_checks", Value, None, Some(4.0), "checks",
-        "checks at the start of an era that form its baseline";
+        "checks at the start of an era from which its baseline is formed";
+    BaselineChecksMax = "baseline_checks_max", Value, None, Some(12.0), "checks",
+        "checks the baseline keeps growing to before it is fixed";
     // λ = 0.2, L = 3, k = 0.5σ, h = 5σ: the usual choices in D. C. Montgomery,
     // Introduction to Statistical Quality Control (EWMA and tabular CUSUM chapters).
     EwmaLambda = "ewma_lambda", Value, None, Some(0.2), "",
@@ -357,14 +363,18 @@ pub fn validate_setting(
             let v = act.unwrap_or(0.0);
             let ok = match key {
                 LimitKey::EwmaLambda => v > 0.0 && v <= 1.0,
-                LimitKey::BaselineChecks => v >= 2.0 && v.fract() == 0.0 && v <= 50.0,
+                LimitKey::BaselineChecks | LimitKey::BaselineChecksMax => {
+                    v >= 2.0 && v.fract() == 0.0 && v <= 50.0
+                }
                 LimitKey::MinSpreadPct | LimitKey::MinSpreadHeatK => v >= 0.0,
                 _ => v > 0.0,
             };
             if !ok {
                 let want = match key {
                     LimitKey::EwmaLambda => "a weight in (0, 1]",
-                    LimitKey::BaselineChecks => "a whole number of checks from 2 to 50",
+                    LimitKey::BaselineChecks | LimitKey::BaselineChecksMax => {
+                        "a whole number of checks from 2 to 50"
+                    }
                     LimitKey::MinSpreadPct | LimitKey::MinSpreadHeatK => "zero or more",
                     _ => "a positive number",
                 };

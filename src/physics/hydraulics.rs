@@ -150,6 +150,52 @@ pub fn leak_conductance(
     ))
 }
 
+/// A pump's delivery against the oil's fluidity and the working pressure over an era,
+/// Q = D − G · p/ν: D, the displacement flow (what the pump would give with no leakage), and
+/// G, the leak conductance of laminar gaps (Hagen–Poiseuille: Q_leak = G · p/ν). Fitted by
+/// ordinary least squares of Q on p/ν, so a spread of job pressures and oil temperatures over
+/// the era separates displacement from leakage without the rated flow.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct LeakageFit {
+    /// D, m³/s.
+    pub displacement: f64,
+    pub displacement_se: f64,
+    /// G, m³/s · m²/s / Pa (as [`LeakConductance`]).
+    pub conductance: f64,
+    pub conductance_se: f64,
+    /// Scatter of the flows about the line, m³/s.
+    pub residual_sd: f64,
+    pub n: usize,
+}
+
+/// The fit is used only where its conductance is at least this many standard errors above
+/// zero: the era's spread of p/ν must resolve the leakage (the usual |t| ≥ 2, as the trends).
+pub const LEAKAGE_FIT_MIN_T: f64 = 2.0;
+
+/// Fits [`LeakageFit`] to (flow, viscosity, pressure) readings; `None` when the readings do
+/// not resolve a positive leak conductance (too few, too little spread of p/ν, or a line
+/// rising with pressure).
+pub fn fit_leakage(points: &[(Flow, Viscosity, Pressure)]) -> Option<LeakageFit> {
+    let xy: Vec<(f64, f64)> = points
+        .iter()
+        .filter(|(q, nu, p)| q.si().is_finite() && nu.si() > 0.0 && p.si() > 0.0)
+        .map(|(q, nu, p)| (p.si() / nu.si(), q.si()))
+        .collect();
+    let f = super::stats::line_fit(&xy).ok()?;
+    let g = -f.slope;
+    if !(g > 0.0 && f.slope_se.is_finite() && g >= LEAKAGE_FIT_MIN_T * f.slope_se) {
+        return None;
+    }
+    Some(LeakageFit {
+        displacement: f.intercept,
+        displacement_se: f.intercept_se,
+        conductance: g,
+        conductance_se: f.slope_se,
+        residual_sd: f.residual_sd,
+        n: f.n,
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -207,6 +253,40 @@ mod tests {
             effective_flow(Volume::from_l(1.0), Seconds(f64::NAN)),
             Err(PhysicsError::NotFinite { .. })
         ));
+    }
+
+    #[test]
+    fn a_leakage_line_separates_displacement_from_leakage() {
+        // Built by hand from D = 40 L/min and G·p/ν = 6 L/min at 100 bar and 46 cSt: two job
+        // pressures (100 and 160 bar) at two oil temperatures (46 and 23 cSt). Exact data give
+        // D and G back exactly (least squares through points on a line).
+        let g_lpm = 6.0 / (100.0 / 46.0);
+        let pts: Vec<(Flow, Viscosity, Pressure)> =
+            [(100.0, 46.0), (160.0, 46.0), (100.0, 23.0), (160.0, 23.0)]
+                .iter()
+                .map(|&(bar, cst)| {
+                    let q = 40.0 - g_lpm * bar / cst;
+                    (
+                        Flow::from_lpm(q),
+                        Viscosity::from_cst(cst),
+                        Pressure::from_bar(bar),
+                    )
+                })
+                .collect();
+        let f = fit_leakage(&pts).unwrap();
+        assert!((Flow(f.displacement).lpm() - 40.0).abs() < 1e-9);
+        let g_si = Flow::from_lpm(g_lpm).si() * Viscosity::from_cst(1.0).si()
+            / Pressure::from_bar(1.0).si();
+        assert!((f.conductance / g_si - 1.0).abs() < 1e-9);
+        // One condition only: nothing to separate.
+        let same = vec![pts[0]; 5];
+        assert!(fit_leakage(&same).is_none());
+        // A line rising with pressure is not leakage.
+        let rising: Vec<_> = pts
+            .iter()
+            .map(|&(q, nu, p)| (Flow(2.0 * Flow::from_lpm(40.0).si() - q.si()), nu, p))
+            .collect();
+        assert!(fit_leakage(&rising).is_none());
     }
 
     #[test]

@@ -136,6 +136,53 @@ pub fn linear_trend(points: &[(f64, f64)]) -> Result<LinearTrend, PhysicsError> 
     })
 }
 
+/// An ordinary least-squares line with the standard errors of both coefficients.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct LineFit {
+    pub n: usize,
+    pub intercept: f64,
+    pub slope: f64,
+    pub intercept_se: f64,
+    pub slope_se: f64,
+    /// √(SSE / (n − 2)).
+    pub residual_sd: f64,
+    pub x_mean: f64,
+    /// Σ (x − x̄)².
+    pub sxx: f64,
+}
+
+impl LineFit {
+    pub fn value_at(&self, x: f64) -> f64 {
+        self.intercept + self.slope * x
+    }
+
+    /// Standard error of the fitted line's value at `x`: s · √(1/n + (x − x̄)²/Sxx).
+    pub fn se_mean_at(&self, x: f64) -> f64 {
+        self.residual_sd * (1.0 / self.n as f64 + (x - self.x_mean).powi(2) / self.sxx).sqrt()
+    }
+}
+
+/// Ordinary least squares y = a + b·x with the textbook standard errors
+/// se(b) = s/√Sxx, se(a) = s·√(1/n + x̄²/Sxx), s² = SSE/(n − 2) (as statsmodels' OLS reports
+/// them). Needs three points and some spread in x.
+pub fn line_fit(points: &[(f64, f64)]) -> Result<LineFit, PhysicsError> {
+    let t = linear_trend(points)?;
+    let n = points.len() as f64;
+    let sxx: f64 = points.iter().map(|p| (p.0 - t.x_mean).powi(2)).sum();
+    let sse: f64 = points.iter().map(|p| (p.1 - t.value_at(p.0)).powi(2)).sum();
+    let s = (sse / (n - 2.0)).sqrt();
+    Ok(LineFit {
+        n: points.len(),
+        intercept: t.intercept,
+        slope: t.slope,
+        intercept_se: s * (1.0 / n + t.x_mean * t.x_mean / sxx).sqrt(),
+        slope_se: t.slope_se,
+        residual_sd: s,
+        x_mean: t.x_mean,
+        sxx,
+    })
+}
+
 const SECONDS_PER_WEEK: f64 = 7.0 * 86_400.0;
 
 /// A trend over dated values, x in weeks since the first point.
@@ -510,6 +557,44 @@ mod tests {
         }
         assert_eq!(median_and_mad_sigma(&[]), None);
         assert_eq!(median(&[1.0, f64::NAN]), None);
+    }
+
+    #[test]
+    fn line_fits_match_statsmodels_ols() {
+        let doc = robust_cases();
+        let cases = doc["fit"].as_array().unwrap();
+        assert!(cases.len() >= 3);
+        let v = |c: &serde_json::Value, k: &str| c[k].as_f64().unwrap();
+        for c in cases {
+            let xs = c["x"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|v| v.as_f64().unwrap());
+            let ys = c["y"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|v| v.as_f64().unwrap());
+            let pts: Vec<(f64, f64)> = xs.zip(ys).collect();
+            let f = line_fit(&pts).unwrap();
+            let name = c["name"].as_str().unwrap();
+            // statsmodels OLS: params, bse, sqrt(scale), get_prediction().se_mean.
+            for (got, key) in [
+                (f.intercept, "intercept"),
+                (f.slope, "slope"),
+                (f.intercept_se, "intercept_se"),
+                (f.slope_se, "slope_se"),
+                (f.residual_sd, "residual_sd"),
+                (f.se_mean_at(v(c, "x0")), "se_mean_at_x0"),
+            ] {
+                let want = v(c, key);
+                assert!(
+                    (got - want).abs() <= 1e-9 * want.abs().max(1.0),
+                    "{name} {key}: {got} vs {want}"
+                );
+            }
+        }
     }
 
     #[test]
