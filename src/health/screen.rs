@@ -460,12 +460,18 @@ struct Pending {
 }
 
 /// A person's confirmation of a check, where the record carries one.
-fn confirmed_check(_c: &Check) -> Option<ConfirmedBy> {
-    None
+fn confirmed_check(c: &Check) -> Option<ConfirmedBy> {
+    c.confirmed.as_ref().map(|k| ConfirmedBy::Person {
+        by: k.by.clone(),
+        at: k.at,
+    })
 }
 
-fn confirmed_sample(_s: &Sample) -> Option<ConfirmedBy> {
-    None
+fn confirmed_sample(s: &Sample) -> Option<ConfirmedBy> {
+    s.confirmed.as_ref().map(|k| ConfirmedBy::Person {
+        by: k.by.clone(),
+        at: k.at,
+    })
 }
 
 /// Every suspicion raised on a unit's checks and samples (time order), with its confirmation
@@ -790,6 +796,23 @@ mod tests {
         let ok = timed(3, 2, 11.9, 45.0, 20.0);
         let got = check(&h.unit, &earlier, &ok, UnitSystem::Metric);
         assert!(got.is_empty(), "{got:?}");
+    }
+
+    #[test]
+    fn a_person_confirms_a_questioned_reading_and_it_counts() {
+        let mut h = steady_weeks();
+        let mut c = timed(9, 8, 4.0, 4.5, 20.0);
+        c.confirmed = Some(crate::model::Confirmation {
+            by: "T. Tech".into(),
+            at: crate::health::testutil::t("2024-03-01"),
+        });
+        h.checks.push(c);
+        let s = screen_history(&h, None, UnitSystem::Metric);
+        assert!(matches!(
+            &s[0].confirmed,
+            Some(ConfirmedBy::Person { by, .. }) if by == "T. Tech"
+        ));
+        assert_eq!(without_unconfirmed(&h, &s), h);
     }
 
     #[test]
