@@ -1159,7 +1159,9 @@ fn export_neutralises_formulas_keeps_numbers_and_import_reverses_it() {
 
 /// The migration folders `migrations/N-name/up.sql`, in order.
 fn migrations() -> Vec<(usize, String)> {
-    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("migrations");
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("migrations")
+        .join("sqlite");
     let mut out: Vec<(usize, String)> = std::fs::read_dir(&dir)
         .unwrap()
         .map(|e| e.unwrap().path())

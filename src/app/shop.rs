@@ -15,6 +15,8 @@ use crate::exchange::demo::{self, DemoCounts};
 use crate::exchange::{csv_in, csv_out, ExchangeError, FileKind, ImportSummary};
 use crate::model::{Check, Sample};
 use crate::outfile::{Options, OutFile};
+use crate::store::copy::TableDigest;
+use crate::store::roles::ShopRole;
 use crate::store::{OpenMode, Store, StoreError};
 use crate::units::UnitSystem;
 
@@ -56,7 +58,8 @@ pub struct StoredStatus {
 }
 
 impl Shop {
-    /// Opens an existing shop file.
+    /// Opens an existing shop file, or the shop on a database server (an empty database there
+    /// becomes a new shop).
     pub fn open(path: &Path) -> Result<Shop, AppError> {
         let store = Store::open(path, OpenMode::MustExist)?;
         Ok(Shop {
@@ -76,7 +79,7 @@ impl Shop {
 
     /// Makes a new shop file at `path` with the demo shop in it. Refuses an existing file.
     pub fn create_demo(path: &Path) -> Result<Shop, AppError> {
-        if path.exists() {
+        if path.exists() && !Shop::is_server(path) {
             return Err(AppError::BadInput(format!(
                 "{}: the file exists; the demo shop is only written into a new file",
                 path.display()
@@ -111,11 +114,14 @@ impl Shop {
     /// Creates a new empty shop at `path` (optionally naming it), or confirms that the file is
     /// already a shop.
     pub fn init(path: &Path, shop_name: Option<&str>) -> Result<(Shop, InitOutcome), AppError> {
-        let existed = path.exists();
-        let shop = if existed {
-            Shop::open(path)?
+        let (shop, created) = if Shop::is_server(path) {
+            let shop = Shop::open(path)?;
+            let created = shop.store.created_here();
+            (shop, created)
+        } else if path.exists() {
+            (Shop::open(path)?, false)
         } else {
-            Shop::create(path)?
+            (Shop::create(path)?, true)
         };
         if let Some(name) = shop_name {
             if name.trim().is_empty() {
@@ -130,10 +136,15 @@ impl Shop {
         }
         let outcome = InitOutcome {
             path: path.to_path_buf(),
-            created: !existed,
+            created,
             schema_version: shop.store.schema_version()?,
         };
         Ok((shop, outcome))
+    }
+
+    /// Whether `path` is the address of a database server (`postgres://...`), not a file.
+    pub fn is_server(path: &Path) -> bool {
+        path.to_str().is_some_and(crate::store::is_server_address)
     }
 
     pub fn store(&self) -> &Store {
@@ -265,6 +276,111 @@ impl Shop {
     }
 }
 
+/// What `copy` did: the two shops and, per table, the rows and digest on each side.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+pub struct CopyOutcome {
+    pub from: String,
+    pub to: String,
+    pub tables: Vec<(TableDigest, TableDigest)>,
+}
+
+impl Shop {
+    /// Copies the whole shop at `from` into `to` (each a file or a server): all or nothing,
+    /// verified by the row count and content digest of every table on both sides before it is
+    /// kept. `to` must be a new file, an empty shop, or with `replace` any shop (its data is
+    /// replaced). A file is written under a temporary name beside it and renamed when whole.
+    pub fn copy(from: &Path, to: &Path, replace: bool) -> Result<CopyOutcome, AppError> {
+        let same = from == to
+            || (!Shop::is_server(from)
+                && !Shop::is_server(to)
+                && std::fs::canonicalize(from)
+                    .ok()
+                    .is_some_and(|a| std::fs::canonicalize(to).ok().is_some_and(|b| a == b)));
+        if same {
+            return Err(AppError::BadInput(
+                "--from and --to name the same shop".into(),
+            ));
+        }
+        let source = Shop::open(from)?;
+        let shown_to = if Shop::is_server(to) {
+            Shop::open(to)?.store.path().display().to_string()
+        } else {
+            to.display().to_string()
+        };
+        let outcome = |tables| CopyOutcome {
+            from: source.store.path().display().to_string(),
+            to: shown_to.clone(),
+            tables,
+        };
+        if Shop::is_server(to) {
+            let dest = Shop::open(to)?;
+            let tables = source.store.copy_into(&dest.store, replace)?;
+            return Ok(outcome(tables));
+        }
+        if to.exists() {
+            let dest = Shop::open(to)?;
+            if dest.store.is_empty_shop()? {
+                let tables = source.store.copy_into(&dest.store, false)?;
+                return Ok(outcome(tables));
+            }
+            if !replace {
+                return Err(AppError::BadInput(format!(
+                    "{}: already holds a shop; give --replace to overwrite it",
+                    to.display()
+                )));
+            }
+        }
+        // A new file, or one to replace: written to a new side file beside it (never through
+        // a planted link), put in place when whole and checked.
+        let out = OutFile::create(
+            to,
+            Options {
+                replace,
+                devices_in_place: false,
+                can_force: false,
+            },
+        )?;
+        let Some(tmp) = out.side_path().map(Path::to_path_buf) else {
+            return Err(AppError::BadInput(format!(
+                "{}: not a regular file",
+                to.display()
+            )));
+        };
+        let remove_sides = || {
+            for suffix in ["-journal", "-wal", "-shm"] {
+                let mut p = tmp.as_os_str().to_os_string();
+                p.push(suffix);
+                // Nothing to do if it is not there.
+                let _ = std::fs::remove_file(PathBuf::from(p));
+            }
+        };
+        let written = (|| {
+            let dest = Store::open(&tmp, OpenMode::Create)?;
+            // Closing folds the write-ahead log into the file before it is put in place.
+            source.store.copy_into(&dest, false)
+        })();
+        remove_sides();
+        let tables = written?;
+        out.commit()?;
+        Ok(outcome(tables))
+    }
+
+    /// Creates the shop's roles on its server and gives them their rights.
+    pub fn create_roles(&self) -> Result<(), AppError> {
+        Ok(self.store.create_roles()?)
+    }
+
+    /// Gives a server login one of the shop's roles.
+    pub fn grant_role(&self, login: &str, role: ShopRole) -> Result<(), AppError> {
+        Ok(self.store.grant_role(login, role)?)
+    }
+
+    /// The signed-in server user and the shop roles it holds (`None` for a shop file).
+    pub fn signed_in_roles(&self) -> Result<Option<(String, Vec<ShopRole>)>, AppError> {
+        Ok(self.store.signed_in_roles()?)
+    }
+}
+
 impl From<ExchangeError> for AppError {
     fn from(e: ExchangeError) -> Self {
         match e {
@@ -303,5 +419,6 @@ pub(crate) fn store_error_is_input(e: &StoreError) -> bool {
             | StoreError::BadReference
             | StoreError::NoEditContext
             | StoreError::Refused(_)
+            | StoreError::NotAllowed(_)
     )
 }

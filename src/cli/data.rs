@@ -1,5 +1,5 @@
-//! `sumpbook init`, `demo`, `import`, `export`, `status` (plain, as stored) and `backup`: the
-//! shop's data as a whole on the command line.
+//! `sumpbook init`, `demo`, `import`, `export`, `status` (plain, as stored), `backup`, `copy`
+//! and `roles`: the shop's data as a whole on the command line.
 //!
 //! Parses what was typed, calls `app::shop` and prints. No rules and no SQL here. Bad input
 //! (a wrong file, bad rows) exits with code 2 and says what was wrong.
@@ -13,6 +13,7 @@ use super::Failure;
 use crate::app::shop::{Shop, StoredStatus};
 use crate::exchange::FileKind;
 use crate::store::columns;
+use crate::store::roles::ShopRole;
 use crate::units::UnitSystem;
 
 /// The kinds of CSV file, as typed on the command line.
@@ -110,6 +111,111 @@ pub struct BackupArgs {
     pub out: PathBuf,
 }
 
+#[derive(Args, Debug, Clone, PartialEq)]
+pub struct CopyArgs {
+    /// The shop to copy: a file or postgres://USER@HOST:PORT/DBNAME.
+    #[arg(long, value_name = "FILE|URL")]
+    pub from: PathBuf,
+    /// Where to copy it: a new file, an empty shop, or (with --replace) any shop.
+    #[arg(long, value_name = "FILE|URL")]
+    pub to: PathBuf,
+    /// Replace the data of a shop that is not empty.
+    #[arg(long)]
+    pub replace: bool,
+    /// Print the tables' counts and digests as JSON.
+    #[arg(long)]
+    pub json: bool,
+}
+
+#[derive(Args, Debug, Clone, PartialEq)]
+pub struct RolesArgs {
+    /// Create the roles technician, engineer and supervisor on the shop's server and give
+    /// them their rights (run as the owner of the shop's database).
+    #[arg(long)]
+    pub create: bool,
+    /// Give this server login a role (with --role).
+    #[arg(long, value_name = "LOGIN", requires = "role")]
+    pub grant: Option<String>,
+    /// technician, engineer or supervisor.
+    #[arg(long, value_name = "ROLE", requires = "grant")]
+    pub role: Option<String>,
+}
+
+pub fn run_copy(args: &CopyArgs, out: &mut dyn Write) -> Result<(), Failure> {
+    let outcome = Shop::copy(&args.from, &args.to, args.replace)?;
+    if args.json {
+        let text =
+            serde_json::to_string_pretty(&outcome).map_err(|e| Failure::failed(e.to_string()))?;
+        writeln!(out, "{text}")?;
+        return Ok(());
+    }
+    writeln!(out, "copied {} to {}", outcome.from, outcome.to)?;
+    writeln!(
+        out,
+        "{:<18} {:>10} {:>10}  {:<16}  {:<16}",
+        "table", "rows from", "rows to", "digest from", "digest to"
+    )?;
+    for (a, b) in &outcome.tables {
+        writeln!(
+            out,
+            "{:<18} {:>10} {:>10}  {:<16}  {:<16}",
+            a.table,
+            a.rows,
+            b.rows,
+            &a.digest[..16.min(a.digest.len())],
+            &b.digest[..16.min(b.digest.len())]
+        )?;
+    }
+    writeln!(out, "every table matches")?;
+    Ok(())
+}
+
+pub fn run_roles(db: Option<&Path>, args: &RolesArgs, out: &mut dyn Write) -> Result<(), Failure> {
+    let shop = open_shop(db)?;
+    if args.create {
+        shop.create_roles()?;
+        writeln!(out, "roles created on {}:", shop.path().display())?;
+        for role in ShopRole::ALL {
+            writeln!(
+                out,
+                "  {:<11} {}: {}",
+                role.as_str(),
+                role.role_name(),
+                role.may()
+            )?;
+        }
+    }
+    if let (Some(login), Some(role)) = (&args.grant, &args.role) {
+        let role: ShopRole = role.parse().map_err(Failure::bad_input)?;
+        shop.grant_role(login, role)?;
+        writeln!(out, "{login} is now a {}", role.as_str())?;
+    }
+    if !args.create && args.grant.is_none() {
+        match shop.signed_in_roles()? {
+            None => writeln!(
+                out,
+                "{} is a shop file: no roles (whoever can write the file can do everything)",
+                shop.path().display()
+            )?,
+            Some((user, roles)) if roles.is_empty() => writeln!(
+                out,
+                "signed in as {user}: no shop role (ask the shop's administrator for one)"
+            )?,
+            Some((user, roles)) => {
+                for role in roles {
+                    writeln!(
+                        out,
+                        "signed in as {user}, {}: may {}",
+                        role.as_str(),
+                        role.may()
+                    )?;
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
 fn db_path(db: Option<&Path>) -> Result<PathBuf, Failure> {
     match db {
         Some(p) => Ok(p.to_path_buf()),
@@ -130,6 +236,7 @@ pub fn run_init(db: Option<&Path>, args: &InitArgs, out: &mut dyn Write) -> Resu
     let path = db_path(db)?;
     if let Some(dir) = path
         .parent()
+        .filter(|_| !Shop::is_server(&path))
         .filter(|d| !d.as_os_str().is_empty() && !d.exists())
     {
         std::fs::create_dir_all(dir)
@@ -156,7 +263,7 @@ pub fn run_init(db: Option<&Path>, args: &InitArgs, out: &mut dyn Write) -> Resu
 
 pub fn run_demo(db: Option<&Path>, out: &mut dyn Write) -> Result<(), Failure> {
     let path = db_path(db)?;
-    let mut shop = if path.exists() {
+    let mut shop = if path.exists() || Shop::is_server(&path) {
         Shop::open(&path)?
     } else {
         Shop::create(&path)?

@@ -55,11 +55,16 @@ impl From<std::io::Error> for Failure {
     }
 }
 
+/// The environment variable that names the shop when `--db` is not given.
+pub const DB_VARIABLE: &str = "SUMPBOOK_DB";
+
 #[derive(Parser, Debug)]
 #[command(name = "sumpbook", version, about = "Condition log and drift watch for hydraulic power units", long_about = None)]
 pub struct Cli {
-    /// The shop database (one SQLite file). Default: sumpbook.sqlite in the platform data directory.
-    #[arg(long, global = true, value_name = "FILE")]
+    /// The shop database: one SQLite file, or a PostgreSQL server as
+    /// postgres://USER@HOST:PORT/DBNAME. Default: $SUMPBOOK_DB, else sumpbook.sqlite in the
+    /// platform data directory.
+    #[arg(long, global = true, value_name = "FILE|URL")]
     pub db: Option<PathBuf>,
 
     #[command(subcommand)]
@@ -96,6 +101,12 @@ pub enum Command {
     Limits(status::LimitsArgs),
     /// Write a consistent copy of the shop file while it stays in use.
     Backup(data::BackupArgs),
+    /// Copy a whole shop between a file and a server (or file to file): all or nothing,
+    /// checked table by table at the end.
+    Copy(data::CopyArgs),
+    /// The shop's roles on a server: show yours, create them (--create) or give one to a
+    /// login (--grant LOGIN --role ROLE).
+    Roles(data::RolesArgs),
     /// Write the PDF condition report: fleet page, then one page per unit with charts.
     Report(report::ReportArgs),
     /// Make a large generated shop for the benchmarks in benches/ (hidden).
@@ -105,44 +116,48 @@ pub enum Command {
 
 /// Runs a parsed command line; `None` means "open the app".
 pub fn run(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
+    // The app started from a desktop icon has no --db: the environment can name the shop.
+    let db = cli.db.clone().or_else(|| {
+        std::env::var_os(DB_VARIABLE)
+            .filter(|v| !v.is_empty())
+            .map(PathBuf::from)
+    });
     match &cli.command {
         Some(Command::Calc(args)) => calc::run(args, out),
-        Some(Command::Init(args)) => data::run_init(cli.db.as_deref(), args, out),
-        Some(Command::Demo) => data::run_demo(cli.db.as_deref(), out),
-        Some(Command::Import(args)) => data::run_import(cli.db.as_deref(), args, out),
-        Some(Command::Export(args)) => data::run_export(cli.db.as_deref(), args, out),
+        Some(Command::Init(args)) => data::run_init(db.as_deref(), args, out),
+        Some(Command::Demo) => data::run_demo(db.as_deref(), out),
+        Some(Command::Import(args)) => data::run_import(db.as_deref(), args, out),
+        Some(Command::Export(args)) => data::run_export(db.as_deref(), args, out),
         Some(Command::Status(args)) => {
-            status::run_status(&data::open_shop(cli.db.as_deref())?, args, out)
+            status::run_status(&data::open_shop(db.as_deref())?, args, out)
         }
-        Some(Command::Due(args)) => {
-            status::run_due(&data::open_shop(cli.db.as_deref())?, args, out)
-        }
-        Some(Command::Ack(args)) => {
-            status::run_ack(&data::open_shop(cli.db.as_deref())?, args, out)
-        }
+        Some(Command::Due(args)) => status::run_due(&data::open_shop(db.as_deref())?, args, out),
+        Some(Command::Ack(args)) => status::run_ack(&data::open_shop(db.as_deref())?, args, out),
         Some(Command::LogEvent(args)) => {
-            status::run_log_event(&data::open_shop(cli.db.as_deref())?, args, out)
+            status::run_log_event(&data::open_shop(db.as_deref())?, args, out)
         }
         Some(Command::Baseline(args)) => {
-            status::run_baseline(&data::open_shop(cli.db.as_deref())?, args, out)
+            status::run_baseline(&data::open_shop(db.as_deref())?, args, out)
         }
         Some(Command::LogCheck(args)) => {
-            entry::run_log_check(&data::open_shop(cli.db.as_deref())?, args, out)
+            entry::run_log_check(&data::open_shop(db.as_deref())?, args, out)
         }
         Some(Command::Confirm(args)) => {
             confirm::run(&data::open_shop(cli.db.as_deref())?, args, out)
         }
         Some(Command::Limits(args)) => {
-            status::run_limits(&data::open_shop(cli.db.as_deref())?, args, out)
+            status::run_limits(&data::open_shop(db.as_deref())?, args, out)
         }
-        Some(Command::Backup(args)) => data::run_backup(cli.db.as_deref(), args, out),
-        Some(Command::Report(args)) => report::run(&data::open_shop(cli.db.as_deref())?, args, out),
-        Some(Command::BenchShop(args)) => bench::run(cli.db.as_deref(), args, out),
+        Some(Command::Backup(args)) => data::run_backup(db.as_deref(), args, out),
+        Some(Command::Copy(args)) => data::run_copy(args, out),
+        Some(Command::Roles(args)) => data::run_roles(db.as_deref(), args, out),
+        Some(Command::Report(args)) => report::run(&data::open_shop(db.as_deref())?, args, out),
+        Some(Command::BenchShop(args)) => bench::run(db.as_deref(), args, out),
         // No subcommand: the desktop app, on --db or the default shop.
         #[cfg(feature = "gui")]
-        None => crate::gui::run(cli.db.as_deref()).map_err(Failure::from),
+        None => crate::gui::run(db.as_deref()).map_err(Failure::from),
         // Built without the app: the stored status of the shop.
         #[cfg(not(feature = "gui"))]
-        None => data::run_stored_status(cli.db.as_deref(), &data::StoredStatusArgs::default(), out),
+        None => data::run_stored_status(db.as_deref(), &data::StoredStatusArgs::default(), out),
     }
 }

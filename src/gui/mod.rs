@@ -650,7 +650,7 @@ const FIRST_FRAME_EXIT: &str = "SUMPBOOK_EXIT_AFTER_FIRST_FRAME";
 pub fn run(db: Option<&Path>) -> Result<(), AppError> {
     let path = match db {
         Some(p) => {
-            if !p.exists() {
+            if !p.exists() && !Shop::is_server(p) {
                 return Err(AppError::BadInput(format!(
                     "{}: no such file; make a shop there with `sumpbook --db {} init` (empty) or `demo`",
                     p.display(),

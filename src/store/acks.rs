@@ -1,14 +1,14 @@
 //! Acknowledgements of flags: the `acknowledgements` table. Insert and list only; an
 //! acknowledgement is evidence that someone saw a flag and is never changed.
 
-use rusqlite::{params, Row};
+use super::db::{params, Row};
 
 use super::{fmt_time_stamp, time_col, Store, StoreError};
 use crate::model::{Acknowledgement, Id};
 
 pub(crate) const ACK_COLS: &str = "id, unit_id, kind, state, ack_by, note, acked_at";
 
-pub(crate) fn ack_from_row(r: &Row<'_>) -> rusqlite::Result<Acknowledgement> {
+pub(crate) fn ack_from_row(r: &Row<'_>) -> Result<Acknowledgement, StoreError> {
     Ok(Acknowledgement {
         id: r.get(0)?,
         unit_id: r.get(1)?,
@@ -24,9 +24,7 @@ impl Store {
     /// Records an acknowledgement and returns its id. `state` is `watch` or `act`; `at` is kept
     /// to the second.
     pub fn insert_ack(&self, a: &Acknowledgement) -> Result<Id, StoreError> {
-        self.stmt("INSERT INTO acknowledgements (unit_id, kind, state, ack_by, note, acked_at) VALUES (?1, ?2, ?3, ?4, ?5, ?6)")?
-            .execute(params![a.unit_id, a.kind.trim(), a.state.trim(), a.by.trim(), a.note, fmt_time_stamp(&a.at)])?;
-        Ok(self.conn.last_insert_rowid())
+        self.insert_row("INSERT INTO acknowledgements (unit_id, kind, state, ack_by, note, acked_at) VALUES (?1, ?2, ?3, ?4, ?5, ?6)", params![a.unit_id, a.kind.trim(), a.state.trim(), a.by.trim(), a.note, fmt_time_stamp(&a.at)])
     }
 
     /// The acknowledgements of one unit, oldest first.
@@ -34,8 +32,6 @@ impl Store {
         let sql = format!(
             "SELECT {ACK_COLS} FROM acknowledgements WHERE unit_id = ?1 ORDER BY acked_at, id"
         );
-        let mut st = self.stmt(&sql)?;
-        let rows = st.query_map([unit_id], ack_from_row)?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        self.query(&sql, params![unit_id], ack_from_row)
     }
 }

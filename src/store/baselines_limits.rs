@@ -5,7 +5,7 @@
 //! row with one overrides it for that unit. No health rules here: the engine decides what a key
 //! means and what the defaults are.
 
-use rusqlite::{params, Row};
+use super::db::{params, Row};
 
 use super::{fmt_time, fmt_time_stamp, time_col, Store, StoreError};
 use crate::model::{Id, LimitSetting, ManualBaseline};
@@ -13,7 +13,7 @@ use crate::model::{Id, LimitSetting, ManualBaseline};
 const BASELINE_COLS: &str =
     "id, unit_id, era_start, indicator, value_si, spread_si, entered_by, entered_at";
 
-pub(crate) fn baseline_from_row(r: &Row<'_>) -> rusqlite::Result<ManualBaseline> {
+pub(crate) fn baseline_from_row(r: &Row<'_>) -> Result<ManualBaseline, StoreError> {
     Ok(ManualBaseline {
         id: r.get(0)?,
         unit_id: r.get(1)?,
@@ -45,11 +45,10 @@ impl Store {
     pub fn insert_manual_baseline(&self, b: &ManualBaseline) -> Result<Id, StoreError> {
         finite("value_si", Some(b.value))?;
         finite("spread_si", Some(b.spread))?;
-        self.stmt(
+        self.insert_row(
             "INSERT INTO manual_baselines (unit_id, era_start, indicator, value_si, spread_si, entered_by, entered_at) \
              VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7)",
-        )?
-        .execute(params![
+        params![
             b.unit_id,
             fmt_time("era_start", &b.era_start)?,
             b.indicator.trim(),
@@ -57,8 +56,7 @@ impl Store {
             b.spread,
             b.entered_by.trim(),
             fmt_time_stamp(&b.entered_at)
-        ])?;
-        Ok(self.conn.last_insert_rowid())
+        ])
     }
 
     /// The hand-entered baselines of one unit, oldest era first, latest entry last.
@@ -67,17 +65,13 @@ impl Store {
             "{} WHERE unit_id = ?1 ORDER BY era_start, entered_at, id",
             baseline_sql()
         );
-        let mut st = self.stmt(&sql)?;
-        let rows = st.query_map([unit_id], baseline_from_row)?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        self.query(&sql, params![unit_id], baseline_from_row)
     }
 
     /// Withdraws a hand-entered baseline; the value stays in the edit history.
     pub fn delete_manual_baseline(&self, id: Id, by: &str, reason: &str) -> Result<(), StoreError> {
         self.with_edit(by, reason, |s| {
-            let n = s
-                .stmt("DELETE FROM manual_baselines WHERE id = ?1")?
-                .execute([id])?;
+            let n = s.exec("DELETE FROM manual_baselines WHERE id = ?1", params![id])?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("manual baseline {id}")));
             }
@@ -87,17 +81,14 @@ impl Store {
 
     /// Every stored limit: shop defaults (`unit_id` None) first, then overrides by unit.
     pub fn limits(&self) -> Result<Vec<LimitSetting>, StoreError> {
-        let mut st =
-            self.stmt("SELECT unit_id, key, watch, act FROM limits ORDER BY unit_id IS NOT NULL, unit_id, key")?;
-        let rows = st.query_map([], |r| {
+        self.query("SELECT unit_id, key, watch, act FROM limits ORDER BY unit_id IS NOT NULL, unit_id, key", params![], |r| {
             Ok(LimitSetting {
                 unit_id: r.get(0)?,
                 key: r.get(1)?,
                 watch: r.get(2)?,
                 act: r.get(3)?,
             })
-        })?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        })
     }
 
     /// Sets a shop default (`unit_id` None) or a unit's override; a changed value is kept in the
@@ -112,12 +103,9 @@ impl Store {
         finite("watch", l.watch)?;
         finite("act", l.act)?;
         self.with_edit(by, reason, |s| {
-            let n = s
-                .stmt("UPDATE limits SET watch = ?3, act = ?4 WHERE unit_id IS ?1 AND key = ?2")?
-                .execute(params![l.unit_id, l.key.trim(), l.watch, l.act])?;
+            let n = s.exec("UPDATE limits SET watch = ?3, act = ?4 WHERE unit_id IS NOT DISTINCT FROM ?1 AND key = ?2", params![l.unit_id, l.key.trim(), l.watch, l.act])?;
             if n == 0 {
-                s.stmt("INSERT INTO limits (unit_id, key, watch, act) VALUES (?1, ?2, ?3, ?4)")?
-                    .execute(params![l.unit_id, l.key.trim(), l.watch, l.act])?;
+                s.exec("INSERT INTO limits (unit_id, key, watch, act) VALUES (?1, ?2, ?3, ?4)", params![l.unit_id, l.key.trim(), l.watch, l.act])?;
             }
             Ok(())
         })
@@ -133,9 +121,10 @@ impl Store {
         reason: &str,
     ) -> Result<bool, StoreError> {
         self.with_edit(by, reason, |s| {
-            let n = s
-                .stmt("DELETE FROM limits WHERE unit_id IS ?1 AND key = ?2")?
-                .execute(params![unit_id, key.trim()])?;
+            let n = s.exec(
+                "DELETE FROM limits WHERE unit_id IS NOT DISTINCT FROM ?1 AND key = ?2",
+                params![unit_id, key.trim()],
+            )?;
             Ok(n > 0)
         })
     }

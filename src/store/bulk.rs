@@ -5,14 +5,14 @@
 //! [`Bulk::commit`] rolls everything back: imports are all-or-nothing. A row whose identifying
 //! key (unit + time, + kind for events) is already stored is not written again: [`Put`] says
 //! whether it was new or hands back the stored row, which is never overwritten. A row that
-//! breaks a schema rule fails alone (SQLite undoes just that statement), so a caller may go on
-//! and collect every bad row before deciding.
+//! breaks a schema rule fails alone (SQLite undoes just that statement; on a server a savepoint
+//! around each row does the same), so a caller may go on and collect every bad row before
+//! deciding.
 
 use std::collections::HashMap;
 
-use rusqlite::{params, OptionalExtension, Statement};
-
 use super::checks::{check_from_row, CheckRow, CHECK_COLS, INSERT_CHECK};
+use super::db::params;
 use super::events::{event_from_row, EventRow, EVENT_COLS, INSERT_EVENT};
 use super::fluids::{FluidRow, INSERT_FLUID};
 use super::machines_units::{check_machine, UnitRow, INSERT_MACHINE, INSERT_UNIT};
@@ -30,33 +30,43 @@ pub enum Put<T> {
     Exists(Box<T>),
 }
 
+/// The statements of a bulk write, built once per transaction.
+struct BulkSql {
+    ins_check: String,
+    sel_check: String,
+    ins_sample: String,
+    sel_sample: String,
+    ins_event: String,
+    sel_event: String,
+}
+
+impl BulkSql {
+    fn new() -> BulkSql {
+        BulkSql {
+            ins_check: format!("{INSERT_CHECK} ON CONFLICT (unit_id, taken_at) DO NOTHING"),
+            sel_check: format!(
+                "SELECT {CHECK_COLS} FROM checks WHERE unit_id = ?1 AND taken_at = ?2"
+            ),
+            ins_sample: format!("{INSERT_SAMPLE} ON CONFLICT (unit_id, sampled_at) DO NOTHING"),
+            sel_sample: format!(
+                "SELECT {SAMPLE_COLS} FROM samples WHERE unit_id = ?1 AND sampled_at = ?2"
+            ),
+            ins_event: format!("{INSERT_EVENT} ON CONFLICT (unit_id, done_at, kind) DO NOTHING"),
+            sel_event: format!(
+                "SELECT {EVENT_COLS} FROM events WHERE unit_id = ?1 AND done_at = ?2 AND kind = ?3"
+            ),
+        }
+    }
+}
+
 /// One open bulk-write transaction. See the module documentation.
 pub struct Bulk<'s> {
     store: &'s Store,
     machines: HashMap<String, Machine>,
     units: HashMap<String, Unit>,
     fluids: HashMap<String, Fluid>,
-    ins_check: Option<Statement<'s>>,
-    sel_check: Option<Statement<'s>>,
-    ins_sample: Option<Statement<'s>>,
-    sel_sample: Option<Statement<'s>>,
-    ins_event: Option<Statement<'s>>,
-    sel_event: Option<Statement<'s>>,
-    // Last, so that on drop the statements are finalized before the rollback.
+    sql: BulkSql,
     tx: TxGuard<'s>,
-}
-
-fn prepared<'s, 'a>(
-    slot: &'a mut Option<Statement<'s>>,
-    store: &'s Store,
-    sql: impl FnOnce() -> String,
-) -> Result<&'a mut Statement<'s>, StoreError> {
-    // Prepared once per bulk transaction; the SQL text is only built then.
-    if slot.is_none() {
-        *slot = Some(store.conn.prepare(&sql())?);
-    }
-    slot.as_mut()
-        .ok_or_else(|| StoreError::Corrupt("statement not prepared".into()))
 }
 
 impl Store {
@@ -65,7 +75,7 @@ impl Store {
         let store: &Store = self;
         // Take the write lock first: an import that waited behind another writer must see the
         // register as that writer left it, not as it was before the wait.
-        let tx = store.begin()?;
+        let tx = store.begin_as(true)?;
         let machines = store
             .machines()?
             .into_iter()
@@ -87,12 +97,7 @@ impl Store {
             machines,
             units,
             fluids,
-            ins_check: None,
-            sel_check: None,
-            ins_sample: None,
-            sel_sample: None,
-            ins_event: None,
-            sel_event: None,
+            sql: BulkSql::new(),
         })
     }
 }
@@ -123,15 +128,19 @@ impl<'s> Bulk<'s> {
     /// Adds a machine (a tag already present is a [`StoreError::Duplicate`]).
     pub fn insert_machine(&mut self, m: &Machine) -> Result<Id, StoreError> {
         check_machine(m)?;
-        self.store.stmt(INSERT_MACHINE)?.execute(params![
-            m.tag.trim(),
-            m.name,
-            m.kind,
-            m.route_order,
-            m.notes,
-            i64::from(m.archived)
-        ])?;
-        let id = self.store.conn.last_insert_rowid();
+        let id = self.store.db.statement_alone(|| {
+            self.store.insert_row(
+                INSERT_MACHINE,
+                params![
+                    m.tag.trim(),
+                    m.name,
+                    m.kind,
+                    m.route_order,
+                    m.notes,
+                    i64::from(m.archived)
+                ],
+            )
+        })?;
         let mut stored = m.clone();
         stored.id = id;
         stored.tag = m.tag.trim().to_string();
@@ -142,8 +151,10 @@ impl<'s> Bulk<'s> {
     /// Adds a fluid (a name already present is a [`StoreError::Duplicate`]).
     pub fn insert_fluid(&mut self, f: &Fluid) -> Result<Id, StoreError> {
         let row = FluidRow::from_model(f)?;
-        self.store.stmt(INSERT_FLUID)?.execute(&row.params()[..])?;
-        let id = self.store.conn.last_insert_rowid();
+        let id = self
+            .store
+            .db
+            .statement_alone(|| self.store.insert_row(INSERT_FLUID, &row.params()[..]))?;
         let mut stored = f.clone();
         stored.id = id;
         stored.name = f.name.trim().to_string();
@@ -154,8 +165,10 @@ impl<'s> Bulk<'s> {
     /// Adds a hydraulic unit (a tag already present is a [`StoreError::Duplicate`]).
     pub fn insert_unit(&mut self, u: &Unit) -> Result<Id, StoreError> {
         let row = UnitRow::from_model(u)?;
-        self.store.stmt(INSERT_UNIT)?.execute(&row.params()[..])?;
-        let id = self.store.conn.last_insert_rowid();
+        let id = self
+            .store
+            .db
+            .statement_alone(|| self.store.insert_row(INSERT_UNIT, &row.params()[..]))?;
         let mut stored = u.clone();
         stored.id = id;
         stored.tag = u.tag.trim().to_string();
@@ -168,20 +181,19 @@ impl<'s> Bulk<'s> {
         let row = CheckRow::from_model(c)?;
         let store = self.store;
         store.count();
-        let n = prepared(&mut self.ins_check, store, || {
-            format!("{INSERT_CHECK} ON CONFLICT (unit_id, taken_at) DO NOTHING")
-        })?
-        .execute(&row.params()[..])?;
-        if n == 1 {
-            return Ok(Put::Inserted(store.conn.last_insert_rowid()));
+        let id = store
+            .db
+            .statement_alone(|| store.db.insert(&self.sql.ins_check, &row.params()[..]))?;
+        if let Some(id) = id {
+            return Ok(Put::Inserted(id));
         }
-        store.count();
-        let existing = prepared(&mut self.sel_check, store, || {
-            format!("SELECT {CHECK_COLS} FROM checks WHERE unit_id = ?1 AND taken_at = ?2")
-        })?
-        .query_row(params![row.unit_id, row.taken_at], check_from_row)
-        .optional()?
-        .ok_or_else(|| StoreError::Refused("the check was neither written nor found".into()))?;
+        let existing = store
+            .query_opt(
+                &self.sql.sel_check,
+                params![row.unit_id, row.taken_at],
+                check_from_row,
+            )?
+            .ok_or_else(|| StoreError::Refused("the check was neither written nor found".into()))?;
         Ok(Put::Exists(Box::new(existing)))
     }
 
@@ -190,20 +202,21 @@ impl<'s> Bulk<'s> {
         let row = SampleRow::from_model(s)?;
         let store = self.store;
         store.count();
-        let n = prepared(&mut self.ins_sample, store, || {
-            format!("{INSERT_SAMPLE} ON CONFLICT (unit_id, sampled_at) DO NOTHING")
-        })?
-        .execute(&row.params()[..])?;
-        if n == 1 {
-            return Ok(Put::Inserted(store.conn.last_insert_rowid()));
+        let id = store
+            .db
+            .statement_alone(|| store.db.insert(&self.sql.ins_sample, &row.params()[..]))?;
+        if let Some(id) = id {
+            return Ok(Put::Inserted(id));
         }
-        store.count();
-        let existing = prepared(&mut self.sel_sample, store, || {
-            format!("SELECT {SAMPLE_COLS} FROM samples WHERE unit_id = ?1 AND sampled_at = ?2")
-        })?
-        .query_row(params![row.unit_id, row.sampled_at], sample_from_row)
-        .optional()?
-        .ok_or_else(|| StoreError::Refused("the sample was neither written nor found".into()))?;
+        let existing = store
+            .query_opt(
+                &self.sql.sel_sample,
+                params![row.unit_id, row.sampled_at],
+                sample_from_row,
+            )?
+            .ok_or_else(|| {
+                StoreError::Refused("the sample was neither written nor found".into())
+            })?;
         Ok(Put::Exists(Box::new(existing)))
     }
 
@@ -212,44 +225,26 @@ impl<'s> Bulk<'s> {
         let row = EventRow::from_model(e)?;
         let store = self.store;
         store.count();
-        let n = prepared(&mut self.ins_event, store, || {
-            format!("{INSERT_EVENT} ON CONFLICT (unit_id, done_at, kind) DO NOTHING")
-        })?
-        .execute(&row.params()[..])?;
-        if n == 1 {
-            return Ok(Put::Inserted(store.conn.last_insert_rowid()));
+        let id = store
+            .db
+            .statement_alone(|| store.db.insert(&self.sql.ins_event, &row.params()[..]))?;
+        if let Some(id) = id {
+            return Ok(Put::Inserted(id));
         }
-        store.count();
-        let existing = prepared(&mut self.sel_event, store, || {
-            format!(
-                "SELECT {EVENT_COLS} FROM events WHERE unit_id = ?1 AND done_at = ?2 AND kind = ?3"
-            )
-        })?
-        .query_row(params![row.unit_id, row.done_at, row.kind], event_from_row)
-        .optional()?
-        .ok_or_else(|| StoreError::Refused("the event was neither written nor found".into()))?;
+        let existing = store
+            .query_opt(
+                &self.sql.sel_event,
+                params![row.unit_id, row.done_at, row.kind],
+                event_from_row,
+            )?
+            .ok_or_else(|| StoreError::Refused("the event was neither written nor found".into()))?;
         Ok(Put::Exists(Box::new(existing)))
     }
 
     /// Makes everything written through this `Bulk` permanent.
     pub fn commit(self) -> Result<(), StoreError> {
-        let Bulk {
-            store,
-            tx,
-            ins_check,
-            sel_check,
-            ins_sample,
-            sel_sample,
-            ins_event,
-            sel_event,
-            ..
-        } = self;
-        // Statements must be finished before COMMIT.
-        drop((
-            ins_check, sel_check, ins_sample, sel_sample, ins_event, sel_event,
-        ));
-        store.count();
-        tx.commit()
+        self.store.count();
+        self.tx.commit()
     }
 
     /// Throws away everything written through this `Bulk` (dropping it does the same).

@@ -4,8 +4,8 @@
 //! stored in the units of the column names. Edits and deletions are kept in the edit history.
 //! No CSV, no health.
 
+use super::db::{params, Row, ToDb};
 use chrono::{DateTime, Utc};
-use rusqlite::{params, OptionalExtension, Row};
 
 use super::columns::{bar, lpm, secs, temp_c, tidy};
 use super::{
@@ -20,20 +20,20 @@ pub(crate) const CHECK_COLS: &str =
      stroke_time_s, cycle_time_s, oil_level, filter, hours, case_drain_lpm, taken_by, note, \
      confirmed_by, confirmed_at";
 
-pub(crate) fn check_from_row(r: &Row<'_>) -> rusqlite::Result<Check> {
+pub(crate) fn check_from_row(r: &Row<'_>) -> Result<Check, StoreError> {
     Ok(Check {
         id: r.get(0)?,
         unit_id: r.get(1)?,
         taken_at: time_col(r, 2)?,
-        reservoir_temp: r.get::<_, Option<f64>>(3)?.map(Temperature::from_c),
-        ambient_temp: r.get::<_, Option<f64>>(4)?.map(Temperature::from_c),
-        pressure: r.get::<_, Option<f64>>(5)?.map(Pressure::from_bar),
-        stroke_time: r.get::<_, Option<f64>>(6)?.map(Seconds),
-        cycle_time: r.get::<_, Option<f64>>(7)?.map(Seconds),
+        reservoir_temp: r.get::<Option<f64>>(3)?.map(Temperature::from_c),
+        ambient_temp: r.get::<Option<f64>>(4)?.map(Temperature::from_c),
+        pressure: r.get::<Option<f64>>(5)?.map(Pressure::from_bar),
+        stroke_time: r.get::<Option<f64>>(6)?.map(Seconds),
+        cycle_time: r.get::<Option<f64>>(7)?.map(Seconds),
         oil_level: opt_enum_col(r, 8)?,
         filter: opt_enum_col(r, 9)?,
         hours: r.get(10)?,
-        case_drain: r.get::<_, Option<f64>>(11)?.map(Flow::from_lpm),
+        case_drain: r.get::<Option<f64>>(11)?.map(Flow::from_lpm),
         by: r.get(12)?,
         note: r.get(13)?,
         confirmed: confirmation_cols(r, 14)?,
@@ -81,7 +81,7 @@ impl<'a> CheckRow<'a> {
         })
     }
 
-    pub fn params(&self) -> [&dyn rusqlite::ToSql; 15] {
+    pub fn params(&self) -> [&dyn ToDb; 15] {
         [
             &self.unit_id,
             &self.taken_at,
@@ -118,33 +118,24 @@ impl Store {
     /// Adds one check and returns its id. A check of the same unit at the same time is refused.
     pub fn insert_check(&self, c: &Check) -> Result<Id, StoreError> {
         let row = CheckRow::from_model(c)?;
-        self.stmt(INSERT_CHECK)?.execute(&row.params()[..])?;
-        Ok(self.conn.last_insert_rowid())
+        self.insert_row(INSERT_CHECK, &row.params()[..])
     }
 
     /// Adds many checks in one transaction: all or none.
     pub fn insert_checks(&self, checks: &[Check]) -> Result<Vec<Id>, StoreError> {
         let tx = self.begin()?;
         let mut ids = Vec::with_capacity(checks.len());
-        {
-            let mut st = self.conn.prepare_cached(INSERT_CHECK)?;
-            for c in checks {
-                let row = CheckRow::from_model(c)?;
-                st.execute(&row.params()[..])?;
-                ids.push(self.conn.last_insert_rowid());
-            }
+        for c in checks {
+            let row = CheckRow::from_model(c)?;
+            ids.push(self.insert_row(INSERT_CHECK, &row.params()[..])?);
         }
-        self.count_n(checks.len() as u64);
         tx.commit()?;
         Ok(ids)
     }
 
     pub fn check(&self, id: Id) -> Result<Option<Check>, StoreError> {
         let sql = format!("SELECT {CHECK_COLS} FROM checks WHERE id = ?1");
-        Ok(self
-            .stmt(&sql)?
-            .query_row([id], check_from_row)
-            .optional()?)
+        self.query_opt(&sql, params![id], check_from_row)
     }
 
     /// The checks of one unit, oldest first; with `at`, only those taken at or before it.
@@ -154,21 +145,17 @@ impl Store {
         at: Option<DateTime<Utc>>,
     ) -> Result<Vec<Check>, StoreError> {
         let until = super::history::until_text(at);
-        let mut st = self.stmt(&unit_checks_sql())?;
-        let rows = st.query_map(params![unit_id, until], check_from_row)?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        self.query(&unit_checks_sql(), params![unit_id, until], check_from_row)
     }
 
     /// The latest check of every unit that has one, ordered by unit id.
     pub fn latest_checks(&self) -> Result<Vec<Check>, StoreError> {
-        // SQLite returns the other columns of the row that holds max() in a bare aggregate.
+        // (unit, time) is unique, so each unit's latest time names one row.
         let sql = format!(
-            "SELECT {CHECK_COLS} FROM checks WHERE id IN \
-             (SELECT id FROM (SELECT id, max(taken_at) FROM checks GROUP BY unit_id)) ORDER BY unit_id"
+            "SELECT {CHECK_COLS} FROM checks WHERE (unit_id, taken_at) IN \
+             (SELECT unit_id, max(taken_at) FROM checks GROUP BY unit_id) ORDER BY unit_id"
         );
-        let mut st = self.stmt(&sql)?;
-        let rows = st.query_map([], check_from_row)?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        self.query(&sql, params![], check_from_row)
     }
 
     /// Changes a stored check (found by `c.id`); the old and new values go to the edit history
@@ -176,16 +163,14 @@ impl Store {
     pub fn update_check(&self, c: &Check, by: &str, reason: &str) -> Result<(), StoreError> {
         let row = CheckRow::from_model(c)?;
         self.with_edit(by, reason, |s| {
-            let mut p: Vec<&dyn rusqlite::ToSql> = row.params().to_vec();
+            let mut p: Vec<&dyn ToDb> = row.params().to_vec();
             p.push(&c.id);
-            let n = s
-                .stmt(
+            let n = s.exec(
                     "UPDATE checks SET unit_id = ?1, taken_at = ?2, reservoir_temp_c = ?3, ambient_temp_c = ?4, \
                      pressure_bar = ?5, stroke_time_s = ?6, cycle_time_s = ?7, oil_level = ?8, filter = ?9, hours = ?10, \
                      case_drain_lpm = ?11, taken_by = ?12, note = ?13, confirmed_by = ?14, confirmed_at = ?15 \
                      WHERE id = ?16",
-                )?
-                .execute(&p[..])?;
+                &p[..])?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("check {}", c.id)));
             }
@@ -196,17 +181,16 @@ impl Store {
     /// The check of unit `unit_id` taken at exactly `at`, if there is one.
     pub fn check_at(&self, unit_id: Id, at: &DateTime<Utc>) -> Result<Option<Check>, StoreError> {
         let sql = format!("SELECT {CHECK_COLS} FROM checks WHERE unit_id = ?1 AND taken_at = ?2");
-        Ok(self
-            .stmt(&sql)?
-            .query_row(params![unit_id, fmt_time_stamp(at)], check_from_row)
-            .optional()?)
+        self.query_opt(&sql, params![unit_id, fmt_time_stamp(at)], check_from_row)
     }
 
     /// Whether any stored check is confirmed (an export then carries the confirmation columns).
     pub fn any_confirmed_check(&self) -> Result<bool, StoreError> {
-        Ok(self
-            .stmt("SELECT EXISTS (SELECT 1 FROM checks WHERE confirmed_by IS NOT NULL)")?
-            .query_row([], |r| r.get(0))?)
+        self.query_one(
+            "SELECT EXISTS (SELECT 1 FROM checks WHERE confirmed_by IS NOT NULL)",
+            params![],
+            |r| r.get(0),
+        )
     }
 
     /// Marks a stored check as confirmed by a person (`Some`), or lifts its confirmation
@@ -222,9 +206,10 @@ impl Store {
         let at = confirmation_time(&confirmed.cloned())?;
         let who = confirmed.map(|k| k.by.trim());
         self.with_edit(by, reason, |s| {
-            let n = s
-                .stmt("UPDATE checks SET confirmed_by = ?1, confirmed_at = ?2 WHERE id = ?3")?
-                .execute(params![who, at, id])?;
+            let n = s.exec(
+                "UPDATE checks SET confirmed_by = ?1, confirmed_at = ?2 WHERE id = ?3",
+                params![who, at, id],
+            )?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("check {id}")));
             }
@@ -235,7 +220,7 @@ impl Store {
     /// Deletes a stored check; its values stay in the edit history with `by` and `reason`.
     pub fn delete_check(&self, id: Id, by: &str, reason: &str) -> Result<(), StoreError> {
         self.with_edit(by, reason, |s| {
-            let n = s.stmt("DELETE FROM checks WHERE id = ?1")?.execute([id])?;
+            let n = s.exec("DELETE FROM checks WHERE id = ?1", params![id])?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("check {id}")));
             }
@@ -252,11 +237,6 @@ impl Store {
         mut f: impl FnMut(Check) -> Result<(), E>,
     ) -> Result<(), E> {
         let sql = format!("SELECT {CHECK_COLS} FROM checks ORDER BY taken_at, unit_id");
-        let mut st = self.stmt(&sql)?;
-        let mut rows = st.query([]).map_err(StoreError::from)?;
-        while let Some(r) = rows.next().map_err(StoreError::from)? {
-            f(check_from_row(r).map_err(StoreError::from)?)?;
-        }
-        Ok(())
+        self.query_each(&sql, params![], |r| f(check_from_row(r)?))
     }
 }

@@ -2,7 +2,7 @@
 //! and why. Writing happens only through the schema's triggers (see `Store::with_edit`); the
 //! table itself refuses UPDATE and DELETE.
 
-use rusqlite::{params, Row};
+use super::db::{params, Row};
 
 use super::{time_col, Store, StoreError};
 use crate::model::{EditRecord, Id};
@@ -10,7 +10,7 @@ use crate::model::{EditRecord, Id};
 const EDIT_COLS: &str =
     "id, table_name, row_id, action, old_value, new_value, edited_by, reason, edited_at";
 
-fn edit_from_row(r: &Row<'_>) -> rusqlite::Result<EditRecord> {
+fn edit_from_row(r: &Row<'_>) -> Result<EditRecord, StoreError> {
     Ok(EditRecord {
         id: r.get(0)?,
         table: r.get(1)?,
@@ -31,16 +31,12 @@ impl Store {
         let sql = format!(
             "SELECT {EDIT_COLS} FROM edit_log WHERE table_name = ?1 AND row_id = ?2 ORDER BY id"
         );
-        let mut st = self.stmt(&sql)?;
-        let rows = st.query_map(params![table, row_id], edit_from_row)?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        self.query(&sql, params![table, row_id], edit_from_row)
     }
 
     /// The whole edit history, oldest first.
     pub fn edit_log(&self) -> Result<Vec<EditRecord>, StoreError> {
         let sql = format!("SELECT {EDIT_COLS} FROM edit_log ORDER BY id");
-        let mut st = self.stmt(&sql)?;
-        let rows = st.query_map([], edit_from_row)?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        self.query(&sql, params![], edit_from_row)
     }
 }

@@ -3,8 +3,8 @@
 //!
 //! One row per unit, time and kind. No CSV, no health.
 
+use super::db::{params, Row, ToDb};
 use chrono::{DateTime, Utc};
-use rusqlite::{params, OptionalExtension, Row};
 
 use super::columns::litres;
 use super::{enum_col, fmt_time, time_col, Store, StoreError};
@@ -13,13 +13,13 @@ use crate::units::Volume;
 
 pub(crate) const EVENT_COLS: &str = "id, unit_id, done_at, kind, volume_l, fluid_id, done_by, note";
 
-pub(crate) fn event_from_row(r: &Row<'_>) -> rusqlite::Result<Event> {
+pub(crate) fn event_from_row(r: &Row<'_>) -> Result<Event, StoreError> {
     Ok(Event {
         id: r.get(0)?,
         unit_id: r.get(1)?,
         done_at: time_col(r, 2)?,
         kind: enum_col(r, 3)?,
-        volume: r.get::<_, Option<f64>>(4)?.map(Volume::from_l),
+        volume: r.get::<Option<f64>>(4)?.map(Volume::from_l),
         fluid_id: r.get(5)?,
         by: r.get(6)?,
         note: r.get(7)?,
@@ -51,7 +51,7 @@ impl<'a> EventRow<'a> {
         })
     }
 
-    pub fn params(&self) -> [&dyn rusqlite::ToSql; 7] {
+    pub fn params(&self) -> [&dyn ToDb; 7] {
         [
             &self.unit_id,
             &self.done_at,
@@ -77,16 +77,12 @@ impl Store {
     /// Records one event and returns its id.
     pub fn insert_event(&self, e: &Event) -> Result<Id, StoreError> {
         let row = EventRow::from_model(e)?;
-        self.stmt(INSERT_EVENT)?.execute(&row.params()[..])?;
-        Ok(self.conn.last_insert_rowid())
+        self.insert_row(INSERT_EVENT, &row.params()[..])
     }
 
     pub fn event(&self, id: Id) -> Result<Option<Event>, StoreError> {
         let sql = format!("SELECT {EVENT_COLS} FROM events WHERE id = ?1");
-        Ok(self
-            .stmt(&sql)?
-            .query_row([id], event_from_row)
-            .optional()?)
+        self.query_opt(&sql, params![id], event_from_row)
     }
 
     /// The events of one unit, oldest first; with `at`, only those done at or before it.
@@ -96,23 +92,19 @@ impl Store {
         at: Option<DateTime<Utc>>,
     ) -> Result<Vec<Event>, StoreError> {
         let until = super::history::until_text(at);
-        let mut st = self.stmt(&unit_events_sql())?;
-        let rows = st.query_map(params![unit_id, until], event_from_row)?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        self.query(&unit_events_sql(), params![unit_id, until], event_from_row)
     }
 
     /// Changes a stored event (found by `e.id`), keeping the old values in the edit history.
     pub fn update_event(&self, e: &Event, by: &str, reason: &str) -> Result<(), StoreError> {
         let row = EventRow::from_model(e)?;
         self.with_edit(by, reason, |s| {
-            let mut p: Vec<&dyn rusqlite::ToSql> = row.params().to_vec();
+            let mut p: Vec<&dyn ToDb> = row.params().to_vec();
             p.push(&e.id);
-            let n = s
-                .stmt(
+            let n = s.exec(
                     "UPDATE events SET unit_id = ?1, done_at = ?2, kind = ?3, volume_l = ?4, fluid_id = ?5, \
                      done_by = ?6, note = ?7 WHERE id = ?8",
-                )?
-                .execute(&p[..])?;
+                &p[..])?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("event {}", e.id)));
             }
@@ -123,7 +115,7 @@ impl Store {
     /// Deletes a stored event; its values stay in the edit history.
     pub fn delete_event(&self, id: Id, by: &str, reason: &str) -> Result<(), StoreError> {
         self.with_edit(by, reason, |s| {
-            let n = s.stmt("DELETE FROM events WHERE id = ?1")?.execute([id])?;
+            let n = s.exec("DELETE FROM events WHERE id = ?1", params![id])?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("event {id}")));
             }
@@ -139,11 +131,6 @@ impl Store {
         mut f: impl FnMut(Event) -> Result<(), E>,
     ) -> Result<(), E> {
         let sql = format!("SELECT {EVENT_COLS} FROM events ORDER BY done_at, unit_id, kind");
-        let mut st = self.stmt(&sql)?;
-        let mut rows = st.query([]).map_err(StoreError::from)?;
-        while let Some(r) = rows.next().map_err(StoreError::from)? {
-            f(event_from_row(r).map_err(StoreError::from)?)?;
-        }
-        Ok(())
+        self.query_each(&sql, params![], |r| f(event_from_row(r)?))
     }
 }

@@ -1,6 +1,6 @@
-//! The query plans of the reads behind the fleet board and the unit page, so that a test can
-//! hold them to design §9: checks and samples are read through an index (a `SEARCH`), never by a
-//! full scan of the table or of an index (a `SCAN`), whatever the size of the shop.
+//! The query plans of the reads behind the fleet board and the unit page on a shop file, so that
+//! a test can hold them to one rule: checks and samples are read through an index (a `SEARCH`),
+//! never by a full scan of the table or of an index (a `SCAN`), whatever the size of the shop.
 //!
 //! Uses the very statements the store runs (`history::fleet_*_sql`, `checks::unit_checks_sql`,
 //! ...) and only asks SQLite for their `EXPLAIN QUERY PLAN`; nothing is read or written.
@@ -60,7 +60,8 @@ impl Store {
 
     /// The `EXPLAIN QUERY PLAN` of `sql` with `params` bound, as indented lines.
     fn plan(&self, sql: &str, params: &[&dyn rusqlite::ToSql]) -> Result<String, StoreError> {
-        let mut st = self.stmt(&format!("EXPLAIN QUERY PLAN {sql}"))?;
+        self.count();
+        let mut st = self.lite()?.prepare(&format!("EXPLAIN QUERY PLAN {sql}"))?;
         // Rows are (id, parent, notused, detail); a step's depth is that of its parent plus one.
         let rows = st
             .query_map(params, |r| {

@@ -2,7 +2,7 @@
 //!
 //! New-oil properties are the reference for viscosity and acid drift. No CSV, no health.
 
-use rusqlite::{params, OptionalExtension, Row};
+use super::db::{params, Row, ToDb};
 
 use super::columns::{cst, tidy};
 use super::{Store, StoreError};
@@ -12,13 +12,13 @@ use crate::units::Viscosity;
 pub(crate) const FLUID_COLS: &str =
     "id, name, iso_vg, kv40_new_cst, kv100_new_cst, acid_new_mgkoh_g, base_type";
 
-pub(crate) fn fluid_from_row(r: &Row<'_>) -> rusqlite::Result<Fluid> {
+pub(crate) fn fluid_from_row(r: &Row<'_>) -> Result<Fluid, StoreError> {
     Ok(Fluid {
         id: r.get(0)?,
         name: r.get(1)?,
         iso_vg: r.get(2)?,
-        kv40_new: r.get::<_, Option<f64>>(3)?.map(Viscosity::from_cst),
-        kv100_new: r.get::<_, Option<f64>>(4)?.map(Viscosity::from_cst),
+        kv40_new: r.get::<Option<f64>>(3)?.map(Viscosity::from_cst),
+        kv100_new: r.get::<Option<f64>>(4)?.map(Viscosity::from_cst),
         acid_new_mgkoh_g: r.get(5)?,
         base_type: r.get(6)?,
     })
@@ -56,7 +56,7 @@ impl<'a> FluidRow<'a> {
         })
     }
 
-    pub fn params(&self) -> [&dyn rusqlite::ToSql; 6] {
+    pub fn params(&self) -> [&dyn ToDb; 6] {
         [
             &self.name,
             &self.iso_vg,
@@ -72,44 +72,42 @@ impl Store {
     /// All fluids, by name.
     pub fn fluids(&self) -> Result<Vec<Fluid>, StoreError> {
         let sql = format!("SELECT {FLUID_COLS} FROM fluids ORDER BY name");
-        let mut st = self.stmt(&sql)?;
-        let rows = st.query_map([], fluid_from_row)?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        self.query(&sql, params![], fluid_from_row)
     }
 
     pub fn fluid(&self, id: Id) -> Result<Option<Fluid>, StoreError> {
         let sql = format!("SELECT {FLUID_COLS} FROM fluids WHERE id = ?1");
-        Ok(self
-            .stmt(&sql)?
-            .query_row([id], fluid_from_row)
-            .optional()?)
+        self.query_opt(&sql, params![id], fluid_from_row)
     }
 
     pub fn fluid_by_name(&self, name: &str) -> Result<Option<Fluid>, StoreError> {
         let sql = format!("SELECT {FLUID_COLS} FROM fluids WHERE name = ?1");
-        Ok(self
-            .stmt(&sql)?
-            .query_row([name.trim()], fluid_from_row)
-            .optional()?)
+        self.query_opt(&sql, params![name.trim()], fluid_from_row)
     }
 
     /// Adds a fluid (its `id` is ignored) and returns the new id.
     pub fn insert_fluid(&self, f: &Fluid) -> Result<Id, StoreError> {
         let row = FluidRow::from_model(f)?;
-        self.stmt(INSERT_FLUID)?.execute(&row.params()[..])?;
-        Ok(self.conn.last_insert_rowid())
+        self.insert_row(INSERT_FLUID, &row.params()[..])
     }
 
     /// Changes a fluid (found by `f.id`); the old values go to the edit history.
     pub fn update_fluid(&self, f: &Fluid, by: &str, reason: &str) -> Result<(), StoreError> {
         let row = FluidRow::from_model(f)?;
         self.with_edit(by, reason, |s| {
-            let n = s
-                .stmt(
-                    "UPDATE fluids SET name = ?2, iso_vg = ?3, kv40_new_cst = ?4, kv100_new_cst = ?5, \
+            let n = s.exec(
+                "UPDATE fluids SET name = ?2, iso_vg = ?3, kv40_new_cst = ?4, kv100_new_cst = ?5, \
                      acid_new_mgkoh_g = ?6, base_type = ?7 WHERE id = ?1",
-                )?
-                .execute(params![f.id, row.name, row.iso_vg, row.kv40_cst, row.kv100_cst, row.acid, row.base_type])?;
+                params![
+                    f.id,
+                    row.name,
+                    row.iso_vg,
+                    row.kv40_cst,
+                    row.kv100_cst,
+                    row.acid,
+                    row.base_type
+                ],
+            )?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("fluid {}", f.id)));
             }

@@ -4,13 +4,14 @@
 use std::collections::HashMap;
 use std::path::Path;
 
-use rusqlite::{Connection, OpenFlags, OptionalExtension};
+use rusqlite::{Connection, OpenFlags};
 
 use chrono::{DateTime, Utc};
 
 use super::acks::{ack_from_row, ACK_COLS};
 use super::baselines_limits::{baseline_from_row, baseline_sql};
 use super::checks::{check_from_row, CHECK_COLS};
+use super::db::{params, Row};
 use super::events::{event_from_row, EVENT_COLS};
 use super::samples::{sample_from_row, SAMPLE_COLS};
 use super::{fmt_time_stamp, parse_time, Store, StoreError};
@@ -65,9 +66,12 @@ fn read_later_checks(path: &Path, from: &str, until: &str) -> Result<Vec<Check>,
     )?;
     conn.pragma_update(None, "cache_size", -16384)?;
     let mut st = conn.prepare(&fleet_later_checks_sql())?;
-    let rows = st.query_map([from, until], check_from_row)?;
-    rows.collect::<Result<Vec<_>, _>>()
-        .map_err(StoreError::from)
+    let mut rows = st.query([from, until])?;
+    let mut out = Vec::new();
+    while let Some(r) = rows.next()? {
+        out.push(check_from_row(&Row::Lite(r))?);
+    }
+    Ok(out)
 }
 
 pub(crate) fn fleet_samples_sql() -> String {
@@ -123,18 +127,15 @@ impl Store {
     /// The time halfway between the first and the last check up to `until`, if there are
     /// enough checks to be worth a second reader.
     fn split_time(&self, until: &str, checks: i64) -> Result<Option<String>, StoreError> {
-        if checks < SPLIT_READ_CHECKS || self.path == Path::new(":memory:") {
+        // A second reader is a second connection to the same file; a server shop reads on one.
+        if checks < SPLIT_READ_CHECKS || self.path == Path::new(":memory:") || self.is_server() {
             return Ok(None);
         }
         let first: Option<String> = self
-            .stmt(first_check_time_sql())?
-            .query_row([], |r| r.get(0))
-            .optional()?
+            .query_opt(first_check_time_sql(), params![], |r| r.get(0))?
             .flatten();
         let last: Option<String> = self
-            .stmt(last_check_time_sql())?
-            .query_row([until], |r| r.get(0))
-            .optional()?
+            .query_opt(last_check_time_sql(), params![until], |r| r.get(0))?
             .flatten();
         let (Some(first), Some(last)) = (first, last) else {
             return Ok(None);
@@ -178,10 +179,11 @@ impl Store {
             });
         }
 
-        let mut st = self.stmt(fleet_check_counts_sql())?;
         let mut total = 0i64;
-        for r in st.query_map([&until], |r| Ok((r.get::<_, Id>(0)?, r.get::<_, i64>(1)?)))? {
-            let (unit_id, n) = r?;
+        let counts = self.query(fleet_check_counts_sql(), params![until], |r| {
+            Ok((r.get::<Id>(0)?, r.get::<i64>(1)?))
+        })?;
+        for (unit_id, n) in counts {
             total += n;
             if let Some(&i) = slot.get(&unit_id) {
                 out[i].checks.reserve_exact(usize::try_from(n).unwrap_or(0));
@@ -200,14 +202,13 @@ impl Store {
             // Checks up to the split (all of them without one), then the later half after
             // them: both in time order, so each unit's rows stay in time order.
             let first_until = split.as_deref().unwrap_or(&until);
-            let mut st = self.stmt(&fleet_checks_sql())?;
-            for c in st.query_map([first_until], check_from_row)? {
-                let c = c?;
+            self.query_each(&fleet_checks_sql(), params![first_until], |r| {
+                let c = check_from_row(r)?;
                 if let Some(&i) = slot.get(&c.unit_id) {
                     out[i].checks.push(c);
                 }
-            }
-            drop(st);
+                Ok::<(), StoreError>(())
+            })?;
             self.read_other_rows(&until, &slot, &mut out)?;
             if let Some(h) = later {
                 let rows = h
@@ -232,34 +233,34 @@ impl Store {
         slot: &HashMap<Id, usize>,
         out: &mut [UnitHistory],
     ) -> Result<(), StoreError> {
-        let mut st = self.stmt(&fleet_samples_sql())?;
-        for s in st.query_map([&until], sample_from_row)? {
-            let s = s?;
+        self.query_each(&fleet_samples_sql(), params![until], |r| {
+            let s = sample_from_row(r)?;
             if let Some(&i) = slot.get(&s.unit_id) {
                 out[i].samples.push(s);
             }
-        }
-        let mut st = self.stmt(&fleet_events_sql())?;
-        for e in st.query_map([&until], event_from_row)? {
-            let e = e?;
+            Ok::<(), StoreError>(())
+        })?;
+        self.query_each(&fleet_events_sql(), params![until], |r| {
+            let e = event_from_row(r)?;
             if let Some(&i) = slot.get(&e.unit_id) {
                 out[i].events.push(e);
             }
-        }
-        let mut st = self.stmt(&fleet_baselines_sql())?;
-        for b in st.query_map([&until], baseline_from_row)? {
-            let b = b?;
+            Ok::<(), StoreError>(())
+        })?;
+        self.query_each(&fleet_baselines_sql(), params![until], |r| {
+            let b = baseline_from_row(r)?;
             if let Some(&i) = slot.get(&b.unit_id) {
                 out[i].manual_baselines.push(b);
             }
-        }
-        let mut st = self.stmt(&fleet_acks_sql())?;
-        for a in st.query_map([&until], ack_from_row)? {
-            let a = a?;
+            Ok::<(), StoreError>(())
+        })?;
+        self.query_each(&fleet_acks_sql(), params![until], |r| {
+            let a = ack_from_row(r)?;
             if let Some(&i) = slot.get(&a.unit_id) {
                 out[i].acknowledgements.push(a);
             }
-        }
+            Ok::<(), StoreError>(())
+        })?;
         Ok(())
     }
 
@@ -313,14 +314,19 @@ impl Store {
     /// Number of checks and samples stored per unit (units with neither are absent).
     pub fn reading_counts(&self) -> Result<HashMap<Id, (u64, u64)>, StoreError> {
         let mut out: HashMap<Id, (u64, u64)> = HashMap::new();
-        let mut st = self.stmt("SELECT unit_id, count(*) FROM checks GROUP BY unit_id")?;
-        for r in st.query_map([], |r| Ok((r.get::<_, Id>(0)?, r.get::<_, i64>(1)?)))? {
-            let (u, n) = r?;
+        let pair = |r: &Row<'_>| Ok((r.get::<Id>(0)?, r.get::<i64>(1)?));
+        for (u, n) in self.query(
+            "SELECT unit_id, count(*) FROM checks GROUP BY unit_id",
+            params![],
+            pair,
+        )? {
             out.entry(u).or_default().0 = n.max(0) as u64;
         }
-        let mut st = self.stmt("SELECT unit_id, count(*) FROM samples GROUP BY unit_id")?;
-        for r in st.query_map([], |r| Ok((r.get::<_, Id>(0)?, r.get::<_, i64>(1)?)))? {
-            let (u, n) = r?;
+        for (u, n) in self.query(
+            "SELECT unit_id, count(*) FROM samples GROUP BY unit_id",
+            params![],
+            pair,
+        )? {
             out.entry(u).or_default().1 = n.max(0) as u64;
         }
         Ok(out)
@@ -337,7 +343,8 @@ impl Store {
             super::samples::unit_samples_sql(),
             super::events::unit_events_sql(),
         ] {
-            let mut st = self.stmt(&format!("EXPLAIN QUERY PLAN {sql}"))?;
+            self.count();
+            let mut st = self.lite()?.prepare(&format!("EXPLAIN QUERY PLAN {sql}"))?;
             let plan = st
                 .query_map(rusqlite::params![1, "9999-12-31T23:59:59Z"], |r| {
                     r.get::<_, String>(3)

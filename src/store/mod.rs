@@ -22,6 +22,8 @@ use std::time::Duration;
 use chrono::{DateTime, Datelike, NaiveDate, Timelike, Utc};
 use include_dir::{include_dir, Dir};
 use rusqlite::{Connection, OpenFlags};
+
+use crate::model::Id;
 use rusqlite_migration::{Migrations, SchemaVersion};
 
 pub mod acks;
@@ -29,20 +31,32 @@ pub mod baselines_limits;
 pub mod bulk;
 pub mod checks;
 pub mod columns;
+pub mod copy;
+pub(crate) mod db;
 pub mod edit_log;
+mod errors;
 pub mod events;
 pub mod explain;
 pub mod fluids;
 pub mod history;
 pub mod machines_units;
+pub mod roles;
 pub mod samples;
+mod server;
 pub mod settings;
 
 pub use bulk::{Bulk, Put};
+pub use server::is_server_address;
 
-static MIGRATION_DIR: Dir<'static> = include_dir!("$CARGO_MANIFEST_DIR/migrations");
+use db::{params, Db, Row, ToDb};
+pub(crate) use errors::classify;
+#[cfg(test)]
+use errors::constraint_error;
 
-/// The schema migrations, embedded at build time from `migrations/N-name/up.sql`.
+static MIGRATION_DIR: Dir<'static> = include_dir!("$CARGO_MANIFEST_DIR/migrations/sqlite");
+
+/// The SQLite schema migrations, embedded at build time from `migrations/sqlite/N-name/up.sql`
+/// (the server's are in `migrations/postgres`, one for one with these).
 ///
 /// A malformed migration folder is a build defect; it yields an empty set here, which
 /// [`Store::open`] reports as [`StoreError::Migration`] and `MIGRATIONS.validate()` fails on.
@@ -125,101 +139,24 @@ pub enum StoreError {
     /// A file beside the shop (a backup) could not be made.
     #[error(transparent)]
     Out(#[from] crate::outfile::OutFileError),
-}
-
-impl From<rusqlite::Error> for StoreError {
-    fn from(e: rusqlite::Error) -> Self {
-        classify(e)
-    }
-}
-
-/// Turns SQLite's message for a failed constraint into the field and rule it names.
-fn classify(e: rusqlite::Error) -> StoreError {
-    use rusqlite::ffi::ErrorCode;
-    let (code, msg) = match &e {
-        rusqlite::Error::SqliteFailure(f, msg) => (f.code, msg.clone().unwrap_or_default()),
-        rusqlite::Error::FromSqlConversionFailure(..)
-        | rusqlite::Error::InvalidColumnType(..)
-        | rusqlite::Error::IntegralValueOutOfRange(..) => {
-            return StoreError::Corrupt(e.to_string())
-        }
-        _ => return StoreError::Sqlite(e),
-    };
-    match code {
-        ErrorCode::DatabaseBusy | ErrorCode::DatabaseLocked => StoreError::Busy,
-        ErrorCode::ReadOnly => StoreError::ReadOnly,
-        ErrorCode::NotADatabase => StoreError::Corrupt("the file is not a database".into()),
-        ErrorCode::DatabaseCorrupt => StoreError::Corrupt(msg),
-        ErrorCode::ConstraintViolation => constraint_error(&msg).unwrap_or(StoreError::Sqlite(e)),
-        _ => StoreError::Sqlite(e),
-    }
-}
-
-fn constraint_error(msg: &str) -> Option<StoreError> {
-    if let Some(rest) = msg.strip_prefix("CHECK constraint failed: ") {
-        // Constraints are named "<column>: <rule>" in the schema.
-        return Some(match rest.split_once(": ") {
-            Some((field, reason)) => StoreError::Invalid {
-                field: field.into(),
-                reason: reason.into(),
-            },
-            None => StoreError::Invalid {
-                field: rest.into(),
-                reason: "value out of range".into(),
-            },
-        });
-    }
-    if let Some(rest) = msg.strip_prefix("NOT NULL constraint failed: ") {
-        if rest == "edit_log.edited_by" {
-            return Some(StoreError::NoEditContext);
-        }
-        let field = rest.rsplit('.').next().unwrap_or(rest);
-        return Some(StoreError::Invalid {
-            field: field.into(),
-            reason: "must be given".into(),
-        });
-    }
-    if let Some(rest) = msg.strip_prefix("UNIQUE constraint failed: ") {
-        let what = match rest {
-            "checks.unit_id, checks.taken_at" => "a check of this unit at this time",
-            "samples.unit_id, samples.sampled_at" => "a sample of this unit at this time",
-            "events.unit_id, events.done_at, events.kind" => {
-                "an event of this kind on this unit at this time"
-            }
-            "machines.tag" => "a machine with this tag",
-            "units.tag" => "a unit with this tag",
-            "fluids.name" => "a fluid with this name",
-            "index 'limits_scope_key'" => "a limit with this key",
-            other => {
-                return Some(StoreError::Duplicate {
-                    what: format!("a row with the same {other}"),
-                })
-            }
-        };
-        return Some(StoreError::Duplicate { what: what.into() });
-    }
-    if msg.starts_with("FOREIGN KEY constraint failed") {
-        return Some(StoreError::BadReference);
-    }
-    if let Some(rest) = msg.strip_prefix("cannot store ") {
-        // STRICT tables: "cannot store TEXT value in REAL column checks.pressure_bar"
-        let field = rest.rsplit('.').next().unwrap_or(rest);
-        return Some(StoreError::Invalid {
-            field: field.into(),
-            reason: format!("wrong type: cannot store {rest}"),
-        });
-    }
-    if !msg.is_empty() {
-        return Some(StoreError::Refused(msg.into()));
-    }
-    None
+    /// The server refused the change for the signed-in role.
+    #[error("not allowed for your database role: {0}")]
+    NotAllowed(String),
+    /// The database server answered with an error not listed above.
+    #[error("database server: {0}")]
+    Server(String),
+    /// The connection to the database server was lost or could not be made.
+    #[error("the database server cannot be reached: {0}; check that it runs and try again")]
+    ServerGone(String),
 }
 
 /// An open shop database.
 pub struct Store {
-    conn: Connection,
+    db: Db,
     path: PathBuf,
     queries: Cell<u64>,
+    /// The schema was created by this open (an empty database became a shop).
+    created: bool,
 }
 
 impl std::fmt::Debug for Store {
@@ -234,7 +171,14 @@ const SQLITE_HEADER: &[u8; 16] = b"SQLite format 3\0";
 
 impl Store {
     /// Opens (or with [`OpenMode::Create`] creates) a shop and brings its schema up to date.
+    ///
+    /// `path` may also be the address of a PostgreSQL database
+    /// (`postgres://USER@HOST:PORT/DBNAME`): the shop is then on that server, and an empty
+    /// database becomes a new shop whatever `mode` says.
     pub fn open(path: &Path, mode: OpenMode) -> Result<Store, StoreError> {
+        if let Some(url) = path.to_str().filter(|p| is_server_address(p)) {
+            return server::open(url);
+        }
         let path_buf = path.to_path_buf();
         match std::fs::metadata(path) {
             Ok(meta) if meta.is_dir() => {
@@ -273,9 +217,10 @@ impl Store {
                 reason: e.to_string(),
             })?;
         let mut store = Store {
-            conn,
+            db: Db::Lite(conn),
             path: path_buf,
             queries: Cell::new(0),
+            created: false,
         };
         store.prepare_connection().map_err(|e| match e {
             StoreError::Busy => StoreError::Locked {
@@ -294,9 +239,10 @@ impl Store {
     pub fn open_in_memory() -> Result<Store, StoreError> {
         let conn = Connection::open_in_memory()?;
         let mut store = Store {
-            conn,
+            db: Db::Lite(conn),
             path: PathBuf::from(":memory:"),
             queries: Cell::new(0),
+            created: false,
         };
         store.prepare_connection()?;
         Ok(store)
@@ -309,22 +255,22 @@ impl Store {
             },
             other => other,
         };
-        self.conn
+        self.lite()?
             .busy_timeout(BUSY_TIMEOUT)
             .map_err(|e| not_db(e, &self.path))?;
-        if self.conn.is_readonly(rusqlite::MAIN_DB).unwrap_or(false) {
+        if self.lite()?.is_readonly(rusqlite::MAIN_DB).unwrap_or(false) {
             return Err(StoreError::ReadOnlyFile {
                 path: self.path.clone(),
             });
         }
         let app_id: i32 = self
-            .conn
+            .lite()?
             .query_row("PRAGMA application_id", [], |r| r.get(0))
             .map_err(|e| not_db(e, &self.path))?;
-        let objects: i64 = self
-            .conn
-            .query_row("SELECT count(*) FROM sqlite_schema", [], |r| r.get(0))?;
-        let has_meta: bool = self.conn.query_row(
+        let objects: i64 =
+            self.lite()?
+                .query_row("SELECT count(*) FROM sqlite_schema", [], |r| r.get(0))?;
+        let has_meta: bool = self.lite()?.query_row(
             "SELECT count(*) FROM sqlite_schema WHERE type = 'table' AND name = 'sumpbook_meta'",
             [],
             |r| r.get::<_, i64>(0).map(|n| n > 0),
@@ -338,7 +284,7 @@ impl Store {
         }
         let known = Self::latest_schema_version();
         let current = MIGRATIONS
-            .current_version(&self.conn)
+            .current_version(self.lite()?)
             .map_err(|e| StoreError::Migration(e.to_string()))?;
         let found: usize = current.into();
         if found > known {
@@ -368,7 +314,7 @@ impl Store {
             let started = std::time::Instant::now();
             let mode: String = loop {
                 match self
-                    .conn
+                    .lite()?
                     .query_row("PRAGMA journal_mode = WAL", [], |r| r.get(0))
                 {
                     Ok(mode) => break mode,
@@ -389,15 +335,15 @@ impl Store {
                 });
             }
         }
-        self.conn.pragma_update(None, "foreign_keys", true)?;
+        self.lite()?.pragma_update(None, "foreign_keys", true)?;
         // A larger page cache keeps bulk imports into indexed tables fast; bounded at 16 MiB.
-        self.conn.pragma_update(None, "cache_size", -16384)?;
+        self.lite()?.pragma_update(None, "cache_size", -16384)?;
 
         if found < known {
             self.migrate()?;
         }
         let app_id: i32 = self
-            .conn
+            .lite()?
             .query_row("PRAGMA application_id", [], |r| r.get(0))?;
         if app_id != APPLICATION_ID {
             return Err(StoreError::Migration(
@@ -430,10 +376,10 @@ impl Store {
             let backup = backup_path_before_migration(&self.path, found);
             self.backup_to(&backup)?;
         }
-        self.conn
+        self.lite_mut()?
             .set_transaction_behavior(rusqlite::TransactionBehavior::Immediate);
-        let result = MIGRATIONS.to_latest(&mut self.conn);
-        self.conn
+        let result = MIGRATIONS.to_latest(self.lite_mut()?);
+        self.lite_mut()?
             .set_transaction_behavior(rusqlite::TransactionBehavior::Deferred);
         if result.is_err() {
             // The version is read before the migration's transaction takes the write lock, so
@@ -463,8 +409,11 @@ impl Store {
 
     /// The schema version the file is at now.
     pub fn schema_version(&self) -> Result<usize, StoreError> {
+        if let Db::Pg(p) = &self.db {
+            return server::schema_version(p);
+        }
         let v: SchemaVersion = MIGRATIONS
-            .current_version(&self.conn)
+            .current_version(self.lite()?)
             .map_err(|e| StoreError::Migration(e.to_string()))?;
         Ok(v.into())
     }
@@ -473,11 +422,14 @@ impl Store {
     /// connection or, through SQLite's data version, by any other connection or process. For
     /// callers that keep results computed from the data and must know when to compute again.
     pub fn change_stamp(&self) -> Result<(i64, u64), StoreError> {
-        let other: i64 = self
-            .conn
+        let conn = match &self.db {
+            Db::Lite(c) => c,
+            Db::Pg(p) => return Ok((server::change_stamp(p)?, 0)),
+        };
+        let other: i64 = conn
             .query_row("PRAGMA data_version", [], |r| r.get(0))
             .map_err(StoreError::from)?;
-        Ok((other, self.conn.total_changes()))
+        Ok((other, conn.total_changes()))
     }
 
     /// The newest schema version this program knows.
@@ -501,15 +453,95 @@ impl Store {
         self.queries.set(self.queries.get() + 1);
     }
 
-    /// Counts `n` statement executions (bulk writers).
-    fn count_n(&self, n: u64) {
-        self.queries.set(self.queries.get() + n);
+    /// The SQLite connection of a file shop; an error on a server shop.
+    fn lite(&self) -> Result<&Connection, StoreError> {
+        match &self.db {
+            Db::Lite(c) => Ok(c),
+            Db::Pg(_) => Err(StoreError::Server(
+                "this is done on a shop file only, not on a server".into(),
+            )),
+        }
     }
 
-    /// A cached prepared statement, counted as one query.
-    fn stmt(&self, sql: &str) -> Result<rusqlite::CachedStatement<'_>, StoreError> {
+    fn lite_mut(&mut self) -> Result<&mut Connection, StoreError> {
+        match &mut self.db {
+            Db::Lite(c) => Ok(c),
+            Db::Pg(_) => Err(StoreError::Server(
+                "this is done on a shop file only, not on a server".into(),
+            )),
+        }
+    }
+
+    /// Whether this open made a new shop in an empty server database.
+    pub fn created_here(&self) -> bool {
+        self.created
+    }
+
+    /// Whether the shop is on a database server (not a file).
+    pub fn is_server(&self) -> bool {
+        self.db.is_pg()
+    }
+
+    /// Runs a statement that is not a query; the number of rows it changed.
+    fn exec(&self, sql: &str, params: &[&dyn ToDb]) -> Result<usize, StoreError> {
         self.count();
-        Ok(self.conn.prepare_cached(sql)?)
+        self.db.execute(sql, params)
+    }
+
+    /// Runs an INSERT and returns the new row's id.
+    fn insert_row(&self, sql: &str, params: &[&dyn ToDb]) -> Result<Id, StoreError> {
+        self.count();
+        self.db
+            .insert(sql, params)?
+            .ok_or_else(|| StoreError::Refused("the row was not written".into()))
+    }
+
+    /// Runs a query; `f` makes one record of each row.
+    fn query<T>(
+        &self,
+        sql: &str,
+        params: &[&dyn ToDb],
+        mut f: impl FnMut(&Row<'_>) -> Result<T, StoreError>,
+    ) -> Result<Vec<T>, StoreError> {
+        self.count();
+        let mut out = Vec::new();
+        self.db.each(sql, params, |r| {
+            out.push(f(r)?);
+            Ok::<(), StoreError>(())
+        })?;
+        Ok(out)
+    }
+
+    /// Runs a query that yields at most one row.
+    fn query_opt<T>(
+        &self,
+        sql: &str,
+        params: &[&dyn ToDb],
+        f: impl FnMut(&Row<'_>) -> Result<T, StoreError>,
+    ) -> Result<Option<T>, StoreError> {
+        Ok(self.query(sql, params, f)?.into_iter().next())
+    }
+
+    /// Runs a query that yields exactly one row.
+    fn query_one<T>(
+        &self,
+        sql: &str,
+        params: &[&dyn ToDb],
+        f: impl FnMut(&Row<'_>) -> Result<T, StoreError>,
+    ) -> Result<T, StoreError> {
+        self.query_opt(sql, params, f)?
+            .ok_or_else(|| StoreError::Corrupt(format!("no row from `{sql}`")))
+    }
+
+    /// Runs a query and hands each row to `f` as it comes (exports of millions of rows).
+    fn query_each<E: From<StoreError>>(
+        &self,
+        sql: &str,
+        params: &[&dyn ToDb],
+        f: impl FnMut(&Row<'_>) -> Result<(), E>,
+    ) -> Result<(), E> {
+        self.count();
+        self.db.each(sql, params, f)
     }
 
     /// Writes a consistent copy of the whole shop to `dest` with SQLite's online backup, while
@@ -543,27 +575,34 @@ impl Store {
             }
         };
         self.count();
-        let copied = (|| -> Result<(), rusqlite::Error> {
-            let mut dst = Connection::open_with_flags(
-                &tmp,
-                OpenFlags::SQLITE_OPEN_READ_WRITE
-                    | OpenFlags::SQLITE_OPEN_NOFOLLOW
-                    | OpenFlags::SQLITE_OPEN_NO_MUTEX,
-            )?;
-            let backup = Backup::new(&self.conn, &mut dst)?;
-            loop {
-                match backup.step(100)? {
-                    StepResult::More => {}
-                    StepResult::Done => return Ok(()),
-                    _ => {
-                        return Err(rusqlite::Error::SqliteFailure(
-                            rusqlite::ffi::Error::new(rusqlite::ffi::SQLITE_BUSY),
-                            Some("the shop is locked by another program".into()),
-                        ))
+        let copied = match &self.db {
+            Db::Lite(conn) => (|| -> Result<(), rusqlite::Error> {
+                let mut dst = Connection::open_with_flags(
+                    &tmp,
+                    OpenFlags::SQLITE_OPEN_READ_WRITE
+                        | OpenFlags::SQLITE_OPEN_NOFOLLOW
+                        | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+                )?;
+                let backup = Backup::new(conn, &mut dst)?;
+                loop {
+                    match backup.step(100)? {
+                        StepResult::More => {}
+                        StepResult::Done => return Ok(()),
+                        _ => {
+                            return Err(rusqlite::Error::SqliteFailure(
+                                rusqlite::ffi::Error::new(rusqlite::ffi::SQLITE_BUSY),
+                                Some("the shop is locked by another program".into()),
+                            ))
+                        }
                     }
                 }
-            }
-        })();
+            })()
+            .map_err(|e| e.to_string()),
+            // A server shop is backed up as a new shop file holding all its rows.
+            Db::Pg(_) => Store::open(&tmp, OpenMode::Create)
+                .and_then(|copy| self.copy_into(&copy, false).map(|_| ()))
+                .map_err(|e| e.to_string()),
+        };
         remove_sides();
         if let Err(e) = copied {
             return Err(StoreError::CannotOpen {
@@ -578,19 +617,26 @@ impl Store {
     /// `PRAGMA integrity_check` = ok.
     pub fn integrity_ok(&self) -> Result<bool, StoreError> {
         self.count();
-        let r: String = self
-            .conn
-            .query_row("PRAGMA integrity_check", [], |r| r.get(0))?;
+        let Db::Lite(conn) = &self.db else {
+            // The server keeps its own files consistent; a reachable server answers a query.
+            return Ok(self.query_one("SELECT 1", params![], |r| r.get::<i64>(0))? == 1);
+        };
+        let r: String = conn.query_row("PRAGMA integrity_check", [], |r| r.get(0))?;
         Ok(r == "ok")
     }
 
     /// Begins a write transaction that takes the write lock at once (no lock upgrade later, so
     /// two writers wait on each other instead of failing midway).
     fn begin(&self) -> Result<TxGuard<'_>, StoreError> {
+        self.begin_as(false)
+    }
+
+    /// [`Store::begin`]; `exclusive`: one such writer at a time on a server too.
+    fn begin_as(&self, exclusive: bool) -> Result<TxGuard<'_>, StoreError> {
         self.count();
-        self.conn.execute_batch("BEGIN IMMEDIATE")?;
+        self.db.begin(exclusive)?;
         Ok(TxGuard {
-            conn: &self.conn,
+            db: &self.db,
             open: true,
         })
     }
@@ -610,10 +656,12 @@ impl Store {
             });
         }
         let tx = self.begin()?;
-        self.stmt("INSERT OR REPLACE INTO edit_context (id, edited_by, reason, edited_at) VALUES (1, ?1, ?2, ?3)")?
-            .execute(rusqlite::params![by.trim(), reason, fmt_time_stamp(&Utc::now())])?;
+        self.count();
+        self.db
+            .set_edit_context(by.trim(), reason, &fmt_time_stamp(&Utc::now()))?;
         let out = f(self)?;
-        self.stmt("DELETE FROM edit_context")?.execute([])?;
+        self.count();
+        self.db.clear_edit_context()?;
         tx.commit()?;
         Ok(out)
     }
@@ -621,13 +669,13 @@ impl Store {
 
 /// Rolls back on drop unless committed.
 struct TxGuard<'c> {
-    conn: &'c Connection,
+    db: &'c Db,
     open: bool,
 }
 
 impl TxGuard<'_> {
     fn commit(mut self) -> Result<(), StoreError> {
-        self.conn.execute_batch("COMMIT")?;
+        self.db.batch("COMMIT")?;
         self.open = false;
         Ok(())
     }
@@ -635,10 +683,10 @@ impl TxGuard<'_> {
 
 impl Drop for TxGuard<'_> {
     fn drop(&mut self) {
-        if self.open && !self.conn.is_autocommit() {
+        if self.open && self.db.in_transaction() {
             // Nothing useful can be done with a failed rollback here; SQLite rolls back the
-            // journal on the next open in any case.
-            let _ = self.conn.execute_batch("ROLLBACK");
+            // journal on the next open in any case, and the server when the connection ends.
+            let _ = self.db.batch("ROLLBACK");
         }
     }
 }
@@ -855,92 +903,45 @@ pub fn parse_time(s: &str) -> Result<DateTime<Utc>, StoreError> {
     Ok(dt.and_utc())
 }
 
-/// A text column read in place, without copying it into a `String` (the fleet reads do this for
-/// half a million rows): `None` for NULL. Another type, or text that is not UTF-8, is the same
-/// error `row.get::<_, String>` gives.
-fn text_col<'r>(row: &'r rusqlite::Row<'_>, idx: usize) -> rusqlite::Result<Option<&'r str>> {
-    use rusqlite::types::ValueRef;
-    match row.get_ref(idx)? {
-        ValueRef::Null => Ok(None),
-        v @ ValueRef::Text(_) => v.as_str().map(Some).map_err(|e| {
-            rusqlite::Error::FromSqlConversionFailure(idx, rusqlite::types::Type::Text, Box::new(e))
-        }),
-        other => Err(rusqlite::Error::InvalidColumnType(
-            idx,
-            column_name(row, idx),
-            other.data_type(),
-        )),
-    }
-}
-
-/// The error for NULL in a column that must hold a value, as `row.get::<_, String>` gives it.
-#[cold]
-fn null_column(row: &rusqlite::Row<'_>, idx: usize) -> rusqlite::Error {
-    rusqlite::Error::InvalidColumnType(idx, column_name(row, idx), rusqlite::types::Type::Null)
-}
-
-fn column_name(row: &rusqlite::Row<'_>, idx: usize) -> String {
-    row.as_ref()
-        .column_name(idx)
-        .map(str::to_string)
-        .unwrap_or_default()
-}
-
 /// A column time read from a row, as a model time.
-fn time_col(row: &rusqlite::Row<'_>, idx: usize) -> rusqlite::Result<DateTime<Utc>> {
-    let Some(s) = text_col(row, idx)? else {
-        return Err(null_column(row, idx));
+fn time_col(row: &Row<'_>, idx: usize) -> Result<DateTime<Utc>, StoreError> {
+    let Some(s) = row.text(idx)? else {
+        return Err(StoreError::Corrupt(format!(
+            "column {idx} holds no time where one is required"
+        )));
     };
-    parse_time(s).map_err(|e| {
-        rusqlite::Error::FromSqlConversionFailure(
-            idx,
-            rusqlite::types::Type::Text,
-            Box::new(CorruptValue(e.to_string())),
-        )
-    })
+    parse_time(s)
 }
 
 /// A text column holding one of a closed set of names.
 fn enum_col<T: std::str::FromStr<Err = String>>(
-    row: &rusqlite::Row<'_>,
+    row: &Row<'_>,
     idx: usize,
-) -> rusqlite::Result<T> {
-    let Some(s) = text_col(row, idx)? else {
-        return Err(null_column(row, idx));
+) -> Result<T, StoreError> {
+    let Some(s) = row.text(idx)? else {
+        return Err(StoreError::Corrupt(format!(
+            "column {idx} holds no value where one is required"
+        )));
     };
-    s.parse::<T>().map_err(|e| {
-        rusqlite::Error::FromSqlConversionFailure(
-            idx,
-            rusqlite::types::Type::Text,
-            Box::new(CorruptValue(e)),
-        )
-    })
+    s.parse::<T>().map_err(StoreError::Corrupt)
 }
 
 fn opt_enum_col<T: std::str::FromStr<Err = String>>(
-    row: &rusqlite::Row<'_>,
+    row: &Row<'_>,
     idx: usize,
-) -> rusqlite::Result<Option<T>> {
-    text_col(row, idx)?
-        .map(|s| {
-            s.parse::<T>().map_err(|e| {
-                rusqlite::Error::FromSqlConversionFailure(
-                    idx,
-                    rusqlite::types::Type::Text,
-                    Box::new(CorruptValue(e)),
-                )
-            })
-        })
+) -> Result<Option<T>, StoreError> {
+    row.text(idx)?
+        .map(|s| s.parse::<T>().map_err(StoreError::Corrupt))
         .transpose()
 }
 
 /// Who confirmed a questioned reading and when, from the two columns `confirmed_by` and
 /// `confirmed_at` at `idx` and `idx + 1` (both NULL when nobody has).
 fn confirmation_cols(
-    row: &rusqlite::Row<'_>,
+    row: &Row<'_>,
     idx: usize,
-) -> rusqlite::Result<Option<crate::model::Confirmation>> {
-    let Some(by) = text_col(row, idx)? else {
+) -> Result<Option<crate::model::Confirmation>, StoreError> {
+    let Some(by) = row.text(idx)? else {
         return Ok(None);
     };
     let by = by.to_string();
@@ -956,17 +957,6 @@ fn confirmation_time(c: &Option<crate::model::Confirmation>) -> Result<Option<St
         .map(|k| fmt_time("confirmed_at", &k.at))
         .transpose()
 }
-
-#[derive(Debug)]
-struct CorruptValue(String);
-
-impl std::fmt::Display for CorruptValue {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(&self.0)
-    }
-}
-
-impl std::error::Error for CorruptValue {}
 
 #[cfg(test)]
 mod tests {

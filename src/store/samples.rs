@@ -3,8 +3,8 @@
 //! One row per unit and sampling time. Any subset of viscosity, particle counts or a written
 //! ISO 4406 code, water and acid number may be given. No CSV, no health.
 
+use super::db::{params, Row, ToDb};
 use chrono::{DateTime, Utc};
-use rusqlite::{params, OptionalExtension, Row};
 
 use super::columns::{cst, temp_c, tidy};
 use super::{
@@ -17,15 +17,15 @@ pub(crate) const SAMPLE_COLS: &str = "id, unit_id, sampled_at, kv40_cst, kv100_c
      count_4um_per_ml, count_6um_per_ml, count_14um_per_ml, iso4406, water_ppm, acid_mgkoh_g, lab_ref, note, \
      confirmed_by, confirmed_at";
 
-pub(crate) fn sample_from_row(r: &Row<'_>) -> rusqlite::Result<Sample> {
+pub(crate) fn sample_from_row(r: &Row<'_>) -> Result<Sample, StoreError> {
     let visc: Option<f64> = r.get(5)?;
     let visc_t: Option<f64> = r.get(6)?;
     Ok(Sample {
         id: r.get(0)?,
         unit_id: r.get(1)?,
         sampled_at: time_col(r, 2)?,
-        kv40: r.get::<_, Option<f64>>(3)?.map(Viscosity::from_cst),
-        kv100: r.get::<_, Option<f64>>(4)?.map(Viscosity::from_cst),
+        kv40: r.get::<Option<f64>>(3)?.map(Viscosity::from_cst),
+        kv100: r.get::<Option<f64>>(4)?.map(Viscosity::from_cst),
         visc_reading: match (visc, visc_t) {
             (Some(v), Some(t)) => Some(ViscReading {
                 visc: Viscosity::from_cst(v),
@@ -82,7 +82,7 @@ impl<'a> SampleRow<'a> {
         })
     }
 
-    pub fn params(&self) -> [&dyn rusqlite::ToSql; 16] {
+    pub fn params(&self) -> [&dyn ToDb; 16] {
         [
             &self.unit_id,
             &self.sampled_at,
@@ -118,16 +118,12 @@ impl Store {
     /// Adds one sample result and returns its id.
     pub fn insert_sample(&self, s: &Sample) -> Result<Id, StoreError> {
         let row = SampleRow::from_model(s)?;
-        self.stmt(INSERT_SAMPLE)?.execute(&row.params()[..])?;
-        Ok(self.conn.last_insert_rowid())
+        self.insert_row(INSERT_SAMPLE, &row.params()[..])
     }
 
     pub fn sample(&self, id: Id) -> Result<Option<Sample>, StoreError> {
         let sql = format!("SELECT {SAMPLE_COLS} FROM samples WHERE id = ?1");
-        Ok(self
-            .stmt(&sql)?
-            .query_row([id], sample_from_row)
-            .optional()?)
+        self.query_opt(&sql, params![id], sample_from_row)
     }
 
     /// The samples of one unit, oldest first; with `at`, only those taken at or before it.
@@ -137,36 +133,35 @@ impl Store {
         at: Option<DateTime<Utc>>,
     ) -> Result<Vec<Sample>, StoreError> {
         let until = super::history::until_text(at);
-        let mut st = self.stmt(&unit_samples_sql())?;
-        let rows = st.query_map(params![unit_id, until], sample_from_row)?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        self.query(
+            &unit_samples_sql(),
+            params![unit_id, until],
+            sample_from_row,
+        )
     }
 
     /// The latest sample of every unit that has one, ordered by unit id.
     pub fn latest_samples(&self) -> Result<Vec<Sample>, StoreError> {
+        // (unit, time) is unique, so each unit's latest time names one row.
         let sql = format!(
-            "SELECT {SAMPLE_COLS} FROM samples WHERE id IN \
-             (SELECT id FROM (SELECT id, max(sampled_at) FROM samples GROUP BY unit_id)) ORDER BY unit_id"
+            "SELECT {SAMPLE_COLS} FROM samples WHERE (unit_id, sampled_at) IN \
+             (SELECT unit_id, max(sampled_at) FROM samples GROUP BY unit_id) ORDER BY unit_id"
         );
-        let mut st = self.stmt(&sql)?;
-        let rows = st.query_map([], sample_from_row)?;
-        Ok(rows.collect::<Result<_, _>>()?)
+        self.query(&sql, params![], sample_from_row)
     }
 
     /// Changes a stored sample (found by `s.id`), keeping the old values in the edit history.
     pub fn update_sample(&self, s: &Sample, by: &str, reason: &str) -> Result<(), StoreError> {
         let row = SampleRow::from_model(s)?;
         self.with_edit(by, reason, |st| {
-            let mut p: Vec<&dyn rusqlite::ToSql> = row.params().to_vec();
+            let mut p: Vec<&dyn ToDb> = row.params().to_vec();
             p.push(&s.id);
-            let n = st
-                .stmt(
+            let n = st.exec(
                     "UPDATE samples SET unit_id = ?1, sampled_at = ?2, kv40_cst = ?3, kv100_cst = ?4, visc_cst = ?5, \
                      visc_temp_c = ?6, count_4um_per_ml = ?7, count_6um_per_ml = ?8, count_14um_per_ml = ?9, \
                      iso4406 = ?10, water_ppm = ?11, acid_mgkoh_g = ?12, lab_ref = ?13, note = ?14, \
                      confirmed_by = ?15, confirmed_at = ?16 WHERE id = ?17",
-                )?
-                .execute(&p[..])?;
+                &p[..])?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("sample {}", s.id)));
             }
@@ -178,17 +173,16 @@ impl Store {
     pub fn sample_at(&self, unit_id: Id, at: &DateTime<Utc>) -> Result<Option<Sample>, StoreError> {
         let sql =
             format!("SELECT {SAMPLE_COLS} FROM samples WHERE unit_id = ?1 AND sampled_at = ?2");
-        Ok(self
-            .stmt(&sql)?
-            .query_row(params![unit_id, fmt_time_stamp(at)], sample_from_row)
-            .optional()?)
+        self.query_opt(&sql, params![unit_id, fmt_time_stamp(at)], sample_from_row)
     }
 
     /// Whether any stored sample is confirmed (an export then carries the confirmation columns).
     pub fn any_confirmed_sample(&self) -> Result<bool, StoreError> {
-        Ok(self
-            .stmt("SELECT EXISTS (SELECT 1 FROM samples WHERE confirmed_by IS NOT NULL)")?
-            .query_row([], |r| r.get(0))?)
+        self.query_one(
+            "SELECT EXISTS (SELECT 1 FROM samples WHERE confirmed_by IS NOT NULL)",
+            params![],
+            |r| r.get(0),
+        )
     }
 
     /// Marks a stored sample as confirmed by a person (`Some`), or lifts its confirmation
@@ -203,9 +197,10 @@ impl Store {
         let at = confirmation_time(&confirmed.cloned())?;
         let who = confirmed.map(|k| k.by.trim());
         self.with_edit(by, reason, |s| {
-            let n = s
-                .stmt("UPDATE samples SET confirmed_by = ?1, confirmed_at = ?2 WHERE id = ?3")?
-                .execute(params![who, at, id])?;
+            let n = s.exec(
+                "UPDATE samples SET confirmed_by = ?1, confirmed_at = ?2 WHERE id = ?3",
+                params![who, at, id],
+            )?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("sample {id}")));
             }
@@ -216,7 +211,7 @@ impl Store {
     /// Deletes a stored sample; its values stay in the edit history.
     pub fn delete_sample(&self, id: Id, by: &str, reason: &str) -> Result<(), StoreError> {
         self.with_edit(by, reason, |s| {
-            let n = s.stmt("DELETE FROM samples WHERE id = ?1")?.execute([id])?;
+            let n = s.exec("DELETE FROM samples WHERE id = ?1", params![id])?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("sample {id}")));
             }
@@ -232,11 +227,6 @@ impl Store {
         mut f: impl FnMut(Sample) -> Result<(), E>,
     ) -> Result<(), E> {
         let sql = format!("SELECT {SAMPLE_COLS} FROM samples ORDER BY sampled_at, unit_id");
-        let mut st = self.stmt(&sql)?;
-        let mut rows = st.query([]).map_err(StoreError::from)?;
-        while let Some(r) = rows.next().map_err(StoreError::from)? {
-            f(sample_from_row(r).map_err(StoreError::from)?)?;
-        }
-        Ok(())
+        self.query_each(&sql, params![], |r| f(sample_from_row(r)?))
     }
 }

@@ -1,6 +1,6 @@
 //! Shop-wide settings (the one row of `settings`) and the file's `sumpbook_meta` facts.
 
-use rusqlite::{params, OptionalExtension};
+use super::db::params;
 
 use super::{Store, StoreError};
 use crate::model::Settings;
@@ -15,9 +15,11 @@ fn unit_system_text(u: UnitSystem) -> &'static str {
 
 impl Store {
     pub fn settings(&self) -> Result<Settings, StoreError> {
-        let (shop_name, system, time_zone): (String, String, String) = self
-            .stmt("SELECT shop_name, unit_system, time_zone FROM settings WHERE id = 1")?
-            .query_row([], |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)))?;
+        let (shop_name, system, time_zone): (String, String, String) = self.query_one(
+            "SELECT shop_name, unit_system, time_zone FROM settings WHERE id = 1",
+            params![],
+            |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
+        )?;
         let unit_system = match system.as_str() {
             "metric" => UnitSystem::Metric,
             "us" => UnitSystem::Us,
@@ -33,23 +35,24 @@ impl Store {
     /// Changes the settings; the old values are kept in the edit history.
     pub fn set_settings(&self, s: &Settings, by: &str, reason: &str) -> Result<(), StoreError> {
         self.with_edit(by, reason, |st| {
-            st.stmt(
+            st.exec(
                 "UPDATE settings SET shop_name = ?1, unit_system = ?2, time_zone = ?3 WHERE id = 1",
-            )?
-            .execute(params![
-                s.shop_name.trim(),
-                unit_system_text(s.unit_system),
-                s.time_zone.trim()
-            ])?;
+                params![
+                    s.shop_name.trim(),
+                    unit_system_text(s.unit_system),
+                    s.time_zone.trim()
+                ],
+            )?;
             Ok(())
         })
     }
 
     /// A fact about the file from `sumpbook_meta` (e.g. `application`, `created_with_schema`).
     pub fn meta(&self, key: &str) -> Result<Option<String>, StoreError> {
-        Ok(self
-            .stmt("SELECT value FROM sumpbook_meta WHERE key = ?1")?
-            .query_row([key], |r| r.get(0))
-            .optional()?)
+        self.query_opt(
+            "SELECT value FROM sumpbook_meta WHERE key = ?1",
+            params![key],
+            |r| r.get(0),
+        )
     }
 }

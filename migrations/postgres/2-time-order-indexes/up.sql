@@ -1,0 +1,7 @@
+-- sumpbook schema, version 2, for a PostgreSQL server: indexes for reading samples and events in
+-- time order across the shop, as checks already have. Rows are unchanged.
+
+CREATE INDEX samples_sampled_at ON samples (sampled_at, unit_id);
+CREATE INDEX events_done_at ON events (done_at, unit_id, kind);
+DROP INDEX checks_taken_at;
+CREATE INDEX checks_taken_at ON checks (taken_at, unit_id);
