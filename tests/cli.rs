@@ -1,6 +1,6 @@
-//! The `sumpbook` binary on real files: init, demo, import, export, backup, the default shop
-//! (made with the demo on first use), and clear refusals (exit code 2, no panic) for wrong
-//! files and bad rows.
+//! The `sumpbook` binary on real shops (files and, where marked, databases on a server): init,
+//! demo, import, export, backup, the default shop (made with the demo on first use), and clear
+//! refusals (exit code 2, no panic) for wrong files and bad rows.
 
 use std::path::Path;
 use std::process::{Command, Output};
@@ -14,6 +14,14 @@ fn sumpbook(dir: &Path, args: &[&str]) -> Output {
         .env("XDG_DATA_HOME", dir.join("data"))
         .output()
         .unwrap()
+}
+
+/// `--db` for a new shop of the backend the test runs on: a file name in the test's directory
+/// (where the commands run), or the address of a new database on the server.
+fn shop_name(name: &str) -> String {
+    crate::backends::shop_at(Path::new(""), name)
+        .display()
+        .to_string()
 }
 
 fn text(b: &[u8]) -> String {
@@ -46,106 +54,71 @@ fn refused(dir: &Path, args: &[&str], needle: &str) -> String {
 
 #[test]
 fn init_demo_export_import_and_backup_through_the_binary() {
-    let dir = tempfile::tempdir().unwrap();
-    let d = dir.path();
-    let out = ok(d, &["--db", "shop.sqlite", "init", "--name", "Test works"]);
-    assert!(out.contains("created shop"), "{out}");
-    let out = ok(d, &["--db", "shop.sqlite", "init"]);
-    assert!(out.contains("already a shop"), "{out}");
+    crate::backends::on_each_backend(|| {
+        let dir = tempfile::tempdir().unwrap();
+        let d = dir.path();
+        let demo = shop_name("demo.sqlite");
+        let shop = shop_name("shop.sqlite");
+        let out = ok(d, &["--db", &shop, "init", "--name", "Test works"]);
+        assert!(out.contains("created shop"), "{out}");
+        let out = ok(d, &["--db", &shop, "init"]);
+        assert!(out.contains("already a shop"), "{out}");
 
-    let out = ok(d, &["--db", "demo.sqlite", "demo"]);
-    assert!(out.contains("11 units"), "{out}");
-    refused(
-        d,
-        &["--db", "demo.sqlite", "demo"],
-        "already has 11 unit(s)",
-    );
+        let out = ok(d, &["--db", &demo, "demo"]);
+        assert!(out.contains("11 units"), "{out}");
+        refused(d, &["--db", &demo, "demo"], "already has 11 unit(s)");
 
-    for kind in ["units", "checks", "samples", "events"] {
-        ok(
+        for kind in ["units", "checks", "samples", "events"] {
+            ok(
+                d,
+                &[
+                    "--db",
+                    &demo,
+                    "export",
+                    kind,
+                    "--units",
+                    "us",
+                    "--out",
+                    &format!("{kind}.csv"),
+                ],
+            );
+            let out = ok(d, &["--db", &shop, "import", kind, &format!("{kind}.csv")]);
+            assert!(out.contains("added"), "{out}");
+        }
+        let again = ok(d, &["--db", &shop, "import", "checks", "checks.csv"]);
+        assert!(again.contains(" 0 added, 1147 already stored"), "{again}");
+        // Exported to standard output in metric, the copy is the original.
+        let a = ok(d, &["--db", &demo, "export", "checks", "--units", "metric"]);
+        let b = ok(d, &["--db", &shop, "export", "checks", "--units", "metric"]);
+        assert_eq!(a, b);
+        assert!(a.starts_with("unit_tag,taken_at,reservoir_temp_c,"));
+
+        let out = ok(d, &["--db", &demo, "backup", "--out", "copy.sqlite"]);
+        assert!(out.contains("copy.sqlite"));
+        let c = ok(
             d,
             &[
                 "--db",
-                "demo.sqlite",
+                "copy.sqlite",
                 "export",
-                kind,
+                "checks",
                 "--units",
-                "us",
-                "--out",
-                &format!("{kind}.csv"),
+                "metric",
             ],
         );
-        let out = ok(
+        assert_eq!(a, c);
+        refused(
             d,
-            &[
-                "--db",
-                "shop.sqlite",
-                "import",
-                kind,
-                &format!("{kind}.csv"),
-            ],
+            &["--db", &demo, "backup", "--out", "copy.sqlite"],
+            "exists",
         );
-        assert!(out.contains("added"), "{out}");
-    }
-    let again = ok(
-        d,
-        &["--db", "shop.sqlite", "import", "checks", "checks.csv"],
-    );
-    assert!(again.contains(" 0 added, 1147 already stored"), "{again}");
-    // Exported to standard output in metric, the copy is the original.
-    let a = ok(
-        d,
-        &[
-            "--db",
-            "demo.sqlite",
-            "export",
-            "checks",
-            "--units",
-            "metric",
-        ],
-    );
-    let b = ok(
-        d,
-        &[
-            "--db",
-            "shop.sqlite",
-            "export",
-            "checks",
-            "--units",
-            "metric",
-        ],
-    );
-    assert_eq!(a, b);
-    assert!(a.starts_with("unit_tag,taken_at,reservoir_temp_c,"));
 
-    let out = ok(
-        d,
-        &["--db", "demo.sqlite", "backup", "--out", "copy.sqlite"],
-    );
-    assert!(out.contains("copy.sqlite"));
-    let c = ok(
-        d,
-        &[
-            "--db",
-            "copy.sqlite",
-            "export",
-            "checks",
-            "--units",
-            "metric",
-        ],
-    );
-    assert_eq!(a, c);
-    refused(
-        d,
-        &["--db", "demo.sqlite", "backup", "--out", "copy.sqlite"],
-        "exists",
-    );
-
-    let out = ok(d, &["--db", "demo.sqlite", "status"]);
-    assert!(
-        out.contains("PB-03-A") && out.contains("Quarry Lane Forming Works"),
-        "{out}"
-    );
+        let out = ok(d, &["--db", &demo, "status"]);
+        assert!(
+            out.contains("PB-03-A") && out.contains("Quarry Lane Forming Works"),
+            "{out}"
+        );
+    });
 }
 
 #[test]
@@ -197,34 +170,37 @@ fn wrong_files_as_db_give_exit_code_2_and_a_clear_message() {
 
 #[test]
 fn an_import_with_bad_rows_exits_2_and_lists_every_bad_row() {
-    let dir = tempfile::tempdir().unwrap();
-    let d = dir.path();
-    ok(d, &["--db", "demo.sqlite", "demo"]);
-    std::fs::write(
-        d.join("week.csv"),
-        "unit_tag,taken_at,reservoir_temp_c,pressure_bar\n\
-         PR-01-M,2026-11-30T06:00:00Z,41,120\n\
-         PR-01-M,03/12/2026,41,120\n\
-         PR-77-X,2026-11-30T06:00:00Z,41,120\n",
-    )
-    .unwrap();
-    let err = refused(
-        d,
-        &["--db", "demo.sqlite", "import", "checks", "week.csv"],
-        "nothing was imported",
-    );
-    assert!(err.contains("week.csv:3: taken_at:"), "{err}");
-    assert!(
-        err.contains("week.csv:4: unit_tag: no unit `PR-77-X`"),
-        "{err}"
-    );
-    let checks = ok(d, &["--db", "demo.sqlite", "export", "checks"]);
-    assert!(!checks.contains("2026-11-30"), "nothing may be written");
-    refused(
-        d,
-        &["--db", "demo.sqlite", "import", "checks", "absent.csv"],
-        "absent.csv",
-    );
+    crate::backends::on_each_backend(|| {
+        let dir = tempfile::tempdir().unwrap();
+        let d = dir.path();
+        let demo = shop_name("demo.sqlite");
+        ok(d, &["--db", &demo, "demo"]);
+        std::fs::write(
+            d.join("week.csv"),
+            "unit_tag,taken_at,reservoir_temp_c,pressure_bar\n\
+             PR-01-M,2026-11-30T06:00:00Z,41,120\n\
+             PR-01-M,03/12/2026,41,120\n\
+             PR-77-X,2026-11-30T06:00:00Z,41,120\n",
+        )
+        .unwrap();
+        let err = refused(
+            d,
+            &["--db", &demo, "import", "checks", "week.csv"],
+            "nothing was imported",
+        );
+        assert!(err.contains("week.csv:3: taken_at:"), "{err}");
+        assert!(
+            err.contains("week.csv:4: unit_tag: no unit `PR-77-X`"),
+            "{err}"
+        );
+        let checks = ok(d, &["--db", &demo, "export", "checks"]);
+        assert!(!checks.contains("2026-11-30"), "nothing may be written");
+        refused(
+            d,
+            &["--db", &demo, "import", "checks", "absent.csv"],
+            "absent.csv",
+        );
+    });
 }
 
 #[test]

@@ -1,3 +1,4 @@
+mod backends;
 mod bench_plans;
 mod cli;
 #[cfg(feature = "gui")]
@@ -6,4 +7,5 @@ mod health_scenarios;
 mod physics_reference;
 mod reliability;
 mod report;
+mod server;
 mod store_and_exchange;

@@ -1,0 +1,510 @@
+//! A shop on a PostgreSQL server through the binary: `init` on an empty database, refusing a
+//! database of another program or of a newer schema, `copy` file → server → file with every
+//! table identical, the three roles' allowed and refused actions, and eight programs logging
+//! checks at once. Each test has a database of its own on the test server (see `backends`);
+//! without PostgreSQL binaries on the machine they do nothing (the reason is printed once).
+
+use std::path::Path;
+use std::process::{Command, Output};
+
+use sumpbook::store::{OpenMode, Store};
+
+use crate::backends::{as_user, new_database, server};
+
+fn sumpbook(dir: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_sumpbook"))
+        .args(args)
+        .current_dir(dir)
+        .env("HOME", dir)
+        .env("XDG_DATA_HOME", dir.join("data"))
+        .env_remove("SUMPBOOK_DB")
+        .output()
+        .unwrap()
+}
+
+fn text(b: &[u8]) -> String {
+    String::from_utf8_lossy(b).into_owned()
+}
+
+fn ok(dir: &Path, args: &[&str]) -> String {
+    let out = sumpbook(dir, args);
+    assert!(
+        out.status.success(),
+        "{args:?} failed: {}{}",
+        text(&out.stdout),
+        text(&out.stderr)
+    );
+    text(&out.stdout)
+}
+
+/// Exit code 2, `needle` in the message, no panic; the message.
+fn refused(dir: &Path, args: &[&str], needle: &str) -> String {
+    let out = sumpbook(dir, args);
+    let err = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+    assert!(
+        err.contains(needle),
+        "{args:?}: expected `{needle}` in: {err}"
+    );
+    assert!(!err.contains("panicked"), "{err}");
+    err
+}
+
+fn admin(url: &str) -> postgres::Client {
+    postgres::Client::connect(url, postgres::NoTls).unwrap()
+}
+
+fn count(url: &str, table: &str) -> i64 {
+    admin(url)
+        .query_one(&format!("SELECT count(*) FROM {table}"), &[])
+        .unwrap()
+        .get(0)
+}
+
+/// The unit tags of a shop, from its own export.
+fn unit_tags(dir: &Path, db: &str) -> Vec<String> {
+    let csv = ok(dir, &["--db", db, "export", "units"]);
+    let mut lines = csv.lines();
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let at = header.iter().position(|h| *h == "unit_tag").unwrap();
+    lines
+        .filter_map(|l| l.split(',').nth(at).map(str::to_string))
+        .filter(|t| !t.is_empty())
+        .collect()
+}
+
+#[test]
+fn init_makes_a_shop_of_an_empty_database_and_other_databases_are_refused() {
+    let Some(_) = server() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let url = new_database();
+    let out = ok(d, &["--db", &url, "init", "--name", "Hill Road Presses"]);
+    assert!(out.contains("created shop"), "{out}");
+    let known = Store::latest_schema_version();
+    assert!(out.contains(&format!("schema version {known}")), "{out}");
+    let out = ok(d, &["--db", &url, "init"]);
+    assert!(out.contains("already a shop"), "{out}");
+    // The address may also come from the environment, as for the app started from an icon.
+    let out = Command::new(env!("CARGO_BIN_EXE_sumpbook"))
+        .args(["status"])
+        .current_dir(d)
+        .env("XDG_DATA_HOME", d.join("data"))
+        .env("SUMPBOOK_DB", &url)
+        .output()
+        .unwrap();
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    assert!(text(&out.stdout).contains("Hill Road Presses"));
+    assert!(
+        !d.join("data").exists(),
+        "no default shop file is made when the environment names a server"
+    );
+
+    // Another program's database.
+    let other = new_database();
+    admin(&other)
+        .batch_execute("CREATE TABLE invoices (id bigint)")
+        .unwrap();
+    refused(d, &["--db", &other, "status"], "not a sumpbook shop");
+    assert_eq!(count(&other, "invoices"), 0);
+
+    // A shop of a newer schema is refused and left alone.
+    admin(&url)
+        .batch_execute(&format!(
+            "UPDATE sumpbook_schema_version SET version = {}",
+            known + 1
+        ))
+        .unwrap();
+    refused(d, &["--db", &url, "status"], "newer sumpbook");
+    let v: i64 = admin(&url)
+        .query_one("SELECT version FROM sumpbook_schema_version", &[])
+        .unwrap()
+        .get(0);
+    assert_eq!(v as usize, known + 1);
+}
+
+#[test]
+fn copy_file_to_server_to_file_keeps_every_table_identical() {
+    let Some(_) = server() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    ok(d, &["--db", "demo.sqlite", "demo"]);
+    // An edit, so that the edit history is copied too.
+    let tag = unit_tags(d, "demo.sqlite").remove(0);
+    ok(
+        d,
+        &[
+            "--db",
+            "demo.sqlite",
+            "limits",
+            "set",
+            "lost_flow_pct",
+            "--watch",
+            "12",
+            "--act",
+            "22",
+            "--unit",
+            &tag,
+            "--by",
+            "T. Varga",
+        ],
+    );
+    ok(
+        d,
+        &[
+            "--db",
+            "demo.sqlite",
+            "limits",
+            "set",
+            "lost_flow_pct",
+            "--watch",
+            "11",
+            "--act",
+            "21",
+            "--unit",
+            &tag,
+            "--by",
+            "T. Varga",
+        ],
+    );
+    let url = new_database();
+    let out = ok(d, &["copy", "--from", "demo.sqlite", "--to", &url]);
+    assert!(out.contains("every table matches"), "{out}");
+    assert!(out.contains("checks") && out.contains("edit_log"), "{out}");
+    // Into a shop that is not empty: refused, nothing changes; with --replace, replaced.
+    let before = count(&url, "checks");
+    refused(
+        d,
+        &["copy", "--from", "demo.sqlite", "--to", &url],
+        "already holds a shop",
+    );
+    assert_eq!(count(&url, "checks"), before);
+    ok(
+        d,
+        &["copy", "--from", "demo.sqlite", "--to", &url, "--replace"],
+    );
+    assert_eq!(count(&url, "checks"), before);
+
+    let out = ok(
+        d,
+        &["copy", "--from", &url, "--to", "back.sqlite", "--json"],
+    );
+    let report: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let tables = report["tables"].as_array().unwrap();
+    assert_eq!(tables.len(), 11);
+    for pair in tables {
+        assert_eq!(pair[0], pair[1], "{pair}");
+    }
+
+    let a = Store::open(&d.join("demo.sqlite"), OpenMode::MustExist).unwrap();
+    let b = Store::open(&d.join("back.sqlite"), OpenMode::MustExist).unwrap();
+    let (da, db) = (a.table_digests().unwrap(), b.table_digests().unwrap());
+    assert_eq!(da, db);
+    assert!(da.iter().any(|t| t.table == "edit_log" && t.rows >= 1));
+    assert!(da.iter().any(|t| t.table == "checks" && t.rows > 1000));
+
+    // The same answers from the file and the server.
+    for args in [
+        vec!["status", "--json", "--at", "2026-06-01"],
+        vec!["export", "checks"],
+        vec!["export", "samples", "--units", "us"],
+        vec!["due", "--json", "--at", "2026-06-01"],
+    ] {
+        let mut file_args = vec!["--db", "demo.sqlite"];
+        file_args.extend(&args);
+        let mut server_args = vec!["--db", url.as_str()];
+        server_args.extend(&args);
+        let (a, b) = (ok(d, &file_args), ok(d, &server_args));
+        assert!(a == b, "{args:?} differs between the file and the server");
+    }
+
+    // A file that holds a shop is not overwritten unless asked; the copy then is whole.
+    refused(
+        d,
+        &["copy", "--from", &url, "--to", "back.sqlite"],
+        "already holds a shop",
+    );
+    ok(
+        d,
+        &["copy", "--from", &url, "--to", "back.sqlite", "--replace"],
+    );
+    let b = Store::open(&d.join("back.sqlite"), OpenMode::MustExist).unwrap();
+    assert_eq!(b.table_digests().unwrap(), da);
+}
+
+#[test]
+fn each_role_may_do_its_own_work_and_is_refused_the_rest_with_exit_code_2() {
+    let Some(admin_url) = server() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let url = new_database();
+    ok(d, &["--db", &url, "demo"]);
+    let out = ok(d, &["--db", &url, "roles", "--create"]);
+    assert!(
+        out.contains("technician") && out.contains("supervisor"),
+        "{out}"
+    );
+    // Running it again changes nothing and fails nothing.
+    ok(d, &["--db", &url, "roles", "--create"]);
+
+    let suffix = format!("{}_{}", std::process::id(), url.rsplit('_').next().unwrap());
+    let login = |role: &str| {
+        let name = format!("{role}_{suffix}");
+        admin(admin_url)
+            .batch_execute(&format!("CREATE ROLE {name} LOGIN"))
+            .unwrap();
+        ok(
+            d,
+            &["--db", &url, "roles", "--grant", &name, "--role", role],
+        );
+        let user_url = as_user(&url, &name);
+        let out = ok(d, &["--db", &user_url, "roles"]);
+        assert!(out.contains(&format!("{role}: may")), "{out}");
+        user_url
+    };
+    let tech = login("technician");
+    let eng = login("engineer");
+    let sup = login("supervisor");
+    let tag = unit_tags(d, &url).remove(0);
+
+    let log_check = |db: &str, at: &str| {
+        sumpbook(
+            d,
+            &[
+                "--db",
+                db,
+                "log-check",
+                &tag,
+                "--at",
+                at,
+                "--reservoir-temp",
+                "45C",
+                "--pressure",
+                "172bar",
+                "--by",
+                "AK",
+                "--confirm",
+            ],
+        )
+    };
+    let set_limit = |db: &str| {
+        sumpbook(
+            d,
+            &[
+                "--db",
+                db,
+                "limits",
+                "set",
+                "lost_flow_pct",
+                "--watch",
+                "12",
+                "--act",
+                "22",
+                "--by",
+                "J. Okoro",
+            ],
+        )
+    };
+    let assert_refused = |out: Output, what: &str| {
+        let err = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{what}: {err}");
+        assert!(
+            err.contains("not allowed for your database role"),
+            "{what}: {err}"
+        );
+        assert!(!err.contains("panicked"), "{err}");
+    };
+    let assert_ok = |out: Output, what: &str| {
+        assert!(
+            out.status.success(),
+            "{what}: {}{}",
+            text(&out.stdout),
+            text(&out.stderr)
+        );
+    };
+
+    // Technician: logs checks and events; may not set limits or baselines.
+    let checks = count(&url, "checks");
+    assert_ok(
+        log_check(&tech, "2025-03-03T07:00:00Z"),
+        "technician logs a check",
+    );
+    assert_eq!(count(&url, "checks"), checks + 1);
+    assert_ok(
+        sumpbook(
+            d,
+            &[
+                "--db",
+                &tech,
+                "log-event",
+                &tag,
+                "top_up",
+                "--at",
+                "2025-03-03T08:00:00Z",
+                "--volume",
+                "20L",
+                "--by",
+                "AK",
+            ],
+        ),
+        "technician logs an event",
+    );
+    let limits = count(&url, "limits");
+    let edits = count(&url, "edit_log");
+    assert_refused(set_limit(&tech), "technician sets a limit");
+    assert_refused(
+        sumpbook(
+            d,
+            &[
+                "--db",
+                &tech,
+                "baseline",
+                &tag,
+                "effective_flow",
+                "100lpm",
+                "--spread",
+                "2lpm",
+                "--by",
+                "AK",
+            ],
+        ),
+        "technician enters a baseline",
+    );
+    assert_eq!(
+        count(&url, "limits"),
+        limits,
+        "a refused write writes nothing"
+    );
+    assert_eq!(count(&url, "edit_log"), edits);
+    assert_eq!(count(&url, "manual_baselines"), 0);
+
+    // Engineer: also limits and baselines, and checks.
+    assert_ok(set_limit(&eng), "engineer sets a limit");
+    assert_eq!(count(&url, "limits"), limits + 1);
+    assert_ok(
+        sumpbook(
+            d,
+            &[
+                "--db",
+                &eng,
+                "baseline",
+                &tag,
+                "effective_flow",
+                "100lpm",
+                "--spread",
+                "2lpm",
+                "--by",
+                "JO",
+            ],
+        ),
+        "engineer enters a baseline",
+    );
+    assert_eq!(count(&url, "manual_baselines"), 1);
+    assert_ok(
+        log_check(&eng, "2025-03-10T07:00:00Z"),
+        "engineer logs a check",
+    );
+
+    // Supervisor: reads everything; writes no readings and no limits.
+    assert_ok(
+        sumpbook(d, &["--db", &sup, "status", "--json"]),
+        "supervisor reads the fleet",
+    );
+    assert_ok(
+        sumpbook(d, &["--db", &sup, "export", "checks"]),
+        "supervisor exports",
+    );
+    let checks = count(&url, "checks");
+    assert_refused(
+        log_check(&sup, "2025-03-17T07:00:00Z"),
+        "supervisor logs a check",
+    );
+    assert_refused(set_limit(&sup), "supervisor sets a limit");
+    assert_eq!(count(&url, "checks"), checks);
+
+    // Nobody but the owner writes the history or the roles.
+    let mut as_tech = postgres::Client::connect(&tech, postgres::NoTls).unwrap();
+    assert!(as_tech
+        .batch_execute("INSERT INTO edit_log (table_name, row_id, action, old_value, edited_by, reason, edited_at) VALUES ('checks', 1, 'delete', '{}', 'x', 'x', 'x')")
+        .is_err());
+    let err = refused(d, &["--db", &tech, "roles", "--create"], "");
+    assert!(
+        err.contains("not allowed") || err.contains("permission"),
+        "{err}"
+    );
+}
+
+#[test]
+fn eight_programs_logging_200_checks_each_into_one_server_lose_nothing_and_never_report_a_lock() {
+    let Some(_) = server() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path().to_path_buf();
+    let url = new_database();
+    ok(&d, &["--db", &url, "demo"]);
+    let tags = unit_tags(&d, &url);
+    let before = count(&url, "checks");
+    let writers = 8;
+    let per_writer = 200;
+    let handles: Vec<_> = (0..writers)
+        .map(|w| {
+            let (d, url, tag) = (d.clone(), url.clone(), tags[w % tags.len()].clone());
+            std::thread::spawn(move || {
+                let mut failures = Vec::new();
+                for i in 0..per_writer {
+                    // Each writer its own hours, far from the demo's readings.
+                    let hour = w * per_writer + i;
+                    let at = (chrono::DateTime::parse_from_rfc3339("2020-01-01T00:00:00Z")
+                        .unwrap()
+                        + chrono::Duration::hours(hour as i64))
+                    .format("%Y-%m-%dT%H:%M:%SZ")
+                    .to_string();
+                    let out = sumpbook(
+                        &d,
+                        &[
+                            "--db",
+                            &url,
+                            "log-check",
+                            &tag,
+                            "--at",
+                            &at,
+                            "--reservoir-temp",
+                            "45C",
+                            "--pressure",
+                            "172bar",
+                            "--by",
+                            "W",
+                            "--confirm",
+                        ],
+                    );
+                    let err = text(&out.stderr).to_lowercase();
+                    if !out.status.success() || err.contains("locked") || err.contains("busy") {
+                        failures.push(format!("{tag} {at}: {:?} {err}", out.status.code()));
+                    }
+                }
+                failures
+            })
+        })
+        .collect();
+    let failures: Vec<String> = handles
+        .into_iter()
+        .flat_map(|h| h.join().unwrap())
+        .collect();
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+    assert_eq!(
+        count(&url, "checks"),
+        before + (writers * per_writer) as i64,
+        "no check lost"
+    );
+    let n: i64 = admin(&url)
+        .query_one(
+            "SELECT count(*) FROM checks WHERE taken_by = 'W' AND pressure_bar = 172 AND reservoir_temp_c = 45",
+            &[],
+        )
+        .unwrap()
+        .get(0);
+    assert_eq!(
+        n,
+        (writers * per_writer) as i64,
+        "every value arrived as typed"
+    );
+}
