@@ -1,13 +1,16 @@
 //! A shop on a PostgreSQL server through the binary: `init` on an empty database, refusing a
 //! database of another program or of a newer schema, `copy` file → server → file with every
 //! table identical, the three roles' allowed and refused actions, and eight programs logging
-//! checks at once. Each test has a database of its own on the test server (see `backends`);
+//! checks at once, two windows seeing each other's saves, and a server that goes away. Each test
+//! has a database of its own on the test server (see `backends`);
 //! without PostgreSQL binaries on the machine they do nothing (the reason is printed once).
 
 use std::path::Path;
 use std::process::{Command, Output};
 
-use sumpbook::store::{OpenMode, Store};
+use sumpbook::app::entry::shop_changed;
+use sumpbook::app::shop::Shop;
+use sumpbook::store::{OpenMode, Store, StoreError};
 
 use crate::backends::{as_user, new_database, server};
 
@@ -507,4 +510,92 @@ fn eight_programs_logging_200_checks_each_into_one_server_lose_nothing_and_never
         (writers * per_writer) as i64,
         "every value arrived as typed"
     );
+}
+
+/// A check of the shop's first unit at `at`, like its latest one.
+fn another_check(shop: &Shop, at: &str) -> sumpbook::model::Check {
+    let mut c = shop.store().latest_checks().unwrap().remove(0);
+    c.id = 0;
+    c.taken_at = chrono::DateTime::parse_from_rfc3339(at)
+        .unwrap()
+        .with_timezone(&chrono::Utc);
+    c
+}
+
+#[test]
+fn two_windows_on_one_shop_see_each_others_saves() {
+    crate::backends::on_each_backend(|| {
+        let dir = tempfile::tempdir().unwrap();
+        let db = crate::backends::shop_at(dir.path(), "shared.sqlite");
+        let mut loader = Shop::create(&db).unwrap();
+        loader.load_demo().unwrap();
+        drop(loader);
+        let (a, b) = (Shop::open(&db).unwrap(), Shop::open(&db).unwrap());
+        let (mut seen_a, mut seen_b) = (None, None);
+        assert!(
+            shop_changed(&a, &mut seen_a).unwrap(),
+            "the first look is a change"
+        );
+        assert!(shop_changed(&b, &mut seen_b).unwrap());
+        assert!(
+            !shop_changed(&b, &mut seen_b).unwrap(),
+            "nothing saved since"
+        );
+
+        let c = another_check(&a, "2019-01-07T07:00:00Z");
+        let before = b.store().checks_for_unit(c.unit_id, None).unwrap().len();
+        a.store().insert_check(&c).unwrap();
+        // The other window's next polls see it: a server announces the save when it commits,
+        // and the announcement may take a moment on the wire, so poll a bounded number of times.
+        let mut changed = false;
+        for _ in 0..200 {
+            if shop_changed(&b, &mut seen_b).unwrap() {
+                changed = true;
+                break;
+            }
+            std::thread::sleep(std::time::Duration::from_millis(25));
+        }
+        assert!(
+            changed,
+            "the other window is told of the save ({:?})",
+            crate::backends::current()
+        );
+        assert_eq!(
+            b.store().checks_for_unit(c.unit_id, None).unwrap().len(),
+            before + 1,
+            "and reads it"
+        );
+        // The writer's own window is told too, so that it shows what it saved.
+        assert!(shop_changed(&a, &mut seen_a).unwrap());
+    });
+}
+
+#[test]
+fn a_server_that_goes_away_is_reported_plainly_and_the_next_call_connects_again() {
+    let Some(admin_url) = server() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let url = new_database();
+    ok(dir.path(), &["--db", &url, "init"]);
+    let shop = Shop::open(Path::new(&url)).unwrap();
+    assert!(shop.store().units().unwrap().is_empty());
+    let db_name = url.rsplit('/').next().unwrap().to_string();
+    // The server ends the shop's connection, as a restart or a network drop would.
+    let ended: i64 = admin(admin_url)
+        .query_one(
+            "SELECT count(*) FROM (SELECT pg_terminate_backend(pid) FROM pg_stat_activity \
+             WHERE datname = $1 AND pid <> pg_backend_pid()) AS t",
+            &[&db_name],
+        )
+        .unwrap()
+        .get(0);
+    assert!(ended >= 1);
+    let err = shop.store().units().unwrap_err();
+    assert!(
+        matches!(err, StoreError::ServerGone(_)),
+        "the call that met the loss is told so: {err:?}"
+    );
+    assert!(err.to_string().contains("cannot be reached"), "{err}");
+    // The next call connects again.
+    assert!(shop.store().units().unwrap().is_empty());
+    assert_eq!(shop.store().settings().unwrap().shop_name, "New shop");
 }

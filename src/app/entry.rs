@@ -1315,6 +1315,24 @@ pub fn shop_stamp(shop: &Shop) -> Result<(i64, u64), AppError> {
         .map_err(super::status::store_error)
 }
 
+/// The "changed" signal for a window that shows the shop: whether anyone (this program, another
+/// window, another PC) may have saved since `last` was taken, updating `last`. On a server the
+/// server announces each save, so a poll while nothing changed reads no table; on a file the
+/// stamp is read each time. The first call (`last` is `None`) says true.
+pub fn shop_changed(shop: &Shop, last: &mut Option<(i64, u64)>) -> Result<bool, AppError> {
+    let announced = shop
+        .store()
+        .changes_announced()
+        .map_err(super::status::store_error)?;
+    if announced == Some(false) && last.is_some() {
+        return Ok(false);
+    }
+    let now = shop_stamp(shop)?;
+    let changed = *last != Some(now);
+    *last = Some(now);
+    Ok(changed)
+}
+
 /// Acknowledges the `kind` flag of a unit.
 pub fn acknowledge(
     shop: &Shop,

@@ -13,6 +13,7 @@
 use std::cell::RefCell;
 use std::collections::HashMap;
 
+use postgres::fallible_iterator::FallibleIterator;
 use postgres::types::{IsNull, ToSql as PgToSql, Type};
 
 use super::StoreError;
@@ -324,7 +325,14 @@ impl ToDb for Owned {
 pub(crate) struct PgConn {
     pub client: RefCell<postgres::Client>,
     cache: RefCell<HashMap<String, postgres::Statement>>,
+    /// A call met the loss of the connection: the next one connects again.
+    lost: std::cell::Cell<bool>,
+    /// Where to connect again when the server went away.
+    url: String,
 }
+
+/// The channel every write of the shop notifies (the schema's change trigger).
+pub(crate) const CHANGED_CHANNEL: &str = "sumpbook_changed";
 
 /// The connection of a store.
 pub(crate) enum Db {
@@ -362,14 +370,67 @@ pub(crate) fn dollar_placeholders(sql: &str) -> String {
 }
 
 impl PgConn {
-    pub(crate) fn new(client: postgres::Client) -> PgConn {
+    pub(crate) fn new(client: postgres::Client, url: &str) -> PgConn {
         PgConn {
             client: RefCell::new(client),
             cache: RefCell::new(HashMap::new()),
+            lost: std::cell::Cell::new(false),
+            url: url.to_string(),
         }
     }
 
+    /// After the server went away (a restart, a network drop), the next call connects again:
+    /// the call that met the loss was told so ([`StoreError::ServerGone`]), and what it did in
+    /// an open transaction was lost with it. Prepared statements belong to the old connection.
+    fn reconnect_if_lost(&self) -> Result<(), StoreError> {
+        if !self.lost.get() && !self.client.borrow().is_closed() {
+            return Ok(());
+        }
+        let client =
+            super::server::connect(&self.url).map_err(|e| StoreError::ServerGone(e.to_string()))?;
+        *self.client.borrow_mut() = client;
+        self.cache.borrow_mut().clear();
+        self.lost.set(false);
+        self.listen()
+    }
+
+    /// A server error as a [`StoreError`], noting a lost connection for the next call.
+    fn failed(&self, e: postgres::Error) -> StoreError {
+        let e = super::errors::from_pg(e);
+        if matches!(e, StoreError::ServerGone(_)) {
+            self.lost.set(true);
+        }
+        e
+    }
+
+    /// Asks the server for the change notifications of every other connection's writes.
+    pub(crate) fn listen(&self) -> Result<(), StoreError> {
+        self.client
+            .borrow_mut()
+            .batch_execute(&format!("LISTEN {CHANGED_CHANNEL}"))
+            .map_err(|e| self.failed(e))
+    }
+
+    /// Whether a change notification has arrived since the last call (without waiting for
+    /// one).
+    pub(crate) fn take_notifications(&self) -> Result<bool, StoreError> {
+        self.reconnect_if_lost()?;
+        let mut client = self.client.borrow_mut();
+        // Notifications are read off the connection while it answers something: an empty
+        // statement is one round trip that reads no table.
+        client.batch_execute("").map_err(|e| self.failed(e))?;
+        let mut seen = false;
+        // What is buffered now; never waits.
+        let mut notes = client.notifications();
+        let mut pending = notes.iter();
+        while let Some(n) = pending.next().map_err(|e| self.failed(e))? {
+            seen |= n.channel() == CHANGED_CHANNEL;
+        }
+        Ok(seen)
+    }
+
     fn statement(&self, sql: &str) -> Result<postgres::Statement, StoreError> {
+        self.reconnect_if_lost()?;
         if let Some(st) = self.cache.borrow().get(sql) {
             return Ok(st.clone());
         }
@@ -377,7 +438,7 @@ impl PgConn {
             .client
             .borrow_mut()
             .prepare(&dollar_placeholders(sql))
-            .map_err(super::errors::from_pg)?;
+            .map_err(|e| self.failed(e))?;
         self.cache.borrow_mut().insert(sql.to_string(), st.clone());
         Ok(st)
     }
@@ -395,7 +456,7 @@ impl PgConn {
             .client
             .borrow_mut()
             .execute(&st, &refs)
-            .map_err(super::errors::from_pg)?;
+            .map_err(|e| self.failed(e))?;
         Ok(usize::try_from(n).unwrap_or(usize::MAX))
     }
 
@@ -411,14 +472,15 @@ impl PgConn {
         self.client
             .borrow_mut()
             .query(&st, &refs)
-            .map_err(super::errors::from_pg)
+            .map_err(|e| self.failed(e))
     }
 
     pub(crate) fn batch(&self, sql: &str) -> Result<(), StoreError> {
+        self.reconnect_if_lost()?;
         self.client
             .borrow_mut()
             .batch_execute(sql)
-            .map_err(super::errors::from_pg)
+            .map_err(|e| self.failed(e))
     }
 }
 

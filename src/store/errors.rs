@@ -134,7 +134,11 @@ pub(crate) fn from_pg(e: postgres::Error) -> StoreError {
         }
         let text = e.to_string();
         // A dropped connection shows as an I/O error of the client.
-        if text.contains("connection") || text.contains("closed") || text.contains("I/O") {
+        if text.contains("connection")
+            || text.contains("closed")
+            || text.contains("I/O")
+            || text.contains("communicating")
+        {
             return StoreError::ServerGone(text);
         }
         return StoreError::Server(text);

@@ -418,9 +418,21 @@ impl Store {
         Ok(v.into())
     }
 
+    /// On a server: whether the server has announced a save (by any connection, this one
+    /// included) since the last call (LISTEN/NOTIFY on `sumpbook_changed`; one empty round
+    /// trip that reads no table).
+    /// `None` on a file, which announces nothing: compare [`Store::change_stamp`]s instead.
+    pub fn changes_announced(&self) -> Result<Option<bool>, StoreError> {
+        match &self.db {
+            Db::Lite(_) => Ok(None),
+            Db::Pg(p) => p.take_notifications().map(Some),
+        }
+    }
+
     /// A stamp that changes whenever the shop's data may have changed: a commit through this
-    /// connection or, through SQLite's data version, by any other connection or process. For
-    /// callers that keep results computed from the data and must know when to compute again.
+    /// connection or, through SQLite's data version, by any other connection or process (on a
+    /// server: the schema's change counter, which every write moves). For callers that keep
+    /// results computed from the data and must know when to compute again.
     pub fn change_stamp(&self) -> Result<(i64, u64), StoreError> {
         let conn = match &self.db {
             Db::Lite(c) => c,

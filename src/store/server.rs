@@ -59,8 +59,9 @@ pub(crate) fn open(url: &str) -> Result<Store, StoreError> {
         path: shown.clone(),
         reason: e.to_string(),
     })?;
-    let conn = PgConn::new(client);
+    let conn = PgConn::new(client, url);
     let created = migrate(&conn, &shown)?;
+    conn.listen()?;
     Ok(Store {
         db: Db::Pg(Box::new(conn)),
         path: shown,
