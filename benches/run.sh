@@ -8,14 +8,19 @@
 #               aggregate query over the same tables in the sqlite3 shell
 #   start-up    app start to first frame on that shop vs on an empty shop (Xvfb)
 #   report      `sumpbook report` for 10 and 100 units (linear: 10x)
+#   server      the large shop copied onto a PostgreSQL server (a throwaway cluster of this run):
+#               `sumpbook status` there vs on the file, and vs the same full-scan aggregate in
+#               psql; `sumpbook import checks` of the 1 M-row CSV into the server vs psql's
+#               `\copy` of the same CSV into a plain table
 # No absolute time is judged, only ratios. Each timing is the median of several runs, the two
 # sides of a ratio taken in turn so that they share the machine's noise.
 #
 # Usage: bash benches/run.sh            (builds the release binary first if it is missing)
 # Environment: REPS (default 5), IMPORT_REPS (default 3), BENCH_DIR (default target/bench),
-#              SUMPBOOK_BIN (default target/release/sumpbook), ONLY="import status startup report",
+#              SUMPBOOK_BIN (default target/release/sumpbook), ONLY="import status startup report server",
 #              REGEN=1 to make the generated shops again.
-# Needs: sqlite3 (Debian package sqlite3), /usr/bin/time (package time), Xvfb (package xvfb).
+# Needs: sqlite3 (Debian package sqlite3), /usr/bin/time (package time), Xvfb (package xvfb),
+#        PostgreSQL for `server` (package postgresql; skipped, saying so, without it).
 set -euo pipefail
 
 cd "$(dirname "$0")/.."
@@ -24,7 +29,7 @@ REPS=${REPS:-5}
 IMPORT_REPS=${IMPORT_REPS:-3}
 OUT=${BENCH_DIR:-$ROOT/target/bench}
 BIN=${SUMPBOOK_BIN:-$ROOT/target/release/sumpbook}
-ONLY=${ONLY:-"import status startup report"}
+ONLY=${ONLY:-"import status startup report server"}
 mkdir -p "$OUT"
 RESULTS="$OUT/results.txt"
 : >"$RESULTS"
@@ -244,6 +249,76 @@ if want report; then
     say "  ratio: ${r}x (linear = 10; target <= 10: $(verdict "$r" "<=" 10.0))"
     SUMMARY+=("report 100/10 units ${r}x (linear = 10x) $(verdict "$r" "<=" 10.0)")
     say ""
+fi
+
+# ------------------------------------------------------------------------------------------
+# The shop on a PostgreSQL server, started for this run in a temporary folder on a free port
+# (trust on loopback only; as root the server runs as the postgres user) and stopped at the end.
+if want server; then
+    PG_BIN=$(ls -d /usr/lib/postgresql/*/bin 2>/dev/null | sort -V | tail -n 1 || true)
+    if [ -z "$PG_BIN" ] || ! command -v psql >/dev/null; then
+        say "== server: not measured (no PostgreSQL; Debian package postgresql)"
+        SUMMARY+=("server              not measured (no PostgreSQL)")
+    else
+        gen large --units 1000 --checks 520 --samples 52
+        gen reg1m --units 1000 --checks 1000 --samples 0 --csv-dir "$OUT/reg1m.csv.d"
+        PG_DIR=$(mktemp -d)
+        as_pg=()
+        if [ "$(id -u)" = 0 ]; then chown postgres "$PG_DIR"; as_pg=(runuser -u postgres --); fi
+        PG_PORT=$(python3 -c 'import socket; s = socket.socket(); s.bind(("127.0.0.1", 0)); print(s.getsockname()[1])' 2>/dev/null || echo 55433)
+        "${as_pg[@]}" "$PG_BIN/initdb" -D "$PG_DIR/data" -U sumpbook --auth=trust --no-sync >/dev/null
+        "${as_pg[@]}" "$PG_BIN/pg_ctl" -D "$PG_DIR/data" -l "$PG_DIR/log" -w \
+            -o "-p $PG_PORT -k $PG_DIR -c listen_addresses=127.0.0.1" start >/dev/null
+        stop_pg() { "${as_pg[@]}" "$PG_BIN/pg_ctl" -D "$PG_DIR/data" -m fast stop >/dev/null 2>&1 || true; rm -rf "$PG_DIR"; }
+        trap 'stop_pg; [ -n "${xvfb_pid:-}" ] && kill "$xvfb_pid" 2>/dev/null; true' EXIT
+        PG="postgres://sumpbook@127.0.0.1:$PG_PORT"
+        pq() { PGOPTIONS="-c client_min_messages=warning" psql -q -X -v ON_ERROR_STOP=1 -h 127.0.0.1 -p "$PG_PORT" -U sumpbook "$@"; }
+        fresh_db() { pq -d postgres -c "DROP DATABASE IF EXISTS $1" -c "CREATE DATABASE $1" >/dev/null; }
+
+        say "== server: PostgreSQL $("$PG_BIN/postgres" --version | awk '{ print $3 }'), the large shop (1000 units x 520 checks + 52 samples) copied onto it"
+        fresh_db large
+        t=$(timed "$OUT/copy.out" "$OUT/rss" "$BIN" copy --from "$OUT/large.sqlite" --to "$PG/large")
+        say "  sumpbook copy file -> server: ${t}s, every table verified"
+        "$BIN" --db "$PG/large" status >/dev/null
+        pq -d large -f "$ROOT/benches/fleet_scan.sql" >/dev/null
+        t_srv=() t_file=() t_scan=()
+        for _ in $(seq "$REPS"); do
+            t_srv+=("$(timed "$OUT/status-srv.out" "$OUT/rss" "$BIN" --db "$PG/large" status)")
+            t_file+=("$(timed "$OUT/status-file.out" "$OUT/rss" "$BIN" --db "$OUT/large.sqlite" status)")
+            t_scan+=("$(timed "$OUT/scan-srv.out" "$OUT/rss" psql -q -X -h 127.0.0.1 -p "$PG_PORT" -U sumpbook -d large -f "$ROOT/benches/fleet_scan.sql")")
+        done
+        cmp -s <(tail -n +2 "$OUT/status-srv.out") <(tail -n +2 "$OUT/status-file.out") || say "  note: the server's status differs from the file's after the first line"
+        ms=$(median "${t_srv[@]}"); mf=$(median "${t_file[@]}"); mq=$(median "${t_scan[@]}")
+        rf=$(ratio "$ms" "$mf"); rq=$(ratio "$ms" "$mq")
+        say "  sumpbook status on the server ${ms}s, on the file ${mf}s, full-scan aggregate in psql ${mq}s"
+        say "  ratio: ${rf}x the file; ${rq}x the server's own full scan"
+        SUMMARY+=("server status       ${rf}x the file, ${rq}x one full-scan aggregate in psql")
+
+        csv="$OUT/reg1m.csv.d/checks.csv"
+        rows=$(($(wc -l <"$csv") - 1))
+        say "== server import: sumpbook import checks (validated) into the server vs psql \\copy into a plain table ($rows rows)"
+        t_ours=() t_plain=()
+        for _ in $(seq "$IMPORT_REPS"); do
+            fresh_db imp
+            "$BIN" copy --from "$OUT/reg1m.sqlite" --to "$PG/imp" >/dev/null
+            t=$(timed "$OUT/import-srv.out" "$OUT/rss" "$BIN" --db "$PG/imp" import checks "$csv")
+            grep -q "$rows added" "$OUT/import-srv.out" || { echo "server import did not add $rows rows:" >&2; cat "$OUT/import-srv.out" >&2; exit 1; }
+            t_ours+=("$t")
+            fresh_db plain
+            pq -d plain -f "$ROOT/benches/import_plain.sql" >/dev/null
+            t_plain+=("$(timed "$OUT/copy-plain.out" "$OUT/rss" psql -q -X -h 127.0.0.1 -p "$PG_PORT" -U sumpbook -d plain \
+                -c "\\copy checks_csv FROM '$csv' WITH (FORMAT csv, HEADER true)")")
+            [ "$(pq -d plain -tA -c 'SELECT count(*) FROM checks_csv')" = "$rows" ] || { echo "\\copy lost rows" >&2; exit 1; }
+        done
+        mo=$(median "${t_ours[@]}"); mp=$(median "${t_plain[@]}")
+        r=$(ratio "$mp" "$mo")
+        say "  sumpbook ${mo}s = $(awk -v n="$rows" -v t="$mo" 'BEGIN { printf "%.0f", n / t }') rows/s; psql \\copy ${mp}s = $(awk -v n="$rows" -v t="$mp" 'BEGIN { printf "%.0f", n / t }') rows/s"
+        say "  ratio (speed vs \\copy): ${r}x"
+        SUMMARY+=("server import 1M    ${r}x psql \\copy into a plain table")
+        stop_pg
+        trap '[ -n "${xvfb_pid:-}" ] && kill "$xvfb_pid" 2>/dev/null; true' EXIT
+        say ""
+    fi
 fi
 
 say "== summary"
