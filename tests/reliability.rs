@@ -1992,3 +1992,162 @@ fn a_killed_backup_leaves_nothing_by_its_name_and_the_next_one_clears_what_it_le
     );
     assert_eq!(side_files(&copies), Vec::<String>::new());
 }
+
+// ---------------------------------------------------------------------------------------------
+// 10. Every limit and interval has a physical range; no stored value breaks the shop
+
+#[test]
+fn a_limit_outside_its_range_is_refused_with_exit_2_naming_the_range() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let before = dump(&db);
+    for (key, args, range) in [
+        (
+            "check_interval_days",
+            vec!["--value", "100000000"],
+            "from 1 to 366 days",
+        ),
+        (
+            "sample_interval_weeks",
+            vec!["--value", "1e308"],
+            "from 1 to 260 weeks",
+        ),
+        (
+            "check_interval_days",
+            vec!["--value", "0"],
+            "from 1 to 366 days",
+        ),
+        ("water_ppm", vec!["--act", "1e308"], "up to 1000000 ppm"),
+        (
+            "lost_flow_pct",
+            vec!["--watch", "-5"],
+            "above 0 and up to 100 %",
+        ),
+        (
+            "reservoir_temp_c",
+            vec!["--watch", "1e308"],
+            "from -40 to 150 °C",
+        ),
+        (
+            "fluid_change_months",
+            vec!["--value", "1.5"],
+            "a whole number from 1 to 240",
+        ),
+    ] {
+        let mut a = vec!["limits", "set", key];
+        a.extend(&args);
+        a.extend(["--by", "AK"]);
+        let out = run(&db, &a);
+        let err = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{a:?}: {err}");
+        assert!(err.contains(key) && err.contains(range), "{a:?}: {err}");
+        assert!(err.contains("outside its range"), "{err}");
+    }
+    assert_eq!(dump(&db), before, "a refused limit was stored");
+}
+
+/// Runs status, due and report on `db`; each must succeed.
+fn status_due_report(db: &Path, dir: &Path, what: &str) {
+    for args in [
+        vec!["status"],
+        vec!["status", "--json"],
+        vec!["due"],
+        vec!["report", "--out", "/dev/null"],
+    ] {
+        let out = run(db, &args);
+        let err = text(&out.stderr);
+        assert!(
+            out.status.success(),
+            "{what}: {args:?} failed ({:?}): {}",
+            out.status.code(),
+            short(&err)
+        );
+        assert!(!err.contains("panicked"), "{what}: {err}");
+    }
+    let _ = dir;
+}
+
+#[test]
+fn every_limit_at_its_extremes_leaves_status_due_and_report_working() {
+    use sumpbook::health::limits::{LimitKey, LimitShape};
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("demo.sqlite");
+    ok(&db, &["demo"]);
+    // The least and the greatest value each key takes (just above an excluded lower bound).
+    let ends = |k: LimitKey| {
+        let r = k.range();
+        let lo = if r.lo_incl {
+            r.lo
+        } else if r.whole {
+            r.lo + 1.0
+        } else {
+            r.lo + (r.hi - r.lo) * 1e-6
+        };
+        (lo, r.hi)
+    };
+    // All at the least, all at the greatest, and half and half both ways.
+    for round in 0..4 {
+        for (i, &key) in LimitKey::ALL.iter().enumerate() {
+            let (lo, hi) = ends(key);
+            let v = match round {
+                0 => lo,
+                1 => hi,
+                2 => [lo, hi][i % 2],
+                _ => [hi, lo][i % 2],
+            };
+            let v = format!("{v}");
+            let mut a = vec!["limits", "set", key.as_str()];
+            match key.shape() {
+                LimitShape::Value => a.extend(["--value", &v]),
+                // Watch and act both at the end: watch must not pass act.
+                LimitShape::Threshold(_) => a.extend(["--watch", &v, "--act", &v]),
+            }
+            a.extend(["--by", "AK"]);
+            // Watch before act: lowering both at once may meet the old act; set act first then.
+            let out = run(&db, &a);
+            if !out.status.success() {
+                let mut b = vec!["limits", "set", key.as_str(), "--act", &v, "--by", "AK"];
+                ok(&db, &b);
+                b[3] = "--watch";
+                ok(&db, &b);
+            }
+        }
+        status_due_report(&db, dir.path(), &format!("round {round}"));
+    }
+}
+
+#[test]
+fn limits_stored_out_of_range_by_an_older_program_do_not_break_status_due_or_report() {
+    use sumpbook::health::limits::{LimitKey, LimitShape};
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("demo.sqlite");
+    ok(&db, &["demo"]);
+    for extreme in [1e308, -1e308] {
+        {
+            let mut conn = Connection::open(&db).unwrap();
+            let conn = conn.transaction().unwrap();
+            // Who and why, as the schema's edit history asks of every change.
+            conn.execute(
+                "INSERT INTO edit_context (id, edited_by, reason, edited_at) \
+                 VALUES (1, 'test', 'an older program', '2026-01-01T00:00:00Z')",
+                [],
+            )
+            .unwrap();
+            conn.execute("DELETE FROM limits", []).unwrap();
+            for &key in LimitKey::ALL {
+                let watch = match key.shape() {
+                    LimitShape::Value => None,
+                    LimitShape::Threshold(_) => Some(extreme),
+                };
+                conn.execute(
+                    "INSERT INTO limits (unit_id, key, watch, act) VALUES (NULL, ?1, ?2, ?3)",
+                    rusqlite::params![key.as_str(), watch, extreme],
+                )
+                .unwrap();
+            }
+            conn.execute("DELETE FROM edit_context", []).unwrap();
+            conn.commit().unwrap();
+        }
+        status_due_report(&db, dir.path(), &format!("stored {extreme}"));
+    }
+}

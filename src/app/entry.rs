@@ -288,8 +288,8 @@ fn history_of(store: &Store, unit_id: Id) -> Result<UnitHistory, AppError> {
 // Bounds (design §10) and the unusual-value thresholds
 
 /// Lowest and highest oil or air temperature accepted, °C (design §10).
-pub const TEMP_MIN_C: f64 = -40.0;
-pub const TEMP_MAX_C: f64 = 150.0;
+pub const TEMP_MIN_C: f64 = crate::health::limits::TEMP_RANGE_C.0;
+pub const TEMP_MAX_C: f64 = crate::health::limits::TEMP_RANGE_C.1;
 /// Highest working pressure accepted, bar (the store's bound; beyond any press circuit).
 pub const PRESSURE_MAX_BAR: f64 = 1000.0;
 /// Longest timed stroke accepted, s (the store's bound).

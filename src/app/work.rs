@@ -378,6 +378,9 @@ pub struct LimitRow {
     pub watch_origin: LimitOrigin,
     pub act_origin: LimitOrigin,
     pub description: String,
+    /// The values it may take, in words (`from 1 to 366 days`): the range every setting of
+    /// it is checked against.
+    pub range: String,
 }
 
 /// The limits in force for the shop or for one unit.
@@ -417,6 +420,7 @@ fn rows_of(limits: &Limits) -> Vec<LimitRow> {
             unit: l.key.unit().to_string(),
             watch_origin: l.watch_origin,
             act_origin: l.act_origin,
+            range: l.key.range().describe(l.key.unit()),
             description: l.key.describe().to_string(),
         })
         .collect()

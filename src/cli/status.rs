@@ -669,12 +669,13 @@ fn limits_table(out: &mut dyn Write, scope: &str, rows: &[LimitRow]) -> Result<(
     writeln!(out, "Limits in force for {scope} (built-in defaults are common practice; override with `limits set`)")?;
     writeln!(
         out,
-        "{}{}{}{}{}FROM",
+        "{}{}{}{}{}{}RANGE",
         pad("KEY", 27),
         pad("", 3),
         pad("WATCH", 10),
         pad("ACT", 10),
-        pad("UNIT", 15)
+        pad("UNIT", 15),
+        pad("FROM", 16)
     )?;
     for r in rows {
         let v = |x: Option<f64>| x.map(plain).unwrap_or_else(dash);
@@ -685,7 +686,7 @@ fn limits_table(out: &mut dyn Write, scope: &str, rows: &[LimitRow]) -> Result<(
         };
         writeln!(
             out,
-            "{}{}{}{}{}{}",
+            "{}{}{}{}{}{}{}",
             pad(&r.key, 27),
             pad(r.compare.as_deref().unwrap_or("="), 3),
             pad(
@@ -698,7 +699,8 @@ fn limits_table(out: &mut dyn Write, scope: &str, rows: &[LimitRow]) -> Result<(
             ),
             pad(&v(r.act), 10),
             pad(&r.unit, 15),
-            from
+            pad(&from, 16),
+            r.range
         )?;
     }
     Ok(())

@@ -21,6 +21,7 @@ use chrono::{DateTime, FixedOffset, NaiveDate, NaiveTime, TimeZone, Utc};
 use csv::ByteRecord;
 
 use super::{unescape_cell, ExchangeError, FileKind, ImportSummary, RowError};
+use crate::health::limits::TEMP_RANGE_C;
 use crate::model::{
     Check, Confirmation, Event, EventKind, FilterState, Fluid, Id, Machine, OilLevel, PumpKind,
     Sample, SensitiveComponent, StrokeDirection, TimedStroke, Unit, ViscReading,
@@ -670,7 +671,7 @@ const fn above(lo: f64, hi: f64) -> Range {
     }
 }
 
-const TEMP: Range = incl(-40.0, 150.0);
+const TEMP: Range = incl(TEMP_RANGE_C.0, TEMP_RANGE_C.1);
 
 /// The metric unit symbol of a column unit and a converter of a metric limit to the file's unit.
 fn unit_words(u: ColUnit) -> (&'static str, fn(f64) -> f64) {

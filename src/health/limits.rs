@@ -336,6 +336,115 @@ impl Limits {
     }
 }
 
+/// The range a key's value may take, in the key's unit: from `lo` (itself allowed when
+/// `lo_incl`) up to and including `hi`, whole numbers only when `whole`.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize)]
+pub struct ValueRange {
+    pub lo: f64,
+    pub lo_incl: bool,
+    pub hi: f64,
+    pub whole: bool,
+}
+
+/// A temperature sumpbook accepts at all (oil or hall), in °C: the walk-round form and the
+/// importer refuse a reading outside it, and a temperature limit outside it could never be
+/// reached.
+pub const TEMP_RANGE_C: (f64, f64) = (-40.0, 150.0);
+
+const fn from(lo: f64, hi: f64) -> ValueRange {
+    ValueRange {
+        lo,
+        lo_incl: true,
+        hi,
+        whole: false,
+    }
+}
+const fn above(lo: f64, hi: f64) -> ValueRange {
+    ValueRange {
+        lo,
+        lo_incl: false,
+        hi,
+        whole: false,
+    }
+}
+const fn whole(lo: f64, hi: f64) -> ValueRange {
+    ValueRange {
+        lo,
+        lo_incl: true,
+        hi,
+        whole: true,
+    }
+}
+
+impl ValueRange {
+    pub fn contains(&self, v: f64) -> bool {
+        let lo_ok = if self.lo_incl {
+            v >= self.lo
+        } else {
+            v > self.lo
+        };
+        lo_ok && v <= self.hi && (!self.whole || v.fract() == 0.0)
+    }
+
+    /// In words, with the unit: `from 1 to 366 days`, `above 0 and up to 100 %`.
+    pub fn describe(&self, unit: &str) -> String {
+        let u = if unit.is_empty() {
+            String::new()
+        } else {
+            format!(" {unit}")
+        };
+        let (lo, hi) = (super::text::num(self.lo, 3), super::text::num(self.hi, 3));
+        let kind = if self.whole { "a whole number " } else { "" };
+        if self.lo_incl {
+            format!("{kind}from {lo} to {hi}{u}")
+        } else {
+            format!("{kind}above {lo} and up to {hi}{u}")
+        }
+    }
+}
+
+impl LimitKey {
+    /// The physical range of the key's value. Every key has one, so that no value a person
+    /// can store makes a due date or a chart impossible to compute. The bounds are common
+    /// practice (no published source) unless a comment names one: wide enough for any shop,
+    /// narrow enough that dates stay within the calendar and figures within a page.
+    pub fn range(self) -> ValueRange {
+        use LimitKey::*;
+        let (t_lo, t_hi) = TEMP_RANGE_C;
+        match self {
+            // A share of the pump's flow or of the new oil's viscosity: at most all of it.
+            LostFlowPct | Kv40DriftPct => above(0.0, 100.0),
+            LeakConductanceRatio => above(1.0, 100.0),
+            CaseDrainRisePct => above(0.0, 10_000.0),
+            // The widest rise the accepted temperature range allows.
+            HeatRiseDriftK => above(0.0, t_hi - t_lo),
+            ReservoirTempC | ReservoirTempCeilingC => from(t_lo, t_hi),
+            // ISO 4406:2021 Table 1: range numbers run from 0 to 28.
+            CleanlinessOverTarget => above(0.0, 28.0),
+            // One million parts per million is all water.
+            WaterPpm => above(0.0, 1_000_000.0),
+            AcidRiseMgKohG => above(0.0, 50.0),
+            DriftChecks => whole(1.0, 52.0),
+            OverdueDays => from(0.0, 3_660.0),
+            CheckIntervalDays => from(1.0, 366.0),
+            SampleIntervalWeeks => from(1.0, 260.0),
+            FluidChangeHours | OilLifeEquivHours => above(0.0, 500_000.0),
+            FilterChangeHours => above(0.0, 100_000.0),
+            FluidChangeMonths => whole(1.0, 240.0),
+            DueSoonDays => from(0.0, 366.0),
+            BaselineChecks | BaselineChecksMax => whole(2.0, 50.0),
+            // Montgomery's tables use λ in (0, 1], L, k and h of a few σ.
+            EwmaLambda => above(0.0, 1.0),
+            EwmaL => above(0.0, 10.0),
+            CusumK => from(0.0, 10.0),
+            CusumH => above(0.0, 100.0),
+            MinSpreadPct => from(0.0, 100.0),
+            MinSpreadHeatK => from(0.0, 50.0),
+            LeakMinSpreads => above(0.0, 100.0),
+        }
+    }
+}
+
 /// Checks a limit a person wants to store, against the limits already in force (so that a new
 /// `watch` alone is checked against the `act` it will sit beside). Returns the row to store.
 pub fn validate_setting(
@@ -353,32 +462,28 @@ pub fn validate_setting(
             return Err(invalid(format!("{v} is not a number")));
         }
     }
+    let range = key.range();
+    for v in [watch, act].into_iter().flatten() {
+        if !range.contains(v) {
+            // A huge number in exponent form, not 300 digits.
+            let shown = if v.abs() >= 1e9 {
+                format!("{v:e}")
+            } else {
+                super::text::num(v, 6)
+            };
+            return Err(invalid(format!(
+                "{shown} {} is outside its range: {}",
+                key.unit(),
+                range.describe(key.unit())
+            )));
+        }
+    }
     match key.shape() {
         Value => {
             if watch.is_some() {
                 return Err(invalid(
                     "is a single setting: give it with --act (or --value)".into(),
                 ));
-            }
-            let v = act.unwrap_or(0.0);
-            let ok = match key {
-                LimitKey::EwmaLambda => v > 0.0 && v <= 1.0,
-                LimitKey::BaselineChecks | LimitKey::BaselineChecksMax => {
-                    v >= 2.0 && v.fract() == 0.0 && v <= 50.0
-                }
-                LimitKey::MinSpreadPct | LimitKey::MinSpreadHeatK => v >= 0.0,
-                _ => v > 0.0,
-            };
-            if !ok {
-                let want = match key {
-                    LimitKey::EwmaLambda => "a weight in (0, 1]",
-                    LimitKey::BaselineChecks | LimitKey::BaselineChecksMax => {
-                        "a whole number of checks from 2 to 50"
-                    }
-                    LimitKey::MinSpreadPct | LimitKey::MinSpreadHeatK => "zero or more",
-                    _ => "a positive number",
-                };
-                return Err(invalid(format!("{v} {}: expected {want}", key.unit())));
             }
         }
         Threshold(_) => {
@@ -392,20 +497,6 @@ pub fn validate_setting(
                         u = key.unit()
                     )));
                 }
-            }
-            let non_negative = !matches!(
-                key,
-                LimitKey::ReservoirTempC | LimitKey::ReservoirTempCeilingC
-            );
-            if non_negative && [watch, act].into_iter().flatten().any(|v| v < 0.0) {
-                return Err(invalid("must not be negative".into()));
-            }
-            if key == LimitKey::LeakConductanceRatio
-                && [watch, act].into_iter().flatten().any(|v| v <= 1.0)
-            {
-                return Err(invalid(
-                    "is a ratio to the baseline: it must be above 1".into(),
-                ));
             }
         }
     }
@@ -490,6 +581,37 @@ mod tests {
         assert!(validate_setting(LimitKey::BaselineChecks, Some(3.0), None, &cur).is_err());
         assert!(validate_setting(LimitKey::BaselineChecks, None, Some(6.0), &cur).is_ok());
         assert!(validate_setting(LimitKey::LeakConductanceRatio, Some(0.9), None, &cur).is_err());
+    }
+
+    #[test]
+    fn every_key_has_a_range_its_default_is_inside_and_the_refusal_names_it() {
+        let cur = Limits::builtin();
+        for &key in LimitKey::ALL {
+            let r = key.range();
+            assert!(r.lo < r.hi && r.hi.is_finite(), "{key}");
+            let (w, a) = key.builtin();
+            for v in [w, a].into_iter().flatten() {
+                assert!(r.contains(v), "{key}: default {v} outside {r:?}");
+            }
+            let (watch, act) = match key.shape() {
+                Value => (None, Some(1e308)),
+                Threshold(_) => (Some(1e308), None),
+            };
+            let e = validate_setting(key, watch, act, &cur)
+                .unwrap_err()
+                .to_string();
+            assert!(
+                e.contains("1e308") && e.contains(&r.describe(key.unit())),
+                "{e}"
+            );
+        }
+        let e = validate_setting(LimitKey::CheckIntervalDays, None, Some(100_000_000.0), &cur)
+            .unwrap_err()
+            .to_string();
+        assert_eq!(
+            e,
+            "check_interval_days: 100000000 days is outside its range: from 1 to 366 days"
+        );
         assert!("lost_flow".parse::<LimitKey>().is_err());
         assert_eq!("water_ppm".parse::<LimitKey>(), Ok(LimitKey::WaterPpm));
     }

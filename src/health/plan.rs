@@ -102,9 +102,13 @@ fn date_after_hours(
     if !days.is_finite() || days.abs() > 36_500.0 {
         return None;
     }
-    Some(day(
-        last? + Duration::seconds((days * 86_400.0).round() as i64)
-    ))
+    let step = Duration::try_seconds((days * 86_400.0).round() as i64)?;
+    last?.checked_add_signed(step).map(day)
+}
+
+/// `d` + `days`, or `None` beyond the calendar chrono can hold.
+fn add_days(d: NaiveDate, days: i64) -> Option<NaiveDate> {
+    d.checked_add_signed(Duration::try_days(days)?)
 }
 
 /// Plans the work of one unit at `at`; `flags` are its condition flags (without `overdue`).
@@ -136,12 +140,14 @@ pub fn plan(
     };
 
     // Walk-round check.
+    // Dates are added with checks: a due date past the calendar's end is no due date (a stored
+    // interval from before ranges were enforced could be any number).
     let every = limits.value(LimitKey::CheckIntervalDays).round().max(1.0) as i64;
-    if let Some(last) = last_check {
+    if let Some((last, due)) = last_check.and_then(|l| Some((l, add_days(day(l), every)?))) {
         items.push((
             WorkKind::Check,
             Candidate {
-                due: day(last) + Duration::days(every),
+                due,
                 basis: format!("every {every} days; last check {}", day(last)),
                 pulled_forward: None,
             },
@@ -155,11 +161,18 @@ pub fn plan(
         .last()
         .map(|s| (s.sampled_at, "last sample"))
         .or(first_check.map(|t| (t, "first check")));
-    if let Some((from, what)) = sample_from {
+    let sample_due = sample_from.and_then(|(from, what)| {
+        Some((
+            from,
+            what,
+            add_days(day(from), (weeks * 7.0).round() as i64)?,
+        ))
+    });
+    if let Some((from, what, due)) = sample_due {
         items.push((
             WorkKind::Sample,
             Candidate {
-                due: day(from) + Duration::days((weeks * 7.0).round() as i64),
+                due,
                 basis: format!(
                     "every {} weeks; {what} {}",
                     super::text::num(weeks, 1),

@@ -143,8 +143,13 @@ fn marker(page: &mut Page, i: usize, cx: f32, cy: f32, r: f32) {
 /// Evenly spaced "nice" ticks (1, 2, 2.5, 5 × 10ⁿ) covering `lo..hi`; returns the widened
 /// range, the ticks and the decimals their labels need.
 pub fn nice_ticks(lo: f64, hi: f64, target: usize) -> (f64, f64, Vec<f64>, usize) {
+    // Bounded so that `hi - lo` stays finite and the tick count small, whatever was stored.
+    const BOUND: f64 = 1e300;
     let (mut lo, mut hi) = if lo.is_finite() && hi.is_finite() {
-        (lo.min(hi), lo.max(hi))
+        (
+            lo.min(hi).clamp(-BOUND, BOUND),
+            lo.max(hi).clamp(-BOUND, BOUND),
+        )
     } else {
         (0.0, 1.0)
     };
@@ -166,7 +171,8 @@ pub fn nice_ticks(lo: f64, hi: f64, target: usize) -> (f64, f64, Vec<f64>, usize
         .unwrap_or(10.0 * mag);
     let lo_t = (lo / step).floor() * step;
     let hi_t = (hi / step).ceil() * step;
-    let n = ((hi_t - lo_t) / step).round() as usize;
+    // About `target` ticks; the cap only guards against a step lost to rounding.
+    let n = (((hi_t - lo_t) / step).round() as usize).min(4 * target.max(1) + 4);
     let ticks: Vec<f64> = (0..=n).map(|k| lo_t + k as f64 * step).collect();
     let mut decimals = 0;
     while decimals < 6 {
@@ -665,6 +671,22 @@ mod tests {
 
     #[test]
     fn nice_ticks_cover_the_range_with_round_steps() {
+        // Extremes: a bounded, finite handful of ticks, never an allocation of the range.
+        for (a, b) in [
+            (0.0, 1e308),
+            (-1e308, 1e308),
+            (f64::MAX, f64::MAX),
+            (1e16, 1e16 + 2.0),
+            (f64::MIN_POSITIVE, 0.0),
+        ] {
+            let (lo, hi, ticks, _) = nice_ticks(a, b, 4);
+            assert!(lo.is_finite() && hi.is_finite() && lo < hi, "{a} {b}");
+            assert!(
+                (2..=20).contains(&ticks.len()),
+                "{a} {b}: {} ticks",
+                ticks.len()
+            );
+        }
         let (lo, hi, ticks, dec) = nice_ticks(-2.3, 15.4, 4);
         assert!(lo <= -2.3 && hi >= 15.4);
         assert_eq!(ticks.first().copied(), Some(lo));
