@@ -6,6 +6,7 @@
 //! - `model`: the shop's records as plain data.
 //! - `physics`: pure fluid-power, viscosity, cleanliness, oil-life and trend functions.
 //! - `outfile`: output files written whole beside a user's path, never through a link.
+//! - `sim`: the detection benchmark's simulated shop and its scoring (pure).
 //! - `app`: one function per user action.
 //! - `cli`: the command line.
 
@@ -20,5 +21,6 @@ pub mod outfile;
 pub mod physics;
 pub mod quantity;
 pub mod report;
+pub mod sim;
 pub mod store;
 pub mod units;

@@ -1,6 +1,7 @@
 mod backends;
 mod bench_plans;
 mod cli;
+mod detection;
 #[cfg(feature = "gui")]
 mod gui;
 mod health_scenarios;

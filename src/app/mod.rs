@@ -10,6 +10,7 @@ pub mod entry_check;
 pub mod figures;
 pub mod report;
 pub mod shop;
+pub mod sim;
 pub mod status;
 pub mod work;
 

@@ -13,6 +13,7 @@ pub mod confirm;
 pub mod data;
 pub mod entry;
 pub mod report;
+pub mod sim;
 pub mod status;
 
 /// What went wrong, as the user is told it, and the exit code that goes with it.
@@ -112,6 +113,12 @@ pub enum Command {
     /// Make a large generated shop for the benchmarks in benches/ (hidden).
     #[command(hide = true)]
     BenchShop(bench::BenchShopArgs),
+    /// Write a simulated shop with planted faults for the detection benchmark (hidden).
+    #[command(hide = true)]
+    SimShop(sim::SimShopArgs),
+    /// Score the detection benchmark's status files against the truth (hidden).
+    #[command(hide = true)]
+    SimScore(sim::SimScoreArgs),
 }
 
 /// Runs a parsed command line; `None` means "open the app".
@@ -153,6 +160,8 @@ pub fn run(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
         Some(Command::Roles(args)) => data::run_roles(db.as_deref(), args, out),
         Some(Command::Report(args)) => report::run(&data::open_shop(db.as_deref())?, args, out),
         Some(Command::BenchShop(args)) => bench::run(db.as_deref(), args, out),
+        Some(Command::SimShop(args)) => sim::run_shop(args, out),
+        Some(Command::SimScore(args)) => sim::run_score(args, out),
         // No subcommand: the desktop app, on --db or the default shop.
         #[cfg(feature = "gui")]
         None => crate::gui::run(db.as_deref()).map_err(Failure::from),

@@ -1,0 +1,700 @@
+//! Scoring a flag timeline against the truth of a simulated shop, and the fixed-limit rule a
+//! shop would keep in a spreadsheet, judged the same way.
+//!
+//! A timeline holds, for every unit and every week, the unit's flag level (none, watch, act) and
+//! the kinds of flag raised. From it: flag episodes (runs of consecutive weeks at watch or
+//! worse, or at act) on healthy units, per 100 healthy unit-years, their length, and the share
+//! of healthy unit-weeks at each level; per planted fault whether act was reached between onset
+//! and repair and how many weeks after the week its noise-free signal reached the act limit;
+//! act episodes that start in the week of a mistyped reading or the week after (before a
+//! further check could confirm it); and how many checks a flag outlives a repair.
+//!
+//! Pure: the truth, the timelines and the readings come in as data; the figures go out. The
+//! application layer reads the files.
+
+use std::collections::BTreeMap;
+
+use serde::Serialize;
+
+use super::truth::{FaultKind, Truth, UnitTruth};
+use crate::physics::cleanliness::{ranges_above, Iso4406Code};
+
+/// Flag level of a unit in one week.
+pub const NONE: u8 = 0;
+pub const WATCH: u8 = 1;
+pub const ACT: u8 = 2;
+
+/// A unit's flags in one week.
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub struct WeekFlags {
+    /// The worst flag: `NONE`, `WATCH` or `ACT`.
+    pub level: u8,
+    /// Kinds of the flags at act.
+    pub act_kinds: Vec<String>,
+}
+
+/// One unit's weeks, in the order of [`Truth::weeks`].
+pub type Timeline = Vec<WeekFlags>;
+
+/// Runs of consecutive weeks at `min_level` or worse: (first week, length).
+pub fn episodes(levels: &[u8], min_level: u8) -> Vec<(usize, usize)> {
+    let mut out = Vec::new();
+    let mut start = None;
+    for (w, &l) in levels.iter().enumerate() {
+        match (l >= min_level, start) {
+            (true, None) => start = Some(w),
+            (false, Some(s)) => {
+                out.push((s, w - s));
+                start = None;
+            }
+            _ => {}
+        }
+    }
+    if let Some(s) = start {
+        out.push((s, levels.len() - s));
+    }
+    out
+}
+
+/// Median of a list (the mean of the middle two for an even count); `None` when empty.
+/// `f64::INFINITY` stands for "never".
+pub fn median(values: &[f64]) -> Option<f64> {
+    if values.is_empty() {
+        return None;
+    }
+    let mut v = values.to_vec();
+    v.sort_by(f64::total_cmp);
+    let n = v.len();
+    Some(if n % 2 == 1 {
+        v[n / 2]
+    } else {
+        0.5 * (v[n / 2 - 1] + v[n / 2])
+    })
+}
+
+/// One sample as the fixed rule sees it: (week, water ppm, KV40 cSt, ISO 4406 code).
+pub type SampleReading = (usize, Option<f64>, Option<f64>, Option<Iso4406Code>);
+
+/// The readings the fixed-limit rule looks at, for one unit, each with the week it is first
+/// known in.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct UnitReadings {
+    /// (week, stroke time s, reservoir °C), oldest first.
+    pub checks: Vec<(usize, Option<f64>, Option<f64>)>,
+    /// (week, water ppm, KV40 cSt, ISO 4406 code), oldest first.
+    pub samples: Vec<SampleReading>,
+    /// KV40 of the new oil, cSt.
+    pub kv40_new: Option<f64>,
+    /// The unit's cleanliness target.
+    pub target: Option<Iso4406Code>,
+}
+
+/// The fixed-limit rule of a spreadsheet, on the latest reading known each week: stroke time
+/// more than 15 % over the mean of the unit's first 4 timed strokes → act; reservoir above
+/// 60 °C → watch, above 70 °C → act; water above 500 ppm → act; KV40 more than 10 % from the
+/// new oil's → act; 2 or more ISO 4406 range numbers over the target on any size → act.
+pub fn fixed_rule(r: &UnitReadings, weeks: usize) -> Timeline {
+    let first: Vec<f64> = r.checks.iter().filter_map(|c| c.1).take(4).collect();
+    let reference = (first.len() == 4).then(|| first.iter().sum::<f64>() / 4.0);
+    let mut out = Vec::with_capacity(weeks);
+    let (mut ci, mut si) = (0, 0);
+    for w in 0..weeks {
+        while ci < r.checks.len() && r.checks[ci].0 <= w {
+            ci += 1;
+        }
+        while si < r.samples.len() && r.samples[si].0 <= w {
+            si += 1;
+        }
+        let mut f = WeekFlags::default();
+        let mut raise = |kind: &str, level: u8| {
+            if level == ACT {
+                f.act_kinds.push(kind.to_string());
+            }
+            f.level = f.level.max(level);
+        };
+        if let Some(&(_, stroke, oil)) = ci.checked_sub(1).and_then(|i| r.checks.get(i)) {
+            if let (Some(s), Some(reference)) = (stroke, reference) {
+                if s > 1.15 * reference {
+                    raise("stroke_time", ACT);
+                }
+            }
+            if let Some(t) = oil {
+                if t > 70.0 {
+                    raise("oil_temp", ACT);
+                } else if t > 60.0 {
+                    raise("oil_temp", WATCH);
+                }
+            }
+        }
+        if let Some((_, water, kv40, code)) = si.checked_sub(1).and_then(|i| r.samples.get(i)) {
+            if water.is_some_and(|x| x > 500.0) {
+                raise("water", ACT);
+            }
+            if let (Some(v), Some(new)) = (kv40, r.kv40_new) {
+                if (v / new - 1.0).abs() > 0.10 {
+                    raise("kv40", ACT);
+                }
+            }
+            if let (Some(c), Some(t)) = (code, &r.target) {
+                if ranges_above(c, t).iter().flatten().any(|&n| n >= 2) {
+                    raise("cleanliness", ACT);
+                }
+            }
+        }
+        out.push(f);
+    }
+    out
+}
+
+/// Detection of one planted fault.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Detection {
+    pub unit: String,
+    pub kind: FaultKind,
+    pub detectable_week: usize,
+    /// First week at act from onset until the repair (or the end), less the detectable week.
+    pub act_delay: Option<i64>,
+    /// The same for the first week at watch or act.
+    pub watch_delay: Option<i64>,
+    /// Checks taken from the detectable week up to and including the first act week.
+    pub checks_to_act: Option<usize>,
+}
+
+/// Figures per fault kind.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct FaultFigures {
+    pub kind: FaultKind,
+    pub planted: usize,
+    pub found: usize,
+    /// Median and worst act delay in weeks, a missed fault counting as never (`None`).
+    pub median_delay: Option<f64>,
+    pub worst_delay: Option<i64>,
+    pub median_watch_delay: Option<f64>,
+    pub worst_watch_delay: Option<i64>,
+    /// Most checks any fault of the kind took to reach act (1 = at the first check with it).
+    pub worst_checks_to_act: Option<usize>,
+}
+
+/// The scores of one flag source (sumpbook or the fixed rule) on one shop.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Scores {
+    pub source: String,
+    pub healthy_units: usize,
+    pub healthy_unit_weeks: usize,
+    pub act_episodes: usize,
+    /// Episodes at watch or worse.
+    pub flag_episodes: usize,
+    pub act_per_100_unit_years: f64,
+    pub flag_per_100_unit_years: f64,
+    /// Shares of healthy unit-weeks at act, and at watch (not act).
+    pub act_week_share: f64,
+    pub watch_week_share: f64,
+    pub act_length_median: Option<f64>,
+    pub act_length_worst: Option<usize>,
+    pub flag_length_median: Option<f64>,
+    pub flag_length_worst: Option<usize>,
+    /// Act episodes on healthy units by the kinds at act in their first week.
+    pub false_act_kinds: BTreeMap<String, usize>,
+    pub faults: Vec<FaultFigures>,
+    pub detections: Vec<Detection>,
+    /// Act episodes, outside any fault, that start in the week of a planted slip or the next.
+    pub slip_acts: usize,
+    /// (unit, week, field) of each.
+    pub slip_act_list: Vec<(String, usize, String)>,
+    /// Repaired faults flagged in the week before their repair, and how many checks from the
+    /// repair until the unit showed no flag (`None`: never in the record).
+    pub repairs_flagged: usize,
+    pub checks_to_clear: Vec<Option<usize>>,
+    pub checks_to_clear_act: Vec<Option<usize>>,
+}
+
+/// What the scorer needs per unit besides its timeline.
+#[derive(Clone, Debug)]
+pub struct UnitFacts<'a> {
+    pub truth: &'a UnitTruth,
+    /// Whether the unit has a check in each week.
+    pub checked: Vec<bool>,
+}
+
+fn checks_between(checked: &[bool], from: usize, to: usize) -> usize {
+    (from..=to.min(checked.len().saturating_sub(1)))
+        .filter(|&w| checked[w])
+        .count()
+}
+
+/// The scores of `timelines` (one per unit of `facts`, in the same order).
+pub fn score(
+    source: &str,
+    truth: &Truth,
+    facts: &[UnitFacts<'_>],
+    timelines: &[Timeline],
+) -> Scores {
+    let weeks = truth.weeks.len();
+    let mut s = Scores {
+        source: source.to_string(),
+        healthy_units: 0,
+        healthy_unit_weeks: 0,
+        act_episodes: 0,
+        flag_episodes: 0,
+        act_per_100_unit_years: 0.0,
+        flag_per_100_unit_years: 0.0,
+        act_week_share: 0.0,
+        watch_week_share: 0.0,
+        act_length_median: None,
+        act_length_worst: None,
+        flag_length_median: None,
+        flag_length_worst: None,
+        false_act_kinds: BTreeMap::new(),
+        faults: Vec::new(),
+        detections: Vec::new(),
+        slip_acts: 0,
+        slip_act_list: Vec::new(),
+        repairs_flagged: 0,
+        checks_to_clear: Vec::new(),
+        checks_to_clear_act: Vec::new(),
+    };
+    let (mut act_weeks, mut watch_weeks) = (0usize, 0usize);
+    let (mut act_lengths, mut flag_lengths) = (Vec::new(), Vec::new());
+    for (f, tl) in facts.iter().zip(timelines) {
+        let levels: Vec<u8> = tl.iter().map(|w| w.level).collect();
+        let acts = episodes(&levels, ACT);
+        // Weeks in which a planted fault may rightly raise flags.
+        let fault_window = f.truth.fault.as_ref().map(|ft| {
+            (
+                ft.onset_week,
+                ft.repair_week.map_or(weeks, |r| (r + 3).min(weeks)),
+            )
+        });
+        let in_fault = |w: usize| fault_window.is_some_and(|(a, b)| w >= a && w < b);
+        for &(start, _) in &acts {
+            if in_fault(start) {
+                continue;
+            }
+            let slip = truth
+                .slips
+                .iter()
+                .find(|sl| sl.unit == f.truth.unit && (sl.week == start || sl.week + 1 == start));
+            if let Some(sl) = slip {
+                s.slip_acts += 1;
+                s.slip_act_list
+                    .push((sl.unit.clone(), start, sl.field.clone()));
+            }
+        }
+        if f.truth.healthy {
+            s.healthy_units += 1;
+            s.healthy_unit_weeks += levels.len();
+            act_weeks += levels.iter().filter(|&&l| l == ACT).count();
+            watch_weeks += levels.iter().filter(|&&l| l == WATCH).count();
+            for &(start, len) in &acts {
+                act_lengths.push(len);
+                let mut kinds = tl[start].act_kinds.clone();
+                kinds.sort();
+                kinds.dedup();
+                for k in kinds {
+                    *s.false_act_kinds.entry(k).or_default() += 1;
+                }
+            }
+            s.act_episodes += acts.len();
+            let flags = episodes(&levels, WATCH);
+            s.flag_episodes += flags.len();
+            flag_lengths.extend(flags.iter().map(|e| e.1));
+        }
+        if let Some(ft) = &f.truth.fault {
+            let end = ft.repair_week.unwrap_or(weeks).min(weeks);
+            let first_at = |lvl: u8| (ft.onset_week..end).find(|&w| levels[w] >= lvl);
+            let act = first_at(ACT);
+            let watch = first_at(WATCH);
+            let d = ft.detectable_week as i64;
+            s.detections.push(Detection {
+                unit: f.truth.unit.clone(),
+                kind: ft.kind,
+                detectable_week: ft.detectable_week,
+                act_delay: act.map(|w| w as i64 - d),
+                watch_delay: watch.map(|w| w as i64 - d),
+                checks_to_act: act.map(|w| {
+                    if w < ft.detectable_week {
+                        0
+                    } else {
+                        checks_between(&f.checked, ft.detectable_week, w)
+                    }
+                }),
+            });
+            if let Some(r) = ft.repair_week {
+                if r >= 1 && r < weeks && levels[r - 1] >= WATCH {
+                    s.repairs_flagged += 1;
+                    let clear = |lvl: u8| {
+                        (r..weeks)
+                            .find(|&w| levels[w] < lvl)
+                            .map(|w| checks_between(&f.checked, r, w))
+                    };
+                    s.checks_to_clear.push(clear(WATCH));
+                    s.checks_to_clear_act.push(if levels[r - 1] >= ACT {
+                        clear(ACT)
+                    } else {
+                        Some(0)
+                    });
+                }
+            }
+        }
+    }
+    let years = s.healthy_unit_weeks as f64 / (365.25 / 7.0);
+    if years > 0.0 {
+        s.act_per_100_unit_years = 100.0 * s.act_episodes as f64 / years;
+        s.flag_per_100_unit_years = 100.0 * s.flag_episodes as f64 / years;
+    }
+    if s.healthy_unit_weeks > 0 {
+        s.act_week_share = act_weeks as f64 / s.healthy_unit_weeks as f64;
+        s.watch_week_share = watch_weeks as f64 / s.healthy_unit_weeks as f64;
+    }
+    let as_f = |v: &[usize]| v.iter().map(|&x| x as f64).collect::<Vec<_>>();
+    s.act_length_median = median(&as_f(&act_lengths));
+    s.act_length_worst = act_lengths.iter().copied().max();
+    s.flag_length_median = median(&as_f(&flag_lengths));
+    s.flag_length_worst = flag_lengths.iter().copied().max();
+    for kind in FaultKind::ALL {
+        let ds: Vec<&Detection> = s.detections.iter().filter(|d| d.kind == kind).collect();
+        if ds.is_empty() {
+            continue;
+        }
+        let never = |x: Option<i64>| x.map_or(f64::INFINITY, |v| v as f64);
+        let worst = |xs: Vec<Option<i64>>| -> Option<i64> {
+            if xs.iter().any(Option::is_none) {
+                None
+            } else {
+                xs.into_iter().flatten().max()
+            }
+        };
+        s.faults.push(FaultFigures {
+            kind,
+            planted: ds.len(),
+            found: ds.iter().filter(|d| d.act_delay.is_some()).count(),
+            median_delay: median(&ds.iter().map(|d| never(d.act_delay)).collect::<Vec<_>>())
+                .filter(|m| m.is_finite()),
+            worst_delay: worst(ds.iter().map(|d| d.act_delay).collect()),
+            median_watch_delay: median(
+                &ds.iter().map(|d| never(d.watch_delay)).collect::<Vec<_>>(),
+            )
+            .filter(|m| m.is_finite()),
+            worst_watch_delay: worst(ds.iter().map(|d| d.watch_delay).collect()),
+            worst_checks_to_act: if ds.iter().any(|d| d.checks_to_act.is_none()) {
+                None
+            } else {
+                ds.iter().filter_map(|d| d.checks_to_act).max()
+            },
+        });
+    }
+    s
+}
+
+/// One target of the benchmark with its verdict.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Verdict {
+    pub target: String,
+    pub figure: String,
+    pub pass: bool,
+}
+
+fn show_delay(x: Option<f64>) -> String {
+    x.map_or_else(|| "never".into(), |v| format!("{v:+.1} wk"))
+}
+
+/// The targets, judged on sumpbook's scores `e` against the fixed rule's `f` on the same shop.
+pub fn verdicts(e: &Scores, f: &Scores) -> Vec<Verdict> {
+    let mut out = vec![
+        Verdict {
+            target: "healthy unit-weeks at act ≤ 0.3 %".into(),
+            figure: format!("{:.2} %", 100.0 * e.act_week_share),
+            pass: e.act_week_share <= 0.003,
+        },
+        Verdict {
+            target: "false act flags ≤ 2 per 100 healthy unit-years".into(),
+            figure: format!("{:.1}", e.act_per_100_unit_years),
+            pass: e.act_per_100_unit_years <= 2.0,
+        },
+        Verdict {
+            target: "0 act flags started by an unconfirmed slip".into(),
+            figure: e.slip_acts.to_string(),
+            pass: e.slip_acts == 0,
+        },
+    ];
+    let worst_clear = if e.checks_to_clear.iter().any(Option::is_none) {
+        None
+    } else {
+        e.checks_to_clear.iter().flatten().max().copied()
+    };
+    out.push(Verdict {
+        target: "flags gone within 2 checks of the fix".into(),
+        figure: format!(
+            "worst {} of {} repaired and flagged",
+            worst_clear.map_or_else(|| "never".into(), |c| format!("{c} checks")),
+            e.checks_to_clear.len()
+        ),
+        pass: worst_clear.is_some_and(|c| c <= 2),
+    });
+    let found: usize = e.faults.iter().map(|x| x.found).sum();
+    let planted: usize = e.faults.iter().map(|x| x.planted).sum();
+    out.push(Verdict {
+        target: "every planted fault found (act)".into(),
+        figure: format!("{found} / {planted}"),
+        pass: found == planted,
+    });
+    for ef in &e.faults {
+        let ff = f.faults.iter().find(|x| x.kind == ef.kind);
+        if ef.kind.is_step() {
+            out.push(Verdict {
+                target: format!("{}: act at most one check after onset", ef.kind),
+                figure: format!(
+                    "worst act at check {}",
+                    ef.worst_checks_to_act
+                        .map_or_else(|| "never".into(), |c| c.to_string())
+                ),
+                pass: ef.worst_checks_to_act.is_some_and(|c| c <= 2),
+            });
+            continue;
+        }
+        let strict = matches!(ef.kind, FaultKind::PumpWear | FaultKind::CoolerFouling);
+        let mine = ef.median_delay.unwrap_or(f64::INFINITY);
+        let theirs = ff.and_then(|x| x.median_delay).unwrap_or(f64::INFINITY);
+        let pass = if strict {
+            mine < theirs
+        } else {
+            mine <= theirs
+        } && mine.is_finite();
+        out.push(Verdict {
+            target: format!(
+                "{}: median delay {} the fixed rule's",
+                ef.kind,
+                if strict {
+                    "earlier than"
+                } else {
+                    "no later than"
+                }
+            ),
+            figure: format!(
+                "{} vs {}",
+                show_delay(ef.median_delay),
+                show_delay(ff.and_then(|x| x.median_delay))
+            ),
+            pass,
+        });
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::sim::truth::{Fault, Slip};
+    use chrono::NaiveDate;
+
+    fn wf(level: u8) -> WeekFlags {
+        WeekFlags {
+            level,
+            act_kinds: if level == ACT {
+                vec!["lost_flow".into()]
+            } else {
+                vec![]
+            },
+        }
+    }
+
+    #[test]
+    fn episodes_are_runs_at_or_above_a_level() {
+        // Worked by hand: 0 1 2 2 0 1 0 2 (ending at act).
+        let l = [0, 1, 2, 2, 0, 1, 0, 2];
+        assert_eq!(episodes(&l, ACT), vec![(2, 2), (7, 1)]);
+        assert_eq!(episodes(&l, WATCH), vec![(1, 3), (5, 1), (7, 1)]);
+        assert_eq!(episodes(&[0, 0], WATCH), vec![]);
+    }
+
+    #[test]
+    fn median_of_odd_and_even_counts() {
+        assert_eq!(median(&[3.0, 1.0, 2.0]), Some(2.0));
+        assert_eq!(median(&[4.0, 1.0, 2.0, 3.0]), Some(2.5));
+        assert_eq!(
+            median(&[1.0, f64::INFINITY, f64::INFINITY]),
+            Some(f64::INFINITY)
+        );
+        assert_eq!(median(&[]), None);
+    }
+
+    #[test]
+    fn the_fixed_rule_on_a_hand_made_history() {
+        // First four strokes 4.0, 4.2, 3.8, 4.0: mean 4.0 s, act above 4.6 s.
+        let r = UnitReadings {
+            checks: vec![
+                (0, Some(4.0), Some(40.0)),
+                (1, Some(4.2), Some(45.0)),
+                (2, Some(3.8), Some(61.0)),
+                (3, Some(4.0), Some(50.0)),
+                (4, Some(4.5), Some(50.0)),
+                (5, Some(4.8), Some(71.0)),
+                // Week 6 missed: week 6 still sees week 5's reading.
+                (7, Some(4.1), Some(50.0)),
+            ],
+            samples: vec![
+                (1, Some(120.0), Some(46.0), "17/15/12".parse().ok()),
+                (5, Some(510.0), Some(41.3), "19/16/13".parse().ok()),
+                (8, Some(100.0), Some(41.5), "18/16/12".parse().ok()),
+            ],
+            kv40_new: Some(46.0),
+            target: "17/15/12".parse().ok(),
+        };
+        let t = fixed_rule(&r, 9);
+        let levels: Vec<u8> = t.iter().map(|w| w.level).collect();
+        // 61 °C in week 2 is watch; 4.5 s is 12.5 % over 4.0 s, not act; week 5: 4.8 s,
+        // 71 °C, 510 ppm, KV40 41.3 (−10.2 %), 19/16/13 (2 over on ≥4 µm) are all act.
+        assert_eq!(levels, vec![0, 0, 1, 0, 0, 2, 2, 2, 0]);
+        let mut k = t[5].act_kinds.clone();
+        k.sort();
+        assert_eq!(
+            k,
+            vec!["cleanliness", "kv40", "oil_temp", "stroke_time", "water"]
+        );
+        // Week 7: the check is fine again but the sample of week 5 is still the latest.
+        let mut k7 = t[7].act_kinds.clone();
+        k7.sort();
+        assert_eq!(k7, vec!["cleanliness", "kv40", "water"]);
+        // Week 8: KV40 41.5 is −9.8 %, 18/16/12 is 1 over: steady.
+        assert_eq!(t[8].act_kinds, Vec::<String>::new());
+    }
+
+    #[test]
+    fn a_fixed_rule_stroke_reference_needs_four_strokes() {
+        let r = UnitReadings {
+            checks: vec![(0, Some(4.0), None), (1, Some(9.0), None)],
+            ..UnitReadings::default()
+        };
+        assert!(fixed_rule(&r, 2).iter().all(|w| w.level == NONE));
+    }
+
+    fn truth_of(units: Vec<UnitTruth>, slips: Vec<Slip>, weeks: usize) -> Truth {
+        Truth {
+            set: "t".into(),
+            seed: 0,
+            weeks: (0..weeks)
+                .map(|w| {
+                    NaiveDate::from_ymd_opt(2025, 1, 6).unwrap() + chrono::Duration::weeks(w as i64)
+                })
+                .collect(),
+            units,
+            slips,
+        }
+    }
+
+    #[test]
+    fn scores_of_a_hand_made_fleet() {
+        let healthy = UnitTruth {
+            unit: "H".into(),
+            healthy: true,
+            fault: None,
+        };
+        let faulty = UnitTruth {
+            unit: "F".into(),
+            healthy: false,
+            fault: Some(Fault {
+                kind: FaultKind::PumpWear,
+                onset_week: 3,
+                detectable_week: 5,
+                repair_week: Some(8),
+                repair_event: Some("rebuild".into()),
+            }),
+        };
+        let slip = Slip {
+            unit: "H".into(),
+            file: "checks".into(),
+            week: 6,
+            at: String::new(),
+            field: "stroke_time_s".into(),
+            intended: 4.1,
+            typed: 41.0,
+            how: "slipped_decimal".into(),
+        };
+        let truth = truth_of(vec![healthy.clone(), faulty.clone()], vec![slip], 10);
+        // Healthy: act weeks 1–2 (an episode of 2), watch week 4, act week 7 (the week after
+        // the slip). Faulty: watch from week 4, act weeks 6–7, repaired in week 8 (the
+        // check of week 8 is missed), clear from week 9.
+        let h: Timeline = [0, 2, 2, 0, 1, 0, 0, 2, 0, 0].map(wf).to_vec();
+        let f: Timeline = [0, 0, 0, 0, 1, 1, 2, 2, 2, 0].map(wf).to_vec();
+        let facts = vec![
+            UnitFacts {
+                truth: &truth.units[0],
+                checked: vec![true; 10],
+            },
+            UnitFacts {
+                truth: &truth.units[1],
+                checked: vec![true, true, true, true, true, true, true, true, false, true],
+            },
+        ];
+        let s = score("test", &truth, &facts, &[h, f]);
+        assert_eq!(s.healthy_unit_weeks, 10);
+        assert_eq!(s.act_episodes, 2);
+        assert_eq!(s.flag_episodes, 3);
+        // 10 unit-weeks = 10 / 52.18 unit-years: 2 episodes → 1043.6 per 100 unit-years.
+        assert!((s.act_per_100_unit_years - 2.0 / (10.0 / (365.25 / 7.0)) * 100.0).abs() < 1e-9);
+        assert!((s.act_week_share - 0.3).abs() < 1e-12);
+        assert!((s.watch_week_share - 0.1).abs() < 1e-12);
+        assert_eq!(s.act_length_worst, Some(2));
+        assert_eq!(s.act_length_median, Some(1.5));
+        assert_eq!(s.false_act_kinds.get("lost_flow"), Some(&2));
+        // The act starting in week 7 follows the slip of week 6.
+        assert_eq!(s.slip_acts, 1);
+        // Pump wear: act in week 6, detectable 5 → delay 1; watch at week 4 → −1; two checks
+        // (weeks 5 and 6) up to act.
+        let d = &s.detections[0];
+        assert_eq!(
+            (d.act_delay, d.watch_delay, d.checks_to_act),
+            (Some(1), Some(-1), Some(2))
+        );
+        // Repaired in week 8 while at act; clear in week 9: checks in weeks 8 (missed) and 9.
+        assert_eq!(s.repairs_flagged, 1);
+        assert_eq!(s.checks_to_clear, vec![Some(1)]);
+        let pw = &s.faults[0];
+        assert_eq!((pw.planted, pw.found, pw.median_delay), (1, 1, Some(1.0)));
+    }
+
+    #[test]
+    fn a_fault_never_at_act_is_missed_and_fails_its_target() {
+        let faulty = UnitTruth {
+            unit: "F".into(),
+            healthy: false,
+            fault: Some(Fault {
+                kind: FaultKind::CoolerFouling,
+                onset_week: 1,
+                detectable_week: 2,
+                repair_week: None,
+                repair_event: None,
+            }),
+        };
+        let truth = truth_of(vec![faulty], vec![], 5);
+        let facts = vec![UnitFacts {
+            truth: &truth.units[0],
+            checked: vec![true; 5],
+        }];
+        let never: Timeline = [0, 0, 1, 1, 1].map(wf).to_vec();
+        let early: Timeline = [0, 0, 2, 2, 2].map(wf).to_vec();
+        let e = score("e", &truth, &facts, &[never]);
+        let f = score("f", &truth, &facts, &[early]);
+        assert_eq!(e.faults[0].found, 0);
+        assert_eq!(e.faults[0].median_delay, None);
+        let v = verdicts(&e, &f);
+        let found = v
+            .iter()
+            .find(|v| v.target.starts_with("every planted"))
+            .unwrap();
+        assert!(!found.pass);
+        let cooler = v
+            .iter()
+            .find(|v| v.target.starts_with("cooler_fouling"))
+            .unwrap();
+        assert!(!cooler.pass);
+        // And the other way round both pass.
+        let v = verdicts(&f, &e);
+        assert!(
+            v.iter()
+                .find(|v| v.target.starts_with("cooler_fouling"))
+                .unwrap()
+                .pass
+        );
+    }
+}
