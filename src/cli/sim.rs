@@ -2,6 +2,7 @@
 //! shop and its scoring, used by `benches/detection.sh`. Parses the arguments, calls `app::sim`
 //! and prints the figures. No rules here.
 
+use std::collections::BTreeMap;
 use std::io::Write;
 use std::path::PathBuf;
 
@@ -9,7 +10,7 @@ use clap::Args;
 
 use super::Failure;
 use crate::app::sim::{make_sim_shop, score_sim, SimReport};
-use crate::sim::score::{FaultFigures, Scores};
+use crate::sim::score::FaultFigures;
 use crate::sim::shop::Params;
 
 #[derive(Args, Debug, Clone, PartialEq)]
@@ -144,11 +145,11 @@ fn clear_text(v: &[Option<usize>]) -> String {
     )
 }
 
-fn kinds_text(s: &Scores) -> String {
-    if s.false_act_kinds.is_empty() {
+fn kinds_text(kinds: &BTreeMap<String, usize>) -> String {
+    if kinds.is_empty() {
         return "none".into();
     }
-    let mut v: Vec<(&String, &usize)> = s.false_act_kinds.iter().collect();
+    let mut v: Vec<(&String, &usize)> = kinds.iter().collect();
     v.sort_by(|a, b| b.1.cmp(a.1).then(a.0.cmp(b.0)));
     v.iter()
         .map(|(k, n)| format!("{k} {n}"))
@@ -260,8 +261,19 @@ pub fn print_report(r: &SimReport, out: &mut dyn Write) -> std::io::Result<()> {
         out,
         "false act flags on healthy units by kind (first week of each):"
     )?;
-    writeln!(out, "  sumpbook: {}", kinds_text(e))?;
-    writeln!(out, "  fixed:    {}", kinds_text(f))?;
+    writeln!(out, "  sumpbook: {}", kinds_text(&e.false_act_kinds))?;
+    writeln!(out, "  fixed:    {}", kinds_text(&f.false_act_kinds))?;
+    writeln!(out, "healthy unit-weeks at act by kind:")?;
+    writeln!(
+        out,
+        "  sumpbook: {}",
+        kinds_text(&e.false_act_weeks_by_kind)
+    )?;
+    writeln!(
+        out,
+        "  fixed:    {}",
+        kinds_text(&f.false_act_weeks_by_kind)
+    )?;
     if !e.slip_act_list.is_empty() {
         let list: Vec<String> = e
             .slip_act_list

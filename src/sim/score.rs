@@ -195,6 +195,8 @@ pub struct Scores {
     pub flag_length_worst: Option<usize>,
     /// Act episodes on healthy units by the kinds at act in their first week.
     pub false_act_kinds: BTreeMap<String, usize>,
+    /// Healthy unit-weeks at act by each kind at act in them.
+    pub false_act_weeks_by_kind: BTreeMap<String, usize>,
     pub faults: Vec<FaultFigures>,
     pub detections: Vec<Detection>,
     /// Act episodes, outside any fault, that start in the week of a planted slip or the next.
@@ -245,6 +247,7 @@ pub fn score(
         flag_length_median: None,
         flag_length_worst: None,
         false_act_kinds: BTreeMap::new(),
+        false_act_weeks_by_kind: BTreeMap::new(),
         faults: Vec::new(),
         detections: Vec::new(),
         slip_acts: 0,
@@ -284,6 +287,14 @@ pub fn score(
             s.healthy_units += 1;
             s.healthy_unit_weeks += levels.len();
             act_weeks += levels.iter().filter(|&&l| l == ACT).count();
+            for week in tl.iter().filter(|w| w.level == ACT) {
+                let mut kinds = week.act_kinds.clone();
+                kinds.sort();
+                kinds.dedup();
+                for k in kinds {
+                    *s.false_act_weeks_by_kind.entry(k).or_default() += 1;
+                }
+            }
             watch_weeks += levels.iter().filter(|&&l| l == WATCH).count();
             for &(start, len) in &acts {
                 act_lengths.push(len);
@@ -637,6 +648,7 @@ mod tests {
         assert_eq!(s.act_length_worst, Some(2));
         assert_eq!(s.act_length_median, Some(1.5));
         assert_eq!(s.false_act_kinds.get("lost_flow"), Some(&2));
+        assert_eq!(s.false_act_weeks_by_kind.get("lost_flow"), Some(&3));
         // The act starting in week 7 follows the slip of week 6.
         assert_eq!(s.slip_acts, 1);
         // Pump wear: act in week 6, detectable 5 → delay 1; watch at week 4 → −1; two checks
