@@ -1125,6 +1125,7 @@ fn simulate_unit(
                 case_drain: get("case_drain_lpm").map(Flow::from_lpm),
                 by: PEOPLE[person].into(),
                 note: String::new(),
+                confirmed: None,
             });
 
             if run.sample_pending {
@@ -1190,6 +1191,7 @@ fn simulate_unit(
                     acid_mgkoh_g: get("acid_mgkoh_g"),
                     lab_ref: format!("WL-{:03}-{:02}", i + 1, run.lab_seq),
                     note: String::new(),
+                    confirmed: None,
                 });
                 if detectable.is_some_and(|d| w >= d) {
                     run.samples_since_detectable += 1;
