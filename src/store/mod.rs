@@ -187,9 +187,35 @@ impl Store {
                     reason: "it is a directory".into(),
                 })
             }
+            Ok(meta) if !meta.is_file() => {
+                // /dev/null, /dev/zero, a pipe: SQLite would answer "disk I/O error".
+                return Err(StoreError::CannotOpen {
+                    path: path_buf,
+                    reason: "it is a device or pipe, not a shop file; give the path of a shop \
+                             file (.sqlite)"
+                        .into(),
+                });
+            }
             Ok(meta) => {
                 if meta.permissions().readonly() {
                     return Err(StoreError::ReadOnlyFile { path: path_buf });
+                }
+                // SQLite keeps its journal files beside the shop, so the folder must be
+                // writable too; otherwise it answers "the database is read-only", naming none.
+                let folder = match path.parent() {
+                    Some(p) if !p.as_os_str().is_empty() => p,
+                    _ => Path::new("."),
+                };
+                if std::fs::metadata(folder).is_ok_and(|m| m.permissions().readonly()) {
+                    return Err(StoreError::CannotOpen {
+                        path: path_buf,
+                        reason: format!(
+                            "the folder {} is read-only, and sumpbook writes its journal files \
+                             beside the shop; make the folder writable, or copy the shop into a \
+                             folder you can write to",
+                            folder.display()
+                        ),
+                    });
                 }
                 if meta.len() > 0 {
                     check_sqlite_header(path, meta.len())?;
