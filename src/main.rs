@@ -11,7 +11,10 @@ fn main() -> ExitCode {
     match sumpbook::cli::run(&cli, &mut out) {
         Ok(()) => ExitCode::SUCCESS,
         Err(failure) => {
-            eprintln!("sumpbook: {}", failure.message);
+            eprintln!(
+                "sumpbook: {}",
+                sumpbook::cli::printable::printable(&failure.message)
+            );
             ExitCode::from(failure.code)
         }
     }

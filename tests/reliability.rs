@@ -2151,3 +2151,136 @@ fn limits_stored_out_of_range_by_an_older_program_do_not_break_status_due_or_rep
         status_due_report(&db, dir.path(), &format!("stored {extreme}"));
     }
 }
+
+// ---------------------------------------------------------------------------------------------
+// 11. Refusals in the user's terms
+
+#[test]
+fn a_device_or_a_read_only_folder_given_as_db_is_named_with_what_to_do() {
+    use std::os::unix::fs::PermissionsExt;
+    for dev in ["/dev/null", "/dev/zero", "/dev/full"] {
+        for args in [
+            vec!["status"],
+            vec!["export", "checks"],
+            vec!["init", "--name", "x"],
+        ] {
+            let out = run(Path::new(dev), &args);
+            let err = text(&out.stderr);
+            assert_eq!(out.status.code(), Some(2), "{dev} {args:?}: {err}");
+            assert!(err.contains(dev) && err.contains("device"), "{err}");
+            assert!(!err.contains("disk I/O"), "{err}");
+        }
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let folder = dir.path().join("locked-folder");
+    std::fs::create_dir(&folder).unwrap();
+    let db = base_shop(&folder);
+    std::fs::set_permissions(&folder, std::fs::Permissions::from_mode(0o555)).unwrap();
+    let outs: Vec<Output> = [
+        vec!["status"],
+        vec![
+            "log-check",
+            "PR-07-HPU",
+            "--by",
+            "AK",
+            "--reservoir-temp",
+            "45C",
+        ],
+    ]
+    .iter()
+    .map(|a| run(&db, a))
+    .collect();
+    std::fs::set_permissions(&folder, std::fs::Permissions::from_mode(0o755)).unwrap();
+    for out in outs {
+        let err = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{err}");
+        assert!(
+            err.contains("locked-folder is read-only") && err.contains("make the folder writable"),
+            "{err}"
+        );
+    }
+}
+
+#[test]
+fn a_utf16_file_without_a_byte_order_mark_is_told_once_to_be_saved_as_utf8() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let out = run(
+        &db,
+        &[
+            "import",
+            "checks",
+            path_str(&corpus().join("checks_utf16_no_bom.csv")),
+        ],
+    );
+    let err = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert_eq!(err.matches("save it as UTF-8").count(), 1, "{err}");
+    assert!(
+        !err.contains("unknown column") && !err.contains('\0'),
+        "{err}"
+    );
+}
+
+#[test]
+fn control_characters_in_typed_text_are_printed_escaped() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let esc = "PR-07\u{1b}[2J\u{1b}]0;owned\u{7}";
+    // A refusal quoting the cell (standard error) ...
+    let file = dir.path().join("esc.csv");
+    std::fs::write(
+        &file,
+        format!("unit_tag,taken_at,reservoir_temp_c,by\n{esc},2025-04-01T07:30:00Z,45,AK\n"),
+    )
+    .unwrap();
+    let out = run(&db, &["import", "checks", path_str(&file)]);
+    let err = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(
+        !out.stderr.contains(&0x1b) && !out.stderr.contains(&0x07),
+        "{err}"
+    );
+    assert!(
+        err.contains("PR-07\\u{1b}[2J\\u{1b}]0;owned\\u{7}"),
+        "{err}"
+    );
+    // ... and a stored note and name (standard output).
+    ok(
+        &db,
+        &[
+            "log-check",
+            "PR-07-HPU",
+            "--by",
+            "AK\u{1b}[31m",
+            "--reservoir-temp",
+            "45C",
+            "--note",
+            esc,
+        ],
+    );
+    let settings_name = "Shop\u{1b}[5m";
+    let conn = Connection::open(&db).unwrap();
+    conn.execute_batch(&format!(
+        "INSERT INTO edit_context (id, edited_by, reason, edited_at) VALUES (1, 't', 't', '2026-01-01T00:00:00Z'); \
+         UPDATE settings SET shop_name = '{settings_name}'; DELETE FROM edit_context;"
+    ))
+    .unwrap();
+    drop(conn);
+    for args in [
+        vec!["status"],
+        vec!["due"],
+        vec!["export", "checks", "--out", "/dev/null"],
+    ] {
+        let out = run(&db, &args);
+        assert!(out.status.success(), "{args:?}: {}", text(&out.stderr));
+        assert!(
+            !out.stdout.contains(&0x1b),
+            "{args:?}: {}",
+            text(&out.stdout)
+        );
+    }
+    assert!(ok(&db, &["status"]).contains("Shop\\u{1b}[5m"));
+    // Export to standard output is data: the note comes back as typed, for a round trip.
+    assert!(ok(&db, &["export", "checks"]).contains(esc));
+}

@@ -12,6 +12,7 @@ pub mod calc;
 pub mod confirm;
 pub mod data;
 pub mod entry;
+pub mod printable;
 pub mod report;
 pub mod sim;
 pub mod status;
@@ -121,8 +122,16 @@ pub enum Command {
     SimScore(sim::SimScoreArgs),
 }
 
-/// Runs a parsed command line; `None` means "open the app".
+/// Runs a parsed command line; `None` means "open the app". Text goes to `out` with control
+/// characters escaped (`printable`); an export to standard output is CSV data, written as is.
 pub fn run(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
+    if matches!(&cli.command, Some(Command::Export(a)) if a.out.is_none()) {
+        return run_command(cli, out);
+    }
+    run_command(cli, &mut printable::Escaping(out))
+}
+
+fn run_command(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
     // The app started from a desktop icon has no --db: the environment can name the shop.
     let db = cli.db.clone().or_else(|| {
         std::env::var_os(DB_VARIABLE)

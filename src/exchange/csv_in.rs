@@ -17,7 +17,7 @@ use std::io::{BufRead, BufReader, Read};
 use std::path::{Path, PathBuf};
 use std::str::FromStr;
 
-use chrono::{DateTime, FixedOffset, NaiveDate, NaiveTime, TimeZone, Utc};
+use chrono::{DateTime, FixedOffset, NaiveDate, NaiveTime, TimeZone, Timelike, Utc};
 use csv::ByteRecord;
 
 use super::{unescape_cell, ExchangeError, FileKind, ImportSummary, RowError};
@@ -556,6 +556,20 @@ fn detect_delimiter(header_line: &[u8]) -> u8 {
 
 /// Parses an ISO 8601 date or date-time; see the module documentation of `exchange`.
 pub fn parse_when(input: &str) -> Result<DateTime<Utc>, String> {
+    let t = parse_when_inner(input)?;
+    // chrono reads second 60 as a leap second (a nanosecond part of one second or more);
+    // the shop keeps civil time without leap seconds.
+    if t.nanosecond() >= 1_000_000_000 {
+        return Err(format!(
+            "`{}`: second 60 is a leap second, which is not a valid time here; write :59 or \
+             the first second of the next minute",
+            input.trim()
+        ));
+    }
+    Ok(t)
+}
+
+fn parse_when_inner(input: &str) -> Result<DateTime<Utc>, String> {
     let s = input.trim();
     if s.len() == 20 {
         if let Ok(t) = crate::store::parse_time(s) {
@@ -788,8 +802,16 @@ impl<'r> RowReader<'r> {
         let text = self.text(Some(s))?;
         match text.parse::<i64>() {
             Ok(v) => Some(v),
-            Err(_) => {
-                self.err(s.name, format!("`{text}` is not a whole number"));
+            Err(e) => {
+                use std::num::IntErrorKind::{NegOverflow, PosOverflow};
+                let reason = match e.kind() {
+                    PosOverflow | NegOverflow => format!(
+                        "`{text}` is too large a number (at most {} digits)",
+                        i64::MAX.to_string().len() - 1
+                    ),
+                    _ => format!("`{text}` is not a whole number"),
+                };
+                self.err(s.name, reason);
                 None
             }
         }
@@ -1023,7 +1045,20 @@ pub fn import_reader<R: Read>(
             None => io_err(e),
         });
     }
-    if first.starts_with(b"\xFF\xFE") || first.starts_with(b"\xFE\xFF") {
+    // UTF-16 with a byte-order mark, or without one: ASCII header text then has a zero byte
+    // beside every letter (`u\0n\0i\0t\0`), which no UTF-8 header has. Said once, instead of
+    // an unknown column per garbled name.
+    let zeros = |parity: usize| {
+        first
+            .iter()
+            .skip(parity)
+            .step_by(2)
+            .filter(|&&b| b == 0)
+            .count()
+    };
+    let half = first.len() / 2;
+    let utf16_no_bom = half >= 2 && (zeros(0) * 4 >= half * 3 || zeros(1) * 4 >= half * 3);
+    if first.starts_with(b"\xFF\xFE") || first.starts_with(b"\xFE\xFF") || utf16_no_bom {
         return Err(ExchangeError::Rows(vec![RowError {
             file: label.into(),
             line: 1,
