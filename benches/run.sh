@@ -1,5 +1,6 @@
 #!/usr/bin/env bash
-# Benchmarks against the floor (design §9), as ratios measured in one run on this machine:
+# Benchmarks against the floor (docs/engineering.md, "Performance targets"), as ratios measured in
+# one run on this machine:
 #   import      `sumpbook import checks` (full validation) vs the sqlite3 shell's `.import` of the
 #               same CSV into a plain table of the same columns; rows/s, ratio, peak memory at
 #               100 k and 1 M rows; also vs the shell putting the same CSV into the shop's

@@ -1,4 +1,5 @@
-//! The reads behind the fleet board and the unit page use indexes (design §9): no full scan of
+//! The reads behind the fleet board and the unit page use indexes (docs/engineering.md,
+//! "Performance targets"): no full scan of
 //! checks or samples in their query plans, on a shop that is large enough for SQLite's planner
 //! to care. Not timed; `benches/run.sh` measures the speed.
 

@@ -241,7 +241,8 @@ fn iso_3448_bands_vg10_to_vg150() {
 
 #[test]
 fn iso_4406_every_table_boundary() {
-    // ISO 4406 Table 1 (design §3): scale n covers "more than" the limit below "up to and including"
+    // ISO 4406 Table 1 (docs/engineering.md, "ISO 4406 scale"): scale n covers "more than" the
+    // limit below "up to and including"
     // its own; limits 0.01 … 0.64, 1.3, 2.5, 5 … 640, 1300, 2500, 5000 … 640 000, 1 300 000, 2 500 000.
     let published = [
         0.01,
@@ -290,7 +291,7 @@ fn iso_4406_every_table_boundary() {
         assert_eq!(scale_number(above).unwrap(), expected, "just above {upper}");
     }
     assert_eq!(scale_number(0.0).unwrap(), Scale::Number(0));
-    // Above 28 the code is written ">28" (design §3, from memory).
+    // Above 28 the code is written ">28" (docs/engineering.md, "ISO 4406 scale"; from memory).
     assert_eq!(Scale::Above28.to_string(), ">28");
     assert!(scale_number(-0.1).is_err());
 }

@@ -20,7 +20,8 @@ fn bad(e: PhysicsError) -> AppError {
     AppError::BadInput(e.to_string())
 }
 
-/// Temperatures a practitioner may ask about: design §10's physical range for oil in service.
+/// Temperatures a practitioner may ask about: the physical range (docs/engineering.md, "Physical
+/// bounds of readings") for oil in service.
 const MIN_C: f64 = -40.0;
 const MAX_C: f64 = 150.0;
 

@@ -6,7 +6,8 @@
 //! importer reads either unit system. Everything is read and written through the store; this
 //! module holds no SQL and computes no health.
 //!
-//! CSV dialect (design §8): RFC 4180 quoting; the delimiter (`,` `;` or tab) is detected from
+//! CSV dialect (docs/engineering.md, "CSV files"): RFC 4180 quoting; the delimiter (`,` `;` or
+//! tab) is detected from
 //! the header line; UTF-8 with or without a byte-order mark. Times are ISO 8601: a date
 //! (`2025-03-04`, taken as 00:00 UTC), or a date and time (`2025-03-04T07:30:00Z`,
 //! `2025-03-04 07:30`, `2025-03-04T08:30:00+01:00`); a time without `Z` or an offset is taken as

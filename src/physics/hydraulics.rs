@@ -291,7 +291,8 @@ mod tests {
 
     #[test]
     fn ratios() {
-        // Definitions (design §3): lost flow 1 − Q/Q_baseline; volumetric efficiency Q/Q_rated.
+        // Definitions (docs/engineering.md, "Computations"): lost flow 1 − Q/Q_baseline;
+        // volumetric efficiency Q/Q_rated.
         let lf = lost_flow(Flow::from_lpm(46.0), Flow::from_lpm(50.0)).unwrap();
         assert!((lf - 0.08).abs() < 1e-12);
         let ve = vol_efficiency(Flow::from_lpm(45.0), Flow::from_lpm(50.0)).unwrap();

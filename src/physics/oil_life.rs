@@ -18,7 +18,7 @@ pub struct AgeingRule {
 }
 
 impl Default for AgeingRule {
-    /// 60 °C and 10 K (design §3, common practice).
+    /// 60 °C and 10 K (docs/engineering.md, "Computations"; common practice).
     fn default() -> Self {
         AgeingRule {
             threshold: Temperature::from_c(60.0),
