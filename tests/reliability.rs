@@ -2284,3 +2284,42 @@ fn control_characters_in_typed_text_are_printed_escaped() {
     // Export to standard output is data: the note comes back as typed, for a round trip.
     assert!(ok(&db, &["export", "checks"]).contains(esc));
 }
+
+#[test]
+fn typed_digits_beyond_the_twelve_stored_are_said_to_be_rounded() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let file = dir.path().join("long.csv");
+    std::fs::write(
+        &file,
+        "unit_tag,taken_at,reservoir_temp_c,pressure_bar,by\n\
+         PR-07-HPU,2025-04-01T07:30:00Z,45.1234567890123,172.123456789012345,AK\n\
+         PR-07-HPU,2025-04-02T07:30:00Z,45.5,172.5,AK\n",
+    )
+    .unwrap();
+    let out = ok(&db, &["import", "checks", path_str(&file)]);
+    assert!(
+        out.contains("2 numbers had more than 12 significant digits and were stored rounded to 12"),
+        "{out}"
+    );
+    let conn = Connection::open(&db).unwrap();
+    let p: f64 = conn
+        .query_row(
+            "SELECT pressure_bar FROM checks WHERE taken_at = '2025-04-01T07:30:00Z'",
+            [],
+            |r| r.get(0),
+        )
+        .unwrap();
+    // 172.123456789012345 to 12 significant digits.
+    assert_eq!(p, 172.123456789);
+    drop(conn);
+    // A file of at most 12 digits per number says nothing of rounding.
+    let plain = dir.path().join("plain.csv");
+    std::fs::write(
+        &plain,
+        "unit_tag,taken_at,reservoir_temp_c,by\nPR-07-HPU,2025-04-03T07:30:00Z,45.25,AK\n",
+    )
+    .unwrap();
+    let out = ok(&db, &["import", "checks", path_str(&plain)]);
+    assert!(!out.contains("rounded"), "{out}");
+}

@@ -311,6 +311,15 @@ pub fn run_import(
             s.machines_added, s.fluids_added
         )?;
     }
+    if s.rounded > 0 {
+        write!(
+            out,
+            "; {} number{} had more than 12 significant digits and {} stored rounded to 12",
+            s.rounded,
+            if s.rounded == 1 { "" } else { "s" },
+            if s.rounded == 1 { "was" } else { "were" }
+        )?;
+    }
     if args.keep_going {
         write!(out, ", {} refused", s.rejected)?;
         if let Some(p) = &s.rejects_file {

@@ -649,6 +649,14 @@ fn parse_when_inner(input: &str) -> Result<DateTime<Utc>, String> {
     Ok(local.with_timezone(&Utc))
 }
 
+/// How many significant digits a number is written with (`0.0012500` → 3, `1.5e3` → 2).
+pub fn significant_digits(text: &str) -> usize {
+    let t = text.trim().trim_start_matches(['+', '-']);
+    let mantissa = t.split(['e', 'E']).next().unwrap_or("");
+    let digits: String = mantissa.chars().filter(char::is_ascii_digit).collect();
+    digits.trim_start_matches('0').trim_end_matches('0').len()
+}
+
 /// Parses a number written with a decimal point.
 pub fn parse_number(s: &str) -> Result<f64, String> {
     if s.contains(',') {
@@ -715,6 +723,8 @@ struct RowReader<'r> {
     errors: Vec<RowError>,
     /// Readings later than this are in the future (a day of slack for clocks and zones).
     latest: DateTime<Utc>,
+    /// Numbers of this row written with more significant digits than are stored.
+    rounded: u64,
 }
 
 impl<'r> RowReader<'r> {
@@ -822,7 +832,24 @@ impl<'r> RowReader<'r> {
         let s = slot?;
         let text = self.text(Some(s))?;
         match parse_number(text) {
-            Ok(v) => Some((v, s)),
+            Ok(v) => {
+                // In the column's own unit the stored figure is the typed one to 12 significant
+                // digits; more digits than that are rounded away, and the summary says so. (A
+                // converted unit is rounded by its conversion anyway.)
+                let own_unit = matches!(
+                    s.unit,
+                    ColUnit::Plain
+                        | ColUnit::C
+                        | ColUnit::Bar
+                        | ColUnit::Lpm
+                        | ColUnit::L
+                        | ColUnit::Mm
+                );
+                if own_unit && significant_digits(text) > columns::STORED_DIGITS {
+                    self.rounded += 1;
+                }
+                Some((v, s))
+            }
             Err(e) => {
                 let (sym, _) = unit_words(s.unit);
                 let expected = if sym.is_empty() {
@@ -1151,6 +1178,7 @@ pub fn import_reader<R: Read>(
         rejects_file: None,
         machines_added: 0,
         fluids_added: 0,
+        rounded: 0,
     };
     let mut errors: Vec<RowError> = Vec::new();
     let mut bulk = store.bulk()?;
@@ -1210,6 +1238,7 @@ pub fn import_reader<R: Read>(
             line,
             errors: Vec::new(),
             latest,
+            rounded: 0,
         };
         let outcome = if let Some(column) = unclosed_quote(&rec, delimiter, header.width) {
             let name = header.name_at(column);
@@ -1244,7 +1273,10 @@ pub fn import_reader<R: Read>(
             importer.row(&mut bulk, &mut row, &mut summary)?
         };
         match outcome {
-            Some(Outcome::Inserted) if row.errors.is_empty() => summary.inserted += 1,
+            Some(Outcome::Inserted) if row.errors.is_empty() => {
+                summary.inserted += 1;
+                summary.rounded += row.rounded;
+            }
             Some(Outcome::Unchanged) if row.errors.is_empty() => summary.unchanged += 1,
             _ => {
                 if row.errors.is_empty() {
@@ -2162,6 +2194,15 @@ mod tests {
         assert!(t("2025-03-04T25:00").is_err());
         assert!(t("2025-03-04T07:30:00+25:00").is_err());
         assert!(t("4 March 2025").is_err());
+    }
+
+    #[test]
+    fn significant_digits_are_counted_as_written() {
+        assert_eq!(significant_digits("172.123456789012345"), 18);
+        assert_eq!(significant_digits("-0.0012500"), 3);
+        assert_eq!(significant_digits("1.5e3"), 2);
+        assert_eq!(significant_digits("120"), 2);
+        assert_eq!(significant_digits("0"), 0);
     }
 
     #[test]

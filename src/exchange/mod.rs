@@ -125,6 +125,8 @@ pub struct ImportSummary {
     /// For the unit register: machines and fluids added along with the units.
     pub machines_added: u64,
     pub fluids_added: u64,
+    /// Numbers written with more significant digits than are stored (12), stored rounded.
+    pub rounded: u64,
 }
 
 /// Why an import or export failed.

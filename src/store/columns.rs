@@ -15,9 +15,12 @@ const POW10: [f64; 23] = [
     1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
 ];
 
+/// Significant digits a stored figure keeps.
+pub const STORED_DIGITS: usize = 12;
+
 /// `x` rounded to 12 significant digits: the nearest double to that decimal.
 pub fn tidy(x: f64) -> f64 {
-    round_sig(x, 12)
+    round_sig(x, STORED_DIGITS as i32)
 }
 
 /// `x` rounded to `digits` significant digits (1..=17); the nearest double to that decimal.
