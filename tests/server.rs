@@ -599,3 +599,62 @@ fn a_server_that_goes_away_is_reported_plainly_and_the_next_call_connects_again(
     assert!(shop.store().units().unwrap().is_empty());
     assert_eq!(shop.store().settings().unwrap().shop_name, "New shop");
 }
+
+#[test]
+fn a_correction_over_someone_elses_is_refused_naming_who_and_when() {
+    crate::backends::on_each_backend(|| {
+        let dir = tempfile::tempdir().unwrap();
+        let db = crate::backends::shop_at(dir.path(), "corrections.sqlite");
+        let mut loader = Shop::create(&db).unwrap();
+        loader.load_demo().unwrap();
+        drop(loader);
+        let (a, b) = (Shop::open(&db).unwrap(), Shop::open(&db).unwrap());
+        let stored = a.store().latest_checks().unwrap().remove(0);
+        // Both open the same check.
+        let seen_a = a.store().edit_mark("checks", stored.id).unwrap();
+        let seen_b = b.store().edit_mark("checks", stored.id).unwrap();
+        assert_eq!(seen_a, seen_b);
+
+        let mut by_b = stored.clone();
+        by_b.note = "gauge re-read".into();
+        b.store()
+            .correcting("checks", stored.id, seen_b, |s| {
+                s.update_check(&by_b, "B. Lindqvist", "note added")
+            })
+            .unwrap();
+
+        let mut by_a = stored.clone();
+        by_a.pressure = Some(sumpbook::units::Pressure::from_bar(99.5));
+        let err = a
+            .store()
+            .correcting("checks", stored.id, seen_a, |s| {
+                s.update_check(&by_a, "A. Ruiz", "typed twice the value")
+            })
+            .unwrap_err();
+        match &err {
+            StoreError::Conflict { by, at, .. } => {
+                assert_eq!(by, "B. Lindqvist");
+                assert!(at.ends_with('Z'), "{at}");
+            }
+            other => panic!("expected a conflict, got {other:?}"),
+        }
+        assert!(err.to_string().contains("B. Lindqvist"), "{err}");
+        // Nothing was overwritten: B's correction stands, A's is not in the history.
+        let now = a.store().check(stored.id).unwrap().unwrap();
+        assert_eq!(now, by_b);
+        let history = a.store().edit_history("checks", stored.id).unwrap();
+        assert_eq!(history.len(), 1);
+        assert_eq!(history[0].by, "B. Lindqvist");
+
+        // Having looked again, A saves over B's version.
+        let seen_again = a.store().edit_mark("checks", stored.id).unwrap();
+        let mut again = now.clone();
+        again.pressure = by_a.pressure;
+        a.store()
+            .correcting("checks", stored.id, seen_again, |s| {
+                s.update_check(&again, "A. Ruiz", "typed twice the value")
+            })
+            .unwrap();
+        assert_eq!(a.store().check(stored.id).unwrap().unwrap(), again);
+    });
+}

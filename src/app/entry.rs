@@ -1526,6 +1526,47 @@ pub fn reading_fields(shop: &Shop, which: Reading, id: Id) -> Result<Vec<Field>,
     })
 }
 
+/// Where a stored reading stands in the edit history, for a form that shows it to keep and hand
+/// to [`edit_reading_seen`] when it saves.
+pub fn reading_mark(shop: &Shop, which: Reading, id: Id) -> Result<i64, AppError> {
+    shop.store()
+        .edit_mark(reading_table(which), id)
+        .map_err(store_error)
+}
+
+fn reading_table(which: Reading) -> &'static str {
+    match which {
+        Reading::Check => "checks",
+        Reading::Sample => "samples",
+        Reading::Event => "events",
+    }
+}
+
+/// [`edit_reading`] for a form opened at edit mark `seen` ([`reading_mark`]): if someone else
+/// corrected the reading since, nothing is saved and the error says who and when.
+pub fn edit_reading_seen(
+    shop: &Shop,
+    which: Reading,
+    id: Id,
+    seen: i64,
+    entered: &Entered,
+    by: &str,
+    reason: &str,
+) -> Result<SaveOutcome<()>, AppError> {
+    let mut out = None;
+    let result = shop
+        .store()
+        .correcting(reading_table(which), id, seen, |_| {
+            out = Some(edit_reading(shop, which, id, entered, by, reason));
+            Ok(())
+        });
+    match (result, out) {
+        (Err(e), _) => Err(store_error(e)),
+        (Ok(()), Some(r)) => r,
+        (Ok(()), None) => Err(AppError::Failed("the correction did not run".into())),
+    }
+}
+
 /// Corrects a stored reading; the old value goes to the edit history with who and why.
 pub fn edit_reading(
     shop: &Shop,

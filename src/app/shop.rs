@@ -420,5 +420,6 @@ pub(crate) fn store_error_is_input(e: &StoreError) -> bool {
             | StoreError::NoEditContext
             | StoreError::Refused(_)
             | StoreError::NotAllowed(_)
+            | StoreError::Conflict { .. }
     )
 }

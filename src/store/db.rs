@@ -588,6 +588,19 @@ impl Db {
         }
     }
 
+    /// Locks one row of `table` until the transaction ends. SQLite's write transaction holds
+    /// the whole file already; the server locks the row (`FOR UPDATE`).
+    pub(crate) fn lock_row(&self, table: &str, id: i64) -> Result<(), StoreError> {
+        match self {
+            Db::Lite(_) => Ok(()),
+            Db::Pg(_) => self.each::<StoreError>(
+                &format!("SELECT id FROM {table} WHERE id = ?1 FOR UPDATE"),
+                params![id],
+                |_| Ok(()),
+            ),
+        }
+    }
+
     pub(crate) fn in_transaction(&self) -> bool {
         match self {
             Db::Lite(c) => !c.is_autocommit(),

@@ -139,6 +139,13 @@ pub enum StoreError {
     /// A file beside the shop (a backup) could not be made.
     #[error(transparent)]
     Out(#[from] crate::outfile::OutFileError),
+    /// Someone else edited the row since the user opened it: nothing was saved.
+    #[error("{what} was changed by {by} at {at} since you opened it; nothing was saved: look at the stored values and correct again")]
+    Conflict {
+        what: String,
+        by: String,
+        at: String,
+    },
     /// The server refused the change for the signed-in role.
     #[error("not allowed for your database role: {0}")]
     NotAllowed(String),
@@ -157,6 +164,9 @@ pub struct Store {
     queries: Cell<u64>,
     /// The schema was created by this open (an empty database became a shop).
     created: bool,
+    /// Set by [`Store::correcting`]: the next edit is refused if this row (table, id) was
+    /// edited after this edit-history mark.
+    expect_unedited: Cell<Option<(&'static str, Id, i64)>>,
 }
 
 impl std::fmt::Debug for Store {
@@ -247,6 +257,7 @@ impl Store {
             path: path_buf,
             queries: Cell::new(0),
             created: false,
+            expect_unedited: Cell::new(None),
         };
         store.prepare_connection().map_err(|e| match e {
             StoreError::Busy => StoreError::Locked {
@@ -269,6 +280,7 @@ impl Store {
             path: PathBuf::from(":memory:"),
             queries: Cell::new(0),
             created: false,
+            expect_unedited: Cell::new(None),
         };
         store.prepare_connection()?;
         Ok(store)
@@ -697,11 +709,64 @@ impl Store {
         self.count();
         self.db
             .set_edit_context(by.trim(), reason, &fmt_time_stamp(&Utc::now()))?;
+        if let Some((table, id, seen)) = self.expect_unedited.take() {
+            self.ensure_unedited_since(table, id, seen)?;
+        }
         let out = f(self)?;
         self.count();
         self.db.clear_edit_context()?;
         tx.commit()?;
         Ok(out)
+    }
+}
+
+impl Store {
+    /// Where a stored row stands in the edit history: the id of its latest edit (0 if it was
+    /// never edited). A form keeps it when it shows the row, and hands it to
+    /// [`Store::correcting`] when it saves.
+    pub fn edit_mark(&self, table: &str, row_id: Id) -> Result<i64, StoreError> {
+        self.query_one(
+            "SELECT coalesce(max(id), 0) FROM edit_log WHERE table_name = ?1 AND row_id = ?2",
+            params![table, row_id],
+            |r| r.get(0),
+        )
+    }
+
+    /// Runs `f`, a correction of the row `row_id` of `table`, refusing it with
+    /// [`StoreError::Conflict`] (who changed it and when) if anyone edited that row after
+    /// `seen` (its [`Store::edit_mark`] when the user opened it): nothing is overwritten
+    /// silently. The check is made inside the correction's own transaction, with the row
+    /// locked, so two people saving at once cannot both pass it.
+    pub fn correcting<T>(
+        &self,
+        table: &'static str,
+        row_id: Id,
+        seen: i64,
+        f: impl FnOnce(&Self) -> Result<T, StoreError>,
+    ) -> Result<T, StoreError> {
+        self.expect_unedited.set(Some((table, row_id, seen)));
+        let out = f(self);
+        self.expect_unedited.set(None);
+        out
+    }
+
+    fn ensure_unedited_since(&self, table: &str, row_id: Id, seen: i64) -> Result<(), StoreError> {
+        self.count();
+        self.db.lock_row(table, row_id)?;
+        let latest = self.edit_mark(table, row_id)?;
+        if latest <= seen {
+            return Ok(());
+        }
+        let (by, at): (String, String) = self.query_one(
+            "SELECT edited_by, edited_at FROM edit_log WHERE id = ?1",
+            params![latest],
+            |r| Ok((r.get(0)?, r.get(1)?)),
+        )?;
+        Err(StoreError::Conflict {
+            what: format!("{table} row {row_id}"),
+            by,
+            at,
+        })
     }
 }
 

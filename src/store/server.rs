@@ -67,6 +67,7 @@ pub(crate) fn open(url: &str) -> Result<Store, StoreError> {
         path: shown,
         queries: Cell::new(0),
         created,
+        expect_unedited: Cell::new(None),
     })
 }
 
