@@ -652,7 +652,18 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
         .filter(|p| !p.drift.is_empty())
         .map(|p| {
             let run = p.drift.iter().map(|d| d.run).max().unwrap_or(0) as f64;
-            let state = State::from_grade(dl.grade(run));
+            let mut state = State::from_grade(dl.grade(run));
+            // Act needs a material shift as well as a persisting signal: a healthy unit's
+            // jobs and weather move the indicators in runs that a chart built for independent
+            // readings takes for drift, by less than the indicator's own watch limit.
+            if state == State::Act
+                && !p
+                    .drift
+                    .iter()
+                    .any(|d| dl.grade(d.run as f64) == Some(true) && d.material)
+            {
+                state = State::Watch;
+            }
             let limit = if state == State::Act {
                 dl.act
             } else {

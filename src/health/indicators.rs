@@ -41,6 +41,10 @@ pub struct DriftPoint {
     pub signal: bool,
     /// Consecutive checks signalling, this one included (0 when it does not signal).
     pub run: usize,
+    /// Whether the EWMA has moved from the baseline by at least the watch limit of the
+    /// indicator's own flag (lost flow, case-drain rise, heat-rise drift): a shift that is
+    /// both real and large enough to matter, which a statistical flag needs to reach act.
+    pub material: bool,
 }
 
 /// The indicators of one check. SI values unless the name carries a unit.
@@ -302,18 +306,6 @@ pub fn compute(
     });
     let displacement = fit.map(|f| f.displacement).or(rated.map(|r| r.si()));
     for p in points.iter_mut() {
-        let scale = match (reference, p.viscosity_at_temp, p.pressure) {
-            (Some(r), Some(nu), Some(pr)) => Some(nu / r.viscosity * r.pressure / pr),
-            _ => None,
-        };
-        p.corrected_flow = match (displacement, p.effective_flow, scale) {
-            (Some(d), Some(q), Some(k)) => Some(d - (d - q) * k),
-            _ => None,
-        };
-        p.case_drain_corrected = match (p.case_drain, scale) {
-            (Some(c), Some(k)) => Some(c * k),
-            (c, _) => c,
-        };
         // Laminar gap leakage Q_leak ∝ Δp/μ, so (D − Q)·ν/p stays put while only the oil
         // temperature or the job pressure moves (Hagen–Poiseuille gap flow).
         p.leak_conductance = match (
@@ -328,6 +320,22 @@ pub fn compute(
                     .map(|g| g.si())
             }
             _ => None,
+        };
+    }
+    // The whole leakage seen at (ν, p) is moved to the reference conditions: D − (D − Q)·k and
+    // the case drain c·k, k = (ν/ν_ref)·(p_ref/p).
+    for p in points.iter_mut() {
+        let scale = match (reference, p.viscosity_at_temp, p.pressure) {
+            (Some(r), Some(nu), Some(pr)) => Some(nu / r.viscosity * r.pressure / pr),
+            _ => None,
+        };
+        p.corrected_flow = match (displacement, p.effective_flow, scale) {
+            (Some(d), Some(q), Some(k)) => Some(d - (d - q) * k),
+            _ => None,
+        };
+        p.case_drain_corrected = match (p.case_drain, scale) {
+            (Some(c), Some(k)) => Some(c * k),
+            (c, _) => c,
         };
     }
 
@@ -457,34 +465,29 @@ pub fn compute(
     // baseline leakage against the rated flow must stand well above the spread of the
     // (corrected) timed flow, never taken below the stopwatch floor.
     let floor_rel = limits.value(LimitKey::MinSpreadPct) / 100.0;
+    let leak_margin = limits
+        .get(LimitKey::LeakConductanceRatio)
+        .watch
+        .unwrap_or(1.3)
+        - 1.0;
     let leak_resolved = match baseline.get(BaselineIndicator::LeakConductance) {
         Some(b) if matches!(b.source, BaselineSource::Manual { .. }) => Some(true),
-        Some(_) if fit.is_some() => Some(true),
+        // The fitted conductance is judged where it is well determined: two of its standard
+        // errors within the watch margin (1.3× → 0.15 of G), so its own error cannot raise a
+        // flag.
+        Some(_) if fit.is_some_and(|f| 2.0 * f.conductance_se <= leak_margin * f.conductance) => {
+            Some(true)
+        }
         Some(_) => {
             let flow_base = baseline
                 .get(BaselineIndicator::CorrectedFlow)
                 .or(baseline.get(BaselineIndicator::EffectiveFlow));
             match (rated, flow_base) {
                 (Some(r), Some(q)) => {
-                    // The leakage D − Q_b must stand `leak_min_spreads` spreads of one timed
-                    // flow above zero, or its baseline's own standard error (the median's,
-                    // over the baseline checks) must be small enough to tell the watch limit
-                    // from 1 at two standard errors.
+                    // The leakage against the rated flow must stand `leak_min_spreads`
+                    // spreads of one timed flow above zero.
                     let sigma = q.spread.max(floor_rel * q.value.abs());
-                    let leak = r.si() - q.value;
-                    let n = match &q.source {
-                        BaselineSource::Checks { check_ids, .. } => check_ids.len().max(1),
-                        BaselineSource::Manual { .. } => 1,
-                    } as f64;
-                    let rel_se = baseline::MEDIAN_SE_FACTOR * sigma / n.sqrt() / leak;
-                    let watch = limits
-                        .get(LimitKey::LeakConductanceRatio)
-                        .watch
-                        .unwrap_or(1.3);
-                    Some(
-                        leak >= limits.value(LimitKey::LeakMinSpreads) * sigma
-                            || (leak > 0.0 && 2.0 * rel_se <= watch - 1.0),
-                    )
+                    Some(r.si() - q.value >= limits.value(LimitKey::LeakMinSpreads) * sigma)
                 }
                 _ => None,
             }
@@ -659,6 +662,15 @@ fn run_detectors(
             stats::Side::High
         };
         let manual = matches!(b.source, BaselineSource::Manual { .. });
+        // The watch limit of the indicator's own flag, in its terms (% of the baseline, or K).
+        let material_at = match b.indicator {
+            BaselineIndicator::EffectiveFlow | BaselineIndicator::CorrectedFlow => {
+                limits.get(LimitKey::LostFlowPct).watch
+            }
+            BaselineIndicator::CaseDrain => limits.get(LimitKey::CaseDrainRisePct).watch,
+            BaselineIndicator::HeatRise => limits.get(LimitKey::HeatRiseDriftK).watch,
+            BaselineIndicator::LeakConductance => None,
+        };
         let mut run = 0usize;
         let mut prev_at: Option<DateTime<Utc>> = None;
         for p in points.iter_mut().filter(|p| manual || !p.in_baseline) {
@@ -702,6 +714,19 @@ fn run_detectors(
             };
             let signal = (beyond || c.signal == Some(bad)) && reading_bad;
             run = if signal { run + 1 } else { 0 };
+            let material = match (b.indicator, material_at) {
+                (_, None) => false,
+                (BaselineIndicator::HeatRise, Some(w)) => z - b.value >= w,
+                (_, Some(w)) if b.value.abs() > 0.0 => {
+                    let shift_pct = if falling {
+                        (b.value - z) / b.value * 100.0
+                    } else {
+                        (z - b.value) / b.value * 100.0
+                    };
+                    shift_pct >= w
+                }
+                _ => false,
+            };
             p.drift.push(DriftPoint {
                 indicator: b.indicator,
                 ewma: z,
@@ -709,6 +734,7 @@ fn run_detectors(
                 cusum_sigma: sum / sigma,
                 signal,
                 run,
+                material,
             });
         }
     }

@@ -694,7 +694,10 @@ mod tests {
             (3, State::Steady),
             (4, State::Steady),
             (5, State::Watch),
-            (6, State::Act),
+            // Three signals in a row, but the EWMA has moved 2.6 K, less than the heat rise's
+            // own 5 K watch limit: not material, so it stays at watch.
+            (6, State::Watch),
+            (9, State::Watch),
         ] {
             let r = eval(&heat_history(&vec![24.0; n]), &l, week(3 + n as i64));
             assert_eq!(state_of(&r, FlagKind::Drift), want, "{n} checks at 24 K");
@@ -709,6 +712,12 @@ mod tests {
         assert!((d.ewma_limit - (20.0 + half)).abs() < 1e-9);
         let c4 = 4.0 * (24.0 - 20.0 - 0.5 * sigma - se);
         assert!((d.cusum_sigma - c4 / sigma).abs() < 1e-9);
+        // A 7 K step: signals from the 2nd check (C⁺ = 2·(7 − 1.67) > H), a run of 3 at the
+        // 4th, but the EWMA 20 + 7·(1 − 0.8ⁱ) passes +5 K only at i = 6 (5.17 K): act there.
+        for (n, want) in [(4, State::Watch), (5, State::Watch), (6, State::Act)] {
+            let r = eval(&heat_history(&vec![27.0; n]), &l, week(3 + n as i64));
+            assert_eq!(state_of(&r, FlagKind::Drift), want, "{n} checks at 27 K");
+        }
         // The drift flag carries its figure: the EWMA of the heat rise, its limit and baseline.
         let r = eval(&heat_history(&[24.0; 5]), &l, week(8));
         let f = r.flags.iter().find(|f| f.kind == FlagKind::Drift).unwrap();

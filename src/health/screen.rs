@@ -23,7 +23,7 @@ use crate::units::UnitSystem;
 pub const WINDOW: usize = 8;
 /// Fewer accepted earlier readings than this and the history rule is not applied (the frame
 /// rules still are): a robust spread of fewer points says little.
-pub const MIN_HISTORY: usize = 5;
+pub const MIN_HISTORY: usize = 3;
 /// A reading further than this many robust σ from the median of its recent history is
 /// questioned. The rule is Hampel's identifier (median ± t · 1.4826 · MAD; F. R. Hampel 1974,
 /// L. Davies and U. Gather, "The identification of multiple outliers", JASA 1993), with t
