@@ -81,6 +81,38 @@ fn a_tiny_simulated_shop_goes_through_import_status_and_scoring() {
             shop_s,
         ],
     );
+    // A second run into the same folder is refused unless told to replace the files.
+    let again = sumpbook(
+        d,
+        &[
+            "sim-shop",
+            "--weeks",
+            "36",
+            "--healthy",
+            "2",
+            "--faulty-per-kind",
+            "1",
+            "--out",
+            shop_s,
+        ],
+    );
+    assert_eq!(again.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&again.stderr).contains("--force"));
+    ok(
+        d,
+        &[
+            "sim-shop",
+            "--weeks",
+            "36",
+            "--healthy",
+            "2",
+            "--faulty-per-kind",
+            "1",
+            "--out",
+            shop_s,
+            "--force",
+        ],
+    );
     let truth: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(shop.join("truth.json")).unwrap()).unwrap();
     let units = truth["units"].as_array().unwrap();

@@ -26,6 +26,7 @@ use serde::Serialize;
 use super::AppError;
 use crate::exchange::{csv_in, csv_out, FileKind};
 use crate::model::{Id, UnitHistory};
+use crate::outfile;
 use crate::physics::cleanliness::{code_from_counts, target_for, Iso4406Code};
 use crate::sim::score::{
     fixed_rule, score, verdicts, Scores, Timeline, UnitFacts, UnitReadings, Verdict, WeekFlags,
@@ -96,10 +97,14 @@ fn load(store: &mut Store, shop: &SimShop) -> Result<(), AppError> {
     Ok(())
 }
 
-/// Writes the simulated shop of `params` into `dir` (created if missing; files in it are
-/// replaced): `units.csv`, `events.csv`, `checks.csv`, `samples.csv`, `truth.json`,
-/// `weeks.txt`.
-pub fn make_sim_shop(dir: &Path, params: &Params) -> Result<SimShopOutcome, AppError> {
+/// Writes the simulated shop of `params` into `dir` (created if missing): `units.csv`,
+/// `events.csv`, `checks.csv`, `samples.csv`, `truth.json`, `weeks.txt`, each written whole
+/// (`outfile`); files already there are replaced only with `replace`.
+pub fn make_sim_shop(
+    dir: &Path,
+    params: &Params,
+    replace: bool,
+) -> Result<SimShopOutcome, AppError> {
     let shop = simulate(params).map_err(AppError::BadInput)?;
     let mut store = Store::open_in_memory()?;
     store.set_settings(
@@ -109,19 +114,43 @@ pub fn make_sim_shop(dir: &Path, params: &Params) -> Result<SimShopOutcome, AppE
     )?;
     load(&mut store, &shop)?;
     std::fs::create_dir_all(dir).map_err(io(dir))?;
+    let opts = outfile::Options {
+        replace,
+        devices_in_place: false,
+        can_force: true,
+    };
+    if !replace {
+        // Refuse before writing anything, rather than leave half a shop behind.
+        let names = FileKind::ALL
+            .iter()
+            .map(|k| k.file_name())
+            .chain(["truth.json", "weeks.txt"]);
+        for name in names {
+            let path = dir.join(name);
+            if outfile::is_taken(&path) {
+                return Err(outfile::OutFileError::Exists {
+                    path,
+                    can_force: true,
+                }
+                .into());
+            }
+        }
+    }
     for kind in FileKind::ALL {
         let path = dir.join(kind.file_name());
-        let mut w = BufWriter::new(File::create(&path).map_err(io(&path))?);
-        csv_out::export(&store, kind, &mut w, UnitSystem::Metric)?;
-        w.flush().map_err(io(&path))?;
+        let mut out = outfile::OutFile::create(&path, opts)?;
+        {
+            let mut w = BufWriter::new(&mut out);
+            csv_out::export(&store, kind, &mut w, UnitSystem::Metric)?;
+            w.flush().map_err(io(&path))?;
+        }
+        out.commit()?;
     }
-    let path = dir.join("truth.json");
     let text = serde_json::to_string_pretty(&shop.truth)
         .map_err(|e| AppError::Failed(format!("truth: {e}")))?;
-    std::fs::write(&path, text).map_err(io(&path))?;
-    let path = dir.join("weeks.txt");
+    outfile::write_whole(&dir.join("truth.json"), text.as_bytes(), opts)?;
     let weeks: String = shop.truth.weeks.iter().map(|d| format!("{d}\n")).collect();
-    std::fs::write(&path, weeks).map_err(io(&path))?;
+    outfile::write_whole(&dir.join("weeks.txt"), weeks.as_bytes(), opts)?;
     Ok(SimShopOutcome {
         dir: dir.to_path_buf(),
         set: params.set.clone(),

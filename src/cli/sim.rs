@@ -33,6 +33,9 @@ pub struct SimShopArgs {
     /// Weeks of record (default: the set's).
     #[arg(long)]
     pub weeks: Option<usize>,
+    /// Replace the files of an earlier run in DIR.
+    #[arg(long)]
+    pub force: bool,
     /// Print JSON.
     #[arg(long)]
     pub json: bool,
@@ -68,7 +71,7 @@ pub fn run_shop(args: &SimShopArgs, out: &mut dyn Write) -> Result<(), Failure> 
         p.weeks = n;
     }
     p.validate().map_err(Failure::bad_input)?;
-    let o = make_sim_shop(&args.out, &p)?;
+    let o = make_sim_shop(&args.out, &p, args.force)?;
     if args.json {
         let text = serde_json::to_string_pretty(&o).map_err(|e| Failure::failed(e.to_string()))?;
         writeln!(out, "{text}")?;
