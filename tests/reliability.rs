@@ -2323,3 +2323,54 @@ fn typed_digits_beyond_the_twelve_stored_are_said_to_be_rounded() {
     let out = ok(&db, &["import", "checks", path_str(&plain)]);
     assert!(!out.contains("rounded"), "{out}");
 }
+
+// ---------------------------------------------------------------------------------------------
+// 12. A writer waits for another that makes progress, saying what it waits for
+
+#[test]
+fn a_writer_waits_for_a_holder_that_makes_progress_longer_than_the_give_up_time() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    // This test process is the other program: it holds the write lock for longer than the
+    // 10 s a stalled holder is given, writing all the while (a tiny page cache spills every
+    // few rows to the write-ahead log, as a long import does).
+    let mut holder = Connection::open(&db).unwrap();
+    holder
+        .execute_batch("PRAGMA cache_size = 1; CREATE TABLE scratch (b BLOB);")
+        .unwrap();
+    let tx = holder
+        .transaction_with_behavior(rusqlite::TransactionBehavior::Immediate)
+        .unwrap();
+    let writer = sumpbook()
+        .arg("--db")
+        .arg(&db)
+        .args([
+            "log-check",
+            "PR-07-HPU",
+            "--by",
+            "AK",
+            "--reservoir-temp",
+            "45C",
+        ])
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    // 13 s of writing, by rounds (not a clock): 260 rounds of 50 ms.
+    for _ in 0..260 {
+        tx.execute("INSERT INTO scratch (b) VALUES (zeroblob(8192))", [])
+            .unwrap();
+        std::thread::sleep(std::time::Duration::from_millis(50));
+    }
+    tx.rollback().unwrap();
+    holder.execute_batch("DROP TABLE scratch").unwrap();
+    drop(holder);
+    let out = writer.wait_with_output().unwrap();
+    let err = text(&out.stderr);
+    assert!(out.status.success(), "{err}");
+    assert!(
+        err.contains("waiting for") && err.contains("shop.sqlite"),
+        "the wait was not told: {err}"
+    );
+    assert!(text(&out.stdout).contains("saved"), "{}", text(&out.stdout));
+}

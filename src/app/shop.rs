@@ -395,6 +395,12 @@ impl From<ExchangeError> for AppError {
     }
 }
 
+/// Sets what is told while a writer waits for another program's lock on the shop:
+/// `f(shop file, waited so far)`.
+pub fn report_waits_with(f: fn(&Path, std::time::Duration)) {
+    crate::store::report_waits_with(f);
+}
+
 /// Whether a store error is about the file or the input the user gave (a wrong, damaged or
 /// locked file, a refused value): exit code 2.
 pub(crate) fn store_error_is_input(e: &StoreError) -> bool {

@@ -125,6 +125,13 @@ pub enum Command {
 /// Runs a parsed command line; `None` means "open the app". Text goes to `out` with control
 /// characters escaped (`printable`); an export to standard output is CSV data, written as is.
 pub fn run(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
+    crate::app::shop::report_waits_with(|path, waited| {
+        eprintln!(
+            "sumpbook: waiting for {}: another program is writing to it ({} s so far)",
+            printable::printable(&path.display().to_string()),
+            waited.as_secs()
+        )
+    });
     if matches!(&cli.command, Some(Command::Export(a)) if a.out.is_none()) {
         return run_command(cli, out);
     }
