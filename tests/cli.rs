@@ -363,3 +363,196 @@ fn confirm_marks_a_reading_by_unit_and_time_and_refuses_one_that_does_not_exist(
         .unwrap();
     assert_eq!(n, 2);
 }
+
+#[test]
+fn an_imported_slipped_decimal_is_kept_questioned_reported_and_counts_once_confirmed() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    ok(d, &["--db", "shop.sqlite", "demo"]);
+    let checks = ok(d, &["--db", "shop.sqlite", "export", "checks"]);
+    let header = checks.lines().next().unwrap().to_string();
+    let last = checks
+        .lines()
+        .rfind(|l| l.starts_with("PR-01-C,"))
+        .unwrap()
+        .to_string();
+    let mut cells: Vec<String> = last.split(',').map(str::to_string).collect();
+    let cols: Vec<&str> = header.split(',').collect();
+    let col = |name: &str| cols.iter().position(|c| *c == name).unwrap();
+    // A week after the last check, the oil temperature typed with its decimal point one place
+    // to the left (26.2 → 2.62): the slip the screening is there to catch.
+    let taken = chrono::DateTime::parse_from_rfc3339(&cells[col("taken_at")]).unwrap()
+        + chrono::Duration::days(7);
+    let at = taken.format("%Y-%m-%dT%H:%M:%SZ").to_string();
+    assert!(
+        taken < chrono::Utc::now(),
+        "the demo's last check is a week old or more"
+    );
+    let oil: f64 = cells[col("reservoir_temp_c")].parse().unwrap();
+    cells[col("taken_at")] = at.clone();
+    cells[col("reservoir_temp_c")] = format!("{}", oil / 10.0);
+    std::fs::write(
+        d.join("round.csv"),
+        format!("{header}\n{}\n", cells.join(",")),
+    )
+    .unwrap();
+
+    let out = ok(d, &["--db", "shop.sqlite", "import", "checks", "round.csv"]);
+    assert!(out.contains("1 rows read, 1 added"), "{out}");
+    assert!(out.contains("1 reading questioned"), "{out}");
+    assert!(
+        out.contains(&format!("PR-01-C {at} reservoir_temp")),
+        "{out}"
+    );
+    // Kept, as typed.
+    let stored = ok(d, &["--db", "shop.sqlite", "export", "checks"]);
+    assert!(
+        stored.contains(&format!("PR-01-C,{at},{},", oil / 10.0)),
+        "the row is stored"
+    );
+
+    let questioned = |json: &str| -> serde_json::Value {
+        let v: serde_json::Value = serde_json::from_str(json).unwrap();
+        let unit = v["units"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|u| u["unit"] == "PR-01-C")
+            .unwrap()
+            .clone();
+        unit["questioned"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|q| q["taken_at"] == at.as_str())
+            .cloned()
+            .unwrap_or(serde_json::Value::Null)
+    };
+    let q = questioned(&ok(d, &["--db", "shop.sqlite", "status", "--json"]));
+    assert_eq!(q["field"], "reservoir_temp");
+    assert_eq!(q["confirmed"], false);
+    assert!(
+        q["reason"].as_str().unwrap().contains("decimal point"),
+        "{q}"
+    );
+    let text = ok(d, &["--db", "shop.sqlite", "status"]);
+    assert!(
+        text.contains("Questioned readings, not confirmed"),
+        "{text}"
+    );
+    assert!(
+        text.contains(&format!("PR-01-C   check {at} reservoir temperature")),
+        "{text}"
+    );
+
+    // The heat rise of the unit is not thrown by it: the figure it shows is the one before.
+    let unit_json = |s: &str| -> serde_json::Value {
+        let v: serde_json::Value = serde_json::from_str(s).unwrap();
+        v["units"][0].clone()
+    };
+    let before = unit_json(&ok(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "status",
+            "--unit",
+            "PR-01-C",
+            "--json",
+        ],
+    ));
+
+    ok(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "confirm",
+            "PR-01-C",
+            "--at",
+            &at,
+            "--by",
+            "R. Quennell",
+            "--note",
+            "cold start",
+        ],
+    );
+    let q = questioned(&ok(d, &["--db", "shop.sqlite", "status", "--json"]));
+    assert_eq!(q["confirmed"], true);
+    assert_eq!(q["confirmed_by"], "R. Quennell");
+    let after = unit_json(&ok(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "status",
+            "--unit",
+            "PR-01-C",
+            "--json",
+        ],
+    ));
+    assert_ne!(
+        before["indicators"]["heat_rise_k"], after["indicators"]["heat_rise_k"],
+        "a confirmed reading counts: the heat rise now uses it"
+    );
+
+    // The same slip typed at the command line (on another unit, whose history has no slip)
+    // asks first, naming the screening's reason, and a confirmed one is stored as confirmed by
+    // the technician.
+    let other = checks
+        .lines()
+        .rfind(|l| l.starts_with("IM-05-B,"))
+        .unwrap()
+        .split(',')
+        .map(str::to_string)
+        .collect::<Vec<_>>();
+    let next = (chrono::DateTime::parse_from_rfc3339(&other[col("taken_at")]).unwrap()
+        + chrono::Duration::days(7))
+    .format("%Y-%m-%dT%H:%M:%SZ")
+    .to_string();
+    let their_oil: f64 = other[col("reservoir_temp_c")].parse().unwrap();
+    let slip = format!("{}C", their_oil / 10.0);
+    let e = refused(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "log-check",
+            "IM-05-B",
+            "--at",
+            &next,
+            "--reservoir-temp",
+            &slip,
+            "--by",
+            "AK",
+        ],
+        "unusual",
+    );
+    assert!(e.contains("decimal point"), "{e}");
+    ok(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "log-check",
+            "IM-05-B",
+            "--at",
+            &next,
+            "--reservoir-temp",
+            &slip,
+            "--by",
+            "AK",
+            "--confirm",
+        ],
+    );
+    let stored = ok(d, &["--db", "shop.sqlite", "export", "checks"]);
+    let row = stored
+        .lines()
+        .find(|l| l.starts_with(&format!("IM-05-B,{next},")))
+        .unwrap();
+    assert!(row.contains(",AK,"), "{row}");
+    assert!(
+        row.ends_with("Z"),
+        "stored with its confirmation time: {row}"
+    );
+}

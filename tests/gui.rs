@@ -399,8 +399,10 @@ fn the_fleet_board_lists_the_demo_units_worst_first() {
     assert_eq!(rows.len(), units.len(), "every unit once: {rows:?}");
     let rank = |l: &str| {
         if l.contains(", ACT, ") {
-            2
+            3
         } else if l.contains(", WATCH, ") {
+            2
+        } else if l.contains(", not judged yet, ") {
             1
         } else {
             assert!(l.contains(", steady, "), "{l}");
@@ -413,7 +415,7 @@ fn the_fleet_board_lists_the_demo_units_worst_first() {
         "worst first: {rows:?}"
     );
     // The demo plants faults (pump wear, water ingress, ...): some units are at act, some steady.
-    assert!(ranks.contains(&2) && ranks.contains(&0), "{rows:?}");
+    assert!(ranks.contains(&3) && ranks.contains(&0), "{rows:?}");
     // The board shows the one evaluation of the application layer, in its order.
     let fleet = sumpbook::app::status::fleet_status(&s, None).unwrap();
     let tags: Vec<String> = rows
@@ -659,5 +661,131 @@ fn an_existing_report_file_is_replaced_only_when_written_to_again_and_the_defaul
     assert_eq!(
         sumpbook::app::report::default_out_path(folder, today),
         folder.join(format!("condition-report-{today}-2.pdf"))
+    );
+}
+
+#[test]
+fn a_unit_without_readings_since_its_fluid_change_shows_not_judged_yet_and_what_is_missing() {
+    i_slint_backend_testing::init_no_event_loop();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("shop.sqlite");
+    let tag = {
+        let s = Shop::create_demo(&path).unwrap();
+        // A fluid change an hour ago on the last unit of the route: a new era, no reading yet.
+        let stops = sumpbook::app::entry::route(&s).unwrap();
+        let tag = stops.last().unwrap().tag.clone();
+        let input = sumpbook::app::work::EventInput {
+            kind: sumpbook::model::EventKind::FluidChange,
+            at: Some(chrono::Utc::now() - chrono::Duration::hours(1)),
+            volume: None,
+            fluid: None,
+            by: "R. Engineer".into(),
+            note: String::new(),
+        };
+        sumpbook::app::work::log_event(&s, &tag, &input).unwrap();
+        tag
+    };
+    let app = App::open(&path).unwrap();
+    app.window()
+        .window()
+        .set_size(slint::LogicalSize::new(1280.0, 1400.0));
+    app.window().show().unwrap();
+    app.show(Screen::Fleet);
+    let row = labels_starting(&app, "")
+        .into_iter()
+        .find(|l| l.starts_with(&format!("{tag}, ")))
+        .expect("the unit is on the board");
+    // Its own word and figure: never "steady" over tiles that have nothing to say.
+    assert!(row.contains(", not judged yet, "), "{row}");
+    assert!(row.contains("judged "), "what is missing and when: {row}");
+    by_label(&app, &row).invoke_accessible_default_action();
+    assert_eq!(
+        app.window().global::<Nav>().get_screen(),
+        Screen::Unit as i32
+    );
+    assert!(
+        try_label(&app, "state not judged yet").is_some(),
+        "the page's own mark"
+    );
+    assert!(
+        try_label(&app, "Flags: none — but not judged yet (below)").is_some(),
+        "not the steady sentence"
+    );
+    assert!(try_label(&app, "Flags: none — every indicator is steady").is_none());
+    let missing = labels_starting(&app, "Lost flow");
+    assert!(
+        missing.iter().any(|l| l.contains("not judged yet")),
+        "the lost-flow tile says not judged yet: {missing:?}"
+    );
+}
+
+#[test]
+fn a_questioned_reading_is_marked_in_the_history_and_confirmed_from_the_unit_page() {
+    use slint::Model;
+    i_slint_backend_testing::init_no_event_loop();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("shop.sqlite");
+    let (unit_id, id) = {
+        let s = Shop::create_demo(&path).unwrap();
+        let (unit_id, _) = first_route_unit(&path);
+        let mut c = s
+            .store()
+            .checks_for_unit(unit_id, None)
+            .unwrap()
+            .pop()
+            .unwrap();
+        // The oil temperature with its decimal point slipped one place, an hour later.
+        c.taken_at += chrono::Duration::hours(1);
+        c.reservoir_temp = c
+            .reservoir_temp
+            .map(|t| sumpbook::units::Temperature::from_c(t.c() / 10.0));
+        c.by = "AK".into();
+        let id = s.store().insert_check(&c).unwrap();
+        (unit_id, id)
+    };
+    let app = App::open(&path).unwrap();
+    app.window()
+        .window()
+        .set_size(slint::LogicalSize::new(1280.0, 1400.0));
+    app.window().show().unwrap();
+    app.open_unit(unit_id);
+    let a = app.window().global::<sumpbook::gui::ui::UnitAdapter>();
+    // The overview lists it among the questioned readings, with the screening's reason.
+    assert!(
+        a.get_questioned()
+            .iter()
+            .any(|l| l.contains("decimal point")),
+        "{:?}",
+        a.get_questioned().iter().collect::<Vec<_>>()
+    );
+    a.set_tab(2);
+    let _ = labels_starting(&app, "");
+    let cell = a.get_rows().row_data(0).unwrap().row_data(1).unwrap().text;
+    assert!(
+        cell.contains("reservoir temperature") && cell.contains("left out"),
+        "{cell}"
+    );
+    a.set_current_row(0);
+    a.invoke_select_row(0);
+    let _ = labels_starting(&app, "");
+    assert!(a.get_suspect_text().contains("decimal point"));
+    field(&app, "Changed by").set_accessible_value("R. Engineer");
+    field(&app, "Reason for the change").set_accessible_value("oil was cold after the weekend");
+    button(&app, "Confirm reading").invoke_accessible_default_action();
+    let stored = shop(&path).store().check(id).unwrap().unwrap();
+    let k = stored.confirmed.expect("stored as confirmed");
+    assert_eq!(k.by, "R. Engineer");
+    let log = shop(&path).store().edit_history("checks", id).unwrap();
+    assert_eq!(log.len(), 1);
+    assert!(log[0].reason.contains("oil was cold after the weekend"));
+    // Confirmed: the confirmation can be lifted again from the same place.
+    let _ = labels_starting(&app, "");
+    assert!(a.get_can_lift(), "{}", message(&app));
+    assert!(!a.get_can_confirm());
+    field(&app, "Reason for the change").set_accessible_value("gauge found broken");
+    button(&app, "Lift confirmation").invoke_accessible_default_action();
+    assert_eq!(
+        shop(&path).store().check(id).unwrap().unwrap().confirmed,
+        None
     );
 }

@@ -240,6 +240,7 @@ fn layout_doc(paper: Paper, name: &str, flags: usize) -> ReportDoc {
             status: "overdue 11 days".into(),
             mark: Some(Mark::Watch),
         }],
+        remarks: Vec::new(),
     };
     let short = UnitSection {
         tag: "LX-02".into(),
@@ -272,6 +273,7 @@ fn layout_doc(paper: Paper, name: &str, flags: usize) -> ReportDoc {
         work: unit.work.clone(),
         work_heading: "Work overdue and due in the next 4 weeks".into(),
         notes: vec![],
+        questioned: Vec::new(),
         units: vec![unit, short],
         cautions: SAFETY_CAUTIONS[..4].iter().map(|s| s.to_string()).collect(),
         guidance: SAFETY_CAUTIONS[4].to_string(),
@@ -850,4 +852,83 @@ fn a_report_to_a_device_writes_into_it_and_leaves_it_a_device() {
     );
     let kind = std::fs::metadata("/dev/null").unwrap().file_type();
     assert!(kind.is_char_device(), "/dev/null was replaced");
+}
+
+/// Every flag reads with one figure everywhere: the fleet board's text (`board_figures`, what
+/// the app's board row shows), `status --json` (`figure`) and the PDF report (the fleet row and
+/// the exceptions table, and the unit's own page) — for every unit of the demo.
+#[test]
+fn each_flag_shows_the_same_figure_on_the_board_in_status_json_and_in_the_report() {
+    use sumpbook::app::shop::Shop;
+    use sumpbook::app::status::{board_figures, fleet_status_in, Detail};
+    let dir = tempfile::tempdir().unwrap();
+    let db = demo_shop(dir.path());
+    let json: serde_json::Value = serde_json::from_str(&ok(
+        dir.path(),
+        &[
+            "--db",
+            db.to_str().unwrap(),
+            "status",
+            "--json",
+            "--at",
+            DEMO_DAY,
+        ],
+    ))
+    .unwrap();
+    let (pdf, summary) = write_demo_report(dir.path(), &db, "a4");
+    let fleet_pages = summary["fleet_pages"].as_u64().unwrap() as usize;
+    let page_text = |p: usize| {
+        squeeze(&poppler(
+            "pdftotext",
+            &[
+                "-raw",
+                "-f",
+                &p.to_string(),
+                "-l",
+                &p.to_string(),
+                pdf.to_str().unwrap(),
+                "-",
+            ],
+        ))
+    };
+    let fleet: String = (1..=fleet_pages)
+        .map(page_text)
+        .collect::<Vec<_>>()
+        .join(" ");
+
+    let shop = Shop::open(&db).unwrap();
+    let at = chrono::NaiveDate::parse_from_str(DEMO_DAY, "%Y-%m-%d")
+        .unwrap()
+        .and_hms_opt(23, 59, 59)
+        .unwrap()
+        .and_utc();
+    let board = fleet_status_in(shop.store(), Some(at), Detail::Summary).unwrap();
+    let units = json["units"].as_array().unwrap();
+    assert_eq!(units.len(), board.units.len());
+    let mut flags_seen = 0;
+    for (k, u) in units.iter().enumerate() {
+        let tag = u["unit"].as_str().unwrap();
+        let b = board.units.iter().find(|x| x.unit == tag).unwrap();
+        assert_eq!(b.unit, board.units[k].unit, "the same order worst first");
+        let row = board_figures(b, board.unit_system);
+        let own = page_text(fleet_pages + 1 + k);
+        assert!(own.starts_with(tag), "page of {tag}");
+        for (i, f) in u["flags"].as_array().unwrap().iter().enumerate() {
+            let figure = f["figure"].as_str().unwrap();
+            assert!(!figure.is_empty(), "{tag}: a flag without a figure");
+            if i == 0 {
+                assert!(
+                    row.starts_with(figure),
+                    "{tag}: the board shows {row:?}, status --json {figure:?}"
+                );
+            }
+            assert!(
+                fleet.contains(&format!("{tag} ")) && fleet.contains(figure),
+                "{tag}: {figure:?} not on the report's fleet pages"
+            );
+            assert!(own.contains(figure), "{tag}: {figure:?} not on its page");
+            flags_seen += 1;
+        }
+    }
+    assert!(flags_seen >= 5, "the demo raises flags ({flags_seen})");
 }

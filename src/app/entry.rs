@@ -295,22 +295,15 @@ pub const PRESSURE_MAX_BAR: f64 = 1000.0;
 /// Longest timed stroke accepted, s (the store's bound).
 pub const STROKE_MAX_S: f64 = 3600.0;
 
-// Unusual (common practice, no published source):
-/// A reading that moved more than this from the last one is asked about (K).
-const TEMP_JUMP_K: f64 = 15.0;
+// Unusual (common practice, no published source). A reading far from the unit's recent ones,
+// a pressure above the relief setting, air warmer than the oil and a case drain above rated
+// flow are the screening's questions (`health::screen`), asked the same way at import.
 /// Oil above this is rare in a running press and more often a misread (°C).
 const OIL_HOT_C: f64 = 90.0;
 /// Workshop air outside this range is asked about (°C).
 const AMBIENT_RANGE_C: (f64, f64) = (-20.0, 50.0);
-/// A stroke time that moved more than this fraction from the last one (a stopwatch is good to
-/// about 5 %, design §1).
-const STROKE_JUMP: f64 = 0.30;
 /// Shorter than a person can time with a stopwatch (s).
 const STROKE_MIN_HAND_S: f64 = 0.3;
-/// A working pressure that moved more than this fraction from the last one.
-const PRESSURE_JUMP: f64 = 0.25;
-/// A pressure this far above the relief setting cannot be held by the circuit.
-const OVER_RELIEF: f64 = 1.10;
 
 fn bound_temp(key: &str, label: &str, t: f64, system: UnitSystem, out: &mut Vec<Problem>) -> bool {
     let c = Temperature(t).c();
@@ -604,17 +597,6 @@ fn judge_check(
                     show(Kind::Temperature, t, system)
                 ),
             ));
-        } else if let Some((prev, _)) = last(&|c| c.reservoir_temp.map(|t| t.si())) {
-            if (t - prev).abs() > TEMP_JUMP_K {
-                p.push(Problem::unusual(
-                    "reservoir_temp",
-                    format!(
-                        "{} is far from last time's {}; is the reading right?",
-                        show(Kind::Temperature, t, system),
-                        show(Kind::Temperature, prev, system)
-                    ),
-                ));
-            }
         }
     }
     if let Some(t) = amb_ok {
@@ -626,15 +608,6 @@ fn judge_check(
                     "{} is an unusual workshop temperature; is the reading right?",
                     show(Kind::Temperature, t, system)
                 ),
-            ));
-        }
-    }
-    if let (Some(r), Some(a)) = (res_ok, amb_ok) {
-        if r + 5.0 < a {
-            p.push(Problem::unusual(
-                "ambient_temp",
-                "the oil is colder than the air around it; were the two readings swapped?"
-                    .to_string(),
             ));
         }
     }
@@ -661,26 +634,6 @@ fn judge_check(
                     )
                 ),
             ));
-        } else if let Some(relief) = unit.relief.filter(|r| pa > r.si() * OVER_RELIEF) {
-            p.push(Problem::unusual(
-                "pressure",
-                format!(
-                    "{} is above the relief setting of {}; is the reading right, or has the relief been reset?",
-                    show(Kind::Pressure, pa, system),
-                    show(Kind::Pressure, relief.si(), system)
-                ),
-            ));
-        } else if let Some((prev, _)) = last(&|c| c.pressure.map(|p| p.si())) {
-            if prev > 0.0 && (pa / prev - 1.0).abs() > PRESSURE_JUMP {
-                p.push(Problem::unusual(
-                    "pressure",
-                    format!(
-                        "{} is far from last time's {}; was it read at the same point of the cycle?",
-                        show(Kind::Pressure, pa, system),
-                        show(Kind::Pressure, prev, system)
-                    ),
-                ));
-            }
         }
     }
     if let Some(s) = stroke {
@@ -699,15 +652,6 @@ fn judge_check(
                 "stroke_time",
                 format!("{s} s is quicker than a stopwatch can time; is it right?"),
             ));
-        } else if let Some((prev, _)) = last(&|c| c.stroke_time.map(|s| s.si())) {
-            if (s / prev - 1.0).abs() > STROKE_JUMP {
-                p.push(Problem::unusual(
-                    "stroke_time",
-                    format!(
-                        "{s:.2} s is far from last time's {prev:.2} s; was the same stroke timed?"
-                    ),
-                ));
-            }
         }
     }
     if let Some(h) = hours {
@@ -741,15 +685,6 @@ fn judge_check(
                 "case_drain",
                 "a case-drain flow cannot be negative",
             ));
-        } else if let Some(rated) = unit.rated_flow.filter(|r| q > r.si()) {
-            p.push(Problem::unusual(
-                "case_drain",
-                format!(
-                    "{} is more than the pump's rated flow of {}; is the reading right?",
-                    show(Kind::Flow, q, system),
-                    show(Kind::Flow, rated.si(), system)
-                ),
-            ));
         }
     }
     let note = entered.get("note").to_string();
@@ -767,9 +702,8 @@ fn judge_check(
             "nothing was entered; type at least one reading, or skip the unit",
         ));
     }
-    p.sort_by_key(|x| std::cmp::Reverse(x.verdict));
     let refused = p.iter().any(|x| x.verdict == Verdict::Refused);
-    let check = (!refused).then(|| Check {
+    let check = Check {
         reservoir_temp: res.map(Temperature),
         ambient_temp: amb.map(Temperature),
         pressure: pressure.map(Pressure),
@@ -781,8 +715,27 @@ fn judge_check(
         case_drain: case_drain.map(Flow),
         note,
         ..base
-    });
-    CheckReview { check, problems: p }
+    };
+    // One rule for the form, the importer and the engine: the screening of readings against
+    // the unit's frame (relief setting, ambient above oil, a stroke several times the usual,
+    // case drain above rated flow) and its own recent history. Each suspicion asks; a field
+    // already refused or questioned above is asked about once.
+    let others: Vec<Check> = earlier
+        .iter()
+        .filter(|c| c.id != check.id)
+        .cloned()
+        .collect();
+    for sus in health::screen::check(unit, &others, &check, system) {
+        let key = sus.field.key();
+        if !p.iter().any(|x| x.field == key) {
+            p.push(Problem::unusual(key, sus.reason));
+        }
+    }
+    p.sort_by_key(|x| std::cmp::Reverse(x.verdict));
+    CheckReview {
+        check: (!refused).then_some(check),
+        problems: p,
+    }
 }
 
 /// Judges a walk-round check as typed, without writing anything.
@@ -1101,31 +1054,6 @@ pub fn review_sample(
     };
     let water = plain("water_ppm", &mut p);
     let acid = plain("acid", &mut p);
-    // Unusual (common practice): far from the new oil, free water, a very high acid number.
-    if let (Some(k), Some(new)) = (kv40, h.fluid.as_ref().and_then(|f| f.kv40_new)) {
-        if (k / new.si() - 1.0).abs() > 0.5 {
-            p.push(Problem::unusual(
-                "kv40",
-                format!(
-                    "{:.1} cSt is far from the new oil's {:.1} cSt; is it the right unit or the right oil?",
-                    Viscosity(k).cst(),
-                    new.cst()
-                ),
-            ));
-        }
-    }
-    if water.is_some_and(|w| w > 10_000.0) {
-        p.push(Problem::unusual(
-            "water_ppm",
-            "more than 1 % water; is the figure in ppm?",
-        ));
-    }
-    if acid.is_some_and(|a| a > 5.0) {
-        p.push(Problem::unusual(
-            "acid",
-            "an acid number above 5 mg KOH/g is rare in hydraulic oil; is it right?",
-        ));
-    }
     let by = entered.get("by").to_string();
     let any = kv40.is_some()
         || kv100.is_some()
@@ -1173,6 +1101,17 @@ pub fn review_sample(
         note: format_note(entered.get("note"), &by),
         confirmed: None,
     };
+    // Far from the new oil, free water, a very high acid number: the screening's questions,
+    // the same at import and in the engine.
+    for sus in health::screen::sample(h.fluid.as_ref(), &sample, system) {
+        let key = match sus.field {
+            health::screen::Field::ViscReading => "visc_value",
+            f => f.key(),
+        };
+        if !p.iter().any(|x| x.field == key) {
+            p.push(Problem::unusual(key, sus.reason));
+        }
+    }
     let preview = preview_sample(store, &h, &sample, now, system)?;
     Ok(SampleReview {
         sample: Some(sample),
@@ -2582,7 +2521,8 @@ fn import_into(
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default();
     match crate::exchange::csv_in::import_reader(store, kind, &label, watched, None) {
-        Ok(summary) => {
+        Ok(mut summary) => {
+            super::shop::mark_questioned(store, kind, &mut summary)?;
             progress(1.0);
             Ok(ImportRun::Done(summary))
         }
@@ -2837,12 +2777,12 @@ mod tests {
             .expect("a confirmed unusual reading is stored as confirmed");
         assert_eq!(k.by, "T. T");
         assert!(k.at <= Utc::now() && k.at > Utc::now() - Duration::minutes(5));
-        // A reading nobody questioned is stored without a confirmation.
-        let plain = entered(&[("stroke_time", &format!("{:.2}", last * 2.0))]);
+        // A reading nobody questioned is stored without a confirmation: the usual stroke time.
+        let plain = entered(&[("stroke_time", &format!("{last:.2}"))]);
         let later = Utc::now() + Duration::seconds(1);
         let out = save_check(&shop, u.id, &plain, "", "T. T", false, later).unwrap();
         let SaveOutcome::Saved(s) = out else {
-            panic!("the same time as the last check is not unusual: {out:?}")
+            panic!("the unit's usual stroke time is not unusual: {out:?}")
         };
         assert_eq!(
             shop.store().check(s.check_id).unwrap().unwrap().confirmed,

@@ -6,6 +6,7 @@
 //! dimension. Nothing here decides a state or a limit.
 
 use crate::health::indicators::{Dim, Direction};
+use crate::health::{Flag, FlagKind};
 use crate::quantity::{format, Kind, Quantity};
 use crate::units::{Flow, TempDiff, Temperature, UnitSystem, Viscosity};
 
@@ -115,6 +116,82 @@ pub fn significant(v: f64, digits: i32, max_decimals: usize) -> String {
         "0".into()
     } else {
         s.to_string()
+    }
+}
+
+/// What a flag of `kind` measures, as its figure is introduced on every face.
+pub fn flag_measure(kind: FlagKind) -> &'static str {
+    match kind {
+        FlagKind::LostFlow => "lost flow",
+        FlagKind::LeakConductance => "leak conductance",
+        FlagKind::CaseDrain => "case-drain flow over baseline",
+        FlagKind::HeatRise => "heat rise over baseline",
+        FlagKind::ReservoirTemp => "oil temperature",
+        FlagKind::Viscosity => "KV40 off new oil",
+        FlagKind::Cleanliness => "cleanliness over target",
+        FlagKind::Water => "water",
+        FlagKind::Acid => "acid number rise",
+        FlagKind::Filter => "filter indicator",
+        FlagKind::OilLevel => "oil level",
+        FlagKind::Drift => "drift (EWMA)",
+        FlagKind::Overdue => "work overdue",
+    }
+}
+
+/// A flag's value or limit (in the flag's fixed unit) in the shop's units.
+fn flag_number(f: &Flag, v: f64, sys: UnitSystem) -> String {
+    match f.unit.as_str() {
+        "°C" => format(Quantity::Temperature(Temperature::from_c(v)), sys),
+        "K" => temp_diff(v, sys, true),
+        "x" => format!("{v:.2}×"),
+        "%" => format!("{v:.1} %"),
+        "mg KOH/g" => format!("{v:+.2} mg KOH/g"),
+        "range numbers" => format!("{v:+.0} range numbers"),
+        "" => String::new(),
+        unit => format!("{v:.0} {unit}"),
+    }
+}
+
+/// The figure that raised a flag, against the limit it reached, in the shop's units:
+/// `heat rise over baseline +11.2 K (act at +10.0 K)`. The fleet board, the unit page, the
+/// report, `status` and its JSON all show a flag through this one function, so a flag never
+/// reads with two figures. A flag without a number (filter, oil level) reads as its kind.
+pub fn flag_figure(f: &Flag, sys: UnitSystem) -> String {
+    let measure = flag_measure(f.kind);
+    // The engine's own figure of the flag, where it gives one: the value judged, in the
+    // dimension a tile shows it in.
+    if let Some(fig) = f.figure.as_ref().filter(|g| g.value.is_finite()) {
+        let show = |v: f64| match fig.dim {
+            Dim::TempDiff if f.kind == FlagKind::HeatRise => temp_diff(v, sys, true),
+            Dim::RangeNumber => format!("{v:+.0} range numbers"),
+            d => text(d, v, sys),
+        };
+        let mut out = format!("{measure} {}", show(fig.value));
+        let mut paren = Vec::new();
+        if let Some(l) = fig.limit.filter(|l| l.is_finite()) {
+            paren.push(format!("{} at {}", f.state.as_str(), show(l)));
+        }
+        if f.kind == FlagKind::Drift {
+            if let Some(b) = fig.baseline.filter(|b| b.is_finite()) {
+                paren.push(format!("baseline {}", text(fig.dim, b, sys)));
+            }
+        }
+        if !paren.is_empty() {
+            out.push_str(&format!(" ({})", paren.join(", ")));
+        }
+        return out;
+    }
+    let Some(v) = f.value.filter(|v| v.is_finite()) else {
+        return format!("{measure} {}", f.state.as_str());
+    };
+    let value = flag_number(f, v, sys);
+    match f.limit.filter(|l| l.is_finite()) {
+        Some(l) => format!(
+            "{measure} {value} ({} at {})",
+            f.state.as_str(),
+            flag_number(f, l, sys)
+        ),
+        None => format!("{measure} {value}"),
     }
 }
 

@@ -22,7 +22,8 @@ use super::work::due_list_in;
 use super::AppError;
 use crate::health::indicators::{Dim, Direction, Tile};
 use crate::health::plan::SAFETY_CAUTIONS;
-use crate::health::{BaselineIndicator, BaselineSource, Flag, State};
+use crate::health::screen::{Field as ScreenField, Record};
+use crate::health::{BaselineIndicator, BaselineSource, Flag, State, SuspectReading};
 use crate::model::{EventKind, Fluid, Machine, StrokeDirection, Unit};
 use crate::outfile::{Options, OutFile};
 use crate::quantity::{format, Quantity};
@@ -30,7 +31,7 @@ use crate::report::charts::{Band, Chart, EventMark, LimitLine, Series};
 use crate::report::{
     self, Finding, FleetRow, IndicatorRow, Mark, Paper, ReportDoc, StateText, UnitSection, WorkItem,
 };
-use crate::units::{Length, Pressure, Temperature, UnitSystem, Volume};
+use crate::units::{Length, Pressure, UnitSystem, Volume};
 
 /// Days the report covers when no start is given.
 pub const DEFAULT_PERIOD_DAYS: i64 = 91;
@@ -265,10 +266,11 @@ pub fn build_report(
         .collect();
     let counts = |s: State| chosen.iter().filter(|u| u.state == s).count();
     let fleet_summary = format!(
-        "{} unit{}: {} steady, {} watch, {} act. Evaluated {}.",
+        "{} unit{}: {} steady, {} not judged yet, {} watch, {} act. Evaluated {}.",
         chosen.len(),
         if chosen.len() == 1 { "" } else { "s" },
         counts(State::Steady),
+        counts(State::NotJudged),
         counts(State::Watch),
         counts(State::Act),
         at.format("%Y-%m-%d %H:%M UTC")
@@ -296,6 +298,16 @@ pub fn build_report(
                 UnitSystem::Us => "US customary",
             }
         )],
+        questioned: chosen
+            .iter()
+            .flat_map(|u| {
+                u.health
+                    .suspects
+                    .iter()
+                    .filter(|q| q.confirmed.is_none())
+                    .map(move |q| format!("{}: {}", u.unit, questioned_text(q)))
+            })
+            .collect(),
         units,
         cautions: SAFETY_CAUTIONS[..SAFETY_CAUTIONS.len() - 1].iter().map(|s| s.to_string()).collect(),
         guidance: SAFETY_CAUTIONS[SAFETY_CAUTIONS.len() - 1].to_string(),
@@ -305,7 +317,9 @@ pub fn build_report(
 fn mark(s: State) -> Mark {
     match s {
         // The word says "not judged yet"; the report draws no mark of its own for it yet.
-        State::Steady | State::NotJudged => Mark::Steady,
+        State::Steady => Mark::Steady,
+        // The open square: readings or a baseline are missing, so nothing is said yet.
+        State::NotJudged => Mark::None,
         State::Watch => Mark::Watch,
         State::Act => Mark::Act,
     }
@@ -347,25 +361,95 @@ fn arrow(d: Direction) -> &'static str {
     }
 }
 
-/// The flag's value against its limit, in the shop's units.
-fn amount(f: &Flag, sys: UnitSystem) -> String {
-    let fmt = |v: f64| -> String {
-        match (f.unit.as_str(), sys) {
-            ("°C", _) => format(Quantity::Temperature(Temperature::from_c(v)), sys),
-            ("K", UnitSystem::Us) => format!("{:.1} °F", v * 9.0 / 5.0),
-            ("K", UnitSystem::Metric) => format!("{v:.1} K"),
-            ("x", _) => format!("{v:.2}×"),
-            ("", _) => String::new(),
-            ("%", _) => format!("{v:.1} %"),
-            ("mg KOH/g", _) => format!("{v:.2} mg KOH/g"),
-            (unit, _) => format!("{v:.0} {unit}"),
+/// A questioned reading in words: record, time, field, reason, and who confirmed it.
+fn questioned_text(q: &SuspectReading) -> String {
+    let record = match q.record {
+        Record::Check => "check",
+        Record::Sample => "sample",
+    };
+    let state = match &q.confirmed {
+        None => "not confirmed: left out of baselines and flags".to_string(),
+        Some(c) => {
+            let (by, at) = super::status::confirmed_by_text(c);
+            format!("confirmed by {by} {}", at.format("%Y-%m-%d"))
         }
     };
-    match (f.value, f.limit) {
-        (Some(v), Some(l)) => format!("{} (limit {})", fmt(v), fmt(l)),
-        (Some(v), None) => fmt(v),
-        _ => String::new(),
+    format!(
+        "{record} of {}, {}: {} ({state})",
+        q.at.format("%Y-%m-%d %H:%M UTC"),
+        q.field.label(),
+        q.reason
+    )
+}
+
+/// One line on the unit's questioned readings that are not confirmed: how many, and the
+/// latest one (record, time, field), so the unit keeps to its page; `sumpbook status --unit`
+/// and the app list each with its reason.
+fn questioned_remarks(u: &UnitStatus) -> Vec<String> {
+    let open: Vec<&SuspectReading> = u
+        .health
+        .suspects
+        .iter()
+        .filter(|q| q.confirmed.is_none())
+        .collect();
+    let Some(q) = open.last() else {
+        return Vec::new();
+    };
+    let record = match q.record {
+        Record::Check => "check",
+        Record::Sample => "sample",
+    };
+    let n = open.len();
+    vec![format!(
+        "Questioned, not confirmed: {n} reading{} (latest: {} of {}), left out of baselines and \
+         flags until confirmed.",
+        if n == 1 { "" } else { "s" },
+        q.field.label(),
+        format!("{record} {}", q.at.format("%Y-%m-%d %H:%M UTC"))
+    )]
+}
+
+/// Which questionable fields feed an indicator (tile key).
+fn feeds(field: ScreenField, key: &str) -> bool {
+    use ScreenField as F;
+    match field {
+        F::StrokeTime => matches!(
+            key,
+            "lost_flow" | "effective_flow" | "corrected_flow" | "leak_conductance"
+        ),
+        F::Pressure => matches!(key, "leak_conductance" | "corrected_flow"),
+        F::ReservoirTemp => matches!(
+            key,
+            "reservoir_temp" | "heat_rise" | "corrected_flow" | "leak_conductance" | "case_drain"
+        ),
+        F::AmbientTemp => key == "heat_rise",
+        F::CaseDrain => key == "case_drain",
+        F::Kv40 | F::ViscReading => key == "kv40",
+        F::Water => key == "water",
+        F::Acid => key == "acid_rise",
     }
+}
+
+/// A mark for an indicator whose latest figure rests on (or had to leave out) a questioned
+/// field of the unit's latest check or sample.
+fn questioned_mark(u: &UnitStatus, key: &str) -> Option<String> {
+    let last_check = u.health.last_check;
+    let last_sample = u.health.last_sample;
+    let q = u.health.suspects.iter().rev().find(|q| {
+        let latest = match q.record {
+            Record::Check => last_check == Some(q.at),
+            Record::Sample => last_sample == Some(q.at),
+        };
+        latest && feeds(q.field, key)
+    })?;
+    Some(match &q.confirmed {
+        None => format!("latest {} questioned, left out", q.field.label()),
+        Some(c) => format!(
+            "rests on a questioned {}, confirmed by {}",
+            q.field.label(),
+            super::status::confirmed_by_text(c).0
+        ),
+    })
 }
 
 /// About three significant figures, trailing zeros dropped: chart labels (`96.2`, `3.51`, `16`).
@@ -378,7 +462,7 @@ fn finding(tag: &str, f: &Flag, sys: UnitSystem) -> Finding {
         unit_tag: tag.to_string(),
         state: state_text(f.state),
         what: f.what.clone(),
-        amount: amount(f, sys),
+        amount: figures::flag_figure(f, sys),
         since: f.since.to_string(),
         next_step: f.next_step.clone(),
         acknowledged: f.acknowledgement.as_ref().map(|a| {
@@ -484,7 +568,19 @@ fn fleet_row(u: &UnitStatus, sys: UnitSystem) -> FleetRow {
             .collect::<Vec<_>>()
             .join(" · "),
         state: state_text(u.state),
-        figures: key_figures(u, sys),
+        // A flagged or not-judged unit reads as on the fleet board; a steady one by its key
+        // figures, as in `sumpbook status`.
+        figures: if u.health.flags.is_empty() && u.state != State::NotJudged {
+            key_figures(u, sys)
+        } else {
+            let key = key_figures(u, sys);
+            let board = super::status::board_figures(u, sys);
+            if key.is_empty() {
+                board
+            } else {
+                format!("{board}; {key}")
+            }
+        },
         trend,
         oil_life: u
             .health
@@ -634,16 +730,25 @@ fn indicator_rows(
     u.health
         .tiles
         .iter()
-        .filter(|t| t.value.is_some() || t.text.is_some())
+        .filter(|t| t.value.is_some() || t.text.is_some() || t.state == State::NotJudged)
         .map(|t| {
-            let latest = match (&t.text, t.value) {
+            let mut latest = match (&t.text, t.value) {
                 (Some(text), Some(v)) if t.key == "cleanliness" => {
                     format!("{text}, {} over target", figures::text(t.dim, v, sys))
                 }
                 (Some(text), _) => text.clone(),
                 (None, Some(v)) => figures::text(t.dim, v, sys),
-                (None, None) => "—".into(),
+                (None, None) => u
+                    .health
+                    .not_judged
+                    .iter()
+                    .find(|n| n.key == t.key)
+                    .map(|n| format!("— {}", n.until))
+                    .unwrap_or_else(|| "—".into()),
             };
+            if let Some(q) = questioned_mark(u, &t.key) {
+                latest.push_str(&format!(" ({q})"));
+            }
             let baseline = match (t.key.as_str(), t.baseline) {
                 ("kv40", Some(b)) => format!("{} new oil", figures::text(t.dim, b, sys)),
                 ("cleanliness", _) => target
@@ -951,7 +1056,17 @@ fn unit_section(
         fluid.push(("Era since".into(), text));
     }
 
-    let summary = if u.health.flags.is_empty() {
+    let waiting: Vec<&crate::health::NotJudged> =
+        u.health.not_judged.iter().filter(|n| n.expected).collect();
+    let summary = if u.health.flags.is_empty() && !waiting.is_empty() {
+        format!(
+            "Not judged yet: {} indicator{} wait{} for readings or a baseline (below); nothing is said \
+             about them until then.",
+            waiting.len(),
+            if waiting.len() == 1 { "" } else { "s" },
+            if waiting.len() == 1 { "s" } else { "" }
+        )
+    } else if u.health.flags.is_empty() {
         "No flags: every indicator is within its baseline band and limits.".to_string()
     } else {
         let n = u.health.flags.len();
@@ -976,6 +1091,19 @@ fn unit_section(
         baseline: baseline_text(u, sys),
         indicators: indicator_rows(u, from, to, sys),
         charts: charts(u, events, from, to, sys),
+        remarks: u
+            .health
+            .not_judged
+            .iter()
+            .filter(|n| n.expected)
+            .map(|n| {
+                format!(
+                    "Not judged yet — {}: {}; judged {}.",
+                    n.label, n.missing, n.until
+                )
+            })
+            .chain(questioned_remarks(u))
+            .collect(),
         flags: u
             .health
             .flags

@@ -184,7 +184,10 @@ impl Shop {
         file: &Path,
         keep_going: bool,
     ) -> Result<ImportSummary, AppError> {
-        csv_in::import_file(&mut self.store, kind, file, keep_going).map_err(AppError::from)
+        let mut summary =
+            csv_in::import_file(&mut self.store, kind, file, keep_going).map_err(AppError::from)?;
+        mark_questioned(&self.store, kind, &mut summary)?;
+        Ok(summary)
     }
 
     /// Writes all rows of `kind` as CSV to the file `path`: whole or not at all, an existing
@@ -428,4 +431,65 @@ pub(crate) fn store_error_is_input(e: &StoreError) -> bool {
             | StoreError::NotAllowed(_)
             | StoreError::Conflict { .. }
     )
+}
+
+/// Fills `summary.questioned` with the readings of this import that the screening questions
+/// (the same rule as the entry forms and the health engine, `health::screen`): each imported
+/// check or sample is judged against the unit's history and physical frame as stored now. The
+/// rows stay stored, unconfirmed; the engine leaves them out of baselines and flags until a
+/// person or the next reading confirms them. Only the units the import wrote to are read.
+pub fn mark_questioned(
+    store: &crate::store::Store,
+    kind: FileKind,
+    summary: &mut ImportSummary,
+) -> Result<(), AppError> {
+    use crate::health::screen::{self, Record};
+    let record = match kind {
+        FileKind::Checks => Record::Check,
+        FileKind::Samples => Record::Sample,
+        FileKind::Units | FileKind::Events => return Ok(()),
+    };
+    let Some((lo, hi)) = summary.inserted_ids else {
+        return Ok(());
+    };
+    let sys = store.settings()?.unit_system;
+    let mut out = Vec::new();
+    for unit_id in store.units_with_rows(kind == FileKind::Samples, lo, hi)? {
+        let Some(h) = store.unit_history(unit_id, None)? else {
+            continue;
+        };
+        for q in screen::screen_history(&h, h.fluid.as_ref(), sys) {
+            if q.record == record && (lo..=hi).contains(&q.id) && q.confirmed.is_none() {
+                out.push(crate::exchange::QuestionedRow {
+                    unit: h.unit.tag.clone(),
+                    at: crate::store::fmt_time_stamp(&q.at),
+                    field: q.field.key().to_string(),
+                    reason: q.reason,
+                });
+            }
+        }
+    }
+    out.sort_by(|a, b| (&a.at, &a.unit).cmp(&(&b.at, &b.unit)));
+    summary.questioned = out;
+    Ok(())
+}
+
+/// The import summary's line on questioned readings, naming each (empty when none).
+pub fn questioned_lines(summary: &ImportSummary) -> Vec<String> {
+    if summary.questioned.is_empty() {
+        return Vec::new();
+    }
+    let n = summary.questioned.len();
+    let mut lines = vec![format!(
+        "{n} reading{} questioned and kept unconfirmed (left out of baselines and flags until \
+         confirmed; `sumpbook confirm`, or Confirm on the unit page):",
+        if n == 1 { "" } else { "s" }
+    )];
+    lines.extend(
+        summary
+            .questioned
+            .iter()
+            .map(|q| format!("  {} {} {}: {}", q.unit, q.at, q.field, q.reason)),
+    );
+    lines
 }

@@ -9,7 +9,7 @@ use chrono::{DateTime, NaiveDate, Utc};
 use serde::{Deserialize, Serialize};
 
 use super::AppError;
-use crate::health::{self, Flag, Limits, State, UnitHealth, WorkItem};
+use crate::health::{self, ConfirmedBy, Flag, Limits, State, SuspectReading, UnitHealth, WorkItem};
 use crate::model::{Fluid, LimitSetting, Settings, UnitHistory};
 use crate::store::{Store, StoreError};
 use crate::units::UnitSystem;
@@ -233,6 +233,57 @@ pub fn unit_status_of(
 }
 
 // ---------------------------------------------------------------------------------------------
+/// The one or two figures that explain a unit's state on the fleet board: its worst flag's
+/// figure (the same text as the report's and `status --json`'s), what keeps it from being
+/// judged, or when steady its key indicators.
+pub fn board_figures(u: &UnitStatus, sys: UnitSystem) -> String {
+    if let Some(f) = u.health.flags.first() {
+        let mut t = super::figures::flag_figure(f, sys);
+        let more = u.health.flags.len() - 1;
+        if more > 0 {
+            t.push_str(&format!(
+                " (+{more} more flag{})",
+                if more == 1 { "" } else { "s" }
+            ));
+        }
+        return t;
+    }
+    if u.state == State::NotJudged {
+        if let Some(n) = u.health.not_judged.iter().find(|n| n.expected) {
+            let more = u.health.not_judged.iter().filter(|n| n.expected).count() - 1;
+            let mut t = format!("{}: {} — judged {}", n.label, n.missing, n.until);
+            if more > 0 {
+                t.push_str(&format!(" (+{more} more)"));
+            }
+            return t;
+        }
+    }
+    let i = &u.health.indicators;
+    let mut parts = Vec::new();
+    if let Some(l) = i.lost_flow_pct {
+        parts.push(format!("lost flow {l:.1} %"));
+    }
+    if let Some(h) = i.heat_rise_drift_k {
+        parts.push(format!(
+            "heat rise {} on baseline",
+            super::figures::temp_diff(h, sys, true)
+        ));
+    } else if let Some(h) = i.heat_rise_k {
+        parts.push(format!(
+            "heat rise {}",
+            super::figures::temp_diff(h, sys, false)
+        ));
+    }
+    if let Some(c) = &i.iso4406 {
+        parts.push(format!("ISO {c}"));
+    }
+    if parts.is_empty() {
+        "no readings yet".into()
+    } else {
+        parts.join(" · ")
+    }
+}
+
 // The fixed JSON of `status --json`.
 
 /// `status --json`: `{"units": [...]}` with fixed keys.
@@ -245,9 +296,44 @@ pub struct StatusJson {
 pub struct UnitJson {
     pub unit: String,
     pub machine: String,
+    /// `steady`, `not_judged`, `watch` or `act`.
     pub state: State,
     pub indicators: IndicatorsJson,
     pub flags: Vec<FlagJson>,
+    /// What cannot be judged yet, why, and when it will be (also when the unit is flagged).
+    pub not_judged: Vec<NotJudgedJson>,
+    /// Readings the screening questioned, oldest first, confirmed or not.
+    pub questioned: Vec<QuestionedJson>,
+}
+
+/// One indicator that cannot be judged yet.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct NotJudgedJson {
+    pub indicator: String,
+    pub label: String,
+    pub missing: String,
+    pub until: String,
+    pub checks_needed: Option<usize>,
+    pub due: Option<NaiveDate>,
+    /// Whether it keeps the unit "not judged yet" (a unit is expected to have it).
+    pub expected: bool,
+}
+
+/// One questioned reading.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct QuestionedJson {
+    /// `check` or `sample`.
+    pub record: String,
+    pub taken_at: DateTime<Utc>,
+    /// The field's key (`reservoir_temp`, `pressure`, `water_ppm`, ...).
+    pub field: String,
+    pub reason: String,
+    /// `false` while nobody and no later reading has confirmed it: then it feeds no baseline,
+    /// detector or flag.
+    pub confirmed: bool,
+    /// Who or what confirmed it: a person's name, or `next reading`.
+    pub confirmed_by: Option<String>,
+    pub confirmed_at: Option<DateTime<Utc>>,
 }
 
 /// The key indicators; `null` where there is no data.
@@ -271,6 +357,9 @@ pub struct IndicatorsJson {
 pub struct FlagJson {
     pub kind: String,
     pub state: State,
+    /// The figure that raised the flag against the limit it reached, in the shop's units,
+    /// exactly as the fleet board, the unit page and the report show it.
+    pub figure: String,
     pub value: Option<f64>,
     pub limit: Option<f64>,
     pub since: NaiveDate,
@@ -284,11 +373,12 @@ fn round(v: Option<f64>, d: i32) -> Option<f64> {
     v.filter(|x| x.is_finite()).map(|x| (x * f).round() / f)
 }
 
-impl From<&Flag> for FlagJson {
-    fn from(f: &Flag) -> Self {
+impl FlagJson {
+    fn of(f: &Flag, sys: UnitSystem) -> Self {
         FlagJson {
             kind: f.kind.as_str().to_string(),
             state: f.state,
+            figure: super::figures::flag_figure(f, sys),
             value: round(f.value, 3),
             limit: round(f.limit, 3),
             since: f.since,
@@ -298,8 +388,8 @@ impl From<&Flag> for FlagJson {
     }
 }
 
-impl From<&UnitStatus> for UnitJson {
-    fn from(u: &UnitStatus) -> Self {
+impl UnitJson {
+    fn of(u: &UnitStatus, sys: UnitSystem) -> Self {
         let i = &u.health.indicators;
         UnitJson {
             unit: u.unit.clone(),
@@ -319,8 +409,52 @@ impl From<&UnitStatus> for UnitJson {
                 acid_rise: round(i.acid_rise, 3),
                 oil_life_used_pct: round(i.oil_life_used_pct, 1),
             },
-            flags: u.health.flags.iter().map(FlagJson::from).collect(),
+            flags: u
+                .health
+                .flags
+                .iter()
+                .map(|f| FlagJson::of(f, sys))
+                .collect(),
+            not_judged: u
+                .health
+                .not_judged
+                .iter()
+                .map(|n| NotJudgedJson {
+                    indicator: n.key.clone(),
+                    label: n.label.clone(),
+                    missing: n.missing.clone(),
+                    until: n.until.clone(),
+                    checks_needed: n.checks_needed,
+                    due: n.due,
+                    expected: n.expected,
+                })
+                .collect(),
+            questioned: u.health.suspects.iter().map(questioned_json).collect(),
         }
+    }
+}
+
+/// Who or what confirmed a questioned reading, and when: a person's name, or `next reading`.
+pub fn confirmed_by_text(c: &ConfirmedBy) -> (String, DateTime<Utc>) {
+    match c {
+        ConfirmedBy::Person { by, at } => (by.clone(), *at),
+        ConfirmedBy::NextReading { at } => ("next reading".to_string(), *at),
+    }
+}
+
+fn questioned_json(s: &SuspectReading) -> QuestionedJson {
+    let by = s.confirmed.as_ref().map(confirmed_by_text);
+    QuestionedJson {
+        record: match s.record {
+            health::screen::Record::Check => "check".into(),
+            health::screen::Record::Sample => "sample".into(),
+        },
+        taken_at: s.at,
+        field: s.field.key().to_string(),
+        reason: s.reason.clone(),
+        confirmed: s.confirmed.is_some(),
+        confirmed_by: by.as_ref().map(|b| b.0.clone()),
+        confirmed_at: by.map(|b| b.1),
     }
 }
 
@@ -328,16 +462,20 @@ impl FleetStatus {
     /// The fixed-key JSON view.
     pub fn to_json_view(&self) -> StatusJson {
         StatusJson {
-            units: self.units.iter().map(UnitJson::from).collect(),
+            units: self
+                .units
+                .iter()
+                .map(|u| UnitJson::of(u, self.unit_system))
+                .collect(),
         }
     }
 }
 
 impl UnitStatus {
-    /// The fixed-key JSON view of one unit, as `{"units": [..]}`.
-    pub fn to_json_view(&self) -> StatusJson {
+    /// The fixed-key JSON view of one unit, as `{"units": [..]}`, figures in `sys`.
+    pub fn to_json_view(&self, sys: UnitSystem) -> StatusJson {
         StatusJson {
-            units: vec![UnitJson::from(self)],
+            units: vec![UnitJson::of(self, sys)],
         }
     }
 }

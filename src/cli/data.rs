@@ -327,6 +327,9 @@ pub fn run_import(
         }
     }
     writeln!(out)?;
+    for line in crate::app::shop::questioned_lines(&s) {
+        writeln!(out, "{line}")?;
+    }
     Ok(())
 }
 

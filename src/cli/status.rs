@@ -17,7 +17,8 @@ use crate::app::status::{self, FleetStatus, UnitStatus};
 use crate::app::work::{self, DueBucket, DueList, EventInput, LimitRow};
 use crate::health::indicators::Tile;
 use crate::health::plan::CAUTION_SHORT;
-use crate::health::{BaselineSource, Flag, FlagKind, State};
+use crate::health::screen::Record;
+use crate::health::{BaselineSource, Flag, FlagKind, NotJudged, State, SuspectReading};
 use crate::model::EventKind;
 use crate::quantity::{format, parse_temperature, parse_volume, Quantity};
 use crate::units::UnitSystem;
@@ -215,17 +216,18 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus) -> Result<(), Failure> {
     writeln!(out, "{} — {}", f.shop_name, when)?;
     writeln!(
         out,
-        "{} units: {} act, {} watch, {} steady",
+        "{} units: {} act, {} watch, {} not judged yet, {} steady",
         f.units.len(),
         f.counts.act,
         f.counts.watch,
+        f.counts.not_judged,
         f.counts.steady
     )?;
     writeln!(out)?;
     let cols: [(&str, usize); 11] = [
         ("UNIT", 10),
         ("MACHINE", 9),
-        ("STATE", 15),
+        ("STATE", 16),
         ("LOST", 8),
         ("LEAK", 7),
         ("HEAT+", 9),
@@ -299,14 +301,88 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus) -> Result<(), Failure> {
         writeln!(out, "Flags")?;
         for u in flagged {
             for fl in &u.health.flags {
-                flag_line(out, &u.unit, fl)?;
+                flag_line(out, &u.unit, fl, sys)?;
             }
+        }
+    }
+    let waiting: Vec<&UnitStatus> = f
+        .units
+        .iter()
+        .filter(|u| u.health.not_judged.iter().any(|n| n.expected))
+        .collect();
+    if !waiting.is_empty() {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "Not judged yet (? what is missing, and when it will be judged)"
+        )?;
+        for u in waiting {
+            for n in u.health.not_judged.iter().filter(|n| n.expected) {
+                not_judged_line(out, &u.unit, n)?;
+            }
+        }
+    }
+    let open: Vec<(&UnitStatus, &SuspectReading)> = f
+        .units
+        .iter()
+        .flat_map(|u| {
+            u.health
+                .suspects
+                .iter()
+                .filter(|s| s.confirmed.is_none())
+                .map(move |s| (u, s))
+        })
+        .collect();
+    if !open.is_empty() {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "Questioned readings, not confirmed (left out of baselines and flags; `sumpbook confirm` keeps one)"
+        )?;
+        for (u, s) in open {
+            suspect_line(out, &u.unit, s)?;
         }
     }
     Ok(())
 }
 
-fn flag_line(out: &mut dyn Write, unit: &str, f: &Flag) -> Result<(), Failure> {
+fn not_judged_line(out: &mut dyn Write, unit: &str, n: &NotJudged) -> Result<(), Failure> {
+    writeln!(
+        out,
+        "  {}? {}: {} — {}",
+        pad(unit, 10),
+        n.label,
+        n.missing,
+        n.until
+    )?;
+    Ok(())
+}
+
+fn suspect_line(out: &mut dyn Write, unit: &str, s: &SuspectReading) -> Result<(), Failure> {
+    let kind = match s.record {
+        Record::Check => "check",
+        Record::Sample => "sample",
+    };
+    let state = match &s.confirmed {
+        None => "NOT CONFIRMED".to_string(),
+        Some(c) => {
+            let (by, at) = status::confirmed_by_text(c);
+            format!("confirmed by {by} {}", at.format("%Y-%m-%d"))
+        }
+    };
+    writeln!(
+        out,
+        "  {}{} {} {}: {}  [{state}]",
+        pad(unit, 10),
+        kind,
+        s.at.format("%Y-%m-%dT%H:%M:%SZ"),
+        s.field.label(),
+        s.reason
+    )?;
+    Ok(())
+}
+
+fn flag_line(out: &mut dyn Write, unit: &str, f: &Flag, sys: UnitSystem) -> Result<(), Failure> {
     let seen = match &f.acknowledgement {
         Some(a) if f.acknowledged => {
             format!(
@@ -324,11 +400,12 @@ fn flag_line(out: &mut dyn Write, unit: &str, f: &Flag) -> Result<(), Failure> {
     };
     writeln!(
         out,
-        "  {}{}{}since {}  {}{}",
+        "  {}{}{}since {}  {}. {}{}",
         pad(unit, 10),
         pad(state_word(f.state), 7),
         pad(f.kind.as_str(), 17),
         f.since,
+        figures::flag_figure(f, sys),
         f.message,
         seen
     )?;
@@ -437,7 +514,21 @@ fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(),
     } else {
         writeln!(out, "Flags")?;
         for f in &h.flags {
-            flag_line(out, &u.unit, f)?;
+            flag_line(out, &u.unit, f, sys)?;
+        }
+    }
+    if !h.not_judged.is_empty() {
+        writeln!(out)?;
+        writeln!(out, "Not judged yet")?;
+        for n in &h.not_judged {
+            not_judged_line(out, &u.unit, n)?;
+        }
+    }
+    if !h.suspects.is_empty() {
+        writeln!(out)?;
+        writeln!(out, "Questioned readings")?;
+        for s in &h.suspects {
+            suspect_line(out, &u.unit, s)?;
         }
     }
     writeln!(out)?;
@@ -473,14 +564,14 @@ pub fn run_status(shop: &Shop, args: &StatusArgs, out: &mut dyn Write) -> Result
     match &args.unit {
         Some(tag) => {
             let u = status::unit_status_of(shop, tag, at)?;
+            let sys = shop
+                .store()
+                .settings()
+                .map(|s| s.unit_system)
+                .unwrap_or_default();
             if args.json {
-                json_out(out, &u.to_json_view())
+                json_out(out, &u.to_json_view(sys))
             } else {
-                let sys = shop
-                    .store()
-                    .settings()
-                    .map(|s| s.unit_system)
-                    .unwrap_or_default();
                 unit_page(out, &u, sys)
             }
         }

@@ -1179,6 +1179,8 @@ pub fn import_reader<R: Read>(
         machines_added: 0,
         fluids_added: 0,
         rounded: 0,
+        inserted_ids: None,
+        questioned: Vec::new(),
     };
     let mut errors: Vec<RowError> = Vec::new();
     let mut bulk = store.bulk()?;
@@ -1273,9 +1275,15 @@ pub fn import_reader<R: Read>(
             importer.row(&mut bulk, &mut row, &mut summary)?
         };
         match outcome {
-            Some(Outcome::Inserted) if row.errors.is_empty() => {
+            Some(Outcome::Inserted(id)) if row.errors.is_empty() => {
                 summary.inserted += 1;
                 summary.rounded += row.rounded;
+                if let Some(id) = id {
+                    summary.inserted_ids = Some(match summary.inserted_ids {
+                        None => (id, id),
+                        Some((lo, hi)) => (lo.min(id), hi.max(id)),
+                    });
+                }
             }
             Some(Outcome::Unchanged) if row.errors.is_empty() => summary.unchanged += 1,
             _ => {
@@ -1326,7 +1334,8 @@ pub fn import_reader<R: Read>(
 }
 
 enum Outcome {
-    Inserted,
+    /// Written; the row id for checks and samples.
+    Inserted(Option<Id>),
     Unchanged,
 }
 
@@ -1500,7 +1509,7 @@ impl Importer {
             confirmed,
         };
         match bulk.put_check(&check) {
-            Ok(Put::Inserted(_)) => Ok(Some(Outcome::Inserted)),
+            Ok(Put::Inserted(id)) => Ok(Some(Outcome::Inserted(Some(id)))),
             Ok(Put::Exists(stored)) => {
                 let c = columns::temp_c;
                 let mut diff = Vec::new();
@@ -1687,7 +1696,7 @@ impl Importer {
             confirmed,
         };
         match bulk.put_sample(&sample) {
-            Ok(Put::Inserted(_)) => Ok(Some(Outcome::Inserted)),
+            Ok(Put::Inserted(id)) => Ok(Some(Outcome::Inserted(Some(id)))),
             Ok(Put::Exists(st)) => {
                 let cs = |v: Option<Viscosity>| v.map(columns::cst);
                 let mut diff = Vec::new();
@@ -1789,7 +1798,7 @@ impl Importer {
             note,
         };
         match bulk.put_event(&event) {
-            Ok(Put::Inserted(_)) => Ok(Some(Outcome::Inserted)),
+            Ok(Put::Inserted(_)) => Ok(Some(Outcome::Inserted(None))),
             Ok(Put::Exists(st)) => {
                 let mut diff = Vec::new();
                 if differs(
@@ -2137,7 +2146,7 @@ impl Importer {
             archived: false,
         };
         match bulk.insert_unit(&unit) {
-            Ok(_) => Ok(Some(Outcome::Inserted)),
+            Ok(_) => Ok(Some(Outcome::Inserted(None))),
             Err(e) => {
                 row_store_error(row, e, |f| f.to_string())?;
                 Ok(None)

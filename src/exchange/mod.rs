@@ -127,6 +127,23 @@ pub struct ImportSummary {
     pub fluids_added: u64,
     /// Numbers written with more significant digits than are stored (12), stored rounded.
     pub rounded: u64,
+    /// The lowest and highest row id written (checks and samples), so the rows of this import
+    /// can be told apart afterwards without holding a list of them.
+    pub inserted_ids: Option<(i64, i64)>,
+    /// Readings kept but questioned (a slipped decimal point, a pressure above the relief
+    /// setting, ...), filled in by the application layer after the import.
+    pub questioned: Vec<QuestionedRow>,
+}
+
+/// One questioned field of an imported reading.
+#[derive(Clone, Debug, PartialEq, Eq, serde::Serialize)]
+pub struct QuestionedRow {
+    pub unit: String,
+    /// The reading's time, `YYYY-MM-DDTHH:MM:SSZ`.
+    pub at: String,
+    /// The field's key (`reservoir_temp`, `pressure`, `water_ppm`, ...).
+    pub field: String,
+    pub reason: String,
 }
 
 /// Why an import or export failed.

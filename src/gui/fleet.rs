@@ -5,13 +5,12 @@ use std::rc::Rc;
 
 use slint::ComponentHandle;
 
-use super::fmt::{dim_text, state_num};
+use super::fmt::state_num;
 use super::ui::{FleetAdapter, FleetRow, Nav};
 use super::{model, s, unit, Ctx};
 use crate::app::entry;
 use crate::app::status::{self, FleetStatus, UnitStatus};
 use crate::app::AppError;
-use crate::health::indicators::Dim;
 use crate::health::{State, WorkKind};
 use crate::units::UnitSystem;
 
@@ -30,45 +29,6 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
             unit::open(&ctx, i64::from(id));
         }
     });
-}
-
-/// The one or two figures that explain a unit's state: its worst flags, or when steady its
-/// key indicators.
-fn figures(u: &UnitStatus, sys: UnitSystem) -> String {
-    let flags: Vec<String> = u
-        .health
-        .flags
-        .iter()
-        .take(1)
-        .map(|f| f.what.clone())
-        .collect();
-    if !flags.is_empty() {
-        let more = u.health.flags.len().saturating_sub(1);
-        let mut t = flags.join(" · ");
-        if more > 0 {
-            t.push_str(&format!(
-                " (+{more} more flag{})",
-                if more == 1 { "" } else { "s" }
-            ));
-        }
-        return t;
-    }
-    let i = &u.health.indicators;
-    let mut parts = Vec::new();
-    if let Some(l) = i.lost_flow_pct {
-        parts.push(format!("lost flow {l:.1} %"));
-    }
-    if let Some(h) = i.heat_rise_k {
-        parts.push(format!("heat rise {}", dim_text(Dim::TempDiff, h, sys)));
-    }
-    if let Some(c) = &i.iso4406 {
-        parts.push(format!("ISO {c}"));
-    }
-    if parts.is_empty() {
-        "no readings yet".into()
-    } else {
-        parts.join(" · ")
-    }
 }
 
 fn next_due(u: &UnitStatus) -> (String, bool) {
@@ -102,7 +62,7 @@ fn row(u: &UnitStatus, sys: UnitSystem) -> FleetRow {
         machine: s(format!("{} {}", u.machine, u.machine_name)),
         state: state_num(u.state),
         ack: if all_seen { s("seen") } else { s("") },
-        figures: s(figures(u, sys)),
+        figures: s(status::board_figures(u, sys)),
         last_check: s(u
             .health
             .last_check
@@ -118,6 +78,7 @@ fn matches(u: &UnitStatus, state_filter: i32, search: &str) -> bool {
         1 => u.state == State::Act,
         2 => u.state == State::Watch,
         3 => u.state == State::Steady,
+        4 => u.state == State::NotJudged,
         _ => true,
     };
     let q = search.trim().to_lowercase();
@@ -169,10 +130,11 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 .collect();
             let c = fleet.counts;
             a.set_summary(s(format!(
-                "{} units: {} act, {} watch, {} steady · as of {}",
+                "{} units: {} act, {} watch, {} not judged yet, {} steady · as of {}",
                 fleet.units.len(),
                 c.act,
                 c.watch,
+                c.not_judged,
                 c.steady,
                 crate::app::entry::show_time(fleet.at)
             )));

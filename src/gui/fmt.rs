@@ -10,11 +10,11 @@ use crate::health::indicators::Dim;
 use crate::health::State;
 use crate::units::UnitSystem;
 
-/// The number the `.slint` state marks take: 0 steady, 1 watch, 2 act.
+/// The number the `.slint` state marks take: 0 steady, 1 watch, 2 act, 3 not judged yet.
 pub fn state_num(s: State) -> i32 {
     match s {
-        // Shown as steady's mark until the app draws its own "not judged yet" mark.
-        State::Steady | State::NotJudged => 0,
+        State::Steady => 0,
+        State::NotJudged => 3,
         State::Watch => 1,
         State::Act => 2,
     }

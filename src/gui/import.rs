@@ -67,6 +67,11 @@ fn summary_text(sum: &ImportSummary) -> String {
             sum.machines_added, sum.fluids_added
         ));
     }
+    let q = crate::app::shop::questioned_lines(sum);
+    if !q.is_empty() {
+        t.push_str(". ");
+        t.push_str(&q.join("\n"));
+    }
     t
 }
 

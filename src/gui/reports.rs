@@ -194,7 +194,7 @@ fn choose(ctx: &Rc<Ctx>, which: i32) {
         if let Some(mut u) = units.row_data(i) {
             let want = match which {
                 0 => false,
-                2 => u.state >= state_num(State::Watch),
+                2 => u.state == state_num(State::Watch) || u.state == state_num(State::Act),
                 _ => true,
             };
             if u.chosen != want {

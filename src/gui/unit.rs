@@ -14,10 +14,13 @@ use super::ui::{
     ChartData, ChartRow, FlagData, FormField, KeyVal, Nav, TileData, TileRow, UnitAdapter,
 };
 use super::{err_text, form_rows, mark_problems, model, problems_line, s, strings, Ctx, Screen};
+use crate::app::confirm::{self, ConfirmAction, ReadingKind};
 use crate::app::entry::{self, Entered, Field, Reading, SaveOutcome, UnitView};
+use crate::app::status;
 use crate::health::baseline::{BaselineIndicator, BaselineSource};
 use crate::health::indicators::{Dim, Direction, Series};
-use crate::health::{State, Tile};
+use crate::health::screen::Record;
+use crate::health::{NotJudged, State, SuspectReading, Tile};
 use crate::model::EventKind;
 use crate::quantity::Kind;
 use crate::units::UnitSystem;
@@ -89,6 +92,18 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
             delete_row(&ctx);
         }
     });
+    let c = Rc::downgrade(ctx);
+    a.on_confirm_row(move || {
+        if let Some(ctx) = c.upgrade() {
+            confirm_row(&ctx, true);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_lift_row(move || {
+        if let Some(ctx) = c.upgrade() {
+            confirm_row(&ctx, false);
+        }
+    });
 }
 
 fn table_of(i: i32) -> Reading {
@@ -158,8 +173,33 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
     a.set_state(state_num(st.state));
     a.set_identity(model(identity(&view, sys)));
     a.set_era(model(era(&view, sys)));
-    a.set_tile_rows(model(tile_rows(&st.health.tiles, sys)));
+    a.set_tile_rows(model(tile_rows(
+        &st.health.tiles,
+        sys,
+        &st.health.not_judged,
+    )));
     a.set_flags(model(flags(&view)));
+    a.set_waiting(strings(
+        st.health
+            .not_judged
+            .iter()
+            .filter(|n| n.expected)
+            .map(|n| format!("{}: {} — judged {}.", n.label, n.missing, n.until)),
+    ));
+    a.set_questioned(strings(
+        st.health
+            .suspects
+            .iter()
+            .filter(|q| q.confirmed.is_none())
+            .map(|q| {
+                format!(
+                    "{} {}: {}",
+                    record_word(q.record),
+                    entry::show_time(q.at),
+                    q.reason
+                )
+            }),
+    ));
     let (rows, hint) = chart_rows(&view, sys);
     a.set_chart_rows(model(rows));
     a.set_chart_hint(s(hint));
@@ -351,10 +391,12 @@ fn limit_text(t: &Tile, sys: UnitSystem) -> String {
     }
 }
 
-fn tile(t: &Tile, sys: UnitSystem) -> TileData {
+fn tile(t: &Tile, sys: UnitSystem, not_judged: &[NotJudged]) -> TileData {
+    let waiting = not_judged.iter().find(|n| n.key == t.key);
     let (value, small) = match (&t.text, t.value) {
         (Some(text), _) => (text.clone(), text.chars().count() > 10),
         (None, Some(v)) => (dim_text(t.dim, v, sys), false),
+        (None, None) if t.state == State::NotJudged => ("not judged yet".into(), true),
         (None, None) => ("no data".into(), true),
     };
     let baseline = match (t.baseline, t.baseline_spread) {
@@ -374,6 +416,12 @@ fn tile(t: &Tile, sys: UnitSystem) -> TileData {
         (None, _) => "—".into(),
     };
     let (arrow, trend) = match &t.trend {
+        None if t.state == State::NotJudged => (
+            String::new(),
+            waiting
+                .map(|n| format!("judged {}", n.until))
+                .unwrap_or_else(|| "not judged yet".to_string()),
+        ),
         None => (String::new(), "trend: too few points".to_string()),
         Some(tr) => {
             let (arrow, word) = match tr.direction {
@@ -408,12 +456,12 @@ fn tile(t: &Tile, sys: UnitSystem) -> TileData {
     }
 }
 
-fn tile_rows(tiles: &[Tile], sys: UnitSystem) -> Vec<TileRow> {
+fn tile_rows(tiles: &[Tile], sys: UnitSystem, not_judged: &[NotJudged]) -> Vec<TileRow> {
     // Three to a row; the last row is padded with blank tiles so all tiles are one width.
     tiles
         .chunks(3)
         .map(|c| {
-            let mut row: Vec<TileData> = c.iter().map(|t| tile(t, sys)).collect();
+            let mut row: Vec<TileData> = c.iter().map(|t| tile(t, sys, not_judged)).collect();
             row.resize(3, TileData::default());
             TileRow { tiles: model(row) }
         })
@@ -694,6 +742,7 @@ fn check_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
     let t = |k: Kind| k.display_unit(sys).symbol();
     let cols = vec![
         col("Taken", 168.0),
+        col("Questioned", 190.0),
         col(&format!("Oil {}", t(Kind::Temperature)), 100.0),
         col(&format!("Air {}", t(Kind::Temperature)), 100.0),
         col(&format!("Press. {}", t(Kind::Pressure)), 118.0),
@@ -716,6 +765,7 @@ fn check_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
         .enumerate()
         .map(|(i, p)| (p.check_id, i))
         .collect();
+    let marks = suspect_marks(v, Record::Check);
     let v = v.clone();
     let make = move |i: usize| {
         let c = &v.history.checks[v.history.checks.len() - 1 - i];
@@ -726,6 +776,7 @@ fn check_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
         };
         vec![
             cell(entry::show_time(c.taken_at)),
+            cell(marks.get(&c.id).cloned().unwrap_or_default()),
             cell(conv(Kind::Temperature, c.reservoir_temp.map(|x| x.si()))),
             cell(conv(Kind::Temperature, c.ambient_temp.map(|x| x.si()))),
             cell(conv(Kind::Pressure, c.pressure.map(|x| x.si()))),
@@ -750,6 +801,7 @@ fn check_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
 fn sample_table(v: &Rc<UnitView>) -> (Vec<TableColumn>, Vec<i64>, RowMaker) {
     let cols = vec![
         col("Sampled", 168.0),
+        col("Questioned", 190.0),
         col("KV40 cSt", 113.0),
         col("KV100 cSt", 118.0),
         col("ISO 4406", 113.0),
@@ -770,6 +822,7 @@ fn sample_table(v: &Rc<UnitView>) -> (Vec<TableColumn>, Vec<i64>, RowMaker) {
         .enumerate()
         .map(|(i, p)| (p.sample_id, i))
         .collect();
+    let marks = suspect_marks(v, Record::Sample);
     let v = v.clone();
     let make = move |i: usize| {
         let smp = &v.history.samples[v.history.samples.len() - 1 - i];
@@ -780,6 +833,7 @@ fn sample_table(v: &Rc<UnitView>) -> (Vec<TableColumn>, Vec<i64>, RowMaker) {
             .or_else(|| point.and_then(|p| p.kv40).map(|k| k * 1e6));
         vec![
             cell(entry::show_time(smp.sampled_at)),
+            cell(marks.get(&smp.id).cloned().unwrap_or_default()),
             cell(num(kv40, 1)),
             cell(num(smp.kv100.map(|k| k.cst()), 2)),
             cell(
@@ -876,6 +930,9 @@ fn fill_table(ctx: &Rc<Ctx>, which: Reading) {
     if keep.is_none() {
         a.set_edit_fields(model(Vec::<FormField>::new()));
         a.set_edit_title(s(""));
+        a.set_suspect_text(s(""));
+        a.set_can_confirm(false);
+        a.set_can_lift(false);
     }
 }
 
@@ -909,10 +966,174 @@ fn select_row(ctx: &Rc<Ctx>, row: i32) {
                 }
             )));
             a.set_edit_message(s(""));
+            show_suspicion(ctx, &a, which, id);
             let mut st = ctx.unit.borrow_mut();
             st.selected = Some((which, id));
             st.fields = fields;
             st.entered = entered;
+        }
+        Err(e) => {
+            a.set_edit_message(s(err_text(&e)));
+            a.set_edit_level(2);
+        }
+    }
+}
+
+fn record_word(r: Record) -> &'static str {
+    match r {
+        Record::Check => "Check of",
+        Record::Sample => "Sample of",
+    }
+}
+
+/// The "Questioned" cell of each questioned reading of a kind, by reading id: the field(s)
+/// and whether they are left out or were confirmed, and by whom.
+fn suspect_marks(v: &UnitView, record: Record) -> HashMap<i64, String> {
+    let mut out: HashMap<i64, String> = HashMap::new();
+    for q in v
+        .status
+        .health
+        .suspects
+        .iter()
+        .filter(|q| q.record == record)
+    {
+        let text = match &q.confirmed {
+            None => format!("? {} — left out", q.field.label()),
+            Some(c) => format!(
+                "✓ {} — confirmed ({})",
+                q.field.label(),
+                status::confirmed_by_text(c).0
+            ),
+        };
+        out.entry(q.id)
+            .and_modify(|t| {
+                t.push_str("; ");
+                t.push_str(&text);
+            })
+            .or_insert(text);
+    }
+    out
+}
+
+/// The chosen reading's questions, and whether it can be confirmed or its confirmation lifted.
+fn show_suspicion(ctx: &Rc<Ctx>, a: &UnitAdapter, which: Reading, id: i64) {
+    let st = ctx.unit.borrow();
+    let Some(v) = st.view.as_ref() else { return };
+    let record = match which {
+        Reading::Check => Record::Check,
+        Reading::Sample => Record::Sample,
+        Reading::Event => {
+            a.set_suspect_text(s(""));
+            a.set_can_confirm(false);
+            a.set_can_lift(false);
+            return;
+        }
+    };
+    let qs: Vec<&SuspectReading> = v
+        .status
+        .health
+        .suspects
+        .iter()
+        .filter(|q| q.record == record && q.id == id)
+        .collect();
+    let person = match which {
+        Reading::Check => v
+            .history
+            .checks
+            .iter()
+            .find(|c| c.id == id)
+            .and_then(|c| c.confirmed.clone()),
+        _ => v
+            .history
+            .samples
+            .iter()
+            .find(|c| c.id == id)
+            .and_then(|c| c.confirmed.clone()),
+    };
+    let mut lines: Vec<String> = qs
+        .iter()
+        .map(|q| {
+            let state = match &q.confirmed {
+                None => "not confirmed: left out of baselines and flags".to_string(),
+                Some(c) => {
+                    let (by, at) = status::confirmed_by_text(c);
+                    format!("confirmed by {by} on {}", super::fmt::date(at))
+                }
+            };
+            format!("Questioned — {} ({state})", q.reason)
+        })
+        .collect();
+    if let Some(k) = &person {
+        if qs.is_empty() {
+            lines.push(format!(
+                "Confirmed by {} on {}.",
+                k.by,
+                super::fmt::date(k.at)
+            ));
+        }
+    }
+    a.set_suspect_text(s(lines.join("\n")));
+    a.set_can_confirm(person.is_none() && qs.iter().any(|q| q.confirmed.is_none()));
+    a.set_can_lift(person.is_some());
+}
+
+/// Confirms the chosen reading (`confirm`) or lifts its confirmation, by the name in "Changed
+/// by" and with the reason.
+fn confirm_row(ctx: &Rc<Ctx>, confirm: bool) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<UnitAdapter>();
+    let sel = ctx.unit.borrow().selected;
+    let Some((which, id)) = sel else { return };
+    let found = {
+        let st = ctx.unit.borrow();
+        st.view.as_ref().and_then(|v| {
+            let at = match which {
+                Reading::Check => v
+                    .history
+                    .checks
+                    .iter()
+                    .find(|c| c.id == id)
+                    .map(|c| c.taken_at),
+                Reading::Sample => v
+                    .history
+                    .samples
+                    .iter()
+                    .find(|c| c.id == id)
+                    .map(|c| c.sampled_at),
+                Reading::Event => None,
+            }?;
+            Some((v.status.unit.clone(), at))
+        })
+    };
+    let Some((tag, at)) = found else { return };
+    let kind = if which == Reading::Sample {
+        ReadingKind::Sample
+    } else {
+        ReadingKind::Check
+    };
+    let by = a.get_edit_by().to_string();
+    let why = a.get_edit_reason().to_string();
+    let r = if confirm {
+        confirm::confirm_reading(&ctx.shop, &tag, kind, at, &by, &why, ctx.now())
+    } else {
+        confirm::lift_confirmation(&ctx.shop, &tag, kind, at, &by, &why, ctx.now())
+    };
+    match r {
+        Ok(done) => {
+            a.set_edit_message(s(match done.action {
+                ConfirmAction::Confirmed => format!(
+                    "Confirmed by {}: the reading counts in baselines and flags.",
+                    by.trim()
+                ),
+                ConfirmAction::Lifted => {
+                    "Confirmation lifted; kept in the edit history.".to_string()
+                }
+            }));
+            a.set_edit_level(0);
+            a.set_edit_reason(s(""));
+            refresh(ctx);
+            super::fleet::refresh(ctx);
+            show_suspicion(ctx, &a, which, id);
         }
         Err(e) => {
             a.set_edit_message(s(err_text(&e)));

@@ -57,6 +57,21 @@ pub fn draw(l: &mut Layout, doc: &ReportDoc) {
     }
     l.gap(6.0);
 
+    if !doc.questioned.is_empty() {
+        l.heading("Questioned readings, not confirmed", 30.0);
+        l.paragraph(
+            Face::Regular,
+            size::TINY,
+            DARK,
+            0.0,
+            "Kept but left out of baselines and flags until a person or the next reading confirms them.",
+        );
+        for q in &doc.questioned {
+            l.paragraph(Face::Regular, size::SMALL, DARK, 0.0, q);
+        }
+        l.gap(6.0);
+    }
+
     l.heading("Exceptions that need a decision", 30.0);
     if doc.exceptions.is_empty() {
         l.paragraph(
@@ -92,7 +107,7 @@ pub fn state_legend() -> Vec<(Mark, String)> {
         (Mark::Act, "act: needs a decision".to_string()),
         (
             Mark::None,
-            "no judgement yet (no data or no baseline)".to_string(),
+            "not judged yet: readings or a baseline missing".to_string(),
         ),
     ]
 }
@@ -132,9 +147,16 @@ pub fn findings_table(findings: &[Finding], with_unit: bool) -> TableSpec {
     let rows: Vec<Vec<Cell>> = findings
         .iter()
         .map(|f| {
+            // On a unit page the figure that raised the flag leads its sentence; on the fleet
+            // page it has a column of its own.
+            let what = if with_unit || f.amount.is_empty() {
+                f.what.clone()
+            } else {
+                format!("{} — {}", f.amount, f.what)
+            };
             let mut row = vec![
                 Cell::marked(f.state.mark, f.state.word.clone()),
-                Cell::plain(f.what.clone()),
+                Cell::plain(what),
             ];
             if with_unit {
                 row.insert(0, Cell::bold(f.unit_tag.clone()));

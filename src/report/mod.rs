@@ -55,7 +55,7 @@ pub enum Mark {
     Watch,
     /// Diamond.
     Act,
-    /// Open square: no judgement possible (no data or no baseline).
+    /// Open square: not judged yet (readings or a baseline missing), or no level at all.
     None,
 }
 
@@ -137,6 +137,9 @@ pub struct UnitSection {
     pub charts: Vec<charts::Chart>,
     pub flags: Vec<Finding>,
     pub work: Vec<WorkItem>,
+    /// Lines under the summary: what cannot be judged yet and when it will be, and the
+    /// readings the screening questioned (confirmed or not).
+    pub remarks: Vec<String>,
 }
 
 /// The whole report, every figure already formatted for print.
@@ -160,6 +163,8 @@ pub struct ReportDoc {
     pub work_heading: String,
     /// Notes printed under the fleet table (units of measure, what "trend" means).
     pub notes: Vec<String>,
+    /// Readings questioned and not confirmed, one line each (unit, time, field, reason).
+    pub questioned: Vec<String>,
     pub units: Vec<UnitSection>,
     /// The short safety cautions printed at the foot of every page.
     pub cautions: Vec<String>,

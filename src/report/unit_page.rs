@@ -46,6 +46,9 @@ pub fn draw(l: &mut Layout, u: &UnitSection) {
         &u.summary,
         size::BODY,
     );
+    for r in &u.remarks {
+        l.paragraph(Face::Regular, size::SMALL, DARK, 0.0, r);
+    }
     l.gap(3.0);
 
     let mut facts = u.identity.clone();

@@ -311,6 +311,21 @@ impl Store {
 }
 
 impl Store {
+    /// The units with a check (or, with `samples`, a sample) whose row id is in `lo..=hi`:
+    /// the units an import wrote to.
+    pub fn units_with_rows(&self, samples: bool, lo: Id, hi: Id) -> Result<Vec<Id>, StoreError> {
+        let table = if samples { "samples" } else { "checks" };
+        self.query(
+            &format!(
+                "SELECT DISTINCT unit_id FROM {table} WHERE id BETWEEN ?1 AND ?2 ORDER BY unit_id"
+            ),
+            params![lo, hi],
+            |r: &Row<'_>| r.get::<Id>(0),
+        )
+    }
+}
+
+impl Store {
     /// Number of checks and samples stored per unit (units with neither are absent).
     pub fn reading_counts(&self) -> Result<HashMap<Id, (u64, u64)>, StoreError> {
         let mut out: HashMap<Id, (u64, u64)> = HashMap::new();
