@@ -133,43 +133,43 @@ pub fn findings_table(findings: &[Finding], with_unit: bool) -> TableSpec {
             vec![0.9, 0.7, 2.3, 1.1, 0.75, 2.4, 1.1],
         )
     } else {
+        // A unit page: the figure that raised the flag leads its sentence, and "since" goes
+        // under the state, so a unit with several flags still keeps to its page.
         (
-            vec![
-                "State",
-                "What drifted",
-                "Since",
-                "Usual next step",
-                "Acknowledged",
-            ],
-            vec![0.7, 3.0, 0.75, 3.0, 1.2],
+            vec!["State, since", "What drifted", "Usual next step", "Seen"],
+            vec![0.95, 4.1, 3.3, 0.7],
         )
     };
     let rows: Vec<Vec<Cell>> = findings
         .iter()
         .map(|f| {
-            // On a unit page the figure that raised the flag leads its sentence; on the fleet
-            // page it has a column of its own.
-            let what = if with_unit || f.amount.is_empty() {
-                f.what.clone()
-            } else {
-                format!("{} — {}", f.amount, f.what)
-            };
-            let mut row = vec![
-                Cell::marked(f.state.mark, f.state.word.clone()),
-                Cell::plain(what),
-            ];
-            if with_unit {
-                row.insert(0, Cell::bold(f.unit_tag.clone()));
-                row.push(Cell::plain(f.amount.clone()));
-            }
-            row.push(Cell::plain(f.since.clone()));
-            row.push(Cell::plain(f.next_step.clone()));
-            row.push(Cell::plain(
+            let seen = Cell::plain(
                 f.acknowledged
                     .clone()
                     .unwrap_or_else(|| "not yet".to_string()),
-            ));
-            row
+            );
+            if !with_unit {
+                let what = if f.amount.is_empty() {
+                    f.what.clone()
+                } else {
+                    format!("{} — {}", f.amount, f.what)
+                };
+                return vec![
+                    Cell::marked(f.state.mark, format!("{} {}", f.state.word, f.since)),
+                    Cell::plain(what),
+                    Cell::plain(f.next_step.clone()),
+                    seen,
+                ];
+            }
+            vec![
+                Cell::bold(f.unit_tag.clone()),
+                Cell::marked(f.state.mark, f.state.word.clone()),
+                Cell::plain(f.what.clone()),
+                Cell::plain(f.amount.clone()),
+                Cell::plain(f.since.clone()),
+                Cell::plain(f.next_step.clone()),
+                seen,
+            ]
         })
         .collect();
     (

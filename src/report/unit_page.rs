@@ -11,7 +11,7 @@ use super::UnitSection;
 
 /// Chart heights in points: what they shrink to before the page is let to run over, and
 /// what they grow to at most.
-const CHART_MIN_H: f32 = 70.0;
+const CHART_MIN_H: f32 = 60.0;
 const CHART_MAX_H: f32 = 124.0;
 /// Chart height when the page has to continue anyway.
 const CHART_SPILL_H: f32 = 110.0;
