@@ -42,8 +42,9 @@ pub struct DriftPoint {
     /// Consecutive checks signalling, this one included (0 when it does not signal).
     pub run: usize,
     /// Whether the EWMA has moved from the baseline by at least the watch limit of the
-    /// indicator's own flag (lost flow, case-drain rise, heat-rise drift): a shift that is
-    /// both real and large enough to matter, which a statistical flag needs to reach act.
+    /// indicator's own flag (lost flow, case-drain rise, heat-rise drift) and two baseline
+    /// spreads: a shift that is both real and large enough to matter, which a statistical
+    /// flag needs to reach act.
     pub material: bool,
 }
 
@@ -470,14 +471,13 @@ pub fn compute(
         .watch
         .unwrap_or(1.3)
         - 1.0;
+    let fit_judged = fit.filter(|f| 2.0 * f.conductance_se <= leak_margin * f.conductance);
     let leak_resolved = match baseline.get(BaselineIndicator::LeakConductance) {
         Some(b) if matches!(b.source, BaselineSource::Manual { .. }) => Some(true),
         // The fitted conductance is judged where it is well determined: two of its standard
         // errors within the watch margin (1.3× → 0.15 of G), so its own error cannot raise a
         // flag.
-        Some(_) if fit.is_some_and(|f| 2.0 * f.conductance_se <= leak_margin * f.conductance) => {
-            Some(true)
-        }
+        Some(_) if fit_judged.is_some() => Some(true),
         Some(_) => {
             let flow_base = baseline
                 .get(BaselineIndicator::CorrectedFlow)
@@ -714,16 +714,19 @@ fn run_detectors(
             };
             let signal = (beyond || c.signal == Some(bad)) && reading_bad;
             run = if signal { run + 1 } else { 0 };
+            // …and by at least two of the baseline's own spreads, so that a unit whose
+            // readings scatter widely (a heat rise that follows its jobs) needs a shift beyond
+            // its own scatter.
             let material = match (b.indicator, material_at) {
                 (_, None) => false,
-                (BaselineIndicator::HeatRise, Some(w)) => z - b.value >= w,
+                (BaselineIndicator::HeatRise, Some(w)) => z - b.value >= w.max(2.0 * sigma),
                 (_, Some(w)) if b.value.abs() > 0.0 => {
                     let shift_pct = if falling {
                         (b.value - z) / b.value * 100.0
                     } else {
                         (z - b.value) / b.value * 100.0
                     };
-                    shift_pct >= w
+                    shift_pct >= w.max(2.0 * sigma / b.value.abs() * 100.0)
                 }
                 _ => false,
             };
