@@ -46,6 +46,15 @@ $unit,2020-02-10,46.3,900,2400,40,150,LAB-0202
 $unit,2020-02-17,46.1,1800,420,31,-5,LAB-0203
 CSV
 
+# A walk-round file with the oil temperature of the worst unit typed with its decimal point
+# slipped, a day after its last check: imported, kept and questioned, so the unit page shows
+# the mark and the Confirm action.
+last="$("$bin" --db "$db" export checks | grep "^$unit," | tail -n1)"
+slipped="$(echo "$last" | awk -F, '{ cmd = "date -u -d \"" $2 " + 1 day\" +%Y-%m-%dT%H:%M:%SZ"; cmd | getline t; close(cmd);
+    printf "%s,%s,%s,%s,%s,%s,screenshots\n", $1, t, $3 / 10, $4, $5, $6 }')"
+printf 'unit_tag,taken_at,reservoir_temp_c,ambient_temp_c,pressure_bar,stroke_time_s,by\n%s\n' "$slipped" >"$work/slipped.csv"
+"$bin" --db "$db" import checks "$work/slipped.csv" >&2
+
 rm -f "$out"/*.ppm "$out"/*.png
 SLINT_BACKEND=winit-software SUMPBOOK_SCREENSHOTS="$out" SUMPBOOK_SCREENSHOT_IMPORT="$work/lab-results.csv" \
     xvfb-run -a -s "-screen 0 1280x800x24" "$bin" --db "$db" 2> >(grep -v "xdg\|/run/user" >&2 || true)

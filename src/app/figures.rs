@@ -163,6 +163,7 @@ pub fn flag_figure(f: &Flag, sys: UnitSystem) -> String {
     if let Some(fig) = f.figure.as_ref().filter(|g| g.value.is_finite()) {
         let show = |v: f64| match fig.dim {
             Dim::TempDiff if f.kind == FlagKind::HeatRise => temp_diff(v, sys, true),
+            Dim::Days => format!("{v:.0} day{}", if v.round() == 1.0 { "" } else { "s" }),
             Dim::RangeNumber => format!("{v:+.0} range numbers"),
             d => text(d, v, sys),
         };

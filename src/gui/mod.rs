@@ -365,6 +365,13 @@ fn screenshot_steps(import_file: Option<PathBuf>) -> Vec<(&'static str, Step)> {
             }),
         ),
         (
+            "unit-history-questioned",
+            Box::new(move |ctx: &Rc<Ctx>| {
+                tab(2)(ctx);
+                unit::select_questioned_row(ctx);
+            }),
+        ),
+        (
             "walk-round",
             Box::new(|ctx: &Rc<Ctx>| {
                 show(ctx, Screen::Walk);

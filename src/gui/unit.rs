@@ -1206,3 +1206,26 @@ pub(super) fn select_first_row(ctx: &Rc<Ctx>) {
     }
     select_row(ctx, 0);
 }
+
+/// For the screenshots: the newest questioned check of the unit shown chosen, with its
+/// reason and the Confirm action (the newest check when none is questioned).
+pub(super) fn select_questioned_row(ctx: &Rc<Ctx>) {
+    let row = {
+        let st = ctx.unit.borrow();
+        st.view.as_ref().and_then(|v| {
+            let q = v
+                .status
+                .health
+                .suspects
+                .iter()
+                .rev()
+                .find(|q| q.record == Record::Check && q.confirmed.is_none())?;
+            st.row_ids.iter().position(|id| *id == q.id)
+        })
+    };
+    let row = row.unwrap_or(0) as i32;
+    if let Some(w) = ctx.win() {
+        w.global::<UnitAdapter>().set_current_row(row);
+    }
+    select_row(ctx, row);
+}
