@@ -20,12 +20,22 @@ struct Fixture {
     app: App,
 }
 
+/// The instant the tests judge a shop at: noon a week after the demo's last walk-round, so the
+/// board looks the same whatever day the tests run (work falls due as the calendar moves on).
+fn demo_now() -> Option<chrono::DateTime<chrono::Utc>> {
+    sumpbook::exchange::demo::end_date()
+        .succ_opt()
+        .and_then(|d| d.checked_add_days(chrono::Days::new(6)))
+        .and_then(|d| d.and_hms_opt(12, 0, 0))
+        .map(|t| t.and_utc())
+}
+
 fn open_demo() -> Fixture {
     i_slint_backend_testing::init_no_event_loop();
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("shop.sqlite");
     Shop::create_demo(&path).unwrap();
-    let app = App::open(&path).unwrap();
+    let app = App::open_at(&path, demo_now()).unwrap();
     // Tall enough that every list row of the demo is laid out (lists create visible rows only).
     app.window()
         .window()
@@ -417,7 +427,7 @@ fn the_fleet_board_lists_the_demo_units_worst_first() {
     // The demo plants faults (pump wear, water ingress, ...): some units are at act, some steady.
     assert!(ranks.contains(&3) && ranks.contains(&0), "{rows:?}");
     // The board shows the one evaluation of the application layer, in its order.
-    let fleet = sumpbook::app::status::fleet_status(&s, None).unwrap();
+    let fleet = sumpbook::app::status::fleet_status(&s, demo_now()).unwrap();
     let tags: Vec<String> = rows
         .iter()
         .map(|l| l.split(',').next().unwrap().to_string())
@@ -468,7 +478,7 @@ fn the_reports_screen_writes_the_chosen_units_and_opens_the_pdf() {
     f.app.show(Screen::Reports);
     // Every unit is listed, worst first as on the board, and starts ticked.
     let s = shop(&f.path);
-    let fleet = sumpbook::app::status::fleet_status(&s, None).unwrap();
+    let fleet = sumpbook::app::status::fleet_status(&s, demo_now()).unwrap();
     let listed: Vec<String> = labels_starting(&f.app, "include ")
         .into_iter()
         .map(|l| l.trim_start_matches("include ").to_string())
@@ -479,7 +489,7 @@ fn the_reports_screen_writes_the_chosen_units_and_opens_the_pdf() {
     let to = with_role(&f.app, "Report to", AccessibleRole::TextInput)
         .accessible_value()
         .unwrap();
-    assert_eq!(to.as_str(), chrono::Utc::now().date_naive().to_string());
+    assert_eq!(to.as_str(), demo_now().unwrap().date_naive().to_string());
     let safety = by_label(&f.app, "safety").accessible_value().unwrap();
     assert!(safety.contains("penetrate skin"), "{safety}");
 
@@ -560,7 +570,7 @@ fn the_window_comes_up_before_the_fleet_is_evaluated_and_fills_after() {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("shop.sqlite");
     Shop::create_demo(&path).unwrap();
-    let app = App::open_loading(&path).unwrap();
+    let app = App::open_loading_at(&path, demo_now()).unwrap();
     let fleet = app.window().global::<sumpbook::gui::ui::FleetAdapter>();
     // At once: the shop's name, and a board saying it is being read.
     assert_eq!(
@@ -631,7 +641,7 @@ fn an_existing_report_file_is_replaced_only_when_written_to_again_and_the_defaul
     let f = open_demo();
     f.app.set_file_opener(|_| Ok(()));
     // The proposed file is today's report under a name nothing is at yet.
-    let today = chrono::Utc::now().date_naive();
+    let today = demo_now().unwrap().date_naive();
     f.app.show(Screen::Reports);
     let a = f.app.window().global::<sumpbook::gui::ui::ReportAdapter>();
     let proposed = std::path::PathBuf::from(a.get_out().as_str());
@@ -671,12 +681,13 @@ fn a_unit_without_readings_since_its_fluid_change_shows_not_judged_yet_and_what_
     let path = dir.path().join("shop.sqlite");
     let tag = {
         let s = Shop::create_demo(&path).unwrap();
-        // A fluid change an hour ago on the last unit of the route: a new era, no reading yet.
+        // A fluid change an hour before the board is judged, on the last unit of the route: a
+        // new era, no reading yet.
         let stops = sumpbook::app::entry::route(&s).unwrap();
         let tag = stops.last().unwrap().tag.clone();
         let input = sumpbook::app::work::EventInput {
             kind: sumpbook::model::EventKind::FluidChange,
-            at: Some(chrono::Utc::now() - chrono::Duration::hours(1)),
+            at: demo_now().map(|t| t - chrono::Duration::hours(1)),
             volume: None,
             fluid: None,
             by: "R. Engineer".into(),
@@ -685,7 +696,7 @@ fn a_unit_without_readings_since_its_fluid_change_shows_not_judged_yet_and_what_
         sumpbook::app::work::log_event(&s, &tag, &input).unwrap();
         tag
     };
-    let app = App::open(&path).unwrap();
+    let app = App::open_at(&path, demo_now()).unwrap();
     app.window()
         .window()
         .set_size(slint::LogicalSize::new(1280.0, 1400.0));

@@ -103,7 +103,7 @@ pub(super) fn current(ctx: &Rc<Ctx>) -> Result<Rc<FleetStatus>, AppError> {
             return Ok(f.clone());
         }
     }
-    let fleet = Rc::new(status::fleet_status(&ctx.shop, None)?);
+    let fleet = Rc::new(status::fleet_status(&ctx.shop, Some(now))?);
     *ctx.fleet.borrow_mut() = Some((fleet.at, stamp, fleet.clone()));
     Ok(fleet)
 }

@@ -100,13 +100,16 @@ pub(crate) struct Ctx {
     pub inline_jobs: Cell<bool>,
     /// Whether the start-up evaluation of `App::open_loading` is in.
     pub loaded: Cell<bool>,
+    /// The instant the app judges the shop at: `None` is the wall clock; a fixed instant shows
+    /// the shop as it stood then (`App::open_at`), so a test sees the same board on any day.
+    pub clock: Option<DateTime<Utc>>,
 }
 
 pub(crate) type FleetCache = (DateTime<Utc>, (i64, u64), Rc<FleetStatus>);
 
 impl Ctx {
     pub fn now(&self) -> DateTime<Utc> {
-        Utc::now()
+        self.clock.unwrap_or_else(Utc::now)
     }
 
     pub fn win(&self) -> Option<AppWindow> {
@@ -128,7 +131,13 @@ impl App {
     /// Builds the window on the shop at `db` (which must already be a shop file), every
     /// screen filled before it returns.
     pub fn open(db: &Path) -> Result<App, AppError> {
-        let app = App::build(db)?;
+        App::open_at(db, None)
+    }
+
+    /// As [`App::open`], judging the shop at `at` instead of the wall clock when given: the
+    /// board, unit pages and due list show the shop as it stood then.
+    pub fn open_at(db: &Path, at: Option<DateTime<Utc>>) -> Result<App, AppError> {
+        let app = App::build(db, at)?;
         refresh_all(&app.ctx);
         Ok(app)
     }
@@ -137,7 +146,12 @@ impl App {
     /// fleet on a worker: on a large shop the window is up at once and the screens fill
     /// when the evaluation is in (a second or so for 1,000 units).
     pub fn open_loading(db: &Path) -> Result<App, AppError> {
-        let app = App::build(db)?;
+        App::open_loading_at(db, None)
+    }
+
+    /// As [`App::open_loading`], judging the shop at `at` when given (see [`App::open_at`]).
+    pub fn open_loading_at(db: &Path, at: Option<DateTime<Utc>>) -> Result<App, AppError> {
+        let app = App::build(db, at)?;
         let ctx = &app.ctx;
         refresh_nav(ctx);
         app.window
@@ -154,7 +168,7 @@ impl App {
             view,
             Box::new(move |_, _| {
                 let shop = Shop::open(&db)?;
-                crate::app::status::fleet_status(&shop, None)
+                crate::app::status::fleet_status(&shop, at)
             }),
             move |ctx, result| {
                 if let Ok(fleet) = result {
@@ -168,7 +182,7 @@ impl App {
         Ok(app)
     }
 
-    fn build(db: &Path) -> Result<App, AppError> {
+    fn build(db: &Path, clock: Option<DateTime<Utc>>) -> Result<App, AppError> {
         charts::register_fonts();
         let shop = Shop::open(db)?;
         let system = entry::shop_settings(&shop)?.unit_system;
@@ -189,6 +203,7 @@ impl App {
             fleet: RefCell::new(None),
             inline_jobs: Cell::new(false),
             loaded: Cell::new(false),
+            clock,
         });
         let app = App { window, ctx };
         app.install();
