@@ -676,6 +676,7 @@ fn an_existing_report_file_is_replaced_only_when_written_to_again_and_the_defaul
 
 #[test]
 fn a_unit_without_readings_since_its_fluid_change_shows_not_judged_yet_and_what_is_missing() {
+    use chrono::Timelike;
     i_slint_backend_testing::init_no_event_loop();
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("shop.sqlite");
@@ -694,6 +695,19 @@ fn a_unit_without_readings_since_its_fluid_change_shows_not_judged_yet_and_what_
             note: String::new(),
         };
         sumpbook::app::work::log_event(&s, &tag, &input).unwrap();
+        // And its first walk-round check of the new era, half an hour later (so no check is
+        // overdue whatever the day the test runs): one check is no baseline.
+        let unit = s.store().unit_by_tag(&tag).unwrap().unwrap();
+        let mut c = s
+            .store()
+            .checks_for_unit(unit.id, None)
+            .unwrap()
+            .pop()
+            .unwrap();
+        c.taken_at = (chrono::Utc::now() - chrono::Duration::minutes(30))
+            .with_nanosecond(0)
+            .unwrap();
+        s.store().insert_check(&c).unwrap();
         tag
     };
     let app = App::open_at(&path, demo_now()).unwrap();
