@@ -314,12 +314,18 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
     // Checks against the era baseline (median of the last 3).
     push(
         FlagKind::LostFlow,
+        // Lost flow at the reference conditions, or a sudden loss of the timed flow over two
+        // checks (a step such as a relief valve starting to pass oil, which heats the oil
+        // and so hides part of itself in the correction), whichever is larger.
         graded_levels(
             &c.checks,
             limits,
             LimitKey::LostFlowPct,
-            |p| p.lost_flow_pct,
-            |p| p.lost_flow_median_pct,
+            |p| p.lost_flow_pct.or(p.sudden_loss_pct),
+            |p| match (p.lost_flow_median_pct, p.sudden_loss_pct) {
+                (Some(a), Some(b)) => Some(a.max(b)),
+                (a, b) => a.or(b),
+            },
         ),
         &|g| {
             // At the reference conditions (the baseline's oil viscosity and pressure) where the

@@ -24,6 +24,10 @@ use crate::units::{Flow, Pressure, Temperature, Viscosity};
 
 /// How many checks the median of a check indicator is taken over (design §4: lost flow).
 pub const MEDIAN_OF: usize = 3;
+/// A sudden loss compares two checks with the median of up to this many checks before them,
+/// and needs at least `SUDDEN_BEFORE_MIN` of those (common practice, no published source).
+pub const SUDDEN_BEFORE: usize = 6;
+pub const SUDDEN_BEFORE_MIN: usize = 4;
 /// How many points a trend line is fitted to (design §3).
 pub const TREND_POINTS: usize = 12;
 
@@ -82,6 +86,11 @@ pub struct CheckPoint {
     pub case_drain_corrected: Option<f64>,
     pub case_drain_rise_pct: Option<f64>,
     pub case_drain_rise_median_pct: Option<f64>,
+    /// A sudden loss of flow, %: how far the better of this check and the one before fell
+    /// below the median of the up to 6 checks before them (corrected to the reference
+    /// conditions where the leakage is resolved, else as timed): the seasons do not move a
+    /// flow that far in two weeks; a relief valve starting to pass oil does.
+    pub sudden_loss_pct: Option<f64>,
     pub filter: Option<FilterState>,
     pub oil_level: Option<OilLevel>,
     pub drift: Vec<DriftPoint>,
@@ -494,6 +503,38 @@ pub fn compute(
         }
         None => None,
     };
+
+    // Sudden loss: two checks in a row well below the weeks just before them — on the flow
+    // corrected to the reference conditions where the leakage is resolved (a hot week moves a
+    // leaky pump's timed flow), as timed where it is not (nor then is its move with the oil).
+    let corrected_sudden = leak_resolved == Some(true);
+    let mut flows: Vec<(DateTime<Utc>, f64)> = Vec::new();
+    for p in points.iter_mut() {
+        let flow = if corrected_sudden {
+            p.corrected_flow
+        } else {
+            p.effective_flow
+        };
+        let Some(q) = flow else { continue };
+        if restarts.iter().any(|r| {
+            r.addresses(BaselineIndicator::EffectiveFlow)
+                && flows.last().is_some_and(|l| r.at > l.0)
+        }) {
+            flows.clear();
+        }
+        flows.push((p.at, q));
+        let n = flows.len();
+        if n >= 2 + SUDDEN_BEFORE_MIN {
+            let before: Vec<f64> = flows[n.saturating_sub(2 + SUDDEN_BEFORE)..n - 2]
+                .iter()
+                .map(|f| f.1)
+                .collect();
+            let better = flows[n - 2].1.max(flows[n - 1].1);
+            if let Some(m) = stats::median(&before).filter(|m| *m > 0.0) {
+                p.sudden_loss_pct = Some((1.0 - better / m) * 100.0);
+            }
+        }
+    }
 
     // The target goes by working pressure: the relief setting, or the highest pressure logged.
     let target = era.map(|_| {

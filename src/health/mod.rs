@@ -745,6 +745,32 @@ mod tests {
     }
 
     #[test]
+    fn a_sudden_loss_of_flow_is_act_at_the_second_check() {
+        // Twelve checks at 4.0 s (the baseline), then a relief valve starts to pass oil: the
+        // stroke takes 5.0 s from one week to the next. Worked by hand: flow falls to 4/5,
+        // 20 % below the median of the checks before, past the 15 % act limit; the first slow
+        // check is held out by the screen (a 25 % step, beyond ×/÷ 1.22) until the second
+        // confirms it, and the second is where the two slow checks make the sudden loss.
+        let mut h = press();
+        for w in 0..12 {
+            h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
+        }
+        h.checks.push(timed(13, 12, 5.0, 45.0, 20.0));
+        let r = eval(&h, &Limits::builtin(), week(12));
+        assert_eq!(state_of(&r, FlagKind::LostFlow), State::Steady);
+        h.checks.push(timed(14, 13, 5.0, 45.0, 20.0));
+        let r = eval(&h, &Limits::builtin(), week(13));
+        assert_eq!(state_of(&r, FlagKind::LostFlow), State::Act);
+        let p = r.checks.last().unwrap();
+        assert!((p.sudden_loss_pct.unwrap() - 20.0).abs() < 1e-9);
+        // One slow check between normal ones is no sudden loss.
+        h.checks.pop();
+        h.checks.push(timed(14, 13, 4.0, 45.0, 20.0));
+        let r = eval(&h, &Limits::builtin(), week(13));
+        assert_eq!(state_of(&r, FlagKind::LostFlow), State::Steady);
+    }
+
+    #[test]
     fn a_cooler_clean_restarts_the_heat_rise_detectors_and_flags() {
         // Heat rise 20 K for 12 checks (the baseline), then a fouling cooler: 32 K for 5
         // checks, then the cooler is cleaned and the heat rise is back at 20 K.
