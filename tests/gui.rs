@@ -814,3 +814,41 @@ fn a_questioned_reading_is_marked_in_the_history_and_confirmed_from_the_unit_pag
         None
     );
 }
+
+#[test]
+fn a_save_made_elsewhere_shows_on_the_board_at_the_next_look() {
+    let f = open_demo();
+    f.app.show(Screen::Fleet);
+    // Nothing saved since the window opened: the look changes nothing.
+    assert!(!f.app.look_for_saves());
+    // Another program (here another connection to the same file) logs a fluid change on the
+    // last unit of the route: a new era with no reading yet, so the board must say so.
+    let tag = {
+        let other = shop(&f.path);
+        let stops = sumpbook::app::entry::route(&other).unwrap();
+        let tag = stops.last().unwrap().tag.clone();
+        let input = sumpbook::app::work::EventInput {
+            kind: sumpbook::model::EventKind::FluidChange,
+            at: demo_now().map(|t| t - chrono::Duration::hours(1)),
+            volume: None,
+            fluid: None,
+            by: "R. Engineer".into(),
+            note: String::new(),
+        };
+        sumpbook::app::work::log_event(&other, &tag, &input).unwrap();
+        tag
+    };
+    let row_of = |app: &App| {
+        labels_starting(app, "")
+            .into_iter()
+            .find(|l| l.starts_with(&format!("{tag}, ")))
+            .expect("the unit is on the board")
+    };
+    let before = row_of(&f.app);
+    assert!(!before.contains("fluid change"), "{before}");
+    assert!(f.app.look_for_saves(), "the other program's save is seen");
+    let after = row_of(&f.app);
+    assert_ne!(before, after, "the board shows the save");
+    // Seen once: the next look finds nothing new.
+    assert!(!f.app.look_for_saves());
+}

@@ -103,6 +103,8 @@ pub(crate) struct Ctx {
     /// The instant the app judges the shop at: `None` is the wall clock; a fixed instant shows
     /// the shop as it stood then (`App::open_at`), so a test sees the same board on any day.
     pub clock: Option<DateTime<Utc>>,
+    /// The shop's change mark when this window last looked (`entry::shop_changed`).
+    pub saves_seen: RefCell<Option<(i64, u64)>>,
 }
 
 pub(crate) type FleetCache = (DateTime<Utc>, (i64, u64), Rc<FleetStatus>);
@@ -121,7 +123,14 @@ impl Ctx {
 pub struct App {
     window: AppWindow,
     ctx: Rc<Ctx>,
+    /// Asks every [`SAVES_LOOK_EVERY`] whether the shop changed (`App::watch_for_saves`).
+    saves_timer: slint::Timer,
 }
+
+/// How often an open window asks whether someone else saved: a change made in another window
+/// or on another PC shows within a few seconds. On a server a look while nothing changed reads
+/// no table (the server announces saves); on a file it reads the file's change stamp.
+pub const SAVES_LOOK_EVERY: std::time::Duration = std::time::Duration::from_secs(2);
 
 fn ui_error(e: slint::PlatformError) -> AppError {
     AppError::Failed(format!("cannot open the window: {e}"))
@@ -139,6 +148,7 @@ impl App {
     pub fn open_at(db: &Path, at: Option<DateTime<Utc>>) -> Result<App, AppError> {
         let app = App::build(db, at)?;
         refresh_all(&app.ctx);
+        app.ctx.loaded.set(true);
         Ok(app)
     }
 
@@ -204,8 +214,15 @@ impl App {
             inline_jobs: Cell::new(false),
             loaded: Cell::new(false),
             clock,
+            saves_seen: RefCell::new(None),
         });
-        let app = App { window, ctx };
+        // What this window shows is as of now: only later saves make it look again.
+        let _ = entry::shop_changed(&ctx.shop, &mut ctx.saves_seen.borrow_mut());
+        let app = App {
+            window,
+            ctx,
+            saves_timer: slint::Timer::default(),
+        };
         app.install();
         Ok(app)
     }
@@ -227,6 +244,27 @@ impl App {
         reports::install(&self.ctx);
         setup::install(&self.ctx);
         about::install(&self.ctx);
+    }
+
+    /// Keeps the screens that only show (the fleet board, the open unit page, the due list)
+    /// up to date with saves made elsewhere: every [`SAVES_LOOK_EVERY`] the window asks the
+    /// application layer whether the shop changed, and refreshes those screens when it did.
+    /// Forms being typed in (walk-round, samples, setup) are left alone, so nothing typed is
+    /// lost; they read the shop afresh when next opened.
+    pub fn watch_for_saves(&self) {
+        let ctx = Rc::downgrade(&self.ctx);
+        self.saves_timer
+            .start(slint::TimerMode::Repeated, SAVES_LOOK_EVERY, move || {
+                if let Some(ctx) = ctx.upgrade() {
+                    look_for_saves(&ctx);
+                }
+            });
+    }
+
+    /// One look for saves made elsewhere (what the timer of [`App::watch_for_saves`] does):
+    /// whether the shop had changed, the showing screens refreshed if so.
+    pub fn look_for_saves(&self) -> bool {
+        look_for_saves(&self.ctx)
     }
 
     /// Runs long work (report writing) on the calling thread, for tests that drive the window
@@ -480,6 +518,24 @@ pub(crate) fn show(ctx: &Rc<Ctx>, screen: Screen) {
 }
 
 /// Refreshes every screen (after the unit system changed, an import, ...).
+/// Refreshes the screens that only show the shop when someone saved since the last look.
+/// A shop that cannot be read just now (a server restarting) is looked at again next time;
+/// the screens keep what they show and the next action says what is wrong.
+fn look_for_saves(ctx: &Rc<Ctx>) -> bool {
+    if !ctx.loaded.get() {
+        return false;
+    }
+    let changed = entry::shop_changed(&ctx.shop, &mut ctx.saves_seen.borrow_mut());
+    if !matches!(changed, Ok(true)) {
+        return false;
+    }
+    refresh_nav(ctx);
+    fleet::refresh(ctx);
+    unit::refresh(ctx);
+    work::refresh(ctx);
+    true
+}
+
 pub(crate) fn refresh_all(ctx: &Rc<Ctx>) {
     refresh_nav(ctx);
     fleet::refresh(ctx);
@@ -690,6 +746,7 @@ pub fn run(db: Option<&Path>) -> Result<(), AppError> {
         );
     }
     let app = App::open_loading(&path)?;
+    app.watch_for_saves();
     if let Some(when) = std::env::var_os(FIRST_FRAME_EXIT) {
         app.exit_after_first_frame(when == "filled");
     }
