@@ -137,7 +137,7 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
         .unwrap();
     let last = before.last().unwrap().clone();
     f.app.show(Screen::Walk);
-    // The walk-round's caution is on the screen (design §11).
+    // The walk-round's caution is on the screen (docs/engineering.md, "Safety").
     let caution = by_label(&f.app, "safety").accessible_value().unwrap();
     assert!(
         caution.contains("penetrate skin") && caution.contains("walk-round"),
@@ -586,7 +586,8 @@ fn the_window_comes_up_before_the_fleet_is_evaluated_and_fills_after() {
 #[test]
 fn a_long_history_table_makes_only_the_rows_on_screen() {
     // One unit with 5,000 weekly checks: the table holds them all, but only the rows a screen
-    // shows are made (design §9: tables scroll long histories without loading them all).
+    // shows are made (docs/engineering.md, "Performance targets": tables scroll long histories
+    // without loading them all).
     i_slint_backend_testing::init_no_event_loop();
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("long.sqlite");

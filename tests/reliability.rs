@@ -1,4 +1,5 @@
-//! Reliability (design §10): nothing entered is ever lost or silently changed.
+//! Reliability (docs/engineering.md, "Reliability targets"): nothing entered is ever lost or
+//! silently changed.
 //!
 //! Drives the built `sumpbook` binary on real shop files in temporary directories:
 //! - the corpus of refused input in `tests/bad_input/` (files listed in `expected.tsv`, bad

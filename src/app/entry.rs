@@ -285,9 +285,10 @@ fn history_of(store: &Store, unit_id: Id) -> Result<UnitHistory, AppError> {
 }
 
 // ---------------------------------------------------------------------------------------------
-// Bounds (design §10) and the unusual-value thresholds
+// Bounds (docs/engineering.md, "Physical bounds of readings") and the unusual-value thresholds
 
-/// Lowest and highest oil or air temperature accepted, °C (design §10).
+/// Lowest and highest oil or air temperature accepted, °C (docs/engineering.md, "Physical bounds
+/// of readings").
 pub const TEMP_MIN_C: f64 = crate::health::limits::TEMP_RANGE_C.0;
 pub const TEMP_MAX_C: f64 = crate::health::limits::TEMP_RANGE_C.1;
 /// Highest working pressure accepted, bar (the store's bound; beyond any press circuit).
@@ -537,7 +538,8 @@ pub struct CheckReview {
     pub problems: Vec<Problem>,
 }
 
-/// Judges a check of `unit` as typed, against design §10's bounds and the unit's own record
+/// Judges a check of `unit` as typed, against the bounds of docs/engineering.md ("Physical bounds
+/// of readings") and the unit's own record
 /// (`earlier` checks, oldest first). `base` gives the id, time and author of an edited check.
 fn judge_check(
     unit: &Unit,

@@ -693,7 +693,7 @@ fn opt(v: Option<String>) -> String {
 
 /// The rows of a history table, newest first, made when the table asks for them: a table
 /// instantiates the rows on screen only, so a unit with 100,000 checks costs a screenful of
-/// rows, not all of them (design §9).
+/// rows, not all of them (docs/engineering.md, "Performance targets").
 pub struct HistoryRows {
     count: usize,
     make: RowMaker,
