@@ -540,10 +540,11 @@ pub struct CheckReview {
 
 /// Judges a check of `unit` as typed, against the bounds of docs/engineering.md ("Physical bounds
 /// of readings") and the unit's own record
-/// (`earlier` checks, oldest first). `base` gives the id, time and author of an edited check.
+/// (`earlier` checks, oldest first, and its maintenance `events`). `base` gives the id, time and author of an edited check.
 fn judge_check(
     unit: &Unit,
     earlier: &[Check],
+    events: &[crate::model::Event],
     entered: &Entered,
     base: Check,
     system: UnitSystem,
@@ -727,7 +728,7 @@ fn judge_check(
         .filter(|c| c.id != check.id)
         .cloned()
         .collect();
-    for sus in health::screen::check(unit, &others, &check, system) {
+    for sus in health::screen::check(unit, &others, events, &check, system) {
         let key = sus.field.key();
         if !p.iter().any(|x| x.field == key) {
             p.push(Problem::unusual(key, sus.reason));
@@ -753,6 +754,7 @@ pub fn review_check(
     let system = settings(store)?.unit_system;
     let unit = unit_of(store, unit_id)?;
     let earlier = store.checks_for_unit(unit_id, None).map_err(store_error)?;
+    let events = store.events_for_unit(unit_id, None).map_err(store_error)?;
     let mut pre = Vec::new();
     let at = read_when(taken_at, now).unwrap_or_else(|e| {
         pre.push(Problem::refused("taken_at", e));
@@ -791,7 +793,7 @@ pub fn review_check(
         note: String::new(),
         confirmed: None,
     };
-    let mut review = judge_check(&unit, &earlier, entered, base, system);
+    let mut review = judge_check(&unit, &earlier, &events, entered, base, system);
     if pre.iter().any(|p| p.verdict == Verdict::Refused) {
         review.check = None;
     }
@@ -1535,7 +1537,10 @@ pub fn edit_reading(
             let earlier = store
                 .checks_for_unit(c.unit_id, None)
                 .map_err(store_error)?;
-            let review = judge_check(&unit, &earlier, entered, c, system);
+            let events = store
+                .events_for_unit(c.unit_id, None)
+                .map_err(store_error)?;
+            let review = judge_check(&unit, &earlier, &events, entered, c, system);
             let refused: Vec<Problem> = review
                 .problems
                 .iter()

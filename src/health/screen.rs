@@ -487,9 +487,16 @@ pub fn screen_history(
 }
 
 /// The suspicions of a new check `c` of `unit`, against the unit's stored checks `earlier`
-/// (those at or after `c` are ignored), with no maintenance known. Prefer [`check_in`].
-pub fn check(unit: &Unit, earlier: &[Check], c: &Check, sys: UnitSystem) -> Vec<Suspicion> {
-    screen_new(unit, earlier, &[], c, sys)
+/// and maintenance `events` (those at or after `c` are ignored): what the engine will question,
+/// for a form that has the records at hand rather than a whole [`UnitHistory`].
+pub fn check(
+    unit: &Unit,
+    earlier: &[Check],
+    events: &[Event],
+    c: &Check,
+    sys: UnitSystem,
+) -> Vec<Suspicion> {
+    screen_new(unit, earlier, events, c, sys)
 }
 
 /// The suspicions of a new check `c` against the unit's stored history (its checks and
@@ -780,7 +787,7 @@ mod tests {
         for (bar, suspect) in [(110.0, false), (110.1, true)] {
             let mut c = timed(2, 1, 4.0, 45.0, 20.0);
             c.pressure = Some(Pressure::from_bar(bar));
-            let got = check(&h.unit, &[], &c, UnitSystem::Metric);
+            let got = check(&h.unit, &[], &[], &c, UnitSystem::Metric);
             assert_eq!(
                 got.iter().any(|s| s.field == Field::Pressure),
                 suspect,
@@ -790,11 +797,11 @@ mod tests {
         // A stroke three times the usual, with only two checks before it.
         let earlier = vec![timed(1, 0, 4.0, 45.0, 20.0), timed(2, 1, 4.1, 45.0, 20.0)];
         let slow = timed(3, 2, 12.2, 45.0, 20.0);
-        let got = check(&h.unit, &earlier, &slow, UnitSystem::Metric);
+        let got = check(&h.unit, &earlier, &[], &slow, UnitSystem::Metric);
         assert_eq!(got.len(), 1);
         assert_eq!(got[0].field, Field::StrokeTime);
         let ok = timed(3, 2, 11.9, 45.0, 20.0);
-        let got = check(&h.unit, &earlier, &ok, UnitSystem::Metric);
+        let got = check(&h.unit, &earlier, &[], &ok, UnitSystem::Metric);
         assert!(got.is_empty(), "{got:?}");
     }
 
