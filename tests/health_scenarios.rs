@@ -883,7 +883,8 @@ fn a_baseline_entered_by_hand_replaces_the_computed_one_and_says_who() {
     assert!(
         matches!(&b.source, sumpbook::health::BaselineSource::Manual { by, .. } if by == "E. Engineer")
     );
-    // Lost flow = 1 − Q/Q_baseline (design §3 definition), worked by hand: 1 − 60/75 = 20 %.
+    // Lost flow = 1 − Q/Q_baseline (a definition in docs/engineering.md, "Computations"), worked
+    // by hand: 1 − 60/75 = 20 %.
     let lost = s.health.indicators.lost_flow_pct.unwrap();
     assert!((lost - 20.0).abs() < 0.05, "lost flow {lost}");
     // Bad figures are refused with what was expected.

@@ -1,4 +1,5 @@
-//! Flags: each indicator judged against its limits (design §4) check by check, so that a flag
+//! Flags: each indicator judged against its limits (docs/engineering.md, "Default limits") check
+//! by check, so that a flag
 //! knows its state, value, limit, the date it began and a sentence a technician can act on;
 //! and acknowledgements laid over them.
 //!

@@ -22,13 +22,14 @@ use crate::physics::stats;
 use crate::physics::viscosity::{self as visc, Walther};
 use crate::units::{Flow, Pressure, Temperature, Viscosity};
 
-/// How many checks the median of a check indicator is taken over (design §4: lost flow).
+/// How many checks the median of a check indicator is taken over (lost flow in
+/// docs/engineering.md, "Default limits").
 pub const MEDIAN_OF: usize = 3;
 /// A sudden loss compares two checks with the median of up to this many checks before them,
 /// and needs at least `SUDDEN_BEFORE_MIN` of those (common practice, no published source).
 pub const SUDDEN_BEFORE: usize = 6;
 pub const SUDDEN_BEFORE_MIN: usize = 4;
-/// How many points a trend line is fitted to (design §3).
+/// How many points a trend line is fitted to (docs/engineering.md, "Computations").
 pub const TREND_POINTS: usize = 12;
 
 /// One detector's reading at one check.

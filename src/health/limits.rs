@@ -114,7 +114,8 @@ limit_keys! {
         "consecutive checks with an EWMA or CUSUM signal (2 = confirmed by the next check)";
     OverdueDays = "overdue_days", Threshold(AtLeast), Some(1.0), Some(14.0), "days",
         "days past the due date of planned work";
-    // Intervals (design §5); common practice for mineral hydraulic oil in a shop that samples
+    // Intervals (docs/engineering.md, "Work planning"); common practice for mineral hydraulic oil
+    // in a shop that samples
     // its oil and changes it on condition: the calendar and hour limits are the backstop, not
     // the rule.
     CheckIntervalDays = "check_interval_days", Value, None, Some(7.0), "days",
@@ -151,7 +152,8 @@ limit_keys! {
     CusumH = "cusum_h", Value, None, Some(5.0), "σ",
         "CUSUM decision interval h";
     // A baseline of 4 hand-timed strokes can by chance have a tiny spread; a stopwatch is good
-    // to about 5 % on a 4 s stroke (design §1), so the spread used by the detectors is never
+    // to about 5 % on a 4 s stroke (docs/engineering.md, "Readings"), so the spread used by the
+    // detectors is never
     // taken below these floors. Heat rise moves by a few kelvin with load and season (a warmer
     // hall, thinner oil leaking more), which the 4 checks of a winter baseline cannot show.
     MinSpreadPct = "min_spread_pct", Value, None, Some(2.5), "%",

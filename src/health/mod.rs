@@ -297,7 +297,8 @@ mod tests {
     #[test]
     fn lost_flow_at_below_and_above_its_limits() {
         // Lost flow = 1 − Q/Q_b = 1 − t_b/t (same stroke volume), so a stroke time of
-        // 4.0/(1 − L) s loses L of the flow (worked by hand). Limits ≥ 8 % / ≥ 15 % (design §4).
+        // 4.0/(1 − L) s loses L of the flow (worked by hand). Limits ≥ 8 % / ≥ 15 %
+        // (docs/engineering.md, "Default limits").
         let l = Limits::builtin();
         for (lost, want) in [
             (7.99, State::Steady),
@@ -333,7 +334,8 @@ mod tests {
         let q = 12.0 * std::f64::consts::PI;
         assert!((r.indicators.effective_flow_lpm.unwrap() - q).abs() < 1e-9);
         assert!((r.indicators.vol_eff_pct.unwrap() - q / 40.0 * 100.0).abs() < 1e-9);
-        // Hydraulic power kW = L/min · bar / 600 (design §3) = 37.699 · 100 / 600 = 6.283 kW.
+        // Hydraulic power kW = L/min · bar / 600 (docs/engineering.md, "Computations") = 37.699 ·
+        // 100 / 600 = 6.283 kW.
         assert!((r.indicators.hydraulic_power_kw.unwrap() - q * 100.0 / 600.0).abs() < 1e-9);
         // Nothing flagged, but no sample yet: the fluid is not judged, so neither is the unit.
         assert_eq!(r.state, State::NotJudged);
@@ -426,7 +428,8 @@ mod tests {
 
     #[test]
     fn leak_conductance_at_below_and_above_its_limits() {
-        // G/G_b = (40 − Q)/(40 − 36) at equal ν and p (worked by hand); ≥ 1.3 / ≥ 1.6 (design §4).
+        // G/G_b = (40 − Q)/(40 − 36) at equal ν and p (worked by hand); ≥ 1.3 / ≥ 1.6
+        // (docs/engineering.md, "Default limits").
         let l = Limits::builtin();
         for (ratio, want) in [
             (1.29, State::Steady),
@@ -450,7 +453,8 @@ mod tests {
 
     #[test]
     fn case_drain_at_below_and_above_its_limits() {
-        // Baseline 2.0 L/min; rise = q/2 − 1; ≥ +50 % / ≥ +100 % (design §4).
+        // Baseline 2.0 L/min; rise = q/2 − 1; ≥ +50 % / ≥ +100 % (docs/engineering.md, "Default
+        // limits").
         for (q, want) in [
             (2.99, State::Steady),
             (3.0, State::Watch),
@@ -477,7 +481,8 @@ mod tests {
 
     #[test]
     fn heat_rise_drift_at_below_and_above_its_limits() {
-        // Baseline 45 − 20 = 25 K; drift = ΔT − 25; ≥ +5 K / ≥ +10 K (design §4).
+        // Baseline 45 − 20 = 25 K; drift = ΔT − 25; ≥ +5 K / ≥ +10 K (docs/engineering.md,
+        // "Default limits").
         for (d, want) in [
             (4.99, State::Steady),
             (5.0, State::Watch),
@@ -498,7 +503,8 @@ mod tests {
 
     #[test]
     fn reservoir_temperature_at_below_and_above_its_limits() {
-        // > 60 °C watch, > 70 °C act, and always act above 82 °C (design §4).
+        // > 60 °C watch, > 70 °C act, and always act above 82 °C (docs/engineering.md, "Default
+        // limits").
         let builtin = Limits::builtin();
         let lenient = Limits::builtin().with(LimitKey::ReservoirTempC, None, Some(90.0));
         for (c, limits, want) in [
@@ -580,7 +586,8 @@ mod tests {
     #[test]
     fn cleanliness_water_and_acid_at_below_and_above_their_limits() {
         let l = Limits::builtin();
-        // Target 17/15/12 (proportional valve at 100 bar, design §4). Range numbers over it:
+        // Target 17/15/12 (proportional valve at 100 bar; docs/engineering.md, "Cleanliness
+        // targets"). Range numbers over it:
         // 1 watch, 2 act.
         for (code, want) in [
             ("17/15/12", State::Steady),
@@ -601,7 +608,7 @@ mod tests {
             let r = eval(&h, &l, week(1));
             assert_eq!(state_of(&r, FlagKind::Cleanliness), want, "{c4} per mL");
         }
-        // Water > 200 ppm watch, > 500 ppm act (design §4).
+        // Water > 200 ppm watch, > 500 ppm act (docs/engineering.md, "Default limits").
         for (ppm, want) in [
             (200.0, State::Steady),
             (200.1, State::Watch),
@@ -615,7 +622,8 @@ mod tests {
                 "{ppm} ppm"
             );
         }
-        // Acid rise over the new oil's 0.5 mg KOH/g: > 0.2 watch, > 0.3 act (design §4).
+        // Acid rise over the new oil's 0.5 mg KOH/g: > 0.2 watch, > 0.3 act (docs/engineering.md,
+        // "Default limits").
         for (an, want) in [
             (0.7, State::Steady),
             (0.71, State::Watch),
@@ -832,7 +840,7 @@ mod tests {
     #[test]
     fn overdue_work_at_below_and_above_its_limits() {
         // One check on 2024-01-01: the next is due 2024-01-08. Watch from 1 day past,
-        // act from 14 days past (design §4).
+        // act from 14 days past (docs/engineering.md, "Default limits").
         let mut h = press();
         h.checks.push(check(1, t("2024-01-01T08:00:00Z")));
         let l = Limits::builtin();

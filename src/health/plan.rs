@@ -1,6 +1,8 @@
-//! Work planning (design §5): next fluid change, filter change, sample and walk-round check of
+//! Work planning (docs/engineering.md, "Work planning"): next fluid change, filter change, sample
+//! and walk-round check of
 //! one unit, each with its due date, what it is based on, whether condition pulled it forward,
-//! and how overdue it is; and the safety cautions shown where work is prompted (design §11).
+//! and how overdue it is; and the safety cautions shown where work is prompted
+//! (docs/engineering.md, "Safety").
 //!
 //! Pure: records, computed indicators, condition flags and limits in; work items out. Marking
 //! work done is recording the event (or check, or sample), which restarts its clock here.
@@ -14,7 +16,7 @@ use super::limits::{LimitKey, Limits};
 use super::{day, State};
 use crate::model::{EventKind, FilterState, UnitHistory};
 
-/// The cautions of design §11, in full, for reports and prompts.
+/// The cautions (docs/engineering.md, "Safety"), in full, for reports and prompts.
 pub const SAFETY_CAUTIONS: [&str; 5] = [
     "Pressurised fluid can penetrate skin: seek medical help at once, even for a small wound.",
     "Relieve pressure, lower or block loads, discharge accumulators and lock out before opening a circuit or \
@@ -29,7 +31,8 @@ pub const SAFETY_CAUTIONS: [&str; 5] = [
 pub const WALK_ROUND_CAUTION: &str = "Hot oil and surfaces burn. Do not open a pressurised circuit on a \
 walk-round; pressurised fluid can penetrate skin — seek medical help at once, even for a small wound.";
 
-/// The cautions of design §11 in one line, for work that opens the circuit or takes oil out.
+/// The cautions (docs/engineering.md, "Safety") in one line, for work that opens the circuit or
+/// takes oil out.
 pub const CAUTION_SHORT: &str = "Relieve pressure, lower or block loads, discharge accumulators and lock out first; \
 oil under pressure can pierce skin (get medical help at once); hot oil burns; dispose of used oil and filters \
 as local rules require.";
