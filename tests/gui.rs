@@ -853,3 +853,68 @@ fn a_save_made_elsewhere_shows_on_the_board_at_the_next_look() {
     // Seen once: the next look finds nothing new.
     assert!(!f.app.look_for_saves());
 }
+
+#[test]
+fn a_technician_on_a_server_sees_who_is_signed_in_and_setup_greyed_out_with_the_reason() {
+    let Some(admin_url) = crate::backends::server() else {
+        return;
+    };
+    i_slint_backend_testing::init_no_event_loop();
+    let dir = tempfile::tempdir().unwrap();
+    let url = crate::backends::new_database();
+    let run = |args: &[&str]| {
+        let out = std::process::Command::new(env!("CARGO_BIN_EXE_sumpbook"))
+            .args(args)
+            .current_dir(dir.path())
+            .output()
+            .unwrap();
+        assert!(
+            out.status.success(),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+    };
+    run(&["--db", &url, "demo"]);
+    run(&["--db", &url, "roles", "--create"]);
+    let name = format!(
+        "gui_tech_{}_{}",
+        std::process::id(),
+        url.rsplit('_').next().unwrap()
+    );
+    postgres::Client::connect(admin_url, postgres::NoTls)
+        .unwrap()
+        .batch_execute(&format!("CREATE ROLE {name} LOGIN"))
+        .unwrap();
+    run(&[
+        "--db",
+        &url,
+        "roles",
+        "--grant",
+        &name,
+        "--role",
+        "technician",
+    ]);
+    let tech = crate::backends::as_user(&url, &name);
+
+    let app = App::open_at(Path::new(&tech), demo_now()).unwrap();
+    app.window().show().unwrap();
+    // The rail says who is signed in and as what.
+    let who = by_label(&app, "Signed in").accessible_value().unwrap();
+    assert!(who.starts_with(&format!("{name} — technician")), "{who}");
+    // Setup is greyed out, with the reason beside it.
+    app.show(Screen::Setup);
+    let why = by_label(&app, "Setup is read-only")
+        .accessible_value()
+        .unwrap();
+    assert!(why.contains("engineer role"), "{why}");
+    assert_eq!(
+        by_label(&app, "Save shop settings").accessible_enabled(),
+        Some(false)
+    );
+    // The walk-round is the technician's own work: its save stays open.
+    app.show(Screen::Walk);
+    assert_eq!(
+        by_label(&app, "Save and next").accessible_enabled(),
+        Some(true)
+    );
+}

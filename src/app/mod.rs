@@ -9,6 +9,7 @@ pub mod entry;
 pub mod entry_check;
 pub mod figures;
 pub mod report;
+pub mod rights;
 pub mod shop;
 pub mod sim;
 pub mod status;

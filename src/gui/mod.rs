@@ -548,8 +548,17 @@ pub(crate) fn refresh_all(ctx: &Rc<Ctx>) {
     reports::refresh(ctx);
 }
 
-/// The shop's name, file and unit system in the navigation rail.
+/// The shop's name, file and unit system in the navigation rail, and what the signed-in person
+/// may do (`app::rights`), which greys out the actions beyond it.
 fn refresh_nav(ctx: &Rc<Ctx>) {
+    if let (Ok(r), Some(w)) = (crate::app::rights::rights(&ctx.shop), ctx.win()) {
+        let g = w.global::<ui::Rights>();
+        g.set_who(r.who.into());
+        g.set_may_configure(r.may_configure);
+        g.set_configure_why(r.configure_why.into());
+        g.set_may_record(r.may_record);
+        g.set_record_why(r.record_why.into());
+    }
     if let Ok(s) = entry::shop_settings(&ctx.shop) {
         ctx.system.set(s.unit_system);
         if let Some(w) = ctx.win() {
