@@ -918,3 +918,46 @@ fn a_technician_on_a_server_sees_who_is_signed_in_and_setup_greyed_out_with_the_
         Some(true)
     );
 }
+
+#[test]
+fn a_correction_over_someone_elses_is_refused_naming_who_changed_the_reading() {
+    let f = open_demo();
+    let s = shop(&f.path);
+    let unit_id = s.store().units().unwrap()[0].id;
+    f.app.open_unit(unit_id);
+    let a = f.app.window().global::<sumpbook::gui::ui::UnitAdapter>();
+    // The checks table; the newest check chosen for correction.
+    a.set_tab(2);
+    let _ = labels_starting(&f.app, "");
+    a.set_current_row(0);
+    a.invoke_select_row(0);
+    let _ = labels_starting(&f.app, "");
+    let id = s
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap()
+        .last()
+        .unwrap()
+        .id;
+    // Meanwhile someone else corrects the same check from another window.
+    let which = sumpbook::app::entry::Reading::Check;
+    let fields = sumpbook::app::entry::reading_fields(&s, which, id).unwrap();
+    let mut theirs = sumpbook::app::entry::Entered::from_fields(&fields);
+    theirs.set("note", "read twice");
+    let saved =
+        sumpbook::app::entry::edit_reading(&s, which, id, &theirs, "P. Other", "typo").unwrap();
+    assert!(matches!(
+        saved,
+        sumpbook::app::entry::SaveOutcome::Saved(())
+    ));
+    // This window's save is refused and says who changed the reading; nothing is overwritten.
+    field(&f.app, "Changed by").set_accessible_value("R. Engineer");
+    field(&f.app, "Reason for the change").set_accessible_value("tidy the note");
+    button(&f.app, "Save change").invoke_accessible_default_action();
+    let said = a.get_edit_message().to_string();
+    assert!(said.contains("P. Other"), "{said}");
+    assert_eq!(
+        shop(&f.path).store().check(id).unwrap().unwrap().note,
+        "read twice"
+    );
+}

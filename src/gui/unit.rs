@@ -37,6 +37,9 @@ pub(crate) struct UnitState {
     row_ids: Vec<i64>,
     table: Option<Reading>,
     selected: Option<(Reading, i64)>,
+    /// The selected reading's edit mark when its form was filled (`entry::reading_mark`): a
+    /// save is refused, naming who and when, if someone else corrected it since.
+    selected_mark: Option<i64>,
     fields: Vec<Field>,
     entered: Entered,
 }
@@ -967,8 +970,10 @@ fn select_row(ctx: &Rc<Ctx>, row: i32) {
             )));
             a.set_edit_message(s(""));
             show_suspicion(ctx, &a, which, id);
+            let mark = entry::reading_mark(&ctx.shop, which, id).ok();
             let mut st = ctx.unit.borrow_mut();
             st.selected = Some((which, id));
+            st.selected_mark = mark;
             st.fields = fields;
             st.entered = entered;
         }
@@ -1145,20 +1150,20 @@ fn confirm_row(ctx: &Rc<Ctx>, confirm: bool) {
 fn save_edit(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<UnitAdapter>();
-    let (sel, entered) = {
+    let (sel, mark, entered) = {
         let st = ctx.unit.borrow();
-        (st.selected, st.entered.clone())
+        (st.selected, st.selected_mark, st.entered.clone())
     };
     let Some((which, id)) = sel else { return };
-    match entry::edit_reading(
-        &ctx.shop,
-        which,
-        id,
-        &entered,
-        &a.get_edit_by(),
-        &a.get_edit_reason(),
-    ) {
+    let (by, reason) = (a.get_edit_by(), a.get_edit_reason());
+    let saved = match mark {
+        Some(seen) => entry::edit_reading_seen(&ctx.shop, which, id, seen, &entered, &by, &reason),
+        None => entry::edit_reading(&ctx.shop, which, id, &entered, &by, &reason),
+    };
+    match saved {
         Ok(SaveOutcome::Saved(())) => {
+            // Our own change is the row's latest edit now: a further save builds on it.
+            ctx.unit.borrow_mut().selected_mark = entry::reading_mark(&ctx.shop, which, id).ok();
             a.set_edit_message(s("Changed; the old value is kept in the edit history."));
             a.set_edit_level(0);
             a.set_edit_reason(s(""));
