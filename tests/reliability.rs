@@ -2375,3 +2375,134 @@ fn a_writer_waits_for_a_holder_that_makes_progress_longer_than_the_give_up_time(
     );
     assert!(text(&out.stdout).contains("saved"), "{}", text(&out.stdout));
 }
+
+// ---------------------------------------------------------------------------------------------
+// Damaged and empty shop files: quick check before writes and backups, no shop made by a read
+
+/// A copy of the demo shop with bytes flipped in the header of the `checks` table's b-tree
+/// root page, so that `PRAGMA quick_check` fails while the file still opens.
+fn shop_failing_its_quick_check(dir: &Path) -> PathBuf {
+    let demo = dir.join("demo.sqlite");
+    ok(&demo, &["demo"]);
+    let db = dir.join("damaged.sqlite");
+    std::fs::copy(&demo, &db).unwrap();
+    std::fs::remove_file(&demo).unwrap();
+    let (page_size, root) = {
+        let conn = Connection::open(&db).unwrap();
+        conn.execute_batch("PRAGMA wal_checkpoint(TRUNCATE)")
+            .unwrap();
+        let page_size: i64 = conn
+            .query_row("PRAGMA page_size", [], |r| r.get(0))
+            .unwrap();
+        let root: i64 = conn
+            .query_row(
+                "SELECT rootpage FROM sqlite_schema WHERE type = 'table' AND name = 'checks'",
+                [],
+                |r| r.get(0),
+            )
+            .unwrap();
+        (page_size as usize, root as usize)
+    };
+    for side in ["-wal", "-shm"] {
+        let mut p = db.as_os_str().to_os_string();
+        p.push(side);
+        let _ = std::fs::remove_file(PathBuf::from(p));
+    }
+    let mut bytes = std::fs::read(&db).unwrap();
+    let start = (root - 1) * page_size;
+    // Bytes 3-4 of a b-tree page header: its number of cells; 0xFFFF cells cannot fit a page.
+    bytes[start + 3] ^= 0xFF;
+    bytes[start + 4] ^= 0xFF;
+    std::fs::write(&db, &bytes).unwrap();
+    let conn = Connection::open(&db).unwrap();
+    let check: String = conn
+        .query_row("PRAGMA quick_check", [], |r| r.get(0))
+        .unwrap_or_else(|e| e.to_string());
+    assert_ne!(
+        check, "ok",
+        "the flipped bytes must make the quick check fail"
+    );
+    drop(conn);
+    db
+}
+
+/// The files in `dir`, by name.
+fn names_in(dir: &Path) -> Vec<String> {
+    let mut v: Vec<String> = std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    v.sort();
+    v
+}
+
+#[test]
+fn a_shop_failing_its_quick_check_is_neither_backed_up_nor_written_to() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = shop_failing_its_quick_check(dir.path());
+    let before = std::fs::read(&db).unwrap();
+    let files_before = names_in(dir.path());
+    let backup = dir.path().join("copy.sqlite");
+    let units = corpus().join("shop/units.csv");
+    let commands: [Vec<&str>; 3] = [
+        vec!["backup", "--out", path_str(&backup)],
+        vec!["import", "units", path_str(&units)],
+        vec![
+            "log-check",
+            "PR-07-HPU",
+            "--by",
+            "AK",
+            "--reservoir-temp",
+            "45C",
+        ],
+    ];
+    for args in &commands {
+        let out = run(&db, args);
+        let err = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+        for said in ["damaged", "backup", ".recover", "damaged.sqlite"] {
+            assert!(err.contains(said), "{args:?}: `{err}` should say `{said}`");
+        }
+        assert!(!err.contains("panicked"), "{err}");
+        assert_eq!(std::fs::read(&db).unwrap(), before, "{args:?} wrote");
+        assert!(
+            !backup.exists(),
+            "{args:?}: a copy of a damaged shop was kept"
+        );
+        assert_eq!(names_in(dir.path()), files_before, "{args:?} left a file");
+    }
+}
+
+#[test]
+fn a_backup_of_a_good_shop_passes_its_quick_check() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = base_shop(dir.path());
+    let backup = dir.path().join("copy.sqlite");
+    ok(&db, &["backup", "--out", path_str(&backup)]);
+    let conn = Connection::open_with_flags(&backup, OpenFlags::SQLITE_OPEN_READ_WRITE).unwrap();
+    let check: String = conn
+        .query_row("PRAGMA quick_check", [], |r| r.get(0))
+        .unwrap();
+    assert_eq!(check, "ok");
+}
+
+#[test]
+fn an_empty_file_is_made_a_shop_only_by_init() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("empty.sqlite");
+    std::fs::write(&db, "").unwrap();
+    for args in [vec!["status"], vec!["export", "checks"], vec!["due"]] {
+        let out = run(&db, &args);
+        let err = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+        let want = format!(
+            "no shop at {p}; create one with `sumpbook --db {p} init`",
+            p = db.display()
+        );
+        assert!(err.contains(&want), "{args:?}: `{err}` should say `{want}`");
+        assert_eq!(std::fs::metadata(&db).unwrap().len(), 0, "{args:?} wrote");
+    }
+    let said = ok(&db, &["init"]);
+    assert!(said.contains("created shop"), "{said}");
+    ok(&db, &["status"]);
+}

@@ -497,10 +497,15 @@ fn wrong_files_are_refused_with_a_typed_error_never_a_panic() {
         Err(e @ StoreError::Damaged { .. }) => assert!(e.to_string().contains("damaged"), "{e}"),
         other => panic!("expected Damaged, got {other:?}"),
     }
-    // An empty file becomes a shop.
+    // An empty file is no shop unless the caller may create one (init, first start).
     let empty = dir.path().join("empty.sqlite");
     std::fs::write(&empty, "").unwrap();
-    Store::open(&empty, OpenMode::MustExist).unwrap();
+    assert!(matches!(
+        Store::open(&empty, OpenMode::MustExist),
+        Err(StoreError::NoShop { .. })
+    ));
+    assert_eq!(std::fs::metadata(&empty).unwrap().len(), 0);
+    Store::open(&empty, OpenMode::Create).unwrap();
     assert!(matches!(
         Store::open(dir.path(), OpenMode::MustExist),
         Err(StoreError::CannotOpen { .. })

@@ -2600,6 +2600,8 @@ pub fn run_import(
     cancel: &Cancel,
 ) -> Result<ImportRun, AppError> {
     let mut store = Store::open(db, crate::store::OpenMode::MustExist).map_err(store_error)?;
+    // Nothing is written into a shop that is already damaged.
+    store.quick_check().map_err(store_error)?;
     import_into(&mut store, kind, file, progress, cancel)
 }
 

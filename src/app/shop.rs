@@ -68,7 +68,17 @@ impl Shop {
         })
     }
 
-    /// Opens the shop file at `path`, creating an empty shop there if the file is missing.
+    /// Opens an existing shop for a command that writes to it: refused (exit 2, with what to do)
+    /// when `PRAGMA quick_check` finds the file damaged, so nothing is written into a shop
+    /// that is already broken. Run once per open; reads skip it.
+    pub fn open_for_writing(path: &Path) -> Result<Shop, AppError> {
+        let shop = Shop::open(path)?;
+        shop.store.quick_check()?;
+        Ok(shop)
+    }
+
+    /// Opens the shop file at `path`, creating an empty shop there if the file is missing or
+    /// empty.
     pub fn create(path: &Path) -> Result<Shop, AppError> {
         let store = Store::open(path, OpenMode::Create)?;
         Ok(Shop {
@@ -101,8 +111,15 @@ impl Shop {
     /// Opens the default shop; on first start (no file yet) creates it with the demo shop.
     pub fn open_default() -> Result<Shop, AppError> {
         let path = Shop::default_path()?;
-        if path.exists() {
-            return Shop::open(&path);
+        match std::fs::metadata(&path) {
+            Ok(m) if m.len() > 0 || !m.is_file() => return Shop::open(&path),
+            // An empty file where the first start would make the shop: this is a first start.
+            Ok(_) => {
+                let mut shop = Shop::create(&path)?;
+                shop.load_demo()?;
+                return Ok(shop);
+            }
+            Err(_) => {}
         }
         if let Some(dir) = path.parent() {
             std::fs::create_dir_all(dir)
@@ -118,9 +135,10 @@ impl Shop {
             let shop = Shop::open(path)?;
             let created = shop.store.created_here();
             (shop, created)
-        } else if path.exists() {
+        } else if std::fs::metadata(path).is_ok_and(|m| m.len() > 0 || !m.is_file()) {
             (Shop::open(path)?, false)
         } else {
+            // Missing or empty (0 bytes): `init` is what makes a new shop.
             (Shop::create(path)?, true)
         };
         if let Some(name) = shop_name {
@@ -413,6 +431,7 @@ pub(crate) fn store_error_is_input(e: &StoreError) -> bool {
     matches!(
         e,
         StoreError::Missing { .. }
+            | StoreError::NoShop { .. }
             | StoreError::NotSqlite { .. }
             | StoreError::NotSumpbook { .. }
             | StoreError::TooNew { .. }

@@ -232,6 +232,19 @@ pub fn open_shop(db: Option<&Path>) -> Result<Shop, Failure> {
     }
 }
 
+/// [`open_shop`] for a command that writes: the shop must pass its quick check first.
+pub fn open_shop_for_writing(db: Option<&Path>) -> Result<Shop, Failure> {
+    match db {
+        Some(p) => Ok(Shop::open_for_writing(p)?),
+        None => {
+            let shop = Shop::open_default()?;
+            let path = shop.path().to_path_buf();
+            drop(shop);
+            Ok(Shop::open_for_writing(&path)?)
+        }
+    }
+}
+
 pub fn run_init(db: Option<&Path>, args: &InitArgs, out: &mut dyn Write) -> Result<(), Failure> {
     let path = db_path(db)?;
     if let Some(dir) = path
@@ -263,8 +276,10 @@ pub fn run_init(db: Option<&Path>, args: &InitArgs, out: &mut dyn Write) -> Resu
 
 pub fn run_demo(db: Option<&Path>, out: &mut dyn Write) -> Result<(), Failure> {
     let path = db_path(db)?;
-    let mut shop = if path.exists() || Shop::is_server(&path) {
-        Shop::open(&path)?
+    let mut shop = if Shop::is_server(&path)
+        || std::fs::metadata(&path).is_ok_and(|m| m.len() > 0 || !m.is_file())
+    {
+        Shop::open_for_writing(&path)?
     } else {
         Shop::create(&path)?
     };
@@ -288,7 +303,7 @@ pub fn run_import(
     args: &ImportArgs,
     out: &mut dyn Write,
 ) -> Result<(), Failure> {
-    let mut shop = open_shop(db)?;
+    let mut shop = open_shop_for_writing(db)?;
     let kind = FileKind::from(args.kind);
     let s = shop.import(kind, &args.file, args.keep_going)?;
     if args.json {

@@ -155,21 +155,29 @@ fn run_command(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
             status::run_status(&data::open_shop(db.as_deref())?, args, out)
         }
         Some(Command::Due(args)) => status::run_due(&data::open_shop(db.as_deref())?, args, out),
-        Some(Command::Ack(args)) => status::run_ack(&data::open_shop(db.as_deref())?, args, out),
+        Some(Command::Ack(args)) => {
+            status::run_ack(&data::open_shop_for_writing(db.as_deref())?, args, out)
+        }
         Some(Command::LogEvent(args)) => {
-            status::run_log_event(&data::open_shop(db.as_deref())?, args, out)
+            status::run_log_event(&data::open_shop_for_writing(db.as_deref())?, args, out)
         }
         Some(Command::Baseline(args)) => {
-            status::run_baseline(&data::open_shop(db.as_deref())?, args, out)
+            status::run_baseline(&data::open_shop_for_writing(db.as_deref())?, args, out)
         }
         Some(Command::LogCheck(args)) => {
-            entry::run_log_check(&data::open_shop(db.as_deref())?, args, out)
+            entry::run_log_check(&data::open_shop_for_writing(db.as_deref())?, args, out)
         }
         Some(Command::Confirm(args)) => {
-            confirm::run(&data::open_shop(cli.db.as_deref())?, args, out)
+            confirm::run(&data::open_shop_for_writing(cli.db.as_deref())?, args, out)
         }
         Some(Command::Limits(args)) => {
-            status::run_limits(&data::open_shop(db.as_deref())?, args, out)
+            // Showing the limits reads; an action changes them.
+            let shop = if args.action.is_some() {
+                data::open_shop_for_writing(db.as_deref())?
+            } else {
+                data::open_shop(db.as_deref())?
+            };
+            status::run_limits(&shop, args, out)
         }
         Some(Command::Backup(args)) => data::run_backup(db.as_deref(), args, out),
         Some(Command::Copy(args)) => data::run_copy(args, out),

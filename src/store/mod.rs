@@ -164,9 +164,9 @@ extern "C" fn wait_for_lock(ctx: *mut std::ffi::c_void, count: std::ffi::c_int) 
 /// Whether [`Store::open`] may create a new shop file.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum OpenMode {
-    /// The file must already exist (it may be an empty file, which becomes a new shop).
+    /// The file must already be a shop: a missing or empty (0-byte) file is refused.
     MustExist,
-    /// Create the file if it is missing; open it otherwise.
+    /// Create the file if it is missing, make an empty file a new shop; open it otherwise.
     Create,
 }
 
@@ -176,6 +176,10 @@ pub enum OpenMode {
 pub enum StoreError {
     #[error("{}: no such file", path.display())]
     Missing { path: PathBuf },
+    /// An empty (0-byte) file where a shop was expected: only `init` (or the app's first
+    /// start) makes a new shop, so a typo in a read command never leaves a new file behind.
+    #[error("no shop at {p}; create one with `sumpbook --db {p} init`", p = path.display())]
+    NoShop { path: PathBuf },
     #[error("{}: not an SQLite database (is it the right file?)", path.display())]
     NotSqlite { path: PathBuf },
     #[error("{}: an SQLite database of another program, not a sumpbook shop", path.display())]
@@ -196,7 +200,7 @@ pub enum StoreError {
     Busy,
     #[error("{}: the database is locked by another program that has made no progress for {} s; try again when it is done (or close the program holding it)", path.display(), BUSY_TIMEOUT.as_secs())]
     Locked { path: PathBuf },
-    #[error("{}: the shop file is damaged ({reason}); restore it from a backup", path.display())]
+    #[error("{}: the shop file is damaged ({reason}); restore the last good backup, or recover what is still readable with the sqlite3 shell's `.recover` into a new file and open that", path.display())]
     Damaged { path: PathBuf, reason: String },
     #[error("cannot bring the database schema up to date: {0}")]
     Migration(String),
@@ -320,6 +324,8 @@ impl Store {
                 }
                 if meta.len() > 0 {
                     check_sqlite_header(path, meta.len())?;
+                } else if mode == OpenMode::MustExist {
+                    return Err(StoreError::NoShop { path: path_buf });
                 }
             }
             Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
@@ -742,6 +748,9 @@ impl Store {
                 let _ = std::fs::remove_file(PathBuf::from(p));
             }
         };
+        // A damaged shop is refused before anything is copied: a copy of it would be kept as
+        // a good backup and later overwrite the last copy that really is one.
+        self.quick_check()?;
         self.count();
         let copied = match &self.db {
             Db::Lite(conn) => (|| -> Result<(), rusqlite::Error> {
@@ -778,7 +787,31 @@ impl Store {
                 reason: e.to_string(),
             });
         }
+        // The copy is checked as written on disk; one that fails is dropped with its side file
+        // (`out` is not committed), so no file by the backup's name is ever a bad copy.
+        let copy_check = quick_check_file(&tmp);
+        remove_sides();
+        if let Err(reason) = copy_check {
+            return Err(StoreError::CannotOpen {
+                path: dest.to_path_buf(),
+                reason: format!("the copy failed its check ({reason}); nothing was kept"),
+            });
+        }
         out.commit()?;
+        Ok(())
+    }
+
+    /// `PRAGMA quick_check` = ok on a shop file, else [`StoreError::Damaged`] naming the file and
+    /// what to do. Cheap next to `integrity_check` (no index-to-table cross check), so every
+    /// write command and every backup runs it once. A server shop has nothing to check here.
+    pub fn quick_check(&self) -> Result<(), StoreError> {
+        if let Db::Lite(conn) = &self.db {
+            self.count();
+            quick_check_conn(conn).map_err(|reason| StoreError::Damaged {
+                path: self.path.clone(),
+                reason,
+            })?;
+        }
         Ok(())
     }
 
@@ -1253,4 +1286,34 @@ mod tests {
         MIGRATIONS.validate().unwrap();
         assert_eq!(Store::latest_schema_version(), 3);
     }
+}
+
+/// Runs `PRAGMA quick_check` on `conn`: `Err` holds the first problems it names (or the error
+/// that stopped it, as a damaged page often does).
+fn quick_check_conn(conn: &Connection) -> Result<(), String> {
+    let rows = (|| -> Result<Vec<String>, rusqlite::Error> {
+        let mut stmt = conn.prepare("PRAGMA quick_check(3)")?;
+        let rows = stmt.query_map([], |r| r.get::<_, String>(0))?;
+        rows.collect()
+    })()
+    .map_err(|e| format!("quick check: {e}"))?;
+    if rows.len() == 1 && rows[0] == "ok" {
+        Ok(())
+    } else {
+        Err(format!("quick check: {}", rows.join("; ")))
+    }
+}
+
+/// [`quick_check_conn`] on a file of its own connection (the copy a backup just wrote).
+fn quick_check_file(path: &Path) -> Result<(), String> {
+    let conn = Connection::open_with_flags(
+        path,
+        // Read-write: the copy is in WAL mode, and a read-only connection could not make the
+        // shared-memory file it needs. It is our own side file, removed after.
+        OpenFlags::SQLITE_OPEN_READ_WRITE
+            | OpenFlags::SQLITE_OPEN_NOFOLLOW
+            | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )
+    .map_err(|e| e.to_string())?;
+    quick_check_conn(&conn)
 }
