@@ -1212,6 +1212,36 @@ fn confirmation_time(c: &Option<crate::model::Confirmation>) -> Result<Option<St
         .transpose()
 }
 
+/// Runs `PRAGMA quick_check` on `conn`: `Err` holds the first problems it names (or the error
+/// that stopped it, as a damaged page often does).
+fn quick_check_conn(conn: &Connection) -> Result<(), String> {
+    let rows = (|| -> Result<Vec<String>, rusqlite::Error> {
+        let mut stmt = conn.prepare("PRAGMA quick_check(3)")?;
+        let rows = stmt.query_map([], |r| r.get::<_, String>(0))?;
+        rows.collect()
+    })()
+    .map_err(|e| format!("quick check: {e}"))?;
+    if rows.len() == 1 && rows[0] == "ok" {
+        Ok(())
+    } else {
+        Err(format!("quick check: {}", rows.join("; ")))
+    }
+}
+
+/// [`quick_check_conn`] on a file of its own connection (the copy a backup just wrote).
+fn quick_check_file(path: &Path) -> Result<(), String> {
+    let conn = Connection::open_with_flags(
+        path,
+        // Read-write: the copy is in WAL mode, and a read-only connection could not make the
+        // shared-memory file it needs. It is our own side file, removed after.
+        OpenFlags::SQLITE_OPEN_READ_WRITE
+            | OpenFlags::SQLITE_OPEN_NOFOLLOW
+            | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )
+    .map_err(|e| e.to_string())?;
+    quick_check_conn(&conn)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -1286,34 +1316,4 @@ mod tests {
         MIGRATIONS.validate().unwrap();
         assert_eq!(Store::latest_schema_version(), 3);
     }
-}
-
-/// Runs `PRAGMA quick_check` on `conn`: `Err` holds the first problems it names (or the error
-/// that stopped it, as a damaged page often does).
-fn quick_check_conn(conn: &Connection) -> Result<(), String> {
-    let rows = (|| -> Result<Vec<String>, rusqlite::Error> {
-        let mut stmt = conn.prepare("PRAGMA quick_check(3)")?;
-        let rows = stmt.query_map([], |r| r.get::<_, String>(0))?;
-        rows.collect()
-    })()
-    .map_err(|e| format!("quick check: {e}"))?;
-    if rows.len() == 1 && rows[0] == "ok" {
-        Ok(())
-    } else {
-        Err(format!("quick check: {}", rows.join("; ")))
-    }
-}
-
-/// [`quick_check_conn`] on a file of its own connection (the copy a backup just wrote).
-fn quick_check_file(path: &Path) -> Result<(), String> {
-    let conn = Connection::open_with_flags(
-        path,
-        // Read-write: the copy is in WAL mode, and a read-only connection could not make the
-        // shared-memory file it needs. It is our own side file, removed after.
-        OpenFlags::SQLITE_OPEN_READ_WRITE
-            | OpenFlags::SQLITE_OPEN_NOFOLLOW
-            | OpenFlags::SQLITE_OPEN_NO_MUTEX,
-    )
-    .map_err(|e| e.to_string())?;
-    quick_check_conn(&conn)
 }
