@@ -920,6 +920,97 @@ fn a_technician_on_a_server_sees_who_is_signed_in_and_setup_greyed_out_with_the_
 }
 
 #[test]
+fn a_server_that_goes_away_keeps_the_typed_form_says_so_and_saves_once_it_is_back() {
+    let Some(admin_url) = crate::backends::server() else {
+        return;
+    };
+    i_slint_backend_testing::init_no_event_loop();
+    let dir = tempfile::tempdir().unwrap();
+    let url = crate::backends::new_database();
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_sumpbook"))
+        .args(["--db", &url, "demo"])
+        .current_dir(dir.path())
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let db = PathBuf::from(&url);
+    let db_name = url.rsplit('/').next().unwrap().to_string();
+    let (unit_id, _) = first_route_unit(&db);
+    let count = || {
+        shop(&db)
+            .store()
+            .checks_for_unit(unit_id, None)
+            .unwrap()
+            .len()
+    };
+    let before = count();
+
+    let app = App::open_at(&db, demo_now()).unwrap();
+    app.window().show().unwrap();
+    app.show(Screen::Walk);
+    // Last time's reservoir temperature, so that the reading asks no confirmation.
+    let (last, _) = leading_figure(&walk_hint(&app));
+    let typed = format!("{last:.1}");
+    field(&app, "Technician").set_accessible_value("T. Tester");
+    field(&app, "Reservoir temperature").set_accessible_value(&typed);
+
+    // The server stops taking this shop's connections and ends the open ones, as a restart
+    // or a network drop would.
+    let mut admin = postgres::Client::connect(admin_url, postgres::NoTls).unwrap();
+    let set_open = |admin: &mut postgres::Client, open: bool| {
+        admin
+            .batch_execute(&format!(
+                "ALTER DATABASE {db_name} ALLOW_CONNECTIONS {open}"
+            ))
+            .unwrap();
+    };
+    set_open(&mut admin, false);
+    admin
+        .execute(
+            "SELECT pg_terminate_backend(pid) FROM pg_stat_activity \
+             WHERE datname = $1 AND pid <> pg_backend_pid()",
+            &[&db_name],
+        )
+        .unwrap();
+
+    // The window's next look for saves meets the loss and says so in the rail.
+    assert!(!app.look_for_saves());
+    let rail = by_label(&app, "Connection").accessible_value().unwrap();
+    assert!(rail.contains("not answering"), "{rail}");
+    // A save while it is away: refused in plain words, and the form keeps what was typed.
+    button(&app, "Save and next").invoke_accessible_default_action();
+    let said = message(&app);
+    assert!(
+        said.contains("cannot be reached") && said.contains("What you typed is kept"),
+        "{said}"
+    );
+    assert_eq!(
+        field(&app, "Reservoir temperature")
+            .accessible_value()
+            .unwrap(),
+        typed.as_str()
+    );
+    assert_eq!(
+        field(&app, "Technician").accessible_value().unwrap(),
+        "T. Tester"
+    );
+    assert_eq!(app.window().global::<WalkAdapter>().get_current(), 0);
+
+    // The server is back: the same Save goes through on a new connection.
+    set_open(&mut admin, true);
+    button(&app, "Save and next").invoke_accessible_default_action();
+    assert!(message(&app).starts_with("Saved"), "{}", message(&app));
+    assert_eq!(count(), before + 1);
+    // And the rail's warning goes at the next look.
+    app.look_for_saves();
+    assert!(try_label(&app, "Connection").is_none());
+}
+
+#[test]
 fn a_correction_over_someone_elses_is_refused_naming_who_changed_the_reading() {
     let f = open_demo();
     let s = shop(&f.path);

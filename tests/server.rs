@@ -601,6 +601,70 @@ fn a_server_that_goes_away_is_reported_plainly_and_the_next_call_connects_again(
 }
 
 #[test]
+fn an_import_whose_server_goes_away_half_way_writes_nothing() {
+    let Some(admin_url) = server() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let url = new_database();
+    let data = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data");
+    ok(dir.path(), &["--db", &url, "init"]);
+    ok(
+        dir.path(),
+        &[
+            "--db",
+            &url,
+            "import",
+            "units",
+            data.join("units.csv").to_str().unwrap(),
+        ],
+    );
+    let db_name = url.rsplit('/').next().unwrap().to_string();
+    // Once a third of the file is read (rows are being written in the import's transaction),
+    // the server ends the import's connection.
+    let ended = std::cell::Cell::new(false);
+    let progress = |done: f32| {
+        if !ended.get() && (0.3..1.0).contains(&done) {
+            admin(admin_url)
+                .execute(
+                    "SELECT pg_terminate_backend(pid) FROM pg_stat_activity \
+                     WHERE datname = $1 AND pid <> pg_backend_pid()",
+                    &[&db_name],
+                )
+                .unwrap();
+            ended.set(true);
+        }
+    };
+    let run = sumpbook::app::entry::run_import(
+        Path::new(&url),
+        sumpbook::exchange::FileKind::Checks,
+        &data.join("checks.csv"),
+        &progress,
+        &sumpbook::app::entry::Cancel::new(),
+    );
+    assert!(ended.get(), "the connection was ended during the import");
+    match run {
+        Err(e) => assert!(e.is_connection_lost(), "told plainly: {e}"),
+        Ok(other) => panic!("the import went on without its server: {other:?}"),
+    }
+    assert_eq!(
+        count(&url, "checks"),
+        0,
+        "not one row of the half-done import"
+    );
+    // The shop is whole: the same import, run again, takes every row.
+    let out = ok(
+        dir.path(),
+        &[
+            "--db",
+            &url,
+            "import",
+            "checks",
+            data.join("checks.csv").to_str().unwrap(),
+        ],
+    );
+    assert!(count(&url, "checks") > 1000, "{out}");
+}
+
+#[test]
 fn a_correction_over_someone_elses_is_refused_naming_who_and_when() {
     crate::backends::on_each_backend(|| {
         let dir = tempfile::tempdir().unwrap();

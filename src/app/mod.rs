@@ -24,6 +24,9 @@ pub enum AppError {
     /// Something else failed.
     #[error("{0}")]
     Failed(String),
+    /// Whoever read the output stopped reading (the far end of a pipe closed).
+    #[error("the output was closed by its reader")]
+    OutputClosed,
     /// The shop file or a value was refused, or the database failed.
     #[error(transparent)]
     Store(#[from] crate::store::StoreError),
@@ -46,10 +49,20 @@ impl From<crate::outfile::OutFileError> for AppError {
 }
 
 impl AppError {
+    /// Whether the shop's database server could not be reached: nothing was done, and the
+    /// store connects again on the next call (what a window shows while it waits).
+    pub fn is_connection_lost(&self) -> bool {
+        matches!(
+            self,
+            AppError::Store(crate::store::StoreError::ServerGone(_))
+        )
+    }
+
     pub fn exit_code(&self) -> u8 {
         match self {
             AppError::BadInput(_) => 2,
             AppError::Failed(_) => 1,
+            AppError::OutputClosed => 0,
             AppError::Store(e) if shop::store_error_is_input(e) => 2,
             AppError::Store(_) => 1,
             AppError::Import { .. } => 2,

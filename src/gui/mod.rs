@@ -526,7 +526,23 @@ fn look_for_saves(ctx: &Rc<Ctx>) -> bool {
         return false;
     }
     let changed = entry::shop_changed(&ctx.shop, &mut ctx.saves_seen.borrow_mut());
-    if !matches!(changed, Ok(true)) {
+    let Some(w) = ctx.win() else { return false };
+    let nav = w.global::<ui::Nav>();
+    let changed = match changed {
+        Err(e) if e.is_connection_lost() => {
+            // The next look connects again; until then the rail says why nothing refreshes.
+            nav.set_connection(
+                "Server not answering: trying again every few seconds. Unsaved entries are kept."
+                    .into(),
+            );
+            return false;
+        }
+        Err(_) => false,
+        // Back after a loss: whatever was saved meanwhile is shown now.
+        Ok(changed) => changed || !nav.get_connection().is_empty(),
+    };
+    nav.set_connection("".into());
+    if !changed {
         return false;
     }
     refresh_nav(ctx);
@@ -724,6 +740,13 @@ pub(crate) fn problems_line(problems: &[Problem]) -> (String, i32) {
 
 /// The message of an application error, for a message bar.
 pub(crate) fn err_text(e: &AppError) -> String {
+    if e.is_connection_lost() {
+        // A form's entries stay where they are on any error; say so, because a lost
+        // connection is the one error where trying the same thing again is the answer.
+        return format!(
+            "Not done: {e}. What you typed is kept: try again once the server answers."
+        );
+    }
     e.to_string()
 }
 
