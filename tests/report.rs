@@ -565,6 +565,16 @@ fn the_demo_report_renders_on_letter_and_a4_within_its_pages() {
             .count();
         assert_eq!(pngs, pages, "{paper}: every page rasterises");
         assert_nothing_overflows_or_overlaps(&pdf);
+        // Small enough to mail: the faces carry only the glyphs drawn (whole, they are about
+        // 0.85 MB), and they are still embedded, as pdffonts reads them.
+        let size = std::fs::metadata(&pdf).unwrap().len();
+        assert!(size <= 200_000, "{paper}: {size} bytes");
+        let fonts = poppler("pdffonts", &[pdf.to_str().unwrap()]);
+        let embedded: Vec<&str> = fonts.lines().filter(|l| l.contains("TrueType")).collect();
+        assert!(
+            embedded.len() == 2 && embedded.iter().all(|l| l.contains(" yes ")),
+            "{fonts}"
+        );
     }
 }
 
