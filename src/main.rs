@@ -10,6 +10,7 @@ fn main() -> ExitCode {
     let mut out = stdout.lock();
     match sumpbook::cli::run(&cli, &mut out) {
         Ok(()) => ExitCode::SUCCESS,
+        Err(failure) if failure.is_quiet() => ExitCode::SUCCESS,
         Err(failure) => {
             eprintln!(
                 "sumpbook: {}",

@@ -122,6 +122,30 @@ fn init_demo_export_import_and_backup_through_the_binary() {
 }
 
 #[test]
+fn output_into_a_pipe_whose_reader_has_gone_ends_quietly() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    ok(d, &["--db", "demo.sqlite", "demo"]);
+    // `sumpbook export checks | head -1`: the export is larger than a pipe holds, and its
+    // reader closes the pipe before reading anything.
+    let mut child = Command::new(env!("CARGO_BIN_EXE_sumpbook"))
+        .args(["--db", "demo.sqlite", "export", "checks"])
+        .current_dir(d)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    drop(child.stdout.take());
+    let out = child.wait_with_output().unwrap();
+    let err = text(&out.stderr);
+    assert!(err.is_empty(), "nothing to say: {err}");
+    assert_eq!(out.status.code(), Some(0));
+    // The export is indeed more than a pipe holds (64 KiB on Linux), so the write met the
+    // closed pipe.
+    assert!(ok(d, &["--db", "demo.sqlite", "export", "checks"]).len() > 65_536);
+}
+
+#[test]
 fn without_db_the_default_shop_is_used_and_starts_as_the_demo() {
     let dir = tempfile::tempdir().unwrap();
     let default = dir.path().join("data/sumpbook/sumpbook.sqlite");

@@ -409,6 +409,9 @@ impl From<ExchangeError> for AppError {
             ExchangeError::Io { path, source } => {
                 AppError::BadInput(format!("{}: {source}", path.display()))
             }
+            ExchangeError::Write(e) if e.kind() == std::io::ErrorKind::BrokenPipe => {
+                AppError::OutputClosed
+            }
             ExchangeError::Write(e) => AppError::Failed(format!("cannot write: {e}")),
             ExchangeError::Store(s) => AppError::Store(s),
             ExchangeError::Out(o) => AppError::from(o),

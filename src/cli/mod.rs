@@ -44,6 +44,9 @@ impl Failure {
 
 impl From<crate::app::AppError> for Failure {
     fn from(e: crate::app::AppError) -> Self {
+        if matches!(e, crate::app::AppError::OutputClosed) {
+            return Failure::output_closed();
+        }
         Failure {
             code: e.exit_code(),
             message: e.to_string(),
@@ -51,8 +54,27 @@ impl From<crate::app::AppError> for Failure {
     }
 }
 
+impl Failure {
+    /// The reader of standard output went away (`sumpbook status | head`): not an error of
+    /// ours, so the program ends quietly with success, as other filters in a pipe do.
+    pub fn output_closed() -> Self {
+        Failure {
+            code: 0,
+            message: String::new(),
+        }
+    }
+
+    /// Whether this is [`Failure::output_closed`]: nothing to say.
+    pub fn is_quiet(&self) -> bool {
+        self.code == 0 && self.message.is_empty()
+    }
+}
+
 impl From<std::io::Error> for Failure {
     fn from(e: std::io::Error) -> Self {
+        if e.kind() == std::io::ErrorKind::BrokenPipe {
+            return Failure::output_closed();
+        }
         Failure::failed(format!("cannot write output: {e}"))
     }
 }

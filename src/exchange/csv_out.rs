@@ -117,7 +117,7 @@ pub fn export(
     let mut w = csv::WriterBuilder::new()
         .terminator(csv::Terminator::CRLF)
         .from_writer(out);
-    let werr = |e: csv::Error| ExchangeError::Write(e.into());
+    let werr = |e: csv::Error| ExchangeError::Write(io_error(e));
     let confirmations = match kind {
         FileKind::Checks => store.any_confirmed_check()?,
         FileKind::Samples => store.any_confirmed_sample()?,
@@ -271,4 +271,16 @@ pub fn export(
     }
     w.flush().map_err(ExchangeError::Write)?;
     Ok(rows)
+}
+
+/// The I/O error under a CSV writer's error, so that its kind (a closed pipe, a full disk)
+/// reaches the caller; any other CSV error as an I/O error of its own.
+fn io_error(e: csv::Error) -> std::io::Error {
+    if !e.is_io_error() {
+        return e.into();
+    }
+    match e.into_kind() {
+        csv::ErrorKind::Io(io) => io,
+        other => std::io::Error::other(format!("{other:?}")),
+    }
 }
