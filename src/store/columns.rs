@@ -46,9 +46,10 @@ pub fn round_sig(x: f64, digits: i32) -> f64 {
     }
 }
 
-/// The value in a unit other than the column's with the fewest significant digits (12 to 17)
-/// that converts back to exactly the stored column value: `2500` psi stays `2500`, and a value
-/// stored as `999.99` bar comes back as `999.99` bar after a trip through psi.
+/// The value in a unit other than the column's with the fewest decimal places (or else
+/// significant digits) that converts back to exactly the stored column value: `2000` psi stays `2000` (not
+/// `1999.99999999`, which reads back to the same stored bar), and a value stored as `999.99`
+/// bar comes back as `999.99` bar after a trip through psi.
 fn faithful(
     si: f64,
     to_unit: impl Fn(f64) -> f64,
@@ -57,6 +58,14 @@ fn faithful(
 ) -> f64 {
     let stored = column(si);
     let raw = to_unit(si);
+    // Fewest decimal places first (a temperature's stored precision is absolute, so `0` °F
+    // must win over `-4e-10`), then significant digits for what decimals cannot reach.
+    for places in 0..=17 {
+        let candidate = round_places(raw, places);
+        if column(from_unit(candidate)) == stored {
+            return candidate;
+        }
+    }
     for digits in 12..17 {
         let candidate = round_sig(raw, digits);
         if column(from_unit(candidate)) == stored {
@@ -64,6 +73,17 @@ fn faithful(
         }
     }
     raw
+}
+
+/// `x` rounded to `places` decimal places: the nearest double to that decimal (`x` itself
+/// where the scaled value is beyond exact integers).
+fn round_places(x: f64, places: usize) -> f64 {
+    let m = POW10[places.min(22)];
+    let scaled = x * m;
+    if !scaled.is_finite() || scaled.abs() >= 9.0e15 {
+        return x;
+    }
+    scaled.round() / m
 }
 
 /// A temperature in °C or °F tidied to 1e-9 degree (the noise of 273.15 is absolute, not
@@ -194,5 +214,32 @@ mod tests {
         assert_eq!(temp_f(Temperature::from_c(stored_c)), 140.0);
         let stored_lpm = lpm(Flow::from_gpm(12.0));
         assert_eq!(gpm(Flow::from_lpm(stored_lpm)), 12.0);
+    }
+
+    #[test]
+    fn every_typed_us_value_exports_as_its_shortest_decimal() {
+        // A sweep of what a US shop types: whole and one-decimal psi, °F, gpm, inches and
+        // gallons. Each is stored in the metric column and must come back out as typed (the
+        // shortest decimal that reads back to the stored value), e.g. 2000 psi, not
+        // 1999.99999999.
+        for tenths in 1..=60_000 {
+            let v = f64::from(tenths) / 10.0;
+            let p = bar(Pressure::from_psi(v));
+            assert_eq!(psi(Pressure::from_bar(p)), v, "{v} psi");
+            // One division each, so that the value is the double nearest the decimal typed.
+            let g = f64::from(tenths) / 100.0;
+            let q = lpm(Flow::from_gpm(g));
+            assert_eq!(gpm(Flow::from_lpm(q)), g, "{g} gpm");
+            let i = f64::from(tenths) / 1000.0;
+            let l = mm(Length::from_in(i));
+            assert_eq!(inches(Length::from_mm(l)), i, "{i} in");
+            let vol = litres(Volume::from_gal(g));
+            assert_eq!(gal(Volume::from_l(vol)), g, "{g} gal");
+        }
+        for tenths in -400..=3_000 {
+            let f = f64::from(tenths) / 10.0;
+            let c = temp_c(Temperature::from_f(f));
+            assert_eq!(temp_f(Temperature::from_c(c)), f, "{f} °F");
+        }
     }
 }
