@@ -146,6 +146,57 @@ fn output_into_a_pipe_whose_reader_has_gone_ends_quietly() {
 }
 
 #[test]
+fn settings_are_shown_and_set_from_the_command_line_and_an_unknown_time_zone_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    ok(d, &["--db", "s.sqlite", "init"]);
+    let shown = ok(d, &["--db", "s.sqlite", "settings"]);
+    assert!(
+        shown.contains("New shop") && shown.contains("metric"),
+        "{shown}"
+    );
+    ok(
+        d,
+        &[
+            "--db",
+            "s.sqlite",
+            "settings",
+            "--name",
+            "Press hall 2",
+            "--units",
+            "us",
+            "--time-zone",
+            "America/New_York",
+            "--by",
+            "T. Tester",
+        ],
+    );
+    let json: serde_json::Value =
+        serde_json::from_str(&ok(d, &["--db", "s.sqlite", "settings", "--json"])).unwrap();
+    assert_eq!(json["shop_name"], "Press hall 2");
+    assert_eq!(json["unit_system"], "us");
+    assert_eq!(json["time_zone"], "America/New_York");
+    // A zone the time-zone database does not know is refused, and nothing changes.
+    refused(
+        d,
+        &[
+            "--db",
+            "s.sqlite",
+            "settings",
+            "--units",
+            "metric",
+            "--time-zone",
+            "Mars/Olympus",
+        ],
+        "time zone `Mars/Olympus` is not known",
+    );
+    let json: serde_json::Value =
+        serde_json::from_str(&ok(d, &["--db", "s.sqlite", "settings", "--json"])).unwrap();
+    assert_eq!(json["unit_system"], "us");
+    assert_eq!(json["time_zone"], "America/New_York");
+}
+
+#[test]
 fn without_db_the_default_shop_is_used_and_starts_as_the_demo() {
     let dir = tempfile::tempdir().unwrap();
     let default = dir.path().join("data/sumpbook/sumpbook.sqlite");

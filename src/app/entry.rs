@@ -1726,6 +1726,21 @@ pub fn shop_settings(shop: &Shop) -> Result<Settings, AppError> {
     settings(shop.store())
 }
 
+/// A time zone must be one the time-zone database knows (IANA names such as
+/// `America/New_York`; `UTC` too), so that times can be read and shown in it.
+pub fn check_time_zone(zone: &str) -> Result<(), AppError> {
+    zone.trim()
+        .parse::<chrono_tz::Tz>()
+        .map(|_| ())
+        .map_err(|_| {
+            AppError::BadInput(format!(
+                "time zone `{}` is not known; give an IANA name such as America/New_York, \
+             Europe/Berlin or UTC",
+                zone.trim()
+            ))
+        })
+}
+
 /// Changes the shop's name, unit system and time zone. A blank reason is filled in with what
 /// changed.
 pub fn save_settings(shop: &Shop, new: &Settings, by: &str, reason: &str) -> Result<(), AppError> {
@@ -1733,6 +1748,7 @@ pub fn save_settings(shop: &Shop, new: &Settings, by: &str, reason: &str) -> Res
     if new.shop_name.trim().is_empty() {
         return Err(AppError::BadInput("the shop needs a name".into()));
     }
+    check_time_zone(&new.time_zone)?;
     let store = shop.store();
     let old = settings(store)?;
     if &old == new {

@@ -14,6 +14,7 @@ pub mod data;
 pub mod entry;
 pub mod printable;
 pub mod report;
+pub mod settings;
 pub mod sim;
 pub mod status;
 
@@ -79,6 +80,18 @@ impl From<std::io::Error> for Failure {
     }
 }
 
+/// Who makes a change, for the edit history: `--by`, else the login name.
+pub(crate) fn who(by: &Option<String>) -> String {
+    by.clone()
+        .filter(|b| !b.trim().is_empty())
+        .or_else(|| {
+            std::env::var("USER")
+                .ok()
+                .or_else(|| std::env::var("USERNAME").ok())
+        })
+        .unwrap_or_else(|| "command line".into())
+}
+
 /// The environment variable that names the shop when `--db` is not given.
 pub const DB_VARIABLE: &str = "SUMPBOOK_DB";
 
@@ -121,6 +134,8 @@ pub enum Command {
     LogCheck(entry::LogCheckArgs),
     /// Confirm a questioned reading as measured (or --lift a confirmation), by unit and time.
     Confirm(confirm::ConfirmArgs),
+    /// Show the shop's settings (name, units of measure, time zone), or set them.
+    Settings(settings::SettingsArgs),
     /// List the limits in force (shop or one unit), or set and reset them.
     Limits(status::LimitsArgs),
     /// Write a consistent copy of the shop file while it stays in use.
@@ -190,7 +205,15 @@ fn run_command(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
             entry::run_log_check(&data::open_shop_for_writing(db.as_deref())?, args, out)
         }
         Some(Command::Confirm(args)) => {
-            confirm::run(&data::open_shop_for_writing(cli.db.as_deref())?, args, out)
+            confirm::run(&data::open_shop_for_writing(db.as_deref())?, args, out)
+        }
+        Some(Command::Settings(args)) => {
+            let shop = if args.changes() {
+                data::open_shop_for_writing(db.as_deref())?
+            } else {
+                data::open_shop(db.as_deref())?
+            };
+            settings::run(&shop, args, out)
         }
         Some(Command::Limits(args)) => {
             // Showing the limits reads; an action changes them.
