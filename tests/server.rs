@@ -665,6 +665,94 @@ fn an_import_whose_server_goes_away_half_way_writes_nothing() {
 }
 
 #[test]
+fn a_reading_the_server_refuses_after_the_importer_passed_it_ends_the_import_and_writes_nothing() {
+    let Some(_) = server() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let url = new_database();
+    let data = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data");
+    ok(dir.path(), &["--db", &url, "init"]);
+    ok(
+        dir.path(),
+        &[
+            "--db",
+            &url,
+            "import",
+            "units",
+            data.join("units.csv").to_str().unwrap(),
+        ],
+    );
+    // A rule of the server's that the importer does not know (as a shop's DBA might add): the
+    // importer passes 120 °C, the server refuses it.
+    postgres::Client::connect(&url, postgres::NoTls)
+        .unwrap()
+        .batch_execute(
+            "ALTER TABLE checks ADD CONSTRAINT house_rule CHECK (reservoir_temp_c < 100)",
+        )
+        .unwrap();
+    let header = std::fs::read_to_string(data.join("checks.csv")).unwrap();
+    let header = header.lines().next().unwrap();
+    let row = |at: &str, temp: &str| {
+        format!("PR-01-M,{at},{temp},13.7,121,7.25,14,ok,ok,31283,5.6,R. Quennell,")
+    };
+    for (name, rows) in [
+        (
+            "middle.csv",
+            [
+                "2024-12-01T06:00:00Z",
+                "2024-12-08T06:00:00Z",
+                "2024-12-15T06:00:00Z",
+            ],
+        ),
+        (
+            "last.csv",
+            [
+                "2024-12-01T06:00:00Z",
+                "2024-12-08T06:00:00Z",
+                "2024-12-22T06:00:00Z",
+            ],
+        ),
+    ] {
+        let hot = if name == "middle.csv" { 1 } else { 2 };
+        let body: Vec<String> = rows
+            .iter()
+            .enumerate()
+            .map(|(i, at)| row(at, if i == hot { "120" } else { "35.3" }))
+            .collect();
+        let file = dir.path().join(name);
+        std::fs::write(&file, format!("{header}\n{}\n", body.join("\n"))).unwrap();
+        for keep_going in [false, true] {
+            let mut args = vec![
+                "--db",
+                url.as_str(),
+                "import",
+                "checks",
+                file.to_str().unwrap(),
+            ];
+            if keep_going {
+                args.push("--keep-going");
+            }
+            let out = sumpbook(dir.path(), &args);
+            let err = text(&out.stderr);
+            assert!(
+                !out.status.success(),
+                "{name} {keep_going}: {}",
+                text(&out.stdout)
+            );
+            assert!(
+                err.contains("house_rule") || err.contains("refused"),
+                "{err}"
+            );
+            assert!(!err.contains("panicked"), "{err}");
+            assert_eq!(
+                count(&url, "checks"),
+                0,
+                "{name} {keep_going}: nothing written"
+            );
+        }
+    }
+}
+
+#[test]
 fn a_correction_over_someone_elses_is_refused_naming_who_and_when() {
     crate::backends::on_each_backend(|| {
         let dir = tempfile::tempdir().unwrap();

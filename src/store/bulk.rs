@@ -4,11 +4,16 @@
 //! row, so a million rows cost a million statement steps and one commit. Dropping it without
 //! [`Bulk::commit`] rolls everything back: imports are all-or-nothing. A row whose identifying
 //! key (unit + time, + kind for events) is already stored is not written again: [`Put`] says
-//! whether it was new or hands back the stored row, which is never overwritten. A row that
-//! breaks a schema rule fails alone (SQLite undoes just that statement; on a server a savepoint
-//! around each row does the same), so a caller may go on and collect every bad row before
-//! deciding.
+//! whether it was new or hands back the stored row, which is never overwritten. In a shop file
+//! a reading that breaks a schema rule fails alone (SQLite undoes just that statement), so a
+//! caller may go on and collect every bad row before deciding. On a server a failed statement
+//! aborts the whole transaction, and a savepoint around each reading (a subtransaction each)
+//! made a million-row import crawl: there readings go in without one — the importer has
+//! checked every value against the schema's bounds first — and a reading the server still
+//! refuses ends the bulk write: every later call and the commit are refused, and nothing is
+//! written. Machines, units and fluids keep a savepoint each (they are few).
 
+use std::cell::RefCell;
 use std::collections::HashMap;
 
 use super::checks::{check_from_row, CheckRow, CHECK_COLS, INSERT_CHECK};
@@ -67,6 +72,8 @@ pub struct Bulk<'s> {
     fluids: HashMap<String, Fluid>,
     sql: BulkSql,
     tx: TxGuard<'s>,
+    /// On a server: why the server refused a reading, after which nothing more is written.
+    refused: RefCell<Option<String>>,
 }
 
 impl Store {
@@ -98,11 +105,33 @@ impl Store {
             units,
             fluids,
             sql: BulkSql::new(),
+            refused: RefCell::new(None),
         })
     }
 }
 
 impl<'s> Bulk<'s> {
+    /// Writes one reading (see the module documentation for how a refusal differs between a
+    /// file and a server).
+    fn insert_reading(
+        &self,
+        sql: &str,
+        params: &[&dyn super::db::ToDb],
+    ) -> Result<Option<Id>, StoreError> {
+        if let Some(why) = self.refused.borrow().as_ref() {
+            return Err(StoreError::Server(format!(
+                "the server refused an earlier row ({why}); nothing was written"
+            )));
+        }
+        let db = &self.store.db;
+        if !self.store.is_server() {
+            return db.statement_alone(|| db.insert(sql, params));
+        }
+        db.insert(sql, params).inspect_err(|e| {
+            *self.refused.borrow_mut() = Some(e.to_string());
+        })
+    }
+
     pub fn machine_by_tag(&self, tag: &str) -> Option<&Machine> {
         self.machines.get(tag.trim())
     }
@@ -181,9 +210,7 @@ impl<'s> Bulk<'s> {
         let row = CheckRow::from_model(c)?;
         let store = self.store;
         store.count();
-        let id = store
-            .db
-            .statement_alone(|| store.db.insert(&self.sql.ins_check, &row.params()[..]))?;
+        let id = self.insert_reading(&self.sql.ins_check, &row.params()[..])?;
         if let Some(id) = id {
             return Ok(Put::Inserted(id));
         }
@@ -202,9 +229,7 @@ impl<'s> Bulk<'s> {
         let row = SampleRow::from_model(s)?;
         let store = self.store;
         store.count();
-        let id = store
-            .db
-            .statement_alone(|| store.db.insert(&self.sql.ins_sample, &row.params()[..]))?;
+        let id = self.insert_reading(&self.sql.ins_sample, &row.params()[..])?;
         if let Some(id) = id {
             return Ok(Put::Inserted(id));
         }
@@ -225,9 +250,7 @@ impl<'s> Bulk<'s> {
         let row = EventRow::from_model(e)?;
         let store = self.store;
         store.count();
-        let id = store
-            .db
-            .statement_alone(|| store.db.insert(&self.sql.ins_event, &row.params()[..]))?;
+        let id = self.insert_reading(&self.sql.ins_event, &row.params()[..])?;
         if let Some(id) = id {
             return Ok(Put::Inserted(id));
         }
@@ -243,6 +266,12 @@ impl<'s> Bulk<'s> {
 
     /// Makes everything written through this `Bulk` permanent.
     pub fn commit(self) -> Result<(), StoreError> {
+        if let Some(why) = self.refused.borrow().as_ref() {
+            // The server has aborted the transaction; its COMMIT would quietly roll back.
+            return Err(StoreError::Server(format!(
+                "the server refused a row ({why}); nothing was written"
+            )));
+        }
         self.store.count();
         self.tx.commit()
     }
