@@ -810,3 +810,156 @@ fn a_correction_over_someone_elses_is_refused_naming_who_and_when() {
         assert_eq!(a.store().check(stored.id).unwrap().unwrap(), again);
     });
 }
+
+/// The value a replacement puts in: the table's text or number, made different for each
+/// statement so that every statement is a real change.
+fn nth_value(value: &str, i: usize) -> String {
+    if value.starts_with('\'') {
+        format!("'replaced {i}'")
+    } else {
+        format!("{}", 90 + i)
+    }
+}
+
+/// The server has no REPLACE: an upsert (`INSERT … ON CONFLICT DO UPDATE`, on the id or on the
+/// identifying key) and a MERGE change a stored row through UPDATE, so on every table with an
+/// edit history they are refused without who and why, and with them each is in the edit
+/// history with the old and the new row; no row is added. Acknowledgements are never updated,
+/// deleted, upserted or merged, with who and why or without.
+#[test]
+fn an_upsert_on_a_server_is_an_update_in_the_edit_history_and_acknowledgements_stay() {
+    use crate::store_and_exchange::{KEPT_TABLES, ROWS_TO_KEEP};
+    let Some(_) = server() else { return };
+    let url = new_database();
+    drop(Store::open(Path::new(&url), OpenMode::Create).unwrap());
+    let mut raw = admin(&url);
+    raw.batch_execute(ROWS_TO_KEEP).unwrap();
+    let with_context = |sql: &str| {
+        format!(
+            "BEGIN; SELECT set_config('sumpbook.edited_by', 'Someone', true); \
+             SELECT set_config('sumpbook.reason', 'upsert', true); \
+             SELECT set_config('sumpbook.edited_at', '2025-02-01T00:00:00Z', true); \
+             {sql}; COMMIT"
+        )
+    };
+    let history = |raw: &mut postgres::Client, table: &str| -> Vec<(String, String)> {
+        raw.query(
+            "SELECT action, coalesce(new_value, '') FROM edit_log WHERE table_name = $1 AND row_id = 1 ORDER BY id",
+            &[&table],
+        )
+        .unwrap()
+        .iter()
+        .map(|r| (r.get(0), r.get(1)))
+        .collect()
+    };
+    let mut i = 0;
+    for (table, key, col, value) in KEPT_TABLES {
+        let cols: Vec<String> = raw
+            .query(
+                "SELECT column_name::text FROM information_schema.columns \
+                 WHERE table_schema = current_schema() AND table_name = $1 ORDER BY ordinal_position",
+                &[&table],
+            )
+            .unwrap()
+            .iter()
+            .map(|r| r.get(0))
+            .collect();
+        let all = cols.join(", ");
+        let no_id = cols
+            .iter()
+            .filter(|c| *c != "id")
+            .cloned()
+            .collect::<Vec<_>>()
+            .join(", ");
+        let rows_before = count(&url, table);
+        let mut forms: Vec<(&str, String)> = vec![
+            (
+                "upsert on the id",
+                format!(
+                    "INSERT INTO {table} ({all}) SELECT {all} FROM {table} WHERE id = 1 \
+                     ON CONFLICT (id) DO UPDATE SET {col} = {{v}}"
+                ),
+            ),
+            (
+                "MERGE",
+                format!(
+                    "MERGE INTO {table} USING (SELECT 1 AS id) AS s ON {table}.id = s.id \
+                     WHEN MATCHED THEN UPDATE SET {col} = {{v}}"
+                ),
+            ),
+        ];
+        if !key.is_empty() {
+            // The limits' key is a unique index on an expression, named as it is written.
+            let target = if table == "limits" {
+                "(coalesce(unit_id, 0)), key".to_string()
+            } else {
+                key.join(", ")
+            };
+            forms.push((
+                "upsert on the key",
+                format!(
+                    "INSERT INTO {table} ({no_id}) SELECT {no_id} FROM {table} WHERE id = 1 \
+                     ON CONFLICT ({target}) DO UPDATE SET {col} = {{v}}"
+                ),
+            ));
+        }
+        if table == "acknowledgements" {
+            forms.push((
+                "UPDATE",
+                "UPDATE acknowledgements SET note = {v} WHERE id = 1".into(),
+            ));
+            forms.push(("DELETE", "DELETE FROM acknowledgements WHERE id = 1".into()));
+            forms.push((
+                "MERGE … DELETE",
+                "MERGE INTO acknowledgements USING (SELECT 1 AS id) AS s \
+                 ON acknowledgements.id = s.id WHEN MATCHED THEN DELETE"
+                    .into(),
+            ));
+        }
+        for (form, sql) in forms {
+            i += 1;
+            let sql = sql.replace("{v}", &nth_value(value, i));
+            let bare = raw.batch_execute(&sql).unwrap_err();
+            let bare = format!("{bare:?}");
+            let logged_before = history(&mut raw, table).len();
+            let stated = raw.batch_execute(&with_context(&sql));
+            if table == "acknowledgements" {
+                let stated = format!("{:?}", stated.unwrap_err());
+                raw.batch_execute("ROLLBACK").unwrap();
+                for e in [&bare, &stated] {
+                    assert!(
+                        e.contains("acknowledgements are never changed or deleted"),
+                        "{form}: {e}"
+                    );
+                }
+                continue;
+            }
+            assert!(
+                bare.contains("edited_by"),
+                "{table}, {form} without who and why: {bare}"
+            );
+            stated.unwrap_or_else(|e| panic!("{table}, {form}: {e:?}"));
+            let logged = history(&mut raw, table);
+            assert_eq!(
+                logged.len(),
+                logged_before + 1,
+                "{table}, {form}: {logged:?}"
+            );
+            let (action, new_value) = logged.last().unwrap();
+            assert_eq!(action, "update", "{table}, {form}");
+            let shown = nth_value(value, i);
+            assert!(
+                new_value.contains(shown.trim_matches('\'')),
+                "{table}, {form}: {new_value}"
+            );
+        }
+        assert_eq!(count(&url, table), rows_before, "{table}: a row was added");
+    }
+    let acks: Vec<String> = raw
+        .query("SELECT note FROM acknowledgements ORDER BY id", &[])
+        .unwrap()
+        .iter()
+        .map(|r| r.get(0))
+        .collect();
+    assert_eq!(acks, ["first", "second"]);
+}

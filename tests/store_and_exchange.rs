@@ -1234,3 +1234,275 @@ fn confirmations_round_trip_through_export_and_import_and_a_shop_without_any_exp
     assert_eq!(rows[0].line, 2);
     assert_eq!(rows[0].column, "confirmed_at");
 }
+
+/// Rows in every table whose rows only an UPDATE may change, two of each, written with plain
+/// SQL that both backends take (ids 1 and 2 in a new shop).
+pub(crate) const ROWS_TO_KEEP: &str = "
+INSERT INTO machines (tag, name) VALUES ('M-1', 'Press one'), ('M-2', 'Press two');
+INSERT INTO fluids (name, iso_vg) VALUES ('Fluid A', 46), ('Fluid B', 32);
+INSERT INTO units (machine_id, tag, pump_kind, sensitive_component, fluid_id)
+    VALUES (1, 'U-1', 'gear', 'gear_pump', 1), (2, 'U-2', 'vane', 'vane_pump', 2);
+INSERT INTO checks (unit_id, taken_at, pressure_bar, note)
+    VALUES (1, '2025-01-06T07:30:00Z', 172, 'first'), (1, '2025-01-13T07:30:00Z', 171, 'second');
+INSERT INTO samples (unit_id, sampled_at, water_ppm, note)
+    VALUES (1, '2025-01-07T00:00:00Z', 120, 'first'), (1, '2025-01-14T00:00:00Z', 130, 'second');
+INSERT INTO events (unit_id, done_at, kind, note)
+    VALUES (1, '2025-01-08T10:00:00Z', 'filter_change', 'first'), (1, '2025-01-15T10:00:00Z', 'filter_change', 'second');
+INSERT INTO limits (unit_id, key, watch, act) VALUES (NULL, 'water_ppm', 150, 400), (1, 'water_ppm', 200, 500);
+INSERT INTO manual_baselines (unit_id, era_start, indicator, value_si, spread_si, entered_by, entered_at)
+    VALUES (1, '2025-01-01T00:00:00Z', 'effective_flow', 0.0015, 0.00002, 'RE', '2025-01-02T00:00:00Z'),
+           (1, '2025-01-01T00:00:00Z', 'case_drain', 0.00002, 0.000001, 'RE', '2025-01-02T00:00:00Z');
+INSERT INTO acknowledgements (unit_id, kind, state, ack_by, note, acked_at)
+    VALUES (1, 'water', 'watch', 'SV', 'first', '2025-01-09T00:00:00Z'),
+           (1, 'water', 'act', 'SV', 'second', '2025-01-16T00:00:00Z');
+";
+
+/// The tables of [`ROWS_TO_KEEP`]: the columns of each one's identifying key beside the id,
+/// and a column with the value a replacement would put there.
+pub(crate) const KEPT_TABLES: [(&str, &[&str], &str, &str); 10] = [
+    ("checks", &["unit_id", "taken_at"], "note", "'replaced'"),
+    ("samples", &["unit_id", "sampled_at"], "note", "'replaced'"),
+    (
+        "events",
+        &["unit_id", "done_at", "kind"],
+        "note",
+        "'replaced'",
+    ),
+    ("units", &["tag"], "route_order", "99"),
+    ("fluids", &["name"], "base_type", "'replaced'"),
+    ("machines", &["tag"], "name", "'replaced'"),
+    ("limits", &["unit_id", "key"], "watch", "99"),
+    ("manual_baselines", &[], "value_si", "99"),
+    ("acknowledgements", &[], "note", "'replaced'"),
+    ("settings", &[], "shop_name", "'replaced'"),
+];
+
+/// Every statement that would replace row 1 of `table` (or delete it by moving row 2 onto its
+/// id or key) as SQLite spells them, with a name for the failure message.
+fn replacing_statements(
+    table: &str,
+    key: &[&str],
+    col: &str,
+    value: &str,
+    cols: &[String],
+) -> Vec<(String, String)> {
+    let all = cols.join(", ");
+    let changed = |c: &String| {
+        if c == col {
+            value.to_string()
+        } else {
+            c.clone()
+        }
+    };
+    let with_change = cols.iter().map(changed).collect::<Vec<_>>().join(", ");
+    let no_id: Vec<&String> = cols.iter().filter(|c| *c != "id").collect();
+    let no_id_list = no_id
+        .iter()
+        .map(|c| c.as_str())
+        .collect::<Vec<_>>()
+        .join(", ");
+    let no_id_changed = no_id
+        .iter()
+        .map(|c| changed(c))
+        .collect::<Vec<_>>()
+        .join(", ");
+    let mut out = vec![
+        (
+            "REPLACE INTO on the id".to_string(),
+            format!("REPLACE INTO {table} ({all}) SELECT {with_change} FROM {table} WHERE id = 1"),
+        ),
+        (
+            "INSERT OR REPLACE on the id".to_string(),
+            format!(
+                "INSERT OR REPLACE INTO {table} ({all}) SELECT {with_change} FROM {table} WHERE id = 1"
+            ),
+        ),
+        (
+            "upsert on the id".to_string(),
+            format!(
+                "INSERT INTO {table} ({all}) SELECT {all} FROM {table} WHERE id = 1 \
+                 ON CONFLICT (id) DO UPDATE SET {col} = {value}"
+            ),
+        ),
+    ];
+    if table != "settings" {
+        out.push((
+            "UPDATE OR REPLACE onto another id".to_string(),
+            format!("UPDATE OR REPLACE {table} SET id = 1 WHERE id = 2"),
+        ));
+    }
+    if !key.is_empty() {
+        let keys = key.join(", ");
+        out.extend([
+            (
+                "REPLACE INTO on the key, new id".to_string(),
+                format!(
+                    "REPLACE INTO {table} ({no_id_list}) SELECT {no_id_changed} FROM {table} WHERE id = 1"
+                ),
+            ),
+            (
+                "INSERT OR REPLACE on the key, new id".to_string(),
+                format!(
+                    "INSERT OR REPLACE INTO {table} ({no_id_list}) SELECT {no_id_changed} FROM {table} WHERE id = 1"
+                ),
+            ),
+            (
+                "upsert on the key".to_string(),
+                format!(
+                    "INSERT INTO {table} ({no_id_list}) SELECT {no_id_list} FROM {table} WHERE id = 1 \
+                     ON CONFLICT DO UPDATE SET {col} = {value}"
+                ),
+            ),
+            (
+                "UPDATE OR REPLACE onto another key".to_string(),
+                format!(
+                    "UPDATE OR REPLACE {table} SET ({keys}) = (SELECT {keys} FROM {table} WHERE id = 1) WHERE id = 2"
+                ),
+            ),
+        ]);
+    }
+    out
+}
+
+/// Every row of every table of a shop file, in one text per table.
+fn every_row(conn: &rusqlite::Connection) -> Vec<(String, Vec<String>)> {
+    let tables: Vec<String> = conn
+        .prepare("SELECT name FROM sqlite_schema WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name")
+        .unwrap()
+        .query_map([], |r| r.get(0))
+        .unwrap()
+        .map(Result::unwrap)
+        .collect();
+    tables
+        .into_iter()
+        .map(|t| {
+            let mut st = conn
+                .prepare(&format!("SELECT * FROM \"{t}\" ORDER BY rowid"))
+                .unwrap();
+            let n = st.column_count();
+            let rows = st
+                .query_map([], |r| {
+                    Ok((0..n)
+                        .map(|i| format!("{:?}", r.get_ref(i).unwrap()))
+                        .collect::<Vec<_>>()
+                        .join("|"))
+                })
+                .unwrap()
+                .map(Result::unwrap)
+                .collect();
+            (t, rows)
+        })
+        .collect()
+}
+
+/// SQLite's REPLACE deletes the row in its way without firing DELETE triggers (unless the
+/// connection set `recursive_triggers`, which the sqlite3 shell does not): every such
+/// statement, on every table with an edit history, and every upsert, insert or update meeting
+/// a stored id or key, is refused by the file itself, also with who and why stated; nothing
+/// moves. Acknowledgements are never updated or deleted. The program's own writes still work.
+#[test]
+fn no_statement_replaces_a_stored_row_of_a_shop_file_unseen() {
+    let dir = tmp();
+    let path = dir.path().join("kept.sqlite");
+    drop(Store::open(&path, OpenMode::Create).unwrap());
+    // As the sqlite3 shell opens a file: no recursive triggers, no foreign keys.
+    let raw = rusqlite::Connection::open(&path).unwrap();
+    raw.execute_batch("PRAGMA recursive_triggers = OFF; PRAGMA foreign_keys = OFF;")
+        .unwrap();
+    raw.execute_batch(ROWS_TO_KEEP).unwrap();
+    let before = every_row(&raw);
+    let mut tried = 0;
+    for (table, key, col, value) in KEPT_TABLES {
+        let cols: Vec<String> = raw
+            .prepare(&format!(
+                "SELECT name FROM pragma_table_info('{table}') ORDER BY cid"
+            ))
+            .unwrap()
+            .query_map([], |r| r.get(0))
+            .unwrap()
+            .map(Result::unwrap)
+            .collect();
+        let mut statements = replacing_statements(table, key, col, value, &cols);
+        if table == "acknowledgements" {
+            statements.extend([
+                (
+                    "UPDATE".to_string(),
+                    "UPDATE acknowledgements SET note = 'changed' WHERE id = 1".to_string(),
+                ),
+                (
+                    "DELETE".to_string(),
+                    "DELETE FROM acknowledgements WHERE id = 1".to_string(),
+                ),
+            ]);
+        }
+        for (form, sql) in statements {
+            for with_context in [false, true] {
+                if with_context {
+                    raw.execute_batch(
+                        "INSERT INTO edit_context (id, edited_by, reason, edited_at) \
+                         VALUES (1, 'Someone', 'replacing', '2025-02-01T00:00:00Z')",
+                    )
+                    .unwrap();
+                }
+                let result = raw.execute(&sql, []);
+                if with_context {
+                    raw.execute_batch("DELETE FROM edit_context").unwrap();
+                }
+                let e = match result {
+                    Ok(n) => panic!("{table}, {form} (who and why stated: {with_context}): {n} rows written by {sql}"),
+                    Err(e) => e.to_string(),
+                };
+                let expected = if table == "acknowledgements" {
+                    "acknowledgements are never changed or deleted"
+                } else {
+                    "changed only by UPDATE, which edit_log records"
+                };
+                assert!(
+                    e.contains(expected),
+                    "{table}, {form}: refused for another reason: {e}"
+                );
+                tried += 1;
+            }
+        }
+    }
+    assert_eq!(
+        tried,
+        2 * (3 * 10 + 9 + 4 * 7 + 2),
+        "every form on every table"
+    );
+    assert_eq!(
+        every_row(&raw),
+        before,
+        "a refused statement changed something"
+    );
+    drop(raw);
+
+    // The program's own writes: a plain insert of a stored key is a duplicate as before, a
+    // correction is an UPDATE in the edit history, a new acknowledgement is a new row.
+    let store = Store::open(&path, OpenMode::MustExist).unwrap();
+    let dup = store
+        .insert_check(&check(1, "2025-01-06T07:30:00Z"))
+        .unwrap_err();
+    assert_eq!(
+        dup.to_string(),
+        "a check of this unit at this time already exists"
+    );
+    let mut first = store.check(1).unwrap().unwrap();
+    first.note = "corrected".into();
+    store
+        .update_check(&first, "RE", "note typed on the wrong check")
+        .unwrap();
+    assert_eq!(store.edit_history("checks", 1).unwrap().len(), 1);
+    store
+        .insert_ack(&sumpbook::model::Acknowledgement {
+            id: 0,
+            unit_id: 1,
+            kind: "water".into(),
+            state: "act".into(),
+            by: "SV".into(),
+            note: "seen again".into(),
+            at: t("2025-01-20T00:00:00Z"),
+        })
+        .unwrap();
+    assert_eq!(store.acks(1).unwrap().len(), 3);
+}

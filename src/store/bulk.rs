@@ -4,7 +4,11 @@
 //! row, so a million rows cost a million statement steps and one commit. Dropping it without
 //! [`Bulk::commit`] rolls everything back: imports are all-or-nothing. A row whose identifying
 //! key (unit + time, + kind for events) is already stored is not written again: [`Put`] says
-//! whether it was new or hands back the stored row, which is never overwritten. In a shop file
+//! whether it was new or hands back the stored row, which is never overwritten. A shop file
+//! refuses every insert that meets a stored key, `ON CONFLICT DO NOTHING` included (so that no
+//! REPLACE can delete a row unseen; schema version 4), so there the key is looked up first (the
+//! write lock held makes the look final); a server takes `DO NOTHING`, which also covers
+//! another connection storing the key meanwhile, and is looked at after. In a shop file
 //! a reading that breaks a schema rule fails alone (SQLite undoes just that statement), so a
 //! caller may go on and collect every bad row before deciding. On a server a failed statement
 //! aborts the whole transaction, and a savepoint around each reading (a subtransaction each)
@@ -210,16 +214,24 @@ impl<'s> Bulk<'s> {
         let row = CheckRow::from_model(c)?;
         let store = self.store;
         store.count();
+        let stored = || {
+            store.query_opt(
+                &self.sql.sel_check,
+                params![row.unit_id, row.taken_at],
+                check_from_row,
+            )
+        };
+        // A shop file: look first (see the module documentation).
+        if !store.is_server() {
+            if let Some(existing) = stored()? {
+                return Ok(Put::Exists(Box::new(existing)));
+            }
+        }
         let id = self.insert_reading(&self.sql.ins_check, &row.params()[..])?;
         if let Some(id) = id {
             return Ok(Put::Inserted(id));
         }
-        let existing = store
-            .query_opt(
-                &self.sql.sel_check,
-                params![row.unit_id, row.taken_at],
-                check_from_row,
-            )?
+        let existing = stored()?
             .ok_or_else(|| StoreError::Refused("the check was neither written nor found".into()))?;
         Ok(Put::Exists(Box::new(existing)))
     }
@@ -229,19 +241,26 @@ impl<'s> Bulk<'s> {
         let row = SampleRow::from_model(s)?;
         let store = self.store;
         store.count();
+        let stored = || {
+            store.query_opt(
+                &self.sql.sel_sample,
+                params![row.unit_id, row.sampled_at],
+                sample_from_row,
+            )
+        };
+        // A shop file: look first (see the module documentation).
+        if !store.is_server() {
+            if let Some(existing) = stored()? {
+                return Ok(Put::Exists(Box::new(existing)));
+            }
+        }
         let id = self.insert_reading(&self.sql.ins_sample, &row.params()[..])?;
         if let Some(id) = id {
             return Ok(Put::Inserted(id));
         }
-        let existing = store
-            .query_opt(
-                &self.sql.sel_sample,
-                params![row.unit_id, row.sampled_at],
-                sample_from_row,
-            )?
-            .ok_or_else(|| {
-                StoreError::Refused("the sample was neither written nor found".into())
-            })?;
+        let existing = stored()?.ok_or_else(|| {
+            StoreError::Refused("the sample was neither written nor found".into())
+        })?;
         Ok(Put::Exists(Box::new(existing)))
     }
 
@@ -250,16 +269,24 @@ impl<'s> Bulk<'s> {
         let row = EventRow::from_model(e)?;
         let store = self.store;
         store.count();
+        let stored = || {
+            store.query_opt(
+                &self.sql.sel_event,
+                params![row.unit_id, row.done_at, row.kind],
+                event_from_row,
+            )
+        };
+        // A shop file: look first (see the module documentation).
+        if !store.is_server() {
+            if let Some(existing) = stored()? {
+                return Ok(Put::Exists(Box::new(existing)));
+            }
+        }
         let id = self.insert_reading(&self.sql.ins_event, &row.params()[..])?;
         if let Some(id) = id {
             return Ok(Put::Inserted(id));
         }
-        let existing = store
-            .query_opt(
-                &self.sql.sel_event,
-                params![row.unit_id, row.done_at, row.kind],
-                event_from_row,
-            )?
+        let existing = stored()?
             .ok_or_else(|| StoreError::Refused("the event was neither written nor found".into()))?;
         Ok(Put::Exists(Box::new(existing)))
     }

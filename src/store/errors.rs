@@ -58,7 +58,9 @@ pub(crate) fn constraint_error(msg: &str) -> Option<StoreError> {
         });
     }
     if let Some(rest) = msg.strip_prefix("UNIQUE constraint failed: ") {
-        return Some(duplicate(rest));
+        // The schema's own refusal of a replacement adds why after "; " (schema version 4).
+        let key = rest.split_once("; ").map_or(rest, |(key, _)| key);
+        return Some(duplicate(key));
     }
     if msg.starts_with("FOREIGN KEY constraint failed") {
         return Some(StoreError::BadReference);

@@ -1309,11 +1309,21 @@ mod tests {
         assert!(matches!(e, StoreError::NoEditContext));
         let e = constraint_error("UNIQUE constraint failed: units.tag").unwrap();
         assert_eq!(e.to_string(), "a unit with this tag already exists");
+        // The schema's refusal of a replacement (version 4) reads as the same duplicate.
+        let e = constraint_error(
+            "UNIQUE constraint failed: checks.unit_id, checks.taken_at; a stored row is changed \
+             only by UPDATE, which edit_log records, never replaced",
+        )
+        .unwrap();
+        assert_eq!(
+            e.to_string(),
+            "a check of this unit at this time already exists"
+        );
     }
 
     #[test]
     fn every_migration_applies_in_memory() {
         MIGRATIONS.validate().unwrap();
-        assert_eq!(Store::latest_schema_version(), 3);
+        assert_eq!(Store::latest_schema_version(), 4);
     }
 }
