@@ -2440,12 +2440,20 @@ fn names_in(dir: &Path) -> Vec<String> {
 fn a_shop_failing_its_quick_check_is_neither_backed_up_nor_written_to() {
     let dir = tempfile::tempdir().unwrap();
     let db = shop_failing_its_quick_check(dir.path());
+    let good = dir.path().join("good.sqlite");
+    ok(&good, &["init"]);
+    let good_before = std::fs::read(&good).unwrap();
     let before = std::fs::read(&db).unwrap();
     let files_before = names_in(dir.path());
     let backup = dir.path().join("copy.sqlite");
     let units = corpus().join("shop/units.csv");
-    let commands: [Vec<&str>; 3] = [
+    let (db_s, good_s) = (path_str(&db), path_str(&good));
+    let commands: [Vec<&str>; 7] = [
         vec!["backup", "--out", path_str(&backup)],
+        vec!["roles", "--create"],
+        vec!["copy", "--from", db_s, "--to", path_str(&backup)],
+        vec!["copy", "--from", good_s, "--to", db_s],
+        vec!["copy", "--from", good_s, "--to", db_s, "--replace"],
         vec!["import", "units", path_str(&units)],
         vec![
             "log-check",
@@ -2465,6 +2473,7 @@ fn a_shop_failing_its_quick_check_is_neither_backed_up_nor_written_to() {
         }
         assert!(!err.contains("panicked"), "{err}");
         assert_eq!(std::fs::read(&db).unwrap(), before, "{args:?} wrote");
+        assert_eq!(std::fs::read(&good).unwrap(), good_before, "{args:?} wrote");
         assert!(
             !backup.exists(),
             "{args:?}: a copy of a damaged shop was kept"

@@ -322,7 +322,10 @@ impl Shop {
                 "--from and --to name the same shop".into(),
             ));
         }
-        let source = Shop::open(from)?;
+        // A damaged shop is neither copied nor written to: the source must pass its quick
+        // check, and so must a shop file at `to` (also one `--replace` would overwrite: it may
+        // hold what the source does not, and is recovered or removed by hand).
+        let source = Shop::open_for_writing(from)?;
         let shown_to = if Shop::is_server(to) {
             Shop::open(to)?.store.path().display().to_string()
         } else {
@@ -339,7 +342,7 @@ impl Shop {
             return Ok(outcome(tables));
         }
         if to.exists() {
-            let dest = Shop::open(to)?;
+            let dest = Shop::open_for_writing(to)?;
             if dest.store.is_empty_shop()? {
                 let tables = source.store.copy_into(&dest.store, false)?;
                 return Ok(outcome(tables));

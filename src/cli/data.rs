@@ -171,7 +171,13 @@ pub fn run_copy(args: &CopyArgs, out: &mut dyn Write) -> Result<(), Failure> {
 }
 
 pub fn run_roles(db: Option<&Path>, args: &RolesArgs, out: &mut dyn Write) -> Result<(), Failure> {
-    let shop = open_shop(db)?;
+    // Creating roles or granting one writes to the shop: a damaged shop file is refused first,
+    // as by every other command that writes.
+    let shop = if args.create || args.grant.is_some() {
+        open_shop_for_writing(db)?
+    } else {
+        open_shop(db)?
+    };
     if args.create {
         shop.create_roles()?;
         writeln!(out, "roles created on {}:", shop.path().display())?;
