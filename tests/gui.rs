@@ -1052,3 +1052,41 @@ fn a_correction_over_someone_elses_is_refused_naming_who_changed_the_reading() {
         "read twice"
     );
 }
+
+/// A shop whose write-ahead log was removed after the program writing to it stopped unclean
+/// has lost the changes saved in it: the window says so above every screen, naming the log,
+/// and the whole app works on. A shop closed cleanly shows no such line.
+#[test]
+fn a_shop_whose_log_was_removed_after_a_crash_says_so_above_every_screen() {
+    i_slint_backend_testing::init_no_event_loop();
+    let dir = tempfile::tempdir().unwrap();
+    let lost = crate::reliability::shop_left_open_after_a_check(
+        &dir.path().join("held"),
+        &dir.path().join("lost"),
+    );
+    let mut log = lost.as_os_str().to_os_string();
+    log.push("-wal");
+    std::fs::remove_file(&log).unwrap();
+    let app = App::open(&lost).unwrap();
+    app.window().show().unwrap();
+    let said = app.window().global::<Nav>().get_shop_warning();
+    assert!(
+        said.contains("stopped without closing it") && said.contains("shop.sqlite-wal"),
+        "{said}"
+    );
+    for screen in [Screen::Fleet, Screen::Work] {
+        app.show(screen);
+        let line = by_label(&app, "Shop warning").accessible_value().unwrap();
+        assert_eq!(line.as_str(), said.as_str());
+    }
+
+    let clean = dir.path().join("clean.sqlite");
+    Shop::create_demo(&clean).unwrap();
+    let app = App::open(&clean).unwrap();
+    assert_eq!(app.window().global::<Nav>().get_shop_warning().as_str(), "");
+    assert!(
+        ElementHandle::find_by_accessible_label(app.window(), "Shop warning")
+            .next()
+            .is_none()
+    );
+}

@@ -2495,6 +2495,112 @@ fn a_backup_of_a_good_shop_passes_its_quick_check() {
     assert_eq!(check, "ok");
 }
 
+/// The side file `SHOP-SUFFIX` of a shop file.
+fn side_of(db: &Path, suffix: &str) -> PathBuf {
+    let mut p = db.as_os_str().to_os_string();
+    p.push(suffix);
+    PathBuf::from(p)
+}
+
+/// A shop as a program leaves it when it stops without closing the shop (killed, a crash, a
+/// power cut) after saving a check: the shop file, its write-ahead log holding that check and
+/// the log's shared-memory index, copied byte for byte into `into` while a connection that
+/// wrote the check still holds them open (what a killed holder leaves on disk). The check's
+/// note is `the last check`.
+pub(crate) fn shop_left_open_after_a_check(dir: &Path, into: &Path) -> PathBuf {
+    let db = base_shop(dir);
+    let holder = Connection::open(&db).unwrap();
+    holder
+        .execute(
+            "INSERT INTO checks (unit_id, taken_at, pressure_bar, taken_by, note) \
+             VALUES ((SELECT min(id) FROM units), '2025-03-03T07:30:00Z', 171.0, 'AK', 'the last check')",
+            [],
+        )
+        .unwrap();
+    std::fs::create_dir_all(into).unwrap();
+    let copy = into.join("shop.sqlite");
+    for suffix in ["", "-wal", "-shm"] {
+        let from = side_of(&db, suffix);
+        assert!(
+            from.is_file(),
+            "{} while the holder is open",
+            from.display()
+        );
+        std::fs::copy(&from, side_of(&copy, suffix)).unwrap();
+    }
+    drop(holder);
+    copy
+}
+
+/// After an unclean shutdown SQLite takes the saved changes from the write-ahead log; when the
+/// log was deleted by hand they are gone, and the shop says so on standard error (a warning,
+/// not a refusal: exit 0) and in the app (`gui::a_shop_whose_log_was_removed_after_a_crash_says_so_above_every_screen`).
+/// No warning while another program holds the shop (its log is there), after a clean close, or
+/// when the log is there to recover from.
+#[test]
+fn a_shop_whose_log_was_removed_after_an_unclean_shutdown_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let warned = |db: &Path, args: &[&str]| -> (String, String) {
+        let out = run(db, args);
+        let err = text(&out.stderr);
+        assert!(out.status.success(), "{args:?}: {err}");
+        (text(&out.stdout), err)
+    };
+
+    // The log is there: the check is recovered from it, nothing to say.
+    let whole = shop_left_open_after_a_check(&dir.path().join("a"), &dir.path().join("whole"));
+    let (checks, err) = warned(&whole, &["export", "checks"]);
+    assert!(checks.contains("the last check"), "not recovered: {checks}");
+    assert!(!err.contains("warning"), "{err}");
+
+    // The log removed by hand: the check is lost and the first program to open the shop says
+    // so, naming the shop and the log, and what to do.
+    let lost = shop_left_open_after_a_check(&dir.path().join("b"), &dir.path().join("lost"));
+    std::fs::remove_file(side_of(&lost, "-wal")).unwrap();
+    let (checks, err) = warned(&lost, &["export", "checks"]);
+    assert!(!checks.contains("the last check"), "{checks}");
+    for said in [
+        "sumpbook: warning:",
+        "stopped without closing it",
+        "shop.sqlite-wal",
+        "are not in the shop",
+        "put it back beside the shop",
+    ] {
+        assert!(err.contains(said), "`{err}` should say `{said}`");
+    }
+    assert_eq!(integrity(&lost), "ok");
+    // Said once: the open reset what it was told from, and the shop is whole without it.
+    let (_, err) = warned(&lost, &["status"]);
+    assert!(!err.contains("warning"), "{err}");
+
+    // A write command is warned the same way and goes on.
+    let lost = shop_left_open_after_a_check(&dir.path().join("c"), &dir.path().join("lost2"));
+    std::fs::remove_file(side_of(&lost, "-wal")).unwrap();
+    let (_, err) = warned(
+        &lost,
+        &[
+            "log-check",
+            "PR-07-HPU",
+            "--by",
+            "AK",
+            "--reservoir-temp",
+            "45C",
+        ],
+    );
+    assert!(err.contains("are not in the shop"), "{err}");
+
+    // Another program holds the shop open (log and index both there): no warning.
+    let held = base_shop(&dir.path().join("d"));
+    let holder = Connection::open(&held).unwrap();
+    holder
+        .execute("UPDATE settings SET shop_name = shop_name WHERE id = 1", [])
+        .unwrap();
+    assert!(side_of(&held, "-shm").is_file() && side_of(&held, "-wal").is_file());
+    let (_, err) = warned(&held, &["status"]);
+    assert!(!err.contains("warning"), "{err}");
+    drop(holder);
+}
+
 #[test]
 fn an_empty_file_is_made_a_shop_only_by_init() {
     let dir = tempfile::tempdir().unwrap();

@@ -177,6 +177,13 @@ impl Shop {
         &self.path
     }
 
+    /// A warning about the state the shop file was found in when this program first opened it
+    /// (its write-ahead log removed after an unclean shutdown: the last saved changes lost), to
+    /// be shown as long as the program runs; `None` when there is nothing to say.
+    pub fn open_notice(&self) -> Option<String> {
+        self.store.open_notice()
+    }
+
     /// Writes the demo shop into this shop, which must have no units yet.
     pub fn load_demo(&mut self) -> Result<DemoCounts, AppError> {
         let n = self.store.unit_count()?;
@@ -426,6 +433,12 @@ impl From<ExchangeError> for AppError {
 /// `f(shop file, waited so far)`.
 pub fn report_waits_with(f: fn(&Path, std::time::Duration)) {
     crate::store::report_waits_with(f);
+}
+
+/// Sets what is told when a shop file is found in a state the user must know of (see
+/// [`Shop::open_notice`]): `f(shop file, what to say)`, once, when it is found.
+pub fn report_notices_with(f: fn(&Path, &str)) {
+    crate::store::report_notices_with(f);
 }
 
 /// Whether a store error is about the file or the input the user gave (a wrong, damaged or

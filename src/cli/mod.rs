@@ -169,6 +169,9 @@ pub fn run(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
             waited.as_secs()
         )
     });
+    crate::app::shop::report_notices_with(|_, notice| {
+        eprintln!("sumpbook: warning: {}", printable::printable(notice))
+    });
     if matches!(&cli.command, Some(Command::Export(a)) if a.out.is_none()) {
         return run_command(cli, out);
     }

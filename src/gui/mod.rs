@@ -581,6 +581,7 @@ fn refresh_nav(ctx: &Rc<Ctx>) {
             let nav = w.global::<Nav>();
             nav.set_shop_name(s.shop_name.into());
             nav.set_db_file(ctx.db_path.display().to_string().into());
+            nav.set_shop_warning(ctx.shop.open_notice().unwrap_or_default().into());
             nav.set_unit_system(
                 match s.unit_system {
                     UnitSystem::Metric => "metric",
