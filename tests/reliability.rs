@@ -11,6 +11,8 @@
 //! - two writers at once: no write lost, no "database is locked";
 //! - schema upgrades from every earlier version with data, the backup taken before them, and
 //!   refusal of a newer file; unusable files (missing, read-only, locked, text, foreign);
+//! - damaged shops neither copied nor written to; a write-ahead log removed after an unclean
+//!   shutdown told of;
 //! - formula-safe export that import reverses;
 //! - properties of the CSV reader (proptest): no panic on any input, export ∘ import = identity.
 

@@ -1,9 +1,10 @@
 //! A shop on a PostgreSQL server through the binary: `init` on an empty database, refusing a
 //! database of another program or of a newer schema, `copy` file → server → file with every
 //! table identical, the three roles' allowed and refused actions, and eight programs logging
-//! checks at once, two windows seeing each other's saves, and a server that goes away. Each test
-//! has a database of its own on the test server (see `backends`);
-//! without PostgreSQL binaries on the machine they do nothing (the reason is printed once).
+//! checks at once, two windows seeing each other's saves, a server that goes away, and upserts
+//! going through the edit history while acknowledgements stay as written. Each test has a
+//! database of its own on the test server (see `backends`); without PostgreSQL binaries on the
+//! machine they do nothing (the reason is printed once).
 
 use std::path::Path;
 use std::process::{Command, Output};

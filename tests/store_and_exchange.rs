@@ -1,8 +1,8 @@
 //! The store and the CSV exchange against real shops, files in a temporary directory and, where
-//! marked, the same on a PostgreSQL server:
-//! migrations, the schema's physical bounds, the edit history, refusing wrong files, the
-//! bounded fleet load, import (all-or-nothing, keep-going, re-import), export round trips in
-//! both unit systems, the sample data and the bad-input fixtures.
+//! marked, the same on a PostgreSQL server: migrations, the schema's physical bounds, the edit
+//! history (and no row replaced around it), refusing wrong files, the bounded fleet load, import
+//! (all-or-nothing, keep-going, re-import), export round trips in both unit systems, the sample
+//! data and the bad-input fixtures.
 
 use std::path::{Path, PathBuf};
 

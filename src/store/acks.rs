@@ -1,5 +1,6 @@
 //! Acknowledgements of flags: the `acknowledgements` table. Insert and list only; an
-//! acknowledgement is evidence that someone saw a flag and is never changed.
+//! acknowledgement is evidence that someone saw a flag and is never changed (the schema refuses
+//! UPDATE, DELETE and a replacement of one since version 4).
 
 use super::db::{params, Row};
 
