@@ -1,0 +1,335 @@
+//! Tests of the form rules on the demo shop.
+
+use super::*;
+
+use chrono::{DateTime, Duration, Utc};
+
+use crate::app::shop::Shop;
+use crate::app::work::{self as work};
+use crate::exchange::FileKind;
+use crate::model::Unit;
+use crate::quantity::Kind;
+use crate::units::{Temperature, UnitSystem};
+
+fn demo() -> (tempfile::TempDir, Shop) {
+    let dir = tempfile::tempdir().unwrap();
+    let shop = Shop::create_demo(&dir.path().join("shop.sqlite")).unwrap();
+    (dir, shop)
+}
+
+fn first_unit(shop: &Shop) -> Unit {
+    let id = route(shop).unwrap()[0].unit_id;
+    shop.store().unit(id).unwrap().unwrap()
+}
+
+fn entered(pairs: &[(&str, &str)]) -> Entered {
+    let mut e = Entered::new();
+    for (k, v) in pairs {
+        e.set(k, v);
+    }
+    e
+}
+
+#[test]
+fn a_us_shop_sees_and_sets_temperature_limits_in_fahrenheit() {
+    let (_d, shop) = demo();
+    let mut st = shop_settings(&shop).unwrap();
+    st.unit_system = UnitSystem::Us;
+    save_settings(&shop, &st, "tester", "US units").unwrap();
+    let view = limits(&shop, None).unwrap();
+    let row = |k: &str| view.rows.iter().find(|r| r.key == k).unwrap().clone();
+    // Built-in 60 / 70 °C = 140 / 158 °F; a 5 / 10 K rise = 9 / 18 °F steps
+    // (°F = °C × 9/5 + 32, NIST SP 811).
+    let t = row("reservoir_temp_c");
+    assert_eq!(
+        (t.watch, t.act, t.unit.as_str()),
+        (Some(140.0), Some(158.0), "°F")
+    );
+    let h = row("heat_rise_drift_k");
+    assert_eq!(
+        (h.watch, h.act, h.unit.as_str()),
+        (Some(9.0), Some(18.0), "°F")
+    );
+    // Units without a US form are unchanged.
+    assert_eq!(row("water_ppm").unit, "ppm");
+    // 149 °F typed = 65 °C stored; a 27 °F-step act = 15 K.
+    let edits = [
+        LimitEdit {
+            key: "reservoir_temp_c".into(),
+            watch: "149".into(),
+            act: "158".into(),
+        },
+        LimitEdit {
+            key: "heat_rise_drift_k".into(),
+            watch: "9".into(),
+            act: "27".into(),
+        },
+    ];
+    assert_eq!(
+        save_limits(&shop, None, &edits, "tester").unwrap(),
+        SaveOutcome::Saved(2)
+    );
+    let stored = work::limits_in(shop.store(), None).unwrap();
+    let srow = |k: &str| stored.rows.iter().find(|r| r.key == k).unwrap().clone();
+    let t = srow("reservoir_temp_c");
+    assert!((t.watch.unwrap() - 65.0).abs() < 1e-9 && (t.act.unwrap() - 70.0).abs() < 1e-9);
+    let h = srow("heat_rise_drift_k");
+    assert!((h.watch.unwrap() - 5.0).abs() < 1e-9 && (h.act.unwrap() - 15.0).abs() < 1e-9);
+}
+
+#[test]
+fn bare_numbers_are_read_in_the_shop_units_and_units_win() {
+    // 140 °F = 60 °C and 2500 psi = 2500 × 6894.757293168 Pa (NIST SP 811).
+    let c = |t: &str, s| Temperature(read_quantity(t, Kind::Temperature, s).unwrap().unwrap()).c();
+    assert!((c("62", UnitSystem::Metric) - 62.0).abs() < 1e-9);
+    assert!((c("140", UnitSystem::Us) - 60.0).abs() < 1e-9);
+    assert!((c("140F", UnitSystem::Metric) - 60.0).abs() < 1e-9);
+    let p = read_quantity("2500psi", Kind::Pressure, UnitSystem::Metric)
+        .unwrap()
+        .unwrap();
+    assert!((p - 2500.0 * 6_894.757_293_168).abs() < 1e-6);
+    assert_eq!(
+        read_quantity("  ", Kind::Pressure, UnitSystem::Metric),
+        Ok(None)
+    );
+    assert!(read_quantity("12 bananas", Kind::Pressure, UnitSystem::Metric).is_err());
+}
+
+#[test]
+fn a_time_in_the_future_is_refused() {
+    let now: DateTime<Utc> = "2025-03-04T12:00:00Z".parse().unwrap();
+    assert_eq!(read_when("", now), Ok(now));
+    assert!(read_when("2031-01-01 08:00", now)
+        .unwrap_err()
+        .contains("future"));
+    assert!(read_when("03/04/2025", now).is_err());
+}
+
+#[test]
+fn an_impossible_temperature_is_refused_and_nothing_is_written() {
+    let (_d, shop) = demo();
+    let u = first_unit(&shop);
+    let n = shop.store().checks_for_unit(u.id, None).unwrap().len();
+    // Design §10: above 150 °C is impossible for a reservoir.
+    let out = save_check(
+        &shop,
+        u.id,
+        &entered(&[("reservoir_temp", "151")]),
+        "",
+        "T. T",
+        true,
+        Utc::now(),
+    )
+    .unwrap();
+    let SaveOutcome::Refused(p) = out else {
+        panic!("refused expected: {out:?}")
+    };
+    assert_eq!(p[0].field, "reservoir_temp");
+    assert!(p[0].message.contains("150"), "{}", p[0].message);
+    assert_eq!(shop.store().checks_for_unit(u.id, None).unwrap().len(), n);
+    // A negative pressure and a zero stroke time are refused too.
+    let e = entered(&[("pressure", "-3"), ("stroke_time", "0")]);
+    let SaveOutcome::Refused(p) =
+        save_check(&shop, u.id, &e, "", "T. T", true, Utc::now()).unwrap()
+    else {
+        panic!()
+    };
+    assert!(p.iter().any(|x| x.field == "pressure") && p.iter().any(|x| x.field == "stroke_time"));
+    // Who took it is part of the record.
+    let out = save_check(
+        &shop,
+        u.id,
+        &entered(&[("reservoir_temp", "45")]),
+        "",
+        " ",
+        true,
+        Utc::now(),
+    )
+    .unwrap();
+    assert!(matches!(out, SaveOutcome::Refused(ref p) if p.iter().any(|x| x.field == "by")));
+}
+
+#[test]
+fn an_unusual_stroke_time_asks_first_and_is_kept_when_confirmed() {
+    let (_d, shop) = demo();
+    let u = first_unit(&shop);
+    let checks = shop.store().checks_for_unit(u.id, None).unwrap();
+    let last = checks
+        .iter()
+        .rev()
+        .find_map(|c| c.stroke_time)
+        .unwrap()
+        .si();
+    let e = entered(&[("stroke_time", &format!("{:.2}", last * 2.0))]);
+    let out = save_check(&shop, u.id, &e, "", "T. T", false, Utc::now()).unwrap();
+    let SaveOutcome::NeedsConfirmation(p) = out else {
+        panic!("{out:?}")
+    };
+    assert_eq!(p[0].field, "stroke_time");
+    assert_eq!(
+        shop.store().checks_for_unit(u.id, None).unwrap().len(),
+        checks.len()
+    );
+    let out = save_check(&shop, u.id, &e, "", "T. T", true, Utc::now()).unwrap();
+    let SaveOutcome::Saved(s) = out else {
+        panic!("{out:?}")
+    };
+    let stored = shop.store().check(s.check_id).unwrap().unwrap();
+    assert!((stored.stroke_time.unwrap().si() - (last * 2.0 * 100.0).round() / 100.0).abs() < 1e-9);
+    assert_eq!(stored.by, "T. T");
+    // Asked and kept: stored as confirmed by the technician at the moment of saving.
+    let k = stored
+        .confirmed
+        .expect("a confirmed unusual reading is stored as confirmed");
+    assert_eq!(k.by, "T. T");
+    assert!(k.at <= Utc::now() && k.at > Utc::now() - Duration::minutes(5));
+    // A reading nobody questioned is stored without a confirmation: the usual stroke time.
+    let plain = entered(&[("stroke_time", &format!("{last:.2}"))]);
+    let later = Utc::now() + Duration::seconds(1);
+    let out = save_check(&shop, u.id, &plain, "", "T. T", false, later).unwrap();
+    let SaveOutcome::Saved(s) = out else {
+        panic!("the unit's usual stroke time is not unusual: {out:?}")
+    };
+    assert_eq!(
+        shop.store().check(s.check_id).unwrap().unwrap().confirmed,
+        None
+    );
+}
+
+#[test]
+fn a_sample_preview_derives_the_code_and_refuses_rising_counts() {
+    let (_d, shop) = demo();
+    let u = first_unit(&shop);
+    // ISO 4406 Table 1: 2400/mL is in 1300–2500 → 18; 610 in 320–640 → 16; 45 in 40–80 → 13.
+    let e = entered(&[
+        ("count_4", "2400"),
+        ("count_6", "610"),
+        ("count_14", "45"),
+        ("by", "T. T"),
+    ]);
+    let r = review_sample(&shop, u.id, &e, Utc::now()).unwrap();
+    assert!(
+        r.problems.iter().all(|p| p.verdict != Verdict::Refused),
+        "{:?}",
+        r.problems
+    );
+    let code = r.preview.unwrap().point.unwrap().code.unwrap();
+    assert_eq!(code.to_string(), "18/16/13");
+    // More particles ≥6 µm than ≥4 µm cannot be: every one ≥6 µm is also ≥4 µm.
+    let e = entered(&[("count_4", "600"), ("count_6", "610")]);
+    let r = review_sample(&shop, u.id, &e, Utc::now()).unwrap();
+    assert!(r.sample.is_none());
+    assert!(r
+        .problems
+        .iter()
+        .any(|p| p.field == "count_6" && p.verdict == Verdict::Refused));
+    // Oil thins as it warms: KV100 at or above KV40 is refused.
+    let e = entered(&[("kv40", "46"), ("kv100", "50")]);
+    let r = review_sample(&shop, u.id, &e, Utc::now()).unwrap();
+    assert!(r.problems.iter().any(|p| p.field == "kv100"));
+}
+
+#[test]
+fn the_kind_of_a_csv_file_is_told_from_its_header() {
+    let h = |s: &str| s.split(',').map(String::from).collect::<Vec<_>>();
+    assert_eq!(
+        detect_kind(&h("unit_tag,taken_at,reservoir_temp_c")),
+        Some(FileKind::Checks)
+    );
+    assert_eq!(
+        detect_kind(&h("unit_tag,sampled_at,kv40_cst,water_ppm")),
+        Some(FileKind::Samples)
+    );
+    assert_eq!(
+        detect_kind(&h("unit_tag,done_at,kind")),
+        Some(FileKind::Events)
+    );
+    assert_eq!(
+        detect_kind(&h("machine_tag,unit_tag,pump_kind")),
+        Some(FileKind::Units)
+    );
+    assert_eq!(detect_kind(&h("tag,when,temp")), None);
+}
+
+#[test]
+fn a_preview_writes_nothing_and_a_cancelled_import_writes_nothing() {
+    let (dir, shop) = demo();
+    let u = first_unit(&shop);
+    let db = shop.path().to_path_buf();
+    let n = shop.store().checks_for_unit(u.id, None).unwrap().len();
+    let csv = dir.path().join("checks.csv");
+    std::fs::write(
+        &csv,
+        format!("unit_tag,taken_at,reservoir_temp_c\n{0},2020-01-06T08:00:00Z,40\n{0},2020-01-13T08:00:00Z,41\n", u.tag),
+    )
+    .unwrap();
+    let p = preview_import(&db, &csv, &|_| {}, &Cancel::new())
+        .unwrap()
+        .unwrap();
+    assert_eq!(p.kind, FileKind::Checks);
+    assert_eq!(p.outcome.as_ref().unwrap().inserted, 2);
+    assert_eq!(shop.store().checks_for_unit(u.id, None).unwrap().len(), n);
+    let cancel = Cancel::new();
+    cancel.cancel();
+    assert_eq!(
+        run_import(&db, FileKind::Checks, &csv, &|_| {}, &cancel).unwrap(),
+        ImportRun::Cancelled
+    );
+    assert_eq!(shop.store().checks_for_unit(u.id, None).unwrap().len(), n);
+    let done = run_import(&db, FileKind::Checks, &csv, &|_| {}, &Cancel::new()).unwrap();
+    assert!(
+        matches!(done, ImportRun::Done(ref s) if s.inserted == 2),
+        "{done:?}"
+    );
+    assert_eq!(
+        shop.store().checks_for_unit(u.id, None).unwrap().len(),
+        n + 2
+    );
+    // A bad row: every problem listed with its line, nothing written.
+    std::fs::write(
+        &csv,
+        format!(
+            "unit_tag,taken_at,reservoir_temp_c\n{},2020-02-03T08:00:00Z,400\n",
+            u.tag
+        ),
+    )
+    .unwrap();
+    let p = preview_import(&db, &csv, &|_| {}, &Cancel::new())
+        .unwrap()
+        .unwrap();
+    let errors = p.outcome.unwrap_err();
+    assert_eq!(errors[0].line, 2);
+    assert_eq!(
+        shop.store().checks_for_unit(u.id, None).unwrap().len(),
+        n + 2
+    );
+}
+
+#[test]
+fn corrections_need_a_reason_and_are_kept() {
+    let (_d, shop) = demo();
+    let u = first_unit(&shop);
+    let c = shop
+        .store()
+        .checks_for_unit(u.id, None)
+        .unwrap()
+        .pop()
+        .unwrap();
+    let fields = reading_fields(&shop, Reading::Check, c.id).unwrap();
+    let mut e = Entered::from_fields(&fields);
+    e.set("note", "gauge re-read");
+    let out = edit_reading(&shop, Reading::Check, c.id, &e, "R. E", "").unwrap();
+    assert!(matches!(out, SaveOutcome::Refused(ref p) if p[0].field == "reason"));
+    let out = edit_reading(&shop, Reading::Check, c.id, &e, "R. E", "typo on the sheet").unwrap();
+    assert_eq!(out, SaveOutcome::Saved(()));
+    assert_eq!(
+        shop.store().check(c.id).unwrap().unwrap().note,
+        "gauge re-read"
+    );
+    let hist = shop.store().edit_history("checks", c.id).unwrap();
+    assert_eq!(hist.len(), 1);
+    assert_eq!(hist[0].reason, "typo on the sheet");
+    delete_reading(&shop, Reading::Check, c.id, "R. E", "double entry").unwrap();
+    assert!(shop.store().check(c.id).unwrap().is_none());
+    assert_eq!(shop.store().edit_history("checks", c.id).unwrap().len(), 2);
+}

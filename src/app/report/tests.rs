@@ -1,0 +1,53 @@
+//! Tests of the report's words and figures.
+
+use super::*;
+
+use chrono::{DateTime, NaiveDate, Utc};
+
+use crate::app::AppError;
+use crate::report::Paper;
+
+#[test]
+fn work_status_reads_naturally() {
+    assert_eq!(work_status(5, None), "overdue 5 days");
+    assert_eq!(work_status(1, None), "overdue 1 day");
+    assert_eq!(work_status(0, None), "due today");
+    assert_eq!(
+        work_status(-12, Some("acid number act")),
+        "in 12 days; brought forward: acid number act"
+    );
+}
+
+#[test]
+fn chart_labels_keep_their_digits() {
+    assert_eq!(trim_number(130.6), "131");
+    assert_eq!(trim_number(10.0), "10");
+    assert_eq!(trim_number(96.24), "96.2");
+    assert_eq!(trim_number(3.51), "3.51");
+    assert_eq!(trim_number(0.0), "0");
+}
+
+#[test]
+fn the_period_defaults_and_refuses_a_reversed_range() {
+    let now: DateTime<Utc> = "2024-06-30T10:00:00Z".parse().unwrap();
+    let mut o = ReportOptions {
+        out: "r.pdf".into(),
+        units: vec![],
+        from: None,
+        to: None,
+        paper: Paper::A4,
+        prepared_by: String::new(),
+        replace: false,
+    };
+    let (f, t) = period(&o, now).unwrap();
+    assert_eq!(t, now.date_naive());
+    assert_eq!((t - f).num_days(), DEFAULT_PERIOD_DAYS);
+    assert_eq!(evaluation_instant(None, now), now);
+    o.from = NaiveDate::from_ymd_opt(2024, 7, 1);
+    assert!(matches!(period(&o, now), Err(AppError::BadInput(_))));
+    let past = NaiveDate::from_ymd_opt(2024, 3, 31).unwrap();
+    assert_eq!(
+        evaluation_instant(Some(past), now).to_rfc3339(),
+        "2024-03-31T23:59:59+00:00"
+    );
+}

@@ -1,0 +1,204 @@
+//! `sumpbook limits`: showing and setting the shop's and a unit's limits. No rules here;
+//! `app::work` checks and stores them.
+
+use super::*;
+use std::io::Write;
+
+use clap::{Args, Subcommand};
+
+use crate::app::shop::Shop;
+use crate::app::work::{self, LimitRow};
+use crate::cli::Failure;
+use crate::quantity::parse_temperature;
+
+#[derive(Args, Debug, Clone, PartialEq)]
+pub struct LimitsArgs {
+    #[command(subcommand)]
+    pub action: Option<LimitsAction>,
+    /// The limits in force for this unit (its overrides over the shop's).
+    #[arg(long, value_name = "TAG")]
+    pub unit: Option<String>,
+    /// Print JSON.
+    #[arg(long)]
+    pub json: bool,
+}
+
+#[derive(Subcommand, Debug, Clone, PartialEq)]
+pub enum LimitsAction {
+    /// Set a shop default, or with --unit an override for one unit.
+    Set {
+        /// Limit key, as `sumpbook limits` lists them.
+        #[arg(value_name = "KEY")]
+        key: String,
+        /// Watch limit, in the key's unit (°C keys also take 140F).
+        #[arg(long, value_name = "X", allow_hyphen_values = true)]
+        watch: Option<String>,
+        /// Act limit (for a single setting such as an interval: its value).
+        #[arg(long, value_name = "Y", allow_hyphen_values = true)]
+        act: Option<String>,
+        /// The value of a single setting (same as --act).
+        #[arg(
+            long,
+            value_name = "V",
+            conflicts_with = "act",
+            allow_hyphen_values = true
+        )]
+        value: Option<String>,
+        /// Override for this unit only (by tag); without it the shop default is set.
+        #[arg(long, value_name = "TAG")]
+        unit: Option<String>,
+        /// Who makes the change (kept in the edit history); default the login name.
+        #[arg(long, value_name = "NAME")]
+        by: Option<String>,
+    },
+    /// Remove a stored shop default or unit override.
+    Reset {
+        /// Limit key, as `sumpbook limits` lists them.
+        #[arg(value_name = "KEY")]
+        key: String,
+        /// Remove this unit's override (by tag); without it the shop default is removed.
+        #[arg(long, value_name = "TAG")]
+        unit: Option<String>,
+        /// Who makes the change (kept in the edit history); default the login name.
+        #[arg(long, value_name = "NAME")]
+        by: Option<String>,
+    },
+}
+pub(super) fn limit_number(key: &str, text: &str, what: &str) -> Result<f64, Failure> {
+    let t = text.trim();
+    if let Ok(v) = t.parse::<f64>() {
+        if v.is_finite() {
+            return Ok(v);
+        }
+    }
+    // Temperature keys are in °C; they also take a temperature with its unit (140F).
+    if key.ends_with("_c") {
+        if let Ok(q) = parse_temperature(t) {
+            return Ok(q.c());
+        }
+    }
+    Err(Failure::bad_input(format!("{what} `{t}` is not a number")))
+}
+
+/// A limit as typed: no trailing zeros (`1.30` → `1.3`).
+pub(super) fn plain(v: f64) -> String {
+    let s = format!("{v:.4}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    if s == "-0" {
+        "0".into()
+    } else {
+        s.to_string()
+    }
+}
+
+fn limits_table(out: &mut dyn Write, scope: &str, rows: &[LimitRow]) -> Result<(), Failure> {
+    writeln!(out, "Limits in force for {scope} (built-in defaults are common practice; override with `limits set`)")?;
+    writeln!(
+        out,
+        "{}{}{}{}{}{}RANGE",
+        pad("KEY", 27),
+        pad("", 3),
+        pad("WATCH", 10),
+        pad("ACT", 10),
+        pad("UNIT", 15),
+        pad("FROM", 16)
+    )?;
+    for r in rows {
+        let v = |x: Option<f64>| x.map(plain).unwrap_or_else(dash);
+        let from = if r.shape == "value" {
+            format!("{:?}", r.act_origin).to_lowercase()
+        } else {
+            format!("{:?}/{:?}", r.watch_origin, r.act_origin).to_lowercase()
+        };
+        writeln!(
+            out,
+            "{}{}{}{}{}{}{}",
+            pad(&r.key, 27),
+            pad(r.compare.as_deref().unwrap_or("="), 3),
+            pad(
+                &if r.shape == "value" {
+                    String::new()
+                } else {
+                    v(r.watch)
+                },
+                10
+            ),
+            pad(&v(r.act), 10),
+            pad(&r.unit, 15),
+            pad(&from, 16),
+            r.range
+        )?;
+    }
+    Ok(())
+}
+
+fn who(by: &Option<String>) -> String {
+    by.clone()
+        .filter(|b| !b.trim().is_empty())
+        .or_else(|| {
+            std::env::var("USER")
+                .ok()
+                .or_else(|| std::env::var("USERNAME").ok())
+        })
+        .unwrap_or_else(|| "command line".into())
+}
+
+pub fn run_limits(shop: &Shop, args: &LimitsArgs, out: &mut dyn Write) -> Result<(), Failure> {
+    match &args.action {
+        None => {
+            let v = work::limits_in(shop.store(), args.unit.as_deref())?;
+            if args.json {
+                return json_out(out, &v);
+            }
+            let scope = v
+                .unit
+                .as_ref()
+                .map(|u| format!("unit {u}"))
+                .unwrap_or_else(|| "the shop".into());
+            limits_table(out, &scope, &v.rows)
+        }
+        Some(LimitsAction::Set {
+            key,
+            watch,
+            act,
+            value,
+            unit,
+            by,
+        }) => {
+            let watch = watch
+                .as_deref()
+                .map(|w| limit_number(key, w, "--watch"))
+                .transpose()?;
+            let act = act
+                .as_deref()
+                .or(value.as_deref())
+                .map(|a| limit_number(key, a, "--act"))
+                .transpose()?;
+            let r = work::set_limit_in(shop.store(), key, watch, act, unit.as_deref(), &who(by))?;
+            if args.json {
+                return json_out(out, &r);
+            }
+            let scope = unit
+                .as_ref()
+                .map(|u| format!("unit {u}"))
+                .unwrap_or_else(|| "the shop".into());
+            limits_table(out, &scope, std::slice::from_ref(&r))
+        }
+        Some(LimitsAction::Reset { key, unit, by }) => {
+            let removed = work::reset_limit_in(shop.store(), key, unit.as_deref(), &who(by))?;
+            let scope = unit
+                .as_ref()
+                .map(|u| format!("unit {u}"))
+                .unwrap_or_else(|| "the shop".into());
+            if removed {
+                writeln!(
+                    out,
+                    "Removed the stored {key} for {scope}; the default applies again."
+                )?;
+            } else {
+                writeln!(out, "No stored {key} for {scope}; nothing changed.")?;
+            }
+            Ok(())
+        }
+    }
+}

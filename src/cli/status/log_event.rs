@@ -1,0 +1,100 @@
+//! `sumpbook log-event`: recording maintenance done on a unit. No rules here; `app::work`
+//! records it.
+
+use super::*;
+use std::io::Write;
+
+use chrono::{NaiveTime, Utc};
+use clap::Args;
+
+use crate::app::shop::Shop;
+use crate::app::work::{self, EventInput};
+use crate::cli::Failure;
+use crate::model::EventKind;
+use crate::quantity::{format, parse_volume, Quantity};
+
+#[derive(Args, Debug, Clone, PartialEq)]
+pub struct LogEventArgs {
+    /// Unit tag.
+    #[arg(value_name = "UNIT")]
+    pub unit: String,
+    /// fluid_change, top_up, filter_change, rebuild, repair, cooler_clean or note.
+    #[arg(value_name = "KIND")]
+    pub kind: String,
+    /// When it was done: YYYY-MM-DD (taken as 12:00 UTC) or YYYY-MM-DDTHH:MM:SSZ; default now.
+    #[arg(long, value_name = "DATE")]
+    pub at: Option<String>,
+    /// Oil put in, with its unit: 20l, 5.3gal.
+    #[arg(long, value_name = "VOLUME")]
+    pub volume: Option<String>,
+    /// The fluid put in (by name); default the unit's fluid in service.
+    #[arg(long, value_name = "NAME")]
+    pub fluid: Option<String>,
+    /// Who did it.
+    #[arg(long, value_name = "NAME", default_value = "")]
+    pub by: String,
+    /// What was done, in a few words.
+    #[arg(long, value_name = "TEXT", default_value = "")]
+    pub note: String,
+    /// Print JSON.
+    #[arg(long)]
+    pub json: bool,
+}
+pub fn run_log_event(shop: &Shop, args: &LogEventArgs, out: &mut dyn Write) -> Result<(), Failure> {
+    let kind: EventKind = args.kind.parse().map_err(Failure::bad_input)?;
+    let at = args
+        .at
+        .as_deref()
+        .map(|s| parse_when(s, NaiveTime::from_hms_opt(12, 0, 0)))
+        .transpose()?;
+    let volume = args
+        .volume
+        .as_deref()
+        .map(|v| parse_volume(v).map_err(|e| Failure::bad_input(format!("--volume: {e}"))))
+        .transpose()?;
+    let input = EventInput {
+        kind,
+        at,
+        volume,
+        fluid: args.fluid.clone(),
+        by: args.by.clone(),
+        note: args.note.clone(),
+    };
+    let r = work::log_event_in(shop.store(), &args.unit, &input, Utc::now())?;
+    if args.json {
+        return json_out(out, &r);
+    }
+    let sys = shop
+        .store()
+        .settings()
+        .map(|s| s.unit_system)
+        .unwrap_or_default();
+    let vol = r
+        .event
+        .volume
+        .map(|v| format!(", {}", format(Quantity::Volume(v), sys)))
+        .unwrap_or_default();
+    let fluid = r
+        .fluid
+        .as_ref()
+        .map(|f| format!(", {f}"))
+        .unwrap_or_default();
+    writeln!(
+        out,
+        "Recorded {} on {} at {}{vol}{fluid}.",
+        r.event.kind,
+        r.unit,
+        r.event.done_at.format("%Y-%m-%d %H:%M UTC")
+    )?;
+    if r.fluid_in_service_changed {
+        writeln!(
+            out,
+            "The unit's fluid in service is now {}.",
+            r.fluid.clone().unwrap_or_default()
+        )?;
+    }
+    for w in &r.work {
+        writeln!(out, "  next {}: {} ({})", w.kind.label(), w.due, w.basis)?;
+    }
+    Ok(())
+}

@@ -1,0 +1,67 @@
+//! `sumpbook status`, `due`, `ack`, `log-event` and `limits`: the health engine's findings and
+//! the actions on them, on the command line.
+//!
+//! Parses what was typed (dates, quantities with units, flag and event kinds), calls
+//! `app::status` and `app::work`, and prints a compact table in the shop's unit system or the
+//! JSON of the issue. No rules here.
+
+mod ack;
+mod baseline;
+mod dates;
+mod due;
+mod limits;
+mod log_event;
+mod status_pages;
+#[cfg(test)]
+mod tests;
+
+pub use ack::*;
+pub use baseline::*;
+pub use dates::*;
+pub use due::*;
+pub use limits::*;
+pub use log_event::*;
+pub use status_pages::*;
+
+use std::io::Write;
+
+use super::Failure;
+use crate::app::figures;
+use crate::health::indicators::Tile;
+use crate::health::State;
+
+fn json_out<T: serde::Serialize>(out: &mut dyn Write, v: &T) -> Result<(), Failure> {
+    serde_json::to_writer_pretty(&mut *out, v)
+        .map_err(|e| Failure::failed(format!("cannot write JSON: {e}")))?;
+    writeln!(out)?;
+    Ok(())
+}
+
+fn state_word(s: State) -> &'static str {
+    // Distinct in text as well as meaning: capitals for act.
+    match s {
+        State::Steady => "steady",
+        State::NotJudged => "not judged yet",
+        State::Watch => "watch",
+        State::Act => "ACT",
+    }
+}
+
+fn dash() -> String {
+    "—".into()
+}
+
+fn arrow(t: &Tile) -> &'static str {
+    t.trend
+        .as_ref()
+        .map_or(" ", |t| figures::arrow(t.direction))
+}
+
+fn pad(s: &str, w: usize) -> String {
+    let n = s.chars().count();
+    if n >= w {
+        format!("{s} ")
+    } else {
+        format!("{s}{}", " ".repeat(w - n))
+    }
+}

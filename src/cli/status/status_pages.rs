@@ -1,0 +1,410 @@
+//! `sumpbook status`: the fleet table and one unit's page (tiles, flags, questioned readings,
+//! baseline and work) in the shop's unit system, or their JSON. No rules here; `app::status`
+//! evaluates.
+
+use super::*;
+use std::io::Write;
+
+use clap::Args;
+
+use crate::app::figures;
+use crate::app::shop::Shop;
+use crate::app::status::{self, FleetStatus, UnitStatus};
+use crate::cli::Failure;
+use crate::health::plan::CAUTION_SHORT;
+use crate::health::screen::Record;
+use crate::health::{BaselineSource, Flag, NotJudged, SuspectReading};
+use crate::units::UnitSystem;
+
+#[derive(Args, Debug, Clone, PartialEq)]
+pub struct StatusArgs {
+    /// Only this unit (by tag), with its tiles, baseline and work.
+    #[arg(long, value_name = "TAG")]
+    pub unit: Option<String>,
+    /// Print JSON instead of the table.
+    #[arg(long)]
+    pub json: bool,
+    /// Evaluate the shop as it stood at the end of this date (YYYY-MM-DD, or a UTC time
+    /// YYYY-MM-DDTHH:MM:SSZ): only what was recorded by then is used.
+    #[arg(long, value_name = "DATE")]
+    pub at: Option<String>,
+}
+fn fleet_table(out: &mut dyn Write, f: &FleetStatus) -> Result<(), Failure> {
+    let sys = f.unit_system;
+    let when = if f.replay {
+        format!("as it stood at {}", f.at.format("%Y-%m-%d %H:%M UTC"))
+    } else {
+        format!("now ({})", f.at.format("%Y-%m-%d %H:%M UTC"))
+    };
+    writeln!(out, "{} — {}", f.shop_name, when)?;
+    writeln!(
+        out,
+        "{} units: {} act, {} watch, {} not judged yet, {} steady",
+        f.units.len(),
+        f.counts.act,
+        f.counts.watch,
+        f.counts.not_judged,
+        f.counts.steady
+    )?;
+    writeln!(out)?;
+    let cols: [(&str, usize); 11] = [
+        ("UNIT", 10),
+        ("MACHINE", 9),
+        ("STATE", 16),
+        ("LOST", 8),
+        ("LEAK", 7),
+        ("HEAT+", 9),
+        ("KV40", 10),
+        ("ISO 4406/TARGET", 19),
+        ("WATER", 9),
+        ("OIL LIFE", 9),
+        ("NEXT DUE", 0),
+    ];
+    let header: String = cols
+        .iter()
+        .map(|(h, w)| if *w == 0 { h.to_string() } else { pad(h, *w) })
+        .collect();
+    writeln!(out, "{}", header.trim_end())?;
+    for u in &f.units {
+        let i = &u.health.indicators;
+        let next = u
+            .next_due
+            .as_ref()
+            .map(|w| {
+                if w.days_overdue > 0 {
+                    format!("{} {}d over", w.kind.label(), w.days_overdue)
+                } else {
+                    format!("{} {}", w.kind.label(), w.due)
+                }
+            })
+            .unwrap_or_else(dash);
+        let cells = [
+            u.unit.clone(),
+            u.machine.clone(),
+            state_word(u.state).to_string(),
+            i.lost_flow_pct
+                .map(|v| format!("{v:.1}%"))
+                .unwrap_or_else(dash),
+            i.leak_conductance_ratio
+                .map(|v| format!("{v:.2}×"))
+                .unwrap_or_else(dash),
+            i.heat_rise_drift_k
+                .map(|v| figures::temp_diff(v, sys, true))
+                .unwrap_or_else(dash),
+            i.kv40_cst
+                .map(|v| format!("{v:.1} cSt"))
+                .unwrap_or_else(dash),
+            match (&i.iso4406, &i.iso4406_target) {
+                (Some(c), Some(t)) => format!("{c} / {t}"),
+                (Some(c), None) => c.clone(),
+                _ => dash(),
+            },
+            i.water_ppm
+                .map(|v| format!("{v:.0} ppm"))
+                .unwrap_or_else(dash),
+            i.oil_life_used_pct
+                .map(|v| format!("{v:.0}%"))
+                .unwrap_or_else(dash),
+            next,
+        ];
+        let line: String = cells
+            .iter()
+            .zip(cols.iter())
+            .map(|(c, (_, w))| if *w == 0 { c.clone() } else { pad(c, *w) })
+            .collect();
+        writeln!(out, "{}", line.trim_end())?;
+    }
+    let flagged: Vec<&UnitStatus> = f
+        .units
+        .iter()
+        .filter(|u| !u.health.flags.is_empty())
+        .collect();
+    if !flagged.is_empty() {
+        writeln!(out)?;
+        writeln!(out, "Flags")?;
+        for u in flagged {
+            for fl in &u.health.flags {
+                flag_line(out, &u.unit, fl, sys)?;
+            }
+        }
+    }
+    let waiting: Vec<&UnitStatus> = f
+        .units
+        .iter()
+        .filter(|u| u.health.not_judged.iter().any(|n| n.expected))
+        .collect();
+    if !waiting.is_empty() {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "Not judged yet (? what is missing, and when it will be judged)"
+        )?;
+        for u in waiting {
+            for n in u.health.not_judged.iter().filter(|n| n.expected) {
+                not_judged_line(out, &u.unit, n)?;
+            }
+        }
+    }
+    let open: Vec<(&UnitStatus, &SuspectReading)> = f
+        .units
+        .iter()
+        .flat_map(|u| {
+            u.health
+                .suspects
+                .iter()
+                .filter(|s| s.confirmed.is_none())
+                .map(move |s| (u, s))
+        })
+        .collect();
+    if !open.is_empty() {
+        writeln!(out)?;
+        writeln!(
+            out,
+            "Questioned readings, not confirmed (left out of baselines and flags; `sumpbook confirm` keeps one)"
+        )?;
+        for (u, s) in open {
+            suspect_line(out, &u.unit, s)?;
+        }
+    }
+    Ok(())
+}
+
+fn not_judged_line(out: &mut dyn Write, unit: &str, n: &NotJudged) -> Result<(), Failure> {
+    writeln!(
+        out,
+        "  {}? {}: {} — {}",
+        pad(unit, 10),
+        n.label,
+        n.missing,
+        n.until
+    )?;
+    Ok(())
+}
+
+fn suspect_line(out: &mut dyn Write, unit: &str, s: &SuspectReading) -> Result<(), Failure> {
+    let kind = match s.record {
+        Record::Check => "check",
+        Record::Sample => "sample",
+    };
+    let state = match &s.confirmed {
+        None => "NOT CONFIRMED".to_string(),
+        Some(c) => {
+            let (by, at) = status::confirmed_by_text(c);
+            format!("confirmed by {by} {}", at.format("%Y-%m-%d"))
+        }
+    };
+    writeln!(
+        out,
+        "  {}{} {} {}: {}  [{state}]",
+        pad(unit, 10),
+        kind,
+        s.at.format("%Y-%m-%dT%H:%M:%SZ"),
+        s.field.label(),
+        s.reason
+    )?;
+    Ok(())
+}
+
+fn flag_line(out: &mut dyn Write, unit: &str, f: &Flag, sys: UnitSystem) -> Result<(), Failure> {
+    let seen = match &f.acknowledgement {
+        Some(a) if f.acknowledged => {
+            format!(
+                "  [seen by {} {}{}]",
+                a.by,
+                a.at.format("%Y-%m-%d"),
+                if a.note.is_empty() {
+                    String::new()
+                } else {
+                    format!(": {}", a.note)
+                }
+            )
+        }
+        _ => String::new(),
+    };
+    writeln!(
+        out,
+        "  {}{}{}since {}  {}. {}{}",
+        pad(unit, 10),
+        pad(state_word(f.state), 7),
+        pad(f.kind.as_str(), 17),
+        f.since,
+        figures::flag_figure(f, sys),
+        f.message,
+        seen
+    )?;
+    Ok(())
+}
+
+fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(), Failure> {
+    let h = &u.health;
+    writeln!(
+        out,
+        "{} on {} ({}, {}) — {} at {}",
+        u.unit,
+        u.machine,
+        u.machine_name,
+        u.machine_kind,
+        state_word(u.state),
+        h.at.format("%Y-%m-%d %H:%M UTC")
+    )?;
+    if let Some(era) = h.eras.last() {
+        writeln!(
+            out,
+            "Era since {} ({}); fluid {}",
+            era.start.format("%Y-%m-%d"),
+            era.started_by.as_str(),
+            u.fluid.clone().unwrap_or_else(|| "not recorded".into())
+        )?;
+    } else {
+        writeln!(out, "No checks recorded yet.")?;
+    }
+    if h.baseline.is_empty() {
+        writeln!(out, "Baseline: not yet formed (absolute limits apply)")?;
+    }
+    for b in &h.baseline.values {
+        let src = match &b.source {
+            BaselineSource::Checks {
+                check_ids,
+                from,
+                to,
+            } => format!(
+                "mean of {} checks {} – {}",
+                check_ids.len(),
+                from.format("%Y-%m-%d"),
+                to.format("%Y-%m-%d")
+            ),
+            BaselineSource::Manual { by, at } => {
+                format!("entered by {by} on {}", at.format("%Y-%m-%d"))
+            }
+        };
+        writeln!(
+            out,
+            "Baseline {}: {src}",
+            b.indicator.key().replace('_', " ")
+        )?;
+    }
+    writeln!(out)?;
+    writeln!(
+        out,
+        "{}{}{}{}TREND",
+        pad("INDICATOR", 40),
+        pad("NOW", 28),
+        pad("BASELINE", 16),
+        pad("STATE", 8)
+    )?;
+    for t in &h.tiles {
+        let now = match (&t.text, t.value) {
+            (Some(text), Some(v)) => format!("{text} ({})", figures::text(t.dim, v, sys)),
+            (None, Some(v)) => figures::text(t.dim, v, sys),
+            (Some(text), None) => text.clone(),
+            (None, None) => dash(),
+        };
+        let base = t
+            .baseline
+            .map(|v| figures::text(t.dim, v, sys))
+            .unwrap_or_else(dash);
+        let trend = match &t.trend {
+            Some(tr) => {
+                let mut s = format!(
+                    "{} {}/week",
+                    arrow(t),
+                    figures::change(t.dim, tr.slope_per_week, sys)
+                );
+                if let Some(f) = &tr.forecast {
+                    s.push_str(&format!(
+                        ", {} by {}",
+                        f.state.as_str(),
+                        f.date.format("%Y-%m-%d")
+                    ));
+                }
+                s
+            }
+            None => String::new(),
+        };
+        writeln!(
+            out,
+            "{}{}{}{}{}",
+            pad(&t.label, 40),
+            pad(&now, 28),
+            pad(&base, 16),
+            pad(state_word(t.state), 8),
+            trend
+        )?;
+    }
+    writeln!(out)?;
+    if h.flags.is_empty() {
+        writeln!(out, "No flags.")?;
+    } else {
+        writeln!(out, "Flags")?;
+        for f in &h.flags {
+            flag_line(out, &u.unit, f, sys)?;
+        }
+    }
+    if !h.not_judged.is_empty() {
+        writeln!(out)?;
+        writeln!(out, "Not judged yet")?;
+        for n in &h.not_judged {
+            not_judged_line(out, &u.unit, n)?;
+        }
+    }
+    if !h.suspects.is_empty() {
+        writeln!(out)?;
+        writeln!(out, "Questioned readings")?;
+        for s in &h.suspects {
+            suspect_line(out, &u.unit, s)?;
+        }
+    }
+    writeln!(out)?;
+    writeln!(out, "Work")?;
+    for w in &h.work {
+        let when = if w.days_overdue > 0 {
+            format!("{} days over", w.days_overdue)
+        } else if w.days_overdue == 0 {
+            "due today".into()
+        } else {
+            format!("in {} days", -w.days_overdue)
+        };
+        writeln!(
+            out,
+            "  {}due {}  {}  ({})",
+            pad(w.kind.label(), 18),
+            w.due,
+            when,
+            w.basis
+        )?;
+        if let Some(p) = &w.pulled_forward {
+            writeln!(out, "  {}pulled forward: {p}", pad("", 18))?;
+        }
+    }
+    if h.work.iter().any(|w| w.caution.is_some()) {
+        writeln!(out, "  Safety: {CAUTION_SHORT}")?;
+    }
+    Ok(())
+}
+
+pub fn run_status(shop: &Shop, args: &StatusArgs, out: &mut dyn Write) -> Result<(), Failure> {
+    let at = args.at.as_deref().map(parse_at_end_of_day).transpose()?;
+    match &args.unit {
+        Some(tag) => {
+            let u = status::unit_status_of(shop, tag, at)?;
+            let sys = shop
+                .store()
+                .settings()
+                .map(|s| s.unit_system)
+                .unwrap_or_default();
+            if args.json {
+                json_out(out, &u.to_json_view(sys))
+            } else {
+                unit_page(out, &u, sys)
+            }
+        }
+        None => {
+            let f = status::fleet_status(shop, at)?;
+            if args.json {
+                json_out(out, &f.to_json_view())
+            } else {
+                fleet_table(out, &f)
+            }
+        }
+    }
+}

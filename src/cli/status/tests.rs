@@ -1,0 +1,27 @@
+//! Tests of the command line's date and limit parsing.
+
+use super::*;
+
+#[test]
+fn dates_for_at() {
+    assert_eq!(
+        parse_at_end_of_day("2024-03-04").unwrap().to_rfc3339(),
+        "2024-03-04T23:59:59+00:00"
+    );
+    assert_eq!(
+        parse_at_end_of_day("2024-03-04T08:00:00Z")
+            .unwrap()
+            .to_rfc3339(),
+        "2024-03-04T08:00:00+00:00"
+    );
+    assert!(parse_at_end_of_day("03/04/2024").is_err());
+    assert_eq!(parse_at_end_of_day("nonsense").unwrap_err().code, 2);
+}
+
+#[test]
+fn limit_numbers_take_temperatures_for_celsius_keys() {
+    assert_eq!(limit_number("water_ppm", "250", "--watch").unwrap(), 250.0);
+    // 140 °F = (140 − 32)/1.8 = 60 °C (definition of the Fahrenheit scale).
+    assert!((limit_number("reservoir_temp_c", "140F", "--watch").unwrap() - 60.0).abs() < 1e-9);
+    assert!(limit_number("water_ppm", "140F", "--watch").is_err());
+}

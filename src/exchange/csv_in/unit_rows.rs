@@ -1,0 +1,359 @@
+//! Unit register rows: a machine, its unit and the unit's fluid from one row of the register,
+//! written or refused when they differ from the stored ones. No SQL here; the store does that.
+
+use super::*;
+
+use crate::exchange::{ExchangeError, ImportSummary};
+use crate::model::{
+    Fluid, Machine, PumpKind, SensitiveComponent, StrokeDirection, TimedStroke, Unit,
+};
+use crate::physics::viscosity::ISO_VG_GRADES;
+use crate::store::columns::{self};
+use crate::store::Bulk;
+use crate::units::Viscosity;
+
+impl Importer {
+    pub(super) fn unit_row(
+        &self,
+        bulk: &mut Bulk<'_>,
+        row: &mut RowReader<'_>,
+        summary: &mut ImportSummary,
+    ) -> Result<Option<Outcome>, ExchangeError> {
+        let machine_tag = row
+            .need(self.slot("machine_tag"), "machine_tag")
+            .map(str::to_string);
+        let machine_name = row.free(self.slot("machine_name"));
+        let machine_kind = row.free(self.slot("machine_kind"));
+        let route_order = row.integer(self.slot("route_order"));
+        let unit_tag = row
+            .need(self.slot("unit_tag"), "unit_tag")
+            .map(str::to_string);
+        let pump_kind: Option<PumpKind> = row.parsed(self.slot("pump_kind"));
+        let rated_flow = row.flow(self.slot("rated_flow"), above(0.0, 10000.0));
+        let relief = row.pressure(self.slot("relief"), above(0.0, 1000.0));
+        let reservoir = row.volume(self.slot("reservoir"), above(0.0, 1.0e5));
+        let bore = row.length(self.slot("bore"), above(0.0, 5000.0));
+        let rod = row.length(self.slot("rod"), above(0.0, 5000.0));
+        let stroke_len = row.length(self.slot("stroke"), above(0.0, 50000.0));
+        let direction: Option<StrokeDirection> = row.parsed(self.slot("timed_direction"));
+        let component: Option<SensitiveComponent> = row.parsed(self.slot("sensitive_component"));
+        let fluid_name = row.text(self.slot("fluid_name")).map(str::to_string);
+        let fluid_vg = row.integer(self.slot("fluid_vg"));
+        let fluid_kv40 = row.plain(self.slot("fluid_kv40"), above(0.0, 1.0e5));
+        let fluid_kv100 = row.plain(self.slot("fluid_kv100"), above(0.0, 1.0e4));
+
+        let iso_vg = match fluid_vg {
+            Some(v) if ISO_VG_GRADES.iter().any(|&(g, _)| i64::from(g) == v) => {
+                u32::try_from(v).ok()
+            }
+            Some(v) => {
+                let grades = ISO_VG_GRADES
+                    .iter()
+                    .map(|(g, _)| g.to_string())
+                    .collect::<Vec<_>>()
+                    .join(", ");
+                row.err(
+                    &self.name("fluid_vg"),
+                    format!("{v} is not an ISO VG grade (ISO 3448: {grades})"),
+                );
+                None
+            }
+            None => None,
+        };
+        if let (Some(a), Some(b)) = (fluid_kv40, fluid_kv100) {
+            if b >= a {
+                row.err(
+                    &self.name("fluid_kv100"),
+                    "must be below fluid_kv40_cst (oil thins as it warms)",
+                );
+            }
+        }
+        if fluid_name.is_none()
+            && (fluid_vg.is_some() || fluid_kv40.is_some() || fluid_kv100.is_some())
+        {
+            row.err(
+                "fluid_name",
+                "fluid properties are given without the fluid's name",
+            );
+        }
+        // The timed stroke: bore, length and direction together; the rod for a retracting one.
+        let any_stroke = self.slot("bore").is_some_and(|s| {
+            row.rec
+                .get(s.pos)
+                .is_some_and(|c| !c.trim_ascii().is_empty())
+        }) || self.slot("stroke").is_some_and(|s| {
+            row.rec
+                .get(s.pos)
+                .is_some_and(|c| !c.trim_ascii().is_empty())
+        }) || self.slot("timed_direction").is_some_and(|s| {
+            row.rec
+                .get(s.pos)
+                .is_some_and(|c| !c.trim_ascii().is_empty())
+        });
+        let stroke = if any_stroke {
+            match (bore, stroke_len, direction) {
+                (Some(bore), Some(length), Some(direction)) => {
+                    if direction == StrokeDirection::Retract && rod.is_none() {
+                        row.err("rod_mm", "a retracting timed stroke needs the rod diameter");
+                    }
+                    if let Some(r) = rod {
+                        if r.0 >= bore.0 {
+                            row.err(&self.name("rod"), "must be smaller than the bore");
+                        }
+                    }
+                    Some(TimedStroke {
+                        bore,
+                        rod,
+                        length,
+                        direction,
+                    })
+                }
+                _ => {
+                    let before = row.errors.len();
+                    for (field, val) in [
+                        ("bore", bore.is_some()),
+                        ("stroke", stroke_len.is_some()),
+                        ("timed_direction", direction.is_some()),
+                    ] {
+                        let stated = row.errors[..before]
+                            .iter()
+                            .any(|e| e.column == self.name(field));
+                        if !val && !stated {
+                            let name = match field {
+                                "bore" => self.slot("bore").map_or("bore_mm", |s| s.name),
+                                "stroke" => self.slot("stroke").map_or("stroke_mm", |s| s.name),
+                                _ => "timed_direction",
+                            };
+                            row.err(name, "the timed stroke needs bore, stroke length and timed_direction together");
+                        }
+                    }
+                    None
+                }
+            }
+        } else {
+            None
+        };
+        let (Some(machine_tag), Some(unit_tag)) = (machine_tag, unit_tag) else {
+            return Ok(None);
+        };
+        if !row.errors.is_empty() {
+            return Ok(None);
+        }
+
+        // A unit already in the register: the row must agree with it.
+        if let Some(existing) = bulk.unit_by_tag(&unit_tag).cloned() {
+            let mut diff = Vec::new();
+            let machine = bulk.machine_by_id(existing.machine_id).cloned();
+            if machine.as_ref().map(|m| m.tag.as_str()) != Some(machine_tag.as_str()) {
+                diff.push(self.name("machine_tag"));
+            }
+            if let Some(m) = &machine {
+                if differs_text(&machine_name, &m.name) {
+                    diff.push(self.name("machine_name"));
+                }
+                if differs_text(&machine_kind, &m.kind) {
+                    diff.push(self.name("machine_kind"));
+                }
+            }
+            if route_order.is_some_and(|r| r != existing.route_order) {
+                diff.push(self.name("route_order"));
+            }
+            if pump_kind.is_some_and(|p| p != existing.pump_kind) {
+                diff.push(self.name("pump_kind"));
+            }
+            if differs(
+                rated_flow.map(columns::lpm),
+                existing.rated_flow.map(columns::lpm),
+            ) {
+                diff.push(self.name("rated_flow"));
+            }
+            if differs(relief.map(columns::bar), existing.relief.map(columns::bar)) {
+                diff.push(self.name("relief"));
+            }
+            if differs(
+                reservoir.map(columns::litres),
+                existing.reservoir.map(columns::litres),
+            ) {
+                diff.push(self.name("reservoir"));
+            }
+            let es = existing.stroke;
+            if differs(bore.map(columns::mm), es.map(|s| columns::mm(s.bore))) {
+                diff.push(self.name("bore"));
+            }
+            if differs(
+                rod.map(columns::mm),
+                es.and_then(|s| s.rod).map(columns::mm),
+            ) {
+                diff.push(self.name("rod"));
+            }
+            if differs(
+                stroke_len.map(columns::mm),
+                es.map(|s| columns::mm(s.length)),
+            ) {
+                diff.push(self.name("stroke"));
+            }
+            if direction.is_some() && direction != es.map(|s| s.direction) {
+                diff.push(self.name("timed_direction"));
+            }
+            if component.is_some_and(|c| c != existing.sensitive_component) {
+                diff.push(self.name("sensitive_component"));
+            }
+            let stored_fluid = existing
+                .fluid_id
+                .and_then(|id| bulk.fluid_by_id(id))
+                .cloned();
+            if let Some(name) = &fluid_name {
+                match &stored_fluid {
+                    Some(f) if &f.name == name => {
+                        diff.extend(self.fluid_diff(f, iso_vg, fluid_kv40, fluid_kv100));
+                    }
+                    _ => diff.push(self.name("fluid_name")),
+                }
+            }
+            return self.existing(row, "unit_tag", "this unit", diff);
+        }
+
+        // A new unit: it needs its kind of pump and its most sensitive component.
+        let Some(pump_kind) = pump_kind else {
+            row.err(
+                "pump_kind",
+                format!("must be given for a new unit ({})", PumpKind::expected()),
+            );
+            return Ok(None);
+        };
+        let Some(component) = component else {
+            row.err(
+                "sensitive_component",
+                format!(
+                    "must be given for a new unit ({})",
+                    SensitiveComponent::expected()
+                ),
+            );
+            return Ok(None);
+        };
+        let fluid_id = match &fluid_name {
+            Some(name) => match bulk.fluid_by_name(name).cloned() {
+                Some(f) => {
+                    let diff = self.fluid_diff(&f, iso_vg, fluid_kv40, fluid_kv100);
+                    if !diff.is_empty() {
+                        row.err(
+                            &diff[0],
+                            format!(
+                                "fluid `{name}` is already stored with other values in {}",
+                                diff.join(", ")
+                            ),
+                        );
+                        return Ok(None);
+                    }
+                    Some(f.id)
+                }
+                None => {
+                    let fluid = Fluid {
+                        id: 0,
+                        name: name.clone(),
+                        iso_vg,
+                        kv40_new: fluid_kv40.map(Viscosity::from_cst),
+                        kv100_new: fluid_kv100.map(Viscosity::from_cst),
+                        acid_new_mgkoh_g: None,
+                        base_type: String::new(),
+                    };
+                    match bulk.insert_fluid(&fluid) {
+                        Ok(id) => {
+                            summary.fluids_added += 1;
+                            Some(id)
+                        }
+                        Err(e) => {
+                            row_store_error(row, e, |f| f.to_string())?;
+                            return Ok(None);
+                        }
+                    }
+                }
+            },
+            None => None,
+        };
+        let machine_id = match bulk.machine_by_tag(&machine_tag).cloned() {
+            Some(m) => {
+                let mut diff = Vec::new();
+                if differs_text(&machine_name, &m.name) {
+                    diff.push(self.name("machine_name"));
+                }
+                if differs_text(&machine_kind, &m.kind) {
+                    diff.push(self.name("machine_kind"));
+                }
+                if !diff.is_empty() {
+                    row.err(
+                        &diff[0],
+                        format!(
+                            "machine `{machine_tag}` is already stored with other values in {}",
+                            diff.join(", ")
+                        ),
+                    );
+                    return Ok(None);
+                }
+                m.id
+            }
+            None => {
+                let m = Machine {
+                    id: 0,
+                    tag: machine_tag.clone(),
+                    name: machine_name,
+                    kind: machine_kind,
+                    route_order: route_order.unwrap_or(0),
+                    notes: String::new(),
+                    archived: false,
+                };
+                match bulk.insert_machine(&m) {
+                    Ok(id) => {
+                        summary.machines_added += 1;
+                        id
+                    }
+                    Err(e) => {
+                        row_store_error(row, e, |f| f.to_string())?;
+                        return Ok(None);
+                    }
+                }
+            }
+        };
+        let unit = Unit {
+            id: 0,
+            machine_id,
+            tag: unit_tag,
+            pump_kind,
+            rated_flow,
+            relief,
+            reservoir,
+            sensitive_component: component,
+            fluid_id,
+            stroke,
+            route_order: route_order.unwrap_or(0),
+            archived: false,
+        };
+        match bulk.insert_unit(&unit) {
+            Ok(_) => Ok(Some(Outcome::Inserted(None))),
+            Err(e) => {
+                row_store_error(row, e, |f| f.to_string())?;
+                Ok(None)
+            }
+        }
+    }
+
+    fn fluid_diff(
+        &self,
+        f: &Fluid,
+        vg: Option<u32>,
+        kv40: Option<f64>,
+        kv100: Option<f64>,
+    ) -> Vec<String> {
+        let mut diff = Vec::new();
+        if vg.is_some() && vg != f.iso_vg {
+            diff.push(self.name("fluid_vg"));
+        }
+        if differs(kv40.map(columns::tidy), f.kv40_new.map(columns::cst)) {
+            diff.push(self.name("fluid_kv40"));
+        }
+        if differs(kv100.map(columns::tidy), f.kv100_new.map(columns::cst)) {
+            diff.push(self.name("fluid_kv100"));
+        }
+        diff
+    }
+}
