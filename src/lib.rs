@@ -17,6 +17,7 @@ pub mod exchange;
 pub mod gui;
 pub mod health;
 pub mod model;
+mod names;
 pub mod outfile;
 pub mod physics;
 pub mod quantity;

@@ -8,69 +8,17 @@
 use chrono::{DateTime, Utc};
 use serde::{Deserialize, Serialize};
 
-use crate::units::{Flow, Length, Pressure, Seconds, Temperature, UnitSystem, Viscosity, Volume};
+use crate::names::text_enum;
+pub use crate::physics::cleanliness::SensitiveComponent;
+pub use crate::physics::hydraulics::{StrokeDirection, TimedStroke};
+use crate::units::{Flow, Pressure, Seconds, Temperature, UnitSystem, Viscosity, Volume};
 
 /// Database row id.
 pub type Id = i64;
 
-/// Defines a closed set of names that are written as text in the database and in CSV.
-macro_rules! text_enum {
-    ($(#[$doc:meta])* $name:ident { $($variant:ident = $text:literal),+ $(,)? }) => {
-        $(#[$doc])*
-        #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
-        pub enum $name { $(#[serde(rename = $text)] $variant),+ }
-
-        impl $name {
-            pub const ALL: &'static [$name] = &[$($name::$variant),+];
-            /// The name used in files, the database and the command line.
-            pub fn as_str(self) -> &'static str {
-                match self { $($name::$variant => $text),+ }
-            }
-            /// The names accepted, for error messages.
-            pub fn expected() -> String {
-                [$($text),+].join("|")
-            }
-        }
-
-        impl std::fmt::Display for $name {
-            fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-                f.write_str(self.as_str())
-            }
-        }
-
-        impl std::str::FromStr for $name {
-            type Err = String;
-            fn from_str(s: &str) -> Result<Self, String> {
-                match s.trim() {
-                    $($text => Ok($name::$variant),)+
-                    other => Err(format!("`{other}` is not one of {}", Self::expected())),
-                }
-            }
-        }
-    };
-}
-
 text_enum!(
     /// Kind of the unit's main pump.
     PumpKind { Gear = "gear", Vane = "vane", PistonFixed = "piston_fixed", PistonVariable = "piston_variable" }
-);
-
-text_enum!(
-    /// The most contamination-sensitive component of a circuit; sets the cleanliness target.
-    SensitiveComponent {
-        ServoValve = "servo_valve",
-        ProportionalValve = "proportional_valve",
-        PistonPumpVariable = "piston_pump_variable",
-        PistonPumpFixed = "piston_pump_fixed",
-        VanePump = "vane_pump",
-        GearPump = "gear_pump",
-        Cylinder = "cylinder",
-    }
-);
-
-text_enum!(
-    /// Which way the timed stroke moves: extending fills the full bore, retracting the annulus.
-    StrokeDirection { Extend = "extend", Retract = "retract" }
 );
 
 text_enum!(
@@ -131,16 +79,6 @@ pub struct Fluid {
     pub acid_new_mgkoh_g: Option<f64>,
     /// Mineral, synthetic ester, water glycol, ...
     pub base_type: String,
-}
-
-/// The fixed, repeatable stroke a technician times at each check.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
-pub struct TimedStroke {
-    pub bore: Length,
-    /// Rod diameter; needed only for a retracting stroke.
-    pub rod: Option<Length>,
-    pub length: Length,
-    pub direction: StrokeDirection,
 }
 
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]

@@ -11,8 +11,22 @@ use std::str::FromStr;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
 use super::PhysicsError;
-use crate::model::SensitiveComponent;
+use crate::names::text_enum;
 use crate::units::Pressure;
+
+text_enum!(
+    /// The most contamination-sensitive component of a circuit; sets the cleanliness target
+    /// (a unit's record carries it).
+    SensitiveComponent {
+        ServoValve = "servo_valve",
+        ProportionalValve = "proportional_valve",
+        PistonPumpVariable = "piston_pump_variable",
+        PistonPumpFixed = "piston_pump_fixed",
+        VanePump = "vane_pump",
+        GearPump = "gear_pump",
+        Cylinder = "cylinder",
+    }
+);
 
 /// ISO 4406 Table 1: upper limit (inclusive) of particles per mL for scale numbers 0 to 28.
 /// Scale number n covers counts above `TABLE1_UPPER[n - 1]` up to and including

@@ -8,8 +8,24 @@
 use serde::{Deserialize, Serialize};
 
 use super::{finite, positive, show_mm, PhysicsError};
-use crate::model::{StrokeDirection, TimedStroke};
+use crate::names::text_enum;
 use crate::units::{Area, Flow, Length, Power, Pressure, Seconds, Viscosity, Volume};
+
+text_enum!(
+    /// Which way the timed stroke moves: extending fills the full bore, retracting the annulus.
+    StrokeDirection { Extend = "extend", Retract = "retract" }
+);
+
+/// The fixed, repeatable stroke a technician times at each check: the cylinder's geometry and
+/// which way it moves (a unit's record carries it).
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TimedStroke {
+    pub bore: Length,
+    /// Rod diameter; needed only for a retracting stroke.
+    pub rod: Option<Length>,
+    pub length: Length,
+    pub direction: StrokeDirection,
+}
 
 fn show_s(v: f64) -> String {
     format!("{} s", super::num(v))
