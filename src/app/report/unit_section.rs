@@ -113,6 +113,7 @@ fn baseline_text(u: &UnitStatus, sys: UnitSystem) -> String {
     }
     format!("{}; {}", values.join(", "), sources.join("; "))
 }
+
 pub(super) fn unit_section(
     u: &UnitStatus,
     unit: Option<&Unit>,

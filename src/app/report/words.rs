@@ -56,10 +56,12 @@ pub(super) fn arrow(d: Direction) -> &'static str {
         Direction::Flat => "no clear trend →",
     }
 }
+
 /// About three significant figures, trailing zeros dropped: chart labels (`96.2`, `3.51`, `16`).
 pub(super) fn trim_number(v: f64) -> String {
     figures::significant(v, 3, 2)
 }
+
 /// `value ± spread unit`, the unit written once: `104.6 ± 2.15 L/min`.
 pub(super) fn plus_minus(dim: Dim, value: f64, spread: f64, sys: UnitSystem) -> String {
     let v = figures::text(dim, value, sys);
@@ -75,6 +77,7 @@ pub(super) fn in_period(at: DateTime<Utc>, from: NaiveDate, to: NaiveDate) -> bo
     let d = at.date_naive();
     d >= from && d <= to
 }
+
 pub(super) fn event_code(kind: EventKind) -> Option<(&'static str, &'static str)> {
     match kind {
         EventKind::FluidChange => Some(("FC", "fluid change")),

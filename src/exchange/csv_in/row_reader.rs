@@ -27,6 +27,7 @@ pub(super) const fn incl(lo: f64, hi: f64) -> Range {
         hi,
     }
 }
+
 pub(super) const fn above(lo: f64, hi: f64) -> Range {
     Range {
         lo,

@@ -133,6 +133,7 @@ pub(super) fn count_for_code(code: f64) -> f64 {
         round_to(c, 0.1)
     }
 }
+
 /// ISO ranges added to the normal particle codes by a contamination episode.
 pub(super) fn contamination_codes(def: &UnitDef, d: NaiveDate) -> f64 {
     match def.fault {
