@@ -634,13 +634,20 @@ fn an_import_whose_server_goes_away_half_way_writes_nothing() {
             ended.set(true);
         }
     };
-    let run = sumpbook::app::entry::run_import(
-        Path::new(&url),
-        sumpbook::exchange::FileKind::Checks,
-        &data.join("checks.csv"),
-        &progress,
-        &sumpbook::app::entry::Cancel::new(),
-    );
+    let cancel = sumpbook::app::entry::Cancel::new();
+    let opts = sumpbook::app::import::ImportOptions {
+        progress: &progress,
+        cancel: Some(&cancel),
+        name_only: true,
+        ..Default::default()
+    };
+    let run = sumpbook::app::shop::Shop::open_for_writing(Path::new(&url)).and_then(|mut shop| {
+        shop.import(
+            sumpbook::exchange::FileKind::Checks,
+            &data.join("checks.csv"),
+            &opts,
+        )
+    });
     assert!(ended.get(), "the connection was ended during the import");
     match run {
         Err(e) => assert!(e.is_connection_lost(), "told plainly: {e}"),

@@ -1,3 +1,4 @@
+mod architecture;
 mod backends;
 mod bench_plans;
 mod cli;

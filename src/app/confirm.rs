@@ -159,6 +159,12 @@ fn set(
     })
 }
 
+/// Reads the time of the reading to confirm: an ISO 8601 date or date-time, as the CSV files
+/// write times (`exchange`).
+pub fn read_at(text: &str) -> Result<DateTime<Utc>, String> {
+    crate::exchange::csv_in::parse_when(text)
+}
+
 /// `by` confirms the `kind` reading of unit `tag` taken at `at`: it is what was measured, so
 /// it counts in baselines and detectors like any other. `note` says why (kept in the edit
 /// history). A reading already confirmed is refused, naming who confirmed it.

@@ -8,11 +8,13 @@ pub mod confirm;
 pub mod entry;
 pub mod entry_check;
 pub mod figures;
+pub mod import;
 pub mod report;
 pub mod rights;
 pub mod shop;
 pub mod sim;
 pub mod status;
+pub mod vocab;
 pub mod work;
 
 /// Errors of the application layer, each with the exit code the command line reports.

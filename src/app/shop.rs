@@ -12,7 +12,7 @@ use serde::Serialize;
 
 use super::AppError;
 use crate::exchange::demo::{self, DemoCounts};
-use crate::exchange::{csv_in, csv_out, ExchangeError, FileKind, ImportSummary};
+use crate::exchange::{csv_out, ExchangeError, FileKind, ImportSummary};
 use crate::model::{Check, Sample};
 use crate::outfile::{Options, OutFile};
 use crate::store::copy::TableDigest;
@@ -55,6 +55,52 @@ pub struct StoredStatus {
     pub shop_name: String,
     pub unit_system: UnitSystem,
     pub units: Vec<StoredUnit>,
+}
+
+/// The latest stored figures of one unit as the plain listing shows them: temperature and
+/// pressure in the shop's units (as faithful to the stored value as the column units are), and
+/// the sample's ISO 4406 code as given or else from its counts.
+#[derive(Clone, Debug, PartialEq)]
+pub struct StoredFigures {
+    /// °C or °F.
+    pub temp: Option<f64>,
+    /// bar or psi.
+    pub pressure: Option<f64>,
+    pub iso4406: Option<String>,
+}
+
+impl StoredStatus {
+    /// `u`'s latest stored figures in this shop's units.
+    pub fn shown(&self, u: &StoredUnit) -> StoredFigures {
+        use crate::store::columns;
+        let us = self.unit_system == UnitSystem::Us;
+        let c = u.latest_check.as_ref();
+        let temp = c.and_then(|c| c.reservoir_temp).map(|t| {
+            if us {
+                columns::temp_f(t)
+            } else {
+                columns::temp_c(t)
+            }
+        });
+        let pressure =
+            c.and_then(|c| c.pressure)
+                .map(|p| if us { columns::psi(p) } else { columns::bar(p) });
+        let iso4406 = u.latest_sample.as_ref().and_then(|s| {
+            s.iso4406.clone().or_else(|| match s.counts_per_ml {
+                [Some(a), Some(b), Some(c)] => {
+                    crate::physics::cleanliness::code_from_counts([a, b, c], None)
+                        .ok()
+                        .map(|k| k.to_string())
+                }
+                _ => None,
+            })
+        });
+        StoredFigures {
+            temp,
+            pressure,
+            iso4406,
+        }
+    }
 }
 
 impl Shop {
@@ -165,12 +211,29 @@ impl Shop {
         path.to_str().is_some_and(crate::store::is_server_address)
     }
 
+    /// The store handle, for the application layer and the integration tests. The command line
+    /// and the desktop app never take it: they call `app` functions with the shop
+    /// (tests/architecture.rs fails on a `.store()` under src/cli or src/gui).
     pub fn store(&self) -> &Store {
         &self.store
     }
 
+    /// The store handle for writing; see [`Shop::store`].
     pub fn store_mut(&mut self) -> &mut Store {
         &mut self.store
+    }
+
+    /// The shop's unit system (the default when its settings cannot be read).
+    pub fn unit_system(&self) -> UnitSystem {
+        self.store
+            .settings()
+            .map(|s| s.unit_system)
+            .unwrap_or_default()
+    }
+
+    /// The version of the shop's schema.
+    pub fn schema_version(&self) -> Result<usize, AppError> {
+        Ok(self.store.schema_version()?)
     }
 
     pub fn path(&self) -> &Path {
@@ -199,20 +262,6 @@ impl Shop {
             demo::DemoError::Store(s) => AppError::Store(s),
             other => AppError::Failed(other.to_string()),
         })
-    }
-
-    /// Imports a CSV file: all or nothing, or with `keep_going` the good rows and a side file
-    /// of rejects. Bad rows come back as [`AppError::Import`].
-    pub fn import(
-        &mut self,
-        kind: FileKind,
-        file: &Path,
-        keep_going: bool,
-    ) -> Result<ImportSummary, AppError> {
-        let mut summary =
-            csv_in::import_file(&mut self.store, kind, file, keep_going).map_err(AppError::from)?;
-        mark_questioned(&self.store, kind, &mut summary)?;
-        Ok(summary)
     }
 
     /// Writes all rows of `kind` as CSV to the file `path`: whole or not at all, an existing

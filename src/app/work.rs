@@ -617,6 +617,18 @@ fn baseline_figure(ind: BaselineIndicator, text: &str) -> Result<f64, AppError> 
     })
 }
 
+/// Enters a baseline by hand now; see [`set_baseline_in`].
+pub fn set_baseline(
+    shop: &super::shop::Shop,
+    tag: &str,
+    indicator: &str,
+    value: &str,
+    spread: &str,
+    by: &str,
+) -> Result<BaselineEntered, AppError> {
+    set_baseline_in(shop.store(), tag, indicator, value, spread, by, Utc::now())
+}
+
 /// Enters a baseline value by hand for the era in force of a unit (after a rebuild whose first
 /// checks are not representative, say). The engine then uses it instead of the computed one
 /// and shows who entered it and when.

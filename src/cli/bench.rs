@@ -9,7 +9,7 @@ use clap::Args;
 use super::Failure;
 use crate::app::bench_shop::make_bench_shop;
 use crate::app::shop::Shop;
-use crate::exchange::large_shop::Spec;
+use crate::app::vocab::LargeShopSpec as Spec;
 
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct BenchShopArgs {

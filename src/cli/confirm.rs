@@ -11,7 +11,6 @@ use clap::Args;
 use super::Failure;
 use crate::app::confirm::{self, ConfirmAction, ReadingKind};
 use crate::app::shop::Shop;
-use crate::exchange::csv_in::parse_when;
 
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct ConfirmArgs {
@@ -40,7 +39,7 @@ pub struct ConfirmArgs {
 }
 
 pub fn run(shop: &Shop, args: &ConfirmArgs, out: &mut dyn Write) -> Result<(), Failure> {
-    let at = parse_when(&args.at).map_err(|e| Failure::bad_input(format!("--at: {e}")))?;
+    let at = confirm::read_at(&args.at).map_err(|e| Failure::bad_input(format!("--at: {e}")))?;
     let kind = if args.sample {
         ReadingKind::Sample
     } else {

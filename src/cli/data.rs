@@ -11,9 +11,7 @@ use clap::{Args, ValueEnum};
 
 use super::Failure;
 use crate::app::shop::{Shop, StoredStatus};
-use crate::exchange::FileKind;
-use crate::store::columns;
-use crate::store::roles::ShopRole;
+use crate::app::vocab::{FileKind, ShopRole};
 use crate::units::UnitSystem;
 
 /// The kinds of CSV file, as typed on the command line.
@@ -311,7 +309,11 @@ pub fn run_import(
 ) -> Result<(), Failure> {
     let mut shop = open_shop_for_writing(db)?;
     let kind = FileKind::from(args.kind);
-    let s = shop.import(kind, &args.file, args.keep_going)?;
+    let opts = crate::app::import::ImportOptions {
+        keep_going: args.keep_going,
+        ..Default::default()
+    };
+    let s = shop.import(kind, &args.file, &opts)?.into_summary()?;
     if args.json {
         let text = serde_json::to_string_pretty(&s).map_err(|e| Failure::failed(e.to_string()))?;
         writeln!(out, "{text}")?;
@@ -441,26 +443,7 @@ fn print_status(s: &StoredStatus, out: &mut dyn Write) -> Result<(), Failure> {
             t.map(|t| t.format("%Y-%m-%d %H:%M").to_string())
                 .unwrap_or_else(|| "-".into())
         };
-        let temp = c.and_then(|c| c.reservoir_temp).map(|t| {
-            if us {
-                columns::temp_f(t)
-            } else {
-                columns::temp_c(t)
-            }
-        });
-        let pressure =
-            c.and_then(|c| c.pressure)
-                .map(|p| if us { columns::psi(p) } else { columns::bar(p) });
-        let code = smp.and_then(|s| {
-            s.iso4406.clone().or_else(|| match s.counts_per_ml {
-                [Some(a), Some(b), Some(c)] => {
-                    crate::physics::cleanliness::code_from_counts([a, b, c], None)
-                        .ok()
-                        .map(|k| k.to_string())
-                }
-                _ => None,
-            })
-        });
+        let shown = s.shown(u);
         writeln!(
             out,
             "{:<10} {:<8} {:>6}  {:<17} {:>7} {:>7} {:>8}  {:>7}  {:<17} {:<10} {:>7}{}",
@@ -468,14 +451,14 @@ fn print_status(s: &StoredStatus, out: &mut dyn Write) -> Result<(), Failure> {
             u.machine_tag,
             u.checks,
             when(c.map(|c| c.taken_at)),
-            opt(temp),
-            opt(pressure),
+            opt(shown.temp),
+            opt(shown.pressure),
             c.and_then(|c| c.stroke_time)
                 .map(|t| format!("{}", t.0))
                 .unwrap_or_else(|| "-".into()),
             u.samples,
             when(smp.map(|s| s.sampled_at)),
-            code.unwrap_or_else(|| "-".into()),
+            shown.iso4406.unwrap_or_else(|| "-".into()),
             smp.and_then(|s| s.water_ppm)
                 .map(|w| format!("{w} ppm"))
                 .unwrap_or_else(|| "-".into()),

@@ -11,7 +11,7 @@ use clap::Args;
 use super::Failure;
 use crate::app::report::{read_day, write_report, ReportOptions};
 use crate::app::shop::Shop;
-use crate::report::Paper;
+use crate::app::vocab::Paper;
 
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct ReportArgs {

@@ -10,8 +10,7 @@ use clap::Args;
 
 use super::Failure;
 use crate::app::sim::{make_sim_shop, score_sim, SimReport};
-use crate::sim::score::FaultFigures;
-use crate::sim::shop::Params;
+use crate::app::vocab::{FaultFigures, SimParams as Params};
 
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct SimShopArgs {

@@ -18,7 +18,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<AboutAdapter>();
     a.set_db_path(s(ctx.db_path.display().to_string()));
-    a.set_schema(s(match ctx.shop.store().schema_version() {
+    a.set_schema(s(match ctx.shop.schema_version() {
         Ok(v) => format!("{v}"),
         Err(e) => e.to_string(),
     }));

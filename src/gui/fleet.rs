@@ -10,8 +10,8 @@ use super::ui::{FleetAdapter, FleetRow, Nav};
 use super::{model, s, unit, Ctx};
 use crate::app::entry;
 use crate::app::status::{self, FleetStatus, UnitStatus};
+use crate::app::vocab::{State, WorkKind};
 use crate::app::AppError;
-use crate::health::{State, WorkKind};
 use crate::units::UnitSystem;
 
 pub(super) fn install(ctx: &Rc<Ctx>) {

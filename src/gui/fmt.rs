@@ -6,8 +6,8 @@
 use chrono::{DateTime, NaiveDate, Utc};
 
 use crate::app::figures;
-use crate::health::indicators::Dim;
-use crate::health::State;
+use crate::app::vocab::Dim;
+use crate::app::vocab::State;
 use crate::units::UnitSystem;
 
 /// The number the `.slint` state marks take: 0 steady, 1 watch, 2 act, 3 not judged yet.

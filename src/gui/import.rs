@@ -14,7 +14,9 @@ use super::jobs::{self, Job, JobView};
 use super::ui::{ImportAdapter, ImportProblem};
 use super::{err_text, model, on, s, Ctx};
 use crate::app::entry::{self, Cancel, ImportPreview, ImportRun};
-use crate::exchange::{FileKind, ImportSummary};
+use crate::app::import::ImportOptions;
+use crate::app::shop::Shop;
+use crate::app::vocab::{FileKind, ImportSummary};
 
 #[derive(Default)]
 pub(crate) struct ImportState {
@@ -251,7 +253,17 @@ fn start(ctx: &Rc<Ctx>) {
     run_job(
         ctx,
         "importing",
-        Box::new(move |progress, cancel| entry::run_import(&db, kind, &file, progress, cancel)),
+        Box::new(move |progress, cancel| {
+            // A connection of its own, so the import runs beside the app's; a damaged shop
+            // is refused before anything is written.
+            let opts = ImportOptions {
+                progress,
+                cancel: Some(cancel),
+                name_only: true,
+                ..ImportOptions::default()
+            };
+            Shop::open_for_writing(&db)?.import(kind, &file, &opts)
+        }),
         move |ctx, result| {
             let Some(w) = ctx.win() else { return };
             let a = w.global::<ImportAdapter>();

@@ -20,10 +20,10 @@ use crate::app::report::{
     DEFAULT_PERIOD_DAYS,
 };
 use crate::app::shop::Shop;
+use crate::app::vocab::Paper;
+use crate::app::vocab::State;
+use crate::app::vocab::SAFETY_CAUTIONS;
 use crate::app::AppError;
-use crate::health::plan::SAFETY_CAUTIONS;
-use crate::health::State;
-use crate::report::Paper;
 use crate::units::UnitSystem;
 
 /// Opens a file or folder with the desktop's own program; tests put a recorder in its place.

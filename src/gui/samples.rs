@@ -10,8 +10,8 @@ use super::fmt::state_num;
 use super::ui::{ImportAdapter, KeyVal, PreviewFlag, SampleAdapter};
 use super::{err_text, form_rows, mark_problems, model, problems_line, s, strings, Ctx, Screen};
 use crate::app::entry::{self, Entered, Field, SampleReview, SaveOutcome};
-use crate::health::indicators::Kv40Source;
-use crate::health::plan::SAFETY_CAUTIONS;
+use crate::app::vocab::Kv40Source;
+use crate::app::vocab::SAFETY_CAUTIONS;
 use crate::units::{Temperature, UnitSystem};
 
 #[derive(Default)]

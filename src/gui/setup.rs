@@ -8,8 +8,8 @@ use slint::ComponentHandle;
 use super::ui::{LimitRow, SetupAdapter};
 use super::{err_text, form_rows, mark_problems, model, problems_line, s, strings, Ctx, Screen};
 use crate::app::entry::{self, Entered, Field, LimitEdit, Record, SaveOutcome};
+use crate::app::vocab::LimitOrigin;
 use crate::app::work::LimitRow as AppLimitRow;
-use crate::health::limits::LimitOrigin;
 use crate::model::Settings;
 use crate::units::UnitSystem;
 

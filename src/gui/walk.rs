@@ -25,7 +25,7 @@ pub(crate) struct WalkState {
 pub(super) fn install(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<WalkAdapter>();
-    a.set_safety(s(crate::health::plan::WALK_ROUND_CAUTION));
+    a.set_safety(s(crate::app::vocab::WALK_ROUND_CAUTION));
     let c = Rc::downgrade(ctx);
     a.on_field_edited(move |i, t| {
         if let Some(ctx) = c.upgrade() {

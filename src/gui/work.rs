@@ -10,9 +10,9 @@ use super::fmt::state_num;
 use super::ui::{WorkAdapter, WorkRow};
 use super::{err_text, model, s, Ctx, Screen};
 use crate::app::entry;
+use crate::app::vocab::WorkKind;
+use crate::app::vocab::CAUTION_SHORT;
 use crate::app::work::{DueBucket, DueItem};
-use crate::health::plan::CAUTION_SHORT;
-use crate::health::WorkKind;
 use crate::quantity::Kind;
 
 #[derive(Default)]
@@ -81,7 +81,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 None => d.basis.clone(),
             }),
             state: state_num(d.state.max(if d.bucket == DueBucket::Overdue {
-                crate::health::State::Watch
+                crate::app::vocab::State::Watch
             } else {
                 d.state
             })),

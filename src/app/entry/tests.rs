@@ -11,6 +11,15 @@ use crate::model::Unit;
 use crate::quantity::Kind;
 use crate::units::{Temperature, UnitSystem};
 
+/// The import as the app's import screen runs it: with a cancel flag, files named by name.
+fn in_app(cancel: &Cancel) -> crate::app::import::ImportOptions<'_> {
+    crate::app::import::ImportOptions {
+        cancel: Some(cancel),
+        name_only: true,
+        ..Default::default()
+    }
+}
+
 fn demo() -> (tempfile::TempDir, Shop) {
     let dir = tempfile::tempdir().unwrap();
     let shop = Shop::create_demo(&dir.path().join("shop.sqlite")).unwrap();
@@ -272,11 +281,18 @@ fn a_preview_writes_nothing_and_a_cancelled_import_writes_nothing() {
     let cancel = Cancel::new();
     cancel.cancel();
     assert_eq!(
-        run_import(&db, FileKind::Checks, &csv, &|_| {}, &cancel).unwrap(),
+        Shop::open_for_writing(&db)
+            .unwrap()
+            .import(FileKind::Checks, &csv, &in_app(&cancel))
+            .unwrap(),
         ImportRun::Cancelled
     );
     assert_eq!(shop.store().checks_for_unit(u.id, None).unwrap().len(), n);
-    let done = run_import(&db, FileKind::Checks, &csv, &|_| {}, &Cancel::new()).unwrap();
+    let go = Cancel::new();
+    let done = Shop::open_for_writing(&db)
+        .unwrap()
+        .import(FileKind::Checks, &csv, &in_app(&go))
+        .unwrap();
     assert!(
         matches!(done, ImportRun::Done(ref s) if s.inserted == 2),
         "{done:?}"

@@ -4,13 +4,12 @@
 use super::*;
 use std::io::Write;
 
-use chrono::Utc;
 use clap::Args;
 
 use crate::app::shop::Shop;
+use crate::app::vocab::FlagKind;
 use crate::app::work::{self};
 use crate::cli::Failure;
-use crate::health::FlagKind;
 
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct AckArgs {
@@ -31,16 +30,10 @@ pub struct AckArgs {
     #[arg(long)]
     pub json: bool,
 }
+
 pub fn run_ack(shop: &Shop, args: &AckArgs, out: &mut dyn Write) -> Result<(), Failure> {
     let kind: FlagKind = args.kind.parse().map_err(Failure::bad_input)?;
-    let r = work::ack_in(
-        shop.store(),
-        &args.unit,
-        kind,
-        &args.by,
-        &args.note,
-        Utc::now(),
-    )?;
+    let r = work::ack(shop, &args.unit, kind, &args.by, &args.note)?;
     if args.json {
         return json_out(out, &r);
     }

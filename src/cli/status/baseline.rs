@@ -4,7 +4,6 @@
 use super::*;
 use std::io::Write;
 
-use chrono::Utc;
 use clap::Args;
 
 use crate::app::shop::Shop;
@@ -37,14 +36,13 @@ pub struct BaselineArgs {
 /// `sumpbook baseline UNIT INDICATOR VALUE --spread X --by NAME`: a hand-entered baseline for
 /// the era in force.
 pub fn run_baseline(shop: &Shop, args: &BaselineArgs, out: &mut dyn Write) -> Result<(), Failure> {
-    let r = work::set_baseline_in(
-        shop.store(),
+    let r = work::set_baseline(
+        shop,
         &args.unit,
         &args.indicator,
         &args.value,
         &args.spread,
         &args.by,
-        Utc::now(),
     )?;
     if args.json {
         return json_out(out, &r);

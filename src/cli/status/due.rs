@@ -7,9 +7,9 @@ use std::io::Write;
 use clap::Args;
 
 use crate::app::shop::Shop;
+use crate::app::vocab::CAUTION_SHORT;
 use crate::app::work::{self, DueBucket, DueList};
 use crate::cli::Failure;
-use crate::health::plan::CAUTION_SHORT;
 
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct DueArgs {
@@ -23,6 +23,7 @@ pub struct DueArgs {
     #[arg(long, value_name = "DATE")]
     pub at: Option<String>,
 }
+
 fn due_table(out: &mut dyn Write, d: &DueList) -> Result<(), Failure> {
     let scope = match d.within_days {
         Some(n) => format!("overdue and due within {n} days"),
@@ -74,7 +75,7 @@ fn due_table(out: &mut dyn Write, d: &DueList) -> Result<(), Failure> {
 
 pub fn run_due(shop: &Shop, args: &DueArgs, out: &mut dyn Write) -> Result<(), Failure> {
     let at = args.at.as_deref().map(parse_at_end_of_day).transpose()?;
-    let d = work::due_list_in(shop.store(), at, args.within)?;
+    let d = work::due_list(shop, at, args.within)?;
     if args.json {
         json_out(out, &d)
     } else {

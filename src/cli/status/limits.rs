@@ -64,6 +64,7 @@ pub enum LimitsAction {
         by: Option<String>,
     },
 }
+
 pub(super) fn limit_number(key: &str, text: &str, what: &str) -> Result<f64, Failure> {
     let t = text.trim();
     if let Ok(v) = t.parse::<f64>() {
@@ -146,7 +147,7 @@ fn who(by: &Option<String>) -> String {
 pub fn run_limits(shop: &Shop, args: &LimitsArgs, out: &mut dyn Write) -> Result<(), Failure> {
     match &args.action {
         None => {
-            let v = work::limits_in(shop.store(), args.unit.as_deref())?;
+            let v = work::limits(shop, args.unit.as_deref())?;
             if args.json {
                 return json_out(out, &v);
             }
@@ -174,7 +175,7 @@ pub fn run_limits(shop: &Shop, args: &LimitsArgs, out: &mut dyn Write) -> Result
                 .or(value.as_deref())
                 .map(|a| limit_number(key, a, "--act"))
                 .transpose()?;
-            let r = work::set_limit_in(shop.store(), key, watch, act, unit.as_deref(), &who(by))?;
+            let r = work::set_limit(shop, key, watch, act, unit.as_deref(), &who(by))?;
             if args.json {
                 return json_out(out, &r);
             }
@@ -185,7 +186,7 @@ pub fn run_limits(shop: &Shop, args: &LimitsArgs, out: &mut dyn Write) -> Result
             limits_table(out, &scope, std::slice::from_ref(&r))
         }
         Some(LimitsAction::Reset { key, unit, by }) => {
-            let removed = work::reset_limit_in(shop.store(), key, unit.as_deref(), &who(by))?;
+            let removed = work::reset_limit(shop, key, unit.as_deref(), &who(by))?;
             let scope = unit
                 .as_ref()
                 .map(|u| format!("unit {u}"))

@@ -4,7 +4,7 @@
 use super::*;
 use std::io::Write;
 
-use chrono::{NaiveTime, Utc};
+use chrono::NaiveTime;
 use clap::Args;
 
 use crate::app::shop::Shop;
@@ -40,6 +40,7 @@ pub struct LogEventArgs {
     #[arg(long)]
     pub json: bool,
 }
+
 pub fn run_log_event(shop: &Shop, args: &LogEventArgs, out: &mut dyn Write) -> Result<(), Failure> {
     let kind: EventKind = args.kind.parse().map_err(Failure::bad_input)?;
     let at = args
@@ -60,15 +61,11 @@ pub fn run_log_event(shop: &Shop, args: &LogEventArgs, out: &mut dyn Write) -> R
         by: args.by.clone(),
         note: args.note.clone(),
     };
-    let r = work::log_event_in(shop.store(), &args.unit, &input, Utc::now())?;
+    let r = work::log_event(shop, &args.unit, &input)?;
     if args.json {
         return json_out(out, &r);
     }
-    let sys = shop
-        .store()
-        .settings()
-        .map(|s| s.unit_system)
-        .unwrap_or_default();
+    let sys = shop.unit_system();
     let vol = r
         .event
         .volume

@@ -27,8 +27,8 @@ use std::io::Write;
 
 use super::Failure;
 use crate::app::figures;
-use crate::health::indicators::Tile;
-use crate::health::State;
+use crate::app::vocab::State;
+use crate::app::vocab::Tile;
 
 fn json_out<T: serde::Serialize>(out: &mut dyn Write, v: &T) -> Result<(), Failure> {
     serde_json::to_writer_pretty(&mut *out, v)

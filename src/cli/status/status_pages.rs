@@ -10,10 +10,10 @@ use clap::Args;
 use crate::app::figures;
 use crate::app::shop::Shop;
 use crate::app::status::{self, FleetStatus, UnitStatus};
+use crate::app::vocab::Record;
+use crate::app::vocab::CAUTION_SHORT;
+use crate::app::vocab::{BaselineSource, Flag, NotJudged, SuspectReading};
 use crate::cli::Failure;
-use crate::health::plan::CAUTION_SHORT;
-use crate::health::screen::Record;
-use crate::health::{BaselineSource, Flag, NotJudged, SuspectReading};
 use crate::units::UnitSystem;
 
 #[derive(Args, Debug, Clone, PartialEq)]
@@ -29,6 +29,7 @@ pub struct StatusArgs {
     #[arg(long, value_name = "DATE")]
     pub at: Option<String>,
 }
+
 fn fleet_table(out: &mut dyn Write, f: &FleetStatus) -> Result<(), Failure> {
     let sys = f.unit_system;
     let when = if f.replay {
@@ -387,11 +388,7 @@ pub fn run_status(shop: &Shop, args: &StatusArgs, out: &mut dyn Write) -> Result
     match &args.unit {
         Some(tag) => {
             let u = status::unit_status_of(shop, tag, at)?;
-            let sys = shop
-                .store()
-                .settings()
-                .map(|s| s.unit_system)
-                .unwrap_or_default();
+            let sys = shop.unit_system();
             if args.json {
                 json_out(out, &u.to_json_view(sys))
             } else {

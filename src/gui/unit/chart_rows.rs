@@ -4,11 +4,11 @@
 use super::*;
 
 use crate::app::entry::UnitView;
+use crate::app::vocab::{Dim, Series};
 use crate::gui::charts::{self, ChartInput, Line, Marker};
 use crate::gui::fmt::{dim_unit, dim_value};
 use crate::gui::ui::{ChartData, ChartRow};
 use crate::gui::{model, s};
-use crate::health::indicators::{Dim, Series};
 use crate::model::EventKind;
 use crate::units::UnitSystem;
 

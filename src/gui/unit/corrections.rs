@@ -11,10 +11,10 @@ use slint::{ComponentHandle, Model};
 use crate::app::confirm::{self, ConfirmAction, ReadingKind};
 use crate::app::entry::{self, Entered, Reading, SaveOutcome, UnitView};
 use crate::app::status;
+use crate::app::vocab::Record;
+use crate::app::vocab::SuspectReading;
 use crate::gui::ui::UnitAdapter;
 use crate::gui::{err_text, form_rows, mark_problems, model, problems_line, s, Ctx};
-use crate::health::screen::Record;
-use crate::health::SuspectReading;
 
 pub(super) fn select_row(ctx: &Rc<Ctx>, row: i32) {
     let Some(w) = ctx.win() else { return };

@@ -10,11 +10,11 @@ use slint::language::{StandardListViewItem, TableColumn};
 use slint::{ComponentHandle, Model, ModelRc, VecModel};
 
 use crate::app::entry::{self, Reading, UnitView};
+use crate::app::vocab::Dim;
+use crate::app::vocab::Record;
 use crate::gui::fmt::dim_value;
 use crate::gui::ui::{FormField, UnitAdapter};
 use crate::gui::{model, s, Ctx};
-use crate::health::indicators::Dim;
-use crate::health::screen::Record;
 use crate::quantity::Kind;
 use crate::units::UnitSystem;
 

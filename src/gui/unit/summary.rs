@@ -2,11 +2,11 @@
 //! shop's unit system. It must not evaluate or hold rules; the figures come from `app`.
 
 use crate::app::entry::{self, UnitView};
+use crate::app::vocab::Dim;
+use crate::app::vocab::{BaselineIndicator, BaselineSource};
 use crate::gui::fmt::dim_text;
 use crate::gui::s;
 use crate::gui::ui::KeyVal;
-use crate::health::baseline::{BaselineIndicator, BaselineSource};
-use crate::health::indicators::Dim;
 use crate::quantity::Kind;
 use crate::units::UnitSystem;
 

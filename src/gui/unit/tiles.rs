@@ -1,11 +1,11 @@
 //! Unit page tiles: each indicator's value, limit, trend and state as a tile. It must not judge;
 //! the state and figures come from `app`.
 
+use crate::app::vocab::{Dim, Direction};
+use crate::app::vocab::{NotJudged, State, Tile};
 use crate::gui::fmt::{dim_text, slope_text, state_num};
 use crate::gui::ui::{TileData, TileRow};
 use crate::gui::{model, s};
-use crate::health::indicators::{Dim, Direction};
-use crate::health::{NotJudged, State, Tile};
 use crate::units::UnitSystem;
 
 fn limit_text(t: &Tile, sys: UnitSystem) -> String {
