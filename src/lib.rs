@@ -1,14 +1,25 @@
 //! sumpbook: a condition log and drift watch for the hydraulic power units of a press shop.
 //!
 //! Code map (the direction of knowledge is physics ← health ← app → store, exchange, report;
-//! cli and gui know only app):
+//! cli and gui know only app — tests/architecture.rs checks it; DEVELOPERS.md has the table):
 //! - `units`, `quantity`: SI newtypes, exact conversions, parsing `2500psi`.
+//! - `names`: the macro of closed sets of names written as text.
 //! - `model`: the shop's records as plain data.
-//! - `physics`: pure fluid-power, viscosity, cleanliness, oil-life and trend functions.
+//! - `physics`: pure fluid-power, viscosity, cleanliness, oil-life and trend functions, with the
+//!   timed stroke and the sensitive component they compute on.
+//! - `health`: the rules — baselines, indicators, flags, limits, work planning, screening.
+//! - `store`: the shop database (SQLite file or PostgreSQL server); the only place with SQL.
+//! - `exchange`: CSV in (`csv_in/`) and out, the demo shop (`demo/`), the large benchmark shop.
+//! - `report`: the PDF's page engine (`layout/`), charts and pages.
 //! - `outfile`: output files written whole beside a user's path, never through a link.
 //! - `sim`: the detection benchmark's simulated shop and its scoring (pure).
-//! - `app`: one function per user action.
-//! - `cli`: the command line.
+//! - `app`: one function per user action, the only door of the faces (`entry/` the form rules,
+//!   `import` the one import path, `report/` the printed report, `vocab` the result types).
+//! - `cli`: the command line (`status/` one file per command).
+//! - `gui`: the desktop app's screen adapters (`unit/` the unit page).
+//!
+//! The path of one CSV row: `cli::data` → `Shop::import` (`app::import`) → `exchange::csv_in`
+//! (header, cells into SI with bounds, records) → `store::bulk` in one transaction.
 
 pub mod app;
 pub mod cli;

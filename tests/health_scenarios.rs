@@ -554,7 +554,7 @@ fn evaluating_a_fleet_costs_a_bounded_number_of_queries() {
 }
 
 // ---------------------------------------------------------------------------------------------
-// The demo shop's planted faults (src/exchange/demo.rs, listed in sample-data/README.md), each
+// The demo shop's planted faults (src/exchange/demo/, listed in sample-data/README.md), each
 // replayed day by day as `status --at DAY` evaluates it: what was recorded by the end of DAY.
 
 fn demo() -> (tempfile::TempDir, sumpbook::app::shop::Shop) {
@@ -818,7 +818,7 @@ fn the_demo_fluid_change_starts_a_new_era_and_baseline() {
 fn the_healthy_demo_units_raise_no_act_flag_in_two_years() {
     let (_dir, shop) = demo();
     let store = shop.store();
-    // Units without a planted fault in src/exchange/demo.rs.
+    // Units without a planted fault in src/exchange/demo/.
     let healthy = ["PR-01-M", "PR-01-C", "IM-05-B", "DP-08-M", "DP-08-C"];
     let first = day("2024-11-29");
     let mut watched = std::collections::BTreeMap::new();
