@@ -225,7 +225,8 @@ fn an_impossible_value_shows_the_reason_and_stores_nothing() {
     let problem = by_label(&f.app, "Reservoir temperature problem")
         .accessible_value()
         .unwrap_or_default();
-    // Design §10: temperatures above 150 °C are refused, with the range in the message.
+    // docs/engineering.md, "Physical bounds of readings": temperatures above 150 °C are
+    // refused, with the range in the message.
     assert!(problem.contains("150"), "{problem}");
     assert!(
         message(&f.app).starts_with("Not saved"),

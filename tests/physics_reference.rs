@@ -320,8 +320,8 @@ fn iso_4406_codes_from_counts() {
 
 #[test]
 fn cleanliness_targets_by_component_and_pressure() {
-    // Design §4 target table (common practice, from memory of typical filter-maker guidance), and
-    // above 140 bar one code cleaner on each size.
+    // The target table of docs/engineering.md, "Cleanliness targets" (common practice, from
+    // memory of typical filter-maker guidance), and above 140 bar one code cleaner on each size.
     let low = Some(Pressure::from_bar(140.0));
     let high = Some(Pressure::from_bar(210.0));
     let expected = [

@@ -89,7 +89,7 @@ use Compare::{Above, AtLeast};
 use LimitShape::{Threshold, Value};
 
 limit_keys! {
-    // Design §4 table; all common practice.
+    // docs/engineering.md, "Default limits"; all common practice.
     LostFlowPct = "lost_flow_pct", Threshold(AtLeast), Some(8.0), Some(15.0), "%",
         "lost flow against the era baseline, median of the last 3 checks";
     LeakConductanceRatio = "leak_conductance_ratio", Threshold(AtLeast), Some(1.3), Some(1.6), "x",
@@ -520,7 +520,7 @@ mod tests {
 
     #[test]
     fn builtin_defaults_are_the_design_table() {
-        // Design §4 (common practice, no published source).
+        // docs/engineering.md, "Default limits" (common practice, no published source).
         let l = Limits::builtin();
         let lf = l.get(LimitKey::LostFlowPct);
         assert_eq!((lf.watch, lf.act), (Some(8.0), Some(15.0)));

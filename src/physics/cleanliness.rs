@@ -331,8 +331,9 @@ pub struct TargetTable {
     pub high_pressure_step: u8,
 }
 
-/// Design §4 base targets (up to 140 bar), *common practice, from memory of typical
-/// filter-maker guidance*. An exhaustive match, so a new component cannot go without one.
+/// Base targets up to 140 bar (docs/engineering.md, "Cleanliness targets"), *common practice,
+/// from memory of typical filter-maker guidance*. An exhaustive match, so a new component
+/// cannot go without one.
 fn default_base_target(component: SensitiveComponent) -> [u8; 3] {
     use SensitiveComponent::*;
     match component {
@@ -354,9 +355,9 @@ fn plain_code(scales: [u8; 3]) -> Iso4406Code {
 }
 
 impl Default for TargetTable {
-    /// Design §4: servo valve 16/14/11; proportional valve and variable piston pump 17/15/12;
-    /// fixed piston pump 18/16/13; vane or gear pump, cylinders and standard valves 19/17/14;
-    /// above 140 bar one code cleaner on each size.
+    /// docs/engineering.md, "Cleanliness targets": servo valve 16/14/11; proportional valve
+    /// and variable piston pump 17/15/12; fixed piston pump 18/16/13; vane or gear pump,
+    /// cylinders and standard valves 19/17/14; above 140 bar one code cleaner on each size.
     fn default() -> Self {
         TargetTable {
             base: SensitiveComponent::ALL

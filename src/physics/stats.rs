@@ -276,7 +276,7 @@ pub struct Ewma {
 }
 
 impl Ewma {
-    /// Design §3 defaults: λ = 0.2, L = 3.
+    /// Defaults (docs/engineering.md, "Computations", drift detectors): λ = 0.2, L = 3.
     pub const LAMBDA: f64 = 0.2;
     pub const L: f64 = 3.0;
 
@@ -366,7 +366,7 @@ pub struct Cusum {
 }
 
 impl Cusum {
-    /// Design §3 defaults: k = 0.5, h = 5 (in σ).
+    /// Defaults (docs/engineering.md, "Computations", drift detectors): k = 0.5, h = 5 (in σ).
     pub const K_SIGMAS: f64 = 0.5;
     pub const H_SIGMAS: f64 = 5.0;
 

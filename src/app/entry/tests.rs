@@ -119,7 +119,8 @@ fn an_impossible_temperature_is_refused_and_nothing_is_written() {
     let (_d, shop) = demo();
     let u = first_unit(&shop);
     let n = shop.store().checks_for_unit(u.id, None).unwrap().len();
-    // Design §10: above 150 °C is impossible for a reservoir.
+    // docs/engineering.md, "Physical bounds of readings": above 150 °C is impossible for a
+    // reservoir.
     let out = save_check(
         &shop,
         u.id,
