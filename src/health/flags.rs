@@ -408,8 +408,15 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             |p| p.heat_rise_drift_median,
         ),
         &|g| {
+            let at = match c.heat_load {
+                Some(m) if m.viscosity.is_some() => {
+                    "than the baseline gives at this working pressure and hall temperature"
+                }
+                Some(_) => "than the baseline gives at this working pressure",
+                None => "than at baseline",
+            };
             format!(
-                "The oil runs {} hotter over ambient than at baseline (median of the last 3 checks): clean the cooler \
+                "The oil runs {} hotter over ambient {at} (median of the last 3 checks): clean the cooler \
                  and check its fan or water flow first, then look for a relief valve or leak path dumping flow.",
                 tdiff(g.value.unwrap_or(0.0), sys)
             )
@@ -697,7 +704,16 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
                         "Effective flow (corrected for oil temperature)",
                         Box::new(|v| flow(v, sys)),
                     ),
-                    BaselineIndicator::HeatRise => ("Heat rise", Box::new(|v| tdiff(v, sys))),
+                    BaselineIndicator::HeatRise => (
+                        match c.heat_load {
+                            Some(m) if m.viscosity.is_some() => {
+                                "Heat rise at baseline pressure and oil"
+                            }
+                            Some(_) => "Heat rise at baseline pressure",
+                            None => "Heat rise",
+                        },
+                        Box::new(|v| tdiff(v, sys)),
+                    ),
                     BaselineIndicator::LeakConductance => (
                         "Leak conductance",
                         Box::new(|v| format!("{v:.3e} m³/s·m²/s/Pa")),

@@ -166,6 +166,12 @@ limit_keys! {
     // difference; the factor is common practice, no published source).
     LeakMinSpreads = "leak_min_spreads", Value, None, Some(4.0), "spreads",
         "baseline leakage, in spreads of the timed flow, below which leak conductance is not judged";
+    // The heat rise is judged against what the baseline gives at the check's pressure and hall
+    // (`indicators::HeatLoad`): the pump's leakage, all of it heat, moves with p²/ν; the rest of
+    // the circuit's loss with p. A hydraulic circuit commonly turns about a fifth to a third of
+    // its input power into heat (common practice, no published source).
+    HeatSharePct = "heat_share_pct", Value, None, Some(25.0), "%",
+        "share of the pump's input power (D × p) a sound unit turns into heat, leakage included";
 }
 
 impl std::fmt::Display for LimitKey {
@@ -443,6 +449,7 @@ impl LimitKey {
             MinSpreadPct => from(0.0, 100.0),
             MinSpreadHeatK => from(0.0, 50.0),
             LeakMinSpreads => above(0.0, 100.0),
+            HeatSharePct => above(0.0, 100.0),
         }
     }
 }

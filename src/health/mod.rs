@@ -502,6 +502,59 @@ mod tests {
     }
 
     #[test]
+    fn a_heat_rise_that_follows_the_job_pressure_is_not_a_drift() {
+        // No timed stroke, so no flow model: the heat load goes with the pressure, and a
+        // unit's heat rise is judged against the baseline's at today's pressure (Newton's law
+        // of cooling with the load ∝ p). Baseline: 12 checks alternating 80 and 120 bar at
+        // 0.2 K per bar (16 and 24 K); the reference is their mean pressure, 100 bar, and the
+        // baseline heat rise there 20 K.
+        let mut h = press();
+        h.unit.stroke = None;
+        h.unit.relief = Some(crate::units::Pressure::from_bar(160.0));
+        let mut add = |h: &mut UnitHistory, id: i64, w: i64, bar: f64, rise: f64| {
+            let mut c = check(id, week(w));
+            c.pressure = Some(crate::units::Pressure::from_bar(bar));
+            c.reservoir_temp = Some(Temperature::from_c(20.0 + rise));
+            c.ambient_temp = Some(Temperature::from_c(20.0));
+            h.checks.push(c);
+        };
+        for w in 0..12 {
+            let bar = if w % 2 == 0 { 80.0 } else { 120.0 };
+            add(&mut h, w + 1, w, bar, 0.2 * bar);
+        }
+        // A job at 130 bar: 26 K, 6 K over the baseline's 20 K but just what 130 bar gives.
+        for w in 12..18 {
+            add(&mut h, w + 1, w, 130.0, 26.0);
+        }
+        let l = Limits::builtin();
+        let r = eval(&h, &l, week(17));
+        assert_eq!(state_of(&r, FlagKind::HeatRise), State::Steady);
+        assert_eq!(state_of(&r, FlagKind::Drift), State::Steady);
+        assert!(r.indicators.heat_rise_drift_k.unwrap().abs() < 1e-9);
+        let b = r.baseline.get(BaselineIndicator::HeatRise).unwrap();
+        assert!((b.value - 20.0).abs() < 1e-9);
+        // 10.5 K over what 130 bar gives (26 + 10.5): act, and the figure says so.
+        for (i, c) in h.checks.iter_mut().enumerate().skip(12) {
+            if i >= 15 {
+                c.reservoir_temp = Some(Temperature::from_c(20.0 + 36.5));
+            }
+        }
+        let r = eval(&h, &l, week(17));
+        let f = r
+            .flags
+            .iter()
+            .find(|f| f.kind == FlagKind::HeatRise)
+            .unwrap();
+        assert_eq!(f.state, State::Act);
+        assert!((f.value.unwrap() - 10.5).abs() < 1e-9, "{:?}", f.value);
+        assert!(
+            f.message.contains("at this working pressure"),
+            "{}",
+            f.message
+        );
+    }
+
+    #[test]
     fn reservoir_temperature_at_below_and_above_its_limits() {
         // > 60 °C watch, > 70 °C act, and always act above 82 °C (docs/engineering.md, "Default
         // limits").

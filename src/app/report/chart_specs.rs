@@ -89,7 +89,9 @@ pub(super) fn charts(
     }
     if let Some(s) = find("heat_rise") {
         out.push(Chart {
-            title: "Heat rise (oil − ambient)".into(),
+            // At the baseline's pressure and oil where the engine moves it there, as its
+            // baseline, limits and flag take it.
+            title: s.label.clone(),
             unit: chart_unit(s.dim, sys),
             from,
             to,
