@@ -43,6 +43,18 @@ pub const FLOOR_TEMP_K: f64 = 2.5;
 pub const FLOOR_STROKE_LN: f64 = 0.04;
 pub const FLOOR_PRESSURE_LN: f64 = 0.2;
 pub const FLOOR_CASE_DRAIN_LN: f64 = 0.2;
+/// A reading beyond `SIGMAS` right after an accepted one beyond this many robust σ on the same
+/// side is a run, not a slip: a slip is a lone reading, while a real change — a relief valve
+/// starting to pass oil, slowing the stroke a little on a cold morning and a lot the week
+/// after — moves two readings in a row. The rule is the Western Electric zone test "two of
+/// three successive points beyond 2σ on the same side" (Western Electric, *Statistical Quality
+/// Control Handbook*, 1956; D. C. Montgomery, *Introduction to Statistical Quality Control*,
+/// the sensitizing rules for Shewhart charts). It does not reach a gross slip: a reading
+/// beyond `RUN_GROSS` times Hampel's limit (a slipped decimal point — 23 K on an oil at 26 °C,
+/// nine floored σ — and most swapped digits) is questioned anyway (common practice, no
+/// published source, for the 1.5).
+pub const RUN_SIGMAS: f64 = 2.0;
+pub const RUN_GROSS: f64 = 1.5;
 /// A working pressure more than this fraction above the relief setting cannot be held by the
 /// circuit (gauge tolerance; the entry form's own margin).
 pub const OVER_RELIEF: f64 = 0.10;
@@ -203,6 +215,9 @@ struct CheckScreen {
     /// The last accepted reading per field was itself outside its history (a confirmed step),
     /// with its side: a next reading that agrees with it needs no confirmation.
     stepped: [Option<f64>; 5],
+    /// The last reading per field was accepted and lay beyond `RUN_SIGMAS` of its history,
+    /// with its side: the start of a run rather than a slip (see `RUN_SIGMAS`).
+    leaning: [Option<f64>; 5],
 }
 
 fn idx(f: Field) -> usize {
@@ -231,6 +246,10 @@ impl CheckScreen {
                 if step == side && (x - prev).abs() <= SIGMAS * s {
                     continue;
                 }
+            }
+            // The second of a run on one side (`RUN_SIGMAS`), short of a gross slip.
+            if self.leaning[i] == Some(side) && (x - m).abs() <= RUN_GROSS * SIGMAS * s {
+                continue;
             }
             history_hit[i] = true;
             out.push(Suspicion {
@@ -332,13 +351,17 @@ impl CheckScreen {
     /// Takes a check's accepted fields into the history. `suspect` are the fields left out.
     fn accept(&mut self, c: &Check, suspect: &[Field]) {
         for &f in &HISTORY_FIELDS {
+            let i = idx(f);
             if suspect.contains(&f) {
+                self.leaning[i] = None;
                 continue;
             }
             let Some(x) = hist_value(c, f) else { continue };
-            let i = idx(f);
             let hist = recent(f, &self.accepted[i]);
             self.stepped[i] = outside(x, hist);
+            self.leaning[i] = hist
+                .filter(|(m, s)| (x - m).abs() > RUN_SIGMAS * s)
+                .map(|(m, _)| (x - m).signum());
             self.accepted[i].push(x);
         }
     }
@@ -769,6 +792,32 @@ mod tests {
             Some(ConfirmedBy::NextReading { at }) if at == h.checks[9].taken_at
         ));
         assert!(without_unconfirmed(&h, &s) == h);
+    }
+
+    #[test]
+    fn the_second_of_a_run_on_one_side_is_not_a_slip() {
+        // The stroke history: 4.0 s with its spread floored at 0.04 in ln (Hampel's limit
+        // 5 · 0.04 = 0.2, run limit 2 · 0.04 = 0.08). 4.4 s is ln 1.1 = 0.095 above: accepted,
+        // beyond 2σ. 5.0 s next is ln 1.25 = 0.223 above, beyond 5σ — but the second of two
+        // on the slow side (the Western Electric zone rule), so not questioned (by hand).
+        let mut h = steady_weeks();
+        for (i, t) in [4.4, 5.0].iter().enumerate() {
+            let mut c = timed(9 + i as Id, 8 + i as i64, *t, 45.0, 20.0);
+            c.pressure = Some(Pressure::from_bar(90.0));
+            h.checks.push(c);
+        }
+        let s = screen_history(&h, None, UnitSystem::Metric);
+        assert!(s.is_empty(), "{s:?}");
+        // A gross slip after the same lead-in is still questioned: 6.0 s is ln 1.5 = 0.405
+        // above, beyond 1.5 times Hampel's limit (0.3).
+        h.checks[9].stroke_time = Some(Seconds(6.0));
+        let s = screen_history(&h, None, UnitSystem::Metric);
+        assert_eq!(fields(&s, 10), vec![(Field::StrokeTime, false)]);
+        // Without the lead-in (4.0 s before it), 5.0 s is questioned.
+        h.checks[8].stroke_time = Some(Seconds(4.0));
+        h.checks[9].stroke_time = Some(Seconds(5.0));
+        let s = screen_history(&h, None, UnitSystem::Metric);
+        assert_eq!(fields(&s, 10), vec![(Field::StrokeTime, false)]);
     }
 
     #[test]
