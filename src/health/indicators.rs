@@ -585,6 +585,7 @@ pub fn compute(
     // Sudden loss: two checks in a row well below the weeks just before them — on the flow
     // corrected to the reference conditions where the leakage is resolved (a hot week moves a
     // leaky pump's timed flow), as timed where it is not (nor then is its move with the oil).
+    let watch_pct = limits.get(LimitKey::LostFlowPct).watch;
     let corrected_sudden = leak_resolved == Some(true);
     let mut flows: Vec<(DateTime<Utc>, f64)> = Vec::new();
     for p in points.iter_mut() {
@@ -607,9 +608,12 @@ pub fn compute(
                 .iter()
                 .map(|f| f.1)
                 .collect();
-            let better = flows[n - 2].1.max(flows[n - 1].1);
             if let Some(m) = stats::median(&before).filter(|m| *m > 0.0) {
-                p.sudden_loss_pct = Some((1.0 - better / m) * 100.0);
+                p.sudden_loss_pct = Some(sudden_loss(
+                    (1.0 - flows[n - 2].1 / m) * 100.0,
+                    (1.0 - flows[n - 1].1 / m) * 100.0,
+                    watch_pct,
+                ));
             }
         }
     }
@@ -775,6 +779,18 @@ impl HeatLoad {
 /// A settled heat rise beyond this is taken as no settling at all, K (the oil would boil off
 /// its additives long before).
 const SETTLE_MAX_RISE_K: f64 = 120.0;
+
+/// The sudden loss of two checks in a row, % below the checks before them, from the earlier
+/// one's loss `first` and the later one's `second`: the later check's, where the earlier one
+/// already showed at least the watch limit `watch` (a step seen at once and confirmed a check
+/// later: watch may show at once, act needs the second check); else the smaller of the two,
+/// so that one slow check never makes a sudden loss on its own.
+pub fn sudden_loss(first: f64, second: f64, watch: Option<f64>) -> f64 {
+    match watch {
+        Some(w) if first >= w => second,
+        _ => first.min(second),
+    }
+}
 
 /// The level a flag judges from the last readings of an indicator whose high values mean
 /// trouble: the median of the last 3, and of only 2 the lower — so a single reading never
@@ -1809,6 +1825,16 @@ mod tests {
             ..m
         };
         assert!(runaway.settled_rise(100.0e5, amb, oil).is_none());
+    }
+
+    #[test]
+    fn a_sudden_loss_needs_the_first_check_at_watch_to_take_the_second() {
+        // Limits 8 % watch: 9 then 20 → 20 (a step seen, then confirmed); 5 then 20 → 5
+        // (one slow check alone); 20 then 16 → 16; no watch limit → the smaller.
+        assert_eq!(sudden_loss(9.0, 20.0, Some(8.0)), 20.0);
+        assert_eq!(sudden_loss(5.0, 20.0, Some(8.0)), 5.0);
+        assert_eq!(sudden_loss(20.0, 16.0, Some(8.0)), 16.0);
+        assert_eq!(sudden_loss(9.0, 20.0, None), 9.0);
     }
 
     fn sp(week: f64, v: f64) -> SeriesPoint {

@@ -832,6 +832,26 @@ mod tests {
     }
 
     #[test]
+    fn a_step_seen_at_watch_and_confirmed_beyond_act_is_act_at_the_second_check() {
+        // Twelve checks at 4.0 s, then a relief valve starts to pass oil on a cold morning:
+        // 4.4 s (flow down 1 − 4/4.4 = 9.1 %, past the 8 % watch limit), then 5.0 s (20 %).
+        // The 5.0 s is the second of a run on the slow side, so the screen does not hold it;
+        // the sudden loss takes the later check's 20 % since the earlier already showed the
+        // watch limit (worked by hand).
+        let mut h = press();
+        for w in 0..12 {
+            h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
+        }
+        h.checks.push(timed(13, 12, 4.4, 45.0, 20.0));
+        h.checks.push(timed(14, 13, 5.0, 45.0, 20.0));
+        let r = eval(&h, &Limits::builtin(), week(13));
+        assert!(r.suspects.is_empty(), "{:?}", r.suspects);
+        assert_eq!(state_of(&r, FlagKind::LostFlow), State::Act);
+        let p = r.checks.last().unwrap();
+        assert!((p.sudden_loss_pct.unwrap() - 20.0).abs() < 1e-9);
+    }
+
+    #[test]
     fn a_cooler_clean_restarts_the_heat_rise_detectors_and_flags() {
         // Heat rise 20 K for 12 checks (the baseline), then a fouling cooler: 32 K for 5
         // checks, then the cooler is cleaned and the heat rise is back at 20 K.
