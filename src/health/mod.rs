@@ -511,7 +511,7 @@ mod tests {
         let mut h = press();
         h.unit.stroke = None;
         h.unit.relief = Some(crate::units::Pressure::from_bar(160.0));
-        let mut add = |h: &mut UnitHistory, id: i64, w: i64, bar: f64, rise: f64| {
+        let add = |h: &mut UnitHistory, id: i64, w: i64, bar: f64, rise: f64| {
             let mut c = check(id, week(w));
             c.pressure = Some(crate::units::Pressure::from_bar(bar));
             c.reservoir_temp = Some(Temperature::from_c(20.0 + rise));
