@@ -9,7 +9,8 @@ use std::fmt;
 use std::str::FromStr;
 
 use crate::units::{
-    Flow, Length, Power, Pressure, Seconds, Temperature, UnitSystem, Viscosity, Volume,
+    Flow, Force, Length, Power, Pressure, Seconds, Speed, Temperature, UnitSystem, Viscosity,
+    Volume,
 };
 
 /// The physical dimension of a quantity.
@@ -23,10 +24,12 @@ pub enum Kind {
     Time,
     Viscosity,
     Power,
+    Force,
+    Speed,
 }
 
 impl Kind {
-    pub const ALL: [Kind; 8] = [
+    pub const ALL: [Kind; 10] = [
         Kind::Length,
         Kind::Volume,
         Kind::Flow,
@@ -35,6 +38,8 @@ impl Kind {
         Kind::Time,
         Kind::Viscosity,
         Kind::Power,
+        Kind::Force,
+        Kind::Speed,
     ];
 
     /// "a length", "a pressure", ... for messages.
@@ -48,6 +53,8 @@ impl Kind {
             Kind::Time => "a time",
             Kind::Viscosity => "a viscosity",
             Kind::Power => "a power",
+            Kind::Force => "a force",
+            Kind::Speed => "a speed",
         }
     }
 
@@ -62,6 +69,8 @@ impl Kind {
             Kind::Time => "2.5s",
             Kind::Viscosity => "46cSt",
             Kind::Power => "13kW or 17.5hp",
+            Kind::Force => "50kN or 11240lbf",
+            Kind::Speed => "4.5m/s or 15ft/s",
         }
     }
 
@@ -94,6 +103,10 @@ impl Kind {
             (Kind::Viscosity, _) => Unit::Centistoke,
             (Kind::Power, Metric) => Unit::Kilowatt,
             (Kind::Power, Us) => Unit::Horsepower,
+            (Kind::Force, Metric) => Unit::Kilonewton,
+            (Kind::Force, Us) => Unit::PoundForce,
+            (Kind::Speed, Metric) => Unit::MetrePerSecond,
+            (Kind::Speed, Us) => Unit::FootPerSecond,
         }
     }
 }
@@ -134,10 +147,15 @@ pub enum Unit {
     Kilowatt,
     Horsepower,
     BtuPerHour,
+    Newton,
+    Kilonewton,
+    PoundForce,
+    MetrePerSecond,
+    FootPerSecond,
 }
 
 impl Unit {
-    pub const ALL: [Unit; 27] = [
+    pub const ALL: [Unit; 32] = [
         Unit::Millimetre,
         Unit::Centimetre,
         Unit::Metre,
@@ -165,6 +183,11 @@ impl Unit {
         Unit::Kilowatt,
         Unit::Horsepower,
         Unit::BtuPerHour,
+        Unit::Newton,
+        Unit::Kilonewton,
+        Unit::PoundForce,
+        Unit::MetrePerSecond,
+        Unit::FootPerSecond,
     ];
 
     pub fn kind(self) -> Kind {
@@ -178,6 +201,8 @@ impl Unit {
             Second | Minute | Hour => Kind::Time,
             Centistoke => Kind::Viscosity,
             Watt | Kilowatt | Horsepower | BtuPerHour => Kind::Power,
+            Newton | Kilonewton | PoundForce => Kind::Force,
+            MetrePerSecond | FootPerSecond => Kind::Speed,
         }
     }
 
@@ -212,6 +237,11 @@ impl Unit {
             Kilowatt => "kW",
             Horsepower => "hp",
             BtuPerHour => "BTU/h",
+            Newton => "N",
+            Kilonewton => "kN",
+            PoundForce => "lbf",
+            MetrePerSecond => "m/s",
+            FootPerSecond => "ft/s",
         }
     }
 
@@ -246,6 +276,11 @@ impl Unit {
             Kilowatt => &["kw"],
             Horsepower => &["hp"],
             BtuPerHour => &["btu/h", "btu/hr", "btuh"],
+            Newton => &["n"],
+            Kilonewton => &["kn"],
+            PoundForce => &["lbf", "lb"],
+            MetrePerSecond => &["m/s", "mps"],
+            FootPerSecond => &["ft/s", "fps"],
         }
     }
 
@@ -292,6 +327,11 @@ impl Unit {
             Kilowatt => Power::from_kw(v).si(),
             Horsepower => Power::from_hp(v).si(),
             BtuPerHour => Power::from_btu_per_h(v).si(),
+            Newton => v,
+            Kilonewton => Force::from_kn(v).si(),
+            PoundForce => Force::from_lbf(v).si(),
+            MetrePerSecond => v,
+            FootPerSecond => Speed::from_ft_s(v).si(),
         }
     }
 
@@ -326,6 +366,11 @@ impl Unit {
             Kilowatt => Power(si).kw(),
             Horsepower => Power(si).hp(),
             BtuPerHour => Power(si).btu_per_h(),
+            Newton => si,
+            Kilonewton => Force(si).kn(),
+            PoundForce => Force(si).lbf(),
+            MetrePerSecond => si,
+            FootPerSecond => Speed(si).ft_s(),
         }
     }
 
@@ -333,11 +378,11 @@ impl Unit {
     fn decimals(self) -> usize {
         use Unit::*;
         match self {
-            Psi | Pascal | Watt | BtuPerHour | Millilitre => 0,
+            Psi | Pascal | Watt | BtuPerHour | Millilitre | Newton | PoundForce => 0,
             Millimetre | LitrePerMinute | Bar | Celsius | Fahrenheit | Kelvin | Kilopascal
-            | Foot => 1,
+            | Foot | FootPerSecond => 1,
             Centimetre | Litre | UsGallon | GallonPerMinute | Second | Minute | Hour
-            | Centistoke | Kilowatt | Horsepower | Megapascal => 2,
+            | Centistoke | Kilowatt | Horsepower | Megapascal | Kilonewton | MetrePerSecond => 2,
             Metre | Inch | CubicMetre => 3,
         }
     }
@@ -360,6 +405,8 @@ pub enum Quantity {
     Time(Seconds),
     Viscosity(Viscosity),
     Power(Power),
+    Force(Force),
+    Speed(Speed),
 }
 
 impl Quantity {
@@ -374,6 +421,8 @@ impl Quantity {
             Kind::Time => Quantity::Time(Seconds(si)),
             Kind::Viscosity => Quantity::Viscosity(Viscosity(si)),
             Kind::Power => Quantity::Power(Power(si)),
+            Kind::Force => Quantity::Force(Force(si)),
+            Kind::Speed => Quantity::Speed(Speed(si)),
         }
     }
 
@@ -387,6 +436,8 @@ impl Quantity {
             Quantity::Time(_) => Kind::Time,
             Quantity::Viscosity(_) => Kind::Viscosity,
             Quantity::Power(_) => Kind::Power,
+            Quantity::Force(_) => Kind::Force,
+            Quantity::Speed(_) => Kind::Speed,
         }
     }
 
@@ -401,6 +452,8 @@ impl Quantity {
             Quantity::Time(q) => q.si(),
             Quantity::Viscosity(q) => q.si(),
             Quantity::Power(q) => q.si(),
+            Quantity::Force(q) => q.si(),
+            Quantity::Speed(q) => q.si(),
         }
     }
 
@@ -662,6 +715,14 @@ typed_parser!(
 typed_parser!(
     /// `13kW`, `17.5hp`, `44530BTU/h`, ...
     parse_power, Power, Power
+);
+typed_parser!(
+    /// `50kN`, `11240lbf`, `500N`, ...
+    parse_force, Force, Force
+);
+typed_parser!(
+    /// `4.5m/s`, `15ft/s`, ...
+    parse_speed, Speed, Speed
 );
 
 /// Decimals that keep at least three significant digits of `v`, never fewer than `min`.

@@ -21,6 +21,10 @@ pub const W_PER_HP: f64 = 745.699_871_58;
 pub const W_PER_BTU_IT_PER_H: f64 = 0.293_071_070_17;
 /// 0 °C in kelvin (exact).
 pub const KELVIN_AT_0C: f64 = 273.15;
+/// 1 pound-force in newtons (exact, NIST SP 811).
+pub const N_PER_LBF: f64 = 4.448_221_615_260_5;
+/// 1 foot in metres (exact, NIST SP 811).
+pub const M_PER_FT: f64 = 0.3048;
 
 macro_rules! quantity {
     ($(#[$doc:meta])* $name:ident) => {
@@ -81,6 +85,39 @@ quantity!(
     /// Power in watts.
     Power
 );
+
+quantity!(
+    /// Force in newtons.
+    Force
+);
+quantity!(
+    /// Speed in metres per second (oil in a line).
+    Speed
+);
+
+impl Force {
+    pub fn from_kn(kn: f64) -> Self {
+        Force(kn * 1.0e3)
+    }
+    pub fn from_lbf(lbf: f64) -> Self {
+        Force(lbf * N_PER_LBF)
+    }
+    pub fn kn(self) -> f64 {
+        self.0 / 1.0e3
+    }
+    pub fn lbf(self) -> f64 {
+        self.0 / N_PER_LBF
+    }
+}
+
+impl Speed {
+    pub fn from_ft_s(ft_s: f64) -> Self {
+        Speed(ft_s * M_PER_FT)
+    }
+    pub fn ft_s(self) -> f64 {
+        self.0 / M_PER_FT
+    }
+}
 
 impl Length {
     pub fn from_mm(mm: f64) -> Self {

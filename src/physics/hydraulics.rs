@@ -1,6 +1,6 @@
 //! Fluid-power arithmetic of a unit's timed stroke: displaced volume, effective flow, lost
 //! flow, volumetric efficiency, hydraulic and heat power, and the temperature-compensated
-//! leak conductance.
+//! leak conductance; and the bench figures of a cylinder's force and of oil speed in a line.
 //!
 //! Pure functions in SI. They validate what would make the arithmetic meaningless (zero or
 //! negative sizes and times) and leave judging the result to the health engine.
@@ -9,7 +9,9 @@ use serde::{Deserialize, Serialize};
 
 use super::{finite, positive, show_mm, PhysicsError};
 use crate::names::text_enum;
-use crate::units::{Area, Flow, Length, Power, Pressure, Seconds, Viscosity, Volume};
+use crate::units::{
+    Area, Flow, Force, Length, Power, Pressure, Seconds, Speed, Viscosity, Volume,
+};
 
 text_enum!(
     /// Which way the timed stroke moves: extending fills the full bore, retracting the annulus.
@@ -98,6 +100,35 @@ pub fn piston_speed(flow: Flow, area: Area) -> Result<f64, PhysicsError> {
         format!("{} mm²", super::num(v * 1.0e6))
     })?;
     Ok(flow.si() / area.si())
+}
+
+/// Force of a cylinder: F = p · A, on the full bore when extending, the annulus when
+/// retracting.
+pub fn cylinder_force(pressure: Pressure, area: Area) -> Result<Force, PhysicsError> {
+    finite("the pressure", pressure.si())?;
+    positive("the piston area", area.si(), |v| {
+        format!("{} mm²", super::num(v * 1.0e6))
+    })?;
+    Ok(Force(pressure.si() * area.si()))
+}
+
+/// Pressure a cylinder needs to hold or move `load`: p = F / A (friction and back pressure
+/// not included).
+pub fn pressure_for_load(load: Force, area: Area) -> Result<Pressure, PhysicsError> {
+    positive("the load", load.si(), |v| {
+        format!("{} kN", super::num(v / 1.0e3))
+    })?;
+    positive("the piston area", area.si(), |v| {
+        format!("{} mm²", super::num(v * 1.0e6))
+    })?;
+    Ok(Pressure(load.si() / area.si()))
+}
+
+/// Mean speed of oil in a line of inside diameter `inside`: v = Q / (π/4 · d²).
+pub fn line_velocity(flow: Flow, inside: Length) -> Result<Speed, PhysicsError> {
+    positive("the flow", flow.si(), show_lpm)?;
+    positive("the inside diameter", inside.si(), show_mm)?;
+    Ok(Speed(flow.si() / circle_area(inside).si()))
 }
 
 /// Fraction of the baseline flow that is lost: 1 − Q / Q_baseline (0.08 = 8 %).
@@ -215,6 +246,52 @@ pub fn fit_leakage(points: &[(Flow, Viscosity, Pressure)]) -> Option<LeakageFit>
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn cylinder_force_against_the_trade_formula_in_us_units() {
+        // F (lbf) = p (psi) · A (in²), A = π/4 · D²: 2000 psi on a 4 in bore is
+        // 2000 · 12.566 370 6 = 25 132.741 lbf (π/4 · 16 = 4π; the formula of any fluid-power
+        // handbook, worked here with π from the standard library).
+        let f = cylinder_force(
+            Pressure::from_psi(2000.0),
+            piston_area(Length::from_in(4.0)).unwrap(),
+        )
+        .unwrap();
+        assert!(
+            (f.lbf() - 2000.0 * 4.0 * std::f64::consts::PI).abs() < 1e-6,
+            "{}",
+            f.lbf()
+        );
+        // Metric: 100 bar on a 100 mm bore = 10 MPa · 7853.98 mm² = 78.54 kN.
+        let f = cylinder_force(
+            Pressure::from_bar(100.0),
+            piston_area(Length::from_mm(100.0)).unwrap(),
+        )
+        .unwrap();
+        assert!((f.kn() - 78.539_816).abs() < 1e-5, "{}", f.kn());
+        // And back: the pressure that load needs on that bore is the 100 bar.
+        let p = pressure_for_load(f, piston_area(Length::from_mm(100.0)).unwrap()).unwrap();
+        assert!((p.bar() - 100.0).abs() < 1e-9);
+        assert!(pressure_for_load(Force(0.0), Area(1.0)).is_err());
+    }
+
+    #[test]
+    fn line_velocity_against_the_trade_formula_in_us_units() {
+        // v (ft/s) = 0.3208 · Q (GPM) / A (in²) (0.3208 = 231 / 720, from 1 gal = 231 in³ and
+        // 1 ft/s = 720 in/min): 10 GPM in a 0.5 in bore line (A = 0.196 35 in²) is
+        // 16.34 ft/s.
+        let v = line_velocity(Flow::from_gpm(10.0), Length::from_in(0.5)).unwrap();
+        let area_in2 = std::f64::consts::FRAC_PI_4 * 0.25;
+        assert!(
+            (v.ft_s() - 231.0 / 720.0 * 10.0 / area_in2).abs() < 1e-9,
+            "{}",
+            v.ft_s()
+        );
+        // Metric: 60 L/min in a 20 mm bore = 0.001 m³/s / 314.159e-6 m² = 3.183 m/s.
+        let v = line_velocity(Flow::from_lpm(60.0), Length::from_mm(20.0)).unwrap();
+        assert!((v.si() - 1.0e-3 / (std::f64::consts::FRAC_PI_4 * 0.02 * 0.02)).abs() < 1e-12);
+        assert!(line_velocity(Flow::from_lpm(60.0), Length(0.0)).is_err());
+    }
 
     fn stroke(
         bore_mm: f64,
