@@ -8,7 +8,7 @@
 #   status      `sumpbook status` on 1,000 units x 520 checks + 52 samples vs one full-scan
 #               aggregate query over the same tables in the sqlite3 shell
 #   start-up    app start to first frame on that shop vs on an empty shop (Xvfb)
-#   report      `sumpbook report` for 10 and 100 units (linear: 10x)
+#   report      `sumpbook report` for 10 and 100 units (linear: 10x); the demo report's size
 #   server      the large shop copied onto a PostgreSQL server (a throwaway cluster of this run):
 #               `sumpbook status` there vs on the file, and vs the same full-scan aggregate in
 #               psql; `sumpbook import checks` of the 1 M-row CSV into the server vs psql's
@@ -249,6 +249,14 @@ if want report; then
     say "  10 units ${m10}s, 100 units ${m100}s: ${per} ms per unit plus ${fixed}s fixed"
     say "  ratio: ${r}x (linear = 10; target <= 10: $(verdict "$r" "<=" 10.0))"
     SUMMARY+=("report 100/10 units ${r}x (linear = 10x) $(verdict "$r" "<=" 10.0)")
+    # The demo shop's report, the size a supervisor mails (fonts cut to the glyphs drawn).
+    fresh "$OUT/demo.sqlite"
+    "$BIN" --db "$OUT/demo.sqlite" demo >/dev/null
+    rm -f "$OUT/demo.pdf"
+    "$BIN" --db "$OUT/demo.sqlite" report --out "$OUT/demo.pdf" >/dev/null
+    kb=$(( $(stat -c %s "$OUT/demo.pdf") / 1000 ))
+    say "  the demo shop's report: ${kb} kB (target <= 200 kB: $(verdict "$kb" "<=" 200))"
+    SUMMARY+=("demo report         ${kb} kB $(verdict "$kb" "<=" 200)")
     say ""
 fi
 
