@@ -1918,15 +1918,25 @@ fn a_report_or_export_that_cannot_be_written_whole_leaves_no_file() {
     let big = dir.path().join("big.csv");
     big_checks_file(&big, 3000, 400);
     ok(&db, &["import", "checks", path_str(&big)]);
-    // 64 KiB: room for SQLite's own files beside the shop, not for the report or the export.
-    for (args, file) in [
-        (vec!["report"], "r.pdf"),
-        (vec!["export", "checks"], "out.csv"),
+    // A file size limit (in 512-byte blocks) with room for SQLite's own files beside the shop
+    // (its index file is 32 KiB), not for the report or the export: each is first written
+    // whole without the limit to show that it is larger.
+    for (args, file, blocks) in [
+        (vec!["report"], "r.pdf", 72u32),
+        (vec!["export", "checks"], "out.csv", 128),
     ] {
+        let whole = dir.path().join(format!("whole-{file}"));
+        let mut a = args.clone();
+        a.extend(["--out", path_str(&whole)]);
+        ok(&db, &a);
+        let size = std::fs::metadata(&whole).unwrap().len();
+        assert!(size > u64::from(blocks) * 512, "{a:?}: only {size} bytes");
+        std::fs::remove_file(&whole).unwrap();
+
         let target = dir.path().join(file);
         let mut a = args.clone();
         a.extend(["--out", path_str(&target)]);
-        let out = run_with_file_limit(&db, 128, &a);
+        let out = run_with_file_limit(&db, blocks, &a);
         let err = text(&out.stderr);
         assert_eq!(out.status.code(), Some(1), "{a:?}: {err}");
         assert!(err.contains(file), "{err}");

@@ -1,6 +1,6 @@
 //! The bench calculators: viscosity index, viscosity at a temperature and the KV40 equivalent
 //! of a field reading, ISO 4406 code from counts, flow from a timed stroke, hydraulic power
-//! and heat.
+//! and heat, cylinder force and the pressure a load needs, and oil speed in a line.
 //!
 //! Each takes parsed quantities and returns a serde-serialisable result, for the command line
 //! and the desktop app alike. Input that cannot be right is an `AppError::BadInput` whose
@@ -11,10 +11,13 @@ use serde::Serialize;
 use super::AppError;
 use crate::model::{StrokeDirection, TimedStroke};
 use crate::physics::cleanliness::code_from_counts;
-use crate::physics::hydraulics::{displaced_volume, heat_power, hydraulic_power, stroke_flow};
+use crate::physics::hydraulics::{
+    annulus_area, cylinder_force, displaced_volume, heat_power, hydraulic_power, line_velocity,
+    piston_area, pressure_for_load, stroke_flow,
+};
 use crate::physics::viscosity::{viscosity_index, ViProcedure, Walther};
 use crate::physics::PhysicsError;
-use crate::units::{Flow, Length, Pressure, Seconds, Temperature, Viscosity};
+use crate::units::{Flow, Force, Length, Pressure, Seconds, Speed, Temperature, Viscosity};
 
 fn bad(e: PhysicsError) -> AppError {
     AppError::BadInput(e.to_string())
@@ -186,9 +189,210 @@ pub fn power(flow: Flow, pressure: Pressure) -> Result<PowerOutput, AppError> {
     })
 }
 
+/// `calc force`: the cylinder's area and either its force at a pressure or the pressure a
+/// load needs. JSON `{"area_mm2": …, "area_in2": …, "kn": …, "lbf": …, "bar": …, "psi": …}`.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize)]
+pub struct ForceOutput {
+    pub area_mm2: f64,
+    pub area_in2: f64,
+    /// The force (given the pressure) or the load (given the load).
+    pub kn: f64,
+    pub lbf: f64,
+    /// The pressure given, or the pressure the load needs.
+    pub bar: f64,
+    pub psi: f64,
+}
+
+/// What `calc force` is asked.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum ForceQuestion {
+    /// The force at this pressure.
+    AtPressure(Pressure),
+    /// The pressure this load needs.
+    ForLoad(Force),
+}
+
+/// Cylinder force on the full bore (or the annulus when `rod` is given, for the retracting
+/// side), or the pressure a load needs there.
+pub fn force(
+    bore: Length,
+    rod: Option<Length>,
+    question: ForceQuestion,
+) -> Result<ForceOutput, AppError> {
+    let area = match rod {
+        None => piston_area(bore),
+        Some(rod) => annulus_area(bore, rod),
+    }
+    .map_err(bad)?;
+    let (f, p) = match question {
+        ForceQuestion::AtPressure(p) => {
+            check_positive("the pressure", p.bar(), "bar")?;
+            (cylinder_force(p, area).map_err(bad)?, p)
+        }
+        ForceQuestion::ForLoad(f) => {
+            check_positive("the load", f.kn(), "kN")?;
+            (f, pressure_for_load(f, area).map_err(bad)?)
+        }
+    };
+    Ok(ForceOutput {
+        area_mm2: area.mm2(),
+        area_in2: area.in2(),
+        kn: f.kn(),
+        lbf: f.lbf(),
+        bar: p.bar(),
+        psi: p.psi(),
+    })
+}
+
+/// The kind of line oil flows in, for its usual speed range.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum LineKind {
+    Suction,
+    Return,
+    Pressure,
+}
+
+impl LineKind {
+    /// The usual mean oil speed for the line, m/s (common practice, no published source;
+    /// from memory: suction 0.6–1.2 m/s (2–4 ft/s), return 1.5–3 m/s (5–10 ft/s), pressure
+    /// 2–6 m/s (7–20 ft/s)). Too fast costs pressure drop and heat, in a suction line
+    /// cavitation; too slow a bigger line than needed.
+    pub fn usual(self) -> (Speed, Speed) {
+        match self {
+            LineKind::Suction => (Speed(0.6), Speed(1.2)),
+            LineKind::Return => (Speed(1.5), Speed(3.0)),
+            LineKind::Pressure => (Speed(2.0), Speed(6.0)),
+        }
+    }
+}
+
+/// `calc velocity`: JSON `{"m_s": …, "ft_s": …, "line": …, "low_m_s": …, "high_m_s": …,
+/// "verdict": "within" | "below" | "above"}` (line and range only when a line was named).
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct VelocityOutput {
+    pub m_s: f64,
+    pub ft_s: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub line: Option<LineKind>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub low_m_s: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub high_m_s: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub verdict: Option<&'static str>,
+}
+
+/// Mean oil speed at `flow` in a line of inside diameter `inside`, against the usual range of
+/// `line` or the range given (`range` wins).
+pub fn velocity(
+    flow: Flow,
+    inside: Length,
+    line: Option<LineKind>,
+    range: Option<(Speed, Speed)>,
+) -> Result<VelocityOutput, AppError> {
+    let v = line_velocity(flow, inside).map_err(bad)?;
+    let range = match (range, line) {
+        (Some((lo, hi)), _) => {
+            if !(lo.si() >= 0.0 && hi.si() > lo.si() && hi.is_finite()) {
+                return Err(AppError::BadInput(format!(
+                    "the speed range must run from a low to a higher speed, got {:.2} to {:.2} m/s",
+                    lo.si(),
+                    hi.si()
+                )));
+            }
+            Some((lo, hi))
+        }
+        (None, Some(l)) => Some(l.usual()),
+        (None, None) => None,
+    };
+    let verdict = range.map(|(lo, hi)| {
+        if v.si() < lo.si() {
+            "below"
+        } else if v.si() > hi.si() {
+            "above"
+        } else {
+            "within"
+        }
+    });
+    Ok(VelocityOutput {
+        m_s: v.si(),
+        ft_s: v.ft_s(),
+        line,
+        low_m_s: range.map(|r| r.0.si()),
+        high_m_s: range.map(|r| r.1.si()),
+        verdict,
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn force_both_ways_on_the_bore_and_the_annulus() {
+        // 2000 psi on a 4 in bore: 4π in² × 2000 psi = 25 132.7 lbf (F = p·A).
+        let out = force(
+            Length::from_in(4.0),
+            None,
+            ForceQuestion::AtPressure(Pressure::from_psi(2000.0)),
+        )
+        .unwrap();
+        assert!((out.lbf - 8000.0 * std::f64::consts::PI).abs() < 1e-6);
+        assert!((out.area_in2 - 4.0 * std::f64::consts::PI).abs() < 1e-12);
+        // Retracting on a 100 mm bore with a 56 mm rod: A = π/4 (100² − 56²) = 5390.3 mm²;
+        // a 50 kN load needs 50 000 N / 5390.3 mm² = 9.276 MPa = 92.76 bar.
+        let out = force(
+            Length::from_mm(100.0),
+            Some(Length::from_mm(56.0)),
+            ForceQuestion::ForLoad(Force::from_kn(50.0)),
+        )
+        .unwrap();
+        let area = std::f64::consts::FRAC_PI_4 * (100.0f64.powi(2) - 56.0f64.powi(2));
+        assert!((out.area_mm2 - area).abs() < 1e-9);
+        assert!(
+            (out.bar - 50_000.0 / area * 10.0).abs() < 1e-9,
+            "{}",
+            out.bar
+        );
+        assert!(force(
+            Length::from_mm(50.0),
+            Some(Length::from_mm(60.0)),
+            ForceQuestion::ForLoad(Force::from_kn(1.0))
+        )
+        .is_err());
+    }
+
+    #[test]
+    fn velocity_against_the_usual_ranges() {
+        // 10 GPM in a 0.5 in line: 16.3 ft/s (231/720 · Q / A), too fast for a suction line,
+        // within the usual pressure-line range.
+        let q = Flow::from_gpm(10.0);
+        let d = Length::from_in(0.5);
+        let suction = velocity(q, d, Some(LineKind::Suction), None).unwrap();
+        assert_eq!(suction.verdict, Some("above"));
+        assert!(
+            (suction.ft_s - 231.0 / 720.0 * 10.0 / (std::f64::consts::FRAC_PI_4 * 0.25)).abs()
+                < 1e-9
+        );
+        assert_eq!(
+            velocity(q, d, Some(LineKind::Pressure), None)
+                .unwrap()
+                .verdict,
+            Some("within")
+        );
+        // A range of the shop's own wins over the usual one.
+        let own = velocity(
+            q,
+            d,
+            Some(LineKind::Pressure),
+            Some((Speed(1.0), Speed(3.0))),
+        )
+        .unwrap();
+        assert_eq!(own.verdict, Some("above"));
+        assert!(velocity(q, d, None, Some((Speed(3.0), Speed(1.0)))).is_err());
+        assert_eq!(velocity(q, d, None, None).unwrap().verdict, None);
+    }
 
     #[test]
     fn vi_of_the_d2270_worked_example() {

@@ -10,8 +10,8 @@ use clap::{Args, Subcommand};
 use super::Failure;
 use crate::app::calc;
 use crate::quantity::{
-    format_in, parse_flow, parse_length, parse_pressure, parse_temperature, parse_time,
-    parse_viscosity, ParseError, Quantity, Unit,
+    format_in, parse_flow, parse_force, parse_length, parse_pressure, parse_speed,
+    parse_temperature, parse_time, parse_viscosity, ParseError, Quantity, Unit,
 };
 
 #[derive(Args, Debug, Clone, PartialEq)]
@@ -114,6 +114,52 @@ pub enum CalcCommand {
         #[arg(long, value_name = "PRESSURE", allow_hyphen_values = true)]
         pressure: String,
     },
+    /// Cylinder force at a pressure, or the pressure a load needs:
+    /// `calc force --bore 100mm --pressure 160bar`, `calc force --bore 4in --load 20000lbf`.
+    Force {
+        /// Cylinder bore, e.g. 100mm or 4in.
+        #[arg(long, value_name = "LENGTH", allow_hyphen_values = true)]
+        bore: String,
+        /// Rod diameter: the retracting side (the annulus), e.g. 56mm.
+        #[arg(long, value_name = "LENGTH", allow_hyphen_values = true)]
+        rod: Option<String>,
+        /// Pressure on the piston, e.g. 160bar or 2300psi.
+        #[arg(
+            long,
+            value_name = "PRESSURE",
+            allow_hyphen_values = true,
+            required_unless_present = "load",
+            conflicts_with = "load"
+        )]
+        pressure: Option<String>,
+        /// Load to hold or move, e.g. 50kN or 11240lbf (friction not included).
+        #[arg(long, value_name = "FORCE", allow_hyphen_values = true)]
+        load: Option<String>,
+    },
+    /// Mean oil speed in a line, against the usual range for its kind:
+    /// `calc velocity --flow 12gpm --id 0.5in --line pressure`.
+    Velocity {
+        /// Flow, e.g. 45lpm or 12gpm.
+        #[arg(long, value_name = "FLOW", allow_hyphen_values = true)]
+        flow: String,
+        /// Inside diameter of the line, e.g. 12.7mm or 0.5in.
+        #[arg(long, value_name = "LENGTH", allow_hyphen_values = true)]
+        id: String,
+        /// The kind of line, for its usual speed range (common practice).
+        #[arg(long, value_enum)]
+        line: Option<Line>,
+        /// The shop's own range instead, low and high, e.g. `--range 2m/s 5m/s`.
+        #[arg(long, num_args = 2, value_names = ["LOW", "HIGH"], allow_hyphen_values = true)]
+        range: Option<Vec<String>>,
+    },
+}
+
+/// Kinds of line as typed.
+#[derive(clap::ValueEnum, Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Line {
+    Suction,
+    Return,
+    Pressure,
 }
 
 fn arg<T>(name: &str, parsed: Result<T, ParseError>) -> Result<T, Failure> {
@@ -280,6 +326,82 @@ pub fn run(args: &CalcArgs, out: &mut dyn std::io::Write) -> Result<(), Failure>
             );
             emit(out, args.json, &r, human)
         }
+        CalcCommand::Force {
+            bore,
+            rod,
+            pressure,
+            load,
+        } => {
+            let bore = arg("--bore", parse_length(bore))?;
+            let rod = rod
+                .as_deref()
+                .map(|r| arg("--rod", parse_length(r)))
+                .transpose()?;
+            let question = match (pressure, load) {
+                (Some(p), None) => {
+                    calc::ForceQuestion::AtPressure(arg("--pressure", parse_pressure(p))?)
+                }
+                (None, Some(l)) => calc::ForceQuestion::ForLoad(arg("--load", parse_force(l))?),
+                _ => return Err(Failure::bad_input("give --pressure or --load")),
+            };
+            let r = calc::force(bore, rod, question)?;
+            let side = if rod.is_some() {
+                "annulus"
+            } else {
+                "full bore"
+            };
+            let human = match question {
+                calc::ForceQuestion::AtPressure(_) => format!(
+                    "{:.2} kN ({:.0} lbf) at {:.1} bar ({:.0} psi) on {:.1} mm² ({:.3} in², {side})",
+                    r.kn, r.lbf, r.bar, r.psi, r.area_mm2, r.area_in2
+                ),
+                calc::ForceQuestion::ForLoad(_) => format!(
+                    "{:.1} bar ({:.0} psi) for {:.2} kN ({:.0} lbf) on {:.1} mm² ({:.3} in², {side}); friction and back pressure not included",
+                    r.bar, r.psi, r.kn, r.lbf, r.area_mm2, r.area_in2
+                ),
+            };
+            emit(out, args.json, &r, human)
+        }
+        CalcCommand::Velocity {
+            flow,
+            id,
+            line,
+            range,
+        } => {
+            let q = arg("--flow", parse_flow(flow))?;
+            let d = arg("--id", parse_length(id))?;
+            let line = line.map(|l| match l {
+                Line::Suction => calc::LineKind::Suction,
+                Line::Return => calc::LineKind::Return,
+                Line::Pressure => calc::LineKind::Pressure,
+            });
+            let range = match range.as_deref() {
+                None => None,
+                Some([lo, hi]) => Some((
+                    arg("--range LOW", parse_speed(lo))?,
+                    arg("--range HIGH", parse_speed(hi))?,
+                )),
+                Some(_) => return Err(Failure::bad_input("--range takes two speeds: LOW HIGH")),
+            };
+            let r = calc::velocity(q, d, line, range)?;
+            let mut human = format!("{:.2} m/s ({:.1} ft/s)", r.m_s, r.ft_s);
+            if let (Some(lo), Some(hi), Some(v)) = (r.low_m_s, r.high_m_s, r.verdict) {
+                let whose = if range.is_some() {
+                    "the range given".to_string()
+                } else {
+                    format!(
+                        "the usual range for a {} line (common practice)",
+                        format!("{:?}", r.line.unwrap_or(calc::LineKind::Pressure)).to_lowercase()
+                    )
+                };
+                human.push_str(&format!(
+                    "; {v} {whose}, {lo:.1}–{hi:.1} m/s ({:.0}–{:.0} ft/s)",
+                    lo / crate::units::M_PER_FT,
+                    hi / crate::units::M_PER_FT
+                ));
+            }
+            emit(out, args.json, &r, human)
+        }
     }
 }
 
@@ -322,6 +444,36 @@ mod tests {
             run_line("--json vi 73.30cSt 8.86cSt").unwrap(),
             "{\"vi\":92.43,\"vi_rounded\":92}\n"
         );
+    }
+
+    #[test]
+    fn force_and_velocity_answer_in_either_unit_system_and_refuse_nonsense() {
+        // F = p · A: 2000 psi on a 4 in bore = 2000 · 4π lbf (A = π/4 · 4² in²).
+        let v = json("force --bore 4in --pressure 2000psi --json");
+        assert!((v["lbf"].as_f64().unwrap() - 8000.0 * std::f64::consts::PI).abs() < 1e-6);
+        // p = F / A: 100 kN on a 100 mm bore = 100 000 N / 7853.98 mm² = 127.32 bar.
+        let v = json("force --bore 100mm --load 100kN --json");
+        let area = std::f64::consts::FRAC_PI_4 * 100.0 * 100.0;
+        assert!((v["bar"].as_f64().unwrap() - 1.0e6 / area).abs() < 1e-9);
+        // v = Q / A: 60 L/min in a 20 mm line = 3.183 m/s, within the usual pressure-line
+        // range and above the suction-line one (common practice).
+        let v = json("velocity --flow 60lpm --id 20mm --line pressure --json");
+        let expect = 1.0e-3 / (std::f64::consts::FRAC_PI_4 * 0.02 * 0.02);
+        assert!((v["m_s"].as_f64().unwrap() - expect).abs() < 1e-12);
+        assert_eq!(v["verdict"], "within");
+        assert_eq!(
+            json("velocity --flow 60lpm --id 20mm --line suction --json")["verdict"],
+            "above"
+        );
+        for bad in [
+            "force --bore 4in --load -5kN",
+            "force --bore 50mm --rod 60mm --pressure 100bar",
+            "force --bore 4in --pressure 100",
+            "velocity --flow 60lpm --id 0mm",
+            "velocity --flow 60lpm --id 20mm --range 5m/s 1m/s",
+        ] {
+            assert_eq!(run_line(bad).unwrap_err().code, 2, "{bad}");
+        }
     }
 
     #[test]

@@ -110,7 +110,8 @@ pub struct Cli {
 
 #[derive(Subcommand, Debug)]
 pub enum Command {
-    /// Quick calculators for the bench: VI, viscosity, ISO 4406 code, flow, power.
+    /// Quick calculators for the bench: VI, viscosity, ISO 4406 code, flow, power, cylinder
+    /// force, oil speed in a line.
     Calc(calc::CalcArgs),
     /// Create a new, empty shop file (or confirm that the file is one).
     Init(data::InitArgs),

@@ -9,9 +9,7 @@ use serde::{Deserialize, Serialize};
 
 use super::{finite, positive, show_mm, PhysicsError};
 use crate::names::text_enum;
-use crate::units::{
-    Area, Flow, Force, Length, Power, Pressure, Seconds, Speed, Viscosity, Volume,
-};
+use crate::units::{Area, Flow, Force, Length, Power, Pressure, Seconds, Speed, Viscosity, Volume};
 
 text_enum!(
     /// Which way the timed stroke moves: extending fills the full bore, retracting the annulus.
