@@ -601,23 +601,25 @@ fn a_server_that_goes_away_is_reported_plainly_and_the_next_call_connects_again(
     assert_eq!(shop.store().settings().unwrap().shop_name, "New shop");
 }
 
-#[test]
-fn an_import_whose_server_goes_away_half_way_writes_nothing() {
-    let Some(admin_url) = server() else { return };
+/// A new shop on the test server holding the sample units (`sample-data/units.csv`): its
+/// folder, address and the sample-data folder.
+fn server_shop_with_sample_units() -> (tempfile::TempDir, String, std::path::PathBuf) {
     let dir = tempfile::tempdir().unwrap();
     let url = new_database();
     let data = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data");
     ok(dir.path(), &["--db", &url, "init"]);
+    let units = data.join("units.csv");
     ok(
         dir.path(),
-        &[
-            "--db",
-            &url,
-            "import",
-            "units",
-            data.join("units.csv").to_str().unwrap(),
-        ],
+        &["--db", &url, "import", "units", units.to_str().unwrap()],
     );
+    (dir, url, data)
+}
+
+#[test]
+fn an_import_whose_server_goes_away_half_way_writes_nothing() {
+    let Some(admin_url) = server() else { return };
+    let (dir, url, data) = server_shop_with_sample_units();
     let db_name = url.rsplit('/').next().unwrap().to_string();
     // Once a third of the file is read (rows are being written in the import's transaction),
     // the server ends the import's connection.
@@ -675,20 +677,7 @@ fn an_import_whose_server_goes_away_half_way_writes_nothing() {
 #[test]
 fn a_reading_the_server_refuses_after_the_importer_passed_it_ends_the_import_and_writes_nothing() {
     let Some(_) = server() else { return };
-    let dir = tempfile::tempdir().unwrap();
-    let url = new_database();
-    let data = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data");
-    ok(dir.path(), &["--db", &url, "init"]);
-    ok(
-        dir.path(),
-        &[
-            "--db",
-            &url,
-            "import",
-            "units",
-            data.join("units.csv").to_str().unwrap(),
-        ],
-    );
+    let (dir, url, data) = server_shop_with_sample_units();
     // A rule of the server's that the importer does not know (as a shop's DBA might add): the
     // importer passes 120 °C, the server refuses it.
     postgres::Client::connect(&url, postgres::NoTls)

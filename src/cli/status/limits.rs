@@ -133,17 +133,6 @@ fn limits_table(out: &mut dyn Write, scope: &str, rows: &[LimitRow]) -> Result<(
     Ok(())
 }
 
-fn who(by: &Option<String>) -> String {
-    by.clone()
-        .filter(|b| !b.trim().is_empty())
-        .or_else(|| {
-            std::env::var("USER")
-                .ok()
-                .or_else(|| std::env::var("USERNAME").ok())
-        })
-        .unwrap_or_else(|| "command line".into())
-}
-
 pub fn run_limits(shop: &Shop, args: &LimitsArgs, out: &mut dyn Write) -> Result<(), Failure> {
     match &args.action {
         None => {
@@ -175,7 +164,7 @@ pub fn run_limits(shop: &Shop, args: &LimitsArgs, out: &mut dyn Write) -> Result
                 .or(value.as_deref())
                 .map(|a| limit_number(key, a, "--act"))
                 .transpose()?;
-            let r = work::set_limit(shop, key, watch, act, unit.as_deref(), &who(by))?;
+            let r = work::set_limit(shop, key, watch, act, unit.as_deref(), &crate::cli::who(by))?;
             if args.json {
                 return json_out(out, &r);
             }
@@ -186,7 +175,7 @@ pub fn run_limits(shop: &Shop, args: &LimitsArgs, out: &mut dyn Write) -> Result
             limits_table(out, &scope, std::slice::from_ref(&r))
         }
         Some(LimitsAction::Reset { key, unit, by }) => {
-            let removed = work::reset_limit(shop, key, unit.as_deref(), &who(by))?;
+            let removed = work::reset_limit(shop, key, unit.as_deref(), &crate::cli::who(by))?;
             let scope = unit
                 .as_ref()
                 .map(|u| format!("unit {u}"))
