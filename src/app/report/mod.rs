@@ -33,7 +33,7 @@ use serde::Serialize;
 
 use super::shop::Shop;
 use super::status::{fleet_status_in, store_error, Detail, UnitStatus};
-use super::work::due_list_in;
+use super::work::due_list_from;
 use super::AppError;
 use crate::health::plan::SAFETY_CAUTIONS;
 use crate::health::State;
@@ -253,7 +253,8 @@ pub fn build_report(
         units.push(unit_section(u, unit, machine, &events, from, to, sys));
     }
 
-    let due = due_list_in(store, Some(at), Some(WORK_AHEAD_DAYS))?;
+    // The work of the evaluation above: the shop is read and judged once per report.
+    let due = due_list_from(store, &fleet, Some(WORK_AHEAD_DAYS))?;
     let tags: Vec<&str> = chosen.iter().map(|u| u.unit.as_str()).collect();
     let work: Vec<WorkItem> = due
         .items
