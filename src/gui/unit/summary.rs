@@ -142,7 +142,7 @@ pub(super) fn era(v: &UnitView, sys: UnitSystem) -> Vec<KeyVal> {
             } => vec![
                 (
                     "Baseline from",
-                    format!("mean of the first {} checks", check_ids.len()),
+                    format!("median of the first {} checks", check_ids.len()),
                 ),
                 (
                     "Checks dated",
