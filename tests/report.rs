@@ -237,7 +237,7 @@ fn layout_doc(paper: Paper, name: &str, flags: usize) -> ReportDoc {
             unit_tag: "LX-01".into(),
             task: "Fluid sample".into(),
             due: "2024-03-20".into(),
-            status: "overdue 11 days".into(),
+            status: "11 days late".into(),
             mark: Some(Mark::Watch),
         }],
         remarks: Vec::new(),

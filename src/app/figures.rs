@@ -217,3 +217,28 @@ mod tests {
         assert_eq!(unit(Dim::Flow, UnitSystem::Us), "GPM");
     }
 }
+
+/// When planned work falls due, in the same words on every face: "3 days late", "1 day
+/// late", "due today", "in 1 day", "in 12 days".
+pub fn due_words(days_overdue: i64) -> String {
+    let days = |n: i64| format!("{n} day{}", if n == 1 { "" } else { "s" });
+    match days_overdue {
+        d if d > 0 => format!("{} late", days(d)),
+        0 => "due today".to_string(),
+        d => format!("in {}", days(-d)),
+    }
+}
+
+#[cfg(test)]
+mod due_words_tests {
+    use super::due_words;
+
+    #[test]
+    fn due_words_count_days_in_plain_english() {
+        assert_eq!(due_words(3), "3 days late");
+        assert_eq!(due_words(1), "1 day late");
+        assert_eq!(due_words(0), "due today");
+        assert_eq!(due_words(-1), "in 1 day");
+        assert_eq!(due_words(-12), "in 12 days");
+    }
+}

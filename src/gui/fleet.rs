@@ -35,10 +35,8 @@ fn next_due(u: &UnitStatus) -> (String, bool) {
     match &u.next_due {
         None => ("—".into(), false),
         Some(w) => {
-            let when = if w.days_overdue > 0 {
-                format!("{} days late", w.days_overdue)
-            } else if w.days_overdue == 0 {
-                "today".into()
+            let when = if w.days_overdue >= 0 {
+                crate::app::figures::due_words(w.days_overdue)
             } else {
                 super::fmt::day(w.due)
             };

@@ -29,11 +29,7 @@ pub(super) fn state_text(s: State) -> StateText {
 }
 
 pub(super) fn work_status(days_overdue: i64, pulled_forward: Option<&str>) -> String {
-    let when = match days_overdue {
-        d if d > 0 => format!("overdue {d} day{}", if d == 1 { "" } else { "s" }),
-        0 => "due today".to_string(),
-        d => format!("in {} day{}", -d, if d == -1 { "" } else { "s" }),
-    };
+    let when = figures::due_words(days_overdue);
     match pulled_forward {
         Some(why) => format!("{when}; brought forward: {why}"),
         None => when,

@@ -46,13 +46,7 @@ fn due_table(out: &mut dyn Write, d: &DueList) -> Result<(), Failure> {
             };
             writeln!(out, "{head}")?;
         }
-        let when = if i.days_overdue > 0 {
-            format!("{} days over", i.days_overdue)
-        } else if i.days_overdue == 0 {
-            "today".into()
-        } else {
-            format!("in {} days", -i.days_overdue)
-        };
+        let when = crate::app::figures::due_words(i.days_overdue);
         let mark = if i.caution.is_some() { "!" } else { " " };
         writeln!(
             out,

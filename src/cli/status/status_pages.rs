@@ -73,7 +73,11 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus) -> Result<(), Failure> {
             .as_ref()
             .map(|w| {
                 if w.days_overdue > 0 {
-                    format!("{} {}d over", w.kind.label(), w.days_overdue)
+                    format!(
+                        "{} {}",
+                        w.kind.label(),
+                        crate::app::figures::due_words(w.days_overdue)
+                    )
                 } else {
                     format!("{} {}", w.kind.label(), w.due)
                 }
@@ -269,7 +273,7 @@ fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(),
                 from,
                 to,
             } => format!(
-                "mean of {} checks {} – {}",
+                "median of {} checks {} – {}",
                 check_ids.len(),
                 from.format("%Y-%m-%d"),
                 to.format("%Y-%m-%d")
@@ -358,13 +362,7 @@ fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(),
     writeln!(out)?;
     writeln!(out, "Work")?;
     for w in &h.work {
-        let when = if w.days_overdue > 0 {
-            format!("{} days over", w.days_overdue)
-        } else if w.days_overdue == 0 {
-            "due today".into()
-        } else {
-            format!("in {} days", -w.days_overdue)
-        };
+        let when = crate::app::figures::due_words(w.days_overdue);
         writeln!(
             out,
             "  {}due {}  {}  ({})",
