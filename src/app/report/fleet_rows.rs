@@ -8,7 +8,7 @@ use crate::app::status::UnitStatus;
 use crate::health::indicators::Tile;
 use crate::health::{Flag, State};
 use crate::report::{Finding, FleetRow};
-use crate::units::UnitSystem;
+use crate::units::{TempDiff, UnitSystem};
 
 pub(super) fn finding(tag: &str, f: &Flag, sys: UnitSystem) -> Finding {
     Finding {
@@ -59,7 +59,7 @@ fn key_figures(u: &UnitStatus, sys: UnitSystem) -> String {
     if let Some(v) = i.heat_rise_drift_k {
         let (v, unit) = match sys {
             UnitSystem::Metric => (v, "K"),
-            UnitSystem::Us => (v * 9.0 / 5.0, "°F"),
+            UnitSystem::Us => (TempDiff(v).f_steps(), "°F"),
         };
         parts.push(format!("heat rise {v:+.1} {unit} over baseline"));
     }
