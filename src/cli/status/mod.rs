@@ -1,9 +1,10 @@
-//! `sumpbook status`, `due`, `ack`, `log-event` and `limits`: the health engine's findings and
-//! the actions on them, on the command line.
+//! `sumpbook status`, `due`, `ack`, `log-event`, `limits` and `baseline`: the health engine's
+//! findings and the actions on them, on the command line; one file per command, the shared
+//! table and JSON helpers here.
 //!
 //! Parses what was typed (dates, quantities with units, flag and event kinds), calls
-//! `app::status` and `app::work`, and prints a compact table in the shop's unit system or the
-//! JSON of the issue. No rules here.
+//! `app::status` and `app::work`, and prints a compact table in the shop's unit system or its
+//! JSON. No rules here.
 
 mod ack;
 mod baseline;
