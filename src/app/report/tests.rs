@@ -9,8 +9,8 @@ use crate::report::Paper;
 
 #[test]
 fn work_status_reads_naturally() {
-    assert_eq!(work_status(5, None), "overdue 5 days");
-    assert_eq!(work_status(1, None), "overdue 1 day");
+    assert_eq!(work_status(5, None), "5 days late");
+    assert_eq!(work_status(1, None), "1 day late");
     assert_eq!(work_status(0, None), "due today");
     assert_eq!(
         work_status(-12, Some("acid number act")),
