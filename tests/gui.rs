@@ -1012,6 +1012,26 @@ fn a_server_that_goes_away_keeps_the_typed_form_says_so_and_saves_once_it_is_bac
 }
 
 #[test]
+fn an_empty_shop_board_points_to_setup_and_import() {
+    // With units, an empty list is the filter's doing, and says that.
+    let f = open_demo();
+    f.app.show(Screen::Fleet);
+    let fleet = f.app.window().global::<sumpbook::gui::ui::FleetAdapter>();
+    fleet.set_search("no such unit".into());
+    fleet.invoke_filter_changed();
+    let said = by_label(&f.app, "Board empty").accessible_value().unwrap();
+    assert_eq!(said, "No unit matches the filter.");
+    // A shop without units points to where they come from.
+    let path = f._dir.path().join("empty.sqlite");
+    drop(Shop::create(&path).unwrap());
+    let app = App::open_at(&path, demo_now()).unwrap();
+    app.window().show().unwrap();
+    app.show(Screen::Fleet);
+    let said = by_label(&app, "Board empty").accessible_value().unwrap();
+    assert!(said.contains("Setup") && said.contains("Import"), "{said}");
+}
+
+#[test]
 fn a_correction_over_someone_elses_is_refused_naming_who_changed_the_reading() {
     let f = open_demo();
     let s = shop(&f.path);

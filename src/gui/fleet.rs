@@ -137,6 +137,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 crate::app::entry::show_time(fleet.at)
             )));
             a.set_rows(model(rows));
+            a.set_shop_empty(fleet.units.is_empty());
             a.set_message(s(""));
             let nav = w.global::<Nav>();
             nav.set_act_count(c.act as i32);

@@ -557,9 +557,12 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
                 })
                 .unwrap_or_default();
             format!(
-                "ISO 4406 {code} is {} range number(s) over the target {target} on {} µm: check the filter \
+                "ISO 4406 {code} is {} over the target {target} on {} µm: check the filter \
                  indicator, the breather and any recent seal failure or open work, change the filter and resample.",
-                num(g.value.unwrap_or(0.0), 0),
+                {
+                    let n = num(g.value.unwrap_or(0.0), 0);
+                    format!("{n} range number{}", if n == "1" { "" } else { "s" })
+                },
                 if sizes.is_empty() { "one size".to_string() } else { sizes.join(", ") }
             )
         },

@@ -130,7 +130,8 @@ pub fn findings_table(findings: &[Finding], with_unit: bool) -> TableSpec {
                 "Usual next step",
                 "Acknowledged",
             ],
-            vec![0.9, 0.7, 2.3, 1.1, 0.75, 2.4, 1.1],
+            // "Since" holds a whole date (2026-11-06) on one line at the table's type size.
+            vec![0.9, 0.7, 2.15, 1.1, 0.95, 2.35, 1.1],
         )
     } else {
         // A unit page: the figure that raised the flag leads its sentence, and "since" goes
