@@ -579,6 +579,32 @@ fn the_demo_report_renders_on_letter_and_a4_within_its_pages() {
 }
 
 #[test]
+fn the_paper_follows_the_shops_units_unless_chosen() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = demo_shop(dir.path());
+    let db = db.to_str().unwrap();
+    let size = |name: &str, extra: &[&str]| {
+        let pdf = dir.path().join(name);
+        let mut args = vec!["--db", db, "report", "--out", pdf.to_str().unwrap()];
+        args.extend(extra);
+        ok(dir.path(), &args);
+        let info = poppler("pdfinfo", &[pdf.to_str().unwrap()]);
+        info.lines()
+            .find(|l| l.starts_with("Page size:"))
+            .unwrap_or_default()
+            .to_string()
+    };
+    // US Letter is 8.5 × 11 in = 612 × 792 pt; pdfinfo names A4 (ISO 216, 210 × 297 mm) itself.
+    assert!(size("metric.pdf", &[]).contains("(A4)"));
+    ok(
+        dir.path(),
+        &["--db", db, "settings", "--units", "us", "--by", "T. Tester"],
+    );
+    assert!(size("us.pdf", &[]).contains("612 x 792"));
+    assert!(size("us-a4.pdf", &["--paper", "a4"]).contains("(A4)"));
+}
+
+#[test]
 fn the_report_command_refuses_what_it_cannot_do() {
     let dir = tempfile::tempdir().unwrap();
     let db = demo_shop(dir.path());

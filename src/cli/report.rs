@@ -27,9 +27,9 @@ pub struct ReportArgs {
     /// Last day of the period (YYYY-MM-DD), the day the units are judged at; default: today.
     #[arg(long, value_name = "DATE", value_parser = parse_date)]
     pub to: Option<NaiveDate>,
-    /// Paper size.
-    #[arg(long, value_name = "a4|letter", default_value = "a4", value_parser = parse_paper)]
-    pub paper: Paper,
+    /// Paper size; default: Letter in a shop set to US customary units, else A4.
+    #[arg(long, value_name = "a4|letter", value_parser = parse_paper)]
+    pub paper: Option<Paper>,
     /// Who prepared the report, printed on every page.
     #[arg(long = "by", value_name = "NAME", default_value = "")]
     pub by: String,
@@ -57,7 +57,10 @@ pub fn run(shop: &Shop, args: &ReportArgs, out: &mut dyn std::io::Write) -> Resu
         units: args.units.clone(),
         from: args.from,
         to: args.to,
-        paper: args.paper,
+        paper: match args.paper {
+            Some(p) => p,
+            None => crate::app::report::paper_for(shop.unit_system()),
+        },
         prepared_by: args.by.clone(),
         replace: args.force,
     };

@@ -24,7 +24,6 @@ use crate::app::vocab::Paper;
 use crate::app::vocab::State;
 use crate::app::vocab::SAFETY_CAUTIONS;
 use crate::app::AppError;
-use crate::units::UnitSystem;
 
 /// Opens a file or folder with the desktop's own program; tests put a recorder in its place.
 pub type Opener = Rc<dyn Fn(&Path) -> Result<(), String>>;
@@ -148,9 +147,9 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
         let today = ctx.now().date_naive();
         a.set_to(s(today.to_string()));
         a.set_from(s((today - Duration::days(DEFAULT_PERIOD_DAYS)).to_string()));
-        a.set_paper(match fleet.unit_system {
-            UnitSystem::Metric => 0,
-            UnitSystem::Us => 1,
+        a.set_paper(match crate::app::report::paper_for(fleet.unit_system) {
+            Paper::A4 => 0,
+            Paper::Letter => 1,
         });
         a.set_out(s(default_out_path(&default_folder(ctx), today)
             .display()

@@ -80,6 +80,15 @@ pub struct ReportSummary {
     pub completed: bool,
 }
 
+/// The paper a shop prints on unless asked otherwise: US Letter in a shop that works in US
+/// customary units, A4 elsewhere.
+pub fn paper_for(system: UnitSystem) -> Paper {
+    match system {
+        UnitSystem::Us => Paper::Letter,
+        UnitSystem::Metric => Paper::A4,
+    }
+}
+
 /// Writes the condition report to `opts.out`. `progress(done, total)` is called as parts are
 /// finished (evaluation, fleet page, each unit, writing); returning `false` stops without
 /// writing anything and gives `completed: false`.
