@@ -197,6 +197,125 @@ fn settings_are_shown_and_set_from_the_command_line_and_an_unknown_time_zone_is_
 }
 
 #[test]
+fn limits_are_shown_and_taken_in_the_shops_units() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    ok(d, &["--db", "l.sqlite", "init"]);
+    let json = |args: &[&str]| -> serde_json::Value {
+        let mut all = vec!["--db", "l.sqlite"];
+        all.extend(args);
+        serde_json::from_str(&ok(d, &all)).unwrap()
+    };
+    let row = |v: &serde_json::Value, key: &str| -> serde_json::Value {
+        v["rows"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|r| r["key"] == key)
+            .unwrap()
+            .clone()
+    };
+    let metric = json(&["limits", "--json"]);
+    assert_eq!(row(&metric, "reservoir_temp_c")["unit"], "°C");
+    assert_eq!(row(&metric, "reservoir_temp_c")["act"], 70.0);
+    ok(
+        d,
+        &[
+            "--db",
+            "l.sqlite",
+            "settings",
+            "--units",
+            "us",
+            "--by",
+            "T. Tester",
+        ],
+    );
+    // °F = °C × 9/5 + 32 and a difference of 1 K is 9/5 °F (the definition of the scales):
+    // 60/70 °C → 140/158 °F, 5/10 K → 9/18 °F.
+    let us = json(&["limits", "--json"]);
+    let temp = row(&us, "reservoir_temp_c");
+    assert_eq!(
+        (
+            temp["unit"].as_str(),
+            temp["watch"].as_f64(),
+            temp["act"].as_f64()
+        ),
+        (Some("°F"), Some(140.0), Some(158.0))
+    );
+    let rise = row(&us, "heat_rise_drift_k");
+    assert_eq!(
+        (
+            rise["unit"].as_str(),
+            rise["watch"].as_f64(),
+            rise["act"].as_f64()
+        ),
+        (Some("°F"), Some(9.0), Some(18.0))
+    );
+    assert!(temp["range"].as_str().unwrap().contains("°F"), "{temp}");
+    // A bare number is in the shop's unit; a temperature may carry its own.
+    let set = json(&[
+        "limits",
+        "--json",
+        "set",
+        "reservoir_temp_c",
+        "--act",
+        "167",
+        "--by",
+        "T. Tester",
+    ]);
+    assert_eq!(set["act"].as_f64(), Some(167.0));
+    ok(
+        d,
+        &[
+            "--db",
+            "l.sqlite",
+            "settings",
+            "--units",
+            "metric",
+            "--by",
+            "T. Tester",
+        ],
+    );
+    assert_eq!(
+        row(&json(&["limits", "--json"]), "reservoir_temp_c")["act"],
+        75.0
+    );
+    ok(
+        d,
+        &[
+            "--db",
+            "l.sqlite",
+            "limits",
+            "set",
+            "heat_rise_drift_k",
+            "--act",
+            "18F",
+            "--by",
+            "T. Tester",
+        ],
+    );
+    assert_eq!(
+        row(&json(&["limits", "--json"]), "heat_rise_drift_k")["act"],
+        10.0
+    );
+    refused(
+        d,
+        &[
+            "--db",
+            "l.sqlite",
+            "limits",
+            "set",
+            "water_ppm",
+            "--act",
+            "140F",
+            "--by",
+            "T. Tester",
+        ],
+        "is not a number",
+    );
+}
+
+#[test]
 fn without_db_the_default_shop_is_used_and_starts_as_the_demo() {
     let dir = tempfile::tempdir().unwrap();
     let default = dir.path().join("data/sumpbook/sumpbook.sqlite");

@@ -16,7 +16,7 @@ use crate::health::{Flag, FlagKind, State, WorkItem, WorkKind};
 use crate::model::{Acknowledgement, Event, EventKind, LimitSetting, ManualBaseline, Unit};
 use crate::quantity::{Kind, Quantity};
 use crate::store::{Store, StoreError};
-use crate::units::{TempDiff, Volume};
+use crate::units::{TempDiff, UnitSystem, Volume};
 
 /// Where a piece of work stands.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
@@ -533,19 +533,126 @@ pub fn log_event(
 
 /// The limits in force; see [`limits_in`].
 pub fn limits(shop: &super::shop::Shop, unit: Option<&str>) -> Result<LimitsView, AppError> {
-    limits_in(shop.store(), unit)
+    let sys = shop.unit_system();
+    let mut view = limits_in(shop.store(), unit)?;
+    for row in &mut view.rows {
+        show_in(row, sys);
+    }
+    Ok(view)
 }
 
-/// Sets a limit; see [`set_limit_in`].
+/// A unit a limit is shown in, with the conversions from and to its stored unit.
+type ShownUnit = (&'static str, fn(f64) -> f64, fn(f64) -> f64);
+
+/// How a limit reads in a unit system where its stored unit is not the trade's: the unit shown
+/// and the conversions to and from the stored one. Only temperatures (°C → °F) and temperature
+/// differences (K → °F steps) differ; every other limit is a ratio, a count or a time.
+fn shown_unit(key: LimitKey, sys: UnitSystem) -> Option<ShownUnit> {
+    use crate::units::{TempDiff, Temperature};
+    match (sys, key.unit()) {
+        (UnitSystem::Us, "°C") => Some((
+            "°F",
+            |c| Temperature::from_c(c).f(),
+            |f| Temperature::from_f(f).c(),
+        )),
+        (UnitSystem::Us, "K") => Some((
+            "°F",
+            |k| TempDiff::from_k(k).f_steps(),
+            |f| TempDiff::from_f_steps(f).k(),
+        )),
+        _ => None,
+    }
+}
+
+/// `row` (in stored units) as the shop reads it.
+fn show_in(row: &mut LimitRow, sys: UnitSystem) {
+    let Ok(key) = row.key.parse::<LimitKey>() else {
+        return;
+    };
+    if let Some((unit, to, _)) = shown_unit(key, sys) {
+        let tidy = |v: f64| (v * 1.0e6).round() / 1.0e6;
+        row.watch = row.watch.map(|v| tidy(to(v)));
+        row.act = row.act.map(|v| tidy(to(v)));
+        row.unit = unit.to_string();
+        let r = key.range();
+        row.range = crate::health::limits::ValueRange {
+            lo: tidy(to(r.lo)),
+            hi: tidy(to(r.hi)),
+            ..r
+        }
+        .describe(unit);
+    }
+}
+
+/// A limit as typed: a bare number is in the unit the shop reads it in (°F for a temperature in
+/// a US shop); a temperature may also carry its unit (`160F`, `71C`), and a temperature
+/// difference `9F` or `5K`.
+pub fn read_limit(
+    shop: &super::shop::Shop,
+    key: &str,
+    text: &str,
+    what: &str,
+) -> Result<f64, AppError> {
+    let k = parse_key(key)?;
+    let sys = shop.unit_system();
+    let t = text.trim();
+    if let Ok(v) = t.parse::<f64>() {
+        if v.is_finite() {
+            return Ok(match shown_unit(k, sys) {
+                Some((_, _, from)) => from(v),
+                None => v,
+            });
+        }
+    }
+    match k.unit() {
+        "°C" => {
+            if let Ok(q) = crate::quantity::parse_temperature(t) {
+                return Ok(q.c());
+            }
+        }
+        "K" => {
+            let lower = t.to_ascii_lowercase();
+            let number = |suffix: &str| {
+                lower
+                    .strip_suffix(suffix)
+                    .and_then(|n| n.trim().parse::<f64>().ok())
+                    .filter(|v| v.is_finite())
+            };
+            if let Some(v) = number("k") {
+                return Ok(v);
+            }
+            if let Some(v) = number("f").or_else(|| number("°f")) {
+                return Ok(crate::units::TempDiff::from_f_steps(v).k());
+            }
+        }
+        _ => {}
+    }
+    Err(AppError::BadInput(format!(
+        "{what} `{t}` is not a number{}",
+        match shown_unit(k, sys) {
+            Some((unit, _, _)) => format!(" (in {unit}, or with its unit such as 160F)"),
+            None => String::new(),
+        }
+    )))
+}
+
+/// Sets a limit from what was typed (see [`read_limit`]); the row comes back as the shop reads
+/// it. See [`set_limit_in`] for the checks.
 pub fn set_limit(
     shop: &super::shop::Shop,
     key: &str,
-    watch: Option<f64>,
-    act: Option<f64>,
+    watch: Option<&str>,
+    act: Option<&str>,
     unit: Option<&str>,
     by: &str,
 ) -> Result<LimitRow, AppError> {
-    set_limit_in(shop.store(), key, watch, act, unit, by)
+    let watch = watch
+        .map(|w| read_limit(shop, key, w, "--watch"))
+        .transpose()?;
+    let act = act.map(|a| read_limit(shop, key, a, "--act")).transpose()?;
+    let mut row = set_limit_in(shop.store(), key, watch, act, unit, by)?;
+    show_in(&mut row, shop.unit_system());
+    Ok(row)
 }
 
 /// Removes a stored limit; see [`reset_limit_in`].

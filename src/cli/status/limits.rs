@@ -9,7 +9,6 @@ use clap::{Args, Subcommand};
 use crate::app::shop::Shop;
 use crate::app::work::{self, LimitRow};
 use crate::cli::Failure;
-use crate::quantity::parse_temperature;
 
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct LimitsArgs {
@@ -30,7 +29,8 @@ pub enum LimitsAction {
         /// Limit key, as `sumpbook limits` lists them.
         #[arg(value_name = "KEY")]
         key: String,
-        /// Watch limit, in the key's unit (°C keys also take 140F).
+        /// Watch limit, in the unit `limits` shows it in (the shop's: °F for a temperature in a
+        /// US shop); a temperature also takes its unit (140F, 60C).
         #[arg(long, value_name = "X", allow_hyphen_values = true)]
         watch: Option<String>,
         /// Act limit (for a single setting such as an interval: its value).
@@ -63,22 +63,6 @@ pub enum LimitsAction {
         #[arg(long, value_name = "NAME")]
         by: Option<String>,
     },
-}
-
-pub(super) fn limit_number(key: &str, text: &str, what: &str) -> Result<f64, Failure> {
-    let t = text.trim();
-    if let Ok(v) = t.parse::<f64>() {
-        if v.is_finite() {
-            return Ok(v);
-        }
-    }
-    // Temperature keys are in °C; they also take a temperature with its unit (140F).
-    if key.ends_with("_c") {
-        if let Ok(q) = parse_temperature(t) {
-            return Ok(q.c());
-        }
-    }
-    Err(Failure::bad_input(format!("{what} `{t}` is not a number")))
 }
 
 /// A limit as typed: no trailing zeros (`1.30` → `1.3`).
@@ -155,16 +139,15 @@ pub fn run_limits(shop: &Shop, args: &LimitsArgs, out: &mut dyn Write) -> Result
             unit,
             by,
         }) => {
-            let watch = watch
-                .as_deref()
-                .map(|w| limit_number(key, w, "--watch"))
-                .transpose()?;
-            let act = act
-                .as_deref()
-                .or(value.as_deref())
-                .map(|a| limit_number(key, a, "--act"))
-                .transpose()?;
-            let r = work::set_limit(shop, key, watch, act, unit.as_deref(), &crate::cli::who(by))?;
+            let act = act.as_deref().or(value.as_deref());
+            let r = work::set_limit(
+                shop,
+                key,
+                watch.as_deref(),
+                act,
+                unit.as_deref(),
+                &crate::cli::who(by),
+            )?;
             if args.json {
                 return json_out(out, &r);
             }

@@ -17,11 +17,3 @@ fn dates_for_at() {
     assert!(parse_at_end_of_day("03/04/2024").is_err());
     assert_eq!(parse_at_end_of_day("nonsense").unwrap_err().code, 2);
 }
-
-#[test]
-fn limit_numbers_take_temperatures_for_celsius_keys() {
-    assert_eq!(limit_number("water_ppm", "250", "--watch").unwrap(), 250.0);
-    // 140 °F = (140 − 32)/1.8 = 60 °C (definition of the Fahrenheit scale).
-    assert!((limit_number("reservoir_temp_c", "140F", "--watch").unwrap() - 60.0).abs() < 1e-9);
-    assert!(limit_number("water_ppm", "140F", "--watch").is_err());
-}
