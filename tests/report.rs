@@ -466,6 +466,13 @@ fn the_demo_report_carries_every_unit_its_state_and_figures_as_status_gives_them
     let table_end = fleet
         .find("Figures in")
         .expect("the note under the fleet table");
+    // The fleet part ends with the supervisor's sign-off lines, after the work list.
+    let sign = fleet.find("Fleet sign-off").expect("the fleet sign-off");
+    assert!(
+        sign > table_end && fleet[sign..].contains("Approved by"),
+        "{}",
+        &fleet[sign..]
+    );
     for (k, r) in rows.iter().enumerate() {
         let tag = r.get("UNIT");
         let row = &fleet[starts[k]..starts.get(k + 1).copied().unwrap_or(table_end)];
@@ -757,8 +764,9 @@ fn a_sixty_character_name_and_twelve_flags_stay_on_their_pages() {
         // still fits on one page.
         assert!(text.contains("(continued)"));
         assert!(pages > fleet_pages + 2, "{pages} pages");
-        let sign_offs = text.matches("Reviewed by").count();
+        let sign_offs = text.matches("Checked by").count();
         assert_eq!(sign_offs, 2, "one sign-off block per unit");
+        assert_eq!(text.matches("Approved by").count(), 1, "one for the fleet");
     }
 }
 

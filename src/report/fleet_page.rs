@@ -1,5 +1,6 @@
 //! The fleet part of the report: who and when, the state of every unit with the figures that
-//! explain it, the exceptions that need a decision, and the work overdue or due soon.
+//! explain it, the exceptions that need a decision, the work overdue or due soon, and the
+//! supervisor's sign-off lines.
 //! Draws what the application layer put in the [`ReportDoc`]; decides nothing.
 
 use super::layout::{size, Cell, Face, Layout, DARK};
@@ -94,7 +95,19 @@ pub fn draw(l: &mut Layout, doc: &ReportDoc) {
         let (f, h, r) = work_table(&doc.work, true);
         l.table(&f, &h, &r, size::SMALL);
     }
+    l.gap(6.0);
+
+    // The supervisor signs the fleet part as a whole; each unit page has its own lines.
+    l.heading("Fleet sign-off", 30.0);
+    l.sign_off(&[&FLEET_SIGN_OFF], size::BODY);
 }
+
+const FLEET_SIGN_OFF: [(&str, f32); 4] = [
+    ("Reviewed by", 3.2),
+    ("Date", 1.5),
+    ("Approved by", 3.2),
+    ("Date", 1.5),
+];
 
 /// The words beside each mark in the legend.
 pub fn state_legend() -> Vec<(Mark, String)> {
