@@ -1470,11 +1470,10 @@ fn specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
     let hl = lim(LimitKey::HeatRiseDriftK);
     out.push(Spec {
         key: "heat_rise",
+        // Short enough for a tile; docs/engineering.md ("Computations", heat rise) says that
+        // "baseline load" means the baseline's pressure (and oil, where the leakage is known).
         label: match c.heat_load {
-            Some(m) if m.viscosity.is_some() => {
-                "Heat rise (oil − ambient) at baseline pressure and oil"
-            }
-            Some(_) => "Heat rise (oil − ambient) at baseline pressure",
+            Some(_) => "Heat rise at baseline load",
             None => "Heat rise (oil − ambient)",
         },
         dim: Dim::TempDiff,
