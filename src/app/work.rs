@@ -541,26 +541,32 @@ pub fn limits(shop: &super::shop::Shop, unit: Option<&str>) -> Result<LimitsView
     Ok(view)
 }
 
-/// A unit a limit is shown in, with the conversions from and to its stored unit.
-type ShownUnit = (&'static str, fn(f64) -> f64, fn(f64) -> f64);
+/// How a stored limit reads in a unit system other than the one it is stored in: only the
+/// temperature limits differ (°C and °F for the reservoir, K and °F steps for heat rise); every
+/// other limit is a ratio, a count or a time. The command line's `limits` and Setup's limits
+/// tab both read and write through it.
+pub(crate) struct LimitScale {
+    pub unit: &'static str,
+    pub shown: fn(f64) -> f64,
+    pub stored: fn(f64) -> f64,
+}
 
-/// How a limit reads in a unit system where its stored unit is not the trade's: the unit shown
-/// and the conversions to and from the stored one. Only temperatures (°C → °F) and temperature
-/// differences (K → °F steps) differ; every other limit is a ratio, a count or a time.
-fn shown_unit(key: LimitKey, sys: UnitSystem) -> Option<ShownUnit> {
-    use crate::units::{TempDiff, Temperature};
-    match (sys, key.unit()) {
-        (UnitSystem::Us, "°C") => Some((
-            "°F",
-            |c| Temperature::from_c(c).f(),
-            |f| Temperature::from_f(f).c(),
-        )),
-        (UnitSystem::Us, "K") => Some((
-            "°F",
-            |k| TempDiff::from_k(k).f_steps(),
-            |f| TempDiff::from_f_steps(f).k(),
-        )),
-        _ => None,
+impl LimitScale {
+    pub fn of(stored_unit: &str, system: UnitSystem) -> Option<LimitScale> {
+        use crate::units::Temperature;
+        match (stored_unit, system) {
+            ("°C", UnitSystem::Us) => Some(LimitScale {
+                unit: "°F",
+                shown: |c| Temperature::from_c(c).f(),
+                stored: |f| Temperature::from_f(f).c(),
+            }),
+            ("K", UnitSystem::Us) => Some(LimitScale {
+                unit: "°F",
+                shown: |k| TempDiff::from_k(k).f_steps(),
+                stored: |f| TempDiff::from_f_steps(f).k(),
+            }),
+            _ => None,
+        }
     }
 }
 
@@ -569,7 +575,10 @@ fn show_in(row: &mut LimitRow, sys: UnitSystem) {
     let Ok(key) = row.key.parse::<LimitKey>() else {
         return;
     };
-    if let Some((unit, to, _)) = shown_unit(key, sys) {
+    if let Some(LimitScale {
+        unit, shown: to, ..
+    }) = LimitScale::of(key.unit(), sys)
+    {
         let tidy = |v: f64| (v * 1.0e6).round() / 1.0e6;
         row.watch = row.watch.map(|v| tidy(to(v)));
         row.act = row.act.map(|v| tidy(to(v)));
@@ -598,8 +607,8 @@ pub fn read_limit(
     let t = text.trim();
     if let Ok(v) = t.parse::<f64>() {
         if v.is_finite() {
-            return Ok(match shown_unit(k, sys) {
-                Some((_, _, from)) => from(v),
+            return Ok(match LimitScale::of(k.unit(), sys) {
+                Some(scale) => (scale.stored)(v),
                 None => v,
             });
         }
@@ -629,8 +638,8 @@ pub fn read_limit(
     }
     Err(AppError::BadInput(format!(
         "{what} `{t}` is not a number{}",
-        match shown_unit(k, sys) {
-            Some((unit, _, _)) => format!(" (in {unit}, or with its unit such as 160F)"),
+        match LimitScale::of(k.unit(), sys) {
+            Some(scale) => format!(" (in {}, or with its unit such as 160F)", scale.unit),
             None => String::new(),
         }
     )))

@@ -5,13 +5,13 @@ use super::*;
 
 use crate::app::shop::Shop;
 use crate::app::status::store_error;
-use crate::app::work::{self as work};
+use crate::app::work::{self as work, LimitScale};
 use crate::app::AppError;
 use crate::model::{
     Fluid, Id, Machine, PumpKind, SensitiveComponent, Settings, StrokeDirection, TimedStroke, Unit,
 };
 use crate::quantity::Kind;
-use crate::units::{Flow, Length, Pressure, TempDiff, Temperature, UnitSystem, Viscosity, Volume};
+use crate::units::{Flow, Length, Pressure, Viscosity, Volume};
 
 /// The shop's settings.
 pub fn shop_settings(shop: &Shop) -> Result<Settings, AppError> {
@@ -571,32 +571,6 @@ pub fn limits(shop: &Shop, unit: Option<&str>) -> Result<work::LimitsView, AppEr
         }
     }
     Ok(view)
-}
-
-/// How a stored limit reads in a unit system other than the one it is stored in: only the
-/// temperature limits differ (°C and °F for the reservoir, K and °F steps for heat rise).
-struct LimitScale {
-    unit: &'static str,
-    shown: fn(f64) -> f64,
-    stored: fn(f64) -> f64,
-}
-
-impl LimitScale {
-    fn of(stored_unit: &str, system: UnitSystem) -> Option<LimitScale> {
-        match (stored_unit, system) {
-            ("°C", UnitSystem::Us) => Some(LimitScale {
-                unit: "°F",
-                shown: |c| Temperature::from_c(c).f(),
-                stored: |f| Temperature::from_f(f).c(),
-            }),
-            ("K", UnitSystem::Us) => Some(LimitScale {
-                unit: "°F",
-                shown: |k| TempDiff::from_k(k).f_steps(),
-                stored: |f| TempDiff::from_f_steps(f).k(),
-            }),
-            _ => None,
-        }
-    }
 }
 
 /// One limit as the setup screen edits it: blank watch and act = inherit.
