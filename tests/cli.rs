@@ -3,18 +3,9 @@
 //! refusals (exit code 2, no panic) for wrong files and bad rows.
 
 use std::path::Path;
-use std::process::{Command, Output};
+use std::process::Command;
 
-fn sumpbook(dir: &Path, args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_sumpbook"))
-        .args(args)
-        .current_dir(dir)
-        // Keep the default shop of these runs inside the test's directory.
-        .env("HOME", dir)
-        .env("XDG_DATA_HOME", dir.join("data"))
-        .output()
-        .unwrap()
-}
+use crate::run::{ok, refused, text};
 
 /// `--db` for a new shop of the backend the test runs on: a file name in the test's directory
 /// (where the commands run), or the address of a new database on the server.
@@ -22,34 +13,6 @@ fn shop_name(name: &str) -> String {
     crate::backends::shop_at(Path::new(""), name)
         .display()
         .to_string()
-}
-
-fn text(b: &[u8]) -> String {
-    String::from_utf8_lossy(b).into_owned()
-}
-
-fn ok(dir: &Path, args: &[&str]) -> String {
-    let out = sumpbook(dir, args);
-    assert!(
-        out.status.success(),
-        "{args:?} failed: {}{}",
-        text(&out.stdout),
-        text(&out.stderr)
-    );
-    text(&out.stdout)
-}
-
-/// Exit code 2, a message on stderr that contains `needle`, and no panic.
-fn refused(dir: &Path, args: &[&str], needle: &str) -> String {
-    let out = sumpbook(dir, args);
-    let err = text(&out.stderr);
-    assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
-    assert!(
-        err.contains(needle),
-        "{args:?}: expected `{needle}` in: {err}"
-    );
-    assert!(!err.contains("panicked"), "{err}");
-    err
 }
 
 #[test]

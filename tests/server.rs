@@ -9,50 +9,13 @@
 use std::path::Path;
 use std::process::{Command, Output};
 
+use crate::run::{ok, refused, sumpbook, text};
+
 use sumpbook::app::entry::shop_changed;
 use sumpbook::app::shop::Shop;
 use sumpbook::store::{OpenMode, Store, StoreError};
 
 use crate::backends::{as_user, new_database, server};
-
-fn sumpbook(dir: &Path, args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_sumpbook"))
-        .args(args)
-        .current_dir(dir)
-        .env("HOME", dir)
-        .env("XDG_DATA_HOME", dir.join("data"))
-        .env_remove("SUMPBOOK_DB")
-        .output()
-        .unwrap()
-}
-
-fn text(b: &[u8]) -> String {
-    String::from_utf8_lossy(b).into_owned()
-}
-
-fn ok(dir: &Path, args: &[&str]) -> String {
-    let out = sumpbook(dir, args);
-    assert!(
-        out.status.success(),
-        "{args:?} failed: {}{}",
-        text(&out.stdout),
-        text(&out.stderr)
-    );
-    text(&out.stdout)
-}
-
-/// Exit code 2, `needle` in the message, no panic; the message.
-fn refused(dir: &Path, args: &[&str], needle: &str) -> String {
-    let out = sumpbook(dir, args);
-    let err = text(&out.stderr);
-    assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
-    assert!(
-        err.contains(needle),
-        "{args:?}: expected `{needle}` in: {err}"
-    );
-    assert!(!err.contains("panicked"), "{err}");
-    err
-}
 
 fn admin(url: &str) -> postgres::Client {
     postgres::Client::connect(url, postgres::NoTls).unwrap()

@@ -9,5 +9,6 @@ mod health_scenarios;
 mod physics_reference;
 mod reliability;
 mod report;
+mod run;
 mod server;
 mod store_and_exchange;
