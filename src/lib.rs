@@ -11,6 +11,7 @@
 //! - `store`: the shop database (SQLite file or PostgreSQL server); the only place with SQL.
 //! - `exchange`: CSV in (`csv_in/`) and out, the demo shop (`demo/`), the large benchmark shop.
 //! - `report`: the PDF's page engine (`layout/`), charts and pages.
+//! - `random`: the one fixed random stream of the demo, the large shop and the simulation.
 //! - `outfile`: output files written whole beside a user's path, never through a link.
 //! - `sim`: the detection benchmark's simulated shop and its scoring (pure).
 //! - `app`: one function per user action, the only door of the faces (`entry/` the form rules,
@@ -32,6 +33,7 @@ mod names;
 pub mod outfile;
 pub mod physics;
 pub mod quantity;
+pub mod random;
 pub mod report;
 pub mod sim;
 pub mod store;

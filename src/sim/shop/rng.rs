@@ -1,28 +1,26 @@
 //! The simulation's random numbers: a small fixed generator with uniform, normal and log-normal
 //! draws, so a seed gives the same shop on every platform. It must not know the shop.
 
-/// A small, fully specified random stream: SplitMix64 (Steele, Lea and Flood, 2014) for the
-/// bits, and Box–Muller for normal deviates so that the tails are Gaussian (a sum of uniforms
+use crate::random::SplitMix64;
+
+/// The crate's fixed stream (`crate::random::SplitMix64`) for the bits, and Box–Muller for
+/// normal deviates so that the tails are Gaussian (a sum of uniforms
 /// has no tail beyond a few σ, which would flatter a false-alarm rate).
 #[derive(Clone, Debug)]
-pub struct Rng(u64);
+pub struct Rng(SplitMix64);
 
 impl Rng {
     pub fn new(seed: u64) -> Self {
-        Rng(seed)
+        Rng(SplitMix64::new(seed))
     }
 
     pub fn next_u64(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
+        self.0.next_u64()
     }
 
     /// Uniform in [0, 1).
     pub fn uniform(&mut self) -> f64 {
-        (self.next_u64() >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
+        self.0.uniform()
     }
 
     /// Uniform in [lo, hi).
@@ -40,9 +38,7 @@ impl Rng {
 
     /// Standard normal (Box–Muller).
     pub fn normal(&mut self) -> f64 {
-        let u1 = 1.0 - self.uniform();
-        let u2 = self.uniform();
-        (-2.0 * u1.ln()).sqrt() * (2.0 * std::f64::consts::PI * u2).cos()
+        self.0.gaussian()
     }
 
     pub fn chance(&mut self, p: f64) -> bool {
