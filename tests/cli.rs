@@ -465,7 +465,8 @@ fn confirm_marks_a_reading_by_unit_and_time_and_refuses_one_that_does_not_exist(
             "--by",
             "AK",
         ],
-        &format!("no check of {unit} taken at 2020-01-01T00:00:00Z"),
+        // The demo shop keeps Europe/Berlin time (CET, UTC+1, in January).
+        &format!("no check of {unit} taken at 2020-01-01 01:00:00 CET"),
     );
     assert!(e.contains("the nearest checks"), "{e}");
     refused(
@@ -597,8 +598,12 @@ fn an_imported_slipped_decimal_is_kept_questioned_reported_and_counts_once_confi
         text.contains("Questioned readings, not confirmed"),
         "{text}"
     );
+    // Shown in the shop's zone (the demo keeps Europe/Berlin time).
+    let shown = sumpbook::app::local_time::Zone::named("Europe/Berlin")
+        .unwrap()
+        .show_exact(chrono::DateTime::parse_from_rfc3339(&at).unwrap().into());
     assert!(
-        text.contains(&format!("PR-01-C   check {at} reservoir temperature")),
+        text.contains(&format!("PR-01-C   check {shown} reservoir temperature")),
         "{text}"
     );
 
@@ -711,5 +716,174 @@ fn an_imported_slipped_decimal_is_kept_questioned_reported_and_counts_once_confi
     assert!(
         row.ends_with("Z"),
         "stored with its confirmation time: {row}"
+    );
+}
+
+/// The lines of `kind` exported from `db` for unit `tag` entered by `by`.
+fn exported_by(d: &Path, db: &str, kind: &str, tag: &str, by: &str) -> Vec<String> {
+    ok(d, &["--db", db, "export", kind])
+        .lines()
+        .filter(|l| l.starts_with(&format!("{tag},")) && l.contains(&format!(",{by},")))
+        .map(str::to_string)
+        .collect()
+}
+
+#[test]
+fn a_new_york_shop_reads_and_shows_new_york_time_and_handles_the_clock_changes() {
+    // Offsets and change-overs of America/New_York: US Energy Policy Act of 2005 (daylight
+    // saving time from 02:00 on the second Sunday of March to 02:00 on the first Sunday of
+    // November; EST = UTC-5, EDT = UTC-4), as the IANA time-zone database holds them.
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let db = "ny.sqlite";
+    ok(d, &["--db", db, "demo"]);
+    ok(
+        d,
+        &[
+            "--db",
+            db,
+            "settings",
+            "--time-zone",
+            "America/New_York",
+            "--by",
+            "T. Tester",
+        ],
+    );
+    let check = |at: &str| {
+        ok(
+            d,
+            &[
+                "--db",
+                db,
+                "log-check",
+                "SH-04-A",
+                "--at",
+                at,
+                "--oil-level",
+                "ok",
+                "--by",
+                "NY",
+            ],
+        )
+    };
+    // A wall-clock time is New York's; the message shows it back with the zone's mark.
+    let out = check("2026-12-01 08:00");
+    assert!(
+        out.contains("check of 2026-12-01 08:00:00 EST saved"),
+        "{out}"
+    );
+    // A date alone is noon there, for a check and for work done alike.
+    check("2026-12-02");
+    let out = ok(
+        d,
+        &[
+            "--db",
+            db,
+            "log-event",
+            "SH-04-A",
+            "note",
+            "--at",
+            "2026-12-03",
+            "--by",
+            "NY",
+        ],
+    );
+    assert!(out.contains("at 2026-12-03 12:00 EST"), "{out}");
+    // The hour repeated when daylight saving time ends is its first pass (EDT); an offset
+    // picks the second.
+    let out = check("2026-11-01 01:30");
+    assert!(out.contains("2026-11-01 01:30:00 EDT"), "{out}");
+    let out = check("2026-11-01 01:30-05:00");
+    assert!(out.contains("2026-11-01 01:30:00 EST"), "{out}");
+    // The hour skipped when it begins is refused, naming the time after the change.
+    let e = refused(
+        d,
+        &[
+            "--db",
+            db,
+            "log-check",
+            "SH-04-A",
+            "--at",
+            "2026-03-08 02:30",
+            "--oil-level",
+            "ok",
+            "--by",
+            "NY",
+        ],
+        "does not exist in America/New_York",
+    );
+    assert!(e.contains("(03:00)"), "{e}");
+
+    // Stored as UTC: export writes each instant with Z, so it reads back the same anywhere.
+    let checks = exported_by(d, db, "checks", "SH-04-A", "NY");
+    let times: Vec<&str> = checks
+        .iter()
+        .map(|l| l.split(',').nth(1).unwrap())
+        .collect();
+    assert_eq!(
+        times,
+        [
+            "2026-11-01T05:30:00Z",
+            "2026-11-01T06:30:00Z",
+            "2026-12-01T13:00:00Z",
+            "2026-12-02T17:00:00Z"
+        ]
+    );
+    let events = exported_by(d, db, "events", "SH-04-A", "NY");
+    assert!(
+        events[0].starts_with("SH-04-A,2026-12-03T17:00:00Z,note"),
+        "{events:?}"
+    );
+
+    // A time without an offset in an imported file is New York's too.
+    std::fs::write(
+        d.join("late.csv"),
+        "unit_tag,taken_at,oil_level,by\nSH-04-A,2026-12-04 07:15,ok,CSV\n",
+    )
+    .unwrap();
+    ok(d, &["--db", db, "import", "checks", "late.csv"]);
+    let imported = exported_by(d, db, "checks", "SH-04-A", "CSV");
+    assert!(
+        imported[0].starts_with("SH-04-A,2026-12-04T12:15:00Z,"),
+        "{imported:?}"
+    );
+
+    // status names the shop's clock; confirm takes the time as the shop's clock shows it.
+    let page = ok(
+        d,
+        &[
+            "--db",
+            db,
+            "status",
+            "--unit",
+            "SH-04-A",
+            "--at",
+            "2026-12-04",
+        ],
+    );
+    assert!(
+        page.lines()
+            .next()
+            .unwrap()
+            .ends_with("at 2026-12-04 23:59 EST"),
+        "{page}"
+    );
+    let e = refused(
+        d,
+        &[
+            "--db",
+            db,
+            "confirm",
+            "SH-04-A",
+            "--at",
+            "2026-12-01 08:00:01",
+            "--by",
+            "NY",
+        ],
+        "no check of SH-04-A taken at 2026-12-01 08:00:01 EST",
+    );
+    assert!(
+        e.contains("2026-12-01 08:00:00 EST"),
+        "the nearest, in New York time: {e}"
     );
 }

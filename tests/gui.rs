@@ -625,10 +625,10 @@ fn a_long_history_table_makes_only_the_rows_on_screen() {
     assert!(lazy.rows_made() > 0, "the rows on screen are made");
     assert!(lazy.rows_made() < 200, "{} rows made", lazy.rows_made());
     // Newest first, and a row asked for far down is the right one.
-    let newest = sumpbook::app::entry::show_time(checks.last().unwrap().taken_at);
+    let newest = sumpbook::app::entry::show_time(checks.last().unwrap().taken_at, s.zone());
     let first = rows.row_data(0).unwrap().row_data(0).unwrap().text;
     assert_eq!(first.as_str(), newest);
-    let oldest = sumpbook::app::entry::show_time(checks[0].taken_at);
+    let oldest = sumpbook::app::entry::show_time(checks[0].taken_at, s.zone());
     let last = rows
         .row_data(checks.len() - 1)
         .unwrap()
@@ -1110,4 +1110,74 @@ fn a_shop_whose_log_was_removed_after_a_crash_says_so_above_every_screen() {
             .next()
             .is_none()
     );
+}
+
+#[test]
+fn a_new_york_shop_chosen_from_the_list_reads_and_shows_new_york_time() {
+    // Offsets and change-overs of America/New_York: US Energy Policy Act of 2005 (EST =
+    // UTC-5; daylight saving time begins 2026-03-08 at 02:00), as the IANA time-zone database
+    // holds them.
+    let f = open_demo();
+    f.app.show(Screen::Setup);
+    // The zone is chosen from the list, narrowed by the words typed beside it.
+    field(&f.app, "Find a time zone").set_accessible_value("new york");
+    let choices = f.app.window().global::<SetupAdapter>().get_zone_choices();
+    use slint::Model;
+    assert_eq!(
+        choices.iter().map(|c| c.to_string()).collect::<Vec<_>>(),
+        ["America/New_York"]
+    );
+    with_role(&f.app, "Time zone", AccessibleRole::Combobox)
+        .mock_single_click(PointerEventButton::Left);
+    key(&f.app, Key::DownArrow);
+    key(&f.app, Key::Return);
+    assert_eq!(
+        f.app.window().global::<SetupAdapter>().get_time_zone(),
+        "America/New_York"
+    );
+    field(&f.app, "Changed by").set_accessible_value("T. Tester");
+    button(&f.app, "Save shop settings").invoke_accessible_default_action();
+    assert_eq!(
+        shop(&f.path).store().settings().unwrap().time_zone,
+        "America/New_York"
+    );
+
+    // The walk-round reads the time typed as New York's.
+    let (unit_id, _) = first_route_unit(&f.path);
+    let last = shop(&f.path)
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap()
+        .last()
+        .unwrap()
+        .clone();
+    f.app.show(Screen::Walk);
+    field(&f.app, "Technician").set_accessible_value("T. Tester");
+    // An hour the clocks skip is refused, saying so.
+    field(&f.app, "Taken at").set_accessible_value("2026-03-08 02:30");
+    field(&f.app, "Reservoir temperature")
+        .set_accessible_value(format!("{:.1}", last.reservoir_temp.unwrap().c()));
+    button(&f.app, "Save and next").invoke_accessible_default_action();
+    let msg = message(&f.app);
+    assert!(msg.contains("does not exist in America/New_York"), "{msg}");
+    field(&f.app, "Taken at").set_accessible_value("2026-12-01 08:00");
+    button(&f.app, "Save and next").invoke_accessible_default_action();
+    let checks = shop(&f.path)
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap();
+    let c = checks
+        .iter()
+        .find(|c| c.by == "T. Tester")
+        .unwrap_or_else(|| panic!("saved; screen says {}", message(&f.app)));
+    assert_eq!(c.taken_at.to_rfc3339(), "2026-12-01T13:00:00+00:00");
+
+    // The unit page's history shows it at 08:00 and names the zone.
+    f.app.open_unit(unit_id);
+    let a = f.app.window().global::<sumpbook::gui::ui::UnitAdapter>();
+    a.set_tab(2);
+    let _ = labels_starting(&f.app, "");
+    assert_eq!(a.get_time_note(), "Times in America/New_York.");
+    let first = a.get_rows().row_data(0).unwrap().row_data(0).unwrap().text;
+    assert_eq!(first.as_str(), "2026-12-01 08:00");
 }

@@ -84,6 +84,7 @@ fn find_reading(
     kind: ReadingKind,
     at: DateTime<Utc>,
 ) -> Result<(Id, String, Option<Confirmation>), AppError> {
+    let zone = crate::app::shop::zone_of(store);
     let tag = tag.trim();
     let unit = store
         .unit_by_tag(tag)
@@ -127,7 +128,7 @@ fn find_reading(
             "; the nearest {kind}s of {} were taken at {}",
             unit.tag,
             near.iter()
-                .map(|t| t.format("%Y-%m-%dT%H:%M:%SZ").to_string())
+                .map(|t| zone.show_exact(*t))
                 .collect::<Vec<_>>()
                 .join(", ")
         )
@@ -135,7 +136,7 @@ fn find_reading(
     Err(AppError::BadInput(format!(
         "no {kind} of {} taken at {}{hint}",
         unit.tag,
-        at.format("%Y-%m-%dT%H:%M:%SZ")
+        zone.show_exact(at)
     )))
 }
 
@@ -159,10 +160,10 @@ fn set(
     })
 }
 
-/// Reads the time of the reading to confirm: an ISO 8601 date or date-time, as the CSV files
-/// write times (`exchange`).
-pub fn read_at(text: &str) -> Result<DateTime<Utc>, String> {
-    crate::exchange::csv_in::parse_when(text)
+/// Reads the time of the reading to confirm: an ISO 8601 date-time, in the shop's zone `zone`
+/// unless it carries `Z` or an offset (`app::local_time`).
+pub fn read_at(text: &str, zone: crate::app::local_time::Zone) -> Result<DateTime<Utc>, String> {
+    crate::app::local_time::read(text, zone).map_err(|e| e.to_string())
 }
 
 /// `by` confirms the `kind` reading of unit `tag` taken at `at`: it is what was measured, so
@@ -179,13 +180,14 @@ pub fn confirm_reading_in(
 ) -> Result<ConfirmResult, AppError> {
     let by = need("who confirms the reading (--by NAME)", by)?;
     let now = now.trunc_subsecs(0);
+    let zone = crate::app::shop::zone_of(store);
     let (id, unit, before) = find_reading(store, tag, kind, at)?;
     if let Some(k) = before {
         return Err(AppError::BadInput(format!(
             "the {kind} of {unit} at {} is already confirmed by {} on {}",
-            at.format("%Y-%m-%dT%H:%M:%SZ"),
+            zone.show_exact(at),
             k.by,
-            k.at.format("%Y-%m-%d %H:%M UTC")
+            zone.show_marked(k.at)
         )));
     }
     let confirmation = Confirmation {
@@ -226,11 +228,12 @@ pub fn lift_confirmation_in(
     let by = need("who lifts the confirmation (--by NAME)", by)?;
     let why = need("why the confirmation is lifted (--note TEXT)", why)?;
     let now = now.trunc_subsecs(0);
+    let zone = crate::app::shop::zone_of(store);
     let (id, unit, before) = find_reading(store, tag, kind, at)?;
     let Some(before) = before else {
         return Err(AppError::BadInput(format!(
             "the {kind} of {unit} at {} is not confirmed; there is nothing to lift",
-            at.format("%Y-%m-%dT%H:%M:%SZ")
+            zone.show_exact(at)
         )));
     };
     let reason = format!("confirmation lifted: {why}");

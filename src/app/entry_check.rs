@@ -12,7 +12,7 @@ use super::entry::{self, Entered, Problem, SaveOutcome, Verdict};
 use super::shop::Shop;
 use super::status::UnitStatus;
 use super::AppError;
-use crate::exchange::csv_in::parse_when;
+use crate::app::local_time;
 
 /// The fields a check can carry, as typed: keys of the check form.
 pub const FIELDS: [&str; 9] = [
@@ -89,16 +89,16 @@ pub fn log_check(
         entered.set(key, text);
     }
     let now = now.trunc_subsecs(0);
+    let zone = shop.zone();
     let at = match input.at.as_deref() {
         None => now,
-        Some(text) => {
-            parse_when(text).map_err(|e| AppError::BadInput(format!("time of the check: {e}")))?
-        }
+        Some(text) => local_time::read(text, zone)
+            .map_err(|e| AppError::BadInput(format!("time of the check: {e}")))?,
     };
     if at > now + CLOCK_SLACK {
         return Err(AppError::BadInput(format!(
             "time of the check: {} is in the future; record readings when they are taken",
-            at.format("%Y-%m-%dT%H:%M:%SZ")
+            zone.show_marked(at)
         )));
     }
     // The form's rules judge a reading as of the moment it was taken: an empty time there is

@@ -20,6 +20,14 @@ use crate::store::roles::ShopRole;
 use crate::store::{OpenMode, Store, StoreError};
 use crate::units::UnitSystem;
 
+/// The time zone of the shop in `store` (UTC when its settings cannot be read).
+pub fn zone_of(store: &Store) -> crate::app::local_time::Zone {
+    store
+        .settings()
+        .map(|s| crate::app::local_time::Zone::of_setting(&s.time_zone))
+        .unwrap_or_default()
+}
+
 /// An open shop database.
 #[derive(Debug)]
 pub struct Shop {
@@ -229,6 +237,12 @@ impl Shop {
             .settings()
             .map(|s| s.unit_system)
             .unwrap_or_default()
+    }
+
+    /// The shop's time zone (UTC when its settings cannot be read): typed times are read and
+    /// stored instants shown in it.
+    pub fn zone(&self) -> crate::app::local_time::Zone {
+        zone_of(&self.store)
     }
 
     /// The version of the shop's schema.

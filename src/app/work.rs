@@ -269,11 +269,12 @@ pub fn log_event_in(
     now: DateTime<Utc>,
 ) -> Result<LoggedEvent, AppError> {
     let now = now.trunc_subsecs(0);
+    let zone = crate::app::shop::zone_of(store);
     let at = input.at.unwrap_or(now);
     if at > now + Duration::hours(1) {
         return Err(AppError::BadInput(format!(
             "{} is in the future; record work when it has been done",
-            at.format("%Y-%m-%d %H:%M")
+            zone.show_marked(at)
         )));
     }
     let at = at.trunc_subsecs(0);
@@ -328,7 +329,7 @@ pub fn log_event_in(
             "a {} of {} at {} is already recorded",
             input.kind,
             unit.tag,
-            at.format("%Y-%m-%d %H:%M:%S")
+            zone.show_exact(at)
         )),
         other => store_error(other),
     })?;
@@ -347,7 +348,7 @@ pub fn log_event_in(
                     .update_unit(
                         &u,
                         by,
-                        &format!("fluid change on {} to {}", at.format("%Y-%m-%d"), f.name),
+                        &format!("fluid change on {} to {}", zone.show_date(at), f.name),
                     )
                     .map_err(store_error)?;
                 changed = true;

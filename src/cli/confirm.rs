@@ -17,7 +17,8 @@ pub struct ConfirmArgs {
     /// Unit tag.
     #[arg(value_name = "UNIT")]
     pub unit: String,
-    /// When the reading was taken, exactly as stored: YYYY-MM-DDTHH:MM:SSZ (or with an offset).
+    /// When the reading was taken, to the second: YYYY-MM-DD HH:MM:SS in the shop's time zone,
+    /// or with Z or an offset (+01:00).
     #[arg(long, value_name = "TIME")]
     pub at: String,
     /// The reading is a fluid sample result (default: a walk-round check).
@@ -39,7 +40,9 @@ pub struct ConfirmArgs {
 }
 
 pub fn run(shop: &Shop, args: &ConfirmArgs, out: &mut dyn Write) -> Result<(), Failure> {
-    let at = confirm::read_at(&args.at).map_err(|e| Failure::bad_input(format!("--at: {e}")))?;
+    let zone = shop.zone();
+    let at =
+        confirm::read_at(&args.at, zone).map_err(|e| Failure::bad_input(format!("--at: {e}")))?;
     let kind = if args.sample {
         ReadingKind::Sample
     } else {
@@ -57,7 +60,7 @@ pub fn run(shop: &Shop, args: &ConfirmArgs, out: &mut dyn Write) -> Result<(), F
         writeln!(out)?;
         return Ok(());
     }
-    let when = r.taken_at.format("%Y-%m-%d %H:%M:%S UTC");
+    let when = zone.show_exact(r.taken_at);
     match (r.action, &r.confirmed, &r.lifted) {
         (ConfirmAction::Confirmed, Some(k), _) => writeln!(
             out,
@@ -65,7 +68,7 @@ pub fn run(shop: &Shop, args: &ConfirmArgs, out: &mut dyn Write) -> Result<(), F
             r.unit,
             r.kind,
             k.by,
-            k.at.format("%Y-%m-%d %H:%M UTC")
+            zone.show_marked(k.at)
         )?,
         (_, _, Some(k)) => writeln!(
             out,

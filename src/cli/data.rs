@@ -405,17 +405,22 @@ pub fn run_stored_status(
         writeln!(out, "{text}")?;
         return Ok(());
     }
-    print_status(&status, out)
+    print_status(&status, shop.zone(), out)
 }
 
-fn print_status(s: &StoredStatus, out: &mut dyn Write) -> Result<(), Failure> {
+fn print_status(
+    s: &StoredStatus,
+    zone: crate::app::local_time::Zone,
+    out: &mut dyn Write,
+) -> Result<(), Failure> {
     let us = s.unit_system == UnitSystem::Us;
     let (t_unit, p_unit) = if us { ("°F", "psi") } else { ("°C", "bar") };
     writeln!(
         out,
-        "{} — {} unit(s); latest stored readings",
+        "{} — {} unit(s); latest stored readings (times in {})",
         s.shop_name,
-        s.units.len()
+        s.units.len(),
+        zone.name()
     )?;
     writeln!(
         out,
@@ -423,12 +428,12 @@ fn print_status(s: &StoredStatus, out: &mut dyn Write) -> Result<(), Failure> {
         "unit",
         "machine",
         "checks",
-        "last check (UTC)",
+        "last check",
         format!("oil {t_unit}"),
         p_unit,
         "stroke s",
         "samples",
-        "last sample (UTC)",
+        "last sample",
         "ISO 4406",
         "water"
     )?;
@@ -440,8 +445,7 @@ fn print_status(s: &StoredStatus, out: &mut dyn Write) -> Result<(), Failure> {
                 .unwrap_or_else(|| "-".into())
         };
         let when = |t: Option<chrono::DateTime<chrono::Utc>>| {
-            t.map(|t| t.format("%Y-%m-%d %H:%M").to_string())
-                .unwrap_or_else(|| "-".into())
+            t.map(|t| zone.show(t)).unwrap_or_else(|| "-".into())
         };
         let shown = s.shown(u);
         writeln!(

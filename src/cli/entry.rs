@@ -18,8 +18,8 @@ pub struct LogCheckArgs {
     /// Unit tag.
     #[arg(value_name = "UNIT")]
     pub unit: String,
-    /// When it was taken: YYYY-MM-DDTHH:MM:SSZ, with an offset (+01:00), or a date; a time
-    /// without Z or an offset is UTC. Default now.
+    /// When it was taken: YYYY-MM-DD HH:MM in the shop's time zone (see `settings`), a date
+    /// alone (noon that day), or with Z or an offset (+01:00). Default now.
     #[arg(long, value_name = "TIME")]
     pub at: Option<String>,
     /// Oil temperature in the reservoir, e.g. 45C or 113F.
@@ -95,7 +95,7 @@ pub fn run_log_check(shop: &Shop, args: &LogCheckArgs, out: &mut dyn Write) -> R
         out,
         "{}: check of {} saved (id {}); unit state now {}",
         logged.unit,
-        logged.taken_at.format("%Y-%m-%d %H:%M:%S UTC"),
+        shop.zone().show_exact(logged.taken_at),
         logged.check_id,
         logged.status.state
     )?;

@@ -9,10 +9,11 @@
 //! CSV dialect (docs/engineering.md, "CSV files"): RFC 4180 quoting; the delimiter (`,` `;` or
 //! tab) is detected from
 //! the header line; UTF-8 with or without a byte-order mark. Times are ISO 8601: a date
-//! (`2025-03-04`, taken as 00:00 UTC), or a date and time (`2025-03-04T07:30:00Z`,
-//! `2025-03-04 07:30`, `2025-03-04T08:30:00+01:00`); a time without `Z` or an offset is taken as
-//! UTC. Anything else, in particular `03/04/2025` (which day is it?), is refused. Fractions of a
-//! second are refused: readings are kept to the second. Numbers use a decimal point.
+//! (`2025-03-04`, taken as noon in the shop's time zone), or a date and time
+//! (`2025-03-04T07:30:00Z`, `2025-03-04 07:30`, `2025-03-04T08:30:00+01:00`); a time without `Z`
+//! or an offset is the shop's wall-clock time (`app::local_time`). Anything else, in particular
+//! `03/04/2025` (which day is it?), is refused. Fractions of a second are refused: readings are
+//! kept to the second. Export writes UTC with `Z`. Numbers use a decimal point.
 //!
 //! Export protects spreadsheets: a text cell beginning with `=`, `+`, `-`, `@`, tab or CR is
 //! written with a leading `'` so it is not run as a formula (numbers, negative ones too, are

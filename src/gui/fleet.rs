@@ -51,7 +51,7 @@ fn next_due(u: &UnitStatus) -> (String, bool) {
     }
 }
 
-fn row(u: &UnitStatus, sys: UnitSystem) -> FleetRow {
+fn row(u: &UnitStatus, sys: UnitSystem, zone: crate::app::local_time::Zone) -> FleetRow {
     let (due, overdue) = next_due(u);
     let all_seen = !u.health.flags.is_empty() && u.health.flags.iter().all(|f| f.acknowledged);
     FleetRow {
@@ -64,7 +64,7 @@ fn row(u: &UnitStatus, sys: UnitSystem) -> FleetRow {
         last_check: s(u
             .health
             .last_check
-            .map(super::fmt::date)
+            .map(|t| super::fmt::date(t, zone))
             .unwrap_or_else(|| "never".into())),
         next_due: s(due),
         overdue,
@@ -124,7 +124,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 .units
                 .iter()
                 .filter(|u| matches(u, filter, &search))
-                .map(|u| row(u, sys))
+                .map(|u| row(u, sys, ctx.zone.get()))
                 .collect();
             let c = fleet.counts;
             a.set_summary(s(format!(
@@ -134,7 +134,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 c.watch,
                 c.not_judged,
                 c.steady,
-                crate::app::entry::show_time(fleet.at)
+                ctx.zone.get().show_marked(fleet.at)
             )));
             a.set_rows(model(rows));
             a.set_shop_empty(fleet.units.is_empty());

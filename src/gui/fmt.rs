@@ -6,6 +6,7 @@
 use chrono::{DateTime, NaiveDate, Utc};
 
 use crate::app::figures;
+use crate::app::local_time::Zone;
 use crate::app::vocab::Dim;
 use crate::app::vocab::State;
 use crate::units::UnitSystem;
@@ -41,8 +42,9 @@ pub fn slope_text(dim: Dim, per_week: f64, sys: UnitSystem) -> String {
     format!("{}/wk", figures::change(dim, per_week, sys))
 }
 
-pub fn date(t: DateTime<Utc>) -> String {
-    crate::app::entry::show_date(t)
+/// `t`'s day in the shop's time zone.
+pub fn date(t: DateTime<Utc>, zone: Zone) -> String {
+    zone.show_date(t)
 }
 
 pub fn day(d: NaiveDate) -> String {

@@ -84,6 +84,8 @@ pub(crate) struct Ctx {
     pub db_path: PathBuf,
     pub window: slint::Weak<AppWindow>,
     pub system: Cell<UnitSystem>,
+    /// The shop's time zone: times are typed and shown in it.
+    pub zone: Cell<crate::app::local_time::Zone>,
     /// The unit the unit page, the walk-round cursor and the sample form start from.
     pub unit_id: Cell<Option<i64>>,
     pub unit: RefCell<unit::UnitState>,
@@ -196,12 +198,14 @@ impl App {
         charts::register_fonts();
         let shop = Shop::open(db)?;
         let system = entry::shop_settings(&shop)?.unit_system;
+        let zone = shop.zone();
         let window = AppWindow::new().map_err(ui_error)?;
         let ctx = Rc::new(Ctx {
             shop,
             db_path: db.to_path_buf(),
             window: window.as_weak(),
             system: Cell::new(system),
+            zone: Cell::new(zone),
             unit_id: Cell::new(None),
             unit: RefCell::new(unit::UnitState::default()),
             walk: RefCell::new(walk::WalkState::default()),
@@ -577,6 +581,8 @@ fn refresh_nav(ctx: &Rc<Ctx>) {
     }
     if let Ok(s) = entry::shop_settings(&ctx.shop) {
         ctx.system.set(s.unit_system);
+        ctx.zone
+            .set(crate::app::local_time::Zone::of_setting(&s.time_zone));
         if let Some(w) = ctx.win() {
             let nav = w.global::<Nav>();
             nav.set_shop_name(s.shop_name.into());

@@ -55,6 +55,24 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
         }
     });
     let c = Rc::downgrade(ctx);
+    a.on_filter_zones(move |text| {
+        if let Some(w) = c.upgrade().and_then(|ctx| ctx.win()) {
+            show_zones(&w.global::<SetupAdapter>(), &text);
+        }
+    });
+    let c = Rc::downgrade(ctx);
+    a.on_choose_zone(move |i| {
+        if let Some(w) = c.upgrade().and_then(|ctx| ctx.win()) {
+            let a = w.global::<SetupAdapter>();
+            let chosen = usize::try_from(i)
+                .ok()
+                .and_then(|i| slint::Model::row_data(&a.get_zone_choices(), i));
+            if let Some(name) = chosen {
+                a.set_time_zone(name);
+            }
+        }
+    });
+    let c = Rc::downgrade(ctx);
     a.on_choose_record(move |i| {
         if let Some(ctx) = c.upgrade() {
             let id = ctx.setup.borrow().ids.get(i as usize).copied();
@@ -131,6 +149,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 UnitSystem::Us => 1,
             });
             a.set_time_zone(s(&st.time_zone));
+            show_zones(&a, &a.get_zone_filter());
         }
         Err(e) => {
             a.set_message(s(err_text(&e)));
@@ -218,6 +237,19 @@ fn load_record(ctx: &Rc<Ctx>, id: Option<i64>) {
             a.set_message_level(2);
         }
     }
+}
+
+/// Fills the time-zone chooser with the zone names that hold every word of `filter` (`new
+/// york` finds America/New_York), the zone in force selected when it is among them.
+fn show_zones(a: &SetupAdapter, filter: &str) {
+    let names = entry::zone_choices(filter);
+    let current = a.get_time_zone();
+    let index = names
+        .iter()
+        .position(|n| *n == current.as_str())
+        .map_or(-1, |i| i as i32);
+    a.set_zone_choices(strings(names.iter().map(|n| n.to_string())));
+    a.set_zone_index(index);
 }
 
 fn save_shop(ctx: &Rc<Ctx>) {

@@ -60,7 +60,7 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
     });
 }
 
-fn stop_rows(st: &WalkState) -> Vec<RouteStop> {
+fn stop_rows(st: &WalkState, zone: crate::app::local_time::Zone) -> Vec<RouteStop> {
     st.stops
         .iter()
         .enumerate()
@@ -70,7 +70,10 @@ fn stop_rows(st: &WalkState) -> Vec<RouteStop> {
             machine: s(&r.machine),
             state: state_num(r.state),
             done: s(st.done.get(i).cloned().unwrap_or_default()),
-            last_check: s(r.last_check.map(super::fmt::date).unwrap_or_default()),
+            last_check: s(r
+                .last_check
+                .map(|t| super::fmt::date(t, zone))
+                .unwrap_or_default()),
         })
         .collect()
 }
@@ -114,7 +117,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
             .and_then(|id| st.stops.iter().position(|r| r.unit_id == id))
             .unwrap_or(0)
     };
-    a.set_stops(model(stop_rows(&ctx.walk.borrow())));
+    a.set_stops(model(stop_rows(&ctx.walk.borrow(), ctx.zone.get())));
     load_form(ctx, index, false);
 }
 
@@ -203,7 +206,7 @@ fn mark_and_advance(ctx: &Rc<Ctx>, mark: &str) {
         a.set_message(s(format!("Skipped {tag}.")));
         a.set_message_level(0);
     }
-    a.set_stops(model(stop_rows(&ctx.walk.borrow())));
+    a.set_stops(model(stop_rows(&ctx.walk.borrow(), ctx.zone.get())));
     let next = if i + 1 < n { i + 1 } else { i };
     load_form(ctx, next, true);
     if i + 1 >= n {

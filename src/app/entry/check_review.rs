@@ -5,6 +5,7 @@ use super::*;
 
 use chrono::{DateTime, SubsecRound, Utc};
 
+use crate::app::local_time::Zone;
 use crate::app::shop::Shop;
 use crate::app::status::{store_error, unit_status_in, UnitStatus};
 use crate::app::AppError;
@@ -438,12 +439,14 @@ pub fn review_check(
     now: DateTime<Utc>,
 ) -> Result<CheckReview, AppError> {
     let store = shop.store();
-    let system = settings(store)?.unit_system;
+    let shop_settings = settings(store)?;
+    let system = shop_settings.unit_system;
+    let zone = Zone::of_setting(&shop_settings.time_zone);
     let unit = unit_of(store, unit_id)?;
     let earlier = store.checks_for_unit(unit_id, None).map_err(store_error)?;
     let events = store.events_for_unit(unit_id, None).map_err(store_error)?;
     let mut pre = Vec::new();
-    let at = read_when(taken_at, now).unwrap_or_else(|e| {
+    let at = read_when(taken_at, now, zone).unwrap_or_else(|e| {
         pre.push(Problem::refused("taken_at", e));
         now.trunc_subsecs(0)
     });
@@ -459,7 +462,7 @@ pub fn review_check(
             format!(
                 "{} already has a check at {}; correct that one on the unit page",
                 unit.tag,
-                show_time(at)
+                show_time(at, zone)
             ),
         ));
     }

@@ -4,8 +4,6 @@
 
 use super::*;
 
-use chrono::Local;
-
 use crate::app::shop::Shop;
 use crate::app::status::store_error;
 use crate::app::AppError;
@@ -203,7 +201,9 @@ pub fn edit_reading(
         )]));
     }
     let store = shop.store();
-    let system = settings(store)?.unit_system;
+    let shop_settings = settings(store)?;
+    let system = shop_settings.unit_system;
+    let zone = crate::app::local_time::Zone::of_setting(&shop_settings.time_zone);
     let missing = || AppError::BadInput(format!("that reading ({id}) is no longer stored"));
     match which {
         Reading::Check => {
@@ -232,13 +232,7 @@ pub fn edit_reading(
         Reading::Sample => {
             let s = store.sample(id).map_err(store_error)?.ok_or_else(missing)?;
             let mut e = entered.clone();
-            e.set(
-                "sampled_at",
-                &s.sampled_at
-                    .with_timezone(&Local)
-                    .format("%Y-%m-%d %H:%M:%S")
-                    .to_string(),
-            );
+            e.set("sampled_at", &zone.show_seconds(s.sampled_at));
             // Judge as a new sample of the same unit, without the stored one clashing.
             let mut problems = Vec::new();
             let new = judge_sample_edit(&s, &e, system, &mut problems);

@@ -5,6 +5,7 @@ use super::*;
 
 use chrono::{DateTime, SubsecRound, Utc};
 
+use crate::app::local_time::Zone;
 use crate::app::shop::Shop;
 use crate::app::status::{store_error, unit_status_in, UnitStatus};
 use crate::app::AppError;
@@ -105,10 +106,12 @@ pub fn review_sample(
     now: DateTime<Utc>,
 ) -> Result<SampleReview, AppError> {
     let store = shop.store();
-    let system = settings(store)?.unit_system;
+    let shop_settings = settings(store)?;
+    let system = shop_settings.unit_system;
+    let zone = Zone::of_setting(&shop_settings.time_zone);
     let h = history_of(store, unit_id)?;
     let mut p = Vec::new();
-    let at = read_when(entered.get("sampled_at"), now).unwrap_or_else(|e| {
+    let at = read_when(entered.get("sampled_at"), now, zone).unwrap_or_else(|e| {
         p.push(Problem::refused("sampled_at", e));
         now.trunc_subsecs(0)
     });
@@ -242,7 +245,7 @@ pub fn review_sample(
             format!(
                 "{} already has a sample at {}; correct that one on the unit page",
                 h.unit.tag,
-                show_time(at)
+                show_time(at, zone)
             ),
         ));
     }

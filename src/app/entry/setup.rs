@@ -21,16 +21,25 @@ pub fn shop_settings(shop: &Shop) -> Result<Settings, AppError> {
 /// A time zone must be one the time-zone database knows (IANA names such as
 /// `America/New_York`; `UTC` too), so that times can be read and shown in it.
 pub fn check_time_zone(zone: &str) -> Result<(), AppError> {
-    zone.trim()
-        .parse::<chrono_tz::Tz>()
+    crate::app::local_time::Zone::named(zone)
         .map(|_| ())
-        .map_err(|_| {
-            AppError::BadInput(format!(
-                "time zone `{}` is not known; give an IANA name such as America/New_York, \
-             Europe/Berlin or UTC",
-                zone.trim()
-            ))
+        .map_err(|e| AppError::BadInput(e.to_string()))
+}
+
+/// The time-zone names a shop can choose that hold every word of `filter`, in any case, a
+/// space standing for `_` or `/` (`new york` finds `America/New_York`); all of them when the
+/// filter is blank.
+pub fn zone_choices(filter: &str) -> Vec<&'static str> {
+    let words: Vec<String> = filter.split_whitespace().map(str::to_lowercase).collect();
+    crate::app::local_time::Zone::choices()
+        .into_iter()
+        .filter(|name| {
+            let spaced = name.to_lowercase().replace(['_', '/'], " ");
+            words
+                .iter()
+                .all(|w| spaced.contains(w.as_str()) || name.to_lowercase().contains(w.as_str()))
         })
+        .collect()
 }
 
 /// Changes the shop's name, unit system and time zone. A blank reason is filled in with what

@@ -107,11 +107,12 @@ fn bare_numbers_are_read_in_the_shop_units_and_units_win() {
 #[test]
 fn a_time_in_the_future_is_refused() {
     let now: DateTime<Utc> = "2025-03-04T12:00:00Z".parse().unwrap();
-    assert_eq!(read_when("", now), Ok(now));
-    assert!(read_when("2031-01-01 08:00", now)
+    let z = crate::app::local_time::Zone::default();
+    assert_eq!(read_when("", now, z), Ok(now));
+    assert!(read_when("2031-01-01 08:00", now, z)
         .unwrap_err()
         .contains("future"));
-    assert!(read_when("03/04/2025", now).is_err());
+    assert!(read_when("03/04/2025", now, z).is_err());
 }
 
 #[test]

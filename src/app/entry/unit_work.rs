@@ -22,17 +22,21 @@ pub struct UnitView {
     pub history: UnitHistory,
     pub fluids: Vec<Fluid>,
     pub system: UnitSystem,
+    /// The shop's time zone, which the page shows times in.
+    pub zone: crate::app::local_time::Zone,
 }
 
 pub fn unit_view(shop: &Shop, unit_id: Id, now: DateTime<Utc>) -> Result<UnitView, AppError> {
     let store = shop.store();
     let history = history_of(store, unit_id)?;
     let status = unit_status_in(store, &history.unit.tag, Some(now))?;
+    let shop_settings = settings(store)?;
     Ok(UnitView {
         status,
         history,
         fluids: store.fluids().map_err(store_error)?,
-        system: settings(store)?.unit_system,
+        system: shop_settings.unit_system,
+        zone: crate::app::local_time::Zone::of_setting(&shop_settings.time_zone),
     })
 }
 

@@ -15,19 +15,19 @@ use crate::units::UnitSystem;
 pub(super) fn charts(
     u: &UnitStatus,
     events: &[crate::model::Event],
-    from: NaiveDate,
-    to: NaiveDate,
+    (from, to): (NaiveDate, NaiveDate),
     sys: UnitSystem,
+    zone: Zone,
 ) -> Vec<Chart> {
     let marks: Vec<EventMark> = events
         .iter()
-        .filter(|e| in_period(e.done_at, from, to))
+        .filter(|e| in_period(e.done_at, from, to, zone))
         .filter_map(|e| {
             let (code, what) = event_code(e.kind)?;
             Some(EventMark {
                 at: e.done_at,
                 code: code.into(),
-                label: format!("{what} {}", e.done_at.format("%Y-%m-%d")),
+                label: format!("{what} {}", zone.show_date(e.done_at)),
             })
         })
         .collect();
@@ -35,7 +35,7 @@ pub(super) fn charts(
     let points = |s: &crate::health::Series| -> Vec<(DateTime<Utc>, f64)> {
         s.points
             .iter()
-            .filter(|p| in_period(p.at, from, to))
+            .filter(|p| in_period(p.at, from, to, zone))
             .map(|p| (p.at, figures::value(s.dim, p.value, sys)))
             .collect()
     };

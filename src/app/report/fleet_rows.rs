@@ -10,7 +10,7 @@ use crate::health::{Flag, State};
 use crate::report::{Finding, FleetRow};
 use crate::units::{TempDiff, UnitSystem};
 
-pub(super) fn finding(tag: &str, f: &Flag, sys: UnitSystem) -> Finding {
+pub(super) fn finding(tag: &str, f: &Flag, sys: UnitSystem, zone: Zone) -> Finding {
     Finding {
         unit_tag: tag.to_string(),
         state: state_text(f.state),
@@ -24,7 +24,7 @@ pub(super) fn finding(tag: &str, f: &Flag, sys: UnitSystem) -> Finding {
             } else {
                 format!(": {}", a.note.trim())
             };
-            format!("{} {}{note}", a.by, a.at.format("%Y-%m-%d"))
+            format!("{} {}{note}", a.by, zone.show_date(a.at))
         }),
     }
 }
@@ -97,7 +97,7 @@ fn short_label(t: &Tile) -> String {
     }
 }
 
-pub(super) fn fleet_row(u: &UnitStatus, sys: UnitSystem) -> FleetRow {
+pub(super) fn fleet_row(u: &UnitStatus, sys: UnitSystem, zone: Zone) -> FleetRow {
     let trend = match leading_tile(u).and_then(|t| t.trend.as_ref().map(|tr| (t, tr))) {
         Some((t, tr)) => {
             let mut s = format!("{}: {}", short_label(t), arrow(tr.direction));
@@ -105,7 +105,7 @@ pub(super) fn fleet_row(u: &UnitStatus, sys: UnitSystem) -> FleetRow {
                 s.push_str(&format!(
                     ", {} by about {}",
                     f.state.as_str(),
-                    f.date.format("%Y-%m-%d")
+                    zone.show_date(f.date)
                 ));
             }
             s

@@ -14,9 +14,9 @@ use crate::units::UnitSystem;
 
 pub(super) fn indicator_rows(
     u: &UnitStatus,
-    from: NaiveDate,
-    to: NaiveDate,
+    (from, to): (NaiveDate, NaiveDate),
     sys: UnitSystem,
+    zone: Zone,
 ) -> Vec<IndicatorRow> {
     let target = u.health.indicators.iso4406_target.clone();
     u.health
@@ -63,7 +63,7 @@ pub(super) fn indicator_rows(
                 .map(|s| {
                     s.points
                         .iter()
-                        .filter(|p| in_period(p.at, from, to))
+                        .filter(|p| in_period(p.at, from, to, zone))
                         .map(|p| (p.at, p.value))
                         .collect()
                 })

@@ -31,6 +31,7 @@ use std::path::{Path, PathBuf};
 use chrono::{DateTime, Duration, NaiveDate, Utc};
 use serde::Serialize;
 
+use super::local_time::Zone;
 use super::shop::Shop;
 use super::status::{fleet_status_in, store_error, Detail, UnitStatus};
 use super::work::due_list_from;
@@ -109,7 +110,7 @@ pub fn write_report(
         },
     )?;
     let now = Utc::now();
-    let (from, to) = period(opts, now)?;
+    let (from, to) = period(opts, now, shop.zone())?;
     let doc = build_report(shop, opts, now)?;
     let not_done = |fleet_pages| ReportSummary {
         path: opts.out.clone(),
@@ -194,8 +195,12 @@ pub fn out_is_taken(out: &Path) -> bool {
 }
 
 /// The first and last day of the period.
-fn period(opts: &ReportOptions, now: DateTime<Utc>) -> Result<(NaiveDate, NaiveDate), AppError> {
-    let to = opts.to.unwrap_or_else(|| now.date_naive());
+fn period(
+    opts: &ReportOptions,
+    now: DateTime<Utc>,
+    zone: Zone,
+) -> Result<(NaiveDate, NaiveDate), AppError> {
+    let to = opts.to.unwrap_or_else(|| zone.date_of(now));
     let from = opts
         .from
         .unwrap_or(to - Duration::days(DEFAULT_PERIOD_DAYS));
@@ -207,11 +212,10 @@ fn period(opts: &ReportOptions, now: DateTime<Utc>) -> Result<(NaiveDate, NaiveD
     Ok((from, to))
 }
 
-/// Now, or the end of the day `to` when one was asked for (as `status --at DATE` does).
-fn evaluation_instant(to: Option<NaiveDate>, now: DateTime<Utc>) -> DateTime<Utc> {
-    to.and_then(|d| d.and_hms_opt(23, 59, 59))
-        .map(|t| t.and_utc())
-        .unwrap_or(now)
+/// Now, or the end of the day `to` in the shop's zone when one was asked for (as `status --at
+/// DATE` does).
+fn evaluation_instant(to: Option<NaiveDate>, now: DateTime<Utc>, zone: Zone) -> DateTime<Utc> {
+    to.map(|d| zone.day_end(d)).unwrap_or(now)
 }
 
 /// Fills the printed report from the shop's data, as of `now`.
@@ -221,8 +225,9 @@ pub fn build_report(
     now: DateTime<Utc>,
 ) -> Result<ReportDoc, AppError> {
     let store = shop.store();
-    let (from, to) = period(opts, now)?;
-    let at = evaluation_instant(opts.to, now);
+    let zone = crate::app::shop::zone_of(store);
+    let (from, to) = period(opts, now, zone)?;
+    let at = evaluation_instant(opts.to, now, zone);
     let fleet = fleet_status_in(store, Some(at), Detail::Full)?;
     let sys = fleet.unit_system;
 
@@ -259,7 +264,15 @@ pub fn build_report(
             .map_err(store_error)?
             .map(|h| h.events)
             .unwrap_or_default();
-        units.push(unit_section(u, unit, machine, &events, from, to, sys));
+        units.push(unit_section(
+            u,
+            unit,
+            machine,
+            &events,
+            (from, to),
+            sys,
+            zone,
+        ));
     }
 
     // The work of the evaluation above: the shop is read and judged once per report.
@@ -280,7 +293,12 @@ pub fn build_report(
 
     let exceptions: Vec<Finding> = chosen
         .iter()
-        .flat_map(|u| u.health.flags.iter().map(|f| finding(&u.unit, f, sys)))
+        .flat_map(|u| {
+            u.health
+                .flags
+                .iter()
+                .map(|f| finding(&u.unit, f, sys, zone))
+        })
         .collect();
     let counts = |s: State| chosen.iter().filter(|u| u.state == s).count();
     let fleet_summary = format!(
@@ -291,26 +309,27 @@ pub fn build_report(
         counts(State::NotJudged),
         counts(State::Watch),
         counts(State::Act),
-        at.format("%Y-%m-%d %H:%M UTC")
+        zone.show_marked(at)
     );
 
     Ok(ReportDoc {
         shop_name: fleet.shop_name.clone(),
         title: "Condition report".into(),
         period: format!("{from} – {to}"),
-        written: now.format("%Y-%m-%d").to_string(),
+        written: zone.show_date(now),
         written_at: now,
         prepared_by: if opts.prepared_by.trim().is_empty() { "—".into() } else { opts.prepared_by.trim().to_string() },
         paper: opts.paper,
         fleet_summary,
-        fleet: chosen.iter().map(|u| fleet_row(u, sys)).collect(),
+        fleet: chosen.iter().map(|u| fleet_row(u, sys, zone)).collect(),
         exceptions,
         work,
         work_heading: format!("Work overdue and due in the next {} weeks", WORK_AHEAD_DAYS / 7),
         notes: vec![format!(
-            "Figures in {} units; lost flow, leak and heat rise are against the unit's baseline. Trend: \
+            "Dates and times in the shop's time zone, {}. Figures in {} units; lost flow, leak and heat rise are against the unit's baseline. Trend: \
              least-squares slope over the last 12 points, ↑ rising or ↓ falling where it is significant \
              (|t| ≥ 2), → no clear trend. On the unit pages, change is the last value in the period minus the first.",
+            zone.name(),
             match sys {
                 UnitSystem::Metric => "metric",
                 UnitSystem::Us => "US customary",
@@ -323,7 +342,7 @@ pub fn build_report(
                     .suspects
                     .iter()
                     .filter(|q| q.confirmed.is_none())
-                    .map(move |q| format!("{}: {}", u.unit, questioned_text(q)))
+                    .map(move |q| format!("{}: {}", u.unit, questioned_text(q, zone)))
             })
             .collect(),
         units,

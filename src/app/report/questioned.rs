@@ -1,12 +1,13 @@
 //! Questioned readings in the report: the remark under a unit and the mark beside each figure a
 //! questioned reading feeds. It must not read the shop or evaluate.
 
+use crate::app::local_time::Zone;
 use crate::app::status::UnitStatus;
 use crate::health::screen::{Field as ScreenField, Record};
 use crate::health::SuspectReading;
 
 /// A questioned reading in words: record, time, field, reason, and who confirmed it.
-pub(super) fn questioned_text(q: &SuspectReading) -> String {
+pub(super) fn questioned_text(q: &SuspectReading, zone: Zone) -> String {
     let record = match q.record {
         Record::Check => "check",
         Record::Sample => "sample",
@@ -15,12 +16,12 @@ pub(super) fn questioned_text(q: &SuspectReading) -> String {
         None => "not confirmed: left out of baselines and flags".to_string(),
         Some(c) => {
             let (by, at) = crate::app::status::confirmed_by_text(c);
-            format!("confirmed by {by} {}", at.format("%Y-%m-%d"))
+            format!("confirmed by {by} {}", zone.show_date(at))
         }
     };
     format!(
         "{record} of {}, {}: {} ({state})",
-        q.at.format("%Y-%m-%d %H:%M UTC"),
+        zone.show_marked(q.at),
         q.field.label(),
         q.reason
     )
@@ -29,7 +30,7 @@ pub(super) fn questioned_text(q: &SuspectReading) -> String {
 /// One line on the unit's questioned readings that are not confirmed: how many, and the
 /// latest one (record, time, field), so the unit keeps to its page; `sumpbook status --unit`
 /// and the app list each with its reason.
-pub(super) fn questioned_remarks(u: &UnitStatus) -> Vec<String> {
+pub(super) fn questioned_remarks(u: &UnitStatus, zone: Zone) -> Vec<String> {
     let open: Vec<&SuspectReading> = u
         .health
         .suspects
@@ -49,7 +50,7 @@ pub(super) fn questioned_remarks(u: &UnitStatus) -> Vec<String> {
          flags until confirmed.",
         if n == 1 { "" } else { "s" },
         q.field.label(),
-        format!("{record} {}", q.at.format("%Y-%m-%d %H:%M UTC"))
+        format!("{record} {}", zone.show_marked(q.at))
     )]
 }
 

@@ -70,7 +70,7 @@ fn fluid_text(f: &Fluid, sys: UnitSystem) -> (String, String) {
     )
 }
 
-fn baseline_text(u: &UnitStatus, sys: UnitSystem) -> String {
+fn baseline_text(u: &UnitStatus, sys: UnitSystem, zone: Zone) -> String {
     let b = &u.health.baseline;
     if b.is_empty() {
         return "none yet (needs the first checks of the era)".into();
@@ -86,12 +86,12 @@ fn baseline_text(u: &UnitStatus, sys: UnitSystem) -> String {
                 format!(
                     "first {} checks of the era, {} – {}",
                     check_ids.len(),
-                    from.format("%Y-%m-%d"),
-                    to.format("%Y-%m-%d")
+                    zone.show_date(*from),
+                    zone.show_date(*to)
                 )
             }
             BaselineSource::Manual { by, at } => {
-                format!("entered by {by} on {}", at.format("%Y-%m-%d"))
+                format!("entered by {by} on {}", zone.show_date(*at))
             }
         };
         if !sources.contains(&s) {
@@ -119,9 +119,9 @@ pub(super) fn unit_section(
     unit: Option<&Unit>,
     machine: Option<&Machine>,
     events: &[crate::model::Event],
-    from: NaiveDate,
-    to: NaiveDate,
+    (from, to): (NaiveDate, NaiveDate),
     sys: UnitSystem,
+    zone: Zone,
 ) -> UnitSection {
     // The machine's name heads the page; here its tag and kind.
     let machine_text = if u.machine_kind.is_empty() {
@@ -166,7 +166,7 @@ pub(super) fn unit_section(
     if let Some(era) = u.health.eras.last() {
         let mut text = format!(
             "{} ({})",
-            era.start.format("%Y-%m-%d"),
+            zone.show_date(era.start),
             era.started_by.as_str()
         );
         if let Some(p) = u.health.indicators.oil_life_used_pct {
@@ -207,9 +207,9 @@ pub(super) fn unit_section(
         summary,
         identity,
         fluid,
-        baseline: baseline_text(u, sys),
-        indicators: indicator_rows(u, from, to, sys),
-        charts: charts(u, events, from, to, sys),
+        baseline: baseline_text(u, sys, zone),
+        indicators: indicator_rows(u, (from, to), sys, zone),
+        charts: charts(u, events, (from, to), sys, zone),
         remarks: u
             .health
             .not_judged
@@ -221,13 +221,13 @@ pub(super) fn unit_section(
                     n.label, n.missing, n.until
                 )
             })
-            .chain(questioned_remarks(u))
+            .chain(questioned_remarks(u, zone))
             .collect(),
         flags: u
             .health
             .flags
             .iter()
-            .map(|f| finding(&u.unit, f, sys))
+            .map(|f| finding(&u.unit, f, sys, zone))
             .collect(),
         work: u
             .health

@@ -4,6 +4,7 @@
 use chrono::{DateTime, NaiveDate, Utc};
 
 use crate::app::figures;
+use crate::app::local_time::Zone;
 use crate::health::indicators::{Dim, Direction};
 use crate::health::State;
 use crate::model::EventKind;
@@ -69,8 +70,8 @@ pub(super) fn plus_minus(dim: Dim, value: f64, spread: f64, sys: UnitSystem) -> 
     }
 }
 
-pub(super) fn in_period(at: DateTime<Utc>, from: NaiveDate, to: NaiveDate) -> bool {
-    let d = at.date_naive();
+pub(super) fn in_period(at: DateTime<Utc>, from: NaiveDate, to: NaiveDate, zone: Zone) -> bool {
+    let d = zone.date_of(at);
     d >= from && d <= to
 }
 

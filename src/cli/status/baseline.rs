@@ -52,7 +52,7 @@ pub fn run_baseline(shop: &Shop, args: &BaselineArgs, out: &mut dyn Write) -> Re
         "Baseline {} of {} for the era since {} entered by {}; `sumpbook status --unit {}` now measures against it.",
         r.indicator,
         r.unit,
-        r.era_start.format("%Y-%m-%d"),
+        shop.zone().show_date(r.era_start),
         r.by,
         r.unit
     )?;

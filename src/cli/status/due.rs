@@ -24,12 +24,16 @@ pub struct DueArgs {
     pub at: Option<String>,
 }
 
-fn due_table(out: &mut dyn Write, d: &DueList) -> Result<(), Failure> {
+fn due_table(
+    out: &mut dyn Write,
+    d: &DueList,
+    zone: crate::app::local_time::Zone,
+) -> Result<(), Failure> {
     let scope = match d.within_days {
         Some(n) => format!("overdue and due within {n} days"),
         None => "all planned work".into(),
     };
-    writeln!(out, "Work due at {} — {scope}", d.at.format("%Y-%m-%d"))?;
+    writeln!(out, "Work due at {} — {scope}", zone.show_date(d.at))?;
     if d.items.is_empty() {
         writeln!(out, "Nothing due.")?;
         return Ok(());
@@ -68,11 +72,15 @@ fn due_table(out: &mut dyn Write, d: &DueList) -> Result<(), Failure> {
 }
 
 pub fn run_due(shop: &Shop, args: &DueArgs, out: &mut dyn Write) -> Result<(), Failure> {
-    let at = args.at.as_deref().map(parse_at_end_of_day).transpose()?;
+    let at = args
+        .at
+        .as_deref()
+        .map(|s| parse_at_end_of_day(s, shop.zone()))
+        .transpose()?;
     let d = work::due_list(shop, at, args.within)?;
     if args.json {
         json_out(out, &d)
     } else {
-        due_table(out, &d)
+        due_table(out, &d, shop.zone())
     }
 }

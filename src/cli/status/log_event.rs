@@ -4,7 +4,6 @@
 use super::*;
 use std::io::Write;
 
-use chrono::NaiveTime;
 use clap::Args;
 
 use crate::app::shop::Shop;
@@ -21,7 +20,8 @@ pub struct LogEventArgs {
     /// fluid_change, top_up, filter_change, rebuild, repair, cooler_clean or note.
     #[arg(value_name = "KIND")]
     pub kind: String,
-    /// When it was done: YYYY-MM-DD (taken as 12:00 UTC) or YYYY-MM-DDTHH:MM:SSZ; default now.
+    /// When it was done: YYYY-MM-DD HH:MM in the shop's time zone, a date alone (noon that
+    /// day), or with Z or an offset (+01:00); default now.
     #[arg(long, value_name = "DATE")]
     pub at: Option<String>,
     /// Oil put in, with its unit: 20l, 5.3gal.
@@ -46,7 +46,7 @@ pub fn run_log_event(shop: &Shop, args: &LogEventArgs, out: &mut dyn Write) -> R
     let at = args
         .at
         .as_deref()
-        .map(|s| parse_when(s, NaiveTime::from_hms_opt(12, 0, 0)))
+        .map(|s| parse_when(s, shop.zone()))
         .transpose()?;
     let volume = args
         .volume
@@ -81,7 +81,7 @@ pub fn run_log_event(shop: &Shop, args: &LogEventArgs, out: &mut dyn Write) -> R
         "Recorded {} on {} at {}{vol}{fluid}.",
         r.event.kind,
         r.unit,
-        r.event.done_at.format("%Y-%m-%d %H:%M UTC")
+        shop.zone().show_marked(r.event.done_at)
     )?;
     if r.fluid_in_service_changed {
         writeln!(

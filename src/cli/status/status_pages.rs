@@ -8,6 +8,7 @@ use std::io::Write;
 use clap::Args;
 
 use crate::app::figures;
+use crate::app::local_time::Zone;
 use crate::app::shop::Shop;
 use crate::app::status::{self, FleetStatus, UnitStatus};
 use crate::app::vocab::Record;
@@ -24,18 +25,19 @@ pub struct StatusArgs {
     /// Print JSON instead of the table.
     #[arg(long)]
     pub json: bool,
-    /// Evaluate the shop as it stood at the end of this date (YYYY-MM-DD, or a UTC time
-    /// YYYY-MM-DDTHH:MM:SSZ): only what was recorded by then is used.
+    /// Evaluate the shop as it stood at the end of this date in the shop's time zone
+    /// (YYYY-MM-DD), or at a time (YYYY-MM-DD HH:MM there, or with Z or an offset): only what
+    /// was recorded by then is used.
     #[arg(long, value_name = "DATE")]
     pub at: Option<String>,
 }
 
-fn fleet_table(out: &mut dyn Write, f: &FleetStatus) -> Result<(), Failure> {
+fn fleet_table(out: &mut dyn Write, f: &FleetStatus, zone: Zone) -> Result<(), Failure> {
     let sys = f.unit_system;
     let when = if f.replay {
-        format!("as it stood at {}", f.at.format("%Y-%m-%d %H:%M UTC"))
+        format!("as it stood at {}", zone.show_marked(f.at))
     } else {
-        format!("now ({})", f.at.format("%Y-%m-%d %H:%M UTC"))
+        format!("now ({})", zone.show_marked(f.at))
     };
     writeln!(out, "{} — {}", f.shop_name, when)?;
     writeln!(
@@ -129,7 +131,7 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus) -> Result<(), Failure> {
         writeln!(out, "Flags")?;
         for u in flagged {
             for fl in &u.health.flags {
-                flag_line(out, &u.unit, fl, sys)?;
+                flag_line(out, &u.unit, fl, sys, zone)?;
             }
         }
     }
@@ -168,7 +170,7 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus) -> Result<(), Failure> {
             "Questioned readings, not confirmed (left out of baselines and flags; `sumpbook confirm` keeps one)"
         )?;
         for (u, s) in open {
-            suspect_line(out, &u.unit, s)?;
+            suspect_line(out, &u.unit, s, zone)?;
         }
     }
     Ok(())
@@ -186,7 +188,12 @@ fn not_judged_line(out: &mut dyn Write, unit: &str, n: &NotJudged) -> Result<(),
     Ok(())
 }
 
-fn suspect_line(out: &mut dyn Write, unit: &str, s: &SuspectReading) -> Result<(), Failure> {
+fn suspect_line(
+    out: &mut dyn Write,
+    unit: &str,
+    s: &SuspectReading,
+    zone: Zone,
+) -> Result<(), Failure> {
     let kind = match s.record {
         Record::Check => "check",
         Record::Sample => "sample",
@@ -195,7 +202,7 @@ fn suspect_line(out: &mut dyn Write, unit: &str, s: &SuspectReading) -> Result<(
         None => "NOT CONFIRMED".to_string(),
         Some(c) => {
             let (by, at) = status::confirmed_by_text(c);
-            format!("confirmed by {by} {}", at.format("%Y-%m-%d"))
+            format!("confirmed by {by} {}", zone.show_date(at))
         }
     };
     writeln!(
@@ -203,20 +210,26 @@ fn suspect_line(out: &mut dyn Write, unit: &str, s: &SuspectReading) -> Result<(
         "  {}{} {} {}: {}  [{state}]",
         pad(unit, 10),
         kind,
-        s.at.format("%Y-%m-%dT%H:%M:%SZ"),
+        zone.show_exact(s.at),
         s.field.label(),
         s.reason
     )?;
     Ok(())
 }
 
-fn flag_line(out: &mut dyn Write, unit: &str, f: &Flag, sys: UnitSystem) -> Result<(), Failure> {
+fn flag_line(
+    out: &mut dyn Write,
+    unit: &str,
+    f: &Flag,
+    sys: UnitSystem,
+    zone: Zone,
+) -> Result<(), Failure> {
     let seen = match &f.acknowledgement {
         Some(a) if f.acknowledged => {
             format!(
                 "  [seen by {} {}{}]",
                 a.by,
-                a.at.format("%Y-%m-%d"),
+                zone.show_date(a.at),
                 if a.note.is_empty() {
                     String::new()
                 } else {
@@ -240,7 +253,12 @@ fn flag_line(out: &mut dyn Write, unit: &str, f: &Flag, sys: UnitSystem) -> Resu
     Ok(())
 }
 
-fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(), Failure> {
+fn unit_page(
+    out: &mut dyn Write,
+    u: &UnitStatus,
+    sys: UnitSystem,
+    zone: Zone,
+) -> Result<(), Failure> {
     let h = &u.health;
     writeln!(
         out,
@@ -250,13 +268,13 @@ fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(),
         u.machine_name,
         u.machine_kind,
         state_word(u.state),
-        h.at.format("%Y-%m-%d %H:%M UTC")
+        zone.show_marked(h.at)
     )?;
     if let Some(era) = h.eras.last() {
         writeln!(
             out,
             "Era since {} ({}); fluid {}",
-            era.start.format("%Y-%m-%d"),
+            zone.show_date(era.start),
             era.started_by.as_str(),
             u.fluid.clone().unwrap_or_else(|| "not recorded".into())
         )?;
@@ -275,11 +293,11 @@ fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(),
             } => format!(
                 "median of {} checks {} – {}",
                 check_ids.len(),
-                from.format("%Y-%m-%d"),
-                to.format("%Y-%m-%d")
+                zone.show_date(*from),
+                zone.show_date(*to)
             ),
             BaselineSource::Manual { by, at } => {
-                format!("entered by {by} on {}", at.format("%Y-%m-%d"))
+                format!("entered by {by} on {}", zone.show_date(*at))
             }
         };
         writeln!(
@@ -319,7 +337,7 @@ fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(),
                     s.push_str(&format!(
                         ", {} by {}",
                         f.state.as_str(),
-                        f.date.format("%Y-%m-%d")
+                        zone.show_date(f.date)
                     ));
                 }
                 s
@@ -342,7 +360,7 @@ fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(),
     } else {
         writeln!(out, "Flags")?;
         for f in &h.flags {
-            flag_line(out, &u.unit, f, sys)?;
+            flag_line(out, &u.unit, f, sys, zone)?;
         }
     }
     if !h.not_judged.is_empty() {
@@ -356,7 +374,7 @@ fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(),
         writeln!(out)?;
         writeln!(out, "Questioned readings")?;
         for s in &h.suspects {
-            suspect_line(out, &u.unit, s)?;
+            suspect_line(out, &u.unit, s, zone)?;
         }
     }
     writeln!(out)?;
@@ -382,7 +400,11 @@ fn unit_page(out: &mut dyn Write, u: &UnitStatus, sys: UnitSystem) -> Result<(),
 }
 
 pub fn run_status(shop: &Shop, args: &StatusArgs, out: &mut dyn Write) -> Result<(), Failure> {
-    let at = args.at.as_deref().map(parse_at_end_of_day).transpose()?;
+    let at = args
+        .at
+        .as_deref()
+        .map(|s| parse_at_end_of_day(s, shop.zone()))
+        .transpose()?;
     match &args.unit {
         Some(tag) => {
             let u = status::unit_status_of(shop, tag, at)?;
@@ -390,7 +412,7 @@ pub fn run_status(shop: &Shop, args: &StatusArgs, out: &mut dyn Write) -> Result
             if args.json {
                 json_out(out, &u.to_json_view(sys))
             } else {
-                unit_page(out, &u, sys)
+                unit_page(out, &u, sys, shop.zone())
             }
         }
         None => {
@@ -398,7 +420,7 @@ pub fn run_status(shop: &Shop, args: &StatusArgs, out: &mut dyn Write) -> Result
             if args.json {
                 json_out(out, &f.to_json_view())
             } else {
-                fleet_table(out, &f)
+                fleet_table(out, &f, shop.zone())
             }
         }
     }

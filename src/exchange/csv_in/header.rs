@@ -84,7 +84,8 @@ pub(super) fn parse_header(
             };
             let expected = specs.iter().map(|s| s.name).collect::<Vec<_>>().join(", ");
             // Say what the line probably is, when it is plainly not a header as sumpbook reads it.
-            let hint = if parse_number(name).is_ok() || parse_when(name).is_ok() {
+            let hint = if parse_number(name).is_ok() || parse_when(name, Default::default()).is_ok()
+            {
                 " (the first line must be the header naming the columns; is it missing?)"
                     .to_string()
             } else if let Some(sep) = name.chars().find(|c| ['|', '^', '~'].contains(c)) {

@@ -169,6 +169,7 @@ pub fn import_reader<R: Read>(
         questioned: Vec::new(),
     };
     let mut errors: Vec<RowError> = Vec::new();
+    let zone = crate::app::local_time::Zone::of_setting(&store.settings()?.time_zone);
     let mut bulk = store.bulk()?;
     let mut importer = Importer::new(kind, &header);
     let latest = Utc::now() + chrono::Duration::days(1);
@@ -226,6 +227,7 @@ pub fn import_reader<R: Read>(
             line,
             errors: Vec::new(),
             latest,
+            zone,
             rounded: 0,
         };
         let outcome = if let Some(column) = unclosed_quote(&rec, delimiter, header.width) {

@@ -66,6 +66,8 @@ pub(super) struct RowReader<'r> {
     pub(super) errors: Vec<RowError>,
     /// Readings later than this are in the future (a day of slack for clocks and zones).
     pub(super) latest: DateTime<Utc>,
+    /// The shop's time zone: times without an offset are its wall clock.
+    pub(super) zone: crate::app::local_time::Zone,
     /// Numbers of this row written with more significant digits than are stored.
     pub(super) rounded: u64,
 }
@@ -137,7 +139,7 @@ impl<'r> RowReader<'r> {
     pub(super) fn when(&mut self, slot: Option<Slot>, field: &str) -> Option<DateTime<Utc>> {
         let text = self.need(slot, field)?;
         let name = slot.map_or(field, |s| s.name);
-        match parse_when(text) {
+        match parse_when(text, self.zone) {
             Ok(t) if t > self.latest => {
                 self.err(name, format!("`{text}` is in the future"));
                 None

@@ -5,8 +5,9 @@ use std::io::Read;
 
 #[test]
 fn iso_times_are_read_and_ambiguous_ones_refused() {
-    let t = |s: &str| parse_when(s).map(|t| crate::store::fmt_time_stamp(&t));
-    assert_eq!(t("2025-03-04").unwrap(), "2025-03-04T00:00:00Z");
+    let t = |s: &str| parse_when(s, Default::default()).map(|t| crate::store::fmt_time_stamp(&t));
+    // A date alone is noon of that day in the shop's zone (here UTC).
+    assert_eq!(t("2025-03-04").unwrap(), "2025-03-04T12:00:00Z");
     assert_eq!(t("2025-03-04T07:30:00Z").unwrap(), "2025-03-04T07:30:00Z");
     assert_eq!(t("2025-03-04 07:30").unwrap(), "2025-03-04T07:30:00Z");
     assert_eq!(
@@ -27,6 +28,16 @@ fn iso_times_are_read_and_ambiguous_ones_refused() {
     assert!(t("2025-03-04T25:00").is_err());
     assert!(t("2025-03-04T07:30:00+25:00").is_err());
     assert!(t("4 March 2025").is_err());
+    // In a New York shop a time without an offset is New York's wall clock (EST, UTC-5, in
+    // March before the second Sunday: US Energy Policy Act of 2005); Z and offsets stay.
+    let ny = crate::app::local_time::Zone::named("America/New_York").unwrap();
+    let n = |s: &str| parse_when(s, ny).map(|t| crate::store::fmt_time_stamp(&t));
+    assert_eq!(n("2025-03-04 07:30").unwrap(), "2025-03-04T12:30:00Z");
+    assert_eq!(n("2025-03-04").unwrap(), "2025-03-04T17:00:00Z");
+    assert_eq!(n("2025-03-04T07:30:00Z").unwrap(), "2025-03-04T07:30:00Z");
+    assert!(n("2025-03-09 02:30")
+        .unwrap_err()
+        .contains("does not exist"));
 }
 
 #[test]

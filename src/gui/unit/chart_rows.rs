@@ -142,7 +142,7 @@ pub(super) fn chart_rows(v: &UnitView, sys: UnitSystem) -> (Vec<ChartRow>, Strin
         Some(t) => format!(
             "The era in force, since {}. Band: baseline ± one spread; dashed ochre: watch; solid red: act; \
              dashed blue: events.",
-            crate::gui::fmt::date(t)
+            crate::gui::fmt::date(t, v.zone)
         ),
         None => "No era yet: charts appear with the first checks.".into(),
     };

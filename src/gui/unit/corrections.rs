@@ -139,7 +139,10 @@ fn show_suspicion(ctx: &Rc<Ctx>, a: &UnitAdapter, which: Reading, id: i64) {
                 None => "not confirmed: left out of baselines and flags".to_string(),
                 Some(c) => {
                     let (by, at) = status::confirmed_by_text(c);
-                    format!("confirmed by {by} on {}", crate::gui::fmt::date(at))
+                    format!(
+                        "confirmed by {by} on {}",
+                        crate::gui::fmt::date(at, ctx.zone.get())
+                    )
                 }
             };
             format!("Questioned — {} ({state})", q.reason)
@@ -150,7 +153,7 @@ fn show_suspicion(ctx: &Rc<Ctx>, a: &UnitAdapter, which: Reading, id: i64) {
             lines.push(format!(
                 "Confirmed by {} on {}.",
                 k.by,
-                crate::gui::fmt::date(k.at)
+                crate::gui::fmt::date(k.at, ctx.zone.get())
             ));
         }
     }

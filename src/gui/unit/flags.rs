@@ -26,7 +26,7 @@ pub(super) fn flags(v: &UnitView) -> Vec<FlagData> {
                 Some(a) if f.acknowledged => s(format!(
                     "seen by {} on {}{}",
                     a.by,
-                    crate::gui::fmt::date(a.at),
+                    crate::gui::fmt::date(a.at, v.zone),
                     if a.note.is_empty() {
                         String::new()
                     } else {

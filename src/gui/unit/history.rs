@@ -118,7 +118,7 @@ fn check_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
                 .unwrap_or_default()
         };
         vec![
-            cell(entry::show_time(c.taken_at)),
+            cell(entry::show_time(c.taken_at, v.zone)),
             cell(marks.get(&c.id).cloned().unwrap_or_default()),
             cell(conv(Kind::Temperature, c.reservoir_temp.map(|x| x.si()))),
             cell(conv(Kind::Temperature, c.ambient_temp.map(|x| x.si()))),
@@ -175,7 +175,7 @@ fn sample_table(v: &Rc<UnitView>) -> (Vec<TableColumn>, Vec<i64>, RowMaker) {
             .map(|k| k.cst())
             .or_else(|| point.and_then(|p| p.kv40).map(|k| k * 1e6));
         vec![
-            cell(entry::show_time(smp.sampled_at)),
+            cell(entry::show_time(smp.sampled_at, v.zone)),
             cell(marks.get(&smp.id).cloned().unwrap_or_default()),
             cell(num(kv40, 1)),
             cell(num(smp.kv100.map(|k| k.cst()), 2)),
@@ -217,7 +217,7 @@ fn event_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
             .and_then(|id| v.fluids.iter().find(|f| f.id == id))
             .map(|f| f.name.clone());
         vec![
-            cell(entry::show_time(e.done_at)),
+            cell(entry::show_time(e.done_at, v.zone)),
             cell(e.kind.as_str().replace('_', " ")),
             cell(
                 e.volume
@@ -238,6 +238,7 @@ pub(super) fn fill_table(ctx: &Rc<Ctx>, which: Reading) {
     let sys = ctx.system.get();
     let st = ctx.unit.borrow();
     let Some(v) = st.view.as_ref() else { return };
+    let time_note = format!("Times in {}.", v.zone.name());
     let (columns, ids, make) = match which {
         Reading::Check => check_table(v, sys),
         Reading::Sample => sample_table(v),
@@ -250,6 +251,7 @@ pub(super) fn fill_table(ctx: &Rc<Ctx>, which: Reading) {
         Reading::Sample => 1,
         Reading::Event => 2,
     });
+    a.set_time_note(time_note.into());
     a.set_columns(model(columns));
     a.set_rows(ModelRc::new(HistoryRows {
         count: ids.len(),

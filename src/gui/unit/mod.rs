@@ -182,6 +182,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
         &st.health.tiles,
         sys,
         &st.health.not_judged,
+        view.zone,
     )));
     a.set_flags(model(flags(&view)));
     a.set_waiting(strings(
@@ -200,7 +201,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 format!(
                     "{} {}: {}",
                     record_word(q.record),
-                    entry::show_time(q.at),
+                    entry::show_time(q.at, view.zone),
                     q.reason
                 )
             }),

@@ -100,7 +100,7 @@ pub(super) fn era(v: &UnitView, sys: UnitSystem) -> Vec<KeyVal> {
     match h.eras.last() {
         None => out.push(kv("Era", "no checks yet")),
         Some(e) => {
-            out.push(kv("Era since", crate::gui::fmt::date(e.start)));
+            out.push(kv("Era since", crate::gui::fmt::date(e.start, v.zone)));
             out.push(kv("Started by", e.started_by.as_str()));
             out.push(kv("Eras so far", h.eras.len().to_string()));
         }
@@ -148,14 +148,14 @@ pub(super) fn era(v: &UnitView, sys: UnitSystem) -> Vec<KeyVal> {
                     "Checks dated",
                     format!(
                         "{} to {}",
-                        crate::gui::fmt::date(*from),
-                        crate::gui::fmt::date(*to)
+                        crate::gui::fmt::date(*from, v.zone),
+                        crate::gui::fmt::date(*to, v.zone)
                     ),
                 ),
             ],
             BaselineSource::Manual { by, at } => vec![(
                 "Entered by hand",
-                format!("{by}, {}", crate::gui::fmt::date(*at)),
+                format!("{by}, {}", crate::gui::fmt::date(*at, v.zone)),
             )],
         };
         let manual = matches!(b.source, BaselineSource::Manual { .. });

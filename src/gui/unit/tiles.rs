@@ -1,6 +1,7 @@
 //! Unit page tiles: each indicator's value, limit, trend and state as a tile. It must not judge;
 //! the state and figures come from `app`.
 
+use crate::app::local_time::Zone;
 use crate::app::vocab::{Dim, Direction};
 use crate::app::vocab::{NotJudged, State, Tile};
 use crate::gui::fmt::{dim_text, slope_text, state_num};
@@ -23,7 +24,7 @@ fn limit_text(t: &Tile, sys: UnitSystem) -> String {
     }
 }
 
-fn tile(t: &Tile, sys: UnitSystem, not_judged: &[NotJudged]) -> TileData {
+fn tile(t: &Tile, sys: UnitSystem, not_judged: &[NotJudged], zone: Zone) -> TileData {
     let waiting = not_judged.iter().find(|n| n.key == t.key);
     let (value, small) = match (&t.text, t.value) {
         (Some(text), _) => (text.clone(), text.chars().count() > 10),
@@ -70,7 +71,7 @@ fn tile(t: &Tile, sys: UnitSystem, not_judged: &[NotJudged]) -> TileData {
                     } else {
                         "watch"
                     },
-                    crate::gui::fmt::date(f.date)
+                    crate::gui::fmt::date(f.date, zone)
                 );
             }
             (arrow.to_string(), text)
@@ -88,12 +89,17 @@ fn tile(t: &Tile, sys: UnitSystem, not_judged: &[NotJudged]) -> TileData {
     }
 }
 
-pub(super) fn tile_rows(tiles: &[Tile], sys: UnitSystem, not_judged: &[NotJudged]) -> Vec<TileRow> {
+pub(super) fn tile_rows(
+    tiles: &[Tile],
+    sys: UnitSystem,
+    not_judged: &[NotJudged],
+    zone: Zone,
+) -> Vec<TileRow> {
     // Three to a row; the last row is padded with blank tiles so all tiles are one width.
     tiles
         .chunks(3)
         .map(|c| {
-            let mut row: Vec<TileData> = c.iter().map(|t| tile(t, sys, not_judged)).collect();
+            let mut row: Vec<TileData> = c.iter().map(|t| tile(t, sys, not_judged, zone)).collect();
             row.resize(3, TileData::default());
             TileRow { tiles: model(row) }
         })
