@@ -887,3 +887,108 @@ fn a_new_york_shop_reads_and_shows_new_york_time_and_handles_the_clock_changes()
         "the nearest, in New York time: {e}"
     );
 }
+
+#[test]
+fn history_lists_a_units_corrections_and_deletions_with_who_why_and_old_to_new() {
+    crate::backends::on_each_backend(history_on_one_backend);
+}
+
+fn history_on_one_backend() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let db = &shop_name("shop.sqlite");
+    let path = if db.starts_with("postgres") {
+        std::path::PathBuf::from(db)
+    } else {
+        d.join(db)
+    };
+    ok(d, &["--db", db, "demo"]);
+    let out = ok(d, &["--db", db, "history", "SH-04-A"]);
+    assert!(out.contains("times in Europe/Berlin"), "{out}");
+    assert!(out.contains("No reading or record of this unit"), "{out}");
+
+    // A confirmation (a change of the stored reading) from the command line.
+    let checks = ok(d, &["--db", db, "export", "checks"]);
+    let at = checks
+        .lines()
+        .find(|l| l.starts_with("SH-04-A,"))
+        .unwrap()
+        .split(',')
+        .nth(1)
+        .unwrap()
+        .to_string();
+    ok(
+        d,
+        &[
+            "--db",
+            db,
+            "confirm",
+            "SH-04-A",
+            "--at",
+            &at,
+            "--by",
+            "R. Quennell",
+            "--note",
+            "cold",
+        ],
+    );
+    // A deletion, as the unit page makes it.
+    {
+        let shop = sumpbook::app::shop::Shop::open_for_writing(&path).unwrap();
+        let unit = shop.store().unit_by_tag("SH-04-A").unwrap().unwrap();
+        let last = shop
+            .store()
+            .checks_for_unit(unit.id, None)
+            .unwrap()
+            .pop()
+            .unwrap();
+        sumpbook::app::entry::delete_reading(
+            &shop,
+            sumpbook::app::entry::Reading::Check,
+            last.id,
+            "AK",
+            "typed on the wrong unit",
+        )
+        .unwrap();
+    }
+    let out = ok(d, &["--db", db, "history", "SH-04-A"]);
+    let lines: Vec<&str> = out.lines().collect();
+    let confirmed = lines
+        .iter()
+        .position(|l| l.contains("changed by R. Quennell: reading confirmed as measured: cold"))
+        .unwrap_or_else(|| panic!("{out}"));
+    assert!(lines[confirmed].contains("check of "), "{out}");
+    assert!(
+        lines[confirmed + 1..]
+            .iter()
+            .any(|l| l.trim() == "confirmed_by: — → R. Quennell"),
+        "{out}"
+    );
+    let deleted = lines
+        .iter()
+        .position(|l| l.contains("DELETED by AK: typed on the wrong unit"))
+        .unwrap_or_else(|| panic!("{out}"));
+    assert!(deleted > confirmed, "oldest first: {out}");
+    assert!(
+        lines[deleted + 1..]
+            .iter()
+            .any(|l| l.trim().starts_with("reservoir_temp_c: ")),
+        "{out}"
+    );
+
+    // JSON: UTC times and the shop's, every field old → new.
+    let v: serde_json::Value =
+        serde_json::from_str(&ok(d, &["--db", db, "history", "SH-04-A", "--json"])).unwrap();
+    assert_eq!(v["unit"], "SH-04-A");
+    assert_eq!(v["time_zone"], "Europe/Berlin");
+    let edits = v["edits"].as_array().unwrap();
+    assert_eq!(edits.len(), 2);
+    assert_eq!(edits[0]["action"], "changed");
+    assert_eq!(edits[0]["record"], "check");
+    assert_eq!(edits[1]["action"], "deleted");
+    assert!(edits[1]["at"].as_str().unwrap().ends_with('Z'));
+    // Another unit's trail holds none of it; an unknown unit is refused.
+    let other = ok(d, &["--db", db, "history", "PB-03-A"]);
+    assert!(other.contains("No reading or record"), "{other}");
+    refused(d, &["--db", db, "history", "XX-99"], "no unit `XX-99`");
+}

@@ -1181,3 +1181,59 @@ fn a_new_york_shop_chosen_from_the_list_reads_and_shows_new_york_time() {
     let first = a.get_rows().row_data(0).unwrap().row_data(0).unwrap().text;
     assert_eq!(first.as_str(), "2026-12-01 08:00");
 }
+
+#[test]
+fn the_edits_tab_shows_who_changed_or_deleted_what_and_corrected_rows_are_marked() {
+    let f = open_demo();
+    let s = shop(&f.path);
+    let unit_id = s.store().units().unwrap()[0].id;
+    let checks = s.store().checks_for_unit(unit_id, None).unwrap();
+    let (newest, older) = (checks[checks.len() - 1].id, checks[checks.len() - 2].id);
+    // A correction of the second newest check, made elsewhere.
+    let which = sumpbook::app::entry::Reading::Check;
+    let fields = sumpbook::app::entry::reading_fields(&s, which, older).unwrap();
+    let mut entered = sumpbook::app::entry::Entered::from_fields(&fields);
+    entered.set("note", "gauge re-read");
+    sumpbook::app::entry::edit_reading(&s, which, older, &entered, "P. Other", "typo").unwrap();
+
+    // The newest check deleted on the unit page, with who and why.
+    f.app.open_unit(unit_id);
+    let a = f.app.window().global::<sumpbook::gui::ui::UnitAdapter>();
+    a.set_tab(2);
+    let _ = labels_starting(&f.app, "");
+    a.set_current_row(0);
+    a.invoke_select_row(0);
+    let _ = labels_starting(&f.app, "");
+    field(&f.app, "Changed by").set_accessible_value("R. Engineer");
+    field(&f.app, "Reason for the change").set_accessible_value("typed on the wrong unit");
+    button(&f.app, "Delete reading").invoke_accessible_default_action();
+    assert!(shop(&f.path).store().check(newest).unwrap().is_none());
+
+    // The history marks the corrected check (now the newest row) in its last column.
+    use slint::Model;
+    let rows = a.get_rows();
+    let row = rows.row_data(0).unwrap();
+    let last = row.row_data(row.row_count() - 1).unwrap().text;
+    assert_eq!(last.as_str(), "corrected");
+    let next = rows.row_data(1).unwrap();
+    assert_eq!(
+        next.row_data(next.row_count() - 1).unwrap().text.as_str(),
+        ""
+    );
+
+    // The Edits tab lists both, oldest first, with the fields old → new.
+    a.set_tab(3);
+    let edits: Vec<String> = a.get_edits().iter().map(|e| e.to_string()).collect();
+    assert_eq!(edits.len(), 2, "{edits:?}");
+    assert!(edits[0].contains("changed by P. Other: typo"), "{edits:?}");
+    assert!(edits[0].contains("note: — → gauge re-read"), "{edits:?}");
+    assert!(
+        edits[1].contains("DELETED by R. Engineer: typed on the wrong unit"),
+        "{edits:?}"
+    );
+    let shown: Vec<String> = ElementHandle::find_by_accessible_label(f.app.window(), "edit")
+        .filter_map(|e| e.accessible_value())
+        .map(|v| v.to_string())
+        .collect();
+    assert_eq!(shown.len(), 2, "both on screen: {shown:?}");
+}

@@ -5,6 +5,7 @@
 pub mod bench_shop;
 pub mod calc;
 pub mod confirm;
+pub mod edit_trail;
 pub mod entry;
 pub mod entry_check;
 pub mod figures;

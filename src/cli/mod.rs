@@ -12,6 +12,7 @@ pub mod calc;
 pub mod confirm;
 pub mod data;
 pub mod entry;
+pub mod history;
 pub mod printable;
 pub mod report;
 pub mod settings;
@@ -135,6 +136,8 @@ pub enum Command {
     LogCheck(entry::LogCheckArgs),
     /// Confirm a questioned reading as measured (or --lift a confirmation), by unit and time.
     Confirm(confirm::ConfirmArgs),
+    /// A unit's edit trail: every correction and deletion, with when, who, why and old → new.
+    History(history::HistoryArgs),
     /// Show the shop's settings (name, units of measure, time zone), or set them.
     Settings(settings::SettingsArgs),
     /// List the limits in force (shop or one unit), or set and reset them.
@@ -211,6 +214,7 @@ fn run_command(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
         Some(Command::Confirm(args)) => {
             confirm::run(&data::open_shop_for_writing(db.as_deref())?, args, out)
         }
+        Some(Command::History(args)) => history::run(&data::open_shop(db.as_deref())?, args, out),
         Some(Command::Settings(args)) => {
             let shop = if args.changes() {
                 data::open_shop_for_writing(db.as_deref())?

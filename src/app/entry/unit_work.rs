@@ -24,6 +24,8 @@ pub struct UnitView {
     pub system: UnitSystem,
     /// The shop's time zone, which the page shows times in.
     pub zone: crate::app::local_time::Zone,
+    /// Every correction and deletion of the unit's records.
+    pub edits: crate::app::edit_trail::UnitEdits,
 }
 
 pub fn unit_view(shop: &Shop, unit_id: Id, now: DateTime<Utc>) -> Result<UnitView, AppError> {
@@ -31,12 +33,14 @@ pub fn unit_view(shop: &Shop, unit_id: Id, now: DateTime<Utc>) -> Result<UnitVie
     let history = history_of(store, unit_id)?;
     let status = unit_status_in(store, &history.unit.tag, Some(now))?;
     let shop_settings = settings(store)?;
+    let edits = crate::app::edit_trail::unit_edits_in(store, &history.unit.tag)?;
     Ok(UnitView {
         status,
         history,
         fluids: store.fluids().map_err(store_error)?,
         system: shop_settings.unit_system,
         zone: crate::app::local_time::Zone::of_setting(&shop_settings.time_zone),
+        edits,
     })
 }
 

@@ -77,6 +77,15 @@ impl Model for HistoryRows {
     }
 }
 
+/// The mark of a row whose reading was corrected (the Edits tab says how).
+fn edited(corrected: &[i64], id: i64) -> &'static str {
+    if corrected.binary_search(&id).is_ok() {
+        "corrected"
+    } else {
+        ""
+    }
+}
+
 fn num(x: Option<f64>, d: usize) -> String {
     x.map(|v| format!("{v:.d$}")).unwrap_or_default()
 }
@@ -97,7 +106,9 @@ fn check_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
         col("Hours", 98.0),
         col("By", 98.0),
         col("Note", 238.0),
+        col("Edited", 98.0),
     ];
+    let corrected = v.edits.corrected("check");
     let ids: Vec<i64> = v.history.checks.iter().rev().map(|c| c.id).collect();
     // The engine's figures of each check, found by id once rather than per row shown.
     let points: HashMap<i64, usize> = v
@@ -136,6 +147,7 @@ fn check_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
             cell(num(c.hours, 0)),
             cell(&c.by),
             cell(&c.note),
+            cell(edited(&corrected, c.id)),
         ]
     };
     (cols, ids, Box::new(make))
@@ -155,7 +167,9 @@ fn sample_table(v: &Rc<UnitView>) -> (Vec<TableColumn>, Vec<i64>, RowMaker) {
         col("Acid", 88.0),
         col("Lab ref", 128.0),
         col("Note", 238.0),
+        col("Edited", 98.0),
     ];
+    let corrected = v.edits.corrected("sample");
     let ids: Vec<i64> = v.history.samples.iter().rev().map(|c| c.id).collect();
     let points: HashMap<i64, usize> = v
         .status
@@ -193,6 +207,7 @@ fn sample_table(v: &Rc<UnitView>) -> (Vec<TableColumn>, Vec<i64>, RowMaker) {
             cell(num(smp.acid_mgkoh_g, 2)),
             cell(&smp.lab_ref),
             cell(&smp.note),
+            cell(edited(&corrected, smp.id)),
         ]
     };
     (cols, ids, Box::new(make))
@@ -207,7 +222,9 @@ fn event_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
         col("Fluid", 168.0),
         col("By", 98.0),
         col("Note", 318.0),
+        col("Edited", 98.0),
     ];
+    let corrected = v.edits.corrected("event");
     let ids: Vec<i64> = v.history.events.iter().rev().map(|c| c.id).collect();
     let v = v.clone();
     let make = move |i: usize| {
@@ -227,6 +244,7 @@ fn event_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
             cell(opt(fluid)),
             cell(&e.by),
             cell(&e.note),
+            cell(edited(&corrected, e.id)),
         ]
     };
     (cols, ids, Box::new(make))

@@ -206,6 +206,10 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 )
             }),
     ));
+    a.set_edits(strings(
+        view.edits.edits.iter().map(|e| e.lines().join("\n")),
+    ));
+    a.set_time_note(format!("Times in {}.", view.zone.name()).into());
     let (rows, hint) = chart_rows(&view, sys);
     a.set_chart_rows(model(rows));
     a.set_chart_hint(s(hint));

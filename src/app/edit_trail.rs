@@ -1,0 +1,283 @@
+//! The edit trail of one unit: every correction and deletion of its readings, work records and
+//! register entry, with when (in the shop's time), who and why, and each changed field as old →
+//! new. Read from the store's edit history (written by the schema's triggers); it must not write,
+//! print or know the screens.
+
+use chrono::{DateTime, Utc};
+use serde::Serialize;
+use serde_json::{Map, Value};
+
+use super::local_time::Zone;
+use super::shop::{zone_of, Shop};
+use super::status::store_error;
+use super::AppError;
+use crate::model::{EditRecord, Id};
+use crate::store::Store;
+
+/// What happened to a record.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum EditAction {
+    Changed,
+    Deleted,
+}
+
+/// One field's value before and after an edit, as stored (the column name says its unit).
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct FieldChange {
+    pub field: String,
+    pub old: String,
+    /// `None` when the record was deleted.
+    pub new: Option<String>,
+}
+
+/// One edit of one record.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Edit {
+    pub edit_id: Id,
+    /// When the edit was made (UTC in JSON).
+    pub at: DateTime<Utc>,
+    /// The same instant in the shop's time, as shown.
+    pub at_shown: String,
+    pub by: String,
+    pub reason: String,
+    /// `check`, `sample`, `event` or `unit`.
+    pub record: String,
+    pub record_id: Id,
+    /// The record in words: `check of 2026-12-01 08:00 EST`.
+    pub record_text: String,
+    pub action: EditAction,
+    /// Every field that differs (a deletion lists the fields the record held).
+    pub changes: Vec<FieldChange>,
+}
+
+/// A unit's edit trail, oldest first.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct UnitEdits {
+    pub unit: String,
+    pub time_zone: String,
+    pub edits: Vec<Edit>,
+}
+
+impl UnitEdits {
+    /// The ids of the readings of `record` (`check`, `sample`, `event`) that were corrected and
+    /// are still stored, so a table can mark them.
+    pub fn corrected(&self, record: &str) -> Vec<Id> {
+        let mut ids: Vec<Id> = self
+            .edits
+            .iter()
+            .filter(|e| e.record == record && e.action == EditAction::Changed)
+            .map(|e| e.record_id)
+            .collect();
+        ids.sort_unstable();
+        ids.dedup();
+        ids
+    }
+}
+
+impl Edit {
+    /// The edit in one line of words, then one line a changed field (`field: old → new`).
+    pub fn lines(&self) -> Vec<String> {
+        let what = match self.action {
+            EditAction::Changed => "changed",
+            EditAction::Deleted => "DELETED",
+        };
+        let why = if self.reason.trim().is_empty() {
+            "no reason given"
+        } else {
+            self.reason.as_str()
+        };
+        let mut out = vec![format!(
+            "{}  {}  {what} by {}: {why}",
+            self.at_shown, self.record_text, self.by
+        )];
+        out.extend(self.changes.iter().map(|c| match &c.new {
+            Some(new) => format!("    {}: {} → {new}", c.field, c.old),
+            None => format!("    {}: {}", c.field, c.old),
+        }));
+        out
+    }
+}
+
+/// The edit trail of the unit tagged `tag`.
+pub fn unit_edits(shop: &Shop, tag: &str) -> Result<UnitEdits, AppError> {
+    unit_edits_in(shop.store(), tag)
+}
+
+/// [`unit_edits`] on a store.
+pub fn unit_edits_in(store: &Store, tag: &str) -> Result<UnitEdits, AppError> {
+    let tag = tag.trim();
+    let unit = store
+        .unit_by_tag(tag)
+        .map_err(store_error)?
+        .ok_or_else(|| AppError::BadInput(format!("no unit `{tag}` in this shop")))?;
+    let zone = zone_of(store);
+    let log = store.edit_log().map_err(store_error)?;
+    let edits = log
+        .iter()
+        .filter_map(|r| edit_of_unit(r, unit.id, zone))
+        .collect();
+    Ok(UnitEdits {
+        unit: unit.tag,
+        time_zone: zone.name().to_string(),
+        edits,
+    })
+}
+
+/// The record kind of a table holding a unit's records, and the column of its time.
+fn record_of(table: &str) -> Option<(&'static str, Option<&'static str>)> {
+    match table {
+        "checks" => Some(("check", Some("taken_at"))),
+        "samples" => Some(("sample", Some("sampled_at"))),
+        "events" => Some(("event", Some("done_at"))),
+        "units" => Some(("unit", None)),
+        _ => None,
+    }
+}
+
+/// `r` as an edit of unit `unit_id`'s records, or `None` when it is another unit's or not a
+/// unit's record at all.
+fn edit_of_unit(r: &EditRecord, unit_id: Id, zone: Zone) -> Option<Edit> {
+    let (record, time_col) = record_of(&r.table)?;
+    let old = parse_object(&r.old_value);
+    let new = r.new_value.as_deref().map(parse_object);
+    let owner = match record {
+        "unit" => r.row_id,
+        _ => old.get("unit_id").and_then(Value::as_i64)?,
+    };
+    if owner != unit_id {
+        return None;
+    }
+    let when = time_col
+        .and_then(|c| old.get(c))
+        .and_then(Value::as_str)
+        .and_then(|t| crate::store::parse_time(t).ok());
+    let record_text = match (record, when) {
+        ("event", Some(t)) => format!(
+            "{} of {}",
+            old.get("kind").and_then(Value::as_str).unwrap_or("event"),
+            zone.show_marked(t)
+        ),
+        (_, Some(t)) => format!("{record} of {}", zone.show_marked(t)),
+        _ => format!(
+            "unit {}",
+            old.get("tag").and_then(Value::as_str).unwrap_or_default()
+        ),
+    };
+    let (action, changes) = match &new {
+        Some(n) => (EditAction::Changed, changed_fields(&old, Some(n))),
+        None => (EditAction::Deleted, changed_fields(&old, None)),
+    };
+    Some(Edit {
+        edit_id: r.id,
+        at: r.at,
+        at_shown: zone.show_marked(r.at),
+        by: r.by.clone(),
+        reason: r.reason.clone(),
+        record: record.to_string(),
+        record_id: r.row_id,
+        record_text,
+        action,
+        changes,
+    })
+}
+
+fn parse_object(text: &str) -> Map<String, Value> {
+    match serde_json::from_str::<Value>(text) {
+        Ok(Value::Object(m)) => m,
+        _ => Map::new(),
+    }
+}
+
+/// The fields of `old` that `new` holds otherwise (all that held a value when `new` is `None`),
+/// by field name; the record's own and its unit's ids are left out.
+fn changed_fields(old: &Map<String, Value>, new: Option<&Map<String, Value>>) -> Vec<FieldChange> {
+    old.iter()
+        .filter(|(k, _)| !matches!(k.as_str(), "id" | "unit_id"))
+        .filter_map(|(k, v)| match new {
+            Some(n) => {
+                let after = n.get(k).unwrap_or(&Value::Null);
+                (after != v).then(|| FieldChange {
+                    field: k.clone(),
+                    old: value_text(v),
+                    new: Some(value_text(after)),
+                })
+            }
+            None => (!v.is_null()).then(|| FieldChange {
+                field: k.clone(),
+                old: value_text(v),
+                new: None,
+            }),
+        })
+        .collect()
+}
+
+/// A stored value as text: `—` for none, strings without quotes.
+fn value_text(v: &Value) -> String {
+    match v {
+        Value::Null => "—".into(),
+        Value::String(s) if s.is_empty() => "—".into(),
+        Value::String(s) => s.clone(),
+        other => other.to_string(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn record(table: &str, row_id: Id, old: &str, new: Option<&str>) -> EditRecord {
+        EditRecord {
+            id: 7,
+            table: table.into(),
+            row_id,
+            action: if new.is_some() { "update" } else { "delete" }.into(),
+            old_value: old.into(),
+            new_value: new.map(str::to_string),
+            by: "AK".into(),
+            reason: "typo".into(),
+            at: "2026-12-01T14:00:00Z".parse().unwrap(),
+        }
+    }
+
+    #[test]
+    fn a_correction_lists_only_the_fields_that_changed_with_the_shops_time() {
+        let old = r#"{"id":5,"unit_id":2,"taken_at":"2026-12-01T13:00:00Z","pressure_bar":172.0,"note":""}"#;
+        let new = r#"{"id":5,"unit_id":2,"taken_at":"2026-12-01T13:00:00Z","pressure_bar":17.2,"note":"gauge re-read"}"#;
+        // America/New_York keeps EST (UTC-5) in December: US Energy Policy Act of 2005.
+        let ny = Zone::named("America/New_York").unwrap();
+        let e = edit_of_unit(&record("checks", 5, old, Some(new)), 2, ny).unwrap();
+        assert_eq!(e.action, EditAction::Changed);
+        assert_eq!(e.record_text, "check of 2026-12-01 08:00 EST");
+        assert_eq!(e.at_shown, "2026-12-01 09:00 EST");
+        assert_eq!(
+            e.changes,
+            vec![
+                FieldChange {
+                    field: "note".into(),
+                    old: "—".into(),
+                    new: Some("gauge re-read".into())
+                },
+                FieldChange {
+                    field: "pressure_bar".into(),
+                    old: "172.0".into(),
+                    new: Some("17.2".into())
+                },
+            ]
+        );
+        // Another unit's record is not this unit's trail.
+        assert!(edit_of_unit(&record("checks", 5, old, Some(new)), 3, ny).is_none());
+        assert!(edit_of_unit(&record("fluids", 5, old, Some(new)), 2, ny).is_none());
+    }
+
+    #[test]
+    fn a_deletion_lists_what_the_record_held() {
+        let old = r#"{"id":9,"unit_id":2,"done_at":"2026-12-01T13:00:00Z","kind":"top_up","volume_l":null}"#;
+        let e = edit_of_unit(&record("events", 9, old, None), 2, Zone::default()).unwrap();
+        assert_eq!(e.action, EditAction::Deleted);
+        assert_eq!(e.record_text, "top_up of 2026-12-01 13:00 UTC");
+        let fields: Vec<&str> = e.changes.iter().map(|c| c.field.as_str()).collect();
+        assert_eq!(fields, ["done_at", "kind"]);
+        assert!(e.changes.iter().all(|c| c.new.is_none()));
+    }
+}
