@@ -15,12 +15,17 @@
 //! - `outfile`: output files written whole beside a user's path, never through a link.
 //! - `sim`: the detection benchmark's simulated shop and its scoring (pure).
 //! - `app`: one function per user action, the only door of the faces (`entry/` the form rules,
-//!   `import` the one import path, `report/` the printed report, `vocab` the result types).
+//!   `import` the one import path, `report/` the printed report, `view/` the presentation
+//!   layer every face builds its output from, `vocab` the result types).
 //! - `cli`: the command line (`status/` one file per command).
 //! - `gui`: the desktop app's screen adapters (`unit/` the unit page).
 //!
 //! The path of one CSV row: `cli::data` → `Shop::import` (`app::import`) → `exchange::csv_in`
 //! (header, cells into SI with bounds, records) → `store::bulk` in one transaction.
+//!
+//! The path of one figure: `store::history` → `health::evaluate` (SI) → `app::status` (one
+//! evaluation) → `app::view` (the words and the figure in the shop's units, once) → the board
+//! (`gui::fleet`), `status` and its JSON (`cli::status`) and the PDF (`app::report` → `report`).
 
 pub mod app;
 pub mod cli;

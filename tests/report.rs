@@ -898,13 +898,14 @@ fn a_report_to_a_device_writes_into_it_and_leaves_it_a_device() {
     assert!(kind.is_char_device(), "/dev/null was replaced");
 }
 
-/// Every flag reads with one figure everywhere: the fleet board's text (`board_figures`, what
+/// Every flag reads with one figure everywhere: the fleet board's text (`view::fleet_line`, what
 /// the app's board row shows), `status --json` (`figure`) and the PDF report (the fleet row and
 /// the exceptions table, and the unit's own page) — for every unit of the demo.
 #[test]
 fn each_flag_shows_the_same_figure_on_the_board_in_status_json_and_in_the_report() {
     use sumpbook::app::shop::Shop;
-    use sumpbook::app::status::{board_figures, fleet_status_in, Detail};
+    use sumpbook::app::status::{fleet_status_in, Detail};
+    use sumpbook::app::view::fleet_line;
     let dir = tempfile::tempdir().unwrap();
     let db = demo_shop(dir.path());
     let json: serde_json::Value = serde_json::from_str(&ok(
@@ -954,7 +955,7 @@ fn each_flag_shows_the_same_figure_on_the_board_in_status_json_and_in_the_report
         let tag = u["unit"].as_str().unwrap();
         let b = board.units.iter().find(|x| x.unit == tag).unwrap();
         assert_eq!(b.unit, board.units[k].unit, "the same order worst first");
-        let row = board_figures(b, board.unit_system);
+        let row = fleet_line(b, board.unit_system).board;
         let own = page_text(fleet_pages + 1 + k);
         assert!(own.starts_with(tag), "page of {tag}");
         for (i, f) in u["flags"].as_array().unwrap().iter().enumerate() {

@@ -210,35 +210,20 @@ mod tests {
     }
 
     #[test]
+    fn chart_labels_keep_three_figures() {
+        // Rounding to significant figures, by hand (common practice, no published source).
+        assert_eq!(significant(130.6, 3, 2), "131");
+        assert_eq!(significant(10.0, 3, 2), "10");
+        assert_eq!(significant(96.24, 3, 2), "96.2");
+        assert_eq!(significant(3.51, 3, 2), "3.51");
+        assert_eq!(significant(0.0, 3, 2), "0");
+    }
+
+    #[test]
     fn flows_read_in_the_shop_units() {
         // 1 US gal = 3.785411784 L exactly (NIST SP 811): 37.85411784 L/min = 10 GPM.
         let si = 37.854_117_84 / 60_000.0;
         assert!((value(Dim::Flow, si, UnitSystem::Us) - 10.0).abs() < 1e-9);
         assert_eq!(unit(Dim::Flow, UnitSystem::Us), "GPM");
-    }
-}
-
-/// When planned work falls due, in the same words on every face: "3 days late", "1 day
-/// late", "due today", "in 1 day", "in 12 days".
-pub fn due_words(days_overdue: i64) -> String {
-    let days = |n: i64| format!("{n} day{}", if n == 1 { "" } else { "s" });
-    match days_overdue {
-        d if d > 0 => format!("{} late", days(d)),
-        0 => "due today".to_string(),
-        d => format!("in {}", days(-d)),
-    }
-}
-
-#[cfg(test)]
-mod due_words_tests {
-    use super::due_words;
-
-    #[test]
-    fn due_words_count_days_in_plain_english() {
-        assert_eq!(due_words(3), "3 days late");
-        assert_eq!(due_words(1), "1 day late");
-        assert_eq!(due_words(0), "due today");
-        assert_eq!(due_words(-1), "in 1 day");
-        assert_eq!(due_words(-12), "in 12 days");
     }
 }

@@ -16,6 +16,7 @@ pub mod rights;
 pub mod shop;
 pub mod sim;
 pub mod status;
+pub mod view;
 pub mod vocab;
 pub mod work;
 

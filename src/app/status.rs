@@ -38,6 +38,22 @@ pub struct StateCounts {
     pub act: usize,
 }
 
+impl StateCounts {
+    /// The counts of these states.
+    pub fn of(states: impl IntoIterator<Item = State>) -> Self {
+        let mut c = StateCounts::default();
+        for s in states {
+            match s {
+                State::Steady => c.steady += 1,
+                State::NotJudged => c.not_judged += 1,
+                State::Watch => c.watch += 1,
+                State::Act => c.act += 1,
+            }
+        }
+        c
+    }
+}
+
 /// One unit's identity and findings.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct UnitStatus {
@@ -131,15 +147,7 @@ pub fn fleet_status_in(
     let histories = store.unit_histories(Some(when)).map_err(store_error)?;
     let mut units = evaluate_all(&histories, &data, when, detail);
     sort_worst_first(&mut units);
-    let mut counts = StateCounts::default();
-    for u in &units {
-        match u.state {
-            State::Steady => counts.steady += 1,
-            State::NotJudged => counts.not_judged += 1,
-            State::Watch => counts.watch += 1,
-            State::Act => counts.act += 1,
-        }
-    }
+    let counts = StateCounts::of(units.iter().map(|u| u.state));
     Ok(FleetStatus {
         shop_name: data.settings.shop_name.clone(),
         unit_system: data.settings.unit_system,
@@ -230,58 +238,6 @@ pub fn unit_status_of(
     at: Option<DateTime<Utc>>,
 ) -> Result<UnitStatus, AppError> {
     unit_status_in(shop.store(), tag, at)
-}
-
-// ---------------------------------------------------------------------------------------------
-/// The one or two figures that explain a unit's state on the fleet board: its worst flag's
-/// figure (the same text as the report's and `status --json`'s), what keeps it from being
-/// judged, or when steady its key indicators.
-pub fn board_figures(u: &UnitStatus, sys: UnitSystem) -> String {
-    if let Some(f) = u.health.flags.first() {
-        let mut t = super::figures::flag_figure(f, sys);
-        let more = u.health.flags.len() - 1;
-        if more > 0 {
-            t.push_str(&format!(
-                " (+{more} more flag{})",
-                if more == 1 { "" } else { "s" }
-            ));
-        }
-        return t;
-    }
-    if u.state == State::NotJudged {
-        if let Some(n) = u.health.not_judged.iter().find(|n| n.expected) {
-            let more = u.health.not_judged.iter().filter(|n| n.expected).count() - 1;
-            let mut t = format!("{}: {} — judged {}", n.label, n.missing, n.until);
-            if more > 0 {
-                t.push_str(&format!(" (+{more} more)"));
-            }
-            return t;
-        }
-    }
-    let i = &u.health.indicators;
-    let mut parts = Vec::new();
-    if let Some(l) = i.lost_flow_pct {
-        parts.push(format!("lost flow {l:.1} %"));
-    }
-    if let Some(h) = i.heat_rise_drift_k {
-        parts.push(format!(
-            "heat rise {} on baseline",
-            super::figures::temp_diff(h, sys, true)
-        ));
-    } else if let Some(h) = i.heat_rise_k {
-        parts.push(format!(
-            "heat rise {}",
-            super::figures::temp_diff(h, sys, false)
-        ));
-    }
-    if let Some(c) = &i.iso4406 {
-        parts.push(format!("ISO {c}"));
-    }
-    if parts.is_empty() {
-        "no readings yet".into()
-    } else {
-        parts.join(" · ")
-    }
 }
 
 // The fixed JSON of `status --json`.

@@ -15,6 +15,9 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use slint::{Image, Rgb8Pixel, SharedPixelBuffer};
 
+use crate::app::view::ChartSpec;
+use crate::app::vocab::State;
+
 /// The font shipped in `assets/fonts` (DejaVu Sans; licence beside it).
 pub const FONT_REGULAR: &[u8] = include_bytes!("../../assets/fonts/DejaVuSans.ttf");
 pub const FONT_BOLD: &[u8] = include_bytes!("../../assets/fonts/DejaVuSans-Bold.ttf");
@@ -33,35 +36,48 @@ const LINES: [RGBColor; 3] = [
     RGBColor(0x8c, 0x5e, 0x3c),
 ];
 
-/// One line of readings: x in days since the Unix epoch, y in the display unit.
-#[derive(Clone, Debug, Default)]
-pub struct Line {
-    pub label: String,
-    pub points: Vec<(f64, f64)>,
+/// A chart as the application's presentation layer specifies it (`app::view::ChartSpec`),
+/// with times as day numbers for the x axis.
+struct ChartInput<'a> {
+    spec: &'a ChartSpec,
+    lines: Vec<(&'a str, Vec<(f64, f64)>)>,
+    markers: Vec<(f64, &'a str)>,
+    watch: Vec<(f64, &'a str)>,
+    act: Vec<(f64, &'a str)>,
+    targets: Vec<(f64, &'a str)>,
 }
 
-/// A vertical marker for an event (fluid change, filter change, rebuild, ...).
-#[derive(Clone, Debug)]
-pub struct Marker {
-    pub at: f64,
-    pub label: String,
-}
-
-/// Everything one chart shows, in display units.
-#[derive(Clone, Debug, Default)]
-pub struct ChartInput {
-    pub title: String,
-    /// Unit of the y axis, e.g. `L/min`.
-    pub unit: String,
-    pub lines: Vec<Line>,
-    pub baseline: Option<f64>,
-    /// Half-width of the baseline band (one spread either side).
-    pub spread: Option<f64>,
-    pub watch: Vec<f64>,
-    pub act: Vec<f64>,
-    pub markers: Vec<Marker>,
-    /// Shown when there is nothing to draw.
-    pub empty_text: String,
+impl<'a> ChartInput<'a> {
+    fn of(spec: &'a ChartSpec) -> Self {
+        let level = |l: Option<State>| {
+            spec.limits
+                .iter()
+                .filter(move |x| x.level == l)
+                .map(|x| (x.value, x.label.as_str()))
+                .collect()
+        };
+        ChartInput {
+            spec,
+            lines: spec
+                .series
+                .iter()
+                .map(|s| {
+                    (
+                        s.label.as_str(),
+                        s.points.iter().map(|p| (day_number(p.0), p.1)).collect(),
+                    )
+                })
+                .collect(),
+            markers: spec
+                .events
+                .iter()
+                .map(|e| (day_number(e.at), e.what))
+                .collect(),
+            watch: level(Some(State::Watch)),
+            act: level(Some(State::Act)),
+            targets: level(None),
+        }
+    }
 }
 
 #[derive(Debug, thiserror::Error)]
@@ -96,8 +112,10 @@ fn date_label(day: f64) -> String {
 }
 
 /// Draws the chart at `w`×`h` pixels.
-pub fn render(input: &ChartInput, w: u32, h: u32) -> Result<Image, ChartError> {
+pub fn render(spec: &ChartSpec, w: u32, h: u32) -> Result<Image, ChartError> {
     register_fonts();
+    let input = ChartInput::of(spec);
+    let input = &input;
     let mut buf = SharedPixelBuffer::<Rgb8Pixel>::new(w, h);
     {
         let backend = BitMapBackend::with_buffer(buf.make_mut_bytes(), (w, h));
@@ -108,12 +126,12 @@ pub fn render(input: &ChartInput, w: u32, h: u32) -> Result<Image, ChartError> {
     Ok(Image::from_rgb8(buf))
 }
 
-fn x_range(input: &ChartInput) -> Option<(f64, f64)> {
+fn x_range(input: &ChartInput<'_>) -> Option<(f64, f64)> {
     let xs = input
         .lines
         .iter()
-        .flat_map(|l| l.points.iter().map(|p| p.0))
-        .chain(input.markers.iter().map(|m| m.at));
+        .flat_map(|l| l.1.iter().map(|p| p.0))
+        .chain(input.markers.iter().map(|m| m.0));
     let (lo, hi) = xs.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), x| {
         (a.min(x), b.max(x))
     });
@@ -124,21 +142,21 @@ fn x_range(input: &ChartInput) -> Option<(f64, f64)> {
     Some((lo - span * 0.03, lo + span * 1.03))
 }
 
-fn y_range(input: &ChartInput) -> Option<(f64, f64)> {
+fn y_range(input: &ChartInput<'_>) -> Option<(f64, f64)> {
     let mut ys: Vec<f64> = input
         .lines
         .iter()
-        .flat_map(|l| l.points.iter().map(|p| p.1))
+        .flat_map(|l| l.1.iter().map(|p| p.1))
         .collect();
     if ys.is_empty() {
         return None;
     }
-    if let Some(b) = input.baseline {
-        let s = input.spread.unwrap_or(0.0);
-        ys.extend([b - s, b + s]);
+    if let Some(b) = &input.spec.band {
+        ys.extend([b.low, b.high]);
     }
-    ys.extend(input.watch.iter().copied());
-    ys.extend(input.act.iter().copied());
+    ys.extend(input.watch.iter().map(|l| l.0));
+    ys.extend(input.act.iter().map(|l| l.0));
+    ys.extend(input.targets.iter().map(|l| l.0));
     let (lo, hi) = ys
         .iter()
         .filter(|v| v.is_finite())
@@ -158,18 +176,19 @@ fn y_range(input: &ChartInput) -> Option<(f64, f64)> {
 
 fn draw(
     root: &DrawingArea<BitMapBackend<'_>, Shift>,
-    input: &ChartInput,
+    input: &ChartInput<'_>,
 ) -> Result<(), ChartError> {
+    let spec = input.spec;
     root.fill(&WHITE).map_err(err)?;
     let title_style = ("sans-serif", 15)
         .into_font()
         .style(FontStyle::Bold)
         .color(&INK);
     let small = ("sans-serif", 11).into_font().color(&MUTED);
-    let title = if input.unit.is_empty() {
-        input.title.clone()
+    let title = if spec.unit.is_empty() {
+        spec.title.clone()
     } else {
-        format!("{} ({})", input.title, input.unit)
+        format!("{} ({})", spec.title, spec.unit)
     };
     root.draw(&Text::new(title, (10, 6), title_style))
         .map_err(err)?;
@@ -177,10 +196,10 @@ fn draw(
     let (Some((x0, x1)), Some((y0, y1))) = (x_range(input), y_range(input)) else {
         let (w, h) = root.dim_in_pixel();
         let centre = Pos::new(HPos::Center, VPos::Center);
-        let text = if input.empty_text.is_empty() {
+        let text = if spec.empty_note.is_empty() {
             "no readings yet"
         } else {
-            input.empty_text.as_str()
+            spec.empty_note.as_str()
         };
         root.draw(&Text::new(
             text.to_string(),
@@ -219,38 +238,49 @@ fn draw(
         .map_err(err)?;
 
     // Baseline band and line
-    if let Some(b) = input.baseline {
-        let s = input.spread.unwrap_or(0.0);
-        if s > 0.0 {
+    if let Some(band) = &spec.band {
+        if band.high > band.low {
             chart
                 .draw_series(std::iter::once(Rectangle::new(
-                    [(x0, b - s), (x1, b + s)],
+                    [(x0, band.low), (x1, band.high)],
                     BAND.filled(),
                 )))
                 .map_err(err)?;
         }
-        chart
-            .draw_series(DashedLineSeries::new(
-                [(x0, b), (x1, b)],
-                2,
-                3,
-                BASE.stroke_width(1),
-            ))
-            .map_err(err)?;
+        if let Some(b) = band.centre {
+            chart
+                .draw_series(DashedLineSeries::new(
+                    [(x0, b), (x1, b)],
+                    2,
+                    3,
+                    BASE.stroke_width(1),
+                ))
+                .map_err(err)?;
+        }
     }
     // Event markers
     for m in &input.markers {
         chart
             .draw_series(DashedLineSeries::new(
-                [(m.at, y0), (m.at, y1)],
+                [(m.0, y0), (m.0, y1)],
                 3,
                 3,
                 EVENT.stroke_width(1),
             ))
             .map_err(err)?;
     }
-    // Limits: watch dashed, act solid and heavier
-    for &v in &input.watch {
+    // Limits: watch dashed, act solid and heavier, targets dotted in the baseline's colour
+    for &(v, _) in &input.targets {
+        chart
+            .draw_series(DashedLineSeries::new(
+                [(x0, v), (x1, v)],
+                2,
+                4,
+                BASE.stroke_width(1),
+            ))
+            .map_err(err)?;
+    }
+    for &(v, _) in &input.watch {
         chart
             .draw_series(DashedLineSeries::new(
                 [(x0, v), (x1, v)],
@@ -260,28 +290,25 @@ fn draw(
             ))
             .map_err(err)?;
     }
-    for &v in &input.act {
+    for &(v, _) in &input.act {
         chart
             .draw_series(LineSeries::new([(x0, v), (x1, v)], ACT.stroke_width(3)))
             .map_err(err)?;
     }
     // Readings
-    for (i, line) in input.lines.iter().enumerate() {
+    for (i, (_, points)) in input.lines.iter().enumerate() {
         let c = LINES[i % LINES.len()];
         chart
-            .draw_series(LineSeries::new(
-                line.points.iter().copied(),
-                c.stroke_width(2),
-            ))
+            .draw_series(LineSeries::new(points.iter().copied(), c.stroke_width(2)))
             .map_err(err)?;
         match i % 3 {
             0 => chart
-                .draw_series(line.points.iter().map(|&p| Circle::new(p, 3, c.filled())))
+                .draw_series(points.iter().map(|&p| Circle::new(p, 3, c.filled())))
                 .map(|_| ())
                 .map_err(err)?,
             1 => chart
                 .draw_series(
-                    line.points
+                    points
                         .iter()
                         .map(|&p| TriangleMarker::new(p, 4, c.filled())),
                 )
@@ -289,7 +316,7 @@ fn draw(
                 .map_err(err)?,
             _ => {
                 chart
-                    .draw_series(line.points.iter().map(|&p| {
+                    .draw_series(points.iter().map(|&p| {
                         EmptyElement::at(p) + Rectangle::new([(-3, -3), (3, 3)], c.filled())
                     }))
                     .map(|_| ())
@@ -302,30 +329,26 @@ fn draw(
     let area = chart.plotting_area();
     let label_at = |x: f64, y: f64| area.map_coordinate(&(x, y));
     let right = Pos::new(HPos::Left, VPos::Center);
-    for &v in &input.watch {
+    for &(v, label) in &input.watch {
         let (px, py) = label_at(x1, v);
         root.draw(&Text::new(
-            format!("watch {}", axis_number(v)),
+            label.to_string(),
             (px + 4, py),
             small.clone().color(&WATCH).pos(right),
         ))
         .map_err(err)?;
     }
-    for &v in &input.act {
+    for &(v, label) in &input.act {
         let (px, py) = label_at(x1, v);
         let style = ("sans-serif", 11)
             .into_font()
             .style(FontStyle::Bold)
             .color(&ACT)
             .pos(right);
-        root.draw(&Text::new(
-            format!("ACT {}", axis_number(v)),
-            (px + 4, py),
-            style,
-        ))
-        .map_err(err)?;
+        root.draw(&Text::new(label.to_string(), (px + 4, py), style))
+            .map_err(err)?;
     }
-    if let Some(b) = input.baseline {
+    if let Some(b) = spec.band.as_ref().and_then(|b| b.centre) {
         let (px, py) = label_at(x1, b);
         root.draw(&Text::new(
             "base".to_string(),
@@ -337,14 +360,14 @@ fn draw(
     // Event labels along the top, skipping one that would run into the last drawn.
     let top = Pos::new(HPos::Left, VPos::Top);
     let mut free_from = i32::MIN;
-    for m in &input.markers {
-        let (px, py) = label_at(m.at, y1);
-        let width = m.label.chars().count() as i32 * 7;
+    for &(at, label) in &input.markers {
+        let (px, py) = label_at(at, y1);
+        let width = label.chars().count() as i32 * 7;
         if px + 2 < free_from {
             continue;
         }
         root.draw(&Text::new(
-            m.label.clone(),
+            label.to_string(),
             (px + 2, py + 2),
             small.clone().color(&EVENT).pos(top),
         ))
@@ -356,13 +379,13 @@ fn draw(
 
 fn legend(
     root: &DrawingArea<BitMapBackend<'_>, Shift>,
-    input: &ChartInput,
+    input: &ChartInput<'_>,
     y: i32,
 ) -> Result<(), ChartError> {
     let small = ("sans-serif", 11).into_font().color(&MUTED);
     let left = Pos::new(HPos::Left, VPos::Center);
     let mut x = 12;
-    for (i, line) in input.lines.iter().enumerate() {
+    for (i, (line_label, _)) in input.lines.iter().enumerate() {
         let c = LINES[i % LINES.len()];
         root.draw(&PathElement::new(
             vec![(x, y), (x + 16, y)],
@@ -383,29 +406,30 @@ fn legend(
                 ))
                 .map_err(err)?,
         }
-        let label = if line.label.is_empty() {
+        let label = if line_label.is_empty() {
             "reading".to_string()
         } else {
-            line.label.clone()
+            line_label.to_string()
         };
         let w = (label.chars().count() as i32) * 7 + 30;
         root.draw(&Text::new(label, (x + 20, y), small.clone().pos(left)))
             .map_err(err)?;
         x += w;
     }
-    if input.baseline.is_some() {
+    if let Some(band) = &input.spec.band {
         root.draw(&Rectangle::new(
             [(x, y - 5), (x + 16, y + 5)],
             BAND.filled(),
         ))
         .map_err(err)?;
+        let w = (band.label.chars().count() as i32) * 7 + 26;
         root.draw(&Text::new(
-            "baseline".to_string(),
+            band.label.clone(),
             (x + 20, y),
             small.clone().pos(left),
         ))
         .map_err(err)?;
-        x += 82;
+        x += w;
     }
     if !input.watch.is_empty() {
         root.draw(&PathElement::new(
@@ -476,23 +500,46 @@ fn axis_number(v: f64) -> String {
 mod tests {
     use super::*;
 
-    fn input() -> ChartInput {
-        ChartInput {
+    fn input() -> ChartSpec {
+        use crate::app::view::{BandSpec, EventSpec, LimitSpec, SeriesSpec};
+        let day = |d: i64| DateTime::<Utc>::from_timestamp(d * 86_400, 0).unwrap();
+        ChartSpec {
+            key: "effective_flow",
             title: "Effective flow".into(),
             unit: "L/min".into(),
-            lines: vec![Line {
+            series: vec![SeriesSpec {
                 label: String::new(),
-                points: vec![(19_000.0, 40.0), (19_007.0, 39.0), (19_014.0, 36.5)],
+                points: vec![
+                    (day(19_000), 40.0),
+                    (day(19_007), 39.0),
+                    (day(19_014), 36.5),
+                ],
             }],
-            baseline: Some(40.0),
-            spread: Some(0.8),
-            watch: vec![36.8],
-            act: vec![34.0],
-            markers: vec![Marker {
-                at: 19_010.0,
-                label: "filter".into(),
+            band: Some(BandSpec {
+                low: 38.4,
+                high: 41.6,
+                centre: Some(40.0),
+                label: "baseline ± 2σ".into(),
+            }),
+            limits: vec![
+                LimitSpec {
+                    value: 36.8,
+                    level: Some(State::Watch),
+                    label: "watch 36.8".into(),
+                },
+                LimitSpec {
+                    value: 34.0,
+                    level: Some(State::Act),
+                    label: "act 34".into(),
+                },
+            ],
+            events: vec![EventSpec {
+                at: day(19_010),
+                code: "FL",
+                what: "filter change",
             }],
-            empty_text: String::new(),
+            empty_note: String::new(),
+            note: String::new(),
         }
     }
 
@@ -514,9 +561,9 @@ mod tests {
     #[test]
     fn nothing_to_draw_still_gives_an_image_with_its_note() {
         let mut i = input();
-        i.lines.clear();
-        i.markers.clear();
-        i.empty_text = "no samples in this era".into();
+        i.series.clear();
+        i.events.clear();
+        i.empty_note = "no samples in this era".into();
         let img = render(&i, 300, 160).unwrap();
         let px = img.to_rgb8().unwrap();
         // Only text on white: some dark pixels (the note and the title), no limit colours.

@@ -10,7 +10,8 @@ use super::ui::{FleetAdapter, FleetRow, Nav};
 use super::{model, s, unit, Ctx};
 use crate::app::entry;
 use crate::app::status::{self, FleetStatus, UnitStatus};
-use crate::app::vocab::{State, WorkKind};
+use crate::app::view;
+use crate::app::vocab::State;
 use crate::app::AppError;
 use crate::units::UnitSystem;
 
@@ -31,43 +32,22 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
     });
 }
 
-fn next_due(u: &UnitStatus) -> (String, bool) {
-    match &u.next_due {
-        None => ("—".into(), false),
-        Some(w) => {
-            let when = if w.days_overdue >= 0 {
-                crate::app::figures::due_words(w.days_overdue)
-            } else {
-                super::fmt::day(w.due)
-            };
-            let what = match w.kind {
-                WorkKind::Check => "check",
-                WorkKind::Sample => "sample",
-                WorkKind::FluidChange => "fluid change",
-                WorkKind::FilterChange => "filter change",
-            };
-            (format!("{what} {when}"), w.days_overdue > 0)
-        }
-    }
-}
-
 fn row(u: &UnitStatus, sys: UnitSystem, zone: crate::app::local_time::Zone) -> FleetRow {
-    let (due, overdue) = next_due(u);
-    let all_seen = !u.health.flags.is_empty() && u.health.flags.iter().all(|f| f.acknowledged);
+    let l = view::fleet_line(u, sys);
     FleetRow {
-        unit_id: u.unit_id as i32,
-        tag: s(&u.unit),
-        machine: s(format!("{} {}", u.machine, u.machine_name)),
-        state: state_num(u.state),
-        ack: if all_seen { s("seen") } else { s("") },
-        figures: s(status::board_figures(u, sys)),
+        unit_id: l.unit_id as i32,
+        tag: s(&l.tag),
+        machine: s(format!("{} {}", l.machine, l.machine_name)),
+        state: state_num(l.state),
+        ack: if l.all_seen { s("seen") } else { s("") },
+        figures: s(l.board),
         last_check: s(u
             .health
             .last_check
             .map(|t| super::fmt::date(t, zone))
             .unwrap_or_else(|| "never".into())),
-        next_due: s(due),
-        overdue,
+        overdue: l.next_due.as_ref().is_some_and(|d| d.overdue),
+        next_due: s(l.next_due.map(|d| d.text).unwrap_or_else(|| "—".into())),
     }
 }
 
@@ -128,12 +108,8 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 .collect();
             let c = fleet.counts;
             a.set_summary(s(format!(
-                "{} units: {} act, {} watch, {} not judged yet, {} steady · as of {}",
-                fleet.units.len(),
-                c.act,
-                c.watch,
-                c.not_judged,
-                c.steady,
+                "{} · as of {}",
+                view::counts_line(fleet.units.len(), &c),
                 ctx.zone.get().show_marked(fleet.at)
             )));
             a.set_rows(model(rows));

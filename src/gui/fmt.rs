@@ -21,12 +21,6 @@ pub fn state_num(s: State) -> i32 {
     }
 }
 
-/// The unit a dimension is shown in (the one formatter of `app::figures`, shared with the
-/// command line and the report).
-pub fn dim_unit(dim: Dim, sys: UnitSystem) -> &'static str {
-    figures::unit(dim, sys)
-}
-
 /// A value of the health engine (SI for physical dimensions) in the display unit.
 pub fn dim_value(dim: Dim, si: f64, sys: UnitSystem) -> f64 {
     figures::value(dim, si, sys)
@@ -35,11 +29,6 @@ pub fn dim_value(dim: Dim, si: f64, sys: UnitSystem) -> f64 {
 /// A figure with its unit: `36.4 L/min`, `7.2 K`.
 pub fn dim_text(dim: Dim, si: f64, sys: UnitSystem) -> String {
     figures::text(dim, si, sys)
-}
-
-/// A change per week in the display unit (temperatures change as differences).
-pub fn slope_text(dim: Dim, per_week: f64, sys: UnitSystem) -> String {
-    format!("{}/wk", figures::change(dim, per_week, sys))
 }
 
 /// `t`'s day in the shop's time zone.

@@ -1,31 +1,30 @@
-//! The report's fleet page rows: each unit's state, key figures, leading tile and findings. It
-//! must not read the shop or evaluate.
+//! The report's fleet page rows and findings: `app::view`'s fleet lines and flag views in the
+//! page engine's form, with the leading tile's trend. It must not read the shop, evaluate, or
+//! word a figure of its own.
 
 use super::*;
 
-use crate::app::figures;
+use crate::app::local_time::Zone;
 use crate::app::status::UnitStatus;
+use crate::app::view::{self, arrow, trend_word};
 use crate::health::indicators::Tile;
 use crate::health::{Flag, State};
-use crate::report::{Finding, FleetRow};
-use crate::units::{TempDiff, UnitSystem};
+use crate::report::{Finding, FleetRow, StateText};
+use crate::units::UnitSystem;
 
 pub(super) fn finding(tag: &str, f: &Flag, sys: UnitSystem, zone: Zone) -> Finding {
+    let v = view::flag_view(f, sys, zone);
     Finding {
         unit_tag: tag.to_string(),
-        state: state_text(f.state),
-        what: f.what.clone(),
-        amount: figures::flag_figure(f, sys),
-        since: f.since.to_string(),
-        next_step: f.next_step.clone(),
-        acknowledged: f.acknowledgement.as_ref().map(|a| {
-            let note = if a.note.trim().is_empty() {
-                String::new()
-            } else {
-                format!(": {}", a.note.trim())
-            };
-            format!("{} {}{note}", a.by, zone.show_date(a.at))
-        }),
+        state: StateText {
+            mark: mark_of(v.mark),
+            word: v.state_word.to_string(),
+        },
+        what: v.what,
+        amount: v.figure,
+        since: v.since.to_string(),
+        next_step: v.next_step,
+        acknowledged: v.seen,
     }
 }
 
@@ -42,43 +41,6 @@ fn leading_tile(u: &UnitStatus) -> Option<&Tile> {
                 .find(|t| t.key == "lost_flow" && t.value.is_some())
         })
         .or_else(|| tiles.iter().find(|t| t.value.is_some()))
-}
-
-/// The unit's key figures, written exactly as the fleet table of `sumpbook status` writes
-/// them (lost flow, leak conductance, heat-rise drift, KV40, ISO 4406 against target, water),
-/// so that the paper and the screen agree; an empty figure is left out.
-fn key_figures(u: &UnitStatus, sys: UnitSystem) -> String {
-    let i = &u.health.indicators;
-    let mut parts = Vec::new();
-    if let Some(v) = i.lost_flow_pct {
-        parts.push(format!("lost flow {v:.1}%"));
-    }
-    if let Some(v) = i.leak_conductance_ratio {
-        parts.push(format!("leak {v:.2}×"));
-    }
-    if let Some(v) = i.heat_rise_drift_k {
-        let (v, unit) = match sys {
-            UnitSystem::Metric => (v, "K"),
-            UnitSystem::Us => (TempDiff(v).f_steps(), "°F"),
-        };
-        parts.push(format!("heat rise {v:+.1} {unit} over baseline"));
-    }
-    if let Some(v) = i.kv40_cst {
-        parts.push(format!("KV40 {v:.1} cSt"));
-    }
-    match (&i.iso4406, &i.iso4406_target) {
-        (Some(c), Some(t)) => parts.push(format!("ISO 4406 {c} (target {t})")),
-        (Some(c), None) => parts.push(format!("ISO 4406 {c}")),
-        _ => {}
-    }
-    if let Some(v) = i.water_ppm {
-        parts.push(format!("water {v:.0} ppm"));
-    }
-    if parts.is_empty() {
-        "no readings yet".into()
-    } else {
-        parts.join(" · ")
-    }
 }
 
 fn short_label(t: &Tile) -> String {
@@ -98,9 +60,15 @@ fn short_label(t: &Tile) -> String {
 }
 
 pub(super) fn fleet_row(u: &UnitStatus, sys: UnitSystem, zone: Zone) -> FleetRow {
+    let line = view::fleet_line(u, sys);
     let trend = match leading_tile(u).and_then(|t| t.trend.as_ref().map(|tr| (t, tr))) {
         Some((t, tr)) => {
-            let mut s = format!("{}: {}", short_label(t), arrow(tr.direction));
+            let mut s = format!(
+                "{}: {} {}",
+                short_label(t),
+                trend_word(tr.direction),
+                arrow(tr.direction)
+            );
             if let Some(f) = &tr.forecast {
                 s.push_str(&format!(
                     ", {} by about {}",
@@ -113,45 +81,29 @@ pub(super) fn fleet_row(u: &UnitStatus, sys: UnitSystem, zone: Zone) -> FleetRow
         None => "not enough points".into(),
     };
     FleetRow {
-        tag: u.unit.clone(),
-        name: [u.machine.as_str(), u.machine_name.as_str()]
+        tag: line.tag.clone(),
+        name: [line.machine.as_str(), line.machine_name.as_str()]
             .iter()
             .filter(|s| !s.is_empty())
             .copied()
             .collect::<Vec<_>>()
             .join(" · "),
-        state: state_text(u.state),
-        // A flagged or not-judged unit reads as on the fleet board; a steady one by its key
-        // figures, as in `sumpbook status`.
-        figures: if u.health.flags.is_empty() && u.state != State::NotJudged {
-            key_figures(u, sys)
-        } else {
-            let key = key_figures(u, sys);
-            let board = crate::app::status::board_figures(u, sys);
-            if key.is_empty() {
-                board
-            } else {
-                format!("{board}; {key}")
-            }
+        state: StateText {
+            mark: mark_of(line.mark),
+            word: line.state_word.to_string(),
         },
+        // A flagged or not-judged unit reads first as on the fleet board, then by its key
+        // figures, as in `sumpbook status`.
+        figures: line.figures,
         trend,
-        oil_life: u
-            .health
-            .indicators
-            .oil_life_used_pct
-            .map(|p| format!("{p:.0}%"))
+        oil_life: line
+            .key
+            .oil_life
+            .map(|f| f.cell)
             .unwrap_or_else(|| "—".into()),
-        next_due: u
+        next_due: line
             .next_due
-            .as_ref()
-            .map(|w| {
-                format!(
-                    "{} {} ({})",
-                    w.kind.label(),
-                    w.due,
-                    work_status(w.days_overdue, None)
-                )
-            })
+            .map(|d| format!("{} ({})", d.text, d.due))
             .unwrap_or_else(|| "—".into()),
     }
 }

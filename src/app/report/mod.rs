@@ -286,7 +286,7 @@ pub fn build_report(
             unit_tag: d.unit.clone(),
             task: d.task.clone(),
             due: d.due.to_string(),
-            status: work_status(d.days_overdue, d.pulled_forward.as_deref()),
+            status: crate::app::view::due_words_why(d.days_overdue, d.pulled_forward.as_deref()),
             mark: (d.state > State::Steady).then(|| mark(d.state)),
         })
         .collect();
@@ -300,15 +300,10 @@ pub fn build_report(
                 .map(|f| finding(&u.unit, f, sys, zone))
         })
         .collect();
-    let counts = |s: State| chosen.iter().filter(|u| u.state == s).count();
+    let counts = super::status::StateCounts::of(chosen.iter().map(|u| u.state));
     let fleet_summary = format!(
-        "{} unit{}: {} steady, {} not judged yet, {} watch, {} act. Evaluated {}.",
-        chosen.len(),
-        if chosen.len() == 1 { "" } else { "s" },
-        counts(State::Steady),
-        counts(State::NotJudged),
-        counts(State::Watch),
-        counts(State::Act),
+        "{}. Evaluated {}.",
+        super::view::counts_line(chosen.len(), &counts),
         zone.show_marked(at)
     );
 

@@ -1,4 +1,4 @@
-//! Tests of the report's words and figures.
+//! Tests of the report's period.
 
 use super::*;
 
@@ -6,26 +6,6 @@ use chrono::{DateTime, NaiveDate, Utc};
 
 use crate::app::AppError;
 use crate::report::Paper;
-
-#[test]
-fn work_status_reads_naturally() {
-    assert_eq!(work_status(5, None), "5 days late");
-    assert_eq!(work_status(1, None), "1 day late");
-    assert_eq!(work_status(0, None), "due today");
-    assert_eq!(
-        work_status(-12, Some("acid number act")),
-        "in 12 days; brought forward: acid number act"
-    );
-}
-
-#[test]
-fn chart_labels_keep_their_digits() {
-    assert_eq!(trim_number(130.6), "131");
-    assert_eq!(trim_number(10.0), "10");
-    assert_eq!(trim_number(96.24), "96.2");
-    assert_eq!(trim_number(3.51), "3.51");
-    assert_eq!(trim_number(0.0), "0");
-}
 
 #[test]
 fn the_period_defaults_and_refuses_a_reversed_range() {

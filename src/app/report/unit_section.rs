@@ -107,7 +107,7 @@ fn baseline_text(u: &UnitStatus, sys: UnitSystem, zone: Zone) -> String {
         if let Some(v) = b.get(ind) {
             values.push(format!(
                 "{name} {}",
-                plus_minus(dim, v.value, v.spread, sys)
+                crate::app::view::plus_minus(dim, v.value, v.spread, sys)
             ));
         }
     }
@@ -237,7 +237,10 @@ pub(super) fn unit_section(
                 unit_tag: u.unit.clone(),
                 task: w.kind.label().to_string(),
                 due: w.due.to_string(),
-                status: work_status(w.days_overdue, w.pulled_forward.as_deref()),
+                status: crate::app::view::due_words_why(
+                    w.days_overdue,
+                    w.pulled_forward.as_deref(),
+                ),
                 mark: (w.state > State::Steady).then(|| mark(w.state)),
             })
             .collect(),

@@ -50,7 +50,7 @@ fn due_table(
             };
             writeln!(out, "{head}")?;
         }
-        let when = crate::app::figures::due_words(i.days_overdue);
+        let when = crate::app::view::due_words(i.days_overdue);
         let mark = if i.caution.is_some() { "!" } else { " " };
         writeln!(
             out,

@@ -27,9 +27,7 @@ pub use status_pages::*;
 use std::io::Write;
 
 use super::Failure;
-use crate::app::figures;
 use crate::app::vocab::State;
-use crate::app::vocab::Tile;
 
 fn json_out<T: serde::Serialize>(out: &mut dyn Write, v: &T) -> Result<(), Failure> {
     serde_json::to_writer_pretty(&mut *out, v)
@@ -39,23 +37,11 @@ fn json_out<T: serde::Serialize>(out: &mut dyn Write, v: &T) -> Result<(), Failu
 }
 
 fn state_word(s: State) -> &'static str {
-    // Distinct in text as well as meaning: capitals for act.
-    match s {
-        State::Steady => "steady",
-        State::NotJudged => "not judged yet",
-        State::Watch => "watch",
-        State::Act => "ACT",
-    }
+    crate::app::view::state_word_plain(s)
 }
 
 fn dash() -> String {
     "—".into()
-}
-
-fn arrow(t: &Tile) -> &'static str {
-    t.trend
-        .as_ref()
-        .map_or(" ", |t| figures::arrow(t.direction))
 }
 
 fn pad(s: &str, w: usize) -> String {

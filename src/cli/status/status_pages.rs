@@ -7,10 +7,10 @@ use std::io::Write;
 
 use clap::Args;
 
-use crate::app::figures;
 use crate::app::local_time::Zone;
 use crate::app::shop::Shop;
 use crate::app::status::{self, FleetStatus, UnitStatus};
+use crate::app::view;
 use crate::app::vocab::Record;
 use crate::app::vocab::CAUTION_SHORT;
 use crate::app::vocab::{BaselineSource, Flag, NotJudged, SuspectReading};
@@ -40,15 +40,7 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus, zone: Zone) -> Result<(), F
         format!("now ({})", zone.show_marked(f.at))
     };
     writeln!(out, "{} — {}", f.shop_name, when)?;
-    writeln!(
-        out,
-        "{} units: {} act, {} watch, {} not judged yet, {} steady",
-        f.units.len(),
-        f.counts.act,
-        f.counts.watch,
-        f.counts.not_judged,
-        f.counts.steady
-    )?;
+    writeln!(out, "{}", view::counts_line(f.units.len(), &f.counts))?;
     writeln!(out)?;
     let cols: [(&str, usize); 11] = [
         ("UNIT", 10),
@@ -69,50 +61,22 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus, zone: Zone) -> Result<(), F
         .collect();
     writeln!(out, "{}", header.trim_end())?;
     for u in &f.units {
-        let i = &u.health.indicators;
-        let next = u
-            .next_due
-            .as_ref()
-            .map(|w| {
-                if w.days_overdue > 0 {
-                    format!(
-                        "{} {}",
-                        w.kind.label(),
-                        crate::app::figures::due_words(w.days_overdue)
-                    )
-                } else {
-                    format!("{} {}", w.kind.label(), w.due)
-                }
-            })
-            .unwrap_or_else(dash);
+        let l = view::fleet_line(u, sys);
+        let k = &l.key;
+        let cell =
+            |f: &Option<view::KeyFigure>| f.as_ref().map(|f| f.cell.clone()).unwrap_or_else(dash);
         let cells = [
-            u.unit.clone(),
-            u.machine.clone(),
-            state_word(u.state).to_string(),
-            i.lost_flow_pct
-                .map(|v| format!("{v:.1}%"))
-                .unwrap_or_else(dash),
-            i.leak_conductance_ratio
-                .map(|v| format!("{v:.2}×"))
-                .unwrap_or_else(dash),
-            i.heat_rise_drift_k
-                .map(|v| figures::temp_diff(v, sys, true))
-                .unwrap_or_else(dash),
-            i.kv40_cst
-                .map(|v| format!("{v:.1} cSt"))
-                .unwrap_or_else(dash),
-            match (&i.iso4406, &i.iso4406_target) {
-                (Some(c), Some(t)) => format!("{c} / {t}"),
-                (Some(c), None) => c.clone(),
-                _ => dash(),
-            },
-            i.water_ppm
-                .map(|v| format!("{v:.0} ppm"))
-                .unwrap_or_else(dash),
-            i.oil_life_used_pct
-                .map(|v| format!("{v:.0}%"))
-                .unwrap_or_else(dash),
-            next,
+            l.tag.clone(),
+            l.machine.clone(),
+            state_word(l.state).to_string(),
+            cell(&k.lost_flow),
+            cell(&k.leak),
+            cell(&k.heat_rise),
+            cell(&k.kv40),
+            cell(&k.iso4406),
+            cell(&k.water),
+            cell(&k.oil_life),
+            l.next_due.map(|d| d.text).unwrap_or_else(dash),
         ];
         let line: String = cells
             .iter()
@@ -224,30 +188,17 @@ fn flag_line(
     sys: UnitSystem,
     zone: Zone,
 ) -> Result<(), Failure> {
-    let seen = match &f.acknowledgement {
-        Some(a) if f.acknowledged => {
-            format!(
-                "  [seen by {} {}{}]",
-                a.by,
-                zone.show_date(a.at),
-                if a.note.is_empty() {
-                    String::new()
-                } else {
-                    format!(": {}", a.note)
-                }
-            )
-        }
-        _ => String::new(),
-    };
+    let v = view::flag_view(f, sys, zone);
+    let seen = v.seen.map(|s| format!("  [{s}]")).unwrap_or_default();
     writeln!(
         out,
         "  {}{}{}since {}  {}. {}{}",
         pad(unit, 10),
-        pad(state_word(f.state), 7),
-        pad(f.kind.as_str(), 17),
-        f.since,
-        figures::flag_figure(f, sys),
-        f.message,
+        pad(state_word(v.state), 7),
+        pad(v.kind_key, 17),
+        v.since,
+        v.figure,
+        v.message,
         seen
     )?;
     Ok(())
@@ -315,41 +266,18 @@ fn unit_page(
         pad("BASELINE", 16),
         pad("STATE", 8)
     )?;
-    for t in &h.tiles {
-        let now = match (&t.text, t.value) {
-            (Some(text), Some(v)) => format!("{text} ({})", figures::text(t.dim, v, sys)),
-            (None, Some(v)) => figures::text(t.dim, v, sys),
-            (Some(text), None) => text.clone(),
-            (None, None) => dash(),
-        };
-        let base = t
-            .baseline
-            .map(|v| figures::text(t.dim, v, sys))
-            .unwrap_or_else(dash);
-        let trend = match &t.trend {
-            Some(tr) => {
-                let mut s = format!(
-                    "{} {}/week",
-                    arrow(t),
-                    figures::change(t.dim, tr.slope_per_week, sys)
-                );
-                if let Some(f) = &tr.forecast {
-                    s.push_str(&format!(
-                        ", {} by {}",
-                        f.state.as_str(),
-                        zone.show_date(f.date)
-                    ));
-                }
-                s
-            }
-            None => String::new(),
+    for t in view::unit_tiles(u, sys, zone) {
+        let trend = if t.arrow.is_empty() {
+            t.trend
+        } else {
+            format!("{} {}", t.arrow, t.trend)
         };
         writeln!(
             out,
             "{}{}{}{}{}",
             pad(&t.label, 40),
-            pad(&now, 28),
-            pad(&base, 16),
+            pad(&t.value, 28),
+            pad(&t.baseline, 16),
             pad(state_word(t.state), 8),
             trend
         )?;
@@ -380,7 +308,7 @@ fn unit_page(
     writeln!(out)?;
     writeln!(out, "Work")?;
     for w in &h.work {
-        let when = crate::app::figures::due_words(w.days_overdue);
+        let when = crate::app::view::due_words(w.days_overdue);
         writeln!(
             out,
             "  {}due {}  {}  ({})",

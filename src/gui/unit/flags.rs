@@ -7,6 +7,7 @@ use std::rc::Rc;
 use slint::{ComponentHandle, Model};
 
 use crate::app::entry::{self, UnitView};
+use crate::app::view;
 use crate::gui::fmt::state_num;
 use crate::gui::ui::{FlagData, UnitAdapter};
 use crate::gui::{err_text, s, Ctx};
@@ -16,25 +17,16 @@ pub(super) fn flags(v: &UnitView) -> Vec<FlagData> {
         .health
         .flags
         .iter()
-        .map(|f| FlagData {
-            kind: s(f.kind.as_str()),
-            state: state_num(f.state),
-            state_key: s(f.state.as_str()),
-            message: s(&f.message),
-            since: s(crate::gui::fmt::day(f.since)),
-            ack: match &f.acknowledgement {
-                Some(a) if f.acknowledged => s(format!(
-                    "seen by {} on {}{}",
-                    a.by,
-                    crate::gui::fmt::date(a.at, v.zone),
-                    if a.note.is_empty() {
-                        String::new()
-                    } else {
-                        format!(": {}", a.note)
-                    }
-                )),
-                _ => s(""),
-            },
+        .map(|f| {
+            let f = view::flag_view(f, v.system, v.zone);
+            FlagData {
+                kind: s(f.kind_key),
+                state: state_num(f.state),
+                state_key: s(f.state_word),
+                message: s(format!("{} — {}", f.figure, f.message)),
+                since: s(crate::gui::fmt::day(f.since)),
+                ack: s(f.seen.unwrap_or_default()),
+            }
         })
         .collect()
 }

@@ -178,12 +178,9 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
     a.set_state(state_num(st.state));
     a.set_identity(model(identity(&view, sys)));
     a.set_era(model(era(&view, sys)));
-    a.set_tile_rows(model(tile_rows(
-        &st.health.tiles,
-        sys,
-        &st.health.not_judged,
-        view.zone,
-    )));
+    a.set_tile_rows(model(tile_rows(&crate::app::view::unit_tiles(
+        st, sys, view.zone,
+    ))));
     a.set_flags(model(flags(&view)));
     a.set_waiting(strings(
         st.health

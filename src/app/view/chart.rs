@@ -1,0 +1,286 @@
+//! Chart specifications of a unit, for the unit page's charts and the report's alike: the
+//! series in the display unit, the one baseline band (baseline ± 2 spreads, the spread being
+//! the engine's robust standard deviation), the limit lines with their labels and the event
+//! marks. Nothing here reads the shop or draws; `gui::charts` and `report::charts` draw these.
+
+use chrono::{DateTime, Utc};
+
+use crate::app::figures;
+use crate::app::status::UnitStatus;
+use crate::health::indicators::{Dim, Series};
+use crate::health::State;
+use crate::model::{Event, EventKind};
+use crate::units::UnitSystem;
+
+/// How many spreads either side of the baseline the band spans: ±2σ holds about 95 % of
+/// readings of a steady unit (normal distribution, from memory), so a point outside it is
+/// worth a look though not yet a flag.
+pub const BAND_SPREADS: f64 = 2.0;
+
+/// One line of readings: times and values in the display unit.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SeriesSpec {
+    pub label: String,
+    pub points: Vec<(DateTime<Utc>, f64)>,
+}
+
+/// The band a steady unit stays in, in the display unit.
+#[derive(Clone, Debug, PartialEq)]
+pub struct BandSpec {
+    pub low: f64,
+    pub high: f64,
+    /// The baseline (or new-oil value) itself.
+    pub centre: Option<f64>,
+    pub label: String,
+}
+
+/// A horizontal line: a watch or act limit, or a target (`level` `None`).
+#[derive(Clone, Debug, PartialEq)]
+pub struct LimitSpec {
+    pub value: f64,
+    pub level: Option<State>,
+    /// `watch 36.8`, `act 34`, `target ≥4 µm(c) 17`.
+    pub label: String,
+}
+
+/// A maintenance event marked on the time axis.
+#[derive(Clone, Debug, PartialEq)]
+pub struct EventSpec {
+    pub at: DateTime<Utc>,
+    /// Two letters: `FC` fluid change, `FL` filter change, `RB`, `RP`, `CC`.
+    pub code: &'static str,
+    pub what: &'static str,
+}
+
+/// Everything one chart shows.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ChartSpec {
+    /// The indicator: `effective_flow`, `lost_flow`, `heat_rise`, `kv40`, `cleanliness`, or
+    /// `iso4406` (the code by size).
+    pub key: &'static str,
+    pub title: String,
+    /// The y axis's unit.
+    pub unit: String,
+    pub series: Vec<SeriesSpec>,
+    pub band: Option<BandSpec>,
+    pub limits: Vec<LimitSpec>,
+    pub events: Vec<EventSpec>,
+    /// Shown when there is nothing to draw.
+    pub empty_note: String,
+    /// The latest reading against the act limit (`latest 36.4 L/min, act at 30.0 L/min`), or
+    /// the empty note.
+    pub note: String,
+}
+
+/// The stretch of time the charts cover: the era in force on the unit page, the report's
+/// period on paper.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Window<'a> {
+    pub from: Option<DateTime<Utc>>,
+    pub to: Option<DateTime<Utc>>,
+    /// `era`, `period`: as the empty notes say it.
+    pub name: &'a str,
+}
+
+impl Window<'_> {
+    fn holds(&self, t: DateTime<Utc>) -> bool {
+        self.from.is_none_or(|f| t >= f) && self.to.is_none_or(|e| t <= e)
+    }
+}
+
+/// The code and words of an event kind worth marking on a chart; top-ups and notes are too
+/// many to mark (they are in the unit's history).
+pub fn event_code(kind: EventKind) -> Option<(&'static str, &'static str)> {
+    match kind {
+        EventKind::FluidChange => Some(("FC", "fluid change")),
+        EventKind::FilterChange => Some(("FL", "filter change")),
+        EventKind::Rebuild => Some(("RB", "rebuild")),
+        EventKind::Repair => Some(("RP", "repair")),
+        EventKind::CoolerClean => Some(("CC", "cooler clean")),
+        EventKind::TopUp | EventKind::Note => None,
+    }
+}
+
+/// The unit a chart's axis is in.
+pub fn chart_unit(dim: Dim, sys: UnitSystem) -> String {
+    match dim {
+        Dim::Ratio => "× baseline".into(),
+        Dim::RangeNumber => "ISO 4406 scale number".into(),
+        _ => figures::unit(dim, sys).to_string(),
+    }
+}
+
+/// The baseline band of a series: baseline ± `BAND_SPREADS` spreads, in the display unit.
+fn band(s: &Series, label: &str, sys: UnitSystem) -> Option<BandSpec> {
+    let b = s.baseline?;
+    let spread = s.baseline_spread.unwrap_or(0.0).abs();
+    let (lo, hi) = (
+        figures::value(s.dim, b - BAND_SPREADS * spread, sys),
+        figures::value(s.dim, b + BAND_SPREADS * spread, sys),
+    );
+    Some(BandSpec {
+        low: lo.min(hi),
+        high: lo.max(hi),
+        centre: Some(figures::value(s.dim, b, sys)),
+        label: label.into(),
+    })
+}
+
+fn limits(s: &Series, sys: UnitSystem) -> Vec<LimitSpec> {
+    let mut out = Vec::new();
+    for (vals, level) in [(&s.watch, State::Watch), (&s.act, State::Act)] {
+        for v in vals {
+            let shown = figures::value(s.dim, *v, sys);
+            out.push(LimitSpec {
+                value: shown,
+                level: Some(level),
+                label: format!("{} {}", level.as_str(), figures::significant(shown, 3, 2)),
+            });
+        }
+    }
+    out
+}
+
+fn note(s: &Series, empty: &str, sys: UnitSystem) -> String {
+    match (s.points.last(), s.act.first()) {
+        (Some(p), Some(a)) => format!(
+            "latest {}, act at {}",
+            figures::text(s.dim, p.value, sys),
+            figures::text(s.dim, *a, sys)
+        ),
+        (Some(p), None) => format!("latest {}", figures::text(s.dim, p.value, sys)),
+        _ => empty.to_string(),
+    }
+}
+
+/// The charts of a unit over `window`, in the shop's units: effective flow, lost flow, heat
+/// rise, KV40, cleanliness over target and the ISO 4406 code by size, each where the engine
+/// gives its series. A face shows those it has room for.
+pub fn unit_charts(
+    u: &UnitStatus,
+    events: &[Event],
+    window: Window<'_>,
+    sys: UnitSystem,
+) -> Vec<ChartSpec> {
+    let marks: Vec<EventSpec> = events
+        .iter()
+        .filter(|e| window.holds(e.done_at))
+        .filter_map(|e| {
+            let (code, what) = event_code(e.kind)?;
+            Some(EventSpec {
+                at: e.done_at,
+                code,
+                what,
+            })
+        })
+        .collect();
+    let find = |key: &str| u.health.series.iter().find(|s| s.key == key);
+    let points = |s: &Series| -> Vec<(DateTime<Utc>, f64)> {
+        s.points
+            .iter()
+            .filter(|p| window.holds(p.at))
+            .map(|p| (p.at, figures::value(s.dim, p.value, sys)))
+            .collect()
+    };
+    let empty = |what: &str| format!("no {what} in this {}", window.name);
+    let mut out = Vec::new();
+    let plain: [(&'static str, String, &str, &str); 5] = [
+        (
+            "effective_flow",
+            empty("timed strokes"),
+            "effective flow",
+            "baseline ± 2σ",
+        ),
+        (
+            "lost_flow",
+            "lost flow needs a baseline: the first checks of the era".to_string(),
+            "lost flow",
+            "baseline ± 2σ",
+        ),
+        (
+            "heat_rise",
+            empty("checks with both temperatures"),
+            "heat rise",
+            "baseline ± 2σ",
+        ),
+        ("kv40", empty("viscosity results"), "KV40", "new oil ± 2σ"),
+        (
+            "cleanliness",
+            empty("particle counts"),
+            "over target",
+            "baseline ± 2σ",
+        ),
+    ];
+    for (key, empty_note, label, band_label) in plain {
+        let Some(s) = find(key) else { continue };
+        let band = if key == "kv40" {
+            // The ISO VG band of the fluid, where the samples give it, is the band to stay in.
+            match u.health.samples.iter().rev().find_map(|p| p.vg_band) {
+                Some((lo, hi)) => Some(BandSpec {
+                    low: figures::value(Dim::Viscosity, lo, sys),
+                    high: figures::value(Dim::Viscosity, hi, sys),
+                    centre: s.baseline.map(|b| figures::value(s.dim, b, sys)),
+                    label: "ISO VG band · new oil".into(),
+                }),
+                None => band(s, band_label, sys),
+            }
+        } else {
+            band(s, band_label, sys)
+        };
+        out.push(ChartSpec {
+            key,
+            title: s.label.clone(),
+            unit: chart_unit(s.dim, sys),
+            series: vec![SeriesSpec {
+                label: label.into(),
+                points: points(s),
+            }],
+            band,
+            limits: limits(s, sys),
+            events: marks.clone(),
+            note: note(s, &empty_note, sys),
+            empty_note,
+        });
+    }
+    let sizes = [
+        ("iso4406_4um", "≥4 µm(c)"),
+        ("iso4406_6um", "≥6 µm(c)"),
+        ("iso4406_14um", "≥14 µm(c)"),
+    ];
+    let mut series = Vec::new();
+    let mut targets = Vec::new();
+    for (key, label) in sizes {
+        if let Some(s) = find(key) {
+            series.push(SeriesSpec {
+                label: label.into(),
+                points: points(s),
+            });
+            if let Some(t) = s.baseline {
+                targets.push(LimitSpec {
+                    value: t,
+                    level: None,
+                    label: format!("target {label} {}", figures::significant(t, 3, 2)),
+                });
+            }
+        }
+    }
+    if !series.is_empty() {
+        let empty_note = empty("particle counts");
+        let note = match series.iter().find_map(|s| s.points.last().map(|p| (s, p))) {
+            Some((s, p)) => format!("latest {} {}", s.label, figures::significant(p.1, 3, 0)),
+            None => empty_note.clone(),
+        };
+        out.push(ChartSpec {
+            key: "iso4406",
+            title: "ISO 4406 code by size".into(),
+            unit: chart_unit(Dim::RangeNumber, sys),
+            series,
+            band: None,
+            limits: targets,
+            events: marks,
+            empty_note,
+            note,
+        });
+    }
+    out
+}
