@@ -363,10 +363,11 @@ fn a_unit_without_baseline_gets_absolute_flags_and_a_fluid_change_starts_a_new_e
         .iter()
         .find(|f| f.kind == FlagKind::ReservoirTemp)
         .unwrap();
-    assert_eq!(
-        (f.state, f.value, f.limit),
-        (State::Act, Some(72.0), Some(70.0))
-    );
+    // The flag's figure is SI: 72 °C and 70 °C as kelvin (T/K = t/°C + 273.15, NIST SP 811).
+    let fig = f.figure.as_ref().unwrap();
+    assert_eq!(f.state, State::Act);
+    assert!((fig.value - Temperature::from_c(72.0).0).abs() < 1e-9);
+    assert!((fig.limit.unwrap() - Temperature::from_c(70.0).0).abs() < 1e-9);
 
     // Six checks at 37 L/min, then a fluid change, then four at 30 L/min.
     for w in 2..6 {

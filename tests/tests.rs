@@ -4,6 +4,8 @@ mod bench_plans;
 mod cli;
 mod detection;
 #[cfg(feature = "gui")]
+mod faces;
+#[cfg(feature = "gui")]
 mod gui;
 mod health_scenarios;
 mod physics_reference;

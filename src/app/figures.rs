@@ -138,20 +138,6 @@ pub fn flag_measure(kind: FlagKind) -> &'static str {
     }
 }
 
-/// A flag's value or limit (in the flag's fixed unit) in the shop's units.
-fn flag_number(f: &Flag, v: f64, sys: UnitSystem) -> String {
-    match f.unit.as_str() {
-        "°C" => format(Quantity::Temperature(Temperature::from_c(v)), sys),
-        "K" => temp_diff(v, sys, true),
-        "x" => format!("{v:.2}×"),
-        "%" => format!("{v:.1} %"),
-        "mg KOH/g" => format!("{v:+.2} mg KOH/g"),
-        "range numbers" => format!("{v:+.0} range numbers"),
-        "" => String::new(),
-        unit => format!("{v:.0} {unit}"),
-    }
-}
-
 /// The figure that raised a flag, against the limit it reached, in the shop's units:
 /// `heat rise over baseline +11.2 K (act at +10.0 K)`. The fleet board, the unit page, the
 /// report, `status` and its JSON all show a flag through this one function, so a flag never
@@ -182,18 +168,7 @@ pub fn flag_figure(f: &Flag, sys: UnitSystem) -> String {
         }
         return out;
     }
-    let Some(v) = f.value.filter(|v| v.is_finite()) else {
-        return format!("{measure} {}", f.state.as_str());
-    };
-    let value = flag_number(f, v, sys);
-    match f.limit.filter(|l| l.is_finite()) {
-        Some(l) => format!(
-            "{measure} {value} ({} at {})",
-            f.state.as_str(),
-            flag_number(f, l, sys)
-        ),
-        None => format!("{measure} {value}"),
-    }
+    format!("{measure} {}", f.state.as_str())
 }
 
 #[cfg(test)]

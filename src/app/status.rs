@@ -316,8 +316,14 @@ pub struct FlagJson {
     /// The figure that raised the flag against the limit it reached, in the shop's units,
     /// exactly as the fleet board, the unit page and the report show it.
     pub figure: String,
+    /// The number of `figure`: the value judged, in `unit` (the shop's units, as `figure`
+    /// shows it); `null` for a flag that is read, not measured (filter indicator, oil level).
     pub value: Option<f64>,
+    /// The limit reached, in `unit`.
     pub limit: Option<f64>,
+    /// The unit of `value` and `limit`: `%`, `K`, `°F`, `L/min`, `ppm`, `×`, `days`; empty
+    /// for a range number or without a value.
+    pub unit: String,
     pub since: NaiveDate,
     pub message: String,
     pub acknowledged: bool,
@@ -331,12 +337,19 @@ fn round(v: Option<f64>, d: i32) -> Option<f64> {
 
 impl FlagJson {
     fn of(f: &Flag, sys: UnitSystem) -> Self {
+        let fig = f.figure.as_ref();
         FlagJson {
             kind: f.kind.as_str().to_string(),
             state: f.state,
             figure: super::figures::flag_figure(f, sys),
-            value: round(f.value, 3),
-            limit: round(f.limit, 3),
+            value: round(fig.map(|g| super::figures::value(g.dim, g.value, sys)), 3),
+            limit: round(
+                fig.and_then(|g| g.limit.map(|l| super::figures::value(g.dim, l, sys))),
+                3,
+            ),
+            unit: fig
+                .map(|g| super::figures::unit(g.dim, sys).to_string())
+                .unwrap_or_default(),
             since: f.since,
             message: f.message.clone(),
             acknowledged: f.acknowledged,

@@ -89,11 +89,6 @@ pub struct Flag {
     pub kind: FlagKind,
     /// `Watch` or `Act`.
     pub state: State,
-    /// The judged value, in `unit` (fixed units, whatever the shop's display system).
-    pub value: Option<f64>,
-    /// The limit reached, in `unit`.
-    pub limit: Option<f64>,
-    pub unit: String,
     /// The date the flag began (first check or sample of the current run at watch or worse).
     pub since: NaiveDate,
     /// When the flag reached its current state.
@@ -107,7 +102,9 @@ pub struct Flag {
     pub acknowledged: bool,
     pub acknowledgement: Option<AckInfo>,
     /// The figure that raised it, in the form a tile carries figures (SI for physical
-    /// dimensions), so every face shows the same number for it.
+    /// dimensions, with its dimension), so every face shows the same number for it and
+    /// converts it through `units`; `None` for a flag that is read, not measured (filter
+    /// indicator, oil level).
     pub figure: Option<Figure>,
     /// The last maintenance in the era that restarted this flag's detectors: the flag is
     /// judged on what was read after it.
@@ -220,22 +217,6 @@ fn graded_samples(
         .collect()
 }
 
-/// The unit of the value and limit of each kind of flag.
-pub fn value_unit(kind: FlagKind) -> &'static str {
-    match kind {
-        FlagKind::LostFlow | FlagKind::CaseDrain | FlagKind::Viscosity => "%",
-        FlagKind::LeakConductance => "x",
-        FlagKind::HeatRise => "K",
-        FlagKind::ReservoirTemp => "°C",
-        FlagKind::Cleanliness => "range numbers",
-        FlagKind::Water => "ppm",
-        FlagKind::Acid => "mg KOH/g",
-        FlagKind::Filter | FlagKind::OilLevel => "",
-        FlagKind::Drift => "checks",
-        FlagKind::Overdue => "days",
-    }
-}
-
 fn new_flag(
     kind: FlagKind,
     g: &Graded,
@@ -251,9 +232,6 @@ fn new_flag(
     Flag {
         kind,
         state: g.state,
-        value: g.value,
-        limit: g.limit,
-        unit: value_unit(kind).to_string(),
         since,
         state_since,
         message,
@@ -910,9 +888,6 @@ mod tests {
         Flag {
             kind: FlagKind::Water,
             state,
-            value: Some(600.0),
-            limit: Some(500.0),
-            unit: "ppm".into(),
             since: NaiveDate::from_ymd_opt(2024, 3, 1).unwrap(),
             state_since: state_since.parse().unwrap(),
             message: String::new(),

@@ -546,7 +546,8 @@ mod tests {
             .find(|f| f.kind == FlagKind::HeatRise)
             .unwrap();
         assert_eq!(f.state, State::Act);
-        assert!((f.value.unwrap() - 10.5).abs() < 1e-9, "{:?}", f.value);
+        let fig = f.figure.as_ref().unwrap();
+        assert!((fig.value - 10.5).abs() < 1e-9, "{:?}", f.figure);
         assert!(
             f.message.contains("at this working pressure"),
             "{}",
@@ -953,7 +954,8 @@ mod tests {
         let r = eval(&h, &Limits::resolve(&rows, Some(1)), week(1));
         assert_eq!(state_of(&r, FlagKind::Water), State::Watch);
         let f = r.flags.iter().find(|f| f.kind == FlagKind::Water).unwrap();
-        assert_eq!((f.value, f.limit), (Some(550.0), Some(100.0)));
+        let fig = f.figure.as_ref().unwrap();
+        assert_eq!((fig.value, fig.limit), (550.0, Some(100.0)));
         let r = eval(&h, &Limits::resolve(&rows, Some(2)), week(1));
         assert_eq!(state_of(&r, FlagKind::Water), State::Act);
         let r = eval(

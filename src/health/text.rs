@@ -3,7 +3,7 @@
 //! Pure; no rules here.
 
 use crate::quantity::{format, Quantity};
-use crate::units::{Flow, Pressure, Seconds, Temperature, UnitSystem, Viscosity};
+use crate::units::{Flow, Pressure, Seconds, TempDiff, Temperature, UnitSystem, Viscosity};
 
 pub fn flow(si: f64, sys: UnitSystem) -> String {
     format(Quantity::Flow(Flow(si)), sys)
@@ -17,7 +17,7 @@ pub fn temp(kelvin: f64, sys: UnitSystem) -> String {
 pub fn tdiff(k: f64, sys: UnitSystem) -> String {
     match sys {
         UnitSystem::Metric => format!("{k:.1} K"),
-        UnitSystem::Us => format!("{:.1} °F", k * 9.0 / 5.0),
+        UnitSystem::Us => format!("{:.1} °F", TempDiff(k).f_steps()),
     }
 }
 
