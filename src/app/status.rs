@@ -177,6 +177,38 @@ pub fn unit_status_in(
     Ok(unit_status(&h, &data, when, Detail::Full))
 }
 
+/// A unit's page as read once: its whole stored history (every record, for the history
+/// tables), its evaluation at `at` from that same history (the engine looks only at what was
+/// known at `at`), and the shop's settings and fluids read for it.
+pub struct UnitRead {
+    pub history: UnitHistory,
+    pub status: UnitStatus,
+    pub settings: Settings,
+    pub fluids: Vec<Fluid>,
+}
+
+/// One unit (by id) read once and evaluated at `at` (now when `None`): the unit page's one
+/// read of the unit's records.
+pub fn unit_read_in(
+    store: &Store,
+    unit_id: i64,
+    at: Option<DateTime<Utc>>,
+) -> Result<UnitRead, AppError> {
+    let when = at.unwrap_or_else(Utc::now);
+    let history = store
+        .unit_history(unit_id, None)
+        .map_err(store_error)?
+        .ok_or_else(|| AppError::BadInput(format!("unit {unit_id} is not in this shop")))?;
+    let data = shop_data(store)?;
+    let status = unit_status(&history, &data, when, Detail::Full);
+    Ok(UnitRead {
+        history,
+        status,
+        settings: data.settings,
+        fluids: data.fluids,
+    })
+}
+
 /// Units below this many are evaluated on the calling thread; a thread costs more than it
 /// saves.
 const PARALLEL_UNITS: usize = 64;

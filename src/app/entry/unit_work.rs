@@ -7,7 +7,7 @@ use super::*;
 use chrono::{DateTime, Utc};
 
 use crate::app::shop::Shop;
-use crate::app::status::{store_error, unit_status_in, UnitStatus};
+use crate::app::status::{unit_read_in, UnitStatus};
 use crate::app::work::{self as work, EventInput, LoggedEvent};
 use crate::app::AppError;
 use crate::health::{FlagKind, WorkKind};
@@ -30,16 +30,16 @@ pub struct UnitView {
 
 pub fn unit_view(shop: &Shop, unit_id: Id, now: DateTime<Utc>) -> Result<UnitView, AppError> {
     let store = shop.store();
-    let history = history_of(store, unit_id)?;
-    let status = unit_status_in(store, &history.unit.tag, Some(now))?;
-    let shop_settings = settings(store)?;
-    let edits = crate::app::edit_trail::unit_edits_in(store, &history.unit.tag)?;
+    // The unit's records are read once: the history tables show them and the evaluation is
+    // made from the same read.
+    let read = unit_read_in(store, unit_id, Some(now))?;
+    let edits = crate::app::edit_trail::unit_edits_in(store, &read.history.unit.tag)?;
     Ok(UnitView {
-        status,
-        history,
-        fluids: store.fluids().map_err(store_error)?,
-        system: shop_settings.unit_system,
-        zone: crate::app::local_time::Zone::of_setting(&shop_settings.time_zone),
+        status: read.status,
+        history: read.history,
+        fluids: read.fluids,
+        system: read.settings.unit_system,
+        zone: crate::app::local_time::Zone::of_setting(&read.settings.time_zone),
         edits,
     })
 }
