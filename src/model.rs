@@ -217,6 +217,22 @@ pub struct LimitSetting {
     pub act: Option<f64>,
 }
 
+/// A saved column mapping for importing files whose columns are named their own way (what it
+/// means is `exchange::mapping`'s).
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct ImportProfile {
+    pub name: String,
+    /// The file kind: `units`, `checks`, `samples` or `events`.
+    pub kind: String,
+    /// The header of the file it was made for, column by column.
+    pub header: Vec<String>,
+    /// (file column, sumpbook column or `ignore`).
+    pub columns: Vec<(String, String)>,
+    /// `iso`, `day-first` or `month-first`.
+    pub date_order: String,
+    pub saved_at: DateTime<Utc>,
+}
+
 /// Shop-wide settings.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Settings {

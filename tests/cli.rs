@@ -992,3 +992,120 @@ fn history_on_one_backend() {
     assert!(other.contains("No reading or record"), "{other}");
     refused(d, &["--db", db, "history", "XX-99"], "no unit `XX-99`");
 }
+
+/// A lab's own file: the first try is refused at its header (nothing read), showing the mapping
+/// proposed from the header's words and the column left to decide; a save with a column still
+/// undecided is refused; the second try saves the corrected mapping and imports, US dates
+/// included; a later file with the same header goes in through it by itself; a column the
+/// mapping does not know is refused, never dropped.
+#[test]
+fn a_labs_own_file_goes_in_through_a_saved_column_mapping_in_two_steps() {
+    crate::backends::on_each_backend(|| {
+        let dir = tempfile::tempdir().unwrap();
+        let d = dir.path();
+        let demo = shop_name("lab.sqlite");
+        ok(d, &["--db", &demo, "demo"]);
+        let header = "Sample Date,Equipment ID,Visc @ 40C (cSt),ISO Code,Water (ppm),TAN,Tech";
+        std::fs::write(
+            d.join("lab-nov.csv"),
+            format!(
+                "{header}\n11/20/2026,PR-01-M,45.8,18/16/13,85,0.45,JR\n\
+                 11/04/2026,SH-04-A,46.2,17/15/12,60,0.4,JR\n"
+            ),
+        )
+        .unwrap();
+        let args = |extra: &[&'static str]| {
+            let mut v = vec!["--db", demo.as_str(), "import", "samples", "lab-nov.csv"];
+            v.extend_from_slice(extra);
+            v
+        };
+        let err = refused(d, &args(&[]), "no row was read");
+        assert!(!err.contains("bad row"), "{err}");
+        for line in [
+            "Sample Date → sampled_at",
+            "Equipment ID → unit_tag",
+            "Visc @ 40C (cSt) → kv40_cst",
+            "ISO Code → iso4406",
+            "Water (ppm) → water_ppm",
+            "TAN → acid_mgkoh_g",
+            "Tech → NOT MAPPED",
+            "Dates: month first",
+            "--save-map NAME",
+        ] {
+            assert!(err.contains(line), "`{line}` missing from: {err}");
+        }
+        refused(d, &args(&["--save-map", "north-lab"]), "Tech");
+        let out = ok(d, &["--db", &demo, "import-maps"]);
+        assert!(!out.contains("north-lab"), "nothing may be saved: {out}");
+
+        let out = ok(d, &args(&["--save-map", "north-lab", "--ignore", "Tech"]));
+        assert!(out.contains("column mapping north-lab saved"), "{out}");
+        assert!(out.contains("2 added"), "{out}");
+        // A date alone is noon in the shop's time zone (the demo's is an hour east of UTC).
+        let samples = ok(d, &["--db", &demo, "export", "samples"]);
+        assert!(
+            samples.contains("PR-01-M,2026-11-20T11:00:00Z,45.8,"),
+            "{samples}"
+        );
+        assert!(
+            samples.contains("SH-04-A,2026-11-04T11:00:00Z,46.2,"),
+            "{samples}"
+        );
+        let out = ok(d, &["--db", &demo, "import-maps"]);
+        assert!(
+            out.contains("north-lab") && out.contains("samples") && out.contains("month-first"),
+            "{out}"
+        );
+
+        // Same header next month: the saved mapping is chosen by itself; 12/01 is December.
+        std::fs::write(
+            d.join("lab-dec.csv"),
+            format!("{header}\n12/01/2026,PR-01-M,45.9,18/16/13,90,0.46,KT\n"),
+        )
+        .unwrap();
+        let out = ok(d, &["--db", &demo, "import", "samples", "lab-dec.csv"]);
+        assert!(out.contains("saved mapping north-lab"), "{out}");
+        assert!(out.contains("1 added"), "{out}");
+        let samples = ok(d, &["--db", &demo, "export", "samples"]);
+        assert!(
+            samples.contains("PR-01-M,2026-12-01T11:00:00Z,45.9,"),
+            "{samples}"
+        );
+
+        // A column the mapping does not know is refused by name, also when asked for by name.
+        std::fs::write(
+            d.join("lab-new.csv"),
+            format!("{header},Colour\n12/02/2026,PR-01-M,45.9,18/16/13,90,0.46,KT,amber\n"),
+        )
+        .unwrap();
+        let err = refused(
+            d,
+            &[
+                "--db",
+                &demo,
+                "import",
+                "samples",
+                "lab-new.csv",
+                "--map",
+                "north-lab",
+            ],
+            "Colour",
+        );
+        assert!(err.contains("neither maps nor ignores"), "{err}");
+        refused(
+            d,
+            &[
+                "--db",
+                &demo,
+                "import",
+                "samples",
+                "lab-new.csv",
+                "--map",
+                "south-lab",
+            ],
+            "no saved column mapping is named `south-lab`",
+        );
+        let samples = ok(d, &["--db", &demo, "export", "samples"]);
+        assert!(!samples.contains("2026-12-02"), "{samples}");
+    });
+}

@@ -9,7 +9,7 @@ use std::path::{Path, PathBuf};
 
 use i_slint_backend_testing::{AccessibleRole, ElementHandle, ElementQuery};
 use slint::platform::{Key, PointerEventButton, WindowEvent};
-use slint::{ComponentHandle, SharedString};
+use slint::{ComponentHandle, Model, SharedString};
 use sumpbook::app::shop::Shop;
 use sumpbook::gui::ui::{Nav, SetupAdapter, WalkAdapter};
 use sumpbook::gui::{App, Screen};
@@ -1236,4 +1236,80 @@ fn the_edits_tab_shows_who_changed_or_deleted_what_and_corrected_rows_are_marked
         .map(|v| v.to_string())
         .collect();
     assert_eq!(shown.len(), 2, "both on screen: {shown:?}");
+}
+
+/// A lab's own file on the import screen: the mapping proposed from its header is shown with
+/// the column it cannot place undecided; saving is refused until that column is decided; once
+/// saved the preview reads through it and the import writes the rows (US dates included), and
+/// the next file with the same header is read through it by itself.
+#[test]
+fn a_lab_file_is_mapped_on_the_import_screen_saved_and_used_again_by_itself() {
+    use sumpbook::gui::ui::ImportAdapter;
+    let f = open_demo();
+    f.app.run_jobs_inline();
+    f.app.show(Screen::Import);
+    let header = "Sample Date,Equipment ID,Visc @ 40C (cSt),Water (ppm),Tech";
+    let csv = f._dir.path().join("lab.csv");
+    std::fs::write(&csv, format!("{header}\n11/20/2026,PR-01-M,45.8,85,JR\n")).unwrap();
+    field(&f.app, "CSV file path").set_accessible_value(csv.to_str().unwrap());
+    button(&f.app, "Preview").invoke_accessible_default_action();
+    let a = f.app.window().global::<ImportAdapter>();
+    assert!(a.get_mapping_shown(), "{}", message(&f.app));
+    assert!(!a.get_can_import());
+    let chosen = |col: &str| {
+        let choices: Vec<String> = a.get_map_choices().iter().map(|c| c.to_string()).collect();
+        let row = a
+            .get_map_rows()
+            .iter()
+            .find(|r| r.column == col)
+            .unwrap_or_else(|| panic!("no row for {col}"));
+        choices[row.choice as usize].clone()
+    };
+    assert_eq!(chosen("Sample Date"), "sampled_at");
+    assert_eq!(chosen("Equipment ID"), "unit_tag");
+    assert_eq!(chosen("Visc @ 40C (cSt)"), "kv40_cst");
+    assert_eq!(chosen("Water (ppm)"), "water_ppm");
+    assert_eq!(chosen("Tech"), "— not decided —");
+    let dates: Vec<String> = a.get_date_choices().iter().map(|c| c.to_string()).collect();
+    assert!(dates[a.get_map_date() as usize].starts_with("month first"));
+
+    field(&f.app, "Mapping name").set_accessible_value("north-lab");
+    button(&f.app, "Save mapping").invoke_accessible_default_action();
+    let m = message(&f.app);
+    assert!(m.contains("Tech") && m.contains("cannot be saved"), "{m}");
+    assert!(shop(&f.path).import_profiles().unwrap().is_empty());
+
+    // Ignored as the column's choice box would: then saved, previewed through it, imported.
+    let tech = a
+        .get_map_rows()
+        .iter()
+        .position(|r| r.column == "Tech")
+        .unwrap();
+    a.invoke_map_set(tech as i32, 1);
+    assert_eq!(chosen("Tech"), "ignore");
+    button(&f.app, "Save mapping").invoke_accessible_default_action();
+    assert!(a.get_can_import(), "{}", message(&f.app));
+    assert!(a.get_kind().contains("north-lab"), "{}", a.get_kind());
+    a.invoke_start();
+    let m = message(&f.app);
+    assert!(m.contains("Imported") && m.contains("1 new"), "{m}");
+    let s = shop(&f.path);
+    let csv_out = {
+        let mut out = Vec::new();
+        s.export(sumpbook::app::vocab::FileKind::Samples, &mut out, None)
+            .unwrap();
+        String::from_utf8(out).unwrap()
+    };
+    assert!(
+        csv_out.contains("PR-01-M,2026-11-20T11:00:00Z,45.8,"),
+        "{csv_out}"
+    );
+
+    // The next file with the same header: the saved mapping by itself.
+    let next = f._dir.path().join("lab-dec.csv");
+    std::fs::write(&next, format!("{header}\n12/01/2026,PR-01-M,45.9,90,KT\n")).unwrap();
+    field(&f.app, "CSV file path").set_accessible_value(next.to_str().unwrap());
+    button(&f.app, "Preview").invoke_accessible_default_action();
+    assert!(a.get_kind().contains("north-lab"), "{}", a.get_kind());
+    assert!(a.get_can_import(), "{}", message(&f.app));
 }

@@ -158,7 +158,7 @@ fn copy_file_to_server_to_file_keeps_every_table_identical() {
     );
     let report: serde_json::Value = serde_json::from_str(&out).unwrap();
     let tables = report["tables"].as_array().unwrap();
-    assert_eq!(tables.len(), 11);
+    assert_eq!(tables.len(), 12);
     for pair in tables {
         assert_eq!(pair[0], pair[1], "{pair}");
     }

@@ -36,8 +36,7 @@ pub enum AppError {
     #[error(transparent)]
     Store(#[from] crate::store::StoreError),
     /// An import found bad rows and wrote nothing; every bad row, as `FILE:LINE: COLUMN: reason`.
-    #[error("{} bad row(s); nothing was imported:\n{}", errors.len(),
-        errors.iter().map(ToString::to_string).collect::<Vec<_>>().join("\n"))]
+    #[error("{}", crate::exchange::describe_errors(errors))]
     Import {
         errors: Vec<crate::exchange::RowError>,
     },

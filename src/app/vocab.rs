@@ -5,6 +5,7 @@
 //! called around `app`.
 
 pub use crate::exchange::large_shop::Spec as LargeShopSpec;
+pub use crate::exchange::mapping::{DateOrder, Mapping, Target as MapTarget, IGNORE};
 pub use crate::exchange::{FileKind, ImportSummary};
 pub use crate::health::baseline::{BaselineIndicator, BaselineSource};
 pub use crate::health::indicators::{Dim, Direction, Kv40Source, Series, Tile};

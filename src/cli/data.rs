@@ -10,8 +10,9 @@ use std::path::{Path, PathBuf};
 use clap::{Args, ValueEnum};
 
 use super::Failure;
+use crate::app::import::{mapping_needed_text, Columns, ImportRun};
 use crate::app::shop::{Shop, StoredStatus};
-use crate::app::vocab::{FileKind, ShopRole};
+use crate::app::vocab::{DateOrder, FileKind, ShopRole, IGNORE};
 use crate::units::UnitSystem;
 
 /// The kinds of CSV file, as typed on the command line.
@@ -77,6 +78,24 @@ pub struct ImportArgs {
     /// Print the summary as JSON.
     #[arg(long)]
     pub json: bool,
+    /// Read the file's columns through the saved column mapping NAME (without it, a file with
+    /// its own column names is read through the mapping saved for the same header).
+    #[arg(long, value_name = "NAME")]
+    pub map: Option<String>,
+    /// Save the column mapping (proposed, or --map's, with the corrections below) as NAME,
+    /// then import through it.
+    #[arg(long, value_name = "NAME")]
+    pub save_map: Option<String>,
+    /// Correct the mapping: the file's column COLUMN is sumpbook's column NAME (repeat for
+    /// more columns).
+    #[arg(long = "set", value_name = "COLUMN=NAME")]
+    pub set: Vec<String>,
+    /// Leave the file's column COLUMN out of the import on purpose (repeat for more).
+    #[arg(long, value_name = "COLUMN")]
+    pub ignore: Vec<String>,
+    /// How the file writes its dates: iso, day-first (20/11/2026) or month-first (11/20/2026).
+    #[arg(long, value_name = "ORDER")]
+    pub dates: Option<String>,
 }
 
 #[derive(Args, Debug, Clone, PartialEq)]
@@ -309,15 +328,60 @@ pub fn run_import(
 ) -> Result<(), Failure> {
     let mut shop = open_shop_for_writing(db)?;
     let kind = FileKind::from(args.kind);
+    let correcting = args.save_map.is_some() || !args.set.is_empty() || !args.ignore.is_empty();
+    let columns = if correcting || args.dates.is_some() {
+        let mut m = shop.mapping_for(Some(kind), &args.file, args.map.as_deref())?;
+        for pair in &args.set {
+            let (col, to) = pair
+                .rsplit_once('=')
+                .ok_or_else(|| Failure::bad_input(format!("--set `{pair}`: write COLUMN=NAME")))?;
+            m.set(col, to).map_err(Failure::bad_input)?;
+        }
+        for col in &args.ignore {
+            m.set(col, IGNORE).map_err(Failure::bad_input)?;
+        }
+        if let Some(d) = &args.dates {
+            m.dates = d.parse::<DateOrder>().map_err(Failure::bad_input)?;
+        }
+        match &args.save_map {
+            Some(name) => {
+                shop.save_import_profile(name, &m)?;
+                if !args.json {
+                    writeln!(out, "column mapping {name} saved")?;
+                }
+                Columns::Profile(name.clone())
+            }
+            None => Columns::Given(m),
+        }
+    } else {
+        args.map.clone().map_or(Columns::Auto, Columns::Profile)
+    };
     let opts = crate::app::import::ImportOptions {
         keep_going: args.keep_going,
+        columns,
         ..Default::default()
     };
-    let s = shop.import(kind, &args.file, &opts)?.into_summary()?;
+    let s = match shop.import(kind, &args.file, &opts)? {
+        ImportRun::NeedsMapping(m) => {
+            let mut text = mapping_needed_text(&args.file, &m);
+            text.push_str(&format!(
+                "Save it with: sumpbook import {kind} {} --save-map NAME, correcting it with \
+                 --set 'COLUMN=NAME', --ignore 'COLUMN' and --dates iso|day-first|month-first \
+                 (NAME: the lab's or the counter's); files with the same header then use it by \
+                 themselves.",
+                args.file.display()
+            ));
+            return Err(Failure::bad_input(text));
+        }
+        run => run.into_summary()?,
+    };
     if args.json {
         let text = serde_json::to_string_pretty(&s).map_err(|e| Failure::failed(e.to_string()))?;
         writeln!(out, "{text}")?;
         return Ok(());
+    }
+    if let Some(p) = &s.profile {
+        writeln!(out, "columns read through the saved mapping {p}")?;
     }
     write!(
         out,
@@ -352,6 +416,45 @@ pub fn run_import(
     writeln!(out)?;
     for line in crate::app::shop::questioned_lines(&s) {
         writeln!(out, "{line}")?;
+    }
+    Ok(())
+}
+
+pub fn run_import_maps(
+    db: Option<&Path>,
+    args: &StoredStatusArgs,
+    out: &mut dyn Write,
+) -> Result<(), Failure> {
+    let profiles = open_shop(db)?.import_profiles()?;
+    if args.json {
+        let list: Vec<serde_json::Value> = profiles
+            .iter()
+            .map(|p| {
+                serde_json::json!({
+                    "name": p.name,
+                    "kind": p.kind,
+                    "dates": p.date_order,
+                    "header": p.header,
+                    "columns": p.columns,
+                })
+            })
+            .collect();
+        let text =
+            serde_json::to_string_pretty(&list).map_err(|e| Failure::failed(e.to_string()))?;
+        writeln!(out, "{text}")?;
+        return Ok(());
+    }
+    if profiles.is_empty() {
+        writeln!(
+            out,
+            "no column mapping saved; `import` proposes one for a file with its own column names"
+        )?;
+    }
+    for p in &profiles {
+        writeln!(out, "{} ({} file, dates {})", p.name, p.kind, p.date_order)?;
+        for (from, to) in &p.columns {
+            writeln!(out, "  {from} → {to}")?;
+        }
     }
     Ok(())
 }

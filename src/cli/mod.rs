@@ -120,6 +120,8 @@ pub enum Command {
     Demo,
     /// Import a CSV file: all rows or none, unless --keep-going.
     Import(data::ImportArgs),
+    /// The saved column mappings for files with their own column names (`import --map NAME`).
+    ImportMaps(data::StoredStatusArgs),
     /// Export CSV (to standard output or --out FILE).
     Export(data::ExportArgs),
     /// Each unit's state, flags and key indicators, worst first (`--at DATE` replays the past).
@@ -194,6 +196,7 @@ fn run_command(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
         Some(Command::Init(args)) => data::run_init(db.as_deref(), args, out),
         Some(Command::Demo) => data::run_demo(db.as_deref(), out),
         Some(Command::Import(args)) => data::run_import(db.as_deref(), args, out),
+        Some(Command::ImportMaps(args)) => data::run_import_maps(db.as_deref(), args, out),
         Some(Command::Export(args)) => data::run_export(db.as_deref(), args, out),
         Some(Command::Status(args)) => {
             status::run_status(&data::open_shop(db.as_deref())?, args, out)

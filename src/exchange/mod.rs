@@ -3,16 +3,20 @@
 //!
 //! Four file kinds: the unit register (`units`), `checks`, `samples` and `events`. Headers
 //! name the quantity and its unit (`reservoir_temp_c` or `reservoir_temp_f`, ...), so one
-//! importer reads either unit system. Everything is read and written through the store; this
-//! module holds no SQL and computes no health.
+//! importer reads either unit system. A file that names its columns its own way (a lab's
+//! "Sample Date", "Visc @ 40C (cSt)") is read through a column mapping (`mapping`).
+//! Everything is read and written through the store; this module holds no SQL and computes no
+//! health.
 //!
 //! CSV dialect (docs/engineering.md, "CSV files"): RFC 4180 quoting; the delimiter (`,` `;` or
 //! tab) is detected from
 //! the header line; UTF-8 with or without a byte-order mark. Times are ISO 8601: a date
 //! (`2025-03-04`, taken as noon in the shop's time zone), or a date and time
 //! (`2025-03-04T07:30:00Z`, `2025-03-04 07:30`, `2025-03-04T08:30:00+01:00`); a time without `Z`
-//! or an offset is the shop's wall-clock time (`app::local_time`). Anything else, in particular
-//! `03/04/2025` (which day is it?), is refused. Fractions of a second are refused: readings are
+//! or an offset is the shop's wall-clock time (`app::local_time`). A slashed or dotted
+//! date (`11/20/2026`, `20.11.2026`) is read in the date order of the file's column mapping;
+//! without one only when it can be read one way (`11/20/2026`, not `03/04/2026`). Anything else
+//! is refused. Fractions of a second are refused: readings are
 //! kept to the second. Export writes UTC with `Z`. Numbers use a decimal point.
 //!
 //! Export protects spreadsheets: a text cell beginning with `=`, `+`, `-`, `@`, tab or CR is
@@ -28,6 +32,7 @@ pub mod csv_in;
 pub mod csv_out;
 pub mod demo;
 pub mod large_shop;
+pub mod mapping;
 
 /// The kinds of file sumpbook reads and writes.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
@@ -134,6 +139,9 @@ pub struct ImportSummary {
     /// Readings kept but questioned (a slipped decimal point, a pressure above the relief
     /// setting, ...), filled in by the application layer after the import.
     pub questioned: Vec<QuestionedRow>,
+    /// The saved column mapping the file was read through, when it names its columns its own
+    /// way.
+    pub profile: Option<String>,
 }
 
 /// One questioned field of an imported reading.
@@ -151,7 +159,7 @@ pub struct QuestionedRow {
 #[derive(Debug, thiserror::Error)]
 pub enum ExchangeError {
     /// Bad rows; nothing was written. Every one is listed.
-    #[error("{} bad row(s); nothing was imported:\n{}", .0.len(), join_errors(.0))]
+    #[error("{}", describe_errors(.0))]
     Rows(Vec<RowError>),
     #[error("{}: {source}", path.display())]
     Io {
@@ -165,6 +173,17 @@ pub enum ExchangeError {
     /// The rejects file could not be made.
     #[error(transparent)]
     Out(#[from] crate::outfile::OutFileError),
+}
+
+/// What refused rows say: a problem of the header alone is called that (no row was read),
+/// not a count of bad rows.
+pub fn describe_errors(errors: &[RowError]) -> String {
+    let head = if errors.iter().all(|e| e.line <= 1) {
+        "nothing was imported; the problem is in the header line (no row was read)".to_string()
+    } else {
+        format!("{} bad row(s); nothing was imported", errors.len())
+    };
+    format!("{head}:\n{}", join_errors(errors))
 }
 
 fn join_errors(errors: &[RowError]) -> String {

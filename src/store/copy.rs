@@ -14,7 +14,7 @@ use super::{Store, StoreError};
 
 /// The shop's tables in an order that satisfies their references. `settings` has its one row
 /// in every shop already; `edit_log` last, as the history of the rows before it.
-pub const COPIED_TABLES: [&str; 11] = [
+pub const COPIED_TABLES: [&str; 12] = [
     "settings",
     "machines",
     "fluids",
@@ -25,6 +25,7 @@ pub const COPIED_TABLES: [&str; 11] = [
     "manual_baselines",
     "limits",
     "acknowledgements",
+    "import_profiles",
     "edit_log",
 ];
 

@@ -39,6 +39,7 @@ pub mod events;
 pub mod explain;
 pub mod fluids;
 pub mod history;
+pub mod import_profiles;
 pub mod machines_units;
 pub mod roles;
 pub mod samples;
@@ -1420,6 +1421,6 @@ mod tests {
     #[test]
     fn every_migration_applies_in_memory() {
         MIGRATIONS.validate().unwrap();
-        assert_eq!(Store::latest_schema_version(), 4);
+        assert_eq!(Store::latest_schema_version(), 5);
     }
 }

@@ -65,13 +65,15 @@ impl ShopRole {
 
     /// The table rights beyond reading everything.
     fn grants(self) -> &'static [(&'static str, &'static str)] {
-        const LOG: [(&str, &str); 4] = [
+        // Whoever imports files keeps the column mappings they need.
+        const LOG: [(&str, &str); 5] = [
             ("INSERT", "checks"),
             ("INSERT", "samples"),
             ("INSERT", "events"),
             ("INSERT", "acknowledgements"),
+            ("INSERT, UPDATE", "import_profiles"),
         ];
-        const ENGINEER: [(&str, &str); 13] = [
+        const ENGINEER: [(&str, &str); 14] = [
             ("INSERT", "checks"),
             ("INSERT", "samples"),
             ("INSERT", "events"),
@@ -85,6 +87,7 @@ impl ShopRole {
             ("INSERT, DELETE", "manual_baselines"),
             ("INSERT, UPDATE, DELETE", "limits"),
             ("UPDATE", "settings"),
+            ("INSERT, UPDATE", "import_profiles"),
         ];
         const SUPERVISOR: [(&str, &str); 1] = [("INSERT", "acknowledgements")];
         match self {

@@ -39,29 +39,6 @@ pub(super) fn head_rows(
     path: &std::path::Path,
     max: usize,
 ) -> Result<(Vec<String>, Vec<Vec<String>>), AppError> {
-    let bytes =
-        std::fs::read(path).map_err(|e| AppError::BadInput(format!("{}: {e}", path.display())))?;
-    let text =
-        String::from_utf8_lossy(bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(&bytes)).into_owned();
-    let first = text.lines().next().unwrap_or("");
-    let delimiter = [b',', b';', b'\t']
-        .into_iter()
-        .max_by_key(|d| first.bytes().filter(|b| b == d).count())
-        .unwrap_or(b',');
-    let mut r = csv::ReaderBuilder::new()
-        .delimiter(delimiter)
-        .has_headers(false)
-        .flexible(true)
-        .from_reader(text.as_bytes());
-    let mut rows = r
-        .records()
-        .filter_map(Result::ok)
-        .map(|rec| rec.iter().map(|c| c.to_string()).collect::<Vec<_>>());
-    let header = rows.next().unwrap_or_default();
-    Ok((
-        header,
-        rows.filter(|r| r.iter().any(|c| !c.trim().is_empty()))
-            .take(max)
-            .collect(),
-    ))
+    crate::exchange::csv_in::head_of_file(path, max)
+        .map_err(|e| AppError::BadInput(format!("{}: {e}", path.display())))
 }

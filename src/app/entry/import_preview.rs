@@ -6,9 +6,10 @@ use super::*;
 use std::sync::atomic::Ordering;
 
 use crate::app::import::ImportOptions;
-pub use crate::app::import::{Cancel, ImportRun};
+pub use crate::app::import::{Cancel, Columns, ImportRun, Resolved};
 use crate::app::shop::Shop;
 use crate::app::AppError;
+pub use crate::exchange::mapping::Mapping;
 use crate::exchange::{FileKind, ImportSummary, RowError};
 
 /// What an import would do, found by importing into a scratch copy of the shop.
@@ -20,6 +21,13 @@ pub struct ImportPreview {
     pub rows: Vec<Vec<String>>,
     /// What importing would write; `Err` lists every bad row (then nothing can be imported).
     pub outcome: Result<ImportSummary, Vec<RowError>>,
+    /// The mapping the file's own column names are read through (or, with `needs_mapping`,
+    /// the one proposed); `None` for sumpbook's own names.
+    pub mapping: Option<Mapping>,
+    /// The saved profile of that mapping.
+    pub profile: Option<String>,
+    /// No mapping is decided for this file yet: nothing was read beyond the header.
+    pub needs_mapping: bool,
 }
 
 fn scratch_path(db: &std::path::Path) -> std::path::PathBuf {
@@ -49,6 +57,17 @@ pub fn preview_import(
     progress: &dyn Fn(f32),
     cancel: &Cancel,
 ) -> Result<Option<ImportPreview>, AppError> {
+    preview_import_with(db, file, &Columns::Auto, progress, cancel)
+}
+
+/// [`preview_import`] reading the file's columns as `columns` says.
+pub fn preview_import_with(
+    db: &std::path::Path,
+    file: &std::path::Path,
+    columns: &Columns,
+    progress: &dyn Fn(f32),
+    cancel: &Cancel,
+) -> Result<Option<ImportPreview>, AppError> {
     if !file.is_file() {
         return Err(AppError::BadInput(format!(
             "{}: no such file",
@@ -56,13 +75,36 @@ pub fn preview_import(
         )));
     }
     let (header, rows) = head_rows(file, 200)?;
-    let kind = detect_kind(&header).ok_or_else(|| {
-        AppError::BadInput(format!(
-            "cannot tell what the file holds from its header ({}); a checks, samples, events or unit register \
-             file names its columns, e.g. unit_tag,taken_at,reservoir_temp_c",
-            header.join(",")
-        ))
-    })?;
+    let resolved = Shop::open(db)?.resolve_columns(None, &header, &rows, columns)?;
+    let kind = resolved.kind();
+    let (mapping, profile) = match resolved {
+        Resolved::Native(_) => (None, None),
+        Resolved::Mapped(m, p) => (Some(m), p),
+        Resolved::Needs(m) => {
+            let reason = format!(
+                "the columns are not sumpbook's own and no saved column mapping has this header \
+                 (no row was read); {} column(s) still to map or ignore",
+                m.undecided().len()
+            );
+            return Ok(Some(ImportPreview {
+                kind,
+                header,
+                rows,
+                outcome: Err(vec![RowError {
+                    file: file
+                        .file_name()
+                        .map(|n| n.to_string_lossy().into_owned())
+                        .unwrap_or_default(),
+                    line: 1,
+                    column: "header".into(),
+                    reason,
+                }]),
+                mapping: Some(m),
+                profile: None,
+                needs_mapping: true,
+            }));
+        }
+    };
     let scratch = scratch_path(db);
     let result = (|| {
         Shop::open(db)?.backup(&scratch)?;
@@ -70,24 +112,33 @@ pub fn preview_import(
             progress,
             cancel: Some(cancel),
             name_only: true,
+            columns: mapping.clone().map_or(Columns::Auto, Columns::Given),
             ..ImportOptions::default()
         };
         Shop::open(&scratch)?.import(kind, file, &opts)
     })();
     remove_db_files(&scratch);
-    Ok(match result? {
-        ImportRun::Cancelled => None,
-        ImportRun::Done(s) => Some(ImportPreview {
-            kind,
-            header,
-            rows,
-            outcome: Ok(s),
-        }),
-        ImportRun::Refused(e) => Some(ImportPreview {
-            kind,
-            header,
-            rows,
-            outcome: Err(e),
-        }),
-    })
+    let outcome = match result? {
+        ImportRun::Cancelled => return Ok(None),
+        ImportRun::Done(mut s) => {
+            s.profile.clone_from(&profile);
+            Ok(s)
+        }
+        ImportRun::Refused(e) => Err(e),
+        // The mapping was decided above; the scratch copy reads through it.
+        ImportRun::NeedsMapping(_) => {
+            return Err(AppError::Failed(
+                "the import preview lost its column mapping".into(),
+            ))
+        }
+    };
+    Ok(Some(ImportPreview {
+        kind,
+        header,
+        rows,
+        outcome,
+        mapping,
+        profile,
+        needs_mapping: false,
+    }))
 }

@@ -121,7 +121,8 @@ pub(crate) fn specs(kind: FileKind) -> &'static [ColSpec] {
     }
 }
 
-pub(super) fn required(kind: FileKind) -> &'static [&'static str] {
+/// The fields a file of `kind` must have a column for.
+pub(crate) fn required_fields(kind: FileKind) -> &'static [&'static str] {
     match kind {
         FileKind::Units => &["machine_tag", "unit_tag"],
         FileKind::Checks => &["unit_tag", "taken_at"],

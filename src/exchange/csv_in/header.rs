@@ -6,6 +6,7 @@ use std::collections::HashMap;
 
 use csv::ByteRecord;
 
+use crate::exchange::mapping::{Mapping, Target};
 use crate::exchange::{FileKind, RowError};
 
 /// Where a field is in the file and in which unit.
@@ -53,6 +54,7 @@ pub(super) fn parse_header(
     kind: FileKind,
     file: &str,
     rec: &ByteRecord,
+    mapping: Option<&Mapping>,
 ) -> Result<Header, Vec<RowError>> {
     let specs = specs(kind);
     let mut errors = Vec::new();
@@ -76,6 +78,24 @@ pub(super) fn parse_header(
             // A corrected rejects file imports as it stands; its reasons are not data.
             continue;
         }
+        // Through a mapping the file's own name stands for one of sumpbook's; a column the
+        // mapping does not decide is refused rather than dropped unseen.
+        let name = match mapping {
+            None => name,
+            Some(m) => match m.target(name) {
+                Some(Target::Column(c)) => c,
+                Some(Target::Ignore) => continue,
+                None => {
+                    errors.push(err(
+                        &clip(name, 60),
+                        "the column mapping neither maps nor ignores this column; map it to one \
+                         of sumpbook's columns or ignore it"
+                            .into(),
+                    ));
+                    continue;
+                }
+            },
+        };
         let Some(spec) = specs.iter().find(|s| s.name == name) else {
             let shown = if name.is_empty() {
                 format!("column {}", pos + 1)
@@ -120,7 +140,7 @@ pub(super) fn parse_header(
             },
         );
     }
-    for field in required(kind) {
+    for field in required_fields(kind) {
         if !slots.contains_key(field) && errors.iter().all(|e| e.column != *field) {
             errors.push(err(field, "required column is missing".into()));
         }

@@ -8,8 +8,43 @@ use std::path::{Path, PathBuf};
 use chrono::Utc;
 use csv::ByteRecord;
 
+use crate::exchange::mapping::{DateOrder, Mapping};
 use crate::exchange::{ExchangeError, FileKind, ImportSummary, RowError};
 use crate::store::Store;
+
+/// A file's header and its first `max` non-blank rows as text, for choosing how to read it
+/// and for showing; reads no further. The real reading, with every rule, is the importer's.
+pub fn head_of_file(path: &Path, max: usize) -> std::io::Result<(Vec<String>, Vec<Vec<String>>)> {
+    let mut input = BufReader::new(std::fs::File::open(path)?);
+    let mut first = Vec::new();
+    input.read_until(b'\n', &mut first)?;
+    let first = first
+        .strip_prefix(b"\xEF\xBB\xBF")
+        .map(<[u8]>::to_vec)
+        .unwrap_or(first);
+    let delimiter = detect_delimiter(&first);
+    let mut r = csv::ReaderBuilder::new()
+        .delimiter(delimiter)
+        .has_headers(false)
+        .flexible(true)
+        .from_reader(std::io::Cursor::new(first).chain(input));
+    let mut rows = r.byte_records().map_while(Result::ok).map(|rec| {
+        rec.iter()
+            .map(|c| String::from_utf8_lossy(c).into_owned())
+            .collect::<Vec<_>>()
+    });
+    let header = rows
+        .next()
+        .unwrap_or_default()
+        .into_iter()
+        .map(|h| h.trim().to_string())
+        .collect();
+    let body = rows
+        .filter(|r| r.iter().any(|c| !c.trim().is_empty()))
+        .take(max)
+        .collect();
+    Ok((header, body))
+}
 
 /// Imports one CSV file of `kind` into the shop. See the module documentation.
 pub fn import_file(
@@ -35,6 +70,49 @@ pub fn import_reader<R: Read>(
     label: &str,
     input: R,
     rejects: Option<PathBuf>,
+) -> Result<ImportSummary, ExchangeError> {
+    import_mapped(store, kind, label, input, rejects, None)
+}
+
+/// [`import_reader`] with the file's own column names read through `mapping` (a lab's
+/// "Sample Date" as `sampled_at`, its dates in the mapping's order). With a mapping, a column it
+/// neither maps nor ignores is refused; messages name the columns as the file does.
+pub fn import_mapped<R: Read>(
+    store: &mut Store,
+    kind: FileKind,
+    label: &str,
+    input: R,
+    rejects: Option<PathBuf>,
+    mapping: Option<&Mapping>,
+) -> Result<ImportSummary, ExchangeError> {
+    let renamed = |errors: Vec<RowError>| {
+        let Some(m) = mapping else { return errors };
+        errors
+            .into_iter()
+            .map(|mut e| {
+                let own = m.columns.iter().find(|(_, t)| {
+                    matches!(t, Some(crate::exchange::mapping::Target::Column(c)) if *c == e.column)
+                });
+                if let Some((name, _)) = own {
+                    e.column = name.clone();
+                }
+                e
+            })
+            .collect()
+    };
+    match import_inner(store, kind, label, input, rejects, mapping) {
+        Err(ExchangeError::Rows(errors)) => Err(ExchangeError::Rows(renamed(errors))),
+        other => other,
+    }
+}
+
+fn import_inner<R: Read>(
+    store: &mut Store,
+    kind: FileKind,
+    label: &str,
+    input: R,
+    rejects: Option<PathBuf>,
+    mapping: Option<&Mapping>,
 ) -> Result<ImportSummary, ExchangeError> {
     let io_err = |e: std::io::Error| ExchangeError::Io {
         path: PathBuf::from(label),
@@ -147,7 +225,7 @@ pub fn import_reader<R: Read>(
             reason: "the file has no header line".into(),
         }]));
     }
-    let header = parse_header(kind, label, &rec).map_err(ExchangeError::Rows)?;
+    let header = parse_header(kind, label, &rec, mapping).map_err(ExchangeError::Rows)?;
     let mut rejects = rejects.map(|path| Rejects {
         path,
         delimiter,
@@ -167,6 +245,7 @@ pub fn import_reader<R: Read>(
         rounded: 0,
         inserted_ids: None,
         questioned: Vec::new(),
+        profile: None,
     };
     let mut errors: Vec<RowError> = Vec::new();
     let zone = crate::app::local_time::Zone::of_setting(&store.settings()?.time_zone);
@@ -229,6 +308,7 @@ pub fn import_reader<R: Read>(
             latest,
             zone,
             rounded: 0,
+            dates: mapping.map_or(DateOrder::Iso, |m| m.dates),
         };
         let outcome = if let Some(column) = unclosed_quote(&rec, delimiter, header.width) {
             let name = header.name_at(column);

@@ -70,6 +70,8 @@ pub(super) struct RowReader<'r> {
     pub(super) zone: crate::app::local_time::Zone,
     /// Numbers of this row written with more significant digits than are stored.
     pub(super) rounded: u64,
+    /// How the file writes day and month (a lab's `11/20/2026`).
+    pub(super) dates: crate::exchange::mapping::DateOrder,
 }
 
 impl<'r> RowReader<'r> {
@@ -139,7 +141,14 @@ impl<'r> RowReader<'r> {
     pub(super) fn when(&mut self, slot: Option<Slot>, field: &str) -> Option<DateTime<Utc>> {
         let text = self.need(slot, field)?;
         let name = slot.map_or(field, |s| s.name);
-        match parse_when(text, self.zone) {
+        let iso = match crate::exchange::mapping::iso_date_text(text, self.dates) {
+            Ok(t) => t,
+            Err(e) => {
+                self.err(name, e);
+                return None;
+            }
+        };
+        match parse_when(&iso, self.zone) {
             Ok(t) if t > self.latest => {
                 self.err(name, format!("`{text}` is in the future"));
                 None
