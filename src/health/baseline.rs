@@ -185,6 +185,11 @@ pub struct BaselineValue {
 #[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
 pub struct Baseline {
     pub values: Vec<BaselineValue>,
+    /// Where a step in flow and heat (`indicators::step_at`) stopped the baseline growing
+    /// before it had all its checks: the time of the step's first check. Checks from then on
+    /// are judged against the baseline, never taken into it.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub closed_at: Option<DateTime<Utc>>,
 }
 
 impl Baseline {
@@ -292,7 +297,10 @@ pub fn build_baseline(
             },
         });
     }
-    Baseline { values }
+    Baseline {
+        values,
+        closed_at: None,
+    }
 }
 
 #[cfg(test)]

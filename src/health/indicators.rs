@@ -300,12 +300,19 @@ pub fn compute(
     // `n_max`.
     let n_min = limits.value(LimitKey::BaselineChecks).round().max(0.0) as usize;
     let n_max = (limits.value(LimitKey::BaselineChecksMax).round().max(0.0) as usize).max(n_min);
+    // Maintenance that restarts what it addresses.
+    let restarts = restarts_in(h, era);
+    // A baseline still growing takes in no check from a step in flow and heat on (`step_at`):
+    // what follows such a step is the fault, not the sound unit.
+    let admit_before = step_at(&points, limits, &restarts);
+    let admitted = |p: &CheckPoint| admit_before.is_none_or(|t| p.at < t);
 
     // The reference conditions: mean viscosity and pressure of the checks the baseline is
     // formed from. Leakage flow goes as p/ν (laminar gaps), so a leakage seen at (ν, p) would
     // be (ν/ν_ref)·(p_ref/p) times as large at the reference conditions.
     let cond: Vec<(f64, f64, Option<f64>)> = points
         .iter()
+        .filter(|p| admitted(p))
         .filter_map(|p| Some((p.viscosity_at_temp?, p.pressure?, p.effective_flow)))
         .take(n_max)
         .collect();
@@ -363,6 +370,7 @@ pub fn compute(
         |ind: BaselineIndicator, points: &[CheckPoint]| -> Vec<(Id, DateTime<Utc>, f64)> {
             points
                 .iter()
+                .filter(|p| admitted(p))
                 .filter_map(|p| {
                     let v = value_of(p, ind)?;
                     Some((p.check_id, p.at, v))
@@ -377,6 +385,14 @@ pub fn compute(
         Some(e) => baseline::build_baseline(e, n_min, n_max, &per, &h.manual_baselines),
         None => Baseline::default(),
     };
+    // A step that came while the baseline was still growing closed it (what it would have
+    // taken in is the fault).
+    baseline.closed_at = admit_before.filter(|_| {
+        baseline
+            .values
+            .iter()
+            .any(|v| matches!(v.source, BaselineSource::Checks { .. }) && !v.complete)
+    });
     // The fitted conductance is the baseline's where the fit was made (a better estimate than
     // the median of single checks, with its own standard error).
     if let (Some(f), Some(b)) = (
@@ -411,7 +427,7 @@ pub fn compute(
             _ => {
                 let ps: Vec<f64> = points
                     .iter()
-                    .filter(|p| p.heat_rise.is_some())
+                    .filter(|p| admitted(p) && p.heat_rise.is_some())
                     .take(n_max)
                     .filter_map(|p| p.pressure)
                     .collect();
@@ -424,7 +440,7 @@ pub fn compute(
         model.map(|m| {
             let r: Vec<f64> = points
                 .iter()
-                .filter(|p| p.heat_rise.is_some())
+                .filter(|p| admitted(p) && p.heat_rise.is_some())
                 .take(n_max)
                 .filter_map(|p| Some(p.heat_rise? / m.at(p.pressure?, p.viscosity_at_temp)?))
                 .collect();
@@ -468,8 +484,6 @@ pub fn compute(
         .flatten()
         .collect();
 
-    // Maintenance that restarts what it addresses.
-    let restarts = restarts_in(h, era);
     let restarted = |ind: BaselineIndicator, from: DateTime<Utc>, to: DateTime<Utc>| {
         restarts
             .iter()
@@ -790,6 +804,75 @@ pub fn sudden_loss(first: f64, second: f64, watch: Option<f64>) -> f64 {
         Some(w) if first >= w => second,
         _ => first.min(second),
     }
+}
+
+/// Where a step in flow and heat began, if one did: the first of two checks in a row whose
+/// timed flow is below, and whose heat rise at the same pressure is above, the median of up
+/// to `SUDDEN_BEFORE` checks before them, each by at least the watch limit of its own flag
+/// (lost flow, heat-rise drift). That is how a relief valve, or any new path to tank, that
+/// starts to pass oil shows at once: what it passes is missing from the stroke and turned into
+/// heat at the same checks. A hot week moves oil and hall together and leaves the heat rise;
+/// a heavier job moves the heat rise with the pressure, which the comparison at the same
+/// pressure (heat load ∝ p) takes out. Judged on the readings against the checks just before
+/// them, so it does not depend on the baseline it decides about (common practice, no
+/// published source).
+pub fn step_at(
+    points: &[CheckPoint],
+    limits: &Limits,
+    restarts: &[Restart],
+) -> Option<DateTime<Utc>> {
+    /// One check with all three readings.
+    struct Seen {
+        at: DateTime<Utc>,
+        flow: f64,
+        rise: f64,
+        pressure: f64,
+    }
+    let flow_watch = limits.get(LimitKey::LostFlowPct).watch?;
+    let heat_watch = limits.get(LimitKey::HeatRiseDriftK).watch?;
+    let mut seen: Vec<Seen> = Vec::new();
+    for p in points {
+        let (Some(flow), Some(rise), Some(pressure)) = (p.effective_flow, p.heat_rise, p.pressure)
+        else {
+            continue;
+        };
+        if restarts.iter().any(|r| {
+            r.addresses(BaselineIndicator::EffectiveFlow)
+                && seen.last().is_some_and(|l| r.at > l.at)
+        }) {
+            seen.clear();
+        }
+        seen.push(Seen {
+            at: p.at,
+            flow,
+            rise,
+            pressure,
+        });
+        let n = seen.len();
+        if n < 2 + SUDDEN_BEFORE_MIN {
+            continue;
+        }
+        let before = &seen[n.saturating_sub(2 + SUDDEN_BEFORE)..n - 2];
+        let med =
+            |f: &dyn Fn(&Seen) -> f64| stats::median(&before.iter().map(f).collect::<Vec<_>>());
+        let (Some(q_ref), Some(p_ref)) = (med(&|s| s.flow), med(&|s| s.pressure)) else {
+            continue;
+        };
+        if q_ref <= 0.0 || p_ref <= 0.0 {
+            continue;
+        }
+        let heat_at_ref = |s: &Seen| s.rise * p_ref / s.pressure;
+        let Some(d_ref) = med(&heat_at_ref) else {
+            continue;
+        };
+        let stepped = |s: &Seen| {
+            (1.0 - s.flow / q_ref) * 100.0 >= flow_watch && heat_at_ref(s) - d_ref >= heat_watch
+        };
+        if stepped(&seen[n - 2]) && stepped(&seen[n - 1]) {
+            return Some(seen[n - 2].at);
+        }
+    }
+    None
 }
 
 /// The level a flag judges from the last readings of an indicator whose high values mean
@@ -1824,6 +1907,83 @@ mod tests {
             ..m
         };
         assert!(runaway.settled_rise(100.0e5, amb, oil).is_none());
+    }
+
+    /// A check `week` weeks in: timed flow `q` L/min, heat rise `rise` K, `bar`.
+    fn stepping(week: i64, q: f64, rise: f64, bar: f64) -> CheckPoint {
+        CheckPoint {
+            check_id: week,
+            at: crate::health::testutil::t("2024-01-01") + chrono::Duration::weeks(week),
+            effective_flow: Some(q / 60_000.0),
+            heat_rise: Some(rise),
+            pressure: Some(bar * 1.0e5),
+            ..CheckPoint::default()
+        }
+    }
+
+    #[test]
+    fn a_step_in_flow_and_heat_at_two_checks_in_a_row_is_found_at_its_first() {
+        // Six checks at 100 L/min and 20 K over ambient at 100 bar, then a relief valve passes
+        // oil: 90 L/min (10 % below, past the 8 % watch limit) and 26 K (+6 K, past the 5 K
+        // watch limit) at two checks in a row (worked by hand).
+        let l = Limits::builtin();
+        let mut pts: Vec<CheckPoint> = (0..6).map(|w| stepping(w, 100.0, 20.0, 100.0)).collect();
+        pts.push(stepping(6, 90.0, 26.0, 100.0));
+        assert_eq!(step_at(&pts, &l, &[]), None, "one check is no step yet");
+        pts.push(stepping(7, 90.0, 26.0, 100.0));
+        assert_eq!(step_at(&pts, &l, &[]), Some(pts[6].at));
+        // A repair between the checks before and the step starts the comparison afresh: too
+        // few checks after it to judge.
+        let repair = Restart {
+            at: pts[5].at + chrono::Duration::days(1),
+            event_id: 1,
+            event: EventKind::Repair,
+        };
+        assert_eq!(step_at(&pts, &l, &[repair]), None);
+    }
+
+    #[test]
+    fn a_hot_week_a_heavier_job_or_one_slow_check_is_no_step() {
+        let l = Limits::builtin();
+        let before: Vec<CheckPoint> = (0..6).map(|w| stepping(w, 100.0, 20.0, 100.0)).collect();
+        let with = |a: CheckPoint, b: CheckPoint| {
+            let mut v = before.clone();
+            v.push(a);
+            v.push(b);
+            step_at(&v, &l, &[])
+        };
+        // A hot hall: thin oil, the flow down 10 %, the heat rise (oil over ambient) as before.
+        assert_eq!(
+            with(
+                stepping(6, 90.0, 20.0, 100.0),
+                stepping(7, 90.0, 21.0, 100.0)
+            ),
+            None
+        );
+        // A job at 130 bar: 26 K is 20 K at 100 bar (heat load ∝ p), and the flow 10 % down.
+        assert_eq!(
+            with(
+                stepping(6, 90.0, 26.0, 130.0),
+                stepping(7, 90.0, 26.0, 130.0)
+            ),
+            None
+        );
+        // Heat up with the flow as before (a fouling cooler, not a path to tank).
+        assert_eq!(
+            with(
+                stepping(6, 99.0, 30.0, 100.0),
+                stepping(7, 99.0, 30.0, 100.0)
+            ),
+            None
+        );
+        // A step at one check and back at the next.
+        assert_eq!(
+            with(
+                stepping(6, 90.0, 26.0, 100.0),
+                stepping(7, 100.0, 20.0, 100.0)
+            ),
+            None
+        );
     }
 
     #[test]

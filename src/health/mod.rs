@@ -833,6 +833,42 @@ mod tests {
     }
 
     #[test]
+    fn a_step_in_flow_and_heat_closes_a_baseline_still_growing() {
+        // Seven checks at 4.0 s with the oil 25 K over the hall (the baseline grows from 4 to
+        // 12), then a relief valve passes oil: 5.0 s (flow down 20 %) and the oil 40 K over
+        // the hall (+15 K) at two checks in a row. The baseline stays the first 7 checks, and
+        // the second slow check is at act.
+        let mut h = press();
+        for w in 0..7 {
+            h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
+        }
+        for w in 7..9 {
+            h.checks.push(timed(w + 1, w, 5.0, 60.0, 20.0));
+        }
+        let r = eval(&h, &Limits::builtin(), week(8));
+        let heat = r.baseline.get(BaselineIndicator::HeatRise).unwrap();
+        match &heat.source {
+            BaselineSource::Checks { check_ids, .. } => assert_eq!(check_ids.len(), 7),
+            other => panic!("{other:?}"),
+        }
+        assert!((heat.value - 25.0).abs() < 1e-9, "{}", heat.value);
+        assert_eq!(r.baseline.closed_at, Some(week(7)));
+        assert_eq!(r.state, State::Act);
+        // The same slow strokes with the oil as before (no heat): the baseline takes them in.
+        let mut h = press();
+        for w in 0..9 {
+            h.checks
+                .push(timed(w + 1, w, if w < 7 { 4.0 } else { 5.0 }, 45.0, 20.0));
+        }
+        let r = eval(&h, &Limits::builtin(), week(8));
+        assert_eq!(r.baseline.closed_at, None);
+        match &r.baseline.get(BaselineIndicator::HeatRise).unwrap().source {
+            BaselineSource::Checks { check_ids, .. } => assert_eq!(check_ids.len(), 9),
+            other => panic!("{other:?}"),
+        }
+    }
+
+    #[test]
     fn a_step_seen_at_watch_and_confirmed_beyond_act_is_act_at_the_second_check() {
         // Twelve checks at 4.0 s, then a relief valve starts to pass oil on a cold morning:
         // 4.4 s (flow down 1 − 4/4.4 = 9.1 %, past the 8 % watch limit), then 5.0 s (20 %).

@@ -111,6 +111,12 @@ fn baseline_text(u: &UnitStatus, sys: UnitSystem, zone: Zone) -> String {
             ));
         }
     }
+    if let Some(t) = b.closed_at {
+        sources.push(format!(
+            "closed at the step in flow and heat of {}",
+            t.format("%Y-%m-%d")
+        ));
+    }
     format!("{}; {}", values.join(", "), sources.join("; "))
 }
 

@@ -257,6 +257,13 @@ fn unit_page(
             b.indicator.key().replace('_', " ")
         )?;
     }
+    if let Some(t) = h.baseline.closed_at {
+        writeln!(
+            out,
+            "Baseline closed at the step in flow and heat of {}: later checks are judged against it, not taken into it",
+            t.format("%Y-%m-%d")
+        )?;
+    }
     writeln!(out)?;
     writeln!(
         out,
