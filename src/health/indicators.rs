@@ -1946,44 +1946,34 @@ mod tests {
     fn a_hot_week_a_heavier_job_or_one_slow_check_is_no_step() {
         let l = Limits::builtin();
         let before: Vec<CheckPoint> = (0..6).map(|w| stepping(w, 100.0, 20.0, 100.0)).collect();
-        let with = |a: CheckPoint, b: CheckPoint| {
+        // (why, the two checks as (L/min, K over ambient, bar)).
+        for (why, a, b) in [
+            (
+                "a hot hall: thin oil, the flow down 10 %, the heat rise as before",
+                (90.0, 20.0, 100.0),
+                (90.0, 21.0, 100.0),
+            ),
+            (
+                "a job at 130 bar: 26 K is 20 K at 100 bar (heat load ∝ p), flow down 10 %",
+                (90.0, 26.0, 130.0),
+                (90.0, 26.0, 130.0),
+            ),
+            (
+                "heat up with the flow as before: a fouling cooler, not a path to tank",
+                (99.0, 30.0, 100.0),
+                (99.0, 30.0, 100.0),
+            ),
+            (
+                "a step at one check and back at the next",
+                (90.0, 26.0, 100.0),
+                (100.0, 20.0, 100.0),
+            ),
+        ] {
             let mut v = before.clone();
-            v.push(a);
-            v.push(b);
-            step_at(&v, &l, &[])
-        };
-        // A hot hall: thin oil, the flow down 10 %, the heat rise (oil over ambient) as before.
-        assert_eq!(
-            with(
-                stepping(6, 90.0, 20.0, 100.0),
-                stepping(7, 90.0, 21.0, 100.0)
-            ),
-            None
-        );
-        // A job at 130 bar: 26 K is 20 K at 100 bar (heat load ∝ p), and the flow 10 % down.
-        assert_eq!(
-            with(
-                stepping(6, 90.0, 26.0, 130.0),
-                stepping(7, 90.0, 26.0, 130.0)
-            ),
-            None
-        );
-        // Heat up with the flow as before (a fouling cooler, not a path to tank).
-        assert_eq!(
-            with(
-                stepping(6, 99.0, 30.0, 100.0),
-                stepping(7, 99.0, 30.0, 100.0)
-            ),
-            None
-        );
-        // A step at one check and back at the next.
-        assert_eq!(
-            with(
-                stepping(6, 90.0, 26.0, 100.0),
-                stepping(7, 100.0, 20.0, 100.0)
-            ),
-            None
-        );
+            v.push(stepping(6, a.0, a.1, a.2));
+            v.push(stepping(7, b.0, b.1, b.2));
+            assert_eq!(step_at(&v, &l, &[]), None, "{why}");
+        }
     }
 
     #[test]
