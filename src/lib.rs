@@ -28,6 +28,7 @@
 //! (`gui::fleet`), `status` and its JSON (`cli::status`) and the PDF (`app::report` → `report`).
 
 pub mod app;
+pub mod bounds;
 pub mod cli;
 pub mod exchange;
 #[cfg(feature = "gui")]

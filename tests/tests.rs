@@ -12,5 +12,6 @@ mod physics_reference;
 mod reliability;
 mod report;
 mod run;
+mod schema_bounds;
 mod server;
 mod store_and_exchange;

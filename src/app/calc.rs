@@ -25,8 +25,8 @@ fn bad(e: PhysicsError) -> AppError {
 
 /// Temperatures a practitioner may ask about: the physical range (docs/engineering.md, "Physical
 /// bounds of readings") for oil in service.
-const MIN_C: f64 = -40.0;
-const MAX_C: f64 = 150.0;
+const MIN_C: f64 = crate::bounds::TEMP_C.0;
+const MAX_C: f64 = crate::bounds::TEMP_C.1;
 
 fn check_temperature(what: &str, t: Temperature) -> Result<(), AppError> {
     let c = t.c();

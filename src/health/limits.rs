@@ -357,7 +357,7 @@ pub struct ValueRange {
 /// A temperature sumpbook accepts at all (oil or hall), in °C: the walk-round form and the
 /// importer refuse a reading outside it, and a temperature limit outside it could never be
 /// reached.
-pub const TEMP_RANGE_C: (f64, f64) = (-40.0, 150.0);
+pub const TEMP_RANGE_C: (f64, f64) = crate::bounds::TEMP_C;
 
 const fn from(lo: f64, hi: f64) -> ValueRange {
     ValueRange {

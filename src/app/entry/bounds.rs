@@ -9,12 +9,12 @@ use crate::units::{Temperature, UnitSystem};
 
 /// Lowest and highest oil or air temperature accepted, °C (docs/engineering.md, "Physical bounds
 /// of readings").
-pub const TEMP_MIN_C: f64 = crate::health::limits::TEMP_RANGE_C.0;
-pub const TEMP_MAX_C: f64 = crate::health::limits::TEMP_RANGE_C.1;
-/// Highest working pressure accepted, bar (the store's bound; beyond any press circuit).
-pub const PRESSURE_MAX_BAR: f64 = 1000.0;
-/// Longest timed stroke accepted, s (the store's bound).
-pub const STROKE_MAX_S: f64 = 3600.0;
+pub const TEMP_MIN_C: f64 = crate::bounds::TEMP_C.0;
+pub const TEMP_MAX_C: f64 = crate::bounds::TEMP_C.1;
+/// Highest working pressure accepted, bar (the one bounds table's).
+pub const PRESSURE_MAX_BAR: f64 = crate::bounds::PRESSURE_BAR.hi;
+/// Longest timed stroke accepted, s (the one bounds table's).
+pub const STROKE_MAX_S: f64 = crate::bounds::STROKE_TIME_S.hi;
 
 // Unusual (common practice, no published source). A reading far from the unit's recent ones,
 // a pressure above the relief setting, air warmer than the oil and a case drain above rated

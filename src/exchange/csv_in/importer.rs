@@ -3,6 +3,7 @@
 //! here; the store does that.
 
 use super::*;
+use crate::bounds;
 
 use crate::exchange::{ExchangeError, FileKind, ImportSummary};
 use crate::model::{Check, Confirmation, FilterState, Id, OilLevel};
@@ -148,17 +149,17 @@ impl Importer {
         let taken_at = row.when(self.slot("taken_at"), "taken_at");
         let reservoir_temp = row.temperature(self.slot("reservoir_temp"));
         let ambient_temp = row.temperature(self.slot("ambient_temp"));
-        let pressure = row.pressure(self.slot("pressure"), incl(0.0, 1000.0));
+        let pressure = row.pressure(self.slot("pressure"), bound(bounds::PRESSURE_BAR));
         let stroke_time = row
-            .plain(self.slot("stroke_time"), above(0.0, 3600.0))
+            .plain(self.slot("stroke_time"), bound(bounds::STROKE_TIME_S))
             .map(Seconds);
         let cycle_time = row
-            .plain(self.slot("cycle_time"), above(0.0, 86400.0))
+            .plain(self.slot("cycle_time"), bound(bounds::CYCLE_TIME_S))
             .map(Seconds);
         let oil_level: Option<OilLevel> = row.parsed(self.slot("oil_level"));
         let filter: Option<FilterState> = row.parsed(self.slot("filter"));
-        let hours = row.plain(self.slot("hours"), incl(0.0, 1.0e7));
-        let case_drain = row.flow(self.slot("case_drain"), incl(0.0, 10000.0));
+        let hours = row.plain(self.slot("hours"), bound(bounds::HOURS));
+        let case_drain = row.flow(self.slot("case_drain"), bound(bounds::CASE_DRAIN_LPM));
         let by = row.free(self.slot("by"));
         let note = row.free(self.slot("note"));
         let confirmed = self.confirmation(row);

@@ -8,7 +8,6 @@ use chrono::{DateTime, Utc};
 use csv::ByteRecord;
 
 use crate::exchange::{unescape_cell, RowError};
-use crate::health::limits::TEMP_RANGE_C;
 use crate::store::columns::{self, round_sig};
 use crate::units::{Flow, Length, Pressure, Temperature, Volume};
 
@@ -20,23 +19,16 @@ pub(super) struct Range {
     hi: f64,
 }
 
-pub(super) const fn incl(lo: f64, hi: f64) -> Range {
+/// The range of a column of the one bounds table (`crate::bounds`).
+pub(super) const fn bound(b: crate::bounds::Bound) -> Range {
     Range {
-        lo,
-        lo_incl: true,
-        hi,
+        lo: b.lo,
+        lo_incl: b.lo_incl,
+        hi: b.hi,
     }
 }
 
-pub(super) const fn above(lo: f64, hi: f64) -> Range {
-    Range {
-        lo,
-        lo_incl: false,
-        hi,
-    }
-}
-
-const TEMP: Range = incl(TEMP_RANGE_C.0, TEMP_RANGE_C.1);
+const TEMP: Range = bound(crate::bounds::RESERVOIR_TEMP_C);
 
 /// The metric unit symbol of a column unit and a converter of a metric limit to the file's unit.
 fn unit_words(u: ColUnit) -> (&'static str, fn(f64) -> f64) {

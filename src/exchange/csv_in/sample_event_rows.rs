@@ -2,6 +2,7 @@
 //! refused when it differs from the stored one. No SQL here; the store does that.
 
 use super::*;
+use crate::bounds;
 use std::str::FromStr;
 
 use crate::exchange::ExchangeError;
@@ -19,14 +20,14 @@ impl Importer {
     ) -> Result<Option<Outcome>, ExchangeError> {
         let unit_id = self.unit_id(bulk, row);
         let sampled_at = row.when(self.slot("sampled_at"), "sampled_at");
-        let kv40 = row.plain(self.slot("kv40"), above(0.0, 1.0e5));
-        let kv100 = row.plain(self.slot("kv100"), above(0.0, 1.0e4));
-        let visc = row.plain(self.slot("visc"), above(0.0, 1.0e5));
+        let kv40 = row.plain(self.slot("kv40"), bound(bounds::KV40_CST));
+        let kv100 = row.plain(self.slot("kv100"), bound(bounds::KV100_CST));
+        let visc = row.plain(self.slot("visc"), bound(bounds::VISC_CST));
         let visc_temp = row.temperature(self.slot("visc_temp"));
         let counts = [
-            row.plain(self.slot("count4"), incl(0.0, 1.0e9)),
-            row.plain(self.slot("count6"), incl(0.0, 1.0e9)),
-            row.plain(self.slot("count14"), incl(0.0, 1.0e9)),
+            row.plain(self.slot("count4"), bound(bounds::COUNT_4UM_PER_ML)),
+            row.plain(self.slot("count6"), bound(bounds::COUNT_6UM_PER_ML)),
+            row.plain(self.slot("count14"), bound(bounds::COUNT_14UM_PER_ML)),
         ];
         let iso4406 = row.text(self.slot("iso4406")).map(str::to_string);
         if let Some(code) = &iso4406 {
@@ -34,8 +35,8 @@ impl Importer {
                 row.err(&self.name("iso4406"), e.to_string());
             }
         }
-        let water_ppm = row.plain(self.slot("water"), incl(0.0, 1.0e6));
-        let acid = row.plain(self.slot("acid"), incl(0.0, 50.0));
+        let water_ppm = row.plain(self.slot("water"), bound(bounds::WATER_PPM));
+        let acid = row.plain(self.slot("acid"), bound(bounds::ACID_MGKOH_G));
         let lab_ref = row.free(self.slot("lab_ref"));
         let note = row.free(self.slot("note"));
         let confirmed = self.confirmation(row);
@@ -175,7 +176,7 @@ impl Importer {
         } else {
             row.parsed(self.slot("kind"))
         };
-        let volume = row.volume(self.slot("volume"), above(0.0, 1.0e5));
+        let volume = row.volume(self.slot("volume"), bound(bounds::VOLUME_L));
         let fluid_id = match row.text(self.slot("fluid_name")) {
             Some(name) => {
                 match bulk.fluid_by_name(name) {

@@ -2,6 +2,7 @@
 //! written or refused when they differ from the stored ones. No SQL here; the store does that.
 
 use super::*;
+use crate::bounds;
 
 use crate::exchange::{ExchangeError, ImportSummary};
 use crate::model::{
@@ -29,18 +30,18 @@ impl Importer {
             .need(self.slot("unit_tag"), "unit_tag")
             .map(str::to_string);
         let pump_kind: Option<PumpKind> = row.parsed(self.slot("pump_kind"));
-        let rated_flow = row.flow(self.slot("rated_flow"), above(0.0, 10000.0));
-        let relief = row.pressure(self.slot("relief"), above(0.0, 1000.0));
-        let reservoir = row.volume(self.slot("reservoir"), above(0.0, 1.0e5));
-        let bore = row.length(self.slot("bore"), above(0.0, 5000.0));
-        let rod = row.length(self.slot("rod"), above(0.0, 5000.0));
-        let stroke_len = row.length(self.slot("stroke"), above(0.0, 50000.0));
+        let rated_flow = row.flow(self.slot("rated_flow"), bound(bounds::RATED_FLOW_LPM));
+        let relief = row.pressure(self.slot("relief"), bound(bounds::RELIEF_BAR));
+        let reservoir = row.volume(self.slot("reservoir"), bound(bounds::RESERVOIR_L));
+        let bore = row.length(self.slot("bore"), bound(bounds::STROKE_BORE_MM));
+        let rod = row.length(self.slot("rod"), bound(bounds::STROKE_ROD_MM));
+        let stroke_len = row.length(self.slot("stroke"), bound(bounds::STROKE_LENGTH_MM));
         let direction: Option<StrokeDirection> = row.parsed(self.slot("timed_direction"));
         let component: Option<SensitiveComponent> = row.parsed(self.slot("sensitive_component"));
         let fluid_name = row.text(self.slot("fluid_name")).map(str::to_string);
         let fluid_vg = row.integer(self.slot("fluid_vg"));
-        let fluid_kv40 = row.plain(self.slot("fluid_kv40"), above(0.0, 1.0e5));
-        let fluid_kv100 = row.plain(self.slot("fluid_kv100"), above(0.0, 1.0e4));
+        let fluid_kv40 = row.plain(self.slot("fluid_kv40"), bound(bounds::KV40_NEW_CST));
+        let fluid_kv100 = row.plain(self.slot("fluid_kv100"), bound(bounds::KV100_NEW_CST));
 
         let iso_vg = match fluid_vg {
             Some(v) if ISO_VG_GRADES.iter().any(|&(g, _)| i64::from(g) == v) => {
