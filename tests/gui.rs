@@ -1313,3 +1313,29 @@ fn a_lab_file_is_mapped_on_the_import_screen_saved_and_used_again_by_itself() {
     assert!(a.get_kind().contains("north-lab"), "{}", a.get_kind());
     assert!(a.get_can_import(), "{}", message(&f.app));
 }
+
+/// The walk-round's button prints the route sheet: written into the output folder under a
+/// free name, opened, and it lists the round's first unit.
+#[test]
+fn the_walk_round_prints_its_route_sheet_and_opens_it() {
+    let f = open_demo();
+    let opened = std::rc::Rc::new(std::cell::RefCell::new(Vec::<PathBuf>::new()));
+    let o = opened.clone();
+    f.app.set_file_opener(move |p| {
+        o.borrow_mut().push(p.to_path_buf());
+        Ok(())
+    });
+    f.app.set_output_folder(f._dir.path());
+    f.app.show(Screen::Walk);
+    button(&f.app, "Print route sheet").invoke_accessible_default_action();
+    let m = message(&f.app);
+    assert!(m.contains("Route sheet written"), "{m}");
+    let pdf = opened
+        .borrow()
+        .first()
+        .cloned()
+        .expect("the sheet is opened");
+    assert_eq!(pdf.parent(), Some(f._dir.path()));
+    let (_, first) = first_route_unit(&f.path);
+    assert!(pdf_text(&pdf).contains(&format!("1. {first} ·")));
+}

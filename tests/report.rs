@@ -977,3 +977,71 @@ fn each_flag_shows_the_same_figure_on_the_board_in_status_json_and_in_the_report
     }
     assert!(flags_seen >= 5, "the demo raises flags ({flags_seen})");
 }
+
+/// The route sheet of a US shop, read back: letter paper, every unit in route order, each with
+/// the walk-round form's fields in the form's order and last time's value as the form shows it,
+/// the reservoir limits in °F, and the safety cautions.
+#[test]
+fn the_route_sheet_lists_the_round_in_form_order_with_last_values_and_limits() {
+    use crate::run::ok;
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    ok(d, &["--db", "shop.sqlite", "demo"]);
+    ok(
+        d,
+        &[
+            "--db",
+            "shop.sqlite",
+            "settings",
+            "--units",
+            "us",
+            "--by",
+            "T. Tester",
+        ],
+    );
+    let out = ok(
+        d,
+        &["--db", "shop.sqlite", "route-sheet", "--out", "route.pdf"],
+    );
+    assert!(out.contains("route sheet written to route.pdf"), "{out}");
+    let pdf = d.join("route.pdf");
+    let info = poppler("pdfinfo", &[pdf.to_str().unwrap()]);
+    assert!(info.contains("612 x 792"), "letter in a US shop: {info}");
+    let text = squeeze(&pdf_text(&pdf));
+
+    let shop = sumpbook::app::shop::Shop::open(&d.join("shop.sqlite")).unwrap();
+    let stops = sumpbook::app::entry::route(&shop).unwrap();
+    let mut at = 0;
+    for (i, s) in stops.iter().enumerate() {
+        let heading = format!("{}. {} ·", i + 1, s.tag);
+        let found = text[at..]
+            .find(&heading)
+            .unwrap_or_else(|| panic!("`{heading}` missing or out of route order"));
+        at += found + heading.len();
+    }
+    let first = sumpbook::app::entry::check_form(&shop, stops[0].unit_id, Utc::now()).unwrap();
+    let start = text.find(&format!("1. {} ·", stops[0].tag)).unwrap();
+    let end = text.find(&format!("2. {} ·", stops[1].tag)).unwrap();
+    let page = &text[start..end];
+    let mut at = 0;
+    for f in &first.fields {
+        let found = page[at..]
+            .find(&f.label)
+            .unwrap_or_else(|| panic!("`{}` missing or out of the form's order: {page}", f.label));
+        at += found + f.label.len();
+    }
+    let temp = &first.fields[0];
+    assert_eq!(temp.key, "reservoir_temp");
+    assert!(page.contains("Reservoir temperature (°F)"), "{page}");
+    assert!(
+        page.contains(&temp.hint),
+        "last value `{}`: {page}",
+        temp.hint
+    );
+    assert!(
+        page.contains("watch ≥ 140 °F") || page.contains("watch > 140 °F"),
+        "{page}"
+    );
+    assert!(text.contains("penetrate skin"), "{text}");
+    assert!(text.contains("Technician"), "{text}");
+}

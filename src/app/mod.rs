@@ -13,6 +13,7 @@ pub mod import;
 pub mod local_time;
 pub mod report;
 pub mod rights;
+pub mod route_sheet;
 pub mod shop;
 pub mod sim;
 pub mod status;

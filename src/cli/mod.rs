@@ -122,6 +122,9 @@ pub enum Command {
     Import(data::ImportArgs),
     /// The saved column mappings for files with their own column names (`import --map NAME`).
     ImportMaps(data::StoredStatusArgs),
+    /// Print the walk-round on paper: the units in route order, last time's values and limits
+    /// beside blank cells, in the walk-round form's order (PDF).
+    RouteSheet(report::RouteSheetArgs),
     /// Export CSV (to standard output or --out FILE).
     Export(data::ExportArgs),
     /// Each unit's state, flags and key indicators, worst first (`--at DATE` replays the past).
@@ -198,6 +201,9 @@ fn run_command(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
         Some(Command::Import(args)) => data::run_import(db.as_deref(), args, out),
         Some(Command::ImportMaps(args)) => data::run_import_maps(db.as_deref(), args, out),
         Some(Command::Export(args)) => data::run_export(db.as_deref(), args, out),
+        Some(Command::RouteSheet(args)) => {
+            report::run_route_sheet(&data::open_shop(db.as_deref())?, args, out)
+        }
         Some(Command::Status(args)) => {
             status::run_status(&data::open_shop(db.as_deref())?, args, out)
         }

@@ -85,3 +85,36 @@ pub fn run(shop: &Shop, args: &ReportArgs, out: &mut dyn std::io::Write) -> Resu
     }
     Ok(())
 }
+
+#[derive(clap::Args, Debug, Clone, PartialEq)]
+pub struct RouteSheetArgs {
+    /// The PDF to write (default: route-sheet-DATE.pdf in the current folder).
+    #[arg(long, value_name = "FILE.pdf")]
+    pub out: Option<PathBuf>,
+    /// Paper size (default: letter in a US-customary shop, A4 in a metric one).
+    #[arg(long, value_name = "a4|letter", value_parser = parse_paper)]
+    pub paper: Option<Paper>,
+    /// Replace the file if it exists.
+    #[arg(long)]
+    pub force: bool,
+}
+
+pub fn run_route_sheet(
+    shop: &Shop,
+    args: &RouteSheetArgs,
+    out: &mut dyn std::io::Write,
+) -> Result<(), Failure> {
+    let path = match &args.out {
+        Some(p) => p.clone(),
+        None => crate::app::report::default_route_sheet_path(std::path::Path::new(".")),
+    };
+    let s = crate::app::route_sheet::write_route_sheet(shop, &path, args.paper, args.force)?;
+    writeln!(
+        out,
+        "route sheet written to {}: {} units on {} page(s)",
+        s.path.display(),
+        s.units,
+        s.pages
+    )?;
+    Ok(())
+}

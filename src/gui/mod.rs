@@ -282,6 +282,11 @@ impl App {
         self.ctx.report.borrow_mut().opener = Rc::new(opener);
     }
 
+    /// Puts `folder` in place of the documents folder printed files go to by default.
+    pub fn set_output_folder(&self, folder: &Path) {
+        self.ctx.report.borrow_mut().folder = Some(folder.to_path_buf());
+    }
+
     pub fn window(&self) -> &AppWindow {
         &self.window
     }

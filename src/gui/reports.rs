@@ -35,6 +35,8 @@ pub(crate) struct ReportState {
     /// A file that exists and that the user was asked about: writing to it again replaces it.
     asked_replace: Option<PathBuf>,
     pub opener: Opener,
+    /// Where printed files go by default, when set (tests); else the documents folder.
+    pub folder: Option<PathBuf>,
 }
 
 impl Default for ReportState {
@@ -44,6 +46,7 @@ impl Default for ReportState {
             filled: false,
             asked_replace: None,
             opener: Rc::new(open_with_desktop),
+            folder: None,
         }
     }
 }
@@ -97,7 +100,10 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
 
 /// Where a report goes by default: the user's documents folder, else home, else beside the
 /// shop file.
-fn default_folder(ctx: &Ctx) -> PathBuf {
+pub(super) fn default_folder(ctx: &Ctx) -> PathBuf {
+    if let Some(f) = ctx.report.borrow().folder.clone() {
+        return f;
+    }
     directories::UserDirs::new()
         .and_then(|u| {
             u.document_dir()

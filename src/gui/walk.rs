@@ -52,6 +52,7 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
             mark_and_advance(&ctx, "skipped");
         }
     });
+    a.on_print_sheet(super::on(ctx, print_sheet));
     let c = Rc::downgrade(ctx);
     a.on_select(move |i| {
         if let Some(ctx) = c.upgrade() {
@@ -300,4 +301,34 @@ pub(super) fn demo_entry(ctx: &Rc<Ctx>) {
         a.invoke_field_edited(i as i32, s(*text));
     }
     a.invoke_save();
+}
+
+/// Writes the route sheet beside the reports (a free name, never over a file) and opens it.
+fn print_sheet(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WalkAdapter>();
+    let path = crate::app::report::default_route_sheet_path(&super::reports::default_folder(ctx));
+    match crate::app::route_sheet::write_route_sheet(&ctx.shop, &path, None, false) {
+        Ok(sum) => {
+            a.set_message(s(format!(
+                "Route sheet written to {} ({} units, {} page(s)).",
+                sum.path.display(),
+                sum.units,
+                sum.pages
+            )));
+            a.set_message_level(0);
+            let opener = ctx.report.borrow().opener.clone();
+            if let Err(e) = opener(&sum.path) {
+                a.set_message(s(format!(
+                    "Route sheet written to {}; it could not be opened: {e}",
+                    sum.path.display()
+                )));
+                a.set_message_level(1);
+            }
+        }
+        Err(e) => {
+            a.set_message(s(super::err_text(&e)));
+            a.set_message_level(2);
+        }
+    }
 }

@@ -10,6 +10,7 @@
 pub mod charts;
 mod fleet_page;
 pub mod layout;
+pub mod route_sheet;
 mod subset;
 mod unit_page;
 
@@ -198,28 +199,16 @@ pub fn render(
 ) -> Result<Rendered, ReportError> {
     let total = doc.units.len() + 2;
     let mut fonts = Fonts::load()?;
-    let mut pdf = PdfDocument::new(&format!("{} – {}", doc.title, doc.shop_name));
-    pdf.metadata.info.author = doc.prepared_by.clone();
-    pdf.metadata.info.creator = "sumpbook".into();
-    pdf.metadata.info.subject = format!("{} {}", doc.title, doc.period);
-    if let Ok(t) = printpdf::DateTime::from_unix_timestamp(doc.written_at.timestamp()) {
-        pdf.metadata.info.creation_date = t;
-        pdf.metadata.info.modification_date = t;
-        pdf.metadata.info.metadata_date = t;
-    }
-    fonts.register(&mut pdf);
-
+    let pdf = new_pdf(
+        &mut fonts,
+        &format!("{} – {}", doc.title, doc.shop_name),
+        &doc.prepared_by,
+        &format!("{} {}", doc.title, doc.period),
+        doc.written_at,
+    );
     let (pages, fleet_pages) = lay_out(&fonts, doc, &mut |done| progress(done, total))?;
     let n = pages.len();
-    let pdf_pages: Vec<PdfPage> = pages
-        .into_iter()
-        .map(|p| PdfPage::new(Pt(p.width).into(), Pt(p.height).into(), p.ops))
-        .collect();
-    pdf.with_pages(pdf_pages);
-    // Only the glyphs drawn travel with the report (both faces whole are about 0.85 MB).
-    subset::subset_document_fonts(&mut pdf);
-    let mut warnings = Vec::new();
-    let bytes = pdf.save(&PdfSaveOptions::default(), &mut warnings);
+    let bytes = finish_pdf(pdf, pages);
     if !progress(total, total) {
         return Err(ReportError::Cancelled);
     }
@@ -228,6 +217,41 @@ pub fn render(
         pages: n,
         fleet_pages,
     })
+}
+
+/// A new PDF document with its metadata and both fonts registered (the layout's text refers
+/// to them, so this comes before laying out).
+pub(crate) fn new_pdf(
+    fonts: &mut Fonts,
+    title: &str,
+    author: &str,
+    subject: &str,
+    written_at: DateTime<Utc>,
+) -> PdfDocument {
+    let mut pdf = PdfDocument::new(title);
+    pdf.metadata.info.author = author.to_string();
+    pdf.metadata.info.creator = "sumpbook".into();
+    pdf.metadata.info.subject = subject.to_string();
+    if let Ok(t) = printpdf::DateTime::from_unix_timestamp(written_at.timestamp()) {
+        pdf.metadata.info.creation_date = t;
+        pdf.metadata.info.modification_date = t;
+        pdf.metadata.info.metadata_date = t;
+    }
+    fonts.register(&mut pdf);
+    pdf
+}
+
+/// The laid-out pages written into `pdf`, the fonts cut down to the glyphs drawn.
+pub(crate) fn finish_pdf(mut pdf: PdfDocument, pages: Vec<layout::Page>) -> Vec<u8> {
+    let pdf_pages: Vec<PdfPage> = pages
+        .into_iter()
+        .map(|p| PdfPage::new(Pt(p.width).into(), Pt(p.height).into(), p.ops))
+        .collect();
+    pdf.with_pages(pdf_pages);
+    // Only the glyphs drawn travel with the document (both faces whole are about 0.85 MB).
+    subset::subset_document_fonts(&mut pdf);
+    let mut warnings = Vec::new();
+    pdf.save(&PdfSaveOptions::default(), &mut warnings)
 }
 
 /// The pages of the report, frame included, and how many belong to the fleet part.
