@@ -1339,3 +1339,33 @@ fn the_walk_round_prints_its_route_sheet_and_opens_it() {
     let (_, first) = first_route_unit(&f.path);
     assert!(pdf_text(&pdf).contains(&format!("1. {first} ·")));
 }
+
+/// Setup names hydraulic units so (not "Units" beside "Units of measure"), and saving a stored
+/// record unchanged asks no reason and writes nothing.
+#[test]
+fn setup_saves_an_unchanged_record_without_asking_a_reason() {
+    let f = open_demo();
+    f.app.show(Screen::Setup);
+    let a = f.app.window().global::<SetupAdapter>();
+    a.set_tab(2);
+    a.invoke_tab_changed(2);
+    assert_eq!(a.get_new_label().as_str(), "New hydraulic unit");
+    a.invoke_choose_record(0);
+    assert!(
+        a.get_record_title().starts_with("Edit hydraulic unit "),
+        "{}",
+        a.get_record_title()
+    );
+    let edits = |p: &Path| {
+        rusqlite::Connection::open(p)
+            .unwrap()
+            .query_row("SELECT count(*) FROM edit_log", [], |r| r.get::<_, i64>(0))
+            .unwrap()
+    };
+    let before = edits(&f.path);
+    button(&f.app, "Save record").invoke_accessible_default_action();
+    let m = message(&f.app);
+    assert!(m.contains("Nothing changed"), "{m}");
+    assert!(!m.to_lowercase().contains("reason"), "{m}");
+    assert_eq!(edits(&f.path), before);
+}

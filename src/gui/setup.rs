@@ -183,7 +183,7 @@ fn load_list(ctx: &Rc<Ctx>, kind: Record) {
             a.set_records(strings(list.iter().map(|(_, t)| t.clone())));
             a.set_new_label(s(match kind {
                 Record::Machine => "New machine",
-                Record::Unit => "New unit",
+                Record::Unit => "New hydraulic unit",
                 Record::Fluid => "New fluid",
             }));
             ctx.setup.borrow_mut().ids = list.into_iter().map(|(id, _)| id).collect();
@@ -207,7 +207,7 @@ fn load_record(ctx: &Rc<Ctx>, id: Option<i64>) {
             a.set_fields(model(form_rows(&fields, &entered, &[])));
             let name = match kind {
                 Record::Machine => "machine",
-                Record::Unit => "unit",
+                Record::Unit => "hydraulic unit",
                 Record::Fluid => "fluid",
             };
             let title = match id {
@@ -290,10 +290,17 @@ fn save_record(ctx: &Rc<Ctx>) {
     let Some(kind) = record_of(a.get_tab()) else {
         return;
     };
-    let (id, entered) = {
+    let (id, entered, unchanged) = {
         let st = ctx.setup.borrow();
-        (st.editing, st.entered.clone())
+        let unchanged = st.editing.is_some() && st.entered == Entered::from_fields(&st.fields);
+        (st.editing, st.entered.clone(), unchanged)
     };
+    // A stored record saved as it stands changes nothing: no reason is asked, nothing written.
+    if unchanged {
+        a.set_message(s("Nothing changed; there is nothing to save."));
+        a.set_message_level(0);
+        return;
+    }
     match entry::save_record(&ctx.shop, kind, id, &entered, &a.get_by(), &a.get_reason()) {
         Ok(SaveOutcome::Saved(new_id)) => {
             a.set_reason(s(""));
