@@ -159,6 +159,13 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
     key(&f.app, Key::Tab);
     type_text(&f.app, &format!("{stroke:.2}"));
     key(&f.app, Key::Tab);
+    // The cycle time, a field of its own after the timed stroke.
+    let cycle = last
+        .cycle_time
+        .expect("the first unit's checks carry a cycle time")
+        .si();
+    type_text(&f.app, &format!("{cycle:.1}"));
+    key(&f.app, Key::Tab);
     type_text(&f.app, "o");
     key(&f.app, Key::Return);
 
@@ -180,6 +187,7 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
     assert!((c.ambient_temp.unwrap().c() - (air * 10.0).round() / 10.0).abs() < 1e-9);
     assert!((c.pressure.unwrap().bar() - (bar * 10.0).round() / 10.0).abs() < 1e-9);
     assert!((c.stroke_time.unwrap().si() - (stroke * 100.0).round() / 100.0).abs() < 1e-9);
+    assert!((c.cycle_time.unwrap().si() - (cycle * 10.0).round() / 10.0).abs() < 1e-9);
     assert_eq!(c.oil_level, Some(sumpbook::model::OilLevel::Ok));
     // Saved, with the unit's state, and on to the next unit.
     let msg = message(&f.app);

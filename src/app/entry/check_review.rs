@@ -151,6 +151,10 @@ pub fn check_form(shop: &Shop, unit_id: Id, now: DateTime<Utc>) -> Result<CheckF
             Kind::Time,
             last_of(checks, |c| c.stroke_time.map(|s| s.si())),
         )),
+        Field::quantity("cycle_time", "Cycle time", Kind::Time, system).with_hint(hint_q(
+            Kind::Time,
+            last_of(checks, |c| c.cycle_time.map(|s| s.si())),
+        )),
         Field::text("oil_level", "Oil level")
             .with_placeholder("ok / low")
             .with_hint(
@@ -251,6 +255,7 @@ pub(super) fn judge_check(
     let amb = q("ambient_temp", Kind::Temperature, &mut p);
     let pressure = q("pressure", Kind::Pressure, &mut p);
     let stroke = q("stroke_time", Kind::Time, &mut p);
+    let cycle = q("cycle_time", Kind::Time, &mut p);
     let case_drain = q("case_drain", Kind::Flow, &mut p);
     let oil_level = read_oil_level(entered.get("oil_level")).unwrap_or_else(|e| {
         p.push(Problem::refused("oil_level", e));
@@ -383,6 +388,7 @@ pub(super) fn judge_check(
         || amb.is_some()
         || pressure.is_some()
         || stroke.is_some()
+        || cycle.is_some()
         || case_drain.is_some()
         || oil_level.is_some()
         || filter.is_some()
@@ -399,7 +405,8 @@ pub(super) fn judge_check(
         ambient_temp: amb.map(Temperature),
         pressure: pressure.map(Pressure),
         stroke_time: stroke.map(Seconds),
-        cycle_time: base.cycle_time,
+        // A form without the field (an older correction) keeps the stored cycle time.
+        cycle_time: cycle.map(Seconds).or(base.cycle_time),
         oil_level,
         filter,
         hours,
