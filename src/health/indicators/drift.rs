@@ -1,0 +1,208 @@
+//! The statistical drift detectors (EWMA and CUSUM against the era's baseline) and the
+//! maintenance that restarts them. It marks drift points on checks; flags are raised elsewhere.
+
+use super::*;
+
+/// Maintenance that restarts the detectors and flags of what it addresses: a cooler clean the
+/// heat rise; a repair the flow, leakage and case drain; a filter change the cleanliness (its
+/// samples before the change no longer stand for the oil). Fluid changes and rebuilds start a
+/// new era instead.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Restart {
+    pub at: DateTime<Utc>,
+    pub event_id: Id,
+    pub event: EventKind,
+}
+
+impl Restart {
+    pub fn addresses(&self, ind: BaselineIndicator) -> bool {
+        match self.event {
+            EventKind::CoolerClean => ind == BaselineIndicator::HeatRise,
+            EventKind::Repair => ind != BaselineIndicator::HeatRise,
+            _ => false,
+        }
+    }
+
+    /// The flag kinds it restarts.
+    pub fn flag_kinds(&self) -> &'static [crate::health::flags::FlagKind] {
+        use crate::health::flags::FlagKind as K;
+        match self.event {
+            EventKind::CoolerClean => &[K::HeatRise, K::Drift],
+            EventKind::Repair => &[K::LostFlow, K::LeakConductance, K::CaseDrain, K::Drift],
+            EventKind::FilterChange => &[K::Cleanliness, K::Filter],
+            _ => &[],
+        }
+    }
+}
+
+/// The restarting events of the era, in time order.
+pub(super) fn restarts_in(h: &UnitHistory, era: Option<&Era>) -> Vec<Restart> {
+    let Some(era) = era else { return Vec::new() };
+    h.events
+        .iter()
+        .filter(|e| {
+            matches!(
+                e.kind,
+                EventKind::CoolerClean | EventKind::Repair | EventKind::FilterChange
+            ) && era.contains(e.done_at)
+        })
+        .map(|e| Restart {
+            at: e.done_at,
+            event_id: e.id,
+            event: e.kind,
+        })
+        .collect()
+}
+
+/// EWMA and one-sided tabular CUSUM of each baselined indicator, on the side that means
+/// trouble (flow falling; heat and case drain rising), over the era's checks after those that
+/// formed the baseline (all checks of the era for a hand-entered baseline), both started
+/// afresh after maintenance that addresses the indicator (`Restart`).
+///
+/// The baseline median of N checks is itself uncertain (its standard error, `value_se`), and
+/// a chart run on an estimated centre as if it were known signals on that error alone
+/// (Montgomery discusses the effect of estimated parameters). So the EWMA limits are widened
+/// to L·√(σ_z² + se²) — the spread of the difference between the EWMA and the baseline — and
+/// the CUSUM only accumulates shifts beyond k·σ + se. A hand-entered baseline is taken as
+/// known. A check signals only while its own reading is on the side that means trouble,
+/// beyond k·σ + se, so a signal ends with the first normal check once its cause is gone.
+pub(super) fn run_detectors(
+    points: &mut [CheckPoint],
+    baseline: &Baseline,
+    limits: &Limits,
+    restarts: &[Restart],
+) {
+    let lambda = limits.value(LimitKey::EwmaLambda);
+    let l = limits.value(LimitKey::EwmaL);
+    let k = limits.value(LimitKey::CusumK);
+    let hh = limits.value(LimitKey::CusumH);
+    let floor_rel = limits.value(LimitKey::MinSpreadPct) / 100.0;
+    let floor_heat = limits.value(LimitKey::MinSpreadHeatK);
+    // Flow is watched corrected for the oil's temperature and the job pressure where that can
+    // be done, else as timed; leak conductance carries the same information as the corrected
+    // flow with the scatter of a small difference, so it is not watched twice.
+    let watched: Vec<&super::baseline::BaselineValue> = baseline
+        .values
+        .iter()
+        .filter(|b| match b.indicator {
+            BaselineIndicator::LeakConductance => false,
+            BaselineIndicator::EffectiveFlow => {
+                baseline.get(BaselineIndicator::CorrectedFlow).is_none()
+            }
+            _ => true,
+        })
+        .collect();
+    for b in watched {
+        let falling = matches!(
+            b.indicator,
+            BaselineIndicator::EffectiveFlow | BaselineIndicator::CorrectedFlow
+        );
+        let floor = match b.indicator {
+            BaselineIndicator::HeatRise => floor_heat,
+            _ => floor_rel * b.value.abs(),
+        };
+        let sigma = b.spread.max(floor);
+        if sigma.is_nan() || sigma <= 0.0 {
+            continue;
+        }
+        let se = match &b.source {
+            BaselineSource::Checks { check_ids, .. } if !check_ids.is_empty() => {
+                baseline::MEDIAN_SE_FACTOR * sigma / (check_ids.len() as f64).sqrt()
+            }
+            _ => 0.0,
+        };
+        let start = || {
+            Some((
+                stats::Ewma::with_params(b.value, sigma, lambda, l).ok()?,
+                stats::Cusum::with_params(b.value, sigma, k + se / sigma, hh).ok()?,
+            ))
+        };
+        let Some((mut ewma, mut cusum)) = start() else {
+            continue;
+        };
+        let bad = if falling {
+            stats::Side::Low
+        } else {
+            stats::Side::High
+        };
+        let manual = matches!(b.source, BaselineSource::Manual { .. });
+        // The watch limit of the indicator's own flag, in its terms (% of the baseline, or K).
+        let material_at = match b.indicator {
+            BaselineIndicator::EffectiveFlow | BaselineIndicator::CorrectedFlow => {
+                limits.get(LimitKey::LostFlowPct).watch
+            }
+            BaselineIndicator::CaseDrain => limits.get(LimitKey::CaseDrainRisePct).watch,
+            BaselineIndicator::HeatRise => limits.get(LimitKey::HeatRiseDriftK).watch,
+            BaselineIndicator::LeakConductance => None,
+        };
+        let mut run = 0usize;
+        let mut prev_at: Option<DateTime<Utc>> = None;
+        for p in points.iter_mut().filter(|p| manual || !p.in_baseline) {
+            let Some(x) = value_of(p, b.indicator) else {
+                continue;
+            };
+            if let Some(from) = prev_at {
+                if restarts
+                    .iter()
+                    .any(|r| r.at > from && r.at <= p.at && r.addresses(b.indicator))
+                {
+                    if let Some((e, c)) = start() {
+                        ewma = e;
+                        cusum = c;
+                    }
+                    run = 0;
+                }
+            }
+            prev_at = Some(p.at);
+            let (Ok(e), Ok(c)) = (ewma.update(x), cusum.update(x)) else {
+                continue;
+            };
+            // σ_z of this step, read back from the chart's own limit: (upper − μ0)/L.
+            let sigma_z = (e.upper - b.value) / l;
+            let half = l * (sigma_z * sigma_z + se * se).sqrt();
+            let (z, ewma_limit, sum) = if falling {
+                (e.z, b.value - half, c.lo)
+            } else {
+                (e.z, b.value + half, c.hi)
+            };
+            let beyond = if falling {
+                z < ewma_limit
+            } else {
+                z > ewma_limit
+            };
+            let margin = k * sigma + se;
+            let reading_bad = if falling {
+                x < b.value - margin
+            } else {
+                x > b.value + margin
+            };
+            let signal = (beyond || c.signal == Some(bad)) && reading_bad;
+            run = if signal { run + 1 } else { 0 };
+            // …and by at least two of the baseline's own spreads, so that a unit whose
+            // readings scatter widely (a heat rise that follows its jobs) needs a shift beyond
+            // its own scatter.
+            let material = match (b.indicator, material_at) {
+                (_, None) => false,
+                (BaselineIndicator::HeatRise, Some(w)) => z - b.value >= w.max(2.0 * sigma),
+                (_, Some(w)) if b.value.abs() > 0.0 => {
+                    let shift_pct = if falling {
+                        (b.value - z) / b.value * 100.0
+                    } else {
+                        (z - b.value) / b.value * 100.0
+                    };
+                    shift_pct >= w.max(2.0 * sigma / b.value.abs() * 100.0)
+                }
+                _ => false,
+            };
+            p.drift.push(DriftPoint {
+                indicator: b.indicator,
+                ewma: z,
+                ewma_limit,
+                cusum_sigma: sum / sigma,
+                signal,
+                run,
+                material,
+            });
+        }
+    }
+}

@@ -1,0 +1,175 @@
+//! Tests of `evaluate` on the fluid: viscosity, cleanliness, water, acid, filter and oil level,
+//! and a fluid change starting a new era.
+
+use super::*;
+
+#[test]
+fn viscosity_at_below_and_above_its_limits() {
+    // New oil 46 cSt; drift = KV40/46 − 1, ≥ 5 % / ≥ 10 % either way; ISO VG 46 band
+    // 41.4–50.6 cSt (ISO 3448: midpoint ± 10 %) is act outside.
+    for (kv, want) in [
+        (48.29, State::Steady),
+        (48.3, State::Watch),
+        (50.59, State::Watch),
+        (50.6, State::Act),
+        (43.71, State::Steady),
+        (43.7, State::Watch),
+        (41.4, State::Act),
+    ] {
+        let h = with_sample(press(), |s| s.kv40 = Some(Viscosity::from_cst(kv)));
+        let r = eval(&h, &Limits::builtin(), week(1));
+        assert_eq!(state_of(&r, FlagKind::Viscosity), want, "{kv} cSt");
+        assert!((r.indicators.kv40_drift_pct.unwrap() - (kv / 46.0 - 1.0) * 100.0).abs() < 1e-9);
+    }
+    // A new oil of 44 cSt: 41.3 cSt is only −6.1 % on it, but below the VG 46 band → act.
+    let mut h = press();
+    if let Some(f) = h.fluid.as_mut() {
+        f.kv40_new = Some(Viscosity::from_cst(44.0));
+    }
+    let h = with_sample(h, |s| s.kv40 = Some(Viscosity::from_cst(41.3)));
+    let r = eval(&h, &Limits::builtin(), week(1));
+    assert_eq!(state_of(&r, FlagKind::Viscosity), State::Act);
+}
+
+#[test]
+fn cleanliness_water_and_acid_at_below_and_above_their_limits() {
+    let l = Limits::builtin();
+    // Target 17/15/12 (proportional valve at 100 bar; docs/engineering.md, "Cleanliness
+    // targets"). Range numbers over it:
+    // 1 watch, 2 act.
+    for (code, want) in [
+        ("17/15/12", State::Steady),
+        ("18/15/12", State::Watch),
+        ("18/16/13", State::Watch),
+        ("19/15/12", State::Act),
+    ] {
+        let h = with_sample(press(), |s| s.iso4406 = Some(code.into()));
+        let r = eval(&h, &l, week(1));
+        assert_eq!(state_of(&r, FlagKind::Cleanliness), want, "{code}");
+        assert_eq!(r.indicators.iso4406_target.as_deref(), Some("17/15/12"));
+    }
+    // From counts: ISO 4406 Table 1, 1300 per mL is the top of 17, 1301 is 18.
+    for (c4, want) in [(1300.0, State::Steady), (1301.0, State::Watch)] {
+        let h = with_sample(press(), |s| {
+            s.counts_per_ml = [Some(c4), Some(320.0), Some(40.0)]
+        });
+        let r = eval(&h, &l, week(1));
+        assert_eq!(state_of(&r, FlagKind::Cleanliness), want, "{c4} per mL");
+    }
+    // Water > 200 ppm watch, > 500 ppm act (docs/engineering.md, "Default limits").
+    for (ppm, want) in [
+        (200.0, State::Steady),
+        (200.1, State::Watch),
+        (500.0, State::Watch),
+        (500.1, State::Act),
+    ] {
+        let h = with_sample(press(), |s| s.water_ppm = Some(ppm));
+        assert_eq!(
+            state_of(&eval(&h, &l, week(1)), FlagKind::Water),
+            want,
+            "{ppm} ppm"
+        );
+    }
+    // Acid rise over the new oil's 0.5 mg KOH/g: > 0.2 watch, > 0.3 act (docs/engineering.md,
+    // "Default limits").
+    for (an, want) in [
+        (0.7, State::Steady),
+        (0.71, State::Watch),
+        (0.8, State::Watch),
+        (0.81, State::Act),
+    ] {
+        let h = with_sample(press(), |s| s.acid_mgkoh_g = Some(an));
+        let r = eval(&h, &l, week(1));
+        assert_eq!(state_of(&r, FlagKind::Acid), want, "{an} mg KOH/g");
+        assert!((r.indicators.acid_rise.unwrap() - (an - 0.5)).abs() < 1e-12);
+    }
+}
+
+#[test]
+fn filter_and_oil_level_clear_when_the_work_is_done() {
+    for (state, want) in [
+        (FilterState::Ok, State::Steady),
+        (FilterState::Alert, State::Watch),
+        (FilterState::Bypass, State::Act),
+    ] {
+        let mut h = press();
+        let mut c = check(1, week(0));
+        c.filter = Some(state);
+        c.oil_level = Some(OilLevel::Low);
+        h.checks.push(c);
+        let r = eval(&h, &Limits::builtin(), week(0));
+        assert_eq!(state_of(&r, FlagKind::Filter), want);
+        assert_eq!(state_of(&r, FlagKind::OilLevel), State::Watch);
+        h.events.push(event(
+            5,
+            week(0) + chrono::Duration::hours(2),
+            EventKind::FilterChange,
+            None,
+        ));
+        h.events.push(event(
+            6,
+            week(0) + chrono::Duration::hours(2),
+            EventKind::TopUp,
+            None,
+        ));
+        let r = eval(&h, &Limits::builtin(), week(0) + chrono::Duration::hours(3));
+        assert_eq!(state_of(&r, FlagKind::Filter), State::Steady);
+        assert_eq!(state_of(&r, FlagKind::OilLevel), State::Steady);
+    }
+}
+
+#[test]
+fn a_fluid_change_starts_a_new_era_and_baseline() {
+    let mut h = stroke_history(4.0);
+    let mut s = sample(1, week(5));
+    s.water_ppm = Some(900.0);
+    h.samples.push(s);
+    h.events
+        .push(event(9, week(7), EventKind::FluidChange, Some(2)));
+    for w in 8..12 {
+        h.checks.push(timed(w + 1, w, 5.0, 45.0, 20.0));
+    }
+    let new_fluid = crate::model::Fluid {
+        id: 2,
+        name: "Shop HM 32".into(),
+        iso_vg: Some(32),
+        kv40_new: Some(Viscosity::from_cst(32.0)),
+        kv100_new: Some(Viscosity::from_cst(5.4)),
+        acid_new_mgkoh_g: None,
+        base_type: "mineral".into(),
+    };
+    let mut s = sample(2, week(11));
+    s.kv40 = Some(Viscosity::from_cst(32.0));
+    h.samples.push(s);
+    let l = Limits::builtin();
+    let before = evaluate(
+        &h,
+        std::slice::from_ref(&new_fluid),
+        &l,
+        week(6),
+        UnitSystem::Metric,
+    );
+    assert_eq!(state_of(&before, FlagKind::Water), State::Act);
+    let r = evaluate(
+        &h,
+        std::slice::from_ref(&new_fluid),
+        &l,
+        week(11),
+        UnitSystem::Metric,
+    );
+    assert_eq!(r.eras.len(), 2);
+    assert_eq!(r.eras[1].started_by, EraStart::FluidChange);
+    assert_eq!(r.fluid.as_ref().map(|f| f.id), Some(2));
+    // The new baseline is the 4 checks after the change at 5.0 s: Q = 0.0008π/5 m³/s.
+    let b = r.baseline.get(BaselineIndicator::EffectiveFlow).unwrap();
+    assert!((b.value - press_volume_m3() / 5.0).abs() < 1e-15);
+    match &b.source {
+        BaselineSource::Checks { check_ids, .. } => assert_eq!(check_ids, &vec![9, 10, 11, 12]),
+        other => panic!("{other:?}"),
+    }
+    // Slower than the old era by 20 %, but this era's baseline is 5.0 s: no lost flow.
+    assert!(r.indicators.lost_flow_pct.unwrap().abs() < 1e-9);
+    // The water of the old oil is gone with it; KV40 is judged against the new fluid.
+    assert_eq!(state_of(&r, FlagKind::Water), State::Steady);
+    assert!(r.indicators.kv40_drift_pct.unwrap().abs() < 1e-12);
+}

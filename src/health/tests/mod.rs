@@ -1,0 +1,80 @@
+//! Tests of `health::evaluate` on hand-made histories, by what they judge; the helpers they
+//! share.
+
+mod flow;
+mod fluid;
+mod heat;
+mod state;
+
+use super::testutil::*;
+use super::*;
+use crate::model::{Acknowledgement, EventKind, FilterState, OilLevel};
+use crate::units::{Flow, Temperature, Viscosity};
+
+pub(super) fn eval(h: &UnitHistory, limits: &Limits, at: DateTime<Utc>) -> UnitHealth {
+    evaluate(h, &[], limits, at, UnitSystem::Metric)
+}
+
+pub(super) fn state_of(health: &UnitHealth, kind: FlagKind) -> State {
+    health
+        .flags
+        .iter()
+        .find(|f| f.kind == kind)
+        .map(|f| f.state)
+        .unwrap_or(State::Steady)
+}
+
+pub(super) fn week(w: i64) -> DateTime<Utc> {
+    t("2024-01-01") + chrono::Duration::weeks(w)
+}
+
+/// 4 baseline checks at 4.0 s, then 3 checks at `t_s`; oil 45 °C, ambient 20 °C.
+pub(super) fn stroke_history(t_s: f64) -> UnitHistory {
+    let mut h = press();
+    for w in 0..4 {
+        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
+    }
+    for w in 4..7 {
+        h.checks.push(timed(w + 1, w, t_s, 45.0, 20.0));
+    }
+    h
+}
+
+/// Baseline at 36 L/min against 40 rated (leak 4 L/min), then 3 checks leaking `ratio`×4;
+/// all at 50 °C and 100 bar, so ν and p cancel and the conductance ratio is the leak ratio.
+pub(super) fn leak_history(ratio: f64) -> UnitHistory {
+    let mut h = press();
+    let v = press_volume_m3();
+    let t_of = |lpm: f64| v / Flow::from_lpm(lpm).si();
+    for w in 0..4 {
+        h.checks.push(timed(w + 1, w, t_of(36.0), 50.0, 25.0));
+    }
+    for w in 4..7 {
+        h.checks
+            .push(timed(w + 1, w, t_of(40.0 - 4.0 * ratio), 50.0, 25.0));
+    }
+    h
+}
+
+pub(super) fn with_sample(
+    mut h: UnitHistory,
+    f: impl FnOnce(&mut crate::model::Sample),
+) -> UnitHistory {
+    h.checks.push(check(1, week(0)));
+    let mut s = sample(1, week(1));
+    f(&mut s);
+    h.samples.push(s);
+    h
+}
+
+/// Heat-rise-only checks: baseline ΔT 19, 21, 19, 21 K, then `then`.
+pub(super) fn heat_history(then: &[f64]) -> UnitHistory {
+    let mut h = press();
+    for (i, d) in [19.0, 21.0, 19.0, 21.0].iter().chain(then).enumerate() {
+        let mut c = check(i as i64 + 1, week(i as i64));
+        c.reservoir_temp = Some(Temperature::from_c(20.0 + d));
+        c.ambient_temp = Some(Temperature::from_c(20.0));
+        h.checks.push(c);
+    }
+    h
+}
