@@ -1,0 +1,156 @@
+//! Grading an indicator's history against its limits, point by point, into the episode a flag
+//! reports, and the flag made from it. No wording of its own beyond the flag's two halves.
+
+use super::*;
+
+/// One graded point of an indicator's history.
+#[derive(Clone, Copy, Debug)]
+pub(super) struct Graded {
+    pub(super) at: DateTime<Utc>,
+    pub(super) state: State,
+    pub(super) value: Option<f64>,
+    pub(super) limit: Option<f64>,
+}
+
+/// The current run of a graded history: the last point, when the run at watch or worse began
+/// and when the current state began. `None` when the last point is steady.
+pub(super) fn episode(points: &[Graded]) -> Option<(Graded, DateTime<Utc>, DateTime<Utc>)> {
+    let last = *points.last()?;
+    if last.state == State::Steady {
+        return None;
+    }
+    let mut since = last.at;
+    let mut state_since = last.at;
+    let mut same = true;
+    for p in points.iter().rev().skip(1) {
+        if p.state == State::Steady {
+            break;
+        }
+        since = p.at;
+        if same && p.state == last.state {
+            state_since = p.at;
+        } else {
+            same = false;
+        }
+    }
+    Some((last, since, state_since))
+}
+
+pub(super) fn grade(limits: &Limits, key: LimitKey, value: f64) -> (State, Option<f64>) {
+    let l = limits.get(key);
+    let s = State::from_grade(l.grade(value));
+    let limit = match s {
+        State::Act => l.act,
+        _ => l.watch.or(l.act),
+    };
+    (s, limit)
+}
+
+/// Grades the confirmed level (`level`) of a raw reading (`raw`) at each check: a check
+/// with a reading but no level yet (the first after a restart) is steady, which ends the run.
+pub(super) fn graded_levels(
+    points: &[CheckPoint],
+    limits: &Limits,
+    key: LimitKey,
+    raw: fn(&CheckPoint) -> Option<f64>,
+    level: fn(&CheckPoint) -> Option<f64>,
+) -> Vec<Graded> {
+    points
+        .iter()
+        .filter(|p| raw(p).is_some())
+        .map(|p| match level(p) {
+            Some(v) => {
+                let (state, limit) = grade(limits, key, v);
+                Graded {
+                    at: p.at,
+                    state,
+                    value: Some(v),
+                    limit,
+                }
+            }
+            None => Graded {
+                at: p.at,
+                state: State::Steady,
+                value: None,
+                limit: None,
+            },
+        })
+        .collect()
+}
+
+pub(super) fn graded_samples(
+    points: &[SamplePoint],
+    limits: &Limits,
+    key: LimitKey,
+    f: fn(&SamplePoint) -> Option<f64>,
+) -> Vec<Graded> {
+    points
+        .iter()
+        .filter_map(|p| {
+            let v = f(p)?;
+            let (state, limit) = grade(limits, key, v);
+            Some(Graded {
+                at: p.at,
+                state,
+                value: Some(v),
+                limit,
+            })
+        })
+        .collect()
+}
+
+pub(super) fn new_flag(
+    kind: FlagKind,
+    g: &Graded,
+    since: NaiveDate,
+    state_since: DateTime<Utc>,
+    message: String,
+) -> Flag {
+    // Every message is written "what drifted, by how much: what to check first."
+    let (what, next_step) = match message.split_once(": ") {
+        Some((w, n)) => (w.to_string(), n.trim_end_matches('.').to_string()),
+        None => (message.clone(), String::new()),
+    };
+    Flag {
+        kind,
+        state: g.state,
+        since,
+        state_since,
+        message,
+        what,
+        next_step,
+        acknowledged: false,
+        acknowledgement: None,
+        figure: figure_of(kind, g),
+        restarted: None,
+    }
+}
+
+/// The figure of a flag from its graded point (value and limit in the flag's `unit`).
+pub(super) fn figure_of(kind: FlagKind, g: &Graded) -> Option<Figure> {
+    let dim = match kind {
+        FlagKind::LostFlow | FlagKind::CaseDrain | FlagKind::Viscosity => Dim::Percent,
+        FlagKind::LeakConductance => Dim::Ratio,
+        FlagKind::HeatRise => Dim::TempDiff,
+        FlagKind::ReservoirTemp => Dim::Temperature,
+        FlagKind::Cleanliness => Dim::RangeNumber,
+        FlagKind::Water => Dim::Ppm,
+        FlagKind::Acid => Dim::AcidNumber,
+        FlagKind::Overdue => Dim::Days,
+        // Filter and oil level are read, not measured; drift sets its own figure.
+        FlagKind::Filter | FlagKind::OilLevel | FlagKind::Drift => return None,
+    };
+    let si = |v: f64| {
+        if dim == Dim::Temperature {
+            v + crate::units::KELVIN_AT_0C
+        } else {
+            v
+        }
+    };
+    Some(Figure {
+        dim,
+        value: si(g.value?),
+        limit: g.limit.map(si),
+        baseline: None,
+    })
+}

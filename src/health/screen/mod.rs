@@ -1,0 +1,415 @@
+//! Screening of readings: which fields of a check or sample look like a slip (a mistyped digit,
+//! a slipped decimal point, a reading from the wrong gauge) against the unit's physical frame
+//! and its own recent history, and whether each suspicion has been confirmed since.
+//!
+//! One rule for every door a reading comes in by: the engine keeps an unconfirmed suspect
+//! reading out of its baselines, detectors and flags; the entry forms ask about it; the
+//! importer keeps the row and marks it. Pure: records in, suspicions out; no I/O.
+//!
+//! Every threshold below is *common practice, no published source* unless its comment names
+//! one: a reading is questioned only where it is far beyond what scatter and real faults do
+//! between two weekly checks, because a real change is confirmed by the next check anyway.
+
+use chrono::{DateTime, Utc};
+use serde::{Deserialize, Serialize};
+
+use super::text::{flow, pressure, seconds, temp, visc};
+use crate::model::{Check, Event, EventKind, Fluid, Id, Sample, Unit, UnitHistory};
+use crate::physics::stats;
+use crate::physics::viscosity::Walther;
+use crate::units::UnitSystem;
+
+mod rules;
+
+pub use rules::sample;
+use rules::*;
+#[cfg(test)]
+mod tests;
+
+/// How many earlier accepted readings of a field form its recent history.
+pub const WINDOW: usize = 8;
+/// Fewer accepted earlier readings than this and the history rule is not applied (the frame
+/// rules still are): a robust spread of fewer points says little.
+pub const MIN_HISTORY: usize = 3;
+/// A reading further than this many robust σ from the median of its recent history is
+/// questioned. The rule is Hampel's identifier (median ± t · 1.4826 · MAD; F. R. Hampel 1974,
+/// L. Davies and U. Gather, "The identification of multiple outliers", JASA 1993), with t
+/// widened from the usual 3 to 5 because only a slip is to be caught here: a smaller outlier
+/// is absorbed by the robust baselines and the median-of-3 flags (common practice, no
+/// published source, for the 5).
+pub const SIGMAS: f64 = 5.0;
+/// The robust σ of a history is never taken below these floors (a run of identical readings
+/// has a MAD of zero). Temperatures in kelvin: oil and hall move a few kelvin from week to
+/// week with the load and the weather. Pressure, stroke time and case drain are judged on
+/// their logarithm (a slipped decimal point is a factor of ten whatever the size), so their
+/// floors are relative: a stopwatch read by hand (about 5 % on a 4 s stroke) and the real
+/// moves of a wearing pump; pressure changes with the job (two or three settings a unit);
+/// case drain grows fast on a wearing pump. With `SIGMAS` = 5 the limits are about ±12 K,
+/// ×/÷ 1.22 on a stroke time, ×/÷ 2.7 on pressure and case drain.
+pub const FLOOR_TEMP_K: f64 = 2.5;
+pub const FLOOR_STROKE_LN: f64 = 0.04;
+pub const FLOOR_PRESSURE_LN: f64 = 0.2;
+pub const FLOOR_CASE_DRAIN_LN: f64 = 0.2;
+/// A reading beyond `SIGMAS` right after an accepted one beyond this many robust σ on the same
+/// side is a run, not a slip: a slip is a lone reading, while a real change — a relief valve
+/// starting to pass oil, slowing the stroke a little on a cold morning and a lot the week
+/// after — moves two readings in a row. The rule is the Western Electric zone test "two of
+/// three successive points beyond 2σ on the same side" (Western Electric, *Statistical Quality
+/// Control Handbook*, 1956; D. C. Montgomery, *Introduction to Statistical Quality Control*,
+/// the sensitizing rules for Shewhart charts). It does not reach a gross slip: a reading
+/// beyond `RUN_GROSS` times Hampel's limit (a slipped decimal point — 23 K on an oil at 26 °C,
+/// nine floored σ — and most swapped digits) is questioned anyway (common practice, no
+/// published source, for the 1.5).
+pub const RUN_SIGMAS: f64 = 2.0;
+pub const RUN_GROSS: f64 = 1.5;
+/// A working pressure more than this fraction above the relief setting cannot be held by the
+/// circuit (gauge tolerance; the entry form's own margin).
+pub const OVER_RELIEF: f64 = 0.10;
+/// Workshop air more than this above the reservoir oil of a running unit is a misread or a
+/// swapped pair of readings (thermometer tolerance).
+pub const AMBIENT_OVER_OIL_K: f64 = 3.0;
+/// A stroke time this many times the usual (or a this-many-th of it) is not wear.
+pub const STROKE_FACTOR: f64 = 3.0;
+/// A KV40 further than this fraction from the new oil's is a wrong unit, a wrong oil or a slip
+/// (the entry form's own threshold).
+pub const KV40_FAR: f64 = 0.5;
+/// More than 1 % water is free water or a figure not in ppm.
+pub const WATER_MAX_PPM: f64 = 10_000.0;
+/// An acid number above this is rare in hydraulic oil, mg KOH/g.
+pub const ACID_MAX: f64 = 5.0;
+
+/// A field of a check or sample that can be questioned. The keys are the entry forms' field
+/// keys.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Field {
+    ReservoirTemp,
+    AmbientTemp,
+    Pressure,
+    StrokeTime,
+    CaseDrain,
+    Kv40,
+    ViscReading,
+    #[serde(rename = "water_ppm")]
+    Water,
+    Acid,
+}
+
+impl Field {
+    pub fn key(self) -> &'static str {
+        match self {
+            Field::ReservoirTemp => "reservoir_temp",
+            Field::AmbientTemp => "ambient_temp",
+            Field::Pressure => "pressure",
+            Field::StrokeTime => "stroke_time",
+            Field::CaseDrain => "case_drain",
+            Field::Kv40 => "kv40",
+            Field::ViscReading => "visc_reading",
+            Field::Water => "water_ppm",
+            Field::Acid => "acid",
+        }
+    }
+
+    pub fn label(self) -> &'static str {
+        match self {
+            Field::ReservoirTemp => "reservoir temperature",
+            Field::AmbientTemp => "ambient temperature",
+            Field::Pressure => "working pressure",
+            Field::StrokeTime => "timed stroke",
+            Field::CaseDrain => "case-drain flow",
+            Field::Kv40 => "KV40",
+            Field::ViscReading => "field viscosity reading",
+            Field::Water => "water",
+            Field::Acid => "acid number",
+        }
+    }
+}
+
+/// One reason to question one field.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Suspicion {
+    pub field: Field,
+    pub reason: String,
+}
+
+/// Which kind of record a suspect reading is in.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Record {
+    Check,
+    Sample,
+}
+
+/// How a suspicion was lifted.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+pub enum ConfirmedBy {
+    /// A person confirmed the reading (at entry, or later on the unit page).
+    Person { by: String, at: DateTime<Utc> },
+    /// The next reading of the same field agreed with it (or broke the same frame).
+    NextReading { at: DateTime<Utc> },
+}
+
+/// One questioned reading of a unit, with whether it has been confirmed since.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SuspectReading {
+    pub record: Record,
+    pub id: Id,
+    pub at: DateTime<Utc>,
+    pub field: Field,
+    pub reason: String,
+    /// `None` while it is not confirmed: then it feeds no baseline, detector or flag.
+    pub confirmed: Option<ConfirmedBy>,
+}
+
+struct Pending {
+    /// Index into the output list.
+    at: usize,
+    field: Field,
+    value: f64,
+    /// Side of the history it fell on (0 for a frame suspicion).
+    side: f64,
+    /// The robust σ of the history it was judged against.
+    sigma: f64,
+}
+
+/// A person's confirmation of a check, where the record carries one.
+fn confirmed_check(c: &Check) -> Option<ConfirmedBy> {
+    c.confirmed.as_ref().map(|k| ConfirmedBy::Person {
+        by: k.by.clone(),
+        at: k.at,
+    })
+}
+
+fn confirmed_sample(s: &Sample) -> Option<ConfirmedBy> {
+    s.confirmed.as_ref().map(|k| ConfirmedBy::Person {
+        by: k.by.clone(),
+        at: k.at,
+    })
+}
+
+/// Every suspicion raised on a unit's checks and samples (time order), with its confirmation
+/// as far as the records go.
+pub fn screen_history(
+    h: &UnitHistory,
+    fluid: Option<&Fluid>,
+    sys: UnitSystem,
+) -> Vec<SuspectReading> {
+    let (mut out, _) = screen_checks(&h.unit, &h.checks, &h.events, sys);
+    screen_samples(&mut out, fluid, &h.samples, sys);
+    out
+}
+
+/// The suspicions of a new check `c` of `unit`, against the unit's stored checks `earlier`
+/// and maintenance `events` (those at or after `c` are ignored): what the engine will question,
+/// for a form that has the records at hand rather than a whole [`UnitHistory`].
+pub fn check(
+    unit: &Unit,
+    earlier: &[Check],
+    events: &[Event],
+    c: &Check,
+    sys: UnitSystem,
+) -> Vec<Suspicion> {
+    screen_new(unit, earlier, events, c, sys)
+}
+
+/// The suspicions of a new check `c` against the unit's stored history (its checks and
+/// maintenance events; those at or after `c` are ignored): exactly what the engine will
+/// question. What the entry forms and the importer ask.
+pub fn check_in(h: &UnitHistory, c: &Check, sys: UnitSystem) -> Vec<Suspicion> {
+    screen_new(&h.unit, &h.checks, &h.events, c, sys)
+}
+
+fn screen_new(
+    unit: &Unit,
+    earlier: &[Check],
+    events: &[Event],
+    c: &Check,
+    sys: UnitSystem,
+) -> Vec<Suspicion> {
+    let mut before: Vec<Check> = earlier
+        .iter()
+        .filter(|e| e.taken_at < c.taken_at)
+        .cloned()
+        .collect();
+    before.sort_by_key(|e| (e.taken_at, e.id));
+    let (_, mut st) = screen_checks(unit, &before, events, sys);
+    let last = before.last().map(|b| b.taken_at);
+    if maintained_between(events, last, c.taken_at) {
+        st = CheckScreen::default();
+    }
+    st.screen(unit, c, sys)
+}
+
+/// Whether work that changes how a unit runs (a fluid change, rebuild, repair or cooler
+/// clean) was done after `from` (or at all, with no `from`) and up to `to`: the readings after
+/// it are judged against a fresh history, since they may rightly differ from those before.
+fn maintained_between(events: &[Event], from: Option<DateTime<Utc>>, to: DateTime<Utc>) -> bool {
+    events.iter().any(|e| {
+        matches!(
+            e.kind,
+            EventKind::FluidChange
+                | EventKind::Rebuild
+                | EventKind::Repair
+                | EventKind::CoolerClean
+        ) && from.is_some_and(|f| e.done_at > f)
+            && e.done_at <= to
+    })
+}
+
+/// Screens a unit's checks in time order, each against the history accepted before it.
+fn screen_checks(
+    unit: &Unit,
+    checks: &[Check],
+    events: &[Event],
+    sys: UnitSystem,
+) -> (Vec<SuspectReading>, CheckScreen) {
+    let mut out: Vec<SuspectReading> = Vec::new();
+    let mut st = CheckScreen::default();
+    // The last unconfirmed suspicion per field, waiting for the next reading of that field.
+    let mut waiting: Vec<Pending> = Vec::new();
+    let mut prev: Option<DateTime<Utc>> = None;
+    for c in checks {
+        if maintained_between(events, prev, c.taken_at) {
+            st = CheckScreen::default();
+        }
+        prev = Some(c.taken_at);
+        let found = st.screen(unit, c, sys);
+        let person = confirmed_check(c);
+        // The next reading of a waiting field: does it confirm it?
+        let mut agrees: Vec<Field> = Vec::new();
+        waiting.retain(|w| {
+            let Some(x) = hist_value(c, w.field) else {
+                return true; // not read this time: still waiting
+            };
+            let again = found.iter().any(|s| s.field == w.field);
+            let i = idx(w.field);
+            let hist = recent(w.field, &st.accepted[i]);
+            let side = outside(x, hist).unwrap_or(0.0);
+            let close = (x - w.value).abs() <= SIGMAS * w.sigma.max(floor(w.field));
+            let confirms = again && side == w.side && (w.side == 0.0 || close);
+            if confirms {
+                out[w.at].confirmed = Some(ConfirmedBy::NextReading { at: c.taken_at });
+                agrees.push(w.field);
+            }
+            false
+        });
+        // A waiting reading now confirmed joins the history before this one is taken in.
+        for f in &agrees {
+            if let Some(r) = out
+                .iter()
+                .rev()
+                .find(|r| r.record == Record::Check && r.field == *f && r.confirmed.is_some())
+            {
+                if let Some(prev) = checks.iter().find(|k| k.id == r.id) {
+                    if let Some(v) = hist_value(prev, *f) {
+                        let i = idx(*f);
+                        let hist = recent(*f, &st.accepted[i]);
+                        st.stepped[i] = outside(v, hist);
+                        st.accepted[i].push(v);
+                    }
+                }
+            }
+        }
+        let mut held: Vec<Field> = Vec::new();
+        for s in found {
+            let x = hist_value(c, s.field).unwrap_or(f64::NAN);
+            let i = idx(s.field);
+            let hist = recent(s.field, &st.accepted[i]);
+            // This reading agrees with the one before it, just confirmed: confirmed as well.
+            let confirmed = if agrees.contains(&s.field) {
+                Some(ConfirmedBy::NextReading { at: c.taken_at })
+            } else {
+                person.clone()
+            };
+            if confirmed.is_none() && !held.contains(&s.field) {
+                held.push(s.field);
+                waiting.push(Pending {
+                    at: out.len(),
+                    field: s.field,
+                    value: x,
+                    side: outside(x, hist).unwrap_or(0.0),
+                    sigma: hist.map(|h| h.1).unwrap_or(0.0),
+                });
+            }
+            out.push(SuspectReading {
+                record: Record::Check,
+                id: c.id,
+                at: c.taken_at,
+                field: s.field,
+                reason: s.reason,
+                confirmed,
+            });
+        }
+        st.accept(c, &held);
+    }
+    (out, st)
+}
+
+/// Screens samples against the frame of the fluid; a suspicion repeated by the next sample is
+/// confirmed by it.
+fn screen_samples(
+    out: &mut Vec<SuspectReading>,
+    fluid: Option<&Fluid>,
+    samples: &[Sample],
+    sys: UnitSystem,
+) {
+    let mut last: Vec<(Field, usize)> = Vec::new();
+    for s in samples {
+        let found = sample(fluid, s, sys);
+        let person = confirmed_sample(s);
+        let repeated: Vec<Field> = found.iter().map(|f| f.field).collect();
+        for (f, i) in last.drain(..) {
+            if repeated.contains(&f) && out[i].confirmed.is_none() {
+                out[i].confirmed = Some(ConfirmedBy::NextReading { at: s.sampled_at });
+            }
+        }
+        for f in found {
+            if person.is_none() {
+                last.push((f.field, out.len()));
+            }
+            out.push(SuspectReading {
+                record: Record::Sample,
+                id: s.id,
+                at: s.sampled_at,
+                field: f.field,
+                reason: f.reason,
+                confirmed: person.clone(),
+            });
+        }
+    }
+}
+
+/// The history with every unconfirmed suspect field taken out (set to nothing), as the
+/// baselines, detectors and flags are to see it.
+pub fn without_unconfirmed(h: &UnitHistory, suspects: &[SuspectReading]) -> UnitHistory {
+    let mut out = h.clone();
+    for s in suspects.iter().filter(|s| s.confirmed.is_none()) {
+        match s.record {
+            Record::Check => {
+                if let Some(c) = out.checks.iter_mut().find(|c| c.id == s.id) {
+                    match s.field {
+                        Field::ReservoirTemp => c.reservoir_temp = None,
+                        Field::AmbientTemp => c.ambient_temp = None,
+                        Field::Pressure => c.pressure = None,
+                        Field::StrokeTime => c.stroke_time = None,
+                        Field::CaseDrain => c.case_drain = None,
+                        _ => {}
+                    }
+                }
+            }
+            Record::Sample => {
+                if let Some(x) = out.samples.iter_mut().find(|x| x.id == s.id) {
+                    match s.field {
+                        Field::Kv40 => x.kv40 = None,
+                        Field::ViscReading => x.visc_reading = None,
+                        Field::Water => x.water_ppm = None,
+                        Field::Acid => x.acid_mgkoh_g = None,
+                        _ => {}
+                    }
+                }
+            }
+        }
+    }
+    out
+}

@@ -1,0 +1,321 @@
+//! The tests one reading is put to: the unit's physical frame and the field's own recent
+//! history (Hampel's median ± robust σ), for checks and samples. It says why a reading looks
+//! like a slip; it keeps no record of what was confirmed.
+
+use super::*;
+
+/// The fields of a check judged against their own history.
+pub(super) const HISTORY_FIELDS: [Field; 5] = [
+    Field::ReservoirTemp,
+    Field::AmbientTemp,
+    Field::Pressure,
+    Field::StrokeTime,
+    Field::CaseDrain,
+];
+
+pub(super) fn check_value(c: &Check, f: Field) -> Option<f64> {
+    match f {
+        Field::ReservoirTemp => c.reservoir_temp.map(|v| v.si()),
+        Field::AmbientTemp => c.ambient_temp.map(|v| v.si()),
+        Field::Pressure => c.pressure.map(|v| v.si()),
+        Field::StrokeTime => c.stroke_time.map(|v| v.si()),
+        Field::CaseDrain => c.case_drain.map(|v| v.si()),
+        _ => None,
+    }
+    .filter(|v| v.is_finite())
+}
+
+/// Whether a field's history is judged on its logarithm.
+pub(super) fn on_log(f: Field) -> bool {
+    matches!(f, Field::Pressure | Field::StrokeTime | Field::CaseDrain)
+}
+
+/// A field's value as its history judges it: kelvin, or the logarithm of a positive value.
+pub(super) fn hist_value(c: &Check, f: Field) -> Option<f64> {
+    let x = check_value(c, f)?;
+    if on_log(f) {
+        (x > 0.0).then(|| x.ln())
+    } else {
+        Some(x)
+    }
+}
+
+pub(super) fn from_hist(f: Field, h: f64) -> f64 {
+    if on_log(f) {
+        h.exp()
+    } else {
+        h
+    }
+}
+
+pub(super) fn show(f: Field, si: f64, sys: UnitSystem) -> String {
+    match f {
+        Field::ReservoirTemp | Field::AmbientTemp => temp(si, sys),
+        Field::Pressure => pressure(si, sys),
+        Field::StrokeTime => seconds(si),
+        Field::CaseDrain => flow(si, sys),
+        _ => format!("{si}"),
+    }
+}
+
+pub(super) fn floor(f: Field) -> f64 {
+    match f {
+        Field::ReservoirTemp | Field::AmbientTemp => FLOOR_TEMP_K,
+        Field::StrokeTime => FLOOR_STROKE_LN,
+        Field::Pressure => FLOOR_PRESSURE_LN,
+        Field::CaseDrain => FLOOR_CASE_DRAIN_LN,
+        _ => 0.0,
+    }
+}
+
+/// The recent history of one field: median and robust σ (floored) of the last `WINDOW`
+/// accepted readings, when there are at least `MIN_HISTORY`.
+pub(super) fn recent(f: Field, accepted: &[f64]) -> Option<(f64, f64)> {
+    if accepted.len() < MIN_HISTORY {
+        return None;
+    }
+    let last = &accepted[accepted.len().saturating_sub(WINDOW)..];
+    let (m, s) = stats::median_and_mad_sigma(last)?;
+    Some((m, s.max(floor(f))))
+}
+
+/// Where a reading stands against its recent history: `Some(±1.0)` when it is beyond
+/// `SIGMAS` robust σ above or below the median.
+pub(super) fn outside(x: f64, hist: Option<(f64, f64)>) -> Option<f64> {
+    let (m, s) = hist?;
+    ((x - m).abs() > SIGMAS * s).then(|| (x - m).signum())
+}
+
+/// The state of the screen of one unit's checks, reading by reading in time order.
+#[derive(Default)]
+pub(super) struct CheckScreen {
+    /// Accepted values per history field, oldest first.
+    pub(super) accepted: [Vec<f64>; 5],
+    /// The last accepted reading per field was itself outside its history (a confirmed step),
+    /// with its side: a next reading that agrees with it needs no confirmation.
+    pub(super) stepped: [Option<f64>; 5],
+    /// The last reading per field was accepted and lay beyond `RUN_SIGMAS` of its history,
+    /// with its side: the start of a run rather than a slip (see `RUN_SIGMAS`).
+    pub(super) leaning: [Option<f64>; 5],
+}
+
+pub(super) fn idx(f: Field) -> usize {
+    HISTORY_FIELDS.iter().position(|&g| g == f).unwrap_or(0)
+}
+
+impl CheckScreen {
+    /// The suspicions of one check against the frame and the history so far (does not change
+    /// the state).
+    pub(super) fn screen(&self, unit: &Unit, c: &Check, sys: UnitSystem) -> Vec<Suspicion> {
+        let mut out = Vec::new();
+        let mut history_hit = [false; 5];
+        for &f in &HISTORY_FIELDS {
+            let (Some(x), Some(shown)) = (hist_value(c, f), check_value(c, f)) else {
+                continue;
+            };
+            let i = idx(f);
+            let hist = recent(f, &self.accepted[i]);
+            let Some(side) = outside(x, hist) else {
+                continue;
+            };
+            let (m, s) = hist.unwrap_or((x, 0.0));
+            // The same side as a step confirmed at the last reading, and close to that reading:
+            // the level has moved, this is not a slip.
+            if let (Some(step), Some(prev)) = (self.stepped[i], self.accepted[i].last()) {
+                if step == side && (x - prev).abs() <= SIGMAS * s {
+                    continue;
+                }
+            }
+            // The second of a run on one side (`RUN_SIGMAS`), short of a gross slip.
+            if self.leaning[i] == Some(side) && (x - m).abs() <= RUN_GROSS * SIGMAS * s {
+                continue;
+            }
+            history_hit[i] = true;
+            out.push(Suspicion {
+                field: f,
+                reason: format!(
+                    "{} {} is far from this unit's recent {} (median of the last {} readings {}, usual spread {}): \
+                     a slipped decimal point or swapped digits?",
+                    capital(f.label()),
+                    show(f, shown, sys),
+                    f.label(),
+                    self.accepted[i].len().min(WINDOW),
+                    show(f, from_hist(f, m), sys),
+                    spread_text(f, s, sys),
+                ),
+            });
+        }
+        // Physical frame.
+        if let (Some(p), Some(r)) = (
+            check_value(c, Field::Pressure),
+            unit.relief.map(|r| r.si()).filter(|r| *r > 0.0),
+        ) {
+            if p > r * (1.0 + OVER_RELIEF) && !history_hit[idx(Field::Pressure)] {
+                out.push(Suspicion {
+                    field: Field::Pressure,
+                    reason: format!(
+                        "Working pressure {} is above the relief setting {}: the circuit cannot hold it",
+                        pressure(p, sys),
+                        pressure(r, sys)
+                    ),
+                });
+            }
+        }
+        if let (Some(oil), Some(air)) = (
+            check_value(c, Field::ReservoirTemp),
+            check_value(c, Field::AmbientTemp),
+        ) {
+            if air > oil + AMBIENT_OVER_OIL_K {
+                let reason = format!(
+                    "Ambient {} is above the oil at {}: a running unit's oil is warmer than the air around it",
+                    temp(air, sys),
+                    temp(oil, sys)
+                );
+                // Blame the one that is also out of its history; where neither or both are,
+                // both are in doubt.
+                let oil_hit = history_hit[idx(Field::ReservoirTemp)];
+                let air_hit = history_hit[idx(Field::AmbientTemp)];
+                if !oil_hit && !air_hit {
+                    for f in [Field::ReservoirTemp, Field::AmbientTemp] {
+                        out.push(Suspicion {
+                            field: f,
+                            reason: reason.clone(),
+                        });
+                    }
+                }
+            }
+        }
+        if let Some(t) = check_value(c, Field::StrokeTime) {
+            let acc = &self.accepted[idx(Field::StrokeTime)];
+            if !history_hit[idx(Field::StrokeTime)] && !acc.is_empty() {
+                let last = &acc[acc.len().saturating_sub(WINDOW)..];
+                // The history holds logarithms of the stroke times.
+                if let Some(m) = stats::median(last).map(f64::exp) {
+                    if t > STROKE_FACTOR * m || t * STROKE_FACTOR < m {
+                        out.push(Suspicion {
+                            field: Field::StrokeTime,
+                            reason: format!(
+                                "Timed stroke {} is {} the usual {}: a different stroke, or a slip?",
+                                seconds(t),
+                                if t > m {
+                                    "several times"
+                                } else {
+                                    "a fraction of"
+                                },
+                                seconds(m)
+                            ),
+                        });
+                    }
+                }
+            }
+        }
+        if let (Some(q), Some(r)) = (
+            check_value(c, Field::CaseDrain),
+            unit.rated_flow.map(|r| r.si()).filter(|r| *r > 0.0),
+        ) {
+            if q > r && !history_hit[idx(Field::CaseDrain)] {
+                out.push(Suspicion {
+                    field: Field::CaseDrain,
+                    reason: format!(
+                        "Case-drain flow {} is more than the pump's rated flow {}",
+                        flow(q, sys),
+                        flow(r, sys)
+                    ),
+                });
+            }
+        }
+        out
+    }
+
+    /// Takes a check's accepted fields into the history. `suspect` are the fields left out.
+    pub(super) fn accept(&mut self, c: &Check, suspect: &[Field]) {
+        for &f in &HISTORY_FIELDS {
+            let i = idx(f);
+            if suspect.contains(&f) {
+                self.leaning[i] = None;
+                continue;
+            }
+            let Some(x) = hist_value(c, f) else { continue };
+            let hist = recent(f, &self.accepted[i]);
+            self.stepped[i] = outside(x, hist);
+            self.leaning[i] = hist
+                .filter(|(m, s)| (x - m).abs() > RUN_SIGMAS * s)
+                .map(|(m, _)| (x - m).signum());
+            self.accepted[i].push(x);
+        }
+    }
+}
+
+pub(super) fn capital(s: &str) -> String {
+    let mut c = s.chars();
+    match c.next() {
+        Some(f) => f.to_uppercase().collect::<String>() + c.as_str(),
+        None => String::new(),
+    }
+}
+
+pub(super) fn spread_text(f: Field, s: f64, sys: UnitSystem) -> String {
+    if on_log(f) {
+        format!("±{:.0} %", (s.exp() - 1.0) * 100.0)
+    } else {
+        crate::health::text::tdiff(s, sys)
+    }
+}
+
+/// The suspicions of a sample against the physical frame of its fluid.
+pub fn sample(fluid: Option<&Fluid>, s: &Sample, sys: UnitSystem) -> Vec<Suspicion> {
+    let mut out = Vec::new();
+    let new = fluid
+        .and_then(|f| f.kv40_new)
+        .map(|v| v.si())
+        .filter(|v| *v > 0.0);
+    let far = |k: f64| new.is_some_and(|n| (k / n - 1.0).abs() > KV40_FAR);
+    if let Some(k) = s.kv40.map(|v| v.si()).filter(|k| far(*k)) {
+        out.push(Suspicion {
+            field: Field::Kv40,
+            reason: format!(
+                "KV40 {} is far from the new oil's {}: the right unit, the right oil?",
+                visc(k, sys),
+                visc(new.unwrap_or(0.0), sys)
+            ),
+        });
+    }
+    if s.kv40.is_none() {
+        let w = fluid.and_then(|f| Walther::from_kv40_kv100(f.kv40_new?, f.kv100_new?).ok());
+        if let (Some(r), Some(w)) = (s.visc_reading, w) {
+            if let Some(k) = w.kv40_from_reading(r.visc, r.at).ok().map(|v| v.si()) {
+                if far(k) {
+                    out.push(Suspicion {
+                        field: Field::ViscReading,
+                        reason: format!(
+                            "The field reading {} at {} gives a KV40 of {}, far from the new oil's {}: the right \
+                             temperature, the right oil?",
+                            visc(r.visc.si(), sys),
+                            temp(r.at.si(), sys),
+                            visc(k, sys),
+                            visc(new.unwrap_or(0.0), sys)
+                        ),
+                    });
+                }
+            }
+        }
+    }
+    if let Some(w) = s.water_ppm.filter(|w| *w > WATER_MAX_PPM) {
+        out.push(Suspicion {
+            field: Field::Water,
+            reason: format!(
+                "{} ppm is more than 1 % water: free water, or a figure not in ppm?",
+                w
+            ),
+        });
+    }
+    if let Some(a) = s.acid_mgkoh_g.filter(|a| *a > ACID_MAX) {
+        out.push(Suspicion {
+            field: Field::Acid,
+            reason: format!(
+                "An acid number of {a} mg KOH/g is rare in hydraulic oil (above {ACID_MAX}): is it right?"
+            ),
+        });
+    }
+    out
+}

@@ -1,0 +1,189 @@
+//! Tests of the screening: slips caught, real steps confirmed by the next check, confirmations.
+
+use super::*;
+use crate::health::testutil::{fluid, press, timed};
+use crate::units::{Pressure, Seconds, Temperature, Viscosity};
+
+/// Eight ordinary weeks: 4.0 s ± 0.05, oil 45 °C, ambient 20 °C, 90 bar (relief 100 bar).
+fn steady_weeks() -> UnitHistory {
+    let mut h = press();
+    for w in 0..8 {
+        let mut c = timed(w + 1, w, 4.0 + 0.05 * ((w % 3) as f64 - 1.0), 45.0, 20.0);
+        c.pressure = Some(Pressure::from_bar(90.0));
+        h.checks.push(c);
+    }
+    h
+}
+
+fn fields(s: &[SuspectReading], id: Id) -> Vec<(Field, bool)> {
+    s.iter()
+        .filter(|r| r.id == id)
+        .map(|r| (r.field, r.confirmed.is_some()))
+        .collect()
+}
+
+#[test]
+fn a_slipped_decimal_is_questioned_and_stays_so_when_the_next_check_is_normal() {
+    let mut h = steady_weeks();
+    // 45.0 °C typed as 4.50 °C: 40.5 K below a median of 45 °C whose spread is floored at
+    // 1 K (5 K is the limit of the rule).
+    h.checks.push(timed(9, 8, 4.0, 4.5, 20.0));
+    h.checks.push(timed(10, 9, 4.0, 45.0, 20.0));
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    // Only the oil is blamed (it is also out of its history), and nothing confirms it.
+    assert_eq!(fields(&s, 9), vec![(Field::ReservoirTemp, false)]);
+    assert!(fields(&s, 10).is_empty());
+    assert!(s[0].reason.contains("far from"), "{}", s[0].reason);
+    // The masked history has no oil temperature on that check, the rest untouched.
+    let m = without_unconfirmed(&h, &s);
+    assert_eq!(m.checks[8].reservoir_temp, None);
+    assert_eq!(m.checks[8].stroke_time, Some(Seconds(4.0)));
+    assert_eq!(m.checks[9].reservoir_temp, h.checks[9].reservoir_temp);
+}
+
+#[test]
+fn a_step_is_confirmed_by_the_next_check_and_the_new_level_is_then_accepted() {
+    // A relief valve starts to bypass: 4.0 s → 5.0 s and stays there. The first slow check
+    // is questioned (1 s off a 4 s median, the spread floored at 3 % = 0.12 s: limit
+    // 0.6 s), the second agrees with it and confirms both, the third needs nothing.
+    let mut h = steady_weeks();
+    for (i, t) in [5.0, 5.05, 4.98].iter().enumerate() {
+        let mut c = timed(9 + i as Id, 8 + i as i64, *t, 45.0, 20.0);
+        c.pressure = Some(Pressure::from_bar(90.0));
+        h.checks.push(c);
+    }
+    let at_onset = {
+        let mut k = h.clone();
+        k.checks.truncate(9);
+        screen_history(&k, None, UnitSystem::Metric)
+    };
+    assert_eq!(fields(&at_onset, 9), vec![(Field::StrokeTime, false)]);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, true)]);
+    assert_eq!(fields(&s, 10), vec![(Field::StrokeTime, true)]);
+    assert!(fields(&s, 11).is_empty(), "{s:?}");
+    assert!(matches!(
+        s[0].confirmed,
+        Some(ConfirmedBy::NextReading { at }) if at == h.checks[9].taken_at
+    ));
+    assert!(without_unconfirmed(&h, &s) == h);
+}
+
+#[test]
+fn the_second_of_a_run_on_one_side_is_not_a_slip() {
+    // The stroke history: 4.0 s with its spread floored at 0.04 in ln (Hampel's limit
+    // 5 · 0.04 = 0.2, run limit 2 · 0.04 = 0.08). 4.4 s is ln 1.1 = 0.095 above: accepted,
+    // beyond 2σ. 5.0 s next is ln 1.25 = 0.223 above, beyond 5σ — but the second of two
+    // on the slow side (the Western Electric zone rule), so not questioned (by hand).
+    let mut h = steady_weeks();
+    for (i, t) in [4.4, 5.0].iter().enumerate() {
+        let mut c = timed(9 + i as Id, 8 + i as i64, *t, 45.0, 20.0);
+        c.pressure = Some(Pressure::from_bar(90.0));
+        h.checks.push(c);
+    }
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert!(s.is_empty(), "{s:?}");
+    // A gross slip after the same lead-in is still questioned: 6.0 s is ln 1.5 = 0.405
+    // above, beyond 1.5 times Hampel's limit (0.3).
+    h.checks[9].stroke_time = Some(Seconds(6.0));
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 10), vec![(Field::StrokeTime, false)]);
+    // Without the lead-in (4.0 s before it), 5.0 s is questioned.
+    h.checks[8].stroke_time = Some(Seconds(4.0));
+    h.checks[9].stroke_time = Some(Seconds(5.0));
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 10), vec![(Field::StrokeTime, false)]);
+}
+
+#[test]
+fn the_physical_frame_is_checked_from_the_first_reading() {
+    let mut h = press();
+    // 1000 bar on a unit relieved at 100 bar; ambient 94 °C beside oil at 26 °C.
+    let mut c = timed(1, 0, 4.0, 26.0, 94.0);
+    c.pressure = Some(Pressure::from_bar(1000.0));
+    h.checks.push(c);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    let f = fields(&s, 1);
+    assert!(f.contains(&(Field::Pressure, false)), "{f:?}");
+    assert!(f.contains(&(Field::AmbientTemp, false)), "{f:?}");
+    assert!(f.contains(&(Field::ReservoirTemp, false)), "{f:?}");
+    // 110 bar is within the gauge margin of a 100 bar relief (10 %); 110.1 bar is not.
+    for (bar, suspect) in [(110.0, false), (110.1, true)] {
+        let mut c = timed(2, 1, 4.0, 45.0, 20.0);
+        c.pressure = Some(Pressure::from_bar(bar));
+        let got = check(&h.unit, &[], &[], &c, UnitSystem::Metric);
+        assert_eq!(
+            got.iter().any(|s| s.field == Field::Pressure),
+            suspect,
+            "{bar}"
+        );
+    }
+    // A stroke three times the usual, with only two checks before it.
+    let earlier = vec![timed(1, 0, 4.0, 45.0, 20.0), timed(2, 1, 4.1, 45.0, 20.0)];
+    let slow = timed(3, 2, 12.2, 45.0, 20.0);
+    let got = check(&h.unit, &earlier, &[], &slow, UnitSystem::Metric);
+    assert_eq!(got.len(), 1);
+    assert_eq!(got[0].field, Field::StrokeTime);
+    let ok = timed(3, 2, 11.9, 45.0, 20.0);
+    let got = check(&h.unit, &earlier, &[], &ok, UnitSystem::Metric);
+    assert!(got.is_empty(), "{got:?}");
+}
+
+#[test]
+fn a_person_confirms_a_questioned_reading_and_it_counts() {
+    let mut h = steady_weeks();
+    let mut c = timed(9, 8, 4.0, 4.5, 20.0);
+    c.confirmed = Some(crate::model::Confirmation {
+        by: "T. Tech".into(),
+        at: crate::health::testutil::t("2024-03-01"),
+    });
+    h.checks.push(c);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert!(matches!(
+        &s[0].confirmed,
+        Some(ConfirmedBy::Person { by, .. }) if by == "T. Tech"
+    ));
+    assert_eq!(without_unconfirmed(&h, &s), h);
+}
+
+#[test]
+fn a_frame_break_repeated_at_the_next_check_is_confirmed() {
+    // A unit standing idle in a warm hall: the oil at or below the air two weeks running.
+    let mut h = steady_weeks();
+    h.checks.push(timed(9, 8, 4.0, 44.0, 48.0));
+    h.checks.push(timed(10, 9, 4.0, 44.5, 48.5));
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert!(fields(&s, 9).iter().all(|f| f.1), "{s:?}");
+    assert!(fields(&s, 10).iter().all(|f| f.1), "{s:?}");
+}
+
+#[test]
+fn samples_far_from_the_fluid_are_questioned() {
+    let f = fluid(1);
+    let mut s = crate::health::testutil::sample(1, crate::health::testutil::t("2024-03-01"));
+    // 46 cSt new; 50 % off either way is the rule.
+    for (kv, suspect) in [(23.5, false), (22.9, true), (68.9, false), (69.1, true)] {
+        s.kv40 = Some(Viscosity::from_cst(kv));
+        let got = sample_rule(&f, &s);
+        assert_eq!(got.contains(&Field::Kv40), suspect, "{kv}");
+    }
+    s.kv40 = None;
+    s.water_ppm = Some(12_000.0);
+    s.acid_mgkoh_g = Some(6.0);
+    assert_eq!(sample_rule(&f, &s), vec![Field::Water, Field::Acid]);
+    // A field reading of 4.6 cSt at 40 °C is a KV40 of 4.6 cSt: far.
+    s.water_ppm = None;
+    s.acid_mgkoh_g = None;
+    s.visc_reading = Some(crate::model::ViscReading {
+        visc: Viscosity::from_cst(4.6),
+        at: Temperature::from_c(40.0),
+    });
+    assert_eq!(sample_rule(&f, &s), vec![Field::ViscReading]);
+}
+
+fn sample_rule(f: &Fluid, s: &Sample) -> Vec<Field> {
+    crate::health::screen::sample(Some(f), s, UnitSystem::Metric)
+        .into_iter()
+        .map(|x| x.field)
+        .collect()
+}
