@@ -7,7 +7,7 @@ use slint::ComponentHandle;
 
 use super::fmt::state_num;
 use super::ui::{FleetAdapter, FleetRow, Nav};
-use super::{model, s, unit, Ctx};
+use super::{model, on, on_arg, s, unit, Ctx};
 use crate::app::entry;
 use crate::app::status::{self, FleetStatus, UnitStatus};
 use crate::app::view;
@@ -18,18 +18,12 @@ use crate::units::UnitSystem;
 pub(super) fn install(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<FleetAdapter>();
-    let c = Rc::downgrade(ctx);
-    a.on_filter_changed(move || {
-        if let Some(ctx) = c.upgrade() {
-            refresh(&ctx);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_open_unit(move |id| {
-        if let Some(ctx) = c.upgrade() {
-            unit::open(&ctx, i64::from(id));
-        }
-    });
+    a.on_filter_changed(on(ctx, |ctx| {
+        refresh(ctx);
+    }));
+    a.on_open_unit(on_arg(ctx, |ctx, id| {
+        unit::open(ctx, i64::from(id));
+    }));
 }
 
 fn row(u: &UnitStatus, sys: UnitSystem, zone: crate::app::local_time::Zone) -> FleetRow {

@@ -12,7 +12,7 @@ use slint::{ComponentHandle, ModelRc, VecModel};
 
 use super::jobs::{self, Job, JobView};
 use super::ui::{ImportAdapter, ImportProblem, MapRow};
-use super::{err_text, model, on, on_arg, s, Ctx};
+use super::{err_text, model, on, on_arg, on_arg2, s, Ctx};
 use crate::app::entry::{self, Cancel, ImportPreview, ImportRun};
 use crate::app::import::{import_columns, Columns, ImportOptions, Resolved};
 use crate::app::shop::Shop;
@@ -212,12 +212,9 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
     }));
     a.on_start(on(ctx, start));
     {
-        let c = Rc::downgrade(ctx);
-        a.on_map_set(move |row, choice| {
-            if let Some(ctx) = c.upgrade() {
-                map_set(&ctx, row, choice);
-            }
-        });
+        a.on_map_set(on_arg2(ctx, |ctx, row, choice| {
+            map_set(ctx, row, choice);
+        }));
     }
     a.on_map_kind_set(on_arg(ctx, map_kind_set));
     a.on_map_date_set(on_arg(ctx, |ctx, i: i32| {

@@ -233,12 +233,7 @@ impl App {
 
     fn install(&self) {
         let nav = self.window.global::<Nav>();
-        let ctx = Rc::downgrade(&self.ctx);
-        nav.on_navigate(move |i| {
-            if let Some(ctx) = ctx.upgrade() {
-                show(&ctx, Screen::from_index(i));
-            }
-        });
+        nav.on_navigate(on_arg(&self.ctx, |ctx, i| show(ctx, Screen::from_index(i))));
         fleet::install(&self.ctx);
         unit::install(&self.ctx);
         walk::install(&self.ctx);
@@ -256,13 +251,13 @@ impl App {
     /// Forms being typed in (walk-round, samples, setup) are left alone, so nothing typed is
     /// lost; they read the shop afresh when next opened.
     pub fn watch_for_saves(&self) {
-        let ctx = Rc::downgrade(&self.ctx);
-        self.saves_timer
-            .start(slint::TimerMode::Repeated, SAVES_LOOK_EVERY, move || {
-                if let Some(ctx) = ctx.upgrade() {
-                    look_for_saves(&ctx);
-                }
-            });
+        self.saves_timer.start(
+            slint::TimerMode::Repeated,
+            SAVES_LOOK_EVERY,
+            on(&self.ctx, |ctx| {
+                look_for_saves(ctx);
+            }),
+        );
     }
 
     /// One look for saves made elsewhere (what the timer of [`App::watch_for_saves`] does):
@@ -629,6 +624,32 @@ pub(crate) fn on_arg<A>(ctx: &Rc<Ctx>, f: impl Fn(&Rc<Ctx>, A) + 'static) -> imp
     move |arg| {
         if let Some(ctx) = c.upgrade() {
             f(&ctx, arg);
+        }
+    }
+}
+
+/// [`on`] for a callback with two arguments.
+pub(crate) fn on_arg2<A, B>(
+    ctx: &Rc<Ctx>,
+    f: impl Fn(&Rc<Ctx>, A, B) + 'static,
+) -> impl Fn(A, B) + 'static {
+    let c = Rc::downgrade(ctx);
+    move |a, b| {
+        if let Some(ctx) = c.upgrade() {
+            f(&ctx, a, b);
+        }
+    }
+}
+
+/// [`on`] for a callback with three arguments.
+pub(crate) fn on_arg3<A, B, C>(
+    ctx: &Rc<Ctx>,
+    f: impl Fn(&Rc<Ctx>, A, B, C) + 'static,
+) -> impl Fn(A, B, C) + 'static {
+    let c = Rc::downgrade(ctx);
+    move |a, b, x| {
+        if let Some(ctx) = c.upgrade() {
+            f(&ctx, a, b, x);
         }
     }
 }

@@ -8,7 +8,10 @@ use slint::ComponentHandle;
 
 use super::fmt::state_num;
 use super::ui::{ImportAdapter, KeyVal, PreviewFlag, SampleAdapter};
-use super::{err_text, form_rows, mark_problems, model, problems_line, s, strings, Ctx, Screen};
+use super::{
+    err_text, form_rows, mark_problems, model, on, on_arg, on_arg2, problems_line, s, strings, Ctx,
+    Screen,
+};
 use crate::app::entry::{self, Entered, Field, SampleReview, SaveOutcome};
 use crate::app::vocab::Kv40Source;
 use crate::app::vocab::SAFETY_CAUTIONS;
@@ -29,46 +32,34 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
         "Before sampling: {} {} {}",
         SAFETY_CAUTIONS[1], SAFETY_CAUTIONS[0], SAFETY_CAUTIONS[2]
     )));
-    let c = Rc::downgrade(ctx);
-    a.on_choose_unit(move |i| {
-        if let Some(ctx) = c.upgrade() {
-            let id = ctx.sample.borrow().units.get(i as usize).copied();
-            if let Some(id) = id {
-                ctx.unit_id.set(Some(id));
-                update_preview(&ctx);
+    a.on_choose_unit(on_arg(ctx, |ctx, i| {
+        let id = ctx.sample.borrow().units.get(i as usize).copied();
+        if let Some(id) = id {
+            ctx.unit_id.set(Some(id));
+            update_preview(ctx);
+        }
+    }));
+    a.on_field_edited(on_arg2(ctx, |ctx, i: i32, t: slint::SharedString| {
+        {
+            let mut st = ctx.sample.borrow_mut();
+            if let Some(key) = st.fields.get(i as usize).map(|f| f.key.clone()) {
+                st.entered.set(&key, t.as_str());
             }
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_field_edited(move |i, t| {
-        if let Some(ctx) = c.upgrade() {
-            {
-                let mut st = ctx.sample.borrow_mut();
-                if let Some(key) = st.fields.get(i as usize).map(|f| f.key.clone()) {
-                    st.entered.set(&key, t.as_str());
-                }
-            }
-            update_preview(&ctx);
+        update_preview(ctx);
+    }));
+    a.on_save(on(ctx, |ctx| {
+        save(ctx);
+    }));
+    a.on_import_file(on(ctx, |ctx| {
+        let Some(w) = ctx.win() else { return };
+        let path = w.global::<SampleAdapter>().get_import_path().to_string();
+        w.global::<ImportAdapter>().set_path(s(&path));
+        super::show(ctx, Screen::Import);
+        if !path.trim().is_empty() {
+            super::import::preview_now(ctx, std::path::Path::new(path.trim()));
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_save(move || {
-        if let Some(ctx) = c.upgrade() {
-            save(&ctx);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_import_file(move || {
-        if let Some(ctx) = c.upgrade() {
-            let Some(w) = ctx.win() else { return };
-            let path = w.global::<SampleAdapter>().get_import_path().to_string();
-            w.global::<ImportAdapter>().set_path(s(&path));
-            super::show(&ctx, Screen::Import);
-            if !path.trim().is_empty() {
-                super::import::preview_now(&ctx, std::path::Path::new(path.trim()));
-            }
-        }
-    });
+    }));
 }
 
 pub(super) fn refresh(ctx: &Rc<Ctx>) {

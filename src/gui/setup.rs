@@ -6,7 +6,10 @@ use std::rc::Rc;
 use slint::ComponentHandle;
 
 use super::ui::{LimitRow, SetupAdapter};
-use super::{err_text, form_rows, mark_problems, model, problems_line, s, strings, Ctx, Screen};
+use super::{
+    err_text, form_rows, mark_problems, model, on, on_arg, on_arg2, on_arg3, problems_line, s,
+    strings, Ctx, Screen,
+};
 use crate::app::entry::{self, Entered, Field, LimitEdit, Record, SaveOutcome};
 use crate::app::vocab::LimitOrigin;
 use crate::app::work::LimitRow as AppLimitRow;
@@ -39,30 +42,22 @@ fn record_of(tab: i32) -> Option<Record> {
 pub(super) fn install(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<SetupAdapter>();
-    let c = Rc::downgrade(ctx);
-    a.on_tab_changed(move |_| {
-        if let Some(ctx) = c.upgrade() {
-            if let Some(w) = ctx.win() {
-                w.global::<SetupAdapter>().set_message(s(""));
-            }
-            refresh(&ctx);
+    a.on_tab_changed(on_arg(ctx, |ctx, _| {
+        if let Some(w) = ctx.win() {
+            w.global::<SetupAdapter>().set_message(s(""));
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_save_shop(move || {
-        if let Some(ctx) = c.upgrade() {
-            save_shop(&ctx);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_filter_zones(move |text| {
-        if let Some(w) = c.upgrade().and_then(|ctx| ctx.win()) {
+        refresh(ctx);
+    }));
+    a.on_save_shop(on(ctx, |ctx| {
+        save_shop(ctx);
+    }));
+    a.on_filter_zones(on_arg(ctx, |ctx, text: slint::SharedString| {
+        if let Some(w) = ctx.win() {
             show_zones(&w.global::<SetupAdapter>(), &text);
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_choose_zone(move |i| {
-        if let Some(w) = c.upgrade().and_then(|ctx| ctx.win()) {
+    }));
+    a.on_choose_zone(on_arg(ctx, |ctx, i: i32| {
+        if let Some(w) = ctx.win() {
             let a = w.global::<SetupAdapter>();
             let chosen = usize::try_from(i)
                 .ok()
@@ -71,47 +66,32 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
                 a.set_time_zone(name);
             }
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_choose_record(move |i| {
-        if let Some(ctx) = c.upgrade() {
-            let id = ctx.setup.borrow().ids.get(i as usize).copied();
-            load_record(&ctx, id);
-            if let Some(w) = ctx.win() {
-                w.global::<SetupAdapter>().set_record_index(i);
-            }
+    }));
+    a.on_choose_record(on_arg(ctx, |ctx, i| {
+        let id = ctx.setup.borrow().ids.get(i as usize).copied();
+        load_record(ctx, id);
+        if let Some(w) = ctx.win() {
+            w.global::<SetupAdapter>().set_record_index(i);
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_new_record(move || {
-        if let Some(ctx) = c.upgrade() {
-            load_record(&ctx, None);
+    }));
+    a.on_new_record(on(ctx, |ctx| {
+        load_record(ctx, None);
+    }));
+    a.on_field_edited(on_arg2(ctx, |ctx, i: i32, t: slint::SharedString| {
+        let mut st = ctx.setup.borrow_mut();
+        if let Some(key) = st.fields.get(i as usize).map(|f| f.key.clone()) {
+            st.entered.set(&key, t.as_str());
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_field_edited(move |i, t| {
-        if let Some(ctx) = c.upgrade() {
-            let mut st = ctx.setup.borrow_mut();
-            if let Some(key) = st.fields.get(i as usize).map(|f| f.key.clone()) {
-                st.entered.set(&key, t.as_str());
-            }
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_save_record(move || {
-        if let Some(ctx) = c.upgrade() {
-            save_record(&ctx);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_choose_scope(move |_| {
-        if let Some(ctx) = c.upgrade() {
-            load_limits(&ctx);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_limit_edited(move |i, which, t| {
-        if let Some(ctx) = c.upgrade() {
+    }));
+    a.on_save_record(on(ctx, |ctx| {
+        save_record(ctx);
+    }));
+    a.on_choose_scope(on_arg(ctx, |ctx, _| {
+        load_limits(ctx);
+    }));
+    a.on_limit_edited(on_arg3(
+        ctx,
+        |ctx, i: i32, which: i32, t: slint::SharedString| {
             let mut st = ctx.setup.borrow_mut();
             if let Some(e) = st.limit_edits.get_mut(i as usize) {
                 if which == 0 {
@@ -120,14 +100,11 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
                     e.act = t.to_string();
                 }
             }
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_save_limits(move || {
-        if let Some(ctx) = c.upgrade() {
-            save_limits(&ctx);
-        }
-    });
+        },
+    ));
+    a.on_save_limits(on(ctx, |ctx| {
+        save_limits(ctx);
+    }));
 }
 
 /// Shows setup on one tab (0 shop, 1 machines, 2 units, 3 fluids, 4 limits).

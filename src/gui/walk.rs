@@ -8,7 +8,9 @@ use slint::ComponentHandle;
 
 use super::fmt::state_num;
 use super::ui::{RouteStop, WalkAdapter};
-use super::{err_text, form_rows, mark_problems, model, problems_line, s, Ctx};
+use super::{
+    err_text, form_rows, mark_problems, model, on, on_arg, on_arg2, problems_line, s, Ctx,
+};
 use crate::app::entry::{self, CheckForm, Entered, SaveOutcome};
 
 #[derive(Default)]
@@ -26,39 +28,27 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<WalkAdapter>();
     a.set_safety(s(crate::app::vocab::WALK_ROUND_CAUTION));
-    let c = Rc::downgrade(ctx);
-    a.on_field_edited(move |i, t| {
-        if let Some(ctx) = c.upgrade() {
-            let mut st = ctx.walk.borrow_mut();
-            let key = st
-                .form
-                .as_ref()
-                .and_then(|f| f.fields.get(i as usize))
-                .map(|f| f.key.clone());
-            if let Some(key) = key {
-                st.entered.set(&key, t.as_str());
-            }
+    a.on_field_edited(on_arg2(ctx, |ctx, i: i32, t: slint::SharedString| {
+        let mut st = ctx.walk.borrow_mut();
+        let key = st
+            .form
+            .as_ref()
+            .and_then(|f| f.fields.get(i as usize))
+            .map(|f| f.key.clone());
+        if let Some(key) = key {
+            st.entered.set(&key, t.as_str());
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_save(move || {
-        if let Some(ctx) = c.upgrade() {
-            save(&ctx);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_skip(move || {
-        if let Some(ctx) = c.upgrade() {
-            mark_and_advance(&ctx, "skipped");
-        }
-    });
-    a.on_print_sheet(super::on(ctx, print_sheet));
-    let c = Rc::downgrade(ctx);
-    a.on_select(move |i| {
-        if let Some(ctx) = c.upgrade() {
-            go_to(&ctx, i.max(0) as usize);
-        }
-    });
+    }));
+    a.on_save(on(ctx, |ctx| {
+        save(ctx);
+    }));
+    a.on_skip(on(ctx, |ctx| {
+        mark_and_advance(ctx, "skipped");
+    }));
+    a.on_print_sheet(on(ctx, print_sheet));
+    a.on_select(on_arg(ctx, |ctx, i: i32| {
+        go_to(ctx, i.max(0) as usize);
+    }));
 }
 
 fn stop_rows(st: &WalkState, zone: crate::app::local_time::Zone) -> Vec<RouteStop> {

@@ -8,7 +8,7 @@ use slint::ComponentHandle;
 
 use super::fmt::state_num;
 use super::ui::{WorkAdapter, WorkRow};
-use super::{err_text, model, s, Ctx, Screen};
+use super::{err_text, model, on, on_arg, s, Ctx, Screen};
 use crate::app::entry;
 use crate::app::vocab::WorkKind;
 use crate::app::vocab::CAUTION_SHORT;
@@ -24,18 +24,12 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<WorkAdapter>();
     a.set_safety(s(CAUTION_SHORT));
-    let c = Rc::downgrade(ctx);
-    a.on_choose(move |i| {
-        if let Some(ctx) = c.upgrade() {
-            choose(&ctx, i);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_mark_done(move || {
-        if let Some(ctx) = c.upgrade() {
-            mark_done(&ctx);
-        }
-    });
+    a.on_choose(on_arg(ctx, |ctx, i| {
+        choose(ctx, i);
+    }));
+    a.on_mark_done(on(ctx, |ctx| {
+        mark_done(ctx);
+    }));
 }
 
 fn when(d: &DueItem) -> String {

@@ -24,7 +24,7 @@ use slint::ComponentHandle;
 
 use super::fmt::state_num;
 use super::ui::{Nav, UnitAdapter};
-use super::{err_text, model, s, strings, Ctx, Screen};
+use super::{err_text, model, on, on_arg, on_arg2, s, strings, Ctx, Screen};
 use crate::app::entry::{self, Entered, Field, Reading, UnitView};
 
 const CHART_W: u32 = 516;
@@ -49,66 +49,39 @@ pub(crate) struct UnitState {
 pub(super) fn install(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<UnitAdapter>();
-    let c = Rc::downgrade(ctx);
-    a.on_choose_unit(move |i| {
-        if let Some(ctx) = c.upgrade() {
-            let id = ctx.unit.borrow().choices.get(i as usize).copied();
-            if let Some(id) = id {
-                open(&ctx, id);
-            }
+    a.on_choose_unit(on_arg(ctx, |ctx, i| {
+        let id = ctx.unit.borrow().choices.get(i as usize).copied();
+        if let Some(id) = id {
+            open(ctx, id);
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_acknowledge(move || {
-        if let Some(ctx) = c.upgrade() {
-            acknowledge(&ctx);
+    }));
+    a.on_acknowledge(on(ctx, |ctx| {
+        acknowledge(ctx);
+    }));
+    a.on_choose_table(on_arg(ctx, |ctx, i| {
+        fill_table(ctx, table_of(i));
+    }));
+    a.on_select_row(on_arg(ctx, |ctx, r| {
+        select_row(ctx, r);
+    }));
+    a.on_edit_field(on_arg2(ctx, |ctx, i: i32, t: slint::SharedString| {
+        let mut st = ctx.unit.borrow_mut();
+        if let Some(key) = st.fields.get(i as usize).map(|f| f.key.clone()) {
+            st.entered.set(&key, t.as_str());
         }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_choose_table(move |i| {
-        if let Some(ctx) = c.upgrade() {
-            fill_table(&ctx, table_of(i));
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_select_row(move |r| {
-        if let Some(ctx) = c.upgrade() {
-            select_row(&ctx, r);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_edit_field(move |i, t| {
-        if let Some(ctx) = c.upgrade() {
-            let mut st = ctx.unit.borrow_mut();
-            if let Some(key) = st.fields.get(i as usize).map(|f| f.key.clone()) {
-                st.entered.set(&key, t.as_str());
-            }
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_save_edit(move || {
-        if let Some(ctx) = c.upgrade() {
-            save_edit(&ctx);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_delete_row(move || {
-        if let Some(ctx) = c.upgrade() {
-            delete_row(&ctx);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_confirm_row(move || {
-        if let Some(ctx) = c.upgrade() {
-            confirm_row(&ctx, true);
-        }
-    });
-    let c = Rc::downgrade(ctx);
-    a.on_lift_row(move || {
-        if let Some(ctx) = c.upgrade() {
-            confirm_row(&ctx, false);
-        }
-    });
+    }));
+    a.on_save_edit(on(ctx, |ctx| {
+        save_edit(ctx);
+    }));
+    a.on_delete_row(on(ctx, |ctx| {
+        delete_row(ctx);
+    }));
+    a.on_confirm_row(on(ctx, |ctx| {
+        confirm_row(ctx, true);
+    }));
+    a.on_lift_row(on(ctx, |ctx| {
+        confirm_row(ctx, false);
+    }));
 }
 
 fn table_of(i: i32) -> Reading {
