@@ -240,6 +240,8 @@ pub struct Settings {
     pub unit_system: UnitSystem,
     /// IANA time zone name for display, e.g. `Europe/Berlin`; timestamps are stored in UTC.
     pub time_zone: String,
+    /// What a kilowatt-hour costs the shop, in its own currency; `None` until set.
+    pub electricity_price: Option<f64>,
 }
 
 impl Default for Settings {
@@ -248,6 +250,7 @@ impl Default for Settings {
             shop_name: "New shop".into(),
             unit_system: UnitSystem::Metric,
             time_zone: "UTC".into(),
+            electricity_price: None,
         }
     }
 }

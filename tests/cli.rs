@@ -1109,3 +1109,93 @@ fn a_labs_own_file_goes_in_through_a_saved_column_mapping_in_two_steps() {
         assert!(!samples.contains("2026-12-02"), "{samples}");
     });
 }
+
+#[test]
+fn status_gives_the_cost_of_waiting_at_the_shops_electricity_price() {
+    crate::backends::on_each_backend(cost_on_one_backend);
+}
+
+fn cost_on_one_backend() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let db = &shop_name("shop.sqlite");
+    ok(d, &["--db", db, "demo"]);
+    ok(
+        d,
+        &[
+            "--db",
+            db,
+            "settings",
+            "--electricity-price",
+            "0.25",
+            "--by",
+            "T. Tester",
+        ],
+    );
+    assert!(ok(d, &["--db", db, "settings"]).contains("electricity price 0.25 per kWh"));
+    let unit = |json: &str, tag: &str| -> serde_json::Value {
+        let v: serde_json::Value = serde_json::from_str(json).unwrap();
+        v["units"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|u| u["unit"] == tag)
+            .unwrap()
+            .clone()
+    };
+    // The demo's worn pump (PB-03-A) has lost flow; its cost follows from the figures given:
+    // hp = kW / 0.7457 (NIST SP 811), kWh a year = kW × run hours, cost = kWh × price.
+    let pb = unit(&ok(d, &["--db", db, "status", "--json"]), "PB-03-A");
+    let c = &pb["cost_of_waiting"];
+    let kw = c["heat_kw"].as_f64().unwrap();
+    assert!(kw > 0.0, "{c}");
+    assert!(
+        (c["heat_hp"].as_f64().unwrap() - kw / 0.745_699_872).abs() < 0.002,
+        "{c}"
+    );
+    let hours = c["run_hours_per_year"].as_f64().unwrap();
+    let kwh = c["energy_kwh_per_year"].as_f64().unwrap();
+    assert!((kwh - kw * hours).abs() <= 0.5 + kwh * 0.001, "{c}");
+    assert_eq!(c["price_per_kwh"], 0.25);
+    assert!(
+        (c["cost_per_year"].as_f64().unwrap() - kwh * 0.25).abs() < 0.2,
+        "{c}"
+    );
+    // A unit that has lost no flow costs nothing.
+    let steady = unit(&ok(d, &["--db", db, "status", "--json"]), "PB-06-A");
+    assert!(steady["indicators"]["lost_flow_pct"].as_f64().unwrap() <= 0.0);
+    assert_eq!(steady["cost_of_waiting"], serde_json::Value::Null);
+    // The unit page says it in words.
+    let page = ok(d, &["--db", db, "status", "--unit", "PB-03-A"]);
+    assert!(
+        page.contains("Cost of waiting:") && page.contains("per kWh"),
+        "{page}"
+    );
+
+    // A bad price is refused and changes nothing; `none` clears it, and then no cost is given.
+    refused(
+        d,
+        &["--db", db, "settings", "--electricity-price", "-1"],
+        "not a price per kWh",
+    );
+    refused(
+        d,
+        &["--db", db, "settings", "--electricity-price", "cheap"],
+        "not a number",
+    );
+    ok(
+        d,
+        &[
+            "--db",
+            db,
+            "settings",
+            "--electricity-price",
+            "none",
+            "--by",
+            "T. Tester",
+        ],
+    );
+    let c = unit(&ok(d, &["--db", db, "status", "--json"]), "PB-03-A")["cost_of_waiting"].clone();
+    assert_eq!(c["cost_per_year"], serde_json::Value::Null);
+    assert!(c["heat_kw"].as_f64().unwrap() > 0.0);
+}

@@ -1143,12 +1143,13 @@ fn a_new_york_shop_chosen_from_the_list_reads_and_shows_new_york_time() {
         f.app.window().global::<SetupAdapter>().get_time_zone(),
         "America/New_York"
     );
+    // The electricity price is set on the same tab.
+    field(&f.app, "Electricity price per kWh").set_accessible_value("0.21");
     field(&f.app, "Changed by").set_accessible_value("T. Tester");
     button(&f.app, "Save shop settings").invoke_accessible_default_action();
-    assert_eq!(
-        shop(&f.path).store().settings().unwrap().time_zone,
-        "America/New_York"
-    );
+    let saved = shop(&f.path).store().settings().unwrap();
+    assert_eq!(saved.time_zone, "America/New_York");
+    assert_eq!(saved.electricity_price, Some(0.21));
 
     // The walk-round reads the time typed as New York's.
     let (unit_id, _) = first_route_unit(&f.path);
@@ -1376,4 +1377,28 @@ fn setup_saves_an_unchanged_record_without_asking_a_reason() {
     assert!(m.contains("Nothing changed"), "{m}");
     assert!(!m.to_lowercase().contains("reason"), "{m}");
     assert_eq!(edits(&f.path), before);
+}
+
+#[test]
+fn the_unit_page_says_what_the_lost_flow_costs() {
+    let f = open_demo();
+    let s = shop(&f.path);
+    let unit = s.store().unit_by_tag("PB-03-A").unwrap().unwrap();
+    f.app.open_unit(unit.id);
+    let a = f.app.window().global::<sumpbook::gui::ui::UnitAdapter>();
+    use slint::Model;
+    let cost = a
+        .get_era()
+        .iter()
+        .find(|kv| kv.key == "Cost of waiting")
+        .map(|kv| kv.value.to_string())
+        .expect("the worn pump's page gives the cost of waiting");
+    // The demo's price is 0.18 per kWh; the figures are those of `status --json`.
+    assert!(cost.contains(" kW (") && cost.contains("per kWh"), "{cost}");
+    let st = sumpbook::app::status::unit_status_of(&s, "PB-03-A", demo_now()).unwrap();
+    let c = st.waiting_cost.unwrap();
+    assert!(
+        cost.starts_with(&format!("{:.2} kW ({:.2} hp)", c.heat_kw, c.heat_hp)),
+        "{cost}"
+    );
 }

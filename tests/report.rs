@@ -510,7 +510,21 @@ fn the_demo_report_carries_every_unit_its_state_and_figures_as_status_gives_them
             own.contains("Checked by") && own.contains("Reviewed by"),
             "{tag}'s page lacks the sign-off"
         );
+        // A unit that has lost flow shows what it turns into heat and costs a year.
+        let lost: f64 = r.get("LOST").trim_end_matches('%').parse().unwrap_or(0.0);
+        if lost > 0.0 {
+            assert!(
+                own.contains("Cost of waiting") && own.contains("kW") && own.contains("a year"),
+                "{tag}'s page lacks the cost of waiting"
+            );
+        }
     }
+    // Dates and times are said to be the shop's (the demo keeps Europe/Berlin time).
+    assert!(fleet.contains("Europe/Berlin"), "the report names the zone");
+    assert!(
+        fleet.contains("price per kWh"),
+        "the notes say how the cost is reckoned"
+    );
     // Every flag the status command lists is among the exceptions, with its unit.
     // (A unit "not judged yet" has no flag: it is not among the exceptions.)
     for unit in rows

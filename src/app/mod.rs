@@ -19,6 +19,7 @@ pub mod sim;
 pub mod status;
 pub mod view;
 pub mod vocab;
+pub mod waiting_cost;
 pub mod work;
 
 /// Errors of the application layer, each with the exit code the command line reports.

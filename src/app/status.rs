@@ -5,6 +5,7 @@
 //! (`health::evaluate`) and hands back serialisable results that the command line, the app and
 //! the reports all render. No health rule lives here, and nothing here prints.
 
+use super::waiting_cost::{waiting_cost, WaitingCost};
 use chrono::{DateTime, NaiveDate, Utc};
 use serde::{Deserialize, Serialize};
 
@@ -72,6 +73,8 @@ pub struct UnitStatus {
     pub next_due: Option<WorkItem>,
     /// Everything the engine found (series and rows emptied at `Detail::Summary`).
     pub health: UnitHealth,
+    /// What the flow the unit has lost turns into heat, and costs a year.
+    pub waiting_cost: Option<WaitingCost>,
 }
 
 /// The whole fleet at one date, worst first.
@@ -106,6 +109,7 @@ fn shop_data(store: &Store) -> Result<ShopData, AppError> {
 fn unit_status(h: &UnitHistory, data: &ShopData, at: DateTime<Utc>, detail: Detail) -> UnitStatus {
     let limits = Limits::resolve(&data.limit_rows, Some(h.unit.id));
     let mut health = health::evaluate(h, &data.fluids, &limits, at, data.settings.unit_system);
+    let waiting_cost = waiting_cost(h, &health, at, data.settings.electricity_price);
     if detail == Detail::Summary {
         health.series.clear();
         health.checks.clear();
@@ -122,6 +126,7 @@ fn unit_status(h: &UnitHistory, data: &ShopData, at: DateTime<Utc>, detail: Deta
         fluid: health.fluid.as_ref().map(|f| f.name.clone()),
         next_due: health.work.iter().min_by_key(|w| w.due).cloned(),
         health,
+        waiting_cost,
     }
 }
 
@@ -292,6 +297,20 @@ pub struct UnitJson {
     pub not_judged: Vec<NotJudgedJson>,
     /// Readings the screening questioned, oldest first, confirmed or not.
     pub questioned: Vec<QuestionedJson>,
+    /// What the lost flow turns into heat and costs a year; null when no flow is lost.
+    pub cost_of_waiting: Option<CostJson>,
+}
+
+/// The cost of waiting in `status --json`: kW and hp of heat, run hours, kWh and the cost a
+/// year (in the shop's currency, at its price per kWh; null until the price is set).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct CostJson {
+    pub heat_kw: f64,
+    pub heat_hp: f64,
+    pub run_hours_per_year: Option<f64>,
+    pub energy_kwh_per_year: Option<f64>,
+    pub price_per_kwh: Option<f64>,
+    pub cost_per_year: Option<f64>,
 }
 
 /// One indicator that cannot be judged yet.
@@ -431,6 +450,14 @@ impl UnitJson {
                 })
                 .collect(),
             questioned: u.health.suspects.iter().map(questioned_json).collect(),
+            cost_of_waiting: u.waiting_cost.as_ref().map(|c| CostJson {
+                heat_kw: round(Some(c.heat_kw), 3).unwrap_or(c.heat_kw),
+                heat_hp: round(Some(c.heat_hp), 3).unwrap_or(c.heat_hp),
+                run_hours_per_year: round(c.run_hours_per_year, 0),
+                energy_kwh_per_year: round(c.energy_kwh_per_year, 0),
+                price_per_kwh: c.price_per_kwh,
+                cost_per_year: round(c.cost_per_year, 2),
+            }),
         }
     }
 }

@@ -24,6 +24,10 @@ pub struct SettingsArgs {
     /// The shop's time zone, an IANA name such as America/New_York or Europe/Berlin.
     #[arg(long, value_name = "ZONE")]
     pub time_zone: Option<String>,
+    /// What a kWh of electricity costs the shop, in its own currency (e.g. 0.18), for the
+    /// yearly cost of lost flow; `none` clears it.
+    #[arg(long, value_name = "PRICE", allow_hyphen_values = true)]
+    pub electricity_price: Option<String>,
     /// Who makes the change (kept in the edit history); default the login name.
     #[arg(long, value_name = "NAME")]
     pub by: Option<String>,
@@ -47,7 +51,10 @@ pub enum Units {
 impl SettingsArgs {
     /// Whether anything is to be changed (otherwise the settings are shown).
     pub fn changes(&self) -> bool {
-        self.name.is_some() || self.units.is_some() || self.time_zone.is_some()
+        self.name.is_some()
+            || self.units.is_some()
+            || self.time_zone.is_some()
+            || self.electricity_price.is_some()
     }
 }
 
@@ -67,6 +74,10 @@ pub fn run(shop: &Shop, args: &SettingsArgs, out: &mut dyn Write) -> Result<(), 
         if let Some(zone) = &args.time_zone {
             settings.time_zone = zone.trim().to_string();
         }
+        if let Some(price) = &args.electricity_price {
+            settings.electricity_price = entry::read_price(price)
+                .map_err(|e| Failure::bad_input(format!("--electricity-price: {e}")))?;
+        }
         entry::save_settings(shop, &settings, &super::who(&args.by), &args.reason)?;
         settings = entry::shop_settings(shop)?;
     }
@@ -83,5 +94,12 @@ pub fn run(shop: &Shop, args: &SettingsArgs, out: &mut dyn Write) -> Result<(), 
     writeln!(out, "shop name         {}", settings.shop_name)?;
     writeln!(out, "units of measure  {units}")?;
     writeln!(out, "time zone         {}", settings.time_zone)?;
+    writeln!(
+        out,
+        "electricity price {}",
+        settings
+            .electricity_price
+            .map_or_else(|| "not set".to_string(), |p| format!("{p} per kWh"))
+    )?;
     Ok(())
 }

@@ -491,6 +491,7 @@ pub fn settings() -> Settings {
         shop_name: "Benchmark forming works (generated)".into(),
         unit_system: UnitSystem::Metric,
         time_zone: "UTC".into(),
+        electricity_price: None,
     }
 }
 

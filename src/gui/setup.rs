@@ -126,6 +126,10 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 UnitSystem::Us => 1,
             });
             a.set_time_zone(s(&st.time_zone));
+            a.set_electricity_price(s(st
+                .electricity_price
+                .map(|p| p.to_string())
+                .unwrap_or_default()));
             show_zones(&a, &a.get_zone_filter());
         }
         Err(e) => {
@@ -240,6 +244,14 @@ fn save_shop(ctx: &Rc<Ctx>) {
             UnitSystem::Metric
         },
         time_zone: a.get_time_zone().trim().to_string(),
+        electricity_price: match entry::read_price(&a.get_electricity_price()) {
+            Ok(p) => p,
+            Err(e) => {
+                a.set_message(s(format!("Electricity price: {e}")));
+                a.set_message_level(2);
+                return;
+            }
+        },
     };
     match entry::save_settings(&ctx.shop, &new, &a.get_by(), &a.get_reason()) {
         Ok(()) => {

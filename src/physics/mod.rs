@@ -6,6 +6,7 @@
 //! are [`PhysicsError`], whose messages say what is wrong and what is expected.
 
 pub mod cleanliness;
+pub mod energy;
 pub mod hydraulics;
 pub mod oil_life;
 pub mod stats;

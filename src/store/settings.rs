@@ -15,11 +15,12 @@ fn unit_system_text(u: UnitSystem) -> &'static str {
 
 impl Store {
     pub fn settings(&self) -> Result<Settings, StoreError> {
-        let (shop_name, system, time_zone): (String, String, String) = self.query_one(
-            "SELECT shop_name, unit_system, time_zone FROM settings WHERE id = 1",
-            params![],
-            |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
-        )?;
+        let (shop_name, system, time_zone, electricity_price): (String, String, String, Option<f64>) =
+            self.query_one(
+                "SELECT shop_name, unit_system, time_zone, electricity_price FROM settings WHERE id = 1",
+                params![],
+                |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?)),
+            )?;
         let unit_system = match system.as_str() {
             "metric" => UnitSystem::Metric,
             "us" => UnitSystem::Us,
@@ -29,6 +30,7 @@ impl Store {
             shop_name,
             unit_system,
             time_zone,
+            electricity_price,
         })
     }
 
@@ -36,11 +38,13 @@ impl Store {
     pub fn set_settings(&self, s: &Settings, by: &str, reason: &str) -> Result<(), StoreError> {
         self.with_edit(by, reason, |st| {
             st.exec(
-                "UPDATE settings SET shop_name = ?1, unit_system = ?2, time_zone = ?3 WHERE id = 1",
+                "UPDATE settings SET shop_name = ?1, unit_system = ?2, time_zone = ?3, \
+                 electricity_price = ?4 WHERE id = 1",
                 params![
                     s.shop_name.trim(),
                     unit_system_text(s.unit_system),
-                    s.time_zone.trim()
+                    s.time_zone.trim(),
+                    s.electricity_price
                 ],
             )?;
             Ok(())

@@ -42,6 +42,28 @@ pub fn zone_choices(filter: &str) -> Vec<&'static str> {
         .collect()
 }
 
+/// Highest electricity price per kWh a shop may set (the store refuses more): far above any
+/// tariff in any currency in use, low enough to catch a price typed per MWh.
+pub const MAX_PRICE_PER_KWH: f64 = 100.0;
+
+/// Reads an electricity price per kWh as typed: a plain number from 0 to
+/// [`MAX_PRICE_PER_KWH`]; blank or `none` is no price.
+pub fn read_price(text: &str) -> Result<Option<f64>, String> {
+    let t = text.trim();
+    if t.is_empty() || t.eq_ignore_ascii_case("none") {
+        return Ok(None);
+    }
+    match t.parse::<f64>() {
+        Ok(p) if p.is_finite() && (0.0..=MAX_PRICE_PER_KWH).contains(&p) => Ok(Some(p)),
+        Ok(_) => Err(format!(
+            "`{t}` is not a price per kWh from 0 to {MAX_PRICE_PER_KWH}"
+        )),
+        Err(_) => Err(format!(
+            "`{t}` is not a number; give the price of one kWh, e.g. 0.18"
+        )),
+    }
+}
+
 /// Changes the shop's name, unit system and time zone. A blank reason is filled in with what
 /// changed.
 pub fn save_settings(shop: &Shop, new: &Settings, by: &str, reason: &str) -> Result<(), AppError> {
@@ -50,6 +72,9 @@ pub fn save_settings(shop: &Shop, new: &Settings, by: &str, reason: &str) -> Res
         return Err(AppError::BadInput("the shop needs a name".into()));
     }
     check_time_zone(&new.time_zone)?;
+    if let Some(p) = new.electricity_price {
+        read_price(&p.to_string()).map_err(AppError::BadInput)?;
+    }
     let store = shop.store();
     let old = settings(store)?;
     if &old == new {
@@ -65,6 +90,9 @@ pub fn save_settings(shop: &Shop, new: &Settings, by: &str, reason: &str) -> Res
         }
         if old.time_zone != new.time_zone {
             what.push("time zone");
+        }
+        if old.electricity_price != new.electricity_price {
+            what.push("electricity price");
         }
         format!("changed {} in setup", what.join(", "))
     } else {

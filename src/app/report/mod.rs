@@ -332,7 +332,9 @@ pub fn build_report(
         notes: vec![format!(
             "Dates and times in the shop's time zone, {}. Figures in {} units; lost flow, leak and heat rise are against the unit's baseline. Trend: \
              least-squares slope over the last 12 points, ↑ rising or ↓ falling where it is significant \
-             (|t| ≥ 2), → no clear trend. On the unit pages, change is the last value in the period minus the first.",
+             (|t| ≥ 2), → no clear trend. On the unit pages, change is the last value in the period minus the first; \
+             cost of waiting is the heat the lost flow makes at working pressure (lost flow × pressure), and its \
+             cost a year at the unit's run hours and the shop's price per kWh.",
             zone.name(),
             match sys {
                 UnitSystem::Metric => "metric",

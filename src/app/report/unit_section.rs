@@ -180,6 +180,9 @@ pub(super) fn unit_section(
         }
         fluid.push(("Era since".into(), text));
     }
+    if let Some(c) = &u.waiting_cost {
+        fluid.push(("Cost of waiting".into(), c.short_text()));
+    }
 
     let waiting: Vec<&crate::health::NotJudged> =
         u.health.not_judged.iter().filter(|n| n.expected).collect();

@@ -235,6 +235,9 @@ fn unit_page(
     if h.baseline.is_empty() {
         writeln!(out, "Baseline: not yet formed (absolute limits apply)")?;
     }
+    if let Some(c) = &u.waiting_cost {
+        writeln!(out, "Cost of waiting: {}", c.text(sys))?;
+    }
     for b in &h.baseline.values {
         let src = match &b.source {
             BaselineSource::Checks {

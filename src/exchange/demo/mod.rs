@@ -381,6 +381,8 @@ pub fn generate() -> Result<DemoShop, DemoError> {
         shop_name: "Quarry Lane Forming Works (demo)".into(),
         unit_system: UnitSystem::Metric,
         time_zone: "Europe/Berlin".into(),
+        // An invented price per kWh, so that the demo shows what waiting costs.
+        electricity_price: Some(0.18),
     };
     // This shop changes oil on condition (it samples every quarter), at the latest every three
     // years or 8000 run-hours.

@@ -105,6 +105,9 @@ pub(super) fn era(v: &UnitView, sys: UnitSystem) -> Vec<KeyVal> {
             out.push(kv("Eras so far", h.eras.len().to_string()));
         }
     }
+    if let Some(c) = &v.status.waiting_cost {
+        out.push(kv("Cost of waiting", c.text(sys)));
+    }
     if h.baseline.is_empty() {
         out.push(kv(
             "Baseline",

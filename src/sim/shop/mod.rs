@@ -118,6 +118,7 @@ pub fn simulate(p: &Params) -> Result<SimShop, String> {
             shop_name: format!("Detection benchmark shop ({})", p.set),
             unit_system: UnitSystem::Metric,
             time_zone: "UTC".into(),
+            electricity_price: None,
         },
         fluids,
         machines: Vec::new(),
