@@ -77,6 +77,9 @@ pub const COUNT_14UM_PER_ML: Bound = incl("count_14um_per_ml", 0.0, 1.0e9);
 pub const WATER_PPM: Bound = incl("water_ppm", 0.0, 1.0e6);
 pub const ACID_MGKOH_G: Bound = incl("acid_mgkoh_g", 0.0, 50.0);
 pub const ACID_NEW_MGKOH_G: Bound = incl("acid_new_mgkoh_g", 0.0, 50.0);
+/// The shop's electricity price per kWh, in its own currency: far above any tariff in any
+/// currency in use, low enough to catch a price typed per MWh.
+pub const ELECTRICITY_PRICE: Bound = incl("electricity_price", 0.0, 100.0);
 
 /// Every bound, for the comparison with the schema.
 pub const ALL: &[Bound] = &[
@@ -106,6 +109,7 @@ pub const ALL: &[Bound] = &[
     WATER_PPM,
     ACID_MGKOH_G,
     ACID_NEW_MGKOH_G,
+    ELECTRICITY_PRICE,
 ];
 
 #[cfg(test)]

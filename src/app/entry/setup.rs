@@ -42,9 +42,8 @@ pub fn zone_choices(filter: &str) -> Vec<&'static str> {
         .collect()
 }
 
-/// Highest electricity price per kWh a shop may set (the store refuses more): far above any
-/// tariff in any currency in use, low enough to catch a price typed per MWh.
-pub const MAX_PRICE_PER_KWH: f64 = 100.0;
+/// Highest electricity price per kWh a shop may set (the store refuses more; `bounds`).
+pub const MAX_PRICE_PER_KWH: f64 = crate::bounds::ELECTRICITY_PRICE.hi;
 
 /// Reads an electricity price per kWh as typed: a plain number from 0 to
 /// [`MAX_PRICE_PER_KWH`]; blank or `none` is no price.
@@ -54,7 +53,7 @@ pub fn read_price(text: &str) -> Result<Option<f64>, String> {
         return Ok(None);
     }
     match t.parse::<f64>() {
-        Ok(p) if p.is_finite() && (0.0..=MAX_PRICE_PER_KWH).contains(&p) => Ok(Some(p)),
+        Ok(p) if p.is_finite() && crate::bounds::ELECTRICITY_PRICE.holds(p) => Ok(Some(p)),
         Ok(_) => Err(format!(
             "`{t}` is not a price per kWh from 0 to {MAX_PRICE_PER_KWH}"
         )),
