@@ -45,7 +45,9 @@ pub fn value(dim: Dim, si: f64, sys: UnitSystem) -> f64 {
 
 /// A temperature difference in K or °F steps, optionally signed: `4.9 K`, `+8.8 °F`.
 pub fn temp_diff(k: f64, sys: UnitSystem, signed: bool) -> String {
-    let v = value(Dim::TempDiff, k, sys);
+    // Rounded to the shown tenth first, and `+ 0.0` turns a negative zero positive: a rise
+    // of −0.04 K reads "+0.0 K", not "-0.0 K".
+    let v = (value(Dim::TempDiff, k, sys) * 10.0).round() / 10.0 + 0.0;
     let u = unit(Dim::TempDiff, sys);
     if signed {
         format!("{v:+.1} {u}")
@@ -173,6 +175,14 @@ pub fn flag_figure(f: &Flag, sys: UnitSystem) -> String {
 
 #[cfg(test)]
 mod tests {
+
+    #[test]
+    fn a_temperature_difference_that_rounds_to_zero_has_no_minus_sign() {
+        assert_eq!(temp_diff(-0.04, UnitSystem::Metric, true), "+0.0 K");
+        assert_eq!(temp_diff(-0.04, UnitSystem::Metric, false), "0.0 K");
+        assert_eq!(temp_diff(-0.06, UnitSystem::Metric, true), "-0.1 K");
+    }
+
     use super::*;
 
     #[test]
