@@ -154,3 +154,68 @@ pub(super) fn figure_of(kind: FlagKind, g: &Graded) -> Option<Figure> {
         baseline: None,
     })
 }
+
+/// How many samples in a row must move away from good before a trend can raise act.
+pub(super) const TREND_SAMPLES: usize = 3;
+
+/// Raises to act a sample indicator that is past its watch limit and heading for its act limit
+/// faster than the samples come: the last `TREND_SAMPLES` values of the era each further from
+/// good (further in the direction the latest lies from good), the latest at watch, and the least-squares line through
+/// them, carried on from the latest value at its slope for the time to the next sample due
+/// (`horizon_days`, or the samples' own mean spacing if shorter), at or past `act`. Projecting a
+/// trend to its alarm limit is the usual estimate of time left in condition monitoring (ISO
+/// 13381-1, from memory); asking for a run of moves away, rather than any two samples, keeps the
+/// scatter of a lab result from raising it (common practice, no published source). The slope is
+/// `physics::stats::linear_trend`'s, checked against scipy.
+///
+/// The escalated point carries the projected value and the act limit as its figure. Returns the
+/// date the last point's projection is for, when the last point was escalated.
+pub(super) fn act_on_trend(
+    points: &mut [Graded],
+    act: Option<f64>,
+    horizon_days: f64,
+) -> Option<DateTime<Utc>> {
+    let act = act?;
+    // The readings as graded by their limits alone: an escalated point's projection is no
+    // reading for the next point's run.
+    let read: Vec<Graded> = points.to_vec();
+    let mut last_by = None;
+    for i in (TREND_SAMPLES - 1)..read.len() {
+        last_by = None;
+        let run = &read[i + 1 - TREND_SAMPLES..=i];
+        let p = read[i];
+        if p.state != State::Watch {
+            continue;
+        }
+        let Some(values) = run.iter().map(|g| g.value).collect::<Option<Vec<f64>>>() else {
+            continue;
+        };
+        // Away from good on the latest value's side: a drift may start on the other side of
+        // new (a batch a little off its data sheet) and move steadily through it.
+        let side = values[values.len() - 1].signum();
+        let away: Vec<f64> = values.iter().map(|v| v * side).collect();
+        if away.windows(2).any(|w| w[1] <= w[0]) {
+            continue;
+        }
+        let first = run[0].at;
+        let days = |t: DateTime<Utc>| (t - first).num_seconds() as f64 / 86_400.0;
+        let line: Vec<(f64, f64)> = run
+            .iter()
+            .zip(&away)
+            .map(|(g, &v)| (days(g.at), v))
+            .collect();
+        let Ok(fit) = crate::physics::stats::linear_trend(&line) else {
+            continue;
+        };
+        let spacing = days(p.at) / (TREND_SAMPLES - 1) as f64;
+        let step = horizon_days.min(spacing).max(0.0);
+        let ahead = away[away.len() - 1] + fit.slope * step;
+        if ahead >= act {
+            points[i].state = State::Act;
+            points[i].value = Some(ahead.copysign(side));
+            points[i].limit = Some(act.copysign(side));
+            last_by = Some(p.at + chrono::Duration::seconds((step * 86_400.0).round() as i64));
+        }
+    }
+    last_by
+}

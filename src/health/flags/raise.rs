@@ -172,7 +172,9 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
 
     // Samples of the era against the new oil and the target.
     let kv = limits.get(LimitKey::Kv40DriftPct);
-    let visc_points: Vec<Graded> = c
+    // The time to the next sample due: how far a trend is carried before it must act.
+    let horizon_days = limits.value(LimitKey::SampleIntervalWeeks) * 7.0;
+    let mut visc_points: Vec<Graded> = c
         .samples
         .iter()
         .filter_map(|s| {
@@ -194,6 +196,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             })
         })
         .collect();
+    let visc_by = act_on_trend(&mut visc_points, kv.act, horizon_days);
     push(FlagKind::Viscosity, visc_points, &|g| {
         let s = c.samples.iter().rev().find(|s| s.kv40_drift_pct.is_some());
         let new = c.fluid.as_ref().and_then(|f| f.kv40_new).map(|v| v.si());
@@ -201,6 +204,16 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
         let figures = match (now, new) {
             (Some(n), Some(b)) => format!("KV40 {} against {} new", visc(n, sys), visc(b, sys)),
             _ => "KV40".to_string(),
+        };
+        let figures = match (visc_by, s.and_then(|s| s.kv40_drift_pct)) {
+            (Some(by), Some(d)) if g.state == State::Act => format!(
+                "{figures}, {} % {} and moving on {TREND_SAMPLES} samples in a row; at that rate {} % by {}",
+                pct(Some(d)),
+                if d < 0.0 { "thinner" } else { "thicker" },
+                pct(g.value),
+                day(by)
+            ),
+            _ => figures,
         };
         let band = if s.and_then(|s| s.in_vg_band) == Some(false) {
             ", outside its ISO VG band"
@@ -212,6 +225,9 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
         } else {
             "check for a top-up with a thicker oil and for oxidation (acid number, oil temperature)"
         };
+        if visc_by.is_some() && g.state == State::Act {
+            return format!("{figures}{band}: {cause}, and resample now.");
+        }
         format!(
             "{figures}, {} % {}{band}: {cause}, and resample.",
             pct(g.value),
@@ -275,31 +291,57 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             )
         },
     );
-    push(
-        FlagKind::Water,
-        graded_samples(&c.samples, limits, LimitKey::WaterPpm, |s| s.water_ppm),
-        &|g| {
-            format!(
-            "Water at {} ppm (limit {} ppm): find the ingress first — breather and desiccant, cooler, rod seals, \
-             wash-down — then dry or change the fluid.",
-            num(g.value.unwrap_or(0.0), 0),
-            num(g.limit.unwrap_or(0.0), 0)
+    let mut water = graded_samples(&c.samples, limits, LimitKey::WaterPpm, |s| s.water_ppm);
+    let water_by = act_on_trend(&mut water, limits.get(LimitKey::WaterPpm).act, horizon_days);
+    push(FlagKind::Water, water, &|g| {
+        let now = c.samples.iter().rev().find_map(|s| s.water_ppm);
+        let what = match (water_by, now) {
+            (Some(by), Some(now)) if g.state == State::Act => format!(
+                "Water at {} ppm and rising on {TREND_SAMPLES} samples in a row; at that rate {} ppm by {} \
+                 (limit {} ppm)",
+                num(now, 0),
+                num(g.value.unwrap_or(0.0), 0),
+                day(by),
+                num(g.limit.unwrap_or(0.0), 0)
+            ),
+            _ => format!(
+                "Water at {} ppm (limit {} ppm)",
+                num(g.value.unwrap_or(0.0), 0),
+                num(g.limit.unwrap_or(0.0), 0)
+            ),
+        };
+        format!(
+            "{what}: find the ingress first — breather and desiccant, cooler, rod seals, \
+             wash-down — then dry or change the fluid."
         )
-        },
+    });
+    let mut acid = graded_samples(&c.samples, limits, LimitKey::AcidRiseMgKohG, |s| {
+        s.acid_rise
+    });
+    let acid_by = act_on_trend(
+        &mut acid,
+        limits.get(LimitKey::AcidRiseMgKohG).act,
+        horizon_days,
     );
-    push(
-        FlagKind::Acid,
-        graded_samples(&c.samples, limits, LimitKey::AcidRiseMgKohG, |s| {
-            s.acid_rise
-        }),
-        &|g| {
-            format!(
-            "Acid number up {} mg KOH/g on the new oil: the oil is oxidising — check the oil temperature and \
-             aeration, and plan a fluid change.",
-            num(g.value.unwrap_or(0.0), 2)
+    push(FlagKind::Acid, acid, &|g| {
+        let now = c.samples.iter().rev().find_map(|s| s.acid_rise);
+        let what = match (acid_by, now) {
+            (Some(by), Some(now)) if g.state == State::Act => format!(
+                "Acid number up {} mg KOH/g on the new oil and rising on {TREND_SAMPLES} samples in a row; \
+                 at that rate up {} by {}",
+                num(now, 2),
+                num(g.value.unwrap_or(0.0), 2),
+                day(by)
+            ),
+            _ => format!(
+                "Acid number up {} mg KOH/g on the new oil",
+                num(g.value.unwrap_or(0.0), 2)
+            ),
+        };
+        format!(
+            "{what}: the oil is oxidising — check the oil temperature and aeration, and plan a fluid change."
         )
-        },
-    );
+    });
 
     // Filter and oil level: the latest reading, cleared by the work that answers it.
     let cleared_after = |t: DateTime<Utc>, kinds: &[EventKind]| {

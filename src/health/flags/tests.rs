@@ -86,3 +86,87 @@ fn an_acknowledgement_holds_until_the_state_changes() {
     mark_acknowledged(&mut f, &[ack("act", "2024-02-01T09:00:00Z")]);
     assert!(!f[0].acknowledged);
 }
+
+fn gv(day: u32, state: State, value: f64) -> Graded {
+    Graded {
+        value: Some(value),
+        limit: None,
+        ..g(day, state)
+    }
+}
+
+#[test]
+fn a_trend_past_watch_that_reaches_act_by_the_next_sample_raises_act() {
+    use State::*;
+    // Worked by hand: three samples 10 days apart at 100, 250, 400 ppm lie on a line of
+    // 15 ppm a day (the least-squares slope of collinear points is their slope); carried
+    // 10 days on from 400 (the samples' spacing, shorter than the 30-day horizon) it is at
+    // 550 ppm, past the act limit of 500.
+    let mut pts = [
+        gv(1, Steady, 100.0),
+        gv(11, Watch, 250.0),
+        gv(21, Watch, 400.0),
+    ];
+    let by = act_on_trend(&mut pts, Some(500.0), 30.0);
+    assert_eq!(by, Some(g(31, Steady).at));
+    assert_eq!(pts[2].state, Act);
+    assert!((pts[2].value.unwrap() - 550.0).abs() < 1e-9);
+    assert_eq!(pts[2].limit, Some(500.0));
+    assert_eq!((pts[0].state, pts[1].state), (Steady, Watch));
+    // A horizon of 5 days carries it only to 475: watch.
+    let mut pts = [
+        gv(1, Steady, 100.0),
+        gv(11, Watch, 250.0),
+        gv(21, Watch, 400.0),
+    ];
+    assert_eq!(act_on_trend(&mut pts, Some(500.0), 5.0), None);
+    assert_eq!(pts[2].state, Watch);
+    // A value that fell back on the way is no run, however steep the line.
+    let mut pts = [
+        gv(1, Steady, 100.0),
+        gv(11, Watch, 420.0),
+        gv(21, Watch, 400.0),
+    ];
+    assert_eq!(act_on_trend(&mut pts, Some(500.0), 30.0), None);
+    assert_eq!(pts[2].state, Watch);
+    // Only two samples: no run yet.
+    let mut pts = [gv(11, Watch, 250.0), gv(21, Watch, 400.0)];
+    assert_eq!(act_on_trend(&mut pts, Some(500.0), 30.0), None);
+    // A drift below new runs the same way on its own side: −2, −5, −8 % with 10 % act.
+    let mut pts = [
+        gv(1, Steady, -2.0),
+        gv(11, Watch, -5.0),
+        gv(21, Watch, -8.0),
+    ];
+    assert!(act_on_trend(&mut pts, Some(10.0), 30.0).is_some());
+    assert_eq!((pts[2].value, pts[2].limit), (Some(-11.0), Some(-10.0)));
+    // A drift may pass through new on its way: +2, −5, −8 % lie on a least-squares line of
+    // −0.5 % a day (Sxy = −100 over Sxx = 200, worked by hand), −13 % ten days on.
+    let mut pts = [gv(1, Steady, 2.0), gv(11, Watch, -5.0), gv(21, Watch, -8.0)];
+    assert!(act_on_trend(&mut pts, Some(10.0), 30.0).is_some());
+    assert!((pts[2].value.unwrap() + 13.0).abs() < 1e-9);
+    // Back towards new on the way is no run.
+    let mut pts = [
+        gv(1, Steady, -6.0),
+        gv(11, Watch, -5.0),
+        gv(21, Watch, -8.0),
+    ];
+    assert_eq!(act_on_trend(&mut pts, Some(10.0), 30.0), None);
+    // A later point is judged on the readings, not on an earlier point's projection; and
+    // only the last point's date is returned.
+    let mut pts = [
+        gv(1, Steady, 100.0),
+        gv(11, Watch, 250.0),
+        gv(21, Watch, 400.0),
+        gv(31, Watch, 300.0),
+    ];
+    assert_eq!(act_on_trend(&mut pts, Some(500.0), 30.0), None);
+    assert_eq!((pts[2].state, pts[3].state), (Act, Watch));
+    // Without an act limit nothing is raised.
+    let mut pts = [
+        gv(1, Steady, 100.0),
+        gv(11, Watch, 250.0),
+        gv(21, Watch, 400.0),
+    ];
+    assert_eq!(act_on_trend(&mut pts, None, 30.0), None);
+}

@@ -173,3 +173,34 @@ fn a_fluid_change_starts_a_new_era_and_baseline() {
     assert_eq!(state_of(&r, FlagKind::Water), State::Steady);
     assert!(r.indicators.kv40_drift_pct.unwrap().abs() < 1e-12);
 }
+
+#[test]
+fn water_rising_on_three_samples_acts_before_it_reaches_the_act_limit() {
+    let l = Limits::builtin();
+    // Samples every 13 weeks (the default sample interval): 100, 250, 400 ppm. The last is
+    // at watch (> 200, ≤ 500); at 150 ppm a quarter it is at 550 ppm by the next sample due,
+    // past the act limit of 500 ppm: act, with the projection as the flag's figure.
+    let run = |ppm: [f64; 3]| {
+        let mut h = press();
+        h.checks.push(check(1, week(0)));
+        for (i, v) in ppm.iter().enumerate() {
+            let mut s = sample(i as i64 + 1, week(1 + 13 * i as i64));
+            s.water_ppm = Some(*v);
+            h.samples.push(s);
+        }
+        eval(&h, &l, week(28))
+    };
+    let r = run([100.0, 250.0, 400.0]);
+    let f = r.flags.iter().find(|f| f.kind == FlagKind::Water).unwrap();
+    assert_eq!(f.state, State::Act);
+    let fig = f.figure.clone().unwrap();
+    assert!((fig.value - 550.0).abs() < 1e-6, "{}", fig.value);
+    assert_eq!(fig.limit, Some(500.0));
+    assert!(f.what.contains("400 ppm and rising"), "{}", f.what);
+    assert!(f.what.contains("550 ppm by"), "{}", f.what);
+    // Slower (350 by the next sample) or not a run: watch, at the reading itself.
+    for ppm in [[250.0, 300.0, 350.0], [100.0, 420.0, 400.0]] {
+        let r = run(ppm);
+        assert_eq!(state_of(&r, FlagKind::Water), State::Watch, "{ppm:?}");
+    }
+}
