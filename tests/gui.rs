@@ -143,14 +143,36 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
         caution.contains("penetrate skin") && caution.contains("walk-round"),
         "{caution}"
     );
-    field(&f.app, "Technician").set_accessible_value("T. Tester");
+    // The cursor starts on Technician, the time is filled with now (the shop's clock, here
+    // the fixed instant the app judges the demo at), and Tab goes on through the time to the
+    // first reading.
+    type_text(&f.app, "T. Tester");
+    assert_eq!(
+        field(&f.app, "Technician").accessible_value().unwrap(),
+        "T. Tester"
+    );
+    let now = demo_now().unwrap();
+    let zone: chrono_tz::Tz = shop(&f.path)
+        .store()
+        .settings()
+        .unwrap()
+        .time_zone
+        .parse()
+        .unwrap();
+    assert_eq!(
+        field(&f.app, "Taken at").accessible_value().unwrap(),
+        now.with_timezone(&zone)
+            .format("%Y-%m-%d %H:%M")
+            .to_string()
+    );
+    key(&f.app, Key::Tab);
+    key(&f.app, Key::Tab);
 
     // Values close to the unit's last check, so that none is unusual.
     let oil = last.reservoir_temp.unwrap().c() + 1.0;
     let air = last.ambient_temp.unwrap().c();
     let bar = last.pressure.unwrap().bar();
     let stroke = last.stroke_time.unwrap().si() * 1.02;
-    // The cursor starts in the first field of the form (Reservoir temperature).
     type_text(&f.app, &format!("{oil:.1}"));
     key(&f.app, Key::Tab);
     type_text(&f.app, &format!("{air:.1}"));
@@ -189,6 +211,7 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
     assert!((c.stroke_time.unwrap().si() - (stroke * 100.0).round() / 100.0).abs() < 1e-9);
     assert!((c.cycle_time.unwrap().si() - (cycle * 10.0).round() / 10.0).abs() < 1e-9);
     assert_eq!(c.oil_level, Some(sumpbook::model::OilLevel::Ok));
+    assert_eq!(c.taken_at, now, "saved at the time the form showed");
     // Saved, with the unit's state, and on to the next unit.
     let msg = message(&f.app);
     assert!(msg.contains(&format!("Saved {tag}")), "{msg}");
@@ -1400,5 +1423,110 @@ fn the_unit_page_says_what_the_lost_flow_costs() {
     assert!(
         cost.starts_with(&format!("{:.2} kW ({:.2} hp)", c.heat_kw, c.heat_hp)),
         "{cost}"
+    );
+}
+
+/// A demo shop whose clock is New York's, opened at [`demo_now`].
+fn open_demo_in_new_york() -> Fixture {
+    i_slint_backend_testing::init_no_event_loop();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("shop.sqlite");
+    let s = Shop::create_demo(&path).unwrap();
+    let mut settings = sumpbook::app::entry::shop_settings(&s).unwrap();
+    settings.time_zone = "America/New_York".into();
+    sumpbook::app::entry::save_settings(&s, &settings, "T. Tester", "the shop's clock").unwrap();
+    drop(s);
+    let app = App::open_at(&path, demo_now()).unwrap();
+    app.window()
+        .window()
+        .set_size(slint::LogicalSize::new(1280.0, 1400.0));
+    app.window().show().unwrap();
+    Fixture {
+        _dir: dir,
+        path,
+        app,
+    }
+}
+
+#[test]
+fn the_walk_round_opens_on_technician_with_now_in_the_shops_time_and_enter_saves_from_any_field() {
+    // New York's offset at the instant: the IANA time-zone database through chrono-tz (EST,
+    // UTC-5, in winter; EDT, UTC-4, in summer).
+    let f = open_demo_in_new_york();
+    let (unit_id, _) = first_route_unit(&f.path);
+    let before = shop(&f.path)
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap()
+        .len();
+    f.app.show(Screen::Walk);
+    let now = demo_now().unwrap();
+    let local = now
+        .with_timezone(&chrono_tz::America::New_York)
+        .format("%Y-%m-%d %H:%M")
+        .to_string();
+    assert_eq!(field(&f.app, "Taken at").accessible_value().unwrap(), local);
+    assert_eq!(
+        f.app.window().global::<WalkAdapter>().get_zone_name(),
+        "America/New_York"
+    );
+    // The cursor is on Technician: what is typed goes there.
+    type_text(&f.app, "T. Tester");
+    assert_eq!(
+        field(&f.app, "Technician").accessible_value().unwrap(),
+        "T. Tester"
+    );
+    // Tab goes to the time; Enter there saves (nothing typed yet, so it is refused).
+    key(&f.app, Key::Tab);
+    key(&f.app, Key::Return);
+    let msg = message(&f.app);
+    assert!(msg.contains("nothing was entered"), "{msg}");
+    assert_eq!(field(&f.app, "Taken at").accessible_value().unwrap(), local);
+    // Tab goes on to the first reading; Enter saves at the time shown.
+    key(&f.app, Key::Tab);
+    let last = shop(&f.path)
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap()
+        .last()
+        .unwrap()
+        .clone();
+    type_text(&f.app, &format!("{:.1}", last.reservoir_temp.unwrap().c()));
+    key(&f.app, Key::Return);
+    // A question asks for Enter again; a refusal would stop here.
+    if shop(&f.path)
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap()
+        .len()
+        == before
+    {
+        assert!(
+            message(&f.app).starts_with("Unusual"),
+            "{}",
+            message(&f.app)
+        );
+        key(&f.app, Key::Return);
+    }
+    let checks = shop(&f.path)
+        .store()
+        .checks_for_unit(unit_id, None)
+        .unwrap();
+    assert_eq!(checks.len(), before + 1, "{}", message(&f.app));
+    let c = checks.iter().find(|c| c.by == "T. Tester").unwrap();
+    assert_eq!(c.taken_at, now);
+    // The next unit's form opens with the cursor on its first reading (the technician stays).
+    type_text(&f.app, "40");
+    let second = f.app.window().global::<WalkAdapter>().get_fields();
+    assert_eq!(second.row_data(0).unwrap().key, "reservoir_temp");
+    assert_eq!(
+        field(&f.app, "Technician").accessible_value().unwrap(),
+        "T. Tester"
+    );
+    assert_eq!(
+        field(&f.app, "Reservoir temperature")
+            .accessible_value()
+            .unwrap(),
+        "40"
     );
 }

@@ -4,6 +4,7 @@
 
 use std::rc::Rc;
 
+use chrono::{DateTime, SubsecRound, Utc};
 use slint::ComponentHandle;
 
 use super::fmt::state_num;
@@ -22,6 +23,9 @@ pub(crate) struct WalkState {
     entered: Entered,
     /// The values last judged unusual; Enter again with the same values saves them.
     pending_confirm: Option<Entered>,
+    /// The time the form was filled with (as shown, and the instant it stands for): saved as
+    /// that instant while the text is left as it is.
+    filled_at: Option<(String, DateTime<Utc>)>,
 }
 
 pub(super) fn install(ctx: &Rc<Ctx>) {
@@ -143,8 +147,21 @@ fn load_form(ctx: &Rc<Ctx>, index: usize, keep_message: bool) {
             a.set_unit_title(s(&form.tag));
             a.set_unit_state(state_num(form.state));
             a.set_unit_detail(s(format!("{} · {}", form.machine, form.detail)));
+            fill_time(ctx, &a);
+            // The cursor starts on Technician until a name is there, then on the first reading.
+            let first = form
+                .fields
+                .first()
+                .map(|f| f.key.clone())
+                .unwrap_or_default();
+            a.set_focus_on(s(if a.get_by().trim().is_empty() {
+                "by"
+            } else {
+                first.as_str()
+            }));
+            a.set_focus_tick(a.get_focus_tick().wrapping_add(1));
             let entered = Entered::new();
-            // A new model recreates the fields: empty, with the cursor in the first.
+            // A new model recreates the fields: empty, with the cursor where focus-on says.
             a.set_fields(model(form_rows(&form.fields, &entered, &[])));
             let mut st = ctx.walk.borrow_mut();
             st.form = Some(form);
@@ -155,6 +172,33 @@ fn load_form(ctx: &Rc<Ctx>, index: usize, keep_message: bool) {
             a.set_message(s(err_text(&e)));
             a.set_message_level(2);
         }
+    }
+}
+
+/// Fills the time with now in the shop's time, unless the person typed a time of their own
+/// (a round typed in afterwards from the route sheet keeps it from unit to unit).
+fn fill_time(ctx: &Rc<Ctx>, a: &WalkAdapter) {
+    let zone = ctx.zone.get();
+    a.set_zone_name(s(zone.name()));
+    let shown = a.get_taken_at();
+    let mut st = ctx.walk.borrow_mut();
+    let typed = !shown.trim().is_empty()
+        && st.filled_at.as_ref().map(|(t, _)| t.as_str()) != Some(shown.as_str());
+    if typed {
+        return;
+    }
+    let now = ctx.now().trunc_subsecs(0);
+    let text = zone.show(now);
+    a.set_taken_at(s(&text));
+    st.filled_at = Some((text, now));
+}
+
+/// The time to save with: the instant the form was filled with while its text is unchanged (to
+/// the second, and the right one of an hour the clocks repeat), else what was typed.
+fn time_to_save(st: &WalkState, shown: &str) -> String {
+    match &st.filled_at {
+        Some((text, at)) if text == shown => at.to_rfc3339(),
+        _ => shown.to_string(),
     }
 }
 
@@ -208,20 +252,21 @@ fn mark_and_advance(ctx: &Rc<Ctx>, mark: &str) {
 fn save(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<WalkAdapter>();
-    let (unit_id, entered, confirmed) = {
+    let (unit_id, entered, confirmed, taken_at) = {
         let st = ctx.walk.borrow();
         let Some(form) = st.form.as_ref() else { return };
         (
             form.unit_id,
             st.entered.clone(),
             st.pending_confirm.as_ref() == Some(&st.entered),
+            time_to_save(&st, &a.get_taken_at()),
         )
     };
     let outcome = entry::save_check(
         &ctx.shop,
         unit_id,
         &entered,
-        &a.get_taken_at(),
+        &taken_at,
         &a.get_by(),
         confirmed,
         ctx.now(),

@@ -1,9 +1,94 @@
-//! Mapping each backend's errors to [`StoreError`]: SQLite's result codes and constraint
-//! messages, PostgreSQL's SQLSTATE codes and constraint names. The schema names every CHECK
+//! [`StoreError`], everything the store can refuse or fail with, and the mapping of each
+//! backend's errors to it: SQLite's result codes and constraint messages, PostgreSQL's SQLSTATE
+//! codes and constraint names. The schema names every CHECK
 //! constraint `<column>: <rule>` on both backends, so that the user is told which field was
 //! refused and why. No SQL is run here.
 
-use super::StoreError;
+use std::path::PathBuf;
+
+use super::BUSY_TIMEOUT;
+
+/// Everything the store can refuse or fail with, in terms the user can act on.
+#[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
+pub enum StoreError {
+    #[error("{}: no such file", path.display())]
+    Missing { path: PathBuf },
+    /// An empty (0-byte) file where a shop was expected: only `init` (or the app's first
+    /// start) makes a new shop, so a typo in a read command never leaves a new file behind.
+    #[error("no shop at {p}; create one with `sumpbook --db {p} init`", p = path.display())]
+    NoShop { path: PathBuf },
+    #[error("{}: not an SQLite database (is it the right file?)", path.display())]
+    NotSqlite { path: PathBuf },
+    #[error("{}: an SQLite database of another program, not a sumpbook shop", path.display())]
+    NotSumpbook { path: PathBuf },
+    #[error("{}: written by a newer sumpbook (schema version {found}; this program knows up to {known}); update sumpbook", path.display())]
+    TooNew {
+        path: PathBuf,
+        found: usize,
+        known: usize,
+    },
+    #[error("{}: cannot open: {reason}", path.display())]
+    CannotOpen { path: PathBuf, reason: String },
+    #[error("{}: the file is read-only; sumpbook needs to write to it", path.display())]
+    ReadOnlyFile { path: PathBuf },
+    #[error("the database is read-only")]
+    ReadOnly,
+    #[error("the shop is locked by another program that has made no progress for {} s; try again when it is done (or close the program holding it)", BUSY_TIMEOUT.as_secs())]
+    Busy,
+    #[error("{}: the database is locked by another program that has made no progress for {} s; try again when it is done (or close the program holding it)", path.display(), BUSY_TIMEOUT.as_secs())]
+    Locked { path: PathBuf },
+    #[error("{}: the shop file is damaged ({reason}); restore the last good backup, or recover what is still readable with the sqlite3 shell's `.recover` into a new file and open that", path.display())]
+    Damaged { path: PathBuf, reason: String },
+    #[error("cannot bring the database schema up to date: {0}")]
+    Migration(String),
+    /// A value was refused: `field` is the column, `reason` the rule it broke.
+    #[error("{field}: {reason}")]
+    Invalid { field: String, reason: String },
+    /// A row with the same identifying key exists.
+    #[error("{what} already exists")]
+    Duplicate { what: String },
+    #[error("{0} not found")]
+    NotFound(String),
+    /// A foreign key points at nothing.
+    #[error("refers to a machine, unit or fluid that does not exist")]
+    BadReference,
+    /// A stored row can only be changed with who and why stated.
+    #[error("an edit needs who made it and why")]
+    NoEditContext,
+    /// A trigger or another rule of the schema refused the change.
+    #[error("refused: {0}")]
+    Refused(String),
+    /// The file holds something this program cannot read back.
+    #[error("the shop file is damaged or was changed by another program: {0}")]
+    Corrupt(String),
+    #[error("{}: {source}", path.display())]
+    Io {
+        path: PathBuf,
+        source: std::io::Error,
+    },
+    #[error("database error: {0}")]
+    Sqlite(rusqlite::Error),
+    /// A file beside the shop (a backup) could not be made.
+    #[error(transparent)]
+    Out(#[from] crate::outfile::OutFileError),
+    /// Someone else edited the row since the user opened it: nothing was saved.
+    #[error("{what} was changed by {by} at {at} since you opened it; nothing was saved: look at the stored values and correct again")]
+    Conflict {
+        what: String,
+        by: String,
+        at: String,
+    },
+    /// The server refused the change for the signed-in role.
+    #[error("not allowed for your database role: {0}")]
+    NotAllowed(String),
+    /// The database server answered with an error not listed above.
+    #[error("database server: {0}")]
+    Server(String),
+    /// The connection to the database server was lost or could not be made.
+    #[error("the database server cannot be reached: {0}; check that it runs and try again")]
+    ServerGone(String),
+}
 
 impl From<rusqlite::Error> for StoreError {
     fn from(e: rusqlite::Error) -> Self {
@@ -189,5 +274,41 @@ pub(crate) fn from_pg(e: postgres::Error) -> StoreError {
         // admin_shutdown, crash_shutdown, cannot_connect_now.
         "57P01" | "57P02" | "57P03" => StoreError::ServerGone(msg),
         _ => StoreError::Server(msg),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn constraint_messages_name_the_field() {
+        let e = constraint_error(
+            "CHECK constraint failed: pressure_bar: must be between 0 and 1000 bar",
+        )
+        .unwrap();
+        assert!(
+            matches!(e, StoreError::Invalid { ref field, .. } if field == "pressure_bar"),
+            "{e:?}"
+        );
+        let e = constraint_error("NOT NULL constraint failed: checks.unit_id").unwrap();
+        assert!(
+            matches!(e, StoreError::Invalid { ref field, .. } if field == "unit_id"),
+            "{e:?}"
+        );
+        let e = constraint_error("NOT NULL constraint failed: edit_log.edited_by").unwrap();
+        assert!(matches!(e, StoreError::NoEditContext));
+        let e = constraint_error("UNIQUE constraint failed: units.tag").unwrap();
+        assert_eq!(e.to_string(), "a unit with this tag already exists");
+        // The schema's refusal of a replacement (version 4) reads as the same duplicate.
+        let e = constraint_error(
+            "UNIQUE constraint failed: checks.unit_id, checks.taken_at; a stored row is changed \
+             only by UPDATE, which edit_log records, never replaced",
+        )
+        .unwrap();
+        assert_eq!(
+            e.to_string(),
+            "a check of this unit at this time already exists"
+        );
     }
 }
