@@ -390,10 +390,7 @@ fn acknowledging_a_flag_stores_who_and_why() {
         .expect("an act unit on the board");
     let tag = top.split(',').next().unwrap().to_string();
     by_label(&f.app, &top).invoke_accessible_default_action();
-    assert_eq!(
-        f.app.window().global::<Nav>().get_screen(),
-        Screen::Unit as i32
-    );
+    assert_eq!(f.app.window().global::<Nav>().get_screen(), Screen::Unit);
 
     let label = labels_starting(&f.app, "Acknowledge ")
         .into_iter()
@@ -757,10 +754,7 @@ fn a_unit_without_readings_since_its_fluid_change_shows_not_judged_yet_and_what_
     assert!(row.contains(", not judged yet, "), "{row}");
     assert!(row.contains("judged "), "what is missing and when: {row}");
     by_label(&app, &row).invoke_accessible_default_action();
-    assert_eq!(
-        app.window().global::<Nav>().get_screen(),
-        Screen::Unit as i32
-    );
+    assert_eq!(app.window().global::<Nav>().get_screen(), Screen::Unit);
     assert!(
         try_label(&app, "state not judged yet").is_some(),
         "the page's own mark"

@@ -5,7 +5,7 @@ use std::rc::Rc;
 
 use slint::ComponentHandle;
 
-use super::fmt::state_num;
+use super::ui::HealthState;
 use super::ui::{FleetAdapter, FleetRow, Nav};
 use super::{model, on, on_arg, s, unit, Ctx};
 use crate::app::entry;
@@ -32,7 +32,7 @@ fn row(u: &UnitStatus, sys: UnitSystem, zone: crate::app::local_time::Zone) -> F
         unit_id: l.unit_id as i32,
         tag: s(&l.tag),
         machine: s(format!("{} {}", l.machine, l.machine_name)),
-        state: state_num(l.state),
+        state: HealthState::from(l.state),
         ack: if l.all_seen { s("seen") } else { s("") },
         figures: s(l.board),
         last_check: s(u

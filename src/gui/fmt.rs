@@ -1,5 +1,5 @@
 //! Display helpers of the desktop app: the health engine's SI figures in the shop's units
-//! (through `app::figures`), states as numbers for the `.slint` side, dates.
+//! (through `app::figures`), states as the `.slint` side's `HealthState`, dates.
 //!
 //! Conversion only; nothing here decides a state or a limit.
 
@@ -9,15 +9,18 @@ use crate::app::figures;
 use crate::app::local_time::Zone;
 use crate::app::vocab::Dim;
 use crate::app::vocab::State;
+use crate::gui::ui::HealthState;
 use crate::units::UnitSystem;
 
-/// The number the `.slint` state marks take: 0 steady, 1 watch, 2 act, 3 not judged yet.
-pub fn state_num(s: State) -> i32 {
-    match s {
-        State::Steady => 0,
-        State::NotJudged => 3,
-        State::Watch => 1,
-        State::Act => 2,
+/// The health engine's state as the `.slint` state marks take it, one for one.
+impl From<State> for HealthState {
+    fn from(s: State) -> HealthState {
+        match s {
+            State::Steady => HealthState::Steady,
+            State::Watch => HealthState::Watch,
+            State::Act => HealthState::Act,
+            State::NotJudged => HealthState::NotJudged,
+        }
     }
 }
 

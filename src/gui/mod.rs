@@ -39,44 +39,10 @@ pub mod ui {
 }
 
 pub use ui::AppWindow;
+/// The screens of the window, as `ui/app.slint` declares them for `Nav.screen`.
+pub use ui::Screen;
 use ui::{FormField, Nav};
 pub use unit::HistoryRows;
-
-/// Screens, as `Nav.screen` numbers them.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Screen {
-    Fleet = 0,
-    Unit = 1,
-    Walk = 2,
-    Samples = 3,
-    Work = 4,
-    Import = 5,
-    Setup = 6,
-    About = 7,
-    Reports = 8,
-}
-
-impl Screen {
-    pub const ALL: [Screen; 9] = [
-        Screen::Fleet,
-        Screen::Unit,
-        Screen::Walk,
-        Screen::Samples,
-        Screen::Work,
-        Screen::Reports,
-        Screen::Import,
-        Screen::Setup,
-        Screen::About,
-    ];
-
-    fn from_index(i: i32) -> Screen {
-        Screen::ALL
-            .iter()
-            .copied()
-            .find(|s| *s as i32 == i)
-            .unwrap_or(Screen::Fleet)
-    }
-}
 
 /// What every adapter shares: the shop, the window, the unit system and each screen's state.
 pub(crate) struct Ctx {
@@ -233,7 +199,7 @@ impl App {
 
     fn install(&self) {
         let nav = self.window.global::<Nav>();
-        nav.on_navigate(on_arg(&self.ctx, |ctx, i| show(ctx, Screen::from_index(i))));
+        nav.on_navigate(on_arg(&self.ctx, show));
         fleet::install(&self.ctx);
         unit::install(&self.ctx);
         walk::install(&self.ctx);
@@ -518,7 +484,7 @@ pub(crate) fn show(ctx: &Rc<Ctx>, screen: Screen) {
         Screen::About => about::refresh(ctx),
         Screen::Reports => reports::refresh(ctx),
     }
-    w.global::<Nav>().set_screen(screen as i32);
+    w.global::<Nav>().set_screen(screen);
 }
 
 /// Refreshes every screen (after the unit system changed, an import, ...).

@@ -10,8 +10,8 @@ use std::sync::Arc;
 use chrono::Duration;
 use slint::{ComponentHandle, Model, ModelRc};
 
-use super::fmt::state_num;
 use super::jobs::{self, JobView};
+use super::ui::HealthState;
 use super::ui::{ReportAdapter, ReportUnit};
 use super::{err_text, model, on, on_arg, s, Ctx};
 use crate::app::entry::Cancel;
@@ -21,7 +21,6 @@ use crate::app::report::{
 };
 use crate::app::shop::Shop;
 use crate::app::vocab::Paper;
-use crate::app::vocab::State;
 use crate::app::vocab::SAFETY_CAUTIONS;
 use crate::app::AppError;
 
@@ -144,7 +143,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
         .map(|u| ReportUnit {
             tag: s(&u.unit),
             machine: s(format!("{} {}", u.machine, u.machine_name)),
-            state: state_num(u.state),
+            state: HealthState::from(u.state),
             chosen: was(&u.unit).unwrap_or(true),
         })
         .collect();
@@ -199,7 +198,7 @@ fn choose(ctx: &Rc<Ctx>, which: i32) {
         if let Some(mut u) = units.row_data(i) {
             let want = match which {
                 0 => false,
-                2 => u.state == state_num(State::Watch) || u.state == state_num(State::Act),
+                2 => matches!(u.state, HealthState::Watch | HealthState::Act),
                 _ => true,
             };
             if u.chosen != want {

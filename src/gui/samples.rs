@@ -6,7 +6,7 @@ use std::rc::Rc;
 
 use slint::ComponentHandle;
 
-use super::fmt::state_num;
+use super::ui::HealthState;
 use super::ui::{ImportAdapter, KeyVal, PreviewFlag, SampleAdapter};
 use super::{
     err_text, form_rows, mark_problems, model, on, on_arg, on_arg2, problems_line, s, strings, Ctx,
@@ -186,7 +186,7 @@ fn update_preview(ctx: &Rc<Ctx>) {
                     p.flags
                         .iter()
                         .map(|f| PreviewFlag {
-                            state: state_num(f.state),
+                            state: HealthState::from(f.state),
                             message: s(&f.message),
                         })
                         .collect()

@@ -7,7 +7,7 @@ use std::rc::Rc;
 use chrono::{DateTime, SubsecRound, Utc};
 use slint::ComponentHandle;
 
-use super::fmt::state_num;
+use super::ui::HealthState;
 use super::ui::{RouteStop, WalkAdapter};
 use super::{
     err_text, form_rows, mark_problems, model, on, on_arg, on_arg2, problems_line, s, Ctx,
@@ -63,7 +63,7 @@ fn stop_rows(st: &WalkState, zone: crate::app::local_time::Zone) -> Vec<RouteSto
             unit_id: r.unit_id as i32,
             tag: s(&r.tag),
             machine: s(&r.machine),
-            state: state_num(r.state),
+            state: HealthState::from(r.state),
             done: s(st.done.get(i).cloned().unwrap_or_default()),
             last_check: s(r
                 .last_check
@@ -145,7 +145,7 @@ fn load_form(ctx: &Rc<Ctx>, index: usize, keep_message: bool) {
     match entry::check_form(&ctx.shop, unit_id, ctx.now()) {
         Ok(form) => {
             a.set_unit_title(s(&form.tag));
-            a.set_unit_state(state_num(form.state));
+            a.set_unit_state(HealthState::from(form.state));
             a.set_unit_detail(s(format!("{} · {}", form.machine, form.detail)));
             fill_time(ctx, &a);
             // The cursor starts on Technician until a name is there, then on the first reading.

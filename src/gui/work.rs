@@ -6,7 +6,7 @@ use std::rc::Rc;
 
 use slint::ComponentHandle;
 
-use super::fmt::state_num;
+use super::ui::HealthState;
 use super::ui::{WorkAdapter, WorkRow};
 use super::{err_text, model, on, on_arg, s, Ctx, Screen};
 use crate::app::entry;
@@ -74,7 +74,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
                 Some(p) => format!("{p}. Planned: {}.", d.basis),
                 None => d.basis.clone(),
             }),
-            state: state_num(d.state.max(if d.bucket == DueBucket::Overdue {
+            state: HealthState::from(d.state.max(if d.bucket == DueBucket::Overdue {
                 crate::app::vocab::State::Watch
             } else {
                 d.state

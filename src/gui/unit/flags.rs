@@ -8,7 +8,7 @@ use slint::{ComponentHandle, Model};
 
 use crate::app::entry::{self, UnitView};
 use crate::app::view;
-use crate::gui::fmt::state_num;
+use crate::gui::ui::HealthState;
 use crate::gui::ui::{FlagData, UnitAdapter};
 use crate::gui::{err_text, s, Ctx};
 
@@ -21,7 +21,7 @@ pub(super) fn flags(v: &UnitView) -> Vec<FlagData> {
             let f = view::flag_view(f, v.system, v.zone);
             FlagData {
                 kind: s(f.kind_key),
-                state: state_num(f.state),
+                state: HealthState::from(f.state),
                 state_key: s(f.state_word),
                 message: s(format!("{} — {}", f.figure, f.message)),
                 since: s(crate::gui::fmt::day(f.since)),

@@ -22,7 +22,7 @@ use std::rc::Rc;
 
 use slint::ComponentHandle;
 
-use super::fmt::state_num;
+use super::ui::HealthState;
 use super::ui::{Nav, UnitAdapter};
 use super::{err_text, model, on, on_arg, on_arg2, s, strings, Ctx, Screen};
 use crate::app::entry::{self, Entered, Field, Reading, UnitView};
@@ -104,7 +104,7 @@ pub(crate) fn open(ctx: &Rc<Ctx>, unit_id: i64) {
     ctx.unit.borrow_mut().selected = None;
     refresh(ctx);
     if let Some(w) = ctx.win() {
-        w.global::<Nav>().set_screen(Screen::Unit as i32);
+        w.global::<Nav>().set_screen(Screen::Unit);
     }
 }
 
@@ -148,7 +148,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
         "{} {} · {}",
         st.machine, st.machine_name, st.machine_kind
     )));
-    a.set_state(state_num(st.state));
+    a.set_state(HealthState::from(st.state));
     a.set_identity(model(identity(&view, sys)));
     a.set_era(model(era(&view, sys)));
     a.set_tile_rows(model(tile_rows(&crate::app::view::unit_tiles(

@@ -2,7 +2,7 @@
 //! the state and the texts come from `app::view`.
 
 use crate::app::view::{TileView, LIMITS_HEAD};
-use crate::gui::fmt::state_num;
+use crate::gui::ui::HealthState;
 use crate::gui::ui::{TileData, TileRow};
 use crate::gui::{model, s};
 
@@ -16,7 +16,7 @@ fn tile(t: &TileView) -> TileData {
         } else {
             format!("{LIMITS_HEAD} {}", t.limits)
         }),
-        state: state_num(t.state),
+        state: HealthState::from(t.state),
         arrow: s(t.arrow),
         trend: s(&t.trend),
         small: !t.has_value || t.value.chars().count() > 10,
