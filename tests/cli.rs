@@ -680,6 +680,7 @@ fn an_imported_slipped_decimal_is_kept_questioned_reported_and_counts_once_confi
             "--db",
             "shop.sqlite",
             "log-check",
+            "--leave-blank",
             "IM-05-B",
             "--at",
             &next,
@@ -697,6 +698,7 @@ fn an_imported_slipped_decimal_is_kept_questioned_reported_and_counts_once_confi
             "--db",
             "shop.sqlite",
             "log-check",
+            "--leave-blank",
             "IM-05-B",
             "--at",
             &next,
@@ -756,6 +758,7 @@ fn a_new_york_shop_reads_and_shows_new_york_time_and_handles_the_clock_changes()
                 "--db",
                 db,
                 "log-check",
+                "--leave-blank",
                 "SH-04-A",
                 "--at",
                 at,
@@ -802,6 +805,7 @@ fn a_new_york_shop_reads_and_shows_new_york_time_and_handles_the_clock_changes()
             "--db",
             db,
             "log-check",
+            "--leave-blank",
             "SH-04-A",
             "--at",
             "2026-03-08 02:30",
@@ -1198,4 +1202,71 @@ fn cost_on_one_backend() {
     let c = unit(&ok(d, &["--db", db, "status", "--json"]), "PB-03-A")["cost_of_waiting"].clone();
     assert_eq!(c["cost_per_year"], serde_json::Value::Null);
     assert!(c["heat_kw"].as_f64().unwrap() > 0.0);
+}
+
+#[test]
+fn log_check_asks_about_readings_the_last_check_had_and_goes_on_with_leave_blank() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    ok(d, &["--db", "shop.sqlite", "demo"]);
+    let (tag, last, zone) = {
+        let shop = sumpbook::app::shop::Shop::open(&d.join("shop.sqlite")).unwrap();
+        let zone: chrono_tz::Tz = shop.store().settings().unwrap().time_zone.parse().unwrap();
+        let stop = sumpbook::app::entry::route(&shop).unwrap().remove(0);
+        let last = shop
+            .store()
+            .checks_for_unit(stop.unit_id, None)
+            .unwrap()
+            .pop()
+            .unwrap();
+        (stop.tag, last, zone)
+    };
+    let at = (last.taken_at + chrono::Duration::days(1))
+        .format("%Y-%m-%dT%H:%M:%SZ")
+        .to_string();
+    let temp = format!("{:.1}C", last.reservoir_temp.unwrap().c());
+    let args = |more: &[&'static str]| -> Vec<String> {
+        let mut a: Vec<String> = [
+            "--db",
+            "shop.sqlite",
+            "log-check",
+            &tag,
+            "--at",
+            &at,
+            "--reservoir-temp",
+            &temp,
+            "--by",
+            "AK",
+        ]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
+        a.extend(more.iter().map(|s| s.to_string()));
+        a
+    };
+    fn as_str(a: &[String]) -> Vec<&str> {
+        a.iter().map(String::as_str).collect()
+    }
+    // Only the reservoir temperature: the readings the last check had are listed, each with
+    // the option that gives it, and nothing is saved.
+    let asked = args(&[]);
+    let e = refused(d, &as_str(&asked), "--leave-blank");
+    assert!(e.contains("the check was not saved"), "{e}");
+    assert!(e.contains("--oil-level"), "{e}");
+    let expected = format!(
+        "oil_level: Oil level is blank; the last check ({}) had {}",
+        last.taken_at.with_timezone(&zone).format("%Y-%m-%d"),
+        last.oil_level.unwrap()
+    );
+    assert!(e.contains(&expected), "{e}");
+    let before = ok(d, &["--db", "shop.sqlite", "export", "checks"]);
+    assert!(!before.contains(",AK,"), "nothing saved: {before}");
+    // --confirm keeps unusual values; it does not answer this.
+    refused(d, &as_str(&args(&["--confirm"])), "--leave-blank");
+    // --leave-blank goes on and says what was left blank.
+    let out = ok(d, &as_str(&args(&["--leave-blank"])));
+    assert!(out.contains("saved"), "{out}");
+    assert!(out.contains("left blank: oil_level:"), "{out}");
+    let after = ok(d, &["--db", "shop.sqlite", "export", "checks"]);
+    assert_eq!(after.matches(",AK,").count(), 1, "{after}");
 }

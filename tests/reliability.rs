@@ -810,6 +810,7 @@ fn two_processes_logging_checks_at_once_lose_nothing_and_never_report_a_lock() {
                     &db,
                     &[
                         "log-check",
+                        "--leave-blank",
                         unit,
                         "--at",
                         &at,
@@ -880,6 +881,7 @@ fn log_check_refuses_impossible_values_and_names_the_field() {
         &db,
         &[
             "log-check",
+            "--leave-blank",
             "PR-99-HPU",
             "--by",
             "AK",
@@ -908,6 +910,7 @@ fn refused_database(db: &Path, expect: &str, dir: &Path) {
         vec!["backup", "--out", path_str(&backup)],
         vec![
             "log-check",
+            "--leave-blank",
             "PR-07-HPU",
             "--by",
             "AK",
@@ -2193,6 +2196,7 @@ fn a_device_or_a_read_only_folder_given_as_db_is_named_with_what_to_do() {
         vec!["status"],
         vec![
             "log-check",
+            "--leave-blank",
             "PR-07-HPU",
             "--by",
             "AK",
@@ -2263,6 +2267,7 @@ fn control_characters_in_typed_text_are_printed_escaped() {
         &db,
         &[
             "log-check",
+            "--leave-blank",
             "PR-07-HPU",
             "--by",
             "AK\u{1b}[31m",
@@ -2359,6 +2364,7 @@ fn a_writer_waits_for_a_holder_that_makes_progress_longer_than_the_give_up_time(
         .arg(&db)
         .args([
             "log-check",
+            "--leave-blank",
             "PR-07-HPU",
             "--by",
             "AK",
@@ -2469,6 +2475,7 @@ fn a_shop_failing_its_quick_check_is_neither_backed_up_nor_written_to() {
         vec!["import", "units", path_str(&units)],
         vec![
             "log-check",
+            "--leave-blank",
             "PR-07-HPU",
             "--by",
             "AK",
@@ -2592,6 +2599,7 @@ fn a_shop_whose_log_was_removed_after_an_unclean_shutdown_says_so() {
         &lost,
         &[
             "log-check",
+            "--leave-blank",
             "PR-07-HPU",
             "--by",
             "AK",

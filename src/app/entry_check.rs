@@ -8,18 +8,19 @@
 use chrono::{DateTime, Duration, SubsecRound, Utc};
 use serde::Serialize;
 
-use super::entry::{self, Entered, Problem, SaveOutcome, Verdict};
+use super::entry::{self, Answers, Entered, Problem, SaveOutcome, Verdict};
 use super::shop::Shop;
 use super::status::UnitStatus;
 use super::AppError;
 use crate::app::local_time;
 
 /// The fields a check can carry, as typed: keys of the check form.
-pub const FIELDS: [&str; 9] = [
+pub const FIELDS: [&str; 10] = [
     "reservoir_temp",
     "ambient_temp",
     "pressure",
     "stroke_time",
+    "cycle_time",
     "oil_level",
     "filter",
     "hours",
@@ -39,6 +40,8 @@ pub struct CheckInput {
     pub by: String,
     /// Keep values that are possible but unusual.
     pub confirmed: bool,
+    /// Save with fields left blank that the unit's last check had.
+    pub leave_blank: bool,
 }
 
 /// A saved check.
@@ -49,6 +52,8 @@ pub struct LoggedCheck {
     pub taken_at: DateTime<Utc>,
     /// The unusual values that were confirmed, as `field: message`.
     pub confirmed: Vec<String>,
+    /// The fields left blank that the unit's last check had, as `field: message`.
+    pub left_blank: Vec<String>,
     /// The unit as it stands with this check.
     pub status: UnitStatus,
 }
@@ -103,21 +108,72 @@ pub fn log_check(
     }
     // The form's rules judge a reading as of the moment it was taken: an empty time there is
     // "now", so the moment is passed as now.
-    match entry::save_check(shop, unit.id, &entered, "", &input.by, input.confirmed, at)? {
+    let answers = Answers {
+        keep_unusual: input.confirmed,
+        leave_blank: input.leave_blank,
+    };
+    let said = |ps: &[Problem]| -> Vec<String> {
+        ps.iter()
+            .map(|p| format!("{}: {}", p.field, p.message))
+            .collect()
+    };
+    match entry::save_check(shop, unit.id, &entered, "", &input.by, answers, at)? {
         SaveOutcome::Saved(saved) => Ok(LoggedCheck {
             check_id: saved.check_id,
             unit: unit.tag,
             taken_at: at,
-            confirmed: saved.confirmed.iter().map(|p| format!("{}: {}", p.field, p.message)).collect(),
+            confirmed: said(&saved.confirmed),
+            left_blank: said(&saved.left_blank),
             status: saved.status,
         }),
         SaveOutcome::Refused(problems) => {
-            let refused: Vec<Problem> = problems.iter().filter(|p| p.verdict == Verdict::Refused).cloned().collect();
-            Err(AppError::BadInput(format!("the check was not saved:\n{}", listed(&refused))))
+            let refused: Vec<Problem> = problems
+                .iter()
+                .filter(|p| p.verdict == Verdict::Refused)
+                .cloned()
+                .collect();
+            Err(AppError::BadInput(format!(
+                "the check was not saved:\n{}",
+                listed(&refused)
+            )))
         }
-        SaveOutcome::NeedsConfirmation(problems) => Err(AppError::BadInput(format!(
-            "the check was not saved; these values are unusual (repeat with --confirm to keep them):\n{}",
-            listed(&problems)
-        ))),
+        SaveOutcome::NeedsConfirmation(problems) => {
+            Err(AppError::BadInput(questions(&problems, answers)))
+        }
     }
+}
+
+/// Why a check waits for an answer, with the option that gives it: the unusual values (kept
+/// with `--confirm`) and the fields left blank that last time had (`--leave-blank`, or give
+/// them). Questions already answered are not repeated.
+fn questions(problems: &[Problem], answers: Answers) -> String {
+    let of = |v: Verdict| -> Vec<Problem> {
+        problems
+            .iter()
+            .filter(|p| p.verdict == v)
+            .cloned()
+            .collect()
+    };
+    let mut parts = vec!["the check was not saved".to_string()];
+    let unusual = of(Verdict::Unusual);
+    if !unusual.is_empty() && !answers.keep_unusual {
+        parts.push(format!(
+            "these values are unusual (repeat with --confirm to keep them):\n{}",
+            listed(&unusual)
+        ));
+    }
+    let blank = of(Verdict::Blank);
+    if !blank.is_empty() && !answers.leave_blank {
+        let options: Vec<String> = blank
+            .iter()
+            .map(|p| format!("--{}", p.field.replace('_', "-")))
+            .collect();
+        parts.push(format!(
+            "these readings are blank but the unit's last check had them (give them with {}, \
+             or repeat with --leave-blank to save without them):\n{}",
+            options.join(" "),
+            listed(&blank)
+        ));
+    }
+    parts.join("; ")
 }

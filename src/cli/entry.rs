@@ -34,6 +34,9 @@ pub struct LogCheckArgs {
     /// Time of the unit's timed stroke, e.g. 3.9s.
     #[arg(long, value_name = "TIME", allow_hyphen_values = true)]
     pub stroke_time: Option<String>,
+    /// Time of one whole machine cycle, e.g. 12.5s.
+    #[arg(long, value_name = "TIME", allow_hyphen_values = true)]
+    pub cycle_time: Option<String>,
     /// ok or low.
     #[arg(long, value_name = "LEVEL")]
     pub oil_level: Option<String>,
@@ -54,6 +57,10 @@ pub struct LogCheckArgs {
     /// Keep values that are possible but unusual (they are listed otherwise, and nothing is saved).
     #[arg(long)]
     pub confirm: bool,
+    /// Save without the readings left out that the unit's last check had (they are listed
+    /// otherwise, and nothing is saved).
+    #[arg(long)]
+    pub leave_blank: bool,
     /// Print JSON.
     #[arg(long)]
     pub json: bool,
@@ -66,6 +73,7 @@ pub fn run_log_check(shop: &Shop, args: &LogCheckArgs, out: &mut dyn Write) -> R
         ("ambient_temp", &args.ambient_temp),
         ("pressure", &args.pressure),
         ("stroke_time", &args.stroke_time),
+        ("cycle_time", &args.cycle_time),
         ("oil_level", &args.oil_level),
         ("filter", &args.filter),
         ("hours", &args.hours),
@@ -83,6 +91,7 @@ pub fn run_log_check(shop: &Shop, args: &LogCheckArgs, out: &mut dyn Write) -> R
         values,
         by: args.by.clone(),
         confirmed: args.confirm,
+        leave_blank: args.leave_blank,
     };
     let logged = log_check(shop, &args.unit, &input, Utc::now())?;
     if args.json {
@@ -101,6 +110,9 @@ pub fn run_log_check(shop: &Shop, args: &LogCheckArgs, out: &mut dyn Write) -> R
     )?;
     for c in &logged.confirmed {
         writeln!(out, "  kept as confirmed: {c}")?;
+    }
+    for c in &logged.left_blank {
+        writeln!(out, "  left blank: {c}")?;
     }
     Ok(())
 }

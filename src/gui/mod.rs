@@ -663,7 +663,7 @@ pub(crate) fn form_rows(
                 message: problem.map(|p| s(&p.message)).unwrap_or_default(),
                 level: match problem.map(|p| p.verdict) {
                     Some(Verdict::Refused) => 2,
-                    Some(Verdict::Unusual) => 1,
+                    Some(Verdict::Unusual) | Some(Verdict::Blank) => 1,
                     None => 0,
                 },
             }
@@ -725,16 +725,31 @@ pub(crate) fn problems_line(problems: &[Problem]) -> (String, i32) {
         };
         return (text, 2);
     }
-    if !problems.is_empty() {
-        return (
-            format!(
-                "Unusual: {} — check, then press Enter (or Save) again to keep the values as typed.",
-                problems.iter().map(|p| p.message.as_str()).collect::<Vec<_>>().join("; ")
-            ),
-            1,
-        );
+    let said = |v: Verdict| -> Vec<&str> {
+        problems
+            .iter()
+            .filter(|p| p.verdict == v)
+            .map(|p| p.message.as_str())
+            .collect()
+    };
+    let (unusual, blank) = (said(Verdict::Unusual), said(Verdict::Blank));
+    let mut parts = Vec::new();
+    if !unusual.is_empty() {
+        parts.push(format!(
+            "Unusual: {} — check, then press Enter (or Save) again to keep the values as typed.",
+            unusual.join("; ")
+        ));
     }
-    (String::new(), 0)
+    if !blank.is_empty() {
+        parts.push(format!(
+            "Left blank: {} — type today's reading, or press Enter (or Save) again to save without it.",
+            blank.join("; ")
+        ));
+    }
+    if parts.is_empty() {
+        return (String::new(), 0);
+    }
+    (parts.join(" "), 1)
 }
 
 /// The message of an application error, for a message bar.

@@ -12,7 +12,7 @@ use super::ui::{RouteStop, WalkAdapter};
 use super::{
     err_text, form_rows, mark_problems, model, on, on_arg, on_arg2, problems_line, s, Ctx,
 };
-use crate::app::entry::{self, CheckForm, Entered, SaveOutcome};
+use crate::app::entry::{self, Answers, CheckForm, Entered, SaveOutcome};
 
 #[derive(Default)]
 pub(crate) struct WalkState {
@@ -252,13 +252,15 @@ fn mark_and_advance(ctx: &Rc<Ctx>, mark: &str) {
 fn save(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<WalkAdapter>();
-    let (unit_id, entered, confirmed, taken_at) = {
+    let (unit_id, entered, answers, taken_at) = {
         let st = ctx.walk.borrow();
         let Some(form) = st.form.as_ref() else { return };
+        // Enter again on the same values answers yes to what was asked.
+        let again = st.pending_confirm.as_ref() == Some(&st.entered);
         (
             form.unit_id,
             st.entered.clone(),
-            st.pending_confirm.as_ref() == Some(&st.entered),
+            if again { Answers::ALL } else { Answers::NONE },
             time_to_save(&st, &a.get_taken_at()),
         )
     };
@@ -268,7 +270,7 @@ fn save(ctx: &Rc<Ctx>) {
         &entered,
         &taken_at,
         &a.get_by(),
-        confirmed,
+        answers,
         ctx.now(),
     );
     match outcome {

@@ -494,10 +494,103 @@ pub fn review_check(
     if pre.iter().any(|p| p.verdict == Verdict::Refused) {
         review.check = None;
     }
+    if let Some(check) = &review.check {
+        let previous = earlier
+            .iter()
+            .filter(|c| c.taken_at < at)
+            .max_by_key(|c| c.taken_at);
+        if let Some(previous) = previous {
+            pre.extend(left_blank(check, previous, entered, system, zone));
+        }
+    }
     pre.append(&mut review.problems);
     pre.sort_by_key(|x| std::cmp::Reverse(x.verdict));
     review.problems = pre;
     Ok(review)
+}
+
+/// The readings of `check` left blank that the unit's `previous` check had, each a question
+/// naming last time's value: a case drain or oil level skipped by mistake is asked about before
+/// the check is saved without it. Fields with something typed in (even refused) are not asked.
+fn left_blank(
+    check: &Check,
+    previous: &Check,
+    entered: &Entered,
+    system: UnitSystem,
+    zone: Zone,
+) -> Vec<Problem> {
+    let q = |kind: Kind, v: Option<f64>| v.map(|si| show(kind, si, system));
+    let readings: [(&str, &str, Option<String>, bool); 9] = [
+        (
+            "reservoir_temp",
+            "Reservoir temperature",
+            q(Kind::Temperature, previous.reservoir_temp.map(|t| t.si())),
+            check.reservoir_temp.is_none(),
+        ),
+        (
+            "ambient_temp",
+            "Ambient temperature",
+            q(Kind::Temperature, previous.ambient_temp.map(|t| t.si())),
+            check.ambient_temp.is_none(),
+        ),
+        (
+            "pressure",
+            "Working pressure",
+            q(Kind::Pressure, previous.pressure.map(|p| p.si())),
+            check.pressure.is_none(),
+        ),
+        (
+            "stroke_time",
+            "Timed stroke",
+            q(Kind::Time, previous.stroke_time.map(|s| s.si())),
+            check.stroke_time.is_none(),
+        ),
+        (
+            "cycle_time",
+            "Cycle time",
+            q(Kind::Time, previous.cycle_time.map(|s| s.si())),
+            check.cycle_time.is_none(),
+        ),
+        (
+            "oil_level",
+            "Oil level",
+            previous.oil_level.map(|v| v.to_string()),
+            check.oil_level.is_none(),
+        ),
+        (
+            "filter",
+            "Filter indicator",
+            previous.filter.map(|v| v.to_string()),
+            check.filter.is_none(),
+        ),
+        (
+            "hours",
+            "Hour meter",
+            previous.hours.map(|h| format!("{h:.0} h")),
+            check.hours.is_none(),
+        ),
+        (
+            "case_drain",
+            "Case-drain flow",
+            q(Kind::Flow, previous.case_drain.map(|f| f.si())),
+            check.case_drain.is_none(),
+        ),
+    ];
+    readings
+        .into_iter()
+        .filter(|(key, _, _, blank)| *blank && entered.get(key).is_empty())
+        .filter_map(|(key, label, last, _)| {
+            last.map(|v| {
+                Problem::blank(
+                    key,
+                    format!(
+                        "{label} is blank; the last check ({}) had {v}",
+                        show_date(previous.taken_at, zone)
+                    ),
+                )
+            })
+        })
+        .collect()
 }
 
 /// A stored check and what the unit looks like now.
@@ -507,26 +600,33 @@ pub struct SavedCheck {
     pub status: UnitStatus,
     /// The unusual values that were confirmed.
     pub confirmed: Vec<Problem>,
+    /// The fields left blank that the unit's last check had.
+    pub left_blank: Vec<Problem>,
 }
 
-/// Saves a walk-round check: refused values stop it; unusual ones stop it unless `confirmed`.
+/// Saves a walk-round check: refused values stop it; unusual ones and fields left blank that
+/// the last check had stop it unless `answers` says to go on.
 pub fn save_check(
     shop: &Shop,
     unit_id: Id,
     entered: &Entered,
     taken_at: &str,
     by: &str,
-    confirmed: bool,
+    answers: Answers,
     now: DateTime<Utc>,
 ) -> Result<SaveOutcome<SavedCheck>, AppError> {
     let review = review_check(shop, unit_id, entered, taken_at, by, now)?;
     let Some(mut check) = review.check else {
         return Ok(SaveOutcome::Refused(review.problems));
     };
-    if !review.problems.is_empty() && !confirmed {
+    if !answers.settle(&review.problems) {
         return Ok(SaveOutcome::NeedsConfirmation(review.problems));
     }
-    if !review.problems.is_empty() {
+    let (left_blank, unusual): (Vec<Problem>, Vec<Problem>) = review
+        .problems
+        .into_iter()
+        .partition(|p| p.verdict == Verdict::Blank);
+    if !unusual.is_empty() {
         // The technician was asked and said the reading is right: it is stored as confirmed
         // by them, now, so it counts in baselines and detectors like any other reading.
         check.confirmed = Some(Confirmation {
@@ -541,6 +641,7 @@ pub fn save_check(
     Ok(SaveOutcome::Saved(SavedCheck {
         check_id: id,
         status,
-        confirmed: review.problems,
+        confirmed: unusual,
+        left_blank,
     }))
 }

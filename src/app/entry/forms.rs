@@ -12,6 +12,9 @@ use crate::units::UnitSystem;
 /// How a typed value is judged.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
 pub enum Verdict {
+    /// Left blank though the unit's last check had it: saved blank only when the person says
+    /// so (a reading forgotten is asked about; one not taken today is the person's call).
+    Blank,
     /// Possible but unlikely: saved only when the person confirms.
     Unusual,
     /// Impossible or unreadable: never saved.
@@ -41,6 +44,44 @@ impl Problem {
             verdict: Verdict::Unusual,
             message: message.into(),
         }
+    }
+    pub(super) fn blank(field: &str, message: impl Into<String>) -> Self {
+        Problem {
+            field: field.to_string(),
+            verdict: Verdict::Blank,
+            message: message.into(),
+        }
+    }
+}
+
+/// What the person answered to a form's questions before saving.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct Answers {
+    /// Keep the values judged unusual as typed (stored as confirmed by the person).
+    pub keep_unusual: bool,
+    /// Save with the fields left blank that the unit's last check had.
+    pub leave_blank: bool,
+}
+
+impl Answers {
+    /// Nothing answered yet: every question stops the save.
+    pub const NONE: Answers = Answers {
+        keep_unusual: false,
+        leave_blank: false,
+    };
+    /// Yes to every question (the form's second Enter on the same values).
+    pub const ALL: Answers = Answers {
+        keep_unusual: true,
+        leave_blank: true,
+    };
+
+    /// Whether these answers settle every question in `problems` (refusals aside).
+    pub fn settle(&self, problems: &[Problem]) -> bool {
+        problems.iter().all(|p| match p.verdict {
+            Verdict::Blank => self.leave_blank,
+            Verdict::Unusual => self.keep_unusual,
+            Verdict::Refused => true,
+        })
     }
 }
 

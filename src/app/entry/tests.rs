@@ -128,7 +128,7 @@ fn an_impossible_temperature_is_refused_and_nothing_is_written() {
         &entered(&[("reservoir_temp", "151")]),
         "",
         "T. T",
-        true,
+        Answers::ALL,
         Utc::now(),
     )
     .unwrap();
@@ -141,7 +141,7 @@ fn an_impossible_temperature_is_refused_and_nothing_is_written() {
     // A negative pressure and a zero stroke time are refused too.
     let e = entered(&[("pressure", "-3"), ("stroke_time", "0")]);
     let SaveOutcome::Refused(p) =
-        save_check(&shop, u.id, &e, "", "T. T", true, Utc::now()).unwrap()
+        save_check(&shop, u.id, &e, "", "T. T", Answers::ALL, Utc::now()).unwrap()
     else {
         panic!()
     };
@@ -153,7 +153,7 @@ fn an_impossible_temperature_is_refused_and_nothing_is_written() {
         &entered(&[("reservoir_temp", "45")]),
         "",
         " ",
-        true,
+        Answers::ALL,
         Utc::now(),
     )
     .unwrap();
@@ -172,7 +172,7 @@ fn an_unusual_stroke_time_asks_first_and_is_kept_when_confirmed() {
         .unwrap()
         .si();
     let e = entered(&[("stroke_time", &format!("{:.2}", last * 2.0))]);
-    let out = save_check(&shop, u.id, &e, "", "T. T", false, Utc::now()).unwrap();
+    let out = save_check(&shop, u.id, &e, "", "T. T", Answers::NONE, Utc::now()).unwrap();
     let SaveOutcome::NeedsConfirmation(p) = out else {
         panic!("{out:?}")
     };
@@ -181,7 +181,7 @@ fn an_unusual_stroke_time_asks_first_and_is_kept_when_confirmed() {
         shop.store().checks_for_unit(u.id, None).unwrap().len(),
         checks.len()
     );
-    let out = save_check(&shop, u.id, &e, "", "T. T", true, Utc::now()).unwrap();
+    let out = save_check(&shop, u.id, &e, "", "T. T", Answers::ALL, Utc::now()).unwrap();
     let SaveOutcome::Saved(s) = out else {
         panic!("{out:?}")
     };
@@ -197,7 +197,11 @@ fn an_unusual_stroke_time_asks_first_and_is_kept_when_confirmed() {
     // A reading nobody questioned is stored without a confirmation: the usual stroke time.
     let plain = entered(&[("stroke_time", &format!("{last:.2}"))]);
     let later = Utc::now() + Duration::seconds(1);
-    let out = save_check(&shop, u.id, &plain, "", "T. T", false, later).unwrap();
+    let leave = Answers {
+        keep_unusual: false,
+        leave_blank: true,
+    };
+    let out = save_check(&shop, u.id, &plain, "", "T. T", leave, later).unwrap();
     let SaveOutcome::Saved(s) = out else {
         panic!("the unit's usual stroke time is not unusual: {out:?}")
     };
@@ -205,6 +209,85 @@ fn an_unusual_stroke_time_asks_first_and_is_kept_when_confirmed() {
         shop.store().check(s.check_id).unwrap().unwrap().confirmed,
         None
     );
+}
+
+#[test]
+fn a_reading_left_blank_that_the_last_check_had_is_asked_about_before_saving() {
+    let (_d, shop) = demo();
+    let u = first_unit(&shop);
+    let checks = shop.store().checks_for_unit(u.id, None).unwrap();
+    let last = checks.last().unwrap().clone();
+    let level = last
+        .oil_level
+        .expect("the demo's last check has an oil level");
+    let t = last.reservoir_temp.unwrap().c();
+    // Everything the last check had, but the oil level.
+    let mut all = vec![("reservoir_temp", format!("{t:.1}"))];
+    let q = |v: Option<f64>| v.map(|x| format!("{x}"));
+    for (key, v) in [
+        ("ambient_temp", q(last.ambient_temp.map(|x| x.c()))),
+        ("pressure", q(last.pressure.map(|x| x.bar()))),
+        ("stroke_time", q(last.stroke_time.map(|x| x.si()))),
+        ("cycle_time", q(last.cycle_time.map(|x| x.si()))),
+        ("filter", last.filter.map(|x| x.to_string())),
+        ("hours", q(last.hours.map(|h| h + 24.0))),
+        ("case_drain", q(last.case_drain.map(|x| x.si() * 60_000.0))),
+    ] {
+        if let Some(v) = v {
+            all.push((key, v));
+        }
+    }
+    let pairs: Vec<(&str, &str)> = all.iter().map(|(k, v)| (*k, v.as_str())).collect();
+    let e = entered(&pairs);
+    let now = last.taken_at + Duration::days(1);
+    let out = save_check(&shop, u.id, &e, "", "T. T", Answers::NONE, now).unwrap();
+    let SaveOutcome::NeedsConfirmation(p) = out else {
+        panic!("a question expected: {out:?}")
+    };
+    assert_eq!(p.len(), 1, "{p:?}");
+    assert_eq!(p[0].field, "oil_level");
+    assert_eq!(p[0].verdict, Verdict::Blank);
+    assert!(
+        p[0].message.contains(&format!("had {level}")),
+        "{}",
+        p[0].message
+    );
+    assert_eq!(
+        shop.store().checks_for_unit(u.id, None).unwrap().len(),
+        checks.len()
+    );
+    // Keeping unusual values does not answer it; leaving it blank does, and the check is not
+    // marked as confirmed (nothing unusual was kept).
+    let keep = Answers {
+        keep_unusual: true,
+        leave_blank: false,
+    };
+    let out = save_check(&shop, u.id, &e, "", "T. T", keep, now).unwrap();
+    assert!(matches!(out, SaveOutcome::NeedsConfirmation(_)), "{out:?}");
+    let leave = Answers {
+        keep_unusual: false,
+        leave_blank: true,
+    };
+    let out = save_check(&shop, u.id, &e, "", "T. T", leave, now).unwrap();
+    let SaveOutcome::Saved(s) = out else {
+        panic!("{out:?}")
+    };
+    assert_eq!(s.left_blank.len(), 1);
+    let stored = shop.store().check(s.check_id).unwrap().unwrap();
+    assert_eq!(stored.oil_level, None);
+    assert_eq!(stored.confirmed, None);
+    // The next check is judged against that one: the oil level it lacked is not asked again.
+    let out = save_check(
+        &shop,
+        u.id,
+        &e,
+        "",
+        "T. T",
+        Answers::NONE,
+        now + Duration::days(1),
+    )
+    .unwrap();
+    assert!(matches!(out, SaveOutcome::Saved(_)), "{out:?}");
 }
 
 #[test]
