@@ -8,7 +8,10 @@
 //!   `model` (the plain records the app's results carry; no rules), `units` and `quantity`
 //!   (SI values and their formatting at the edges), and each other (the command line opens
 //!   the app). Nothing of `store`, `health`, `exchange`, `physics`, `report`, `sim` or
-//!   `outfile`; and they never take the store handle (`.store()`, `.store_mut()`).
+//!   `outfile`; and they never take the store handle (`.store()`, `.store_mut()`), which is
+//!   private to `app`.
+//! - The integration tests' hidden accessor `Shop::store_for_tests` is called nowhere under
+//!   `src/`.
 //! - `src/physics/` does not name `model`: it computes on numbers and SI newtypes only.
 //!
 //! The source is read with comments, strings and character literals blanked, and every path
@@ -403,17 +406,52 @@ fn face_violations(rel: &str, text: &str) -> Vec<String> {
             }
         }
     }
-    for handle in [".store()", ".store_mut()"] {
-        for (n, l) in code_only(text).lines().enumerate() {
-            if l.contains(handle) {
-                bad.push(format!(
-                    "{rel}:{}: takes the store handle `{handle}`; call an `app` function with the shop",
-                    n + 1
-                ));
+    for (line, handle) in store_handle_calls(text) {
+        bad.push(format!(
+            "{rel}:{line}: takes the store handle `{handle}`; call an `app` function with the shop"
+        ));
+    }
+    bad
+}
+
+/// The store handle's accessors of `Shop`: `store` and `store_mut` (private to `app`) and the
+/// integration tests' hidden one.
+const STORE_HANDLES: &[&str] = &["store", "store_mut", "store_for_tests"];
+
+/// Every call of a store handle accessor, as (line, name): a method call `.store(` (spaces
+/// allowed around the dot and before the parenthesis) or a path `Shop::store(`.
+fn store_handle_calls(text: &str) -> Vec<(usize, String)> {
+    let mut found = Vec::new();
+    for (n, line) in code_only(text).lines().enumerate() {
+        for handle in STORE_HANDLES {
+            for (k, _) in line.match_indices(handle) {
+                let before = line[..k].trim_end();
+                let after = line[k + handle.len()..].trim_start();
+                let word_before = line[..k]
+                    .chars()
+                    .next_back()
+                    .is_some_and(|c| c.is_alphanumeric() || c == '_');
+                let called = before.ends_with('.') || before.ends_with("::");
+                if !word_before && called && after.starts_with('(') {
+                    found.push((n + 1, format!("{handle}(")));
+                }
             }
         }
     }
-    bad
+    found
+}
+
+/// The integration tests' store accessor is for tests/ only: nothing under src/ calls it.
+fn test_handle_in_sources(rel: &str, text: &str) -> Vec<String> {
+    store_handle_calls(text)
+        .into_iter()
+        .filter(|(_, h)| h == "store_for_tests(")
+        .map(|(line, _)| {
+            format!(
+                "{rel}:{line}: `store_for_tests` is for the integration tests under tests/ only"
+            )
+        })
+        .collect()
 }
 
 fn physics_violations(rel: &str, text: &str) -> Vec<String> {
@@ -463,6 +501,11 @@ fn command_line_and_app_go_through_app() {
 }
 
 #[test]
+fn the_tests_store_handle_stays_in_the_tests() {
+    check_all(test_handle_in_sources);
+}
+
+#[test]
 fn physics_knows_no_records() {
     check_all(physics_violations);
 }
@@ -499,6 +542,24 @@ fn the_checks_catch_what_they_are_for() {
     assert_eq!(found.len(), 1, "{found:#?}");
     assert!(found[0].starts_with("src/cli/mod.rs:4:"), "{found:#?}");
     assert!(face_violations("src/app/shop.rs", bad).is_empty());
+    // Every way of writing a call of the handle, and what only looks like one.
+    let handles = "//! x\nfn f(s: &Shop) {\n    s . store_mut ();\n    Shop::store(s);\n    s\n        .store_for_tests();\n    s.store_name(); restore(s); s.store;\n    let t = \"s.store()\";\n}\n";
+    let found = face_violations("src/cli/status/mod.rs", handles);
+    let lines: Vec<&str> = found
+        .iter()
+        .map(|m| m.split(": ").next().unwrap_or(""))
+        .collect();
+    assert_eq!(
+        lines,
+        [
+            "src/cli/status/mod.rs:3",
+            "src/cli/status/mod.rs:4",
+            "src/cli/status/mod.rs:6"
+        ],
+        "{found:#?}"
+    );
+    assert_eq!(test_handle_in_sources("src/app/work.rs", handles).len(), 1);
+    assert!(test_handle_in_sources("src/app/work.rs", bad).is_empty());
 
     let sql = "//! x\nuse rusqlite::Connection;\n// rusqlite in a comment\nfn f() { let _ = \"postgres://\"; }\n";
     assert_eq!(db_driver_uses("src/app/x.rs", sql).len(), 1);

@@ -939,9 +939,13 @@ fn history_on_one_backend() {
     // A deletion, as the unit page makes it.
     {
         let shop = sumpbook::app::shop::Shop::open_for_writing(&path).unwrap();
-        let unit = shop.store().unit_by_tag("SH-04-A").unwrap().unwrap();
+        let unit = shop
+            .store_for_tests()
+            .unit_by_tag("SH-04-A")
+            .unwrap()
+            .unwrap();
         let last = shop
-            .store()
+            .store_for_tests()
             .checks_for_unit(unit.id, None)
             .unwrap()
             .pop()
@@ -1211,10 +1215,16 @@ fn log_check_asks_about_readings_the_last_check_had_and_goes_on_with_leave_blank
     ok(d, &["--db", "shop.sqlite", "demo"]);
     let (tag, last, zone) = {
         let shop = sumpbook::app::shop::Shop::open(&d.join("shop.sqlite")).unwrap();
-        let zone: chrono_tz::Tz = shop.store().settings().unwrap().time_zone.parse().unwrap();
+        let zone: chrono_tz::Tz = shop
+            .store_for_tests()
+            .settings()
+            .unwrap()
+            .time_zone
+            .parse()
+            .unwrap();
         let stop = sumpbook::app::entry::route(&shop).unwrap().remove(0);
         let last = shop
-            .store()
+            .store_for_tests()
             .checks_for_unit(stop.unit_id, None)
             .unwrap()
             .pop()

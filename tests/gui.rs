@@ -132,7 +132,7 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
     let f = open_demo();
     let (unit_id, tag) = first_route_unit(&f.path);
     let before = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap();
     let last = before.last().unwrap().clone();
@@ -153,7 +153,7 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
     );
     let now = demo_now().unwrap();
     let zone: chrono_tz::Tz = shop(&f.path)
-        .store()
+        .store_for_tests()
         .settings()
         .unwrap()
         .time_zone
@@ -200,7 +200,7 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
     key(&f.app, Key::Return);
 
     let after = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap();
     assert_eq!(
@@ -228,13 +228,17 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
     // Page Down skips a unit: the cursor moves on and nothing is stored for it.
     let s = shop(&f.path);
     let second = sumpbook::app::entry::route(&s).unwrap()[1].unit_id;
-    let n = s.store().checks_for_unit(second, None).unwrap().len();
+    let n = s
+        .store_for_tests()
+        .checks_for_unit(second, None)
+        .unwrap()
+        .len();
     type_text(&f.app, "50");
     key(&f.app, Key::PageDown);
     assert_eq!(f.app.window().global::<WalkAdapter>().get_current(), 2);
     assert_eq!(
         shop(&f.path)
-            .store()
+            .store_for_tests()
             .checks_for_unit(second, None)
             .unwrap()
             .len(),
@@ -252,7 +256,7 @@ fn an_impossible_value_shows_the_reason_and_stores_nothing() {
     let f = open_demo();
     let (unit_id, _) = first_route_unit(&f.path);
     let before = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap()
         .len();
@@ -274,7 +278,7 @@ fn an_impossible_value_shows_the_reason_and_stores_nothing() {
     );
     assert_eq!(
         shop(&f.path)
-            .store()
+            .store_for_tests()
             .checks_for_unit(unit_id, None)
             .unwrap()
             .len(),
@@ -293,7 +297,7 @@ fn an_impossible_value_shows_the_reason_and_stores_nothing() {
     );
     assert_eq!(
         shop(&f.path)
-            .store()
+            .store_for_tests()
             .checks_for_unit(unit_id, None)
             .unwrap()
             .len(),
@@ -302,7 +306,7 @@ fn an_impossible_value_shows_the_reason_and_stores_nothing() {
     button(&f.app, "Save and next").invoke_accessible_default_action();
     assert_eq!(
         shop(&f.path)
-            .store()
+            .store_for_tests()
             .checks_for_unit(unit_id, None)
             .unwrap()
             .len(),
@@ -315,7 +319,7 @@ fn switching_to_us_units_changes_the_figures_shown() {
     let f = open_demo();
     let (unit_id, _) = first_route_unit(&f.path);
     let last_c = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap()
         .last()
@@ -343,7 +347,11 @@ fn switching_to_us_units_changes_the_figures_shown() {
     field(&f.app, "Changed by").set_accessible_value("T. Tester");
     button(&f.app, "Save shop settings").invoke_accessible_default_action();
     assert_eq!(
-        shop(&f.path).store().settings().unwrap().unit_system,
+        shop(&f.path)
+            .store_for_tests()
+            .settings()
+            .unwrap()
+            .unit_system,
         sumpbook::units::UnitSystem::Us
     );
     assert_eq!(
@@ -411,8 +419,8 @@ fn acknowledging_a_flag_stores_who_and_why() {
     button(&f.app, "Save acknowledgement").invoke_accessible_default_action();
 
     let s = shop(&f.path);
-    let unit = s.store().unit_by_tag(&tag).unwrap().unwrap();
-    let acks = s.store().acks(unit.id).unwrap();
+    let unit = s.store_for_tests().unit_by_tag(&tag).unwrap().unwrap();
+    let acks = s.store_for_tests().acks(unit.id).unwrap();
     assert_eq!(acks.len(), 1, "{}", message(&f.app));
     assert_eq!(acks[0].kind, kind);
     assert_eq!(acks[0].by, "R. Engineer");
@@ -432,7 +440,7 @@ fn the_fleet_board_lists_the_demo_units_worst_first() {
     f.app.show(Screen::Fleet);
     let s = shop(&f.path);
     let units: Vec<String> = s
-        .store()
+        .store_for_tests()
         .units()
         .unwrap()
         .into_iter()
@@ -612,7 +620,7 @@ fn the_window_comes_up_before_the_fleet_is_evaluated_and_fills_after() {
     // At once: the shop's name, and a board saying it is being read.
     assert_eq!(
         app.window().global::<Nav>().get_shop_name().as_str(),
-        shop(&path).store().settings().unwrap().shop_name
+        shop(&path).store_for_tests().settings().unwrap().shop_name
     );
     assert!(fleet.get_summary().starts_with("Reading the shop"));
     wait_for(|| fleet.get_summary().starts_with("11 units"));
@@ -644,8 +652,8 @@ fn a_long_history_table_makes_only_the_rows_on_screen() {
         .set_size(slint::LogicalSize::new(1280.0, 800.0));
     app.window().show().unwrap();
     let s = shop(&path);
-    let unit = s.store().units().unwrap().remove(0);
-    let checks = s.store().checks_for_unit(unit.id, None).unwrap();
+    let unit = s.store_for_tests().units().unwrap().remove(0);
+    let checks = s.store_for_tests().checks_for_unit(unit.id, None).unwrap();
     app.open_unit(unit.id);
     let a = app.window().global::<sumpbook::gui::ui::UnitAdapter>();
     a.set_tab(2);
@@ -735,9 +743,9 @@ fn a_unit_without_readings_since_its_fluid_change_shows_not_judged_yet_and_what_
         sumpbook::app::work::log_event(&s, &tag, &input).unwrap();
         // And its first walk-round check of the new era, half an hour later (so no check is
         // overdue whatever the day the test runs): one check is no baseline.
-        let unit = s.store().unit_by_tag(&tag).unwrap().unwrap();
+        let unit = s.store_for_tests().unit_by_tag(&tag).unwrap().unwrap();
         let mut c = s
-            .store()
+            .store_for_tests()
             .checks_for_unit(unit.id, None)
             .unwrap()
             .pop()
@@ -745,7 +753,7 @@ fn a_unit_without_readings_since_its_fluid_change_shows_not_judged_yet_and_what_
         c.taken_at = (chrono::Utc::now() - chrono::Duration::minutes(30))
             .with_nanosecond(0)
             .unwrap();
-        s.store().insert_check(&c).unwrap();
+        s.store_for_tests().insert_check(&c).unwrap();
         tag
     };
     let app = App::open_at(&path, demo_now()).unwrap();
@@ -789,7 +797,7 @@ fn a_questioned_reading_is_marked_in_the_history_and_confirmed_from_the_unit_pag
         let s = Shop::create_demo(&path).unwrap();
         let (unit_id, _) = first_route_unit(&path);
         let mut c = s
-            .store()
+            .store_for_tests()
             .checks_for_unit(unit_id, None)
             .unwrap()
             .pop()
@@ -800,7 +808,7 @@ fn a_questioned_reading_is_marked_in_the_history_and_confirmed_from_the_unit_pag
             .reservoir_temp
             .map(|t| sumpbook::units::Temperature::from_c(t.c() / 10.0));
         c.by = "AK".into();
-        let id = s.store().insert_check(&c).unwrap();
+        let id = s.store_for_tests().insert_check(&c).unwrap();
         (unit_id, id)
     };
     let app = App::open(&path).unwrap();
@@ -832,10 +840,13 @@ fn a_questioned_reading_is_marked_in_the_history_and_confirmed_from_the_unit_pag
     field(&app, "Changed by").set_accessible_value("R. Engineer");
     field(&app, "Reason for the change").set_accessible_value("oil was cold after the weekend");
     button(&app, "Confirm reading").invoke_accessible_default_action();
-    let stored = shop(&path).store().check(id).unwrap().unwrap();
+    let stored = shop(&path).store_for_tests().check(id).unwrap().unwrap();
     let k = stored.confirmed.expect("stored as confirmed");
     assert_eq!(k.by, "R. Engineer");
-    let log = shop(&path).store().edit_history("checks", id).unwrap();
+    let log = shop(&path)
+        .store_for_tests()
+        .edit_history("checks", id)
+        .unwrap();
     assert_eq!(log.len(), 1);
     assert!(log[0].reason.contains("oil was cold after the weekend"));
     // Confirmed: the confirmation can be lifted again from the same place.
@@ -845,7 +856,12 @@ fn a_questioned_reading_is_marked_in_the_history_and_confirmed_from_the_unit_pag
     field(&app, "Reason for the change").set_accessible_value("gauge found broken");
     button(&app, "Lift confirmation").invoke_accessible_default_action();
     assert_eq!(
-        shop(&path).store().check(id).unwrap().unwrap().confirmed,
+        shop(&path)
+            .store_for_tests()
+            .check(id)
+            .unwrap()
+            .unwrap()
+            .confirmed,
         None
     );
 }
@@ -976,7 +992,7 @@ fn a_server_that_goes_away_keeps_the_typed_form_says_so_and_saves_once_it_is_bac
     let (unit_id, _) = first_route_unit(&db);
     let count = || {
         shop(&db)
-            .store()
+            .store_for_tests()
             .checks_for_unit(unit_id, None)
             .unwrap()
             .len()
@@ -1071,7 +1087,7 @@ fn an_empty_shop_board_points_to_setup_and_import() {
 fn a_correction_over_someone_elses_is_refused_naming_who_changed_the_reading() {
     let f = open_demo();
     let s = shop(&f.path);
-    let unit_id = s.store().units().unwrap()[0].id;
+    let unit_id = s.store_for_tests().units().unwrap()[0].id;
     f.app.open_unit(unit_id);
     let a = f.app.window().global::<sumpbook::gui::ui::UnitAdapter>();
     // The checks table; the newest check chosen for correction.
@@ -1081,7 +1097,7 @@ fn a_correction_over_someone_elses_is_refused_naming_who_changed_the_reading() {
     a.invoke_select_row(0);
     let _ = labels_starting(&f.app, "");
     let id = s
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap()
         .last()
@@ -1105,7 +1121,12 @@ fn a_correction_over_someone_elses_is_refused_naming_who_changed_the_reading() {
     let said = a.get_edit_message().to_string();
     assert!(said.contains("P. Other"), "{said}");
     assert_eq!(
-        shop(&f.path).store().check(id).unwrap().unwrap().note,
+        shop(&f.path)
+            .store_for_tests()
+            .check(id)
+            .unwrap()
+            .unwrap()
+            .note,
         "read twice"
     );
 }
@@ -1175,14 +1196,14 @@ fn a_new_york_shop_chosen_from_the_list_reads_and_shows_new_york_time() {
     field(&f.app, "Electricity price per kWh").set_accessible_value("0.21");
     field(&f.app, "Changed by").set_accessible_value("T. Tester");
     button(&f.app, "Save shop settings").invoke_accessible_default_action();
-    let saved = shop(&f.path).store().settings().unwrap();
+    let saved = shop(&f.path).store_for_tests().settings().unwrap();
     assert_eq!(saved.time_zone, "America/New_York");
     assert_eq!(saved.electricity_price, Some(0.21));
 
     // The walk-round reads the time typed as New York's.
     let (unit_id, _) = first_route_unit(&f.path);
     let last = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap()
         .last()
@@ -1207,7 +1228,7 @@ fn a_new_york_shop_chosen_from_the_list_reads_and_shows_new_york_time() {
     );
     button(&f.app, "Save and next").invoke_accessible_default_action();
     let checks = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap();
     let c = checks
@@ -1230,8 +1251,8 @@ fn a_new_york_shop_chosen_from_the_list_reads_and_shows_new_york_time() {
 fn the_edits_tab_shows_who_changed_or_deleted_what_and_corrected_rows_are_marked() {
     let f = open_demo();
     let s = shop(&f.path);
-    let unit_id = s.store().units().unwrap()[0].id;
-    let checks = s.store().checks_for_unit(unit_id, None).unwrap();
+    let unit_id = s.store_for_tests().units().unwrap()[0].id;
+    let checks = s.store_for_tests().checks_for_unit(unit_id, None).unwrap();
     let (newest, older) = (checks[checks.len() - 1].id, checks[checks.len() - 2].id);
     // A correction of the second newest check, made elsewhere.
     let which = sumpbook::app::entry::Reading::Check;
@@ -1251,7 +1272,11 @@ fn the_edits_tab_shows_who_changed_or_deleted_what_and_corrected_rows_are_marked
     field(&f.app, "Changed by").set_accessible_value("R. Engineer");
     field(&f.app, "Reason for the change").set_accessible_value("typed on the wrong unit");
     button(&f.app, "Delete reading").invoke_accessible_default_action();
-    assert!(shop(&f.path).store().check(newest).unwrap().is_none());
+    assert!(shop(&f.path)
+        .store_for_tests()
+        .check(newest)
+        .unwrap()
+        .is_none());
 
     // The history marks the corrected check (now the newest row) in its last column.
     use slint::Model;
@@ -1418,7 +1443,7 @@ fn setup_saves_an_unchanged_record_without_asking_a_reason() {
 fn the_unit_page_says_what_the_lost_flow_costs() {
     let f = open_demo();
     let s = shop(&f.path);
-    let unit = s.store().unit_by_tag("PB-03-A").unwrap().unwrap();
+    let unit = s.store_for_tests().unit_by_tag("PB-03-A").unwrap().unwrap();
     f.app.open_unit(unit.id);
     let a = f.app.window().global::<sumpbook::gui::ui::UnitAdapter>();
     use slint::Model;
@@ -1467,7 +1492,7 @@ fn the_walk_round_opens_on_technician_with_now_in_the_shops_time_and_enter_saves
     let f = open_demo_in_new_york();
     let (unit_id, _) = first_route_unit(&f.path);
     let before = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap()
         .len();
@@ -1497,7 +1522,7 @@ fn the_walk_round_opens_on_technician_with_now_in_the_shops_time_and_enter_saves
     // Tab goes on to the first reading; Enter saves at the time shown.
     key(&f.app, Key::Tab);
     let last = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap()
         .last()
@@ -1513,7 +1538,7 @@ fn the_walk_round_opens_on_technician_with_now_in_the_shops_time_and_enter_saves
     );
     key(&f.app, Key::Return);
     let checks = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap();
     assert_eq!(checks.len(), before + 1, "{}", message(&f.app));
@@ -1540,7 +1565,7 @@ fn a_reading_filled_last_time_and_left_blank_now_is_asked_about_and_nothing_type
     let f = open_demo();
     let (unit_id, _) = first_route_unit(&f.path);
     let before = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap();
     let last = before.last().unwrap().clone();
@@ -1601,7 +1626,7 @@ fn a_reading_filled_last_time_and_left_blank_now_is_asked_about_and_nothing_type
     );
     let n = |p: &Path| {
         shop(p)
-            .store()
+            .store_for_tests()
             .checks_for_unit(unit_id, None)
             .unwrap()
             .len()
@@ -1615,7 +1640,7 @@ fn a_reading_filled_last_time_and_left_blank_now_is_asked_about_and_nothing_type
     // Save again: kept without the oil level, as said.
     button(&f.app, "Save and next").invoke_accessible_default_action();
     let after = shop(&f.path)
-        .store()
+        .store_for_tests()
         .checks_for_unit(unit_id, None)
         .unwrap();
     assert_eq!(after.len(), before.len() + 1, "{}", message(&f.app));

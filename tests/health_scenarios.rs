@@ -544,9 +544,9 @@ fn evaluating_a_fleet_costs_a_bounded_number_of_queries() {
 
     // The whole demo shop (11 units, two years of checks, samples and events), too.
     let (_dir, shop) = demo();
-    let before = shop.store().query_count();
+    let before = shop.store_for_tests().query_count();
     let f = sumpbook::app::status::fleet_status(&shop, Some(end_of(day("2026-11-27")))).unwrap();
-    let used = shop.store().query_count() - before;
+    let used = shop.store_for_tests().query_count() - before;
     println!(
         "demo shop, {} units over two years: {used} queries",
         f.units.len()
@@ -634,7 +634,7 @@ fn detected(
 #[test]
 fn the_demo_faults_are_flagged_on_the_right_unit_with_the_right_kind_in_time() {
     let (_dir, shop) = demo();
-    let store = shop.store();
+    let store = shop.store_for_tests();
     use FlagKind::*;
     // Pump wear on PB-03-A from 2025-12-01 (leak conductance ramping to 3.2× over a year):
     // the drift detectors and the temperature-corrected case drain see it first; lost flow
@@ -759,7 +759,7 @@ fn the_demo_faults_are_flagged_on_the_right_unit_with_the_right_kind_in_time() {
 #[test]
 fn the_demo_fluid_change_starts_a_new_era_and_baseline() {
     let (_dir, shop) = demo();
-    let store = shop.store();
+    let store = shop.store_for_tests();
     // PB-06-A runs on a sheared, oxidised charge until its fluid change on 2025-11-05.
     let change = day("2025-11-05");
     let before =
@@ -818,7 +818,7 @@ fn the_demo_fluid_change_starts_a_new_era_and_baseline() {
 #[test]
 fn the_healthy_demo_units_raise_no_act_flag_in_two_years() {
     let (_dir, shop) = demo();
-    let store = shop.store();
+    let store = shop.store_for_tests();
     // Units without a planted fault in src/exchange/demo/.
     let healthy = ["PR-01-M", "PR-01-C", "IM-05-B", "DP-08-M", "DP-08-C"];
     let first = day("2024-11-29");

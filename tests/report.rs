@@ -724,9 +724,9 @@ fn a_us_customary_shop_gets_its_report_in_us_units() {
     use sumpbook::app::shop::Shop;
     let dir = tempfile::tempdir().unwrap();
     let shop = Shop::create_demo(&dir.path().join("demo.sqlite")).unwrap();
-    let mut settings = shop.store().settings().unwrap();
+    let mut settings = shop.store_for_tests().settings().unwrap();
     settings.unit_system = sumpbook::units::UnitSystem::Us;
-    shop.store()
+    shop.store_for_tests()
         .set_settings(&settings, "test", "US report")
         .unwrap();
     let out = dir.path().join("us.pdf");
@@ -961,7 +961,7 @@ fn each_flag_shows_the_same_figure_on_the_board_in_status_json_and_in_the_report
         .and_hms_opt(23, 59, 59)
         .unwrap()
         .and_utc();
-    let board = fleet_status_in(shop.store(), Some(at), Detail::Summary).unwrap();
+    let board = fleet_status_in(shop.store_for_tests(), Some(at), Detail::Summary).unwrap();
     let units = json["units"].as_array().unwrap();
     assert_eq!(units.len(), board.units.len());
     let mut flags_seen = 0;

@@ -480,7 +480,7 @@ fn eight_programs_logging_200_checks_each_into_one_server_lose_nothing_and_never
 
 /// A check of the shop's first unit at `at`, like its latest one.
 fn another_check(shop: &Shop, at: &str) -> sumpbook::model::Check {
-    let mut c = shop.store().latest_checks().unwrap().remove(0);
+    let mut c = shop.store_for_tests().latest_checks().unwrap().remove(0);
     c.id = 0;
     c.taken_at = chrono::DateTime::parse_from_rfc3339(at)
         .unwrap()
@@ -509,8 +509,12 @@ fn two_windows_on_one_shop_see_each_others_saves() {
         );
 
         let c = another_check(&a, "2019-01-07T07:00:00Z");
-        let before = b.store().checks_for_unit(c.unit_id, None).unwrap().len();
-        a.store().insert_check(&c).unwrap();
+        let before = b
+            .store_for_tests()
+            .checks_for_unit(c.unit_id, None)
+            .unwrap()
+            .len();
+        a.store_for_tests().insert_check(&c).unwrap();
         // The other window's next polls see it: a server announces the save when it commits,
         // and the announcement may take a moment on the wire, so poll a bounded number of times.
         let mut changed = false;
@@ -527,7 +531,10 @@ fn two_windows_on_one_shop_see_each_others_saves() {
             crate::backends::current()
         );
         assert_eq!(
-            b.store().checks_for_unit(c.unit_id, None).unwrap().len(),
+            b.store_for_tests()
+                .checks_for_unit(c.unit_id, None)
+                .unwrap()
+                .len(),
             before + 1,
             "and reads it"
         );
@@ -543,7 +550,7 @@ fn a_server_that_goes_away_is_reported_plainly_and_the_next_call_connects_again(
     let url = new_database();
     ok(dir.path(), &["--db", &url, "init"]);
     let shop = Shop::open(Path::new(&url)).unwrap();
-    assert!(shop.store().units().unwrap().is_empty());
+    assert!(shop.store_for_tests().units().unwrap().is_empty());
     let db_name = url.rsplit('/').next().unwrap().to_string();
     // The server ends the shop's connection, as a restart or a network drop would.
     let ended: i64 = admin(admin_url)
@@ -555,15 +562,18 @@ fn a_server_that_goes_away_is_reported_plainly_and_the_next_call_connects_again(
         .unwrap()
         .get(0);
     assert!(ended >= 1);
-    let err = shop.store().units().unwrap_err();
+    let err = shop.store_for_tests().units().unwrap_err();
     assert!(
         matches!(err, StoreError::ServerGone(_)),
         "the call that met the loss is told so: {err:?}"
     );
     assert!(err.to_string().contains("cannot be reached"), "{err}");
     // The next call connects again.
-    assert!(shop.store().units().unwrap().is_empty());
-    assert_eq!(shop.store().settings().unwrap().shop_name, "New shop");
+    assert!(shop.store_for_tests().units().unwrap().is_empty());
+    assert_eq!(
+        shop.store_for_tests().settings().unwrap().shop_name,
+        "New shop"
+    );
 }
 
 /// A new shop on the test server holding the sample units (`sample-data/units.csv`): its
@@ -723,15 +733,15 @@ fn a_correction_over_someone_elses_is_refused_naming_who_and_when() {
         loader.load_demo().unwrap();
         drop(loader);
         let (a, b) = (Shop::open(&db).unwrap(), Shop::open(&db).unwrap());
-        let stored = a.store().latest_checks().unwrap().remove(0);
+        let stored = a.store_for_tests().latest_checks().unwrap().remove(0);
         // Both open the same check.
-        let seen_a = a.store().edit_mark("checks", stored.id).unwrap();
-        let seen_b = b.store().edit_mark("checks", stored.id).unwrap();
+        let seen_a = a.store_for_tests().edit_mark("checks", stored.id).unwrap();
+        let seen_b = b.store_for_tests().edit_mark("checks", stored.id).unwrap();
         assert_eq!(seen_a, seen_b);
 
         let mut by_b = stored.clone();
         by_b.note = "gauge re-read".into();
-        b.store()
+        b.store_for_tests()
             .correcting("checks", stored.id, seen_b, |s| {
                 s.update_check(&by_b, "B. Lindqvist", "note added")
             })
@@ -740,7 +750,7 @@ fn a_correction_over_someone_elses_is_refused_naming_who_and_when() {
         let mut by_a = stored.clone();
         by_a.pressure = Some(sumpbook::units::Pressure::from_bar(99.5));
         let err = a
-            .store()
+            .store_for_tests()
             .correcting("checks", stored.id, seen_a, |s| {
                 s.update_check(&by_a, "A. Ruiz", "typed twice the value")
             })
@@ -754,22 +764,28 @@ fn a_correction_over_someone_elses_is_refused_naming_who_and_when() {
         }
         assert!(err.to_string().contains("B. Lindqvist"), "{err}");
         // Nothing was overwritten: B's correction stands, A's is not in the history.
-        let now = a.store().check(stored.id).unwrap().unwrap();
+        let now = a.store_for_tests().check(stored.id).unwrap().unwrap();
         assert_eq!(now, by_b);
-        let history = a.store().edit_history("checks", stored.id).unwrap();
+        let history = a
+            .store_for_tests()
+            .edit_history("checks", stored.id)
+            .unwrap();
         assert_eq!(history.len(), 1);
         assert_eq!(history[0].by, "B. Lindqvist");
 
         // Having looked again, A saves over B's version.
-        let seen_again = a.store().edit_mark("checks", stored.id).unwrap();
+        let seen_again = a.store_for_tests().edit_mark("checks", stored.id).unwrap();
         let mut again = now.clone();
         again.pressure = by_a.pressure;
-        a.store()
+        a.store_for_tests()
             .correcting("checks", stored.id, seen_again, |s| {
                 s.update_check(&again, "A. Ruiz", "typed twice the value")
             })
             .unwrap();
-        assert_eq!(a.store().check(stored.id).unwrap().unwrap(), again);
+        assert_eq!(
+            a.store_for_tests().check(stored.id).unwrap().unwrap(),
+            again
+        );
     });
 }
 
