@@ -1648,3 +1648,83 @@ fn a_reading_filled_last_time_and_left_blank_now_is_asked_about_and_nothing_type
     assert_eq!(c.oil_level, None);
     assert!(c.filter.is_some() || last.filter.is_none());
 }
+
+#[test]
+fn after_a_refused_save_the_cursor_goes_to_the_first_refused_field_with_its_reason_beside_it() {
+    let f = open_demo();
+    f.app.show(Screen::Walk);
+    // From the keyboard: past Technician (left blank) and the time to the readings, an
+    // impossible reservoir temperature, then on to the ambient temperature and Enter there.
+    key(&f.app, Key::Tab);
+    key(&f.app, Key::Tab);
+    type_text(&f.app, "320");
+    key(&f.app, Key::Tab);
+    type_text(&f.app, "21");
+    key(&f.app, Key::Return);
+    assert!(
+        message(&f.app).starts_with("Not saved"),
+        "{}",
+        message(&f.app)
+    );
+    // Technician comes first in the form: its reason is beside it and the cursor is there.
+    let why = by_label(&f.app, "Technician problem")
+        .accessible_value()
+        .unwrap_or_default();
+    assert!(why.contains("name or initials"), "{why}");
+    type_text(&f.app, "T. Tester");
+    assert_eq!(
+        field(&f.app, "Technician").accessible_value().unwrap(),
+        "T. Tester"
+    );
+    assert_eq!(
+        field(&f.app, "Ambient temperature")
+            .accessible_value()
+            .unwrap(),
+        "21"
+    );
+    // Enter from there: now the reservoir temperature is the first refused field.
+    key(&f.app, Key::Return);
+    assert!(try_label(&f.app, "Technician problem").is_none());
+    let why = by_label(&f.app, "Reservoir temperature problem")
+        .accessible_value()
+        .unwrap_or_default();
+    assert!(why.contains("150"), "{why}");
+    type_text(&f.app, "x");
+    let typed = field(&f.app, "Reservoir temperature")
+        .accessible_value()
+        .unwrap();
+    assert!(
+        typed.len() == 4 && typed.contains('x') && typed.contains("320"),
+        "{typed}"
+    );
+    assert_eq!(
+        field(&f.app, "Ambient temperature")
+            .accessible_value()
+            .unwrap(),
+        "21"
+    );
+}
+
+#[test]
+fn a_refused_sample_puts_the_cursor_in_the_first_refused_field() {
+    let f = open_demo();
+    f.app.show(Screen::Samples);
+    field(&f.app, "Viscosity at 40 °C (KV40)").set_accessible_value("thick");
+    field(&f.app, "Sampled by").set_accessible_value("T. Tester");
+    // Typing in the last field, then Enter there.
+    field(&f.app, "Note").mock_single_click(PointerEventButton::Left);
+    type_text(&f.app, "cloudy");
+    key(&f.app, Key::Return);
+    assert!(message(&f.app).contains("Not saved"), "{}", message(&f.app));
+    assert!(try_label(&f.app, "Viscosity at 40 °C (KV40) problem").is_some());
+    type_text(&f.app, "x");
+    assert_eq!(
+        field(&f.app, "Viscosity at 40 °C (KV40)")
+            .accessible_value()
+            .unwrap()
+            .matches('x')
+            .count(),
+        1
+    );
+    assert_eq!(field(&f.app, "Note").accessible_value().unwrap(), "cloudy");
+}

@@ -697,6 +697,30 @@ pub(crate) fn mark_problems(rows: &ModelRc<FormField>, problems: &[Problem]) {
     }
 }
 
+/// Keys of a form model's rows, in the form's order.
+pub(crate) fn row_keys(rows: &ModelRc<FormField>) -> Vec<String> {
+    rows.iter().map(|r| r.key.to_string()).collect()
+}
+
+/// Where the cursor goes after a save that stopped: of the fields in `order` (the form's
+/// order), the first with the gravest problem (a refused value before a question), so it can
+/// be put right at once; `None` when no field in `order` has one.
+pub(crate) fn first_to_fix(order: &[String], problems: &[Problem]) -> Option<String> {
+    let worst = problems
+        .iter()
+        .filter(|p| order.contains(&p.field))
+        .map(|p| p.verdict)
+        .max()?;
+    order
+        .iter()
+        .find(|k| {
+            problems
+                .iter()
+                .any(|p| p.verdict == worst && p.field == k.as_str())
+        })
+        .cloned()
+}
+
 /// One line summing up problems that belong to no single field, or all of them.
 pub(crate) fn problems_line(problems: &[Problem]) -> (String, i32) {
     let refused: Vec<&Problem> = problems

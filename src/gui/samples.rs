@@ -253,6 +253,11 @@ fn save(ctx: &Rc<Ctx>) {
             let (text, level) = problems_line(&p);
             a.set_message(s(text));
             a.set_message_level(level);
+            // The cursor to the first refused field, its reason beside it.
+            if let Some(key) = super::first_to_fix(&super::row_keys(&a.get_fields()), &p) {
+                a.set_focus_key(s(key));
+                a.set_focus_tick(a.get_focus_tick().wrapping_add(1));
+            }
         }
         Err(e) => {
             a.set_message(s(err_text(&e)));

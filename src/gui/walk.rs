@@ -10,7 +10,8 @@ use slint::ComponentHandle;
 use super::ui::HealthState;
 use super::ui::{RouteStop, WalkAdapter};
 use super::{
-    err_text, form_rows, mark_problems, model, on, on_arg, on_arg2, problems_line, s, Ctx,
+    err_text, first_to_fix, form_rows, mark_problems, model, on, on_arg, on_arg2, problems_line,
+    row_keys, s, Ctx,
 };
 use crate::app::entry::{self, Answers, CheckForm, Entered, SaveOutcome};
 
@@ -136,6 +137,8 @@ fn load_form(ctx: &Rc<Ctx>, index: usize, keep_message: bool) {
         a.set_message(s(""));
         a.set_message_level(0);
     }
+    a.set_by_problem(s(""));
+    a.set_at_problem(s(""));
     let Some(unit_id) = unit_id else {
         a.set_unit_title(s("No units on the route"));
         a.set_unit_detail(s("Add units in Setup or import a unit register."));
@@ -300,23 +303,44 @@ fn save(ctx: &Rc<Ctx>) {
             super::fleet::refresh(ctx);
         }
         Ok(SaveOutcome::NeedsConfirmation(p)) => {
-            mark_problems(&a.get_fields(), &p);
-            let (text, level) = problems_line(&p);
-            a.set_message(s(text));
-            a.set_message_level(level);
+            show_problems(&a, &p);
             ctx.walk.borrow_mut().pending_confirm = Some(entered);
         }
         Ok(SaveOutcome::Refused(p)) => {
-            mark_problems(&a.get_fields(), &p);
-            let (text, level) = problems_line(&p);
-            a.set_message(s(text));
-            a.set_message_level(level);
+            show_problems(&a, &p);
             ctx.walk.borrow_mut().pending_confirm = None;
         }
         Err(e) => {
             a.set_message(s(err_text(&e)));
             a.set_message_level(2);
         }
+    }
+}
+
+/// Shows why a save stopped: each reason beside its field (the technician and the time too),
+/// the summary below, and the cursor in the first field to put right.
+fn show_problems(a: &WalkAdapter, p: &[entry::Problem]) {
+    mark_problems(&a.get_fields(), p);
+    let about = |key: &str| {
+        p.iter()
+            .filter(|x| x.field == key)
+            .max_by_key(|x| x.verdict)
+            .map(|x| x.message.clone())
+            .unwrap_or_default()
+    };
+    a.set_by_problem(s(about("by")));
+    a.set_at_problem(s(about("taken_at")));
+    let (text, level) = problems_line(p);
+    a.set_message(s(text));
+    a.set_message_level(level);
+    let order: Vec<String> = ["by", "taken_at"]
+        .into_iter()
+        .map(String::from)
+        .chain(row_keys(&a.get_fields()))
+        .collect();
+    if let Some(key) = first_to_fix(&order, p) {
+        a.set_focus_on(s(key));
+        a.set_focus_tick(a.get_focus_tick().wrapping_add(1));
     }
 }
 
