@@ -1728,3 +1728,66 @@ fn a_refused_sample_puts_the_cursor_in_the_first_refused_field() {
     );
     assert_eq!(field(&f.app, "Note").accessible_value().unwrap(), "cloudy");
 }
+
+/// Texts a person reads that look like stored codes: a word joined by `_`, or a backquote.
+fn looks_coded(text: &str) -> bool {
+    text.contains('`')
+        || text
+            .split(|c: char| !(c.is_alphanumeric() || c == '_'))
+            .any(|w| w.contains('_'))
+}
+
+#[test]
+fn setup_shows_words_not_codes_and_names_a_new_record_once_saved() {
+    let f = open_demo();
+    f.app.show(Screen::Setup);
+    let a = f.app.window().global::<SetupAdapter>();
+    a.set_tab(2);
+    a.invoke_tab_changed(2);
+    a.invoke_choose_record(0);
+    let rows = a.get_fields();
+    let mut seen = Vec::new();
+    for r in rows.iter() {
+        seen.push(r.text.to_string());
+        seen.extend(r.choices.iter().map(|c| c.to_string()));
+    }
+    let coded: Vec<&String> = seen.iter().filter(|t| looks_coded(t)).collect();
+    assert!(coded.is_empty(), "codes shown: {coded:?}");
+    let pump = rows.iter().find(|r| r.key == "pump_kind").unwrap();
+    assert!(
+        pump.choices.iter().any(|c| c == "variable piston pump"),
+        "{:?}",
+        pump.choices.iter().collect::<Vec<_>>()
+    );
+
+    // A new unit, its pump chosen by its words: saved as that kind, and the heading then
+    // names the unit saved instead of still saying "New …".
+    a.invoke_new_record();
+    assert_eq!(a.get_record_title().as_str(), "New hydraulic unit");
+    field(&f.app, "Unit tag").set_accessible_value("PR-99-A");
+    let rows = a.get_fields();
+    let i = rows.iter().position(|r| r.key == "pump_kind").unwrap();
+    a.invoke_field_edited(i as i32, "variable piston pump".into());
+    button(&f.app, "Save record").invoke_accessible_default_action();
+    assert!(message(&f.app).starts_with("Added"), "{}", message(&f.app));
+    assert_eq!(a.get_record_title().as_str(), "Edit hydraulic unit PR-99-A");
+    let s = shop(&f.path);
+    let u = s
+        .store_for_tests()
+        .unit_by_tag("PR-99-A")
+        .unwrap()
+        .expect("the new unit is stored");
+    assert_eq!(u.pump_kind, sumpbook::model::PumpKind::PistonVariable);
+
+    // The limits tab: every label in words.
+    a.set_tab(4);
+    a.invoke_tab_changed(4);
+    let limits = a.get_limits();
+    assert!(limits.row_count() > 10);
+    let coded: Vec<String> = limits
+        .iter()
+        .map(|l| l.label.to_string())
+        .filter(|l| looks_coded(l))
+        .collect();
+    assert!(coded.is_empty(), "codes in limit labels: {coded:?}");
+}

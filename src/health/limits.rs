@@ -101,7 +101,7 @@ limit_keys! {
     ReservoirTempC = "reservoir_temp_c", Threshold(Above), Some(60.0), Some(70.0), "°C",
         "reservoir oil temperature at a check";
     ReservoirTempCeilingC = "reservoir_temp_ceiling_c", Threshold(Above), None, Some(82.0), "°C",
-        "reservoir temperature that is always `act`, whatever reservoir_temp_c says";
+        "reservoir temperature ceiling: always act above it";
     Kv40DriftPct = "kv40_drift_pct", Threshold(AtLeast), Some(5.0), Some(10.0), "%",
         "KV40 of a sample against the new oil, either way (outside the ISO VG band is always act)";
     CleanlinessOverTarget = "cleanliness_over_target", Threshold(AtLeast), Some(1.0), Some(2.0), "range numbers",

@@ -260,16 +260,22 @@ pub fn record_fields(shop: &Shop, kind: Record, id: Option<Id>) -> Result<Vec<Fi
                 .and_then(|id| fluids.iter().find(|f| f.id == id))
                 .map(|f| f.name.clone())
                 .unwrap_or(NO_FLUID.into());
-            let pumps: Vec<&str> = PumpKind::ALL.iter().map(|k| k.as_str()).collect();
-            let comps: Vec<&str> = SensitiveComponent::ALL.iter().map(|k| k.as_str()).collect();
-            let dirs: Vec<&str> = StrokeDirection::ALL.iter().map(|k| k.as_str()).collect();
+            let pumps: Vec<&str> = PumpKind::ALL.iter().map(|k| pump_words(*k)).collect();
+            let comps: Vec<&str> = SensitiveComponent::ALL
+                .iter()
+                .map(|k| component_words(*k))
+                .collect();
+            let dirs: Vec<&str> = StrokeDirection::ALL
+                .iter()
+                .map(|k| direction_words(*k))
+                .collect();
             let s = u.stroke;
             vec![
                 Field::choice("machine", "Machine", &machine_tags, &mtag),
                 Field::text("tag", "Unit tag")
                     .with_value(u.tag)
                     .with_placeholder("e.g. PR-07-A"),
-                Field::choice("pump_kind", "Pump", &pumps, u.pump_kind.as_str()),
+                Field::choice("pump_kind", "Pump", &pumps, pump_words(u.pump_kind)),
                 Field::quantity("rated_flow", "Rated pump flow", Kind::Flow, system)
                     .with_value(q_text(Kind::Flow, u.rated_flow.map(|q| q.si()), system)),
                 Field::quantity("relief", "Relief setting", Kind::Pressure, system)
@@ -280,7 +286,7 @@ pub fn record_fields(shop: &Shop, kind: Record, id: Option<Id>) -> Result<Vec<Fi
                     "sensitive",
                     "Most sensitive component",
                     &comps,
-                    u.sensitive_component.as_str(),
+                    component_words(u.sensitive_component),
                 ),
                 Field::choice("fluid", "Fluid in service", &fluid_names, &fname),
                 Field::quantity("bore", "Timed stroke: bore", Kind::Length, system)
@@ -298,9 +304,7 @@ pub fn record_fields(shop: &Shop, kind: Record, id: Option<Id>) -> Result<Vec<Fi
                     "direction",
                     "Timed stroke: direction",
                     &dirs,
-                    s.map(|s| s.direction)
-                        .unwrap_or(StrokeDirection::Extend)
-                        .as_str(),
+                    direction_words(s.map(|s| s.direction).unwrap_or(StrokeDirection::Extend)),
                 ),
                 Field::text("route_order", "Route order").with_value(u.route_order.to_string()),
                 Field::choice(
@@ -356,15 +360,58 @@ pub fn record_fields(shop: &Shop, kind: Record, id: Option<Id>) -> Result<Vec<Fi
     })
 }
 
-fn choice_of<T: std::str::FromStr<Err = String>>(
+/// What a pump kind is called on a form (its stored name is a code).
+fn pump_words(k: PumpKind) -> &'static str {
+    match k {
+        PumpKind::Gear => "gear pump",
+        PumpKind::Vane => "vane pump",
+        PumpKind::PistonFixed => "fixed piston pump",
+        PumpKind::PistonVariable => "variable piston pump",
+    }
+}
+
+/// What a component is called on a form.
+fn component_words(c: SensitiveComponent) -> &'static str {
+    match c {
+        SensitiveComponent::ServoValve => "servo valve",
+        SensitiveComponent::ProportionalValve => "proportional valve",
+        SensitiveComponent::PistonPumpVariable => "variable piston pump",
+        SensitiveComponent::PistonPumpFixed => "fixed piston pump",
+        SensitiveComponent::VanePump => "vane pump",
+        SensitiveComponent::GearPump => "gear pump",
+        SensitiveComponent::Cylinder => "cylinder",
+    }
+}
+
+/// What a stroke direction is called on a form.
+fn direction_words(d: StrokeDirection) -> &'static str {
+    match d {
+        StrokeDirection::Extend => "extend (rod going out)",
+        StrokeDirection::Retract => "retract (rod coming in)",
+    }
+}
+
+/// The choice a form field shows as words (`pump_words`, …), read back: the value whose words
+/// were chosen, or the stored name typed as it is.
+fn choice_of<T: Copy + std::str::FromStr<Err = String>>(
     key: &str,
     e: &Entered,
+    all: &[T],
+    words: fn(T) -> &'static str,
     p: &mut Vec<Problem>,
 ) -> Option<T> {
-    match e.get(key).parse::<T>() {
+    let text = e.get(key);
+    if let Some(v) = all.iter().copied().find(|v| words(*v) == text) {
+        return Some(v);
+    }
+    match text.parse::<T>() {
         Ok(v) => Some(v),
-        Err(m) => {
-            p.push(Problem::refused(key, m));
+        Err(_) => {
+            let names: Vec<&str> = all.iter().map(|v| words(*v)).collect();
+            p.push(Problem::refused(
+                key,
+                format!("`{text}` is not one of: {}", names.join("; ")),
+            ));
             None
         }
     }
@@ -475,7 +522,13 @@ pub fn save_record(
             let bore = q("bore", Kind::Length, &mut p);
             let rod = q("rod", Kind::Length, &mut p);
             let length = q("length", Kind::Length, &mut p);
-            let direction: Option<StrokeDirection> = choice_of("direction", e, &mut p);
+            let direction = choice_of(
+                "direction",
+                e,
+                StrokeDirection::ALL,
+                direction_words,
+                &mut p,
+            );
             if let (Some(b), Some(r)) = (bore, rod) {
                 if r >= b {
                     p.push(Problem::refused(
@@ -510,12 +563,19 @@ pub fn save_record(
                 id: id.unwrap_or(0),
                 machine_id: machine.map(|m| m.id).unwrap_or(0),
                 tag: text("tag", "a unit tag", &mut p),
-                pump_kind: choice_of("pump_kind", e, &mut p).unwrap_or(PumpKind::Gear),
+                pump_kind: choice_of("pump_kind", e, PumpKind::ALL, pump_words, &mut p)
+                    .unwrap_or(PumpKind::Gear),
                 rated_flow: q("rated_flow", Kind::Flow, &mut p).map(Flow),
                 relief: q("relief", Kind::Pressure, &mut p).map(Pressure),
                 reservoir: q("reservoir", Kind::Volume, &mut p).map(Volume),
-                sensitive_component: choice_of("sensitive", e, &mut p)
-                    .unwrap_or(SensitiveComponent::Cylinder),
+                sensitive_component: choice_of(
+                    "sensitive",
+                    e,
+                    SensitiveComponent::ALL,
+                    component_words,
+                    &mut p,
+                )
+                .unwrap_or(SensitiveComponent::Cylinder),
                 fluid_id: fluid,
                 stroke,
                 route_order: int("route_order", &mut p),
