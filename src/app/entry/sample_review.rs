@@ -272,9 +272,9 @@ pub fn review_sample(
         note: format_note(entered.get("note"), &by),
         confirmed: None,
     };
-    // Far from the new oil, free water, a very high acid number: the screening's questions,
-    // the same at import and in the engine.
-    for sus in health::screen::sample(h.fluid.as_ref(), &sample, system) {
+    // Far from the new oil, free water, a very high acid number, water or acid far from the
+    // unit's recent samples: the screening's questions, the same at import and in the engine.
+    for sus in health::screen::sample_in(&h, &sample, system) {
         let key = match sus.field {
             health::screen::Field::ViscReading => "visc_value",
             f => f.key(),

@@ -22,6 +22,7 @@ use crate::units::UnitSystem;
 mod rules;
 
 pub use rules::sample;
+use rules::SampleScreen;
 use rules::*;
 #[cfg(test)]
 mod tests;
@@ -62,6 +63,12 @@ pub const FLOOR_CASE_DRAIN_LN: f64 = 0.2;
 /// published source, for the 1.5).
 pub const RUN_SIGMAS: f64 = 2.0;
 pub const RUN_GROSS: f64 = 1.5;
+/// The robust σ of the acid numbers' history is never taken below this floor, on the
+/// logarithm (a slipped decimal point is a factor of ten, ln 10 = 2.3): with `SIGMAS` = 5 an
+/// acid number more than about 2.7 times (or under a 2.7th of) the era's recent samples is
+/// questioned — further than a lab's scatter and a sample interval's oxidation take it, short
+/// of a slip.
+pub const FLOOR_ACID_LN: f64 = 0.2;
 /// A working pressure more than this fraction above the relief setting cannot be held by the
 /// circuit (gauge tolerance; the entry form's own margin).
 pub const OVER_RELIEF: f64 = 0.10;
@@ -196,7 +203,7 @@ pub fn screen_history(
     sys: UnitSystem,
 ) -> Vec<SuspectReading> {
     let (mut out, _) = screen_checks(&h.unit, &h.checks, &h.events, sys);
-    screen_samples(&mut out, fluid, &h.samples, sys);
+    screen_samples(&mut out, fluid, &h.samples, &h.events, sys);
     out
 }
 
@@ -346,27 +353,99 @@ fn screen_checks(
     (out, st)
 }
 
-/// Screens samples against the frame of the fluid; a suspicion repeated by the next sample is
-/// confirmed by it.
+/// The suspicions of a new sample `s` against the frame of the unit's fluid and the unit's
+/// stored samples before it (since its last fluid change): exactly what the engine will
+/// question. What the sample form asks.
+pub fn sample_in(h: &UnitHistory, s: &Sample, sys: UnitSystem) -> Vec<Suspicion> {
+    let mut before: Vec<Sample> = h
+        .samples
+        .iter()
+        .filter(|x| x.sampled_at < s.sampled_at)
+        .cloned()
+        .collect();
+    before.sort_by_key(|x| (x.sampled_at, x.id));
+    let mut out = Vec::new();
+    let mut st = screen_samples(&mut out, h.fluid.as_ref(), &before, &h.events, sys);
+    if fluid_changed_between(&h.events, before.last().map(|x| x.sampled_at), s.sampled_at) {
+        st = SampleScreen::default();
+    }
+    st.screen(h.fluid.as_ref(), s, sys)
+}
+
+/// Whether the fluid was changed after `from` and up to `to`: the samples after it are of
+/// another oil and are judged against a fresh history.
+fn fluid_changed_between(events: &[Event], from: Option<DateTime<Utc>>, to: DateTime<Utc>) -> bool {
+    events.iter().any(|e| {
+        e.kind == EventKind::FluidChange && from.is_some_and(|f| e.done_at > f) && e.done_at <= to
+    })
+}
+
+/// Screens samples in time order against the frame of the fluid and, for the acid number,
+/// the era's accepted samples before them. A frame suspicion repeated by the next
+/// sample is confirmed by it; a history suspicion is confirmed by a next sample that is out
+/// of the same history on the same side and close to it (a real change), as for checks.
 fn screen_samples(
     out: &mut Vec<SuspectReading>,
     fluid: Option<&Fluid>,
     samples: &[Sample],
+    events: &[Event],
     sys: UnitSystem,
-) {
-    let mut last: Vec<(Field, usize)> = Vec::new();
+) -> SampleScreen {
+    let mut st = SampleScreen::default();
+    let mut waiting: Vec<Pending> = Vec::new();
+    let mut prev: Option<DateTime<Utc>> = None;
     for s in samples {
-        let found = sample(fluid, s, sys);
-        let person = confirmed_sample(s);
-        let repeated: Vec<Field> = found.iter().map(|f| f.field).collect();
-        for (f, i) in last.drain(..) {
-            if repeated.contains(&f) && out[i].confirmed.is_none() {
-                out[i].confirmed = Some(ConfirmedBy::NextReading { at: s.sampled_at });
-            }
+        if fluid_changed_between(events, prev, s.sampled_at) {
+            st = SampleScreen::default();
+            waiting.clear();
         }
+        prev = Some(s.sampled_at);
+        let found = st.screen(fluid, s, sys);
+        let person = confirmed_sample(s);
+        let mut agrees: Vec<(Field, f64)> = Vec::new();
+        waiting.retain(|w| {
+            let again = found.iter().any(|f| f.field == w.field);
+            if w.side == 0.0 {
+                // A frame break: confirmed when the next sample breaks it too.
+                if again {
+                    out[w.at].confirmed = Some(ConfirmedBy::NextReading { at: s.sampled_at });
+                }
+                return false;
+            }
+            let Some(x) = sample_hist_value(s, w.field) else {
+                return true; // not measured this time: still waiting
+            };
+            let side = outside(x, st.recent(w.field)).unwrap_or(0.0);
+            let close = (x - w.value).abs() <= SIGMAS * w.sigma;
+            if again && side == w.side && close {
+                out[w.at].confirmed = Some(ConfirmedBy::NextReading { at: s.sampled_at });
+                agrees.push((w.field, w.value));
+            }
+            false
+        });
+        // A waiting reading now confirmed joins the history, and this one with it.
+        for &(f, v) in &agrees {
+            st.push(f, v);
+        }
+        let mut held: Vec<Field> = Vec::new();
         for f in found {
-            if person.is_none() {
-                last.push((f.field, out.len()));
+            let confirmed = if agrees.iter().any(|a| a.0 == f.field) {
+                Some(ConfirmedBy::NextReading { at: s.sampled_at })
+            } else {
+                person.clone()
+            };
+            if confirmed.is_none() {
+                held.push(f.field);
+                let x = sample_hist_value(s, f.field);
+                let hist = st.recent(f.field);
+                let side = x.and_then(|x| outside(x, hist)).unwrap_or(0.0);
+                waiting.push(Pending {
+                    at: out.len(),
+                    field: f.field,
+                    value: x.unwrap_or(f64::NAN),
+                    side,
+                    sigma: hist.map(|h| h.1).unwrap_or(0.0),
+                });
             }
             out.push(SuspectReading {
                 record: Record::Sample,
@@ -374,10 +453,12 @@ fn screen_samples(
                 at: s.sampled_at,
                 field: f.field,
                 reason: f.reason,
-                confirmed: person.clone(),
+                confirmed,
             });
         }
+        st.accept(s, &held);
     }
+    st
 }
 
 /// The history with every unconfirmed suspect field taken out (set to nothing), as the

@@ -319,3 +319,99 @@ pub fn sample(fluid: Option<&Fluid>, s: &Sample, sys: UnitSystem) -> Vec<Suspici
     }
     out
 }
+
+/// The fields of a sample judged against their own history, on their logarithm: the acid
+/// number only. Water is not: a real ingress moves it as far between two quarterly samples as
+/// a slip does (from under 100 ppm to 590 in the simulated shops), so holding it back until
+/// the next sample costs a detection whenever that resample falls just under the limit; the
+/// frame (more than 1 % water) still applies. An acid number rises over months.
+pub(super) const SAMPLE_HISTORY_FIELDS: [Field; 1] = [Field::Acid];
+
+/// A sample field's value as its history judges it: the logarithm of a positive figure.
+pub(super) fn sample_hist_value(s: &Sample, f: Field) -> Option<f64> {
+    match f {
+        Field::Acid => s.acid_mgkoh_g,
+        _ => None,
+    }
+    .filter(|v| v.is_finite() && *v > 0.0)
+    .map(f64::ln)
+}
+
+fn sample_idx(f: Field) -> Option<usize> {
+    SAMPLE_HISTORY_FIELDS.iter().position(|&g| g == f)
+}
+
+/// The state of the screen of one unit's samples in one era, sample by sample in time order.
+#[derive(Default)]
+pub(super) struct SampleScreen {
+    /// Accepted logarithms per history field, oldest first.
+    accepted: [Vec<f64>; 1],
+}
+
+impl SampleScreen {
+    /// Median and robust σ (floored) of the last `WINDOW` accepted values of a field, when
+    /// there are at least `MIN_HISTORY`.
+    pub(super) fn recent(&self, f: Field) -> Option<(f64, f64)> {
+        let acc = &self.accepted[sample_idx(f)?];
+        if acc.len() < MIN_HISTORY {
+            return None;
+        }
+        let last = &acc[acc.len().saturating_sub(WINDOW)..];
+        let (m, s) = stats::median_and_mad_sigma(last)?;
+        Some((m, s.max(FLOOR_ACID_LN)))
+    }
+
+    pub(super) fn push(&mut self, f: Field, v: f64) {
+        if let Some(i) = sample_idx(f) {
+            self.accepted[i].push(v);
+        }
+    }
+
+    /// The suspicions of one sample: the frame of its fluid, then the acid number against the
+    /// era's recent samples (does not change the state).
+    pub(super) fn screen(
+        &self,
+        fluid: Option<&Fluid>,
+        s: &Sample,
+        sys: UnitSystem,
+    ) -> Vec<Suspicion> {
+        let mut out = sample(fluid, s, sys);
+        for f in SAMPLE_HISTORY_FIELDS {
+            if out.iter().any(|x| x.field == f) {
+                continue;
+            }
+            let (Some(x), Some((m, sigma))) = (sample_hist_value(s, f), self.recent(f)) else {
+                continue;
+            };
+            let Some(side) = outside(x, Some((m, sigma))) else {
+                continue;
+            };
+            let (now, usual) = (x.exp(), m.exp());
+            let times = if side > 0.0 { now / usual } else { usual / now };
+            out.push(Suspicion {
+                field: f,
+                reason: format!(
+                    "An acid number of {} mg KOH/g is {} times {} the unit's recent samples (median {} \
+                     mg KOH/g): a slipped decimal point or a swapped figure?",
+                    crate::health::text::num(now, 2),
+                    crate::health::text::num(times, 1),
+                    if side > 0.0 { "above" } else { "below" },
+                    crate::health::text::num(usual, 2),
+                ),
+            });
+        }
+        out
+    }
+
+    /// Takes a sample's acid number into the history, unless it is held as suspect.
+    pub(super) fn accept(&mut self, s: &Sample, held: &[Field]) {
+        for f in SAMPLE_HISTORY_FIELDS {
+            if held.contains(&f) {
+                continue;
+            }
+            if let Some(v) = sample_hist_value(s, f) {
+                self.push(f, v);
+            }
+        }
+    }
+}

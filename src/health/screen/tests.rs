@@ -187,3 +187,86 @@ fn sample_rule(f: &Fluid, s: &Sample) -> Vec<Field> {
         .map(|x| x.field)
         .collect()
 }
+
+/// A unit with quarterly samples of `water` ppm and acid 0.40 mg KOH/g (ids 1…), and a fluid
+/// change event at `fluid_change_before` (the index of the sample it comes before), if any.
+fn sampled(water: &[f64], acid: &[f64], fluid_change_before: Option<usize>) -> UnitHistory {
+    let mut h = press();
+    let t0 = crate::health::testutil::t("2024-01-01");
+    for (i, (w, a)) in water.iter().zip(acid).enumerate() {
+        let at = t0 + chrono::Duration::weeks(13 * i as i64);
+        let mut s = crate::health::testutil::sample(i as Id + 1, at);
+        s.water_ppm = Some(*w);
+        s.acid_mgkoh_g = Some(*a);
+        h.samples.push(s);
+        if fluid_change_before == Some(i + 1) {
+            h.events.push(crate::health::testutil::event(
+                1,
+                at + chrono::Duration::days(1),
+                EventKind::FluidChange,
+                Some(1),
+            ));
+        }
+    }
+    h
+}
+
+#[test]
+fn a_slipped_decimal_in_an_acid_number_is_questioned_against_the_unit_s_own_samples() {
+    let acid = [0.40, 0.42, 0.38, 4.1, 0.41];
+    let water = [100.0, 120.0, 90.0, 110.0, 105.0];
+    let h = sampled(&water, &acid, None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    // 0.41 typed as 4.1: ln(4.1 / 0.40) = 2.33 beyond 5 × the floor of 0.2 (the MAD of
+    // 0.40, 0.42, 0.38 is 0.02, a robust σ on the logarithm of about 0.074: floored).
+    assert_eq!(fields(&s, 4), vec![(Field::Acid, false)]);
+    assert!(s[0].reason.contains("times above"), "{}", s[0].reason);
+    assert!(fields(&s, 5).is_empty());
+    // It feeds nothing: the masked history has no acid on that sample, water untouched.
+    let m = without_unconfirmed(&h, &s);
+    assert_eq!(m.samples[3].acid_mgkoh_g, None);
+    assert_eq!(m.samples[3].water_ppm, Some(110.0));
+    // What the sample form asks of the same sample, with the earlier ones stored.
+    let mut before = h.clone();
+    let new = before.samples.remove(3);
+    before.samples.truncate(3);
+    let asked: Vec<Field> = sample_in(&before, &new, UnitSystem::Metric)
+        .into_iter()
+        .map(|x| x.field)
+        .collect();
+    assert_eq!(asked, vec![Field::Acid]);
+    // A tenth (0.04 for 0.40) is questioned as well: below.
+    let h = sampled(&[100.0; 4], &[0.40, 0.42, 0.38, 0.04], None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 4), vec![(Field::Acid, false)]);
+    assert!(s[0].reason.contains("below"), "{}", s[0].reason);
+    // Water is judged on its frame alone: a jump from about 100 to 590 ppm is what a real
+    // ingress does between two quarterly samples.
+    let h = sampled(&[100.0, 120.0, 90.0, 590.0], &[0.4; 4], None);
+    assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
+}
+
+#[test]
+fn a_real_rise_in_the_acid_number_is_confirmed_by_the_next_sample_and_a_fluid_change_starts_afresh()
+{
+    // 0.40, 0.42, 0.38, then 1.30 (3.25× the median: questioned) and 1.40 (out of the same
+    // history, on the same side, close to 1.30): the next sample confirms it.
+    let h = sampled(&[100.0; 5], &[0.40, 0.42, 0.38, 1.30, 1.40], None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 4), vec![(Field::Acid, true)]);
+    assert_eq!(fields(&s, 5), vec![(Field::Acid, true)]);
+    assert!(without_unconfirmed(&h, &s).samples[3]
+        .acid_mgkoh_g
+        .is_some());
+    // A rise within a factor of about 2.7 is no question at all.
+    let h = sampled(&[100.0; 4], &[0.40, 0.42, 0.38, 0.90], None);
+    assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
+    // After a fluid change the new oil has no history yet: 0.05 in new oil is no slip.
+    let h = sampled(&[100.0; 4], &[0.60, 0.62, 0.61, 0.05], Some(3));
+    assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
+    let h = sampled(&[100.0; 4], &[0.60, 0.62, 0.61, 0.05], None);
+    assert_eq!(
+        fields(&screen_history(&h, None, UnitSystem::Metric), 4),
+        vec![(Field::Acid, false)]
+    );
+}
