@@ -936,29 +936,9 @@ fn history_on_one_backend() {
             "cold",
         ],
     );
+    let before_delete = ok(d, &["--db", db, "export", "checks"]);
     // A deletion, as the unit page makes it.
-    {
-        let shop = sumpbook::app::shop::Shop::open_for_writing(&path).unwrap();
-        let unit = shop
-            .store_for_tests()
-            .unit_by_tag("SH-04-A")
-            .unwrap()
-            .unwrap();
-        let last = shop
-            .store_for_tests()
-            .checks_for_unit(unit.id, None)
-            .unwrap()
-            .pop()
-            .unwrap();
-        sumpbook::app::entry::delete_reading(
-            &shop,
-            sumpbook::app::entry::Reading::Check,
-            last.id,
-            "AK",
-            "typed on the wrong unit",
-        )
-        .unwrap();
-    }
+    crate::run::delete_newest_check(&path, "SH-04-A");
     let out = ok(d, &["--db", db, "history", "SH-04-A"]);
     let lines: Vec<&str> = out.lines().collect();
     let confirmed = lines
@@ -995,10 +975,87 @@ fn history_on_one_backend() {
     assert_eq!(edits[0]["record"], "check");
     assert_eq!(edits[1]["action"], "deleted");
     assert!(edits[1]["at"].as_str().unwrap().ends_with('Z'));
+    assert_eq!(edits[1]["restorable"], true);
     // Another unit's trail holds none of it; an unknown unit is refused.
     let other = ok(d, &["--db", db, "history", "PB-03-A"]);
     assert!(other.contains("No reading or record"), "{other}");
     refused(d, &["--db", db, "history", "XX-99"], "no unit `XX-99`");
+
+    // The deletion put back from the command line: the check is exported as it was, and the
+    // restore is an edit of its own with who, when and why.
+    let deletion = edits[1]["edit_id"].as_i64().unwrap().to_string();
+    let confirmation = edits[0]["edit_id"].as_i64().unwrap().to_string();
+    fn restore<'a>(db: &'a str, extra: &[&'a str]) -> Vec<&'a str> {
+        let mut args = vec!["--db", db, "history", "SH-04-A", "--restore"];
+        args.extend_from_slice(extra);
+        args
+    }
+    refused(
+        d,
+        &restore(db, &[&deletion, "--by", "RE", "--reason", " "]),
+        "say why the reading is put back",
+    );
+    refused(
+        d,
+        &restore(db, &[&confirmation, "--by", "RE", "--reason", "undo"]),
+        "not the deletion of a check, sample or event",
+    );
+    refused(
+        d,
+        &[
+            "--db",
+            db,
+            "history",
+            "PB-03-A",
+            "--restore",
+            &deletion,
+            "--by",
+            "RE",
+            "--reason",
+            "x",
+        ],
+        "is not in the edit trail of PB-03-A",
+    );
+    let deleted = ok(d, &["--db", db, "export", "checks"]);
+    assert_eq!(deleted.lines().count() + 1, before_delete.lines().count());
+    let out = ok(
+        d,
+        &restore(
+            db,
+            &[
+                &deletion,
+                "--by",
+                "R. Engineer",
+                "--reason",
+                "the right unit after all",
+            ],
+        ),
+    );
+    assert!(out.contains("Put back the check of "), "{out}");
+    assert_eq!(
+        ok(d, &["--db", db, "export", "checks"]),
+        before_delete,
+        "the check is back as it was"
+    );
+    let v: serde_json::Value =
+        serde_json::from_str(&ok(d, &["--db", db, "history", "SH-04-A", "--json"])).unwrap();
+    let edits = v["edits"].as_array().unwrap();
+    assert_eq!(edits.len(), 3);
+    assert_eq!(edits[2]["action"], "restored");
+    assert_eq!(edits[2]["by"], "R. Engineer");
+    assert_eq!(edits[2]["reason"], "the right unit after all");
+    assert_eq!(edits[2]["record_id"], edits[1]["record_id"]);
+    assert_eq!(edits[1]["restorable"], false);
+    let out = ok(d, &["--db", db, "history", "SH-04-A"]);
+    assert!(
+        out.contains("RESTORED by R. Engineer: the right unit after all"),
+        "{out}"
+    );
+    refused(
+        d,
+        &restore(db, &[&deletion, "--by", "RE", "--reason", "twice"]),
+        "it was put back already",
+    );
 }
 
 /// A lab's own file: the first try is refused at its header (nothing read), showing the mapping

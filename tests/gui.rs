@@ -1305,6 +1305,51 @@ fn the_edits_tab_shows_who_changed_or_deleted_what_and_corrected_rows_are_marked
         .map(|v| v.to_string())
         .collect();
     assert_eq!(shown.len(), 2, "both on screen: {shown:?}");
+
+    // The deleted check is offered for putting back; without a reason nothing is restored.
+    let offered: Vec<String> = a
+        .get_deleted_choices()
+        .iter()
+        .map(|e| e.to_string())
+        .collect();
+    assert_eq!(offered.len(), 1, "{offered:?}");
+    assert!(offered[0].contains("by R. Engineer"), "{offered:?}");
+    field(&f.app, "Restored by").set_accessible_value("R. Engineer");
+    field(&f.app, "Reason for the restore").set_accessible_value("");
+    button(&f.app, "Restore reading").invoke_accessible_default_action();
+    assert!(shop(&f.path)
+        .store_for_tests()
+        .check(newest)
+        .unwrap()
+        .is_none());
+    assert!(
+        a.get_edit_message()
+            .contains("say why the reading is put back"),
+        "{}",
+        a.get_edit_message()
+    );
+    field(&f.app, "Reason for the restore").set_accessible_value("it was the right unit");
+    button(&f.app, "Restore reading").invoke_accessible_default_action();
+    assert!(
+        shop(&f.path)
+            .store_for_tests()
+            .check(newest)
+            .unwrap()
+            .is_some(),
+        "{}",
+        a.get_edit_message()
+    );
+    let edits: Vec<String> = a.get_edits().iter().map(|e| e.to_string()).collect();
+    assert_eq!(edits.len(), 3, "{edits:?}");
+    assert!(
+        edits[2].contains("RESTORED by R. Engineer: it was the right unit"),
+        "{edits:?}"
+    );
+    assert_eq!(
+        a.get_deleted_choices().row_count(),
+        0,
+        "nothing left to put back"
+    );
 }
 
 /// A lab's own file on the import screen: the mapping proposed from its header is shown with

@@ -1346,6 +1346,106 @@ fn a_shop_of_every_earlier_schema_version_upgrades_with_all_its_rows_and_a_backu
     }
 }
 
+/// A sample deleted in a shop of the schema before restores existed is put back after the
+/// upgrade, as it was (every column) and with its own number; the restore is an edit of its
+/// own with who, why and when, and a second restore of the same deletion is refused.
+#[test]
+fn a_reading_deleted_before_the_upgrade_is_put_back_after_it_as_an_edit() {
+    let latest = migrations().len();
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("old.sqlite");
+    shop_at_version(&db, latest - 1);
+    let held = |conn: &Connection| -> (i64, String) {
+        conn.query_row(
+            "SELECT id, old_value FROM edit_log WHERE table_name = 'samples' AND action = 'delete'",
+            [],
+            |r| Ok((r.get(0)?, r.get(1)?)),
+        )
+        .unwrap()
+    };
+    let (deletion, before) = held(&Connection::open(&db).unwrap());
+    let edit = deletion.to_string();
+    let out = ok(&db, &["history", "PR-07-HPU"]);
+    assert!(
+        out.contains(&format!("--restore {edit} ")),
+        "the deletion is offered for restoring: {out}"
+    );
+    let out = ok(
+        &db,
+        &[
+            "history",
+            "PR-07-HPU",
+            "--restore",
+            &edit,
+            "--by",
+            "RE",
+            "--reason",
+            "not a twin after all",
+        ],
+    );
+    assert!(
+        out.contains("Put back the sample of 2024-11-04 18:00 CST"),
+        "{out}"
+    );
+
+    let conn = Connection::open(&db).unwrap();
+    // The row as the deletion recorded it, column for column (SQLite's own JSON of the row).
+    let now: String = conn
+        .query_row(
+            "SELECT json_object('id', id, 'unit_id', unit_id, 'sampled_at', sampled_at, 'kv40_cst', kv40_cst, \
+             'kv100_cst', kv100_cst, 'visc_cst', visc_cst, 'visc_temp_c', visc_temp_c, 'count_4um_per_ml', count_4um_per_ml, \
+             'count_6um_per_ml', count_6um_per_ml, 'count_14um_per_ml', count_14um_per_ml, 'iso4406', iso4406, \
+             'water_ppm', water_ppm, 'acid_mgkoh_g', acid_mgkoh_g, 'lab_ref', lab_ref, 'note', note, \
+             'confirmed_by', confirmed_by, 'confirmed_at', confirmed_at) FROM samples WHERE id = 3",
+            [],
+            |r| r.get(0),
+        )
+        .unwrap();
+    assert_eq!(now, before);
+    let (action, by, reason, new_value, at): (String, String, String, String, String) = conn
+        .query_row(
+            "SELECT action, edited_by, reason, new_value, edited_at FROM edit_log WHERE id = (SELECT max(id) FROM edit_log)",
+            [],
+            |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?, r.get(4)?)),
+        )
+        .unwrap();
+    assert_eq!(
+        (action.as_str(), by.as_str(), reason.as_str()),
+        ("restore", "RE", "not a twin after all")
+    );
+    assert_eq!(new_value, before);
+    assert!(at.ends_with('Z') && at.len() == 20, "{at}");
+    assert_eq!(integrity(&db), "ok");
+    // The history says so, and the deletion is no longer offered.
+    let out = ok(&db, &["history", "PR-07-HPU"]);
+    assert!(
+        out.contains("RESTORED by RE: not a twin after all"),
+        "{out}"
+    );
+    assert!(!out.contains("--restore"), "{out}");
+    let again = sumpbook()
+        .arg("--db")
+        .arg(&db)
+        .args([
+            "history",
+            "PR-07-HPU",
+            "--restore",
+            &edit,
+            "--by",
+            "RE",
+            "--reason",
+            "twice",
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(again.status.code(), Some(2));
+    assert!(
+        String::from_utf8_lossy(&again.stderr).contains("it was put back already"),
+        "{}",
+        String::from_utf8_lossy(&again.stderr)
+    );
+}
+
 /// The other program upgrades the file while sumpbook waits for the lock: sumpbook has seen the
 /// old version, finds the new one when its turn comes, and must not run the upgrade twice.
 #[test]

@@ -1,5 +1,6 @@
 //! Running the `sumpbook` binary in a test's folder: its output, success, and a refusal with
-//! exit code 2 and no panic. Shared by the command-line, server and report tests.
+//! exit code 2 and no panic; and a reading deleted as the unit page deletes it. Shared by the
+//! command-line, server and report tests.
 
 use std::path::Path;
 use std::process::{Command, Output};
@@ -44,4 +45,26 @@ pub fn refused(dir: &Path, args: &[&str], needle: &str) -> String {
     );
     assert!(!err.contains("panicked"), "{err}");
     err
+}
+
+/// Deletes the newest check of unit `tag` in the shop at `path` as the unit page does (by AK,
+/// "typed on the wrong unit"); its id.
+pub fn delete_newest_check(path: &Path, tag: &str) -> i64 {
+    let shop = sumpbook::app::shop::Shop::open_for_writing(path).unwrap();
+    let unit = shop.store_for_tests().unit_by_tag(tag).unwrap().unwrap();
+    let last = shop
+        .store_for_tests()
+        .checks_for_unit(unit.id, None)
+        .unwrap()
+        .pop()
+        .unwrap();
+    sumpbook::app::entry::delete_reading(
+        &shop,
+        sumpbook::app::entry::Reading::Check,
+        last.id,
+        "AK",
+        "typed on the wrong unit",
+    )
+    .unwrap();
+    last.id
 }

@@ -28,6 +28,18 @@ fn count(url: &str, table: &str) -> i64 {
         .get(0)
 }
 
+/// A new server login `NAME_…` (unique to this test run and database) holding the shop role
+/// `role`; its address.
+fn login_as(d: &Path, admin_url: &str, url: &str, name: &str, role: &str) -> String {
+    let suffix = format!("{}_{}", std::process::id(), url.rsplit('_').next().unwrap());
+    let name = format!("{name}_{suffix}");
+    admin(admin_url)
+        .batch_execute(&format!("CREATE ROLE {name} LOGIN"))
+        .unwrap();
+    ok(d, &["--db", url, "roles", "--grant", &name, "--role", role]);
+    as_user(url, &name)
+}
+
 /// The unit tags of a shop, from its own export.
 fn unit_tags(dir: &Path, db: &str) -> Vec<String> {
     let csv = ok(dir, &["--db", db, "export", "units"]);
@@ -214,17 +226,8 @@ fn each_role_may_do_its_own_work_and_is_refused_the_rest_with_exit_code_2() {
     // Running it again changes nothing and fails nothing.
     ok(d, &["--db", &url, "roles", "--create"]);
 
-    let suffix = format!("{}_{}", std::process::id(), url.rsplit('_').next().unwrap());
     let login = |role: &str| {
-        let name = format!("{role}_{suffix}");
-        admin(admin_url)
-            .batch_execute(&format!("CREATE ROLE {name} LOGIN"))
-            .unwrap();
-        ok(
-            d,
-            &["--db", &url, "roles", "--grant", &name, "--role", role],
-        );
-        let user_url = as_user(&url, &name);
+        let user_url = login_as(d, admin_url, &url, role, role);
         let out = ok(d, &["--db", &user_url, "roles"]);
         assert!(out.contains(&format!("{role}: may")), "{out}");
         user_url
@@ -940,4 +943,117 @@ fn an_upsert_on_a_server_is_an_update_in_the_edit_history_and_acknowledgements_s
         .map(|r| r.get(0))
         .collect();
     assert_eq!(acks, ["first", "second"]);
+}
+
+/// A deleted reading put back on a server: the server's own function writes the restore into
+/// the history (no role may write it), a technician is refused as the server refuses a right
+/// it lacks, and an engineer puts the check back column for column with who and why.
+#[test]
+fn a_deleted_check_is_restored_by_an_engineer_and_refused_to_a_technician() {
+    let Some(admin_url) = server() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let url = new_database();
+    ok(d, &["--db", &url, "demo"]);
+    ok(d, &["--db", &url, "roles", "--create"]);
+    let (tech, eng) = (
+        login_as(d, admin_url, &url, "rtechnician", "technician"),
+        login_as(d, admin_url, &url, "rengineer", "engineer"),
+    );
+    let tag = unit_tags(d, &url).remove(0);
+    let row_json = |id: i64| -> Option<String> {
+        admin(&url)
+            .query_opt(
+                "SELECT row_to_json(c)::text FROM checks c WHERE id = $1",
+                &[&id],
+            )
+            .unwrap()
+            .map(|r| r.get(0))
+    };
+
+    // The owner deletes the unit's newest check, as the unit page does.
+    let newest = {
+        let shop = Shop::open(Path::new(&url)).unwrap();
+        let unit = shop.store_for_tests().unit_by_tag(&tag).unwrap().unwrap();
+        shop.store_for_tests()
+            .checks_for_unit(unit.id, None)
+            .unwrap()
+            .pop()
+            .unwrap()
+            .id
+    };
+    let before = row_json(newest).unwrap();
+    let id = crate::run::delete_newest_check(Path::new(&url), &tag);
+    assert_eq!(id, newest);
+    assert_eq!(row_json(id), None);
+    let deletion: i64 = admin(&url)
+        .query_one("SELECT max(id) FROM edit_log", &[])
+        .unwrap()
+        .get(0);
+    let edit = deletion.to_string();
+    let restore = |db: &str| {
+        sumpbook(
+            d,
+            &[
+                "--db",
+                db,
+                "history",
+                &tag,
+                "--restore",
+                &edit,
+                "--by",
+                "RE",
+                "--reason",
+                "the right unit after all",
+            ],
+        )
+    };
+
+    let out = restore(&tech);
+    let err = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("not allowed for your database role"), "{err}");
+    assert_eq!(row_json(id), None, "nothing put back");
+    // Nor can anyone call the function without who and why.
+    let mut as_eng = postgres::Client::connect(&eng, postgres::NoTls).unwrap();
+    assert!(as_eng
+        .query_one("SELECT sumpbook_restore($1)", &[&deletion])
+        .is_err());
+
+    let out = restore(&eng);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    assert_eq!(row_json(id), Some(before.clone()), "the check as it was");
+    let (action, by, reason, old, new): (String, String, String, String, String) = {
+        let r = admin(&url)
+            .query_one(
+                "SELECT action, edited_by, reason, old_value, new_value FROM edit_log WHERE id = (SELECT max(id) FROM edit_log)",
+                &[],
+            )
+            .unwrap();
+        (r.get(0), r.get(1), r.get(2), r.get(3), r.get(4))
+    };
+    assert_eq!(
+        (action.as_str(), by.as_str(), reason.as_str()),
+        ("restore", "RE", "the right unit after all")
+    );
+    assert_eq!(old, new);
+    let held: serde_json::Value = serde_json::from_str(&new).unwrap();
+    let now: serde_json::Value = serde_json::from_str(&before).unwrap();
+    assert_eq!(held, now, "the history holds the record put back");
+    // Twice is refused, by the program and by the server's function alike.
+    let out = restore(&eng);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(text(&out.stderr).contains("put back already"));
+    let mut owner = admin(&url);
+    let mut tx = owner.transaction().unwrap();
+    tx.batch_execute("SELECT set_config('sumpbook.edited_by', 'x', true)")
+        .unwrap();
+    let err = tx
+        .query_one("SELECT sumpbook_restore($1)", &[&deletion])
+        .unwrap_err();
+    assert!(
+        err.to_string().contains("put back already")
+            || format!("{err:?}").contains("put back already"),
+        "{err:?}"
+    );
 }

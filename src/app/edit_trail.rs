@@ -1,7 +1,7 @@
-//! The edit trail of one unit: every correction and deletion of its readings, work records and
-//! register entry, with when (in the shop's time), who and why, and each changed field as old →
-//! new. Read from the store's edit history (written by the schema's triggers); it must not write,
-//! print or know the screens.
+//! The edit trail of one unit: every correction, deletion and restore of its readings, work
+//! records and register entry, with when (in the shop's time), who and why, and each changed
+//! field as old → new; and putting a deleted reading back, which is itself an edit. Read from
+//! and written through the store's edit history; it must not print or know the screens.
 
 use chrono::{DateTime, Utc};
 use serde::Serialize;
@@ -20,6 +20,8 @@ use crate::store::Store;
 pub enum EditAction {
     Changed,
     Deleted,
+    /// A deleted reading put back as it was.
+    Restored,
 }
 
 /// One field's value before and after an edit, as stored (the column name says its unit).
@@ -27,7 +29,7 @@ pub enum EditAction {
 pub struct FieldChange {
     pub field: String,
     pub old: String,
-    /// `None` when the record was deleted.
+    /// `None` when the record was deleted; a restore's fields are `—` → the value put back.
     pub new: Option<String>,
 }
 
@@ -47,8 +49,11 @@ pub struct Edit {
     /// The record in words: `check of 2026-12-01 08:00 EST`.
     pub record_text: String,
     pub action: EditAction,
-    /// Every field that differs (a deletion lists the fields the record held).
+    /// Every field that differs (a deletion or a restore lists the fields the record held).
     pub changes: Vec<FieldChange>,
+    /// A deletion of a reading (check, sample or event) that can be put back: nothing was done
+    /// to that reading since, and no later record took its number.
+    pub restorable: bool,
 }
 
 /// A unit's edit trail, oldest first.
@@ -81,6 +86,7 @@ impl Edit {
         let what = match self.action {
             EditAction::Changed => "changed",
             EditAction::Deleted => "DELETED",
+            EditAction::Restored => "RESTORED",
         };
         let why = if self.reason.trim().is_empty() {
             "no reason given"
@@ -88,8 +94,8 @@ impl Edit {
             self.reason.as_str()
         };
         let mut out = vec![format!(
-            "{}  {}  {what} by {}: {why}",
-            self.at_shown, self.record_text, self.by
+            "{}  {}  {what} by {}: {why}  (edit {})",
+            self.at_shown, self.record_text, self.by, self.edit_id
         )];
         out.extend(self.changes.iter().map(|c| match &c.new {
             Some(new) => format!("    {}: {} → {new}", c.field, c.old),
@@ -113,15 +119,104 @@ pub fn unit_edits_in(store: &Store, tag: &str) -> Result<UnitEdits, AppError> {
         .ok_or_else(|| AppError::BadInput(format!("no unit `{tag}` in this shop")))?;
     let zone = zone_of(store);
     let log = store.edit_log().map_err(store_error)?;
-    let edits = log
+    let mut edits: Vec<Edit> = log
         .iter()
         .filter_map(|r| edit_of_unit(r, unit.id, zone))
         .collect();
+    for i in 0..edits.len() {
+        let e = &edits[i];
+        let last_of_its_record = !edits[i + 1..]
+            .iter()
+            .any(|l| l.record == e.record && l.record_id == e.record_id);
+        let table = table_of(&e.record);
+        let free = match table {
+            Some(t) if e.action == EditAction::Deleted && last_of_its_record => {
+                !store.reading_stored(t, e.record_id).map_err(store_error)?
+            }
+            _ => false,
+        };
+        edits[i].restorable = free;
+    }
     Ok(UnitEdits {
         unit: unit.tag,
         time_zone: zone.name().to_string(),
         edits,
     })
+}
+
+/// The table of a reading that can be put back after a deletion.
+fn table_of(record: &str) -> Option<&'static str> {
+    match record {
+        "check" => Some("checks"),
+        "sample" => Some("samples"),
+        "event" => Some("events"),
+        _ => None,
+    }
+}
+
+/// Puts back the reading of unit `tag` that the edit `edit_id` deleted (a deletion listed as
+/// restorable in the unit's trail), as it was and with its own number; the restore goes to the
+/// edit history with `by`, `reason` and the time. Returns the restore as the trail shows it.
+pub fn restore_reading(
+    shop: &Shop,
+    tag: &str,
+    edit_id: Id,
+    by: &str,
+    reason: &str,
+) -> Result<Edit, AppError> {
+    let by = by.trim();
+    if by.is_empty() {
+        return Err(AppError::BadInput(
+            "say who puts the reading back: a name or initials".into(),
+        ));
+    }
+    let reason = reason.trim();
+    if reason.is_empty() {
+        return Err(AppError::BadInput(
+            "say why the reading is put back; it is kept with the restore".into(),
+        ));
+    }
+    let trail = unit_edits(shop, tag)?;
+    let Some(deletion) = trail.edits.iter().find(|e| e.edit_id == edit_id) else {
+        return Err(AppError::BadInput(format!(
+            "edit {edit_id} is not in the edit trail of {}",
+            trail.unit
+        )));
+    };
+    if !deletion.restorable {
+        let later = trail
+            .edits
+            .iter()
+            .find(|e| {
+                e.edit_id > edit_id
+                    && e.record == deletion.record
+                    && e.record_id == deletion.record_id
+            })
+            .map(|e| e.edit_id);
+        let why = match (deletion.action, later) {
+            (EditAction::Deleted, Some(n)) => format!("it was put back already (edit {n})"),
+            (EditAction::Deleted, None) if table_of(&deletion.record).is_some() => {
+                "a later record holds its number; enter its values anew".to_string()
+            }
+            _ => "it is not the deletion of a check, sample or event".to_string(),
+        };
+        return Err(AppError::BadInput(format!(
+            "edit {edit_id} ({}) cannot be restored: {why}",
+            deletion.record_text
+        )));
+    }
+    let (record, record_id) = (deletion.record.clone(), deletion.record_id);
+    shop.store()
+        .restore_deleted(edit_id, by, reason)
+        .map_err(store_error)?;
+    unit_edits(shop, tag)?
+        .edits
+        .into_iter()
+        .rev()
+        .find(|e| {
+            e.action == EditAction::Restored && e.record == record && e.record_id == record_id
+        })
+        .ok_or_else(|| AppError::BadInput("the restore is missing from the edit trail".into()))
 }
 
 /// The record kind of a table holding a unit's records, and the column of its time.
@@ -165,6 +260,7 @@ fn edit_of_unit(r: &EditRecord, unit_id: Id, zone: Zone) -> Option<Edit> {
         ),
     };
     let (action, changes) = match &new {
+        Some(_) if r.action == "restore" => (EditAction::Restored, restored_fields(&old)),
         Some(n) => (EditAction::Changed, changed_fields(&old, Some(n))),
         None => (EditAction::Deleted, changed_fields(&old, None)),
     };
@@ -179,7 +275,20 @@ fn edit_of_unit(r: &EditRecord, unit_id: Id, zone: Zone) -> Option<Edit> {
         record_text,
         action,
         changes,
+        restorable: false,
     })
+}
+
+/// The fields a restored record holds again, each as `—` → its value.
+fn restored_fields(held: &Map<String, Value>) -> Vec<FieldChange> {
+    changed_fields(held, None)
+        .into_iter()
+        .map(|c| FieldChange {
+            field: c.field,
+            old: "—".into(),
+            new: Some(c.old),
+        })
+        .collect()
 }
 
 fn parse_object(text: &str) -> Map<String, Value> {
@@ -279,5 +388,33 @@ mod tests {
         let fields: Vec<&str> = e.changes.iter().map(|c| c.field.as_str()).collect();
         assert_eq!(fields, ["done_at", "kind"]);
         assert!(e.changes.iter().all(|c| c.new.is_none()));
+    }
+
+    #[test]
+    fn a_restore_lists_the_fields_put_back_and_reads_as_one() {
+        let held = r#"{"id":9,"unit_id":2,"done_at":"2026-12-01T13:00:00Z","kind":"top_up","volume_l":null}"#;
+        let mut r = record("events", 9, held, Some(held));
+        r.action = "restore".into();
+        let e = edit_of_unit(&r, 2, Zone::default()).unwrap();
+        assert_eq!(e.action, EditAction::Restored);
+        assert_eq!(
+            e.changes,
+            vec![
+                FieldChange {
+                    field: "done_at".into(),
+                    old: "—".into(),
+                    new: Some("2026-12-01T13:00:00Z".into())
+                },
+                FieldChange {
+                    field: "kind".into(),
+                    old: "—".into(),
+                    new: Some("top_up".into())
+                },
+            ]
+        );
+        assert_eq!(
+            e.lines()[0],
+            "2026-12-01 14:00 UTC  top_up of 2026-12-01 13:00 UTC  RESTORED by AK: typo  (edit 7)"
+        );
     }
 }

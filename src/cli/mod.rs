@@ -141,7 +141,8 @@ pub enum Command {
     LogCheck(entry::LogCheckArgs),
     /// Confirm a questioned reading as measured (or --lift a confirmation), by unit and time.
     Confirm(confirm::ConfirmArgs),
-    /// A unit's edit trail: every correction and deletion, with when, who, why and old → new.
+    /// A unit's edit trail: every correction, deletion and restore, with when, who, why and
+    /// old → new; --restore EDIT puts a deleted reading back.
     History(history::HistoryArgs),
     /// Show the shop's settings (name, units of measure, time zone), or set them.
     Settings(settings::SettingsArgs),
@@ -223,7 +224,14 @@ fn run_command(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
         Some(Command::Confirm(args)) => {
             confirm::run(&data::open_shop_for_writing(db.as_deref())?, args, out)
         }
-        Some(Command::History(args)) => history::run(&data::open_shop(db.as_deref())?, args, out),
+        Some(Command::History(args)) => {
+            let shop = if args.changes() {
+                data::open_shop_for_writing(db.as_deref())?
+            } else {
+                data::open_shop(db.as_deref())?
+            };
+            history::run(&shop, args, out)
+        }
         Some(Command::Settings(args)) => {
             let shop = if args.changes() {
                 data::open_shop_for_writing(db.as_deref())?

@@ -284,6 +284,47 @@ pub(super) fn delete_row(ctx: &Rc<Ctx>) {
     }
 }
 
+/// Puts back the deleted reading chosen on the Edits tab, asking who and why as a deletion does.
+pub(super) fn restore_deleted(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<UnitAdapter>();
+    let chosen = {
+        let st = ctx.unit.borrow();
+        st.view.as_ref().and_then(|v| {
+            v.edits
+                .edits
+                .iter()
+                .filter(|e| e.restorable)
+                .nth(a.get_deleted_index().max(0) as usize)
+                .map(|e| (v.edits.unit.clone(), e.edit_id))
+        })
+    };
+    let Some((tag, edit_id)) = chosen else { return };
+    let done = crate::app::edit_trail::restore_reading(
+        &ctx.shop,
+        &tag,
+        edit_id,
+        &a.get_edit_by(),
+        &a.get_edit_reason(),
+    );
+    match done {
+        Ok(e) => {
+            a.set_edit_message(s(format!(
+                "Put back the {}; the restore is kept in the edit history.",
+                e.record_text
+            )));
+            a.set_edit_level(0);
+            a.set_edit_reason(s(""));
+            refresh(ctx);
+            crate::gui::fleet::refresh(ctx);
+        }
+        Err(e) => {
+            a.set_edit_message(s(err_text(&e)));
+            a.set_edit_level(2);
+        }
+    }
+}
+
 /// For the screenshots: the newest check chosen for correction.
 pub(in crate::gui) fn select_first_row(ctx: &Rc<Ctx>) {
     if let Some(w) = ctx.win() {

@@ -82,6 +82,9 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
     a.on_lift_row(on(ctx, |ctx| {
         confirm_row(ctx, false);
     }));
+    a.on_restore_deleted(on(ctx, |ctx| {
+        restore_deleted(ctx);
+    }));
 }
 
 fn table_of(i: i32) -> Reading {
@@ -179,6 +182,17 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
     a.set_edits(strings(
         view.edits.edits.iter().map(|e| e.lines().join("\n")),
     ));
+    let deleted: Vec<String> = view
+        .edits
+        .edits
+        .iter()
+        .filter(|e| e.restorable)
+        .map(|e| format!("{}, deleted {} by {}", e.record_text, e.at_shown, e.by))
+        .collect();
+    if a.get_deleted_index() as usize >= deleted.len() {
+        a.set_deleted_index(0);
+    }
+    a.set_deleted_choices(strings(deleted));
     a.set_time_note(format!("Times in {}.", view.zone.name()).into());
     let (rows, hint) = chart_rows(&view, sys);
     a.set_chart_rows(model(rows));
