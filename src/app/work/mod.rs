@@ -1,0 +1,407 @@
+//! Work and flags as people act on them: the due list across the fleet, acknowledging a flag,
+//! recording work done (an event), and reading and setting limits.
+//!
+//! Every figure comes from the one evaluation path (`status`); this module only selects,
+//! orders and records. Nothing here prints or parses a command line.
+//!
+//! Limits are in `limits`, a baseline entered by hand in `baseline`.
+
+use chrono::{DateTime, Duration, NaiveDate, SubsecRound, Utc};
+use serde::{Deserialize, Serialize};
+
+use super::status::{fleet_status_in, store_error, unit_status_in, Detail, FleetStatus};
+use super::AppError;
+use crate::health::limits::{LimitKey, Limits};
+use crate::health::plan::SAFETY_CAUTIONS;
+use crate::health::{Flag, FlagKind, State, WorkItem, WorkKind};
+use crate::model::{Acknowledgement, Event, EventKind, Unit};
+use crate::store::{Store, StoreError};
+use crate::units::Volume;
+
+mod baseline;
+mod limits;
+
+pub use baseline::{set_baseline, set_baseline_in, BaselineEntered};
+pub(crate) use limits::LimitScale;
+pub use limits::{
+    limits, limits_in, read_limit, reset_limit, reset_limit_in, set_limit, set_limit_in, LimitRow,
+    LimitsView,
+};
+
+/// Where a piece of work stands.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum DueBucket {
+    Overdue,
+    /// Due today or within the shop's `due_soon_days`.
+    DueSoon,
+    Later,
+}
+
+impl DueBucket {
+    pub fn as_str(self) -> &'static str {
+        match self {
+            DueBucket::Overdue => "overdue",
+            DueBucket::DueSoon => "due soon",
+            DueBucket::Later => "later",
+        }
+    }
+}
+
+/// One line of the due list.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct DueItem {
+    pub unit: String,
+    pub machine: String,
+    /// The unit's state, for context.
+    pub unit_state: State,
+    pub kind: WorkKind,
+    pub task: String,
+    pub due: NaiveDate,
+    pub bucket: DueBucket,
+    /// Days past the due date (negative: days still to go).
+    pub days_overdue: i64,
+    /// `watch` or `act` for overdue work (the `overdue` flag), else `steady`.
+    pub state: State,
+    pub basis: String,
+    pub pulled_forward: Option<String>,
+    /// The short safety caution where the work opens the circuit or takes oil out.
+    pub caution: Option<String>,
+}
+
+/// Work across the fleet: overdue first (most overdue first), then by due date.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct DueList {
+    pub at: DateTime<Utc>,
+    /// Only work due within this many days (overdue included); `None`: all planned work.
+    pub within_days: Option<i64>,
+    pub due_soon_days: i64,
+    pub items: Vec<DueItem>,
+    /// The safety cautions in full, when any listed work prompts fluid, filter or sample work.
+    pub cautions: Vec<String>,
+}
+
+fn bucket(w: &WorkItem, soon: i64) -> DueBucket {
+    if w.state > State::Steady {
+        DueBucket::Overdue
+    } else if w.days_overdue >= -soon {
+        DueBucket::DueSoon
+    } else {
+        DueBucket::Later
+    }
+}
+
+/// The due list at `at` (now when `None`), limited to work due within `within_days` if given.
+pub fn due_list_in(
+    store: &Store,
+    at: Option<DateTime<Utc>>,
+    within_days: Option<i64>,
+) -> Result<DueList, AppError> {
+    if within_days.is_some_and(|d| d < 0) {
+        return Err(AppError::BadInput(
+            "--within must be zero or more days".into(),
+        ));
+    }
+    let fleet = fleet_status_in(store, at, Detail::Summary)?;
+    due_list_from(store, &fleet, within_days)
+}
+
+/// The due list of a fleet status already evaluated (the app evaluates once per refresh).
+pub fn due_list_from(
+    store: &Store,
+    fleet: &FleetStatus,
+    within_days: Option<i64>,
+) -> Result<DueList, AppError> {
+    let shop_limits = Limits::resolve(&store.limits().map_err(store_error)?, None);
+    let soon = shop_limits.value(LimitKey::DueSoonDays).round() as i64;
+    let mut items: Vec<(i64, DueItem)> = Vec::new();
+    for u in &fleet.units {
+        for w in &u.health.work {
+            if within_days.is_some_and(|d| w.days_overdue < -d) {
+                continue;
+            }
+            items.push((
+                u.route_order,
+                DueItem {
+                    unit: u.unit.clone(),
+                    machine: u.machine.clone(),
+                    unit_state: u.state,
+                    kind: w.kind,
+                    task: w.kind.label().to_string(),
+                    due: w.due,
+                    bucket: bucket(w, soon),
+                    days_overdue: w.days_overdue,
+                    state: w.state,
+                    basis: w.basis.clone(),
+                    pulled_forward: w.pulled_forward.clone(),
+                    caution: w.caution.clone(),
+                },
+            ));
+        }
+    }
+    items.sort_by(|(ra, a), (rb, b)| {
+        a.bucket
+            .cmp(&b.bucket)
+            .then(if a.bucket == DueBucket::Overdue {
+                b.days_overdue.cmp(&a.days_overdue)
+            } else {
+                a.due.cmp(&b.due)
+            })
+            .then(ra.cmp(rb))
+            .then(a.unit.cmp(&b.unit))
+            .then(a.kind.cmp(&b.kind))
+    });
+    let items: Vec<DueItem> = items.into_iter().map(|(_, i)| i).collect();
+    let cautions = if items.iter().any(|i| i.caution.is_some()) {
+        SAFETY_CAUTIONS.iter().map(|s| s.to_string()).collect()
+    } else {
+        Vec::new()
+    };
+    Ok(DueList {
+        at: fleet.at,
+        within_days,
+        due_soon_days: soon,
+        items,
+        cautions,
+    })
+}
+
+/// What an acknowledgement recorded.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct AckResult {
+    pub unit: String,
+    /// The flag as it now stands, marked acknowledged.
+    pub flag: Flag,
+}
+
+fn need_name(what: &str, by: &str) -> Result<String, AppError> {
+    let by = by.trim();
+    if by.is_empty() {
+        return Err(AppError::BadInput(format!(
+            "{what}: give who with --by NAME"
+        )));
+    }
+    Ok(by.to_string())
+}
+
+/// Records that `by` has seen the `kind` flag of unit `tag` as it stands at `now`; it stays
+/// marked acknowledged until its state changes.
+pub fn ack_in(
+    store: &Store,
+    tag: &str,
+    kind: FlagKind,
+    by: &str,
+    note: &str,
+    now: DateTime<Utc>,
+) -> Result<AckResult, AppError> {
+    let by = need_name("an acknowledgement", by)?;
+    let now = now.trunc_subsecs(0);
+    let status = unit_status_in(store, tag, Some(now))?;
+    let Some(flag) = status.health.flags.iter().find(|f| f.kind == kind) else {
+        let raised: Vec<&str> = status
+            .health
+            .flags
+            .iter()
+            .map(|f| f.kind.as_str())
+            .collect();
+        return Err(AppError::BadInput(if raised.is_empty() {
+            format!("unit {} has no flags to acknowledge", status.unit)
+        } else {
+            format!(
+                "unit {} has no `{kind}` flag; its flags are: {}",
+                status.unit,
+                raised.join(", ")
+            )
+        }));
+    };
+    store
+        .insert_ack(&Acknowledgement {
+            id: 0,
+            unit_id: status.unit_id,
+            kind: kind.as_str().to_string(),
+            state: flag.state.as_str().to_string(),
+            by,
+            note: note.trim().to_string(),
+            at: now,
+        })
+        .map_err(store_error)?;
+    let after = unit_status_in(store, tag, Some(now))?;
+    let flag = after
+        .health
+        .flags
+        .into_iter()
+        .find(|f| f.kind == kind)
+        .ok_or_else(|| {
+            AppError::Failed(format!(
+                "the `{kind}` flag of {} vanished while it was acknowledged",
+                after.unit
+            ))
+        })?;
+    Ok(AckResult {
+        unit: after.unit,
+        flag,
+    })
+}
+
+/// Work done, as recorded.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct LoggedEvent {
+    pub unit: String,
+    pub event: Event,
+    /// The fluid put in, by name.
+    pub fluid: Option<String>,
+    /// Whether the unit register's fluid in service was changed to it.
+    pub fluid_in_service_changed: bool,
+    /// The unit's planned work after the event.
+    pub work: Vec<WorkItem>,
+}
+
+/// What `log_event_in` is asked to record.
+#[derive(Clone, Debug, PartialEq)]
+pub struct EventInput {
+    pub kind: EventKind,
+    /// When it was done; now when `None`.
+    pub at: Option<DateTime<Utc>>,
+    pub volume: Option<Volume>,
+    /// Fluid name (fluid change, top-up); the unit's fluid in service when `None`.
+    pub fluid: Option<String>,
+    pub by: String,
+    pub note: String,
+}
+
+/// Records work done on unit `tag` (a fluid change, filter change, top-up, ...), which restarts
+/// the clock of the work it answers. A fluid change to another fluid also changes the fluid in
+/// service in the unit register (kept in the edit history).
+pub fn log_event_in(
+    store: &Store,
+    tag: &str,
+    input: &EventInput,
+    now: DateTime<Utc>,
+) -> Result<LoggedEvent, AppError> {
+    let now = now.trunc_subsecs(0);
+    let zone = crate::app::shop::zone_of(store);
+    let at = input.at.unwrap_or(now);
+    if at > now + Duration::hours(1) {
+        return Err(AppError::BadInput(format!(
+            "{} is in the future; record work when it has been done",
+            zone.show_marked(at)
+        )));
+    }
+    let at = at.trunc_subsecs(0);
+    let unit: Unit = store
+        .unit_by_tag(tag)
+        .map_err(store_error)?
+        .ok_or_else(|| AppError::BadInput(format!("no unit `{}` in this shop", tag.trim())))?;
+    if let Some(v) = input.volume {
+        if v.si().is_nan() || v.si() <= 0.0 {
+            return Err(AppError::BadInput("--volume must be more than zero".into()));
+        }
+    }
+    let takes_fluid = matches!(input.kind, EventKind::FluidChange | EventKind::TopUp);
+    let fluid = match (&input.fluid, takes_fluid) {
+        (Some(name), true) => Some(store.fluid_by_name(name).map_err(store_error)?.ok_or_else(
+            || {
+                let known: Vec<String> = store
+                    .fluids()
+                    .map(|f| f.into_iter().map(|f| f.name).collect())
+                    .unwrap_or_default();
+                AppError::BadInput(format!(
+                    "no fluid `{}` in this shop; known fluids: {}",
+                    name.trim(),
+                    known.join(", ")
+                ))
+            },
+        )?),
+        (Some(_), false) => {
+            return Err(AppError::BadInput(format!(
+                "--fluid goes with fluid_change or top_up, not {}",
+                input.kind
+            )))
+        }
+        (None, true) => match unit.fluid_id {
+            Some(id) => store.fluid(id).map_err(store_error)?,
+            None => None,
+        },
+        (None, false) => None,
+    };
+    let event = Event {
+        id: 0,
+        unit_id: unit.id,
+        done_at: at,
+        kind: input.kind,
+        volume: input.volume,
+        fluid_id: fluid.as_ref().map(|f| f.id),
+        by: input.by.trim().to_string(),
+        note: input.note.trim().to_string(),
+    };
+    let id = store.insert_event(&event).map_err(|e| match e {
+        StoreError::Duplicate { .. } => AppError::BadInput(format!(
+            "a {} of {} at {} is already recorded",
+            input.kind,
+            unit.tag,
+            zone.show_exact(at)
+        )),
+        other => store_error(other),
+    })?;
+    let mut changed = false;
+    if input.kind == EventKind::FluidChange {
+        if let Some(f) = &fluid {
+            if unit.fluid_id != Some(f.id) {
+                let mut u = unit.clone();
+                u.fluid_id = Some(f.id);
+                let by = if event.by.is_empty() {
+                    "sumpbook log-event"
+                } else {
+                    event.by.as_str()
+                };
+                store
+                    .update_unit(
+                        &u,
+                        by,
+                        &format!("fluid change on {} to {}", zone.show_date(at), f.name),
+                    )
+                    .map_err(store_error)?;
+                changed = true;
+            }
+        }
+    }
+    let after = unit_status_in(store, &unit.tag, Some(now.max(at)))?;
+    Ok(LoggedEvent {
+        unit: unit.tag,
+        event: Event { id, ..event },
+        fluid: fluid.map(|f| f.name),
+        fluid_in_service_changed: changed,
+        work: after.health.work,
+    })
+}
+
+// The same actions on an open shop, as the app and the command line call them.
+
+/// The due list of `shop`; see [`due_list_in`].
+pub fn due_list(
+    shop: &super::shop::Shop,
+    at: Option<DateTime<Utc>>,
+    within_days: Option<i64>,
+) -> Result<DueList, AppError> {
+    due_list_in(shop.store(), at, within_days)
+}
+
+/// Acknowledges a flag now; see [`ack_in`].
+pub fn ack(
+    shop: &super::shop::Shop,
+    tag: &str,
+    kind: FlagKind,
+    by: &str,
+    note: &str,
+) -> Result<AckResult, AppError> {
+    ack_in(shop.store(), tag, kind, by, note, Utc::now())
+}
+
+/// Records work done; see [`log_event_in`].
+pub fn log_event(
+    shop: &super::shop::Shop,
+    tag: &str,
+    input: &EventInput,
+) -> Result<LoggedEvent, AppError> {
+    log_event_in(shop.store(), tag, input, Utc::now())
+}
