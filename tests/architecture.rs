@@ -1,6 +1,7 @@
 //! The layers, checked on the source text: SQL drivers only in `src/store`; the command line
 //! and the desktop app reach the shop only through `app`; `physics` knows no record types;
-//! every source file opens with a `//!` line. Each failure names the file and the line.
+//! every source file opens with a `//!` line and stays short enough to hold one concern. Each
+//! failure names the file and the line.
 //!
 //! The rules (DEVELOPERS.md, "Code map"):
 //! - `rusqlite` and `postgres` (and their companion crates) appear only under `src/store/`.
@@ -13,6 +14,8 @@
 //! - The integration tests' hidden accessor `Shop::store_for_tests` is called nowhere under
 //!   `src/`.
 //! - `src/physics/` does not name `model`: it computes on numbers and SI newtypes only.
+//! - No source file under `src/` is longer than 800 lines (a data table may be listed as an
+//!   exception, with the reason).
 //!
 //! The source is read with comments, strings and character literals blanked, and every path
 //! rooted at `crate`, `super` or `self` (in `use` trees too) is resolved to the module it
@@ -477,6 +480,27 @@ fn opening_line(rel: &str, text: &str) -> Vec<String> {
     }
 }
 
+/// The most lines a source file under `src/` holds: past it a file holds more than one concern,
+/// or one that wants a folder of its own whose file names say what each part owns.
+const MAX_LINES: usize = 800;
+
+/// Files allowed past [`MAX_LINES`], each with the reason: only data tables that read best
+/// whole, and generated code. None is needed today (the generated slint code is written under
+/// the build's target folder, not `src/`).
+const LONG_FILES_ALLOWED: &[(&str, &str)] = &[];
+
+fn file_length(rel: &str, text: &str) -> Vec<String> {
+    let lines = text.lines().count();
+    if lines <= MAX_LINES || LONG_FILES_ALLOWED.iter().any(|(f, _)| *f == rel) {
+        return Vec::new();
+    }
+    vec![format!(
+        "{rel}:{}: {lines} lines, past {MAX_LINES}; split it along its concerns into a folder \
+         (or, for a data table, list it in LONG_FILES_ALLOWED with the reason)",
+        MAX_LINES + 1
+    )]
+}
+
 fn check_all(rule: fn(&str, &str) -> Vec<String>) {
     let bad: Vec<String> = sources()
         .iter()
@@ -503,6 +527,21 @@ fn command_line_and_app_go_through_app() {
 #[test]
 fn the_tests_store_handle_stays_in_the_tests() {
     check_all(test_handle_in_sources);
+}
+
+#[test]
+fn no_source_file_is_longer_than_its_concern() {
+    check_all(file_length);
+    // Every allowed file is still there and still long: a stale entry would let a new file by
+    // that name grow unchecked.
+    let sources = sources();
+    for (file, why) in LONG_FILES_ALLOWED {
+        let text = sources.iter().find(|(rel, _)| rel == file).map(|(_, t)| t);
+        assert!(
+            text.is_some_and(|t| t.lines().count() > MAX_LINES),
+            "{file} is allowed past {MAX_LINES} lines ({why}) but is gone or shorter now; remove it from LONG_FILES_ALLOWED"
+        );
+    }
 }
 
 #[test]
@@ -567,6 +606,14 @@ fn the_checks_catch_what_they_are_for() {
 
     let phys = "//! x\nuse crate::units::Flow;\nfn f(c: &super::super::model::Check) {}\n";
     assert_eq!(physics_violations("src/physics/stats.rs", phys).len(), 1);
+    let long = "//! x\n".repeat(MAX_LINES + 1);
+    let found = file_length("src/app/x.rs", &long);
+    assert_eq!(found.len(), 1, "{found:#?}");
+    assert!(
+        found[0].starts_with("src/app/x.rs:801: 801 lines"),
+        "{found:#?}"
+    );
+    assert!(file_length("src/app/x.rs", &"//! x\n".repeat(MAX_LINES)).is_empty());
     assert!(opening_line("src/x.rs", "use std::io;\n").len() == 1);
     assert!(opening_line("src/x.rs", "//! x\n").is_empty());
 }
