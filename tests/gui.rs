@@ -31,10 +31,15 @@ fn demo_now() -> Option<chrono::DateTime<chrono::Utc>> {
 }
 
 fn open_demo() -> Fixture {
+    open_demo_set(|_| {})
+}
+
+/// [`open_demo`] with `set` done to the shop before the app opens it.
+fn open_demo_set(set: impl FnOnce(&Shop)) -> Fixture {
     i_slint_backend_testing::init_no_event_loop();
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("shop.sqlite");
-    Shop::create_demo(&path).unwrap();
+    set(&Shop::create_demo(&path).unwrap());
     let app = App::open_at(&path, demo_now()).unwrap();
     // Tall enough that every list row of the demo is laid out (lists create visible rows only).
     app.window()
@@ -1510,24 +1515,11 @@ fn the_unit_page_says_what_the_lost_flow_costs() {
 
 /// A demo shop whose clock is New York's, opened at [`demo_now`].
 fn open_demo_in_new_york() -> Fixture {
-    i_slint_backend_testing::init_no_event_loop();
-    let dir = tempfile::tempdir().unwrap();
-    let path = dir.path().join("shop.sqlite");
-    let s = Shop::create_demo(&path).unwrap();
-    let mut settings = sumpbook::app::entry::shop_settings(&s).unwrap();
-    settings.time_zone = "America/New_York".into();
-    sumpbook::app::entry::save_settings(&s, &settings, "T. Tester", "the shop's clock").unwrap();
-    drop(s);
-    let app = App::open_at(&path, demo_now()).unwrap();
-    app.window()
-        .window()
-        .set_size(slint::LogicalSize::new(1280.0, 1400.0));
-    app.window().show().unwrap();
-    Fixture {
-        _dir: dir,
-        path,
-        app,
-    }
+    open_demo_set(|s| {
+        let mut settings = sumpbook::app::entry::shop_settings(s).unwrap();
+        settings.time_zone = "America/New_York".into();
+        sumpbook::app::entry::save_settings(s, &settings, "T. Tester", "the shop's clock").unwrap();
+    })
 }
 
 #[test]
@@ -1835,4 +1827,105 @@ fn setup_shows_words_not_codes_and_names_a_new_record_once_saved() {
         .filter(|l| looks_coded(l))
         .collect();
     assert!(coded.is_empty(), "codes in limit labels: {coded:?}");
+}
+
+#[test]
+fn file_fields_have_the_desktops_chooser_beside_the_typed_path() {
+    use std::cell::RefCell;
+    use std::rc::Rc;
+    use sumpbook::gui::files::FileQuestion;
+    use sumpbook::gui::ui::{ImportAdapter, SampleAdapter};
+    let f = open_demo();
+    f.app.run_jobs_inline();
+    f.app.set_output_folder(f._dir.path());
+    // A stand-in for the desktop's dialog: records each question, gives the next answer.
+    let asked: Rc<RefCell<Vec<FileQuestion>>> = Rc::default();
+    let answers: Rc<RefCell<Vec<Option<PathBuf>>>> = Rc::default();
+    {
+        let (asked, answers) = (asked.clone(), answers.clone());
+        f.app.set_file_chooser(move |q| {
+            asked.borrow_mut().push(q.clone());
+            answers.borrow_mut().remove(0)
+        });
+    }
+    let lab = f._dir.path().join("lab.csv");
+    std::fs::write(
+        &lab,
+        "Sample Date,Equipment ID,Visc @ 40C (cSt),Water (ppm),Tech\n11/20/2026,PR-01-M,45.8,85,JR\n",
+    )
+    .unwrap();
+
+    // Import: the chosen file is in the path field and previewed at once.
+    f.app.show(Screen::Import);
+    answers.borrow_mut().push(Some(lab.clone()));
+    button(&f.app, "Choose a CSV file").invoke_accessible_default_action();
+    let q = asked.borrow().last().cloned().unwrap();
+    assert!(
+        !q.save && q.extensions.contains(&"csv".to_string()),
+        "{q:?}"
+    );
+    assert_eq!(
+        field(&f.app, "CSV file path").accessible_value().unwrap(),
+        lab.display().to_string()
+    );
+    let a = f.app.window().global::<ImportAdapter>();
+    assert!(a.get_mapping_shown(), "{}", message(&f.app));
+    // A dialog cancelled changes nothing.
+    answers.borrow_mut().push(None);
+    button(&f.app, "Choose a CSV file").invoke_accessible_default_action();
+    assert_eq!(
+        field(&f.app, "CSV file path").accessible_value().unwrap(),
+        lab.display().to_string()
+    );
+    // It opened in the typed file's folder.
+    assert_eq!(asked.borrow().last().unwrap().folder, f._dir.path());
+
+    // The samples screen's lab file goes the same way to the import preview.
+    f.app.show(Screen::Samples);
+    answers.borrow_mut().push(Some(lab.clone()));
+    button(&f.app, "Choose a lab CSV file").invoke_accessible_default_action();
+    assert_eq!(
+        f.app.window().global::<SampleAdapter>().get_import_path(),
+        lab.display().to_string()
+    );
+    assert_eq!(
+        f.app.window().global::<Nav>().get_screen(),
+        sumpbook::gui::Screen::Import
+    );
+
+    // Reports: a save dialog offering the default name in the output folder; a name chosen
+    // without its ending gets .pdf.
+    f.app.show(Screen::Reports);
+    let before = field(&f.app, "Report file").accessible_value().unwrap();
+    answers
+        .borrow_mut()
+        .push(Some(f._dir.path().join("for the supervisor")));
+    button(&f.app, "Choose where to save the report").invoke_accessible_default_action();
+    let q = asked.borrow().last().cloned().unwrap();
+    assert!(q.save && q.extensions == ["pdf"], "{q:?}");
+    assert_eq!(
+        q.name.as_deref(),
+        Path::new(before.as_str())
+            .file_name()
+            .and_then(|n| n.to_str())
+    );
+    assert_eq!(
+        Some(q.folder.as_path()),
+        Path::new(before.as_str()).parent()
+    );
+    assert_eq!(
+        field(&f.app, "Report file").accessible_value().unwrap(),
+        f._dir
+            .path()
+            .join("for the supervisor.pdf")
+            .display()
+            .to_string()
+    );
+    // The typed path is still the other way in.
+    let typed = f._dir.path().join("typed.pdf");
+    field(&f.app, "Report file").set_accessible_value(typed.to_str().unwrap());
+    assert_eq!(
+        field(&f.app, "Report file").accessible_value().unwrap(),
+        typed.display().to_string()
+    );
 }

@@ -210,6 +210,15 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
         let path = w.global::<ImportAdapter>().get_path().to_string();
         preview(ctx, PathBuf::from(path.trim()));
     }));
+    a.on_choose_file(on(ctx, |ctx| {
+        let Some(w) = ctx.win() else { return };
+        let typed = w.global::<ImportAdapter>().get_path().to_string();
+        let folder = super::files::folder_of(&typed, super::reports::default_folder(ctx));
+        let q = super::files::FileQuestion::open_csv("Choose a CSV file to import", folder);
+        if let Some(path) = super::choose_file(ctx, &q) {
+            preview_now(ctx, &path);
+        }
+    }));
     a.on_start(on(ctx, start));
     {
         a.on_map_set(on_arg2(ctx, |ctx, row, choice| {
@@ -235,7 +244,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<ImportAdapter>();
     if !a.get_running() && a.get_kind().is_empty() {
-        a.set_summary(s("Type the path of a CSV file and press Preview."));
+        a.set_summary(s("Choose a CSV file, or type its path and press Preview."));
     }
 }
 
@@ -426,7 +435,7 @@ fn preview_with(ctx: &Rc<Ctx>, path: PathBuf, columns: Columns) {
     let a = w.global::<ImportAdapter>();
     clear(&a);
     if path.as_os_str().is_empty() {
-        a.set_message(s("Type the path of a CSV file first."));
+        a.set_message(s("Choose a CSV file, or type its path, first."));
         a.set_message_level(2);
         return;
     }

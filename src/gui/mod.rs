@@ -20,6 +20,7 @@ use crate::app::AppError;
 use crate::units::UnitSystem;
 
 pub mod charts;
+pub mod files;
 pub mod fmt;
 
 mod about;
@@ -74,6 +75,8 @@ pub(crate) struct Ctx {
     pub clock: Option<DateTime<Utc>>,
     /// The shop's change mark when this window last looked (`entry::shop_changed`).
     pub saves_seen: RefCell<Option<(i64, u64)>>,
+    /// Asks for a file to read or write: the desktop's dialog, or a test's stand-in.
+    pub chooser: RefCell<files::Chooser>,
 }
 
 pub(crate) type FleetCache = (DateTime<Utc>, (i64, u64), Rc<FleetStatus>);
@@ -186,6 +189,7 @@ impl App {
             loaded: Cell::new(false),
             clock,
             saves_seen: RefCell::new(None),
+            chooser: RefCell::new(Rc::new(files::native)),
         });
         // What this window shows is as of now: only later saves make it look again.
         let _ = entry::shop_changed(&ctx.shop, &mut ctx.saves_seen.borrow_mut());
@@ -242,6 +246,15 @@ impl App {
     /// Puts `opener` in place of the desktop's file opener (tests record what was opened).
     pub fn set_file_opener(&self, opener: impl Fn(&Path) -> Result<(), String> + 'static) {
         self.ctx.report.borrow_mut().opener = Rc::new(opener);
+    }
+
+    /// Puts `chooser` in place of the desktop's file dialogs (tests answer with a path, or
+    /// `None` for a dialog cancelled).
+    pub fn set_file_chooser(
+        &self,
+        chooser: impl Fn(&files::FileQuestion) -> Option<PathBuf> + 'static,
+    ) {
+        *self.ctx.chooser.borrow_mut() = Rc::new(chooser);
     }
 
     /// Puts `folder` in place of the documents folder printed files go to by default.
@@ -397,6 +410,14 @@ fn refresh_nav(ctx: &Rc<Ctx>) {
             );
         }
     }
+}
+
+/// Asks for a file with the window's chooser; `None` when cancelled.
+pub(crate) fn choose_file(ctx: &Rc<Ctx>, q: &files::FileQuestion) -> Option<PathBuf> {
+    // The chooser is taken out first: a dialog runs its own event loop, in which a callback
+    // may look at the context again.
+    let chooser = ctx.chooser.borrow().clone();
+    chooser(q)
 }
 
 /// The walk-round order, from the current fleet evaluation.
