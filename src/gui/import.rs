@@ -213,9 +213,7 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
     a.on_choose_file(on(ctx, |ctx| {
         let Some(w) = ctx.win() else { return };
         let typed = w.global::<ImportAdapter>().get_path().to_string();
-        let folder = super::files::folder_of(&typed, super::reports::default_folder(ctx));
-        let q = super::files::FileQuestion::open_csv("Choose a CSV file to import", folder);
-        if let Some(path) = super::choose_file(ctx, &q) {
+        if let Some(path) = super::choose_csv(ctx, &typed, "Choose a CSV file to import") {
             preview_now(ctx, &path);
         }
     }));

@@ -420,6 +420,12 @@ pub(crate) fn choose_file(ctx: &Rc<Ctx>, q: &files::FileQuestion) -> Option<Path
     chooser(q)
 }
 
+/// Asks for a CSV file to read, the dialog opening in the folder of the path `typed` so far.
+pub(crate) fn choose_csv(ctx: &Rc<Ctx>, typed: &str, title: &str) -> Option<PathBuf> {
+    let folder = files::folder_of(typed, reports::default_folder(ctx));
+    choose_file(ctx, &files::FileQuestion::open_csv(title, folder))
+}
+
 /// The walk-round order, from the current fleet evaluation.
 pub(crate) fn route(ctx: &Rc<Ctx>) -> Result<Vec<entry::RouteStop>, AppError> {
     fleet::current(ctx).map(|f| entry::route_from(&f))

@@ -54,9 +54,7 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
     a.on_choose_import_file(on(ctx, |ctx| {
         let Some(w) = ctx.win() else { return };
         let typed = w.global::<SampleAdapter>().get_import_path().to_string();
-        let folder = super::files::folder_of(&typed, super::reports::default_folder(ctx));
-        let q = super::files::FileQuestion::open_csv("Choose the lab's CSV file", folder);
-        if let Some(path) = super::choose_file(ctx, &q) {
+        if let Some(path) = super::choose_csv(ctx, &typed, "Choose the lab's CSV file") {
             let a = w.global::<SampleAdapter>();
             a.set_import_path(s(path.display().to_string()));
             a.invoke_import_file();
