@@ -3,7 +3,7 @@
 # renderer on a fresh demo shop. Usage: scripts/screenshots.sh [OUT_DIR] (default: screenshots/)
 #
 # The app steps through its screens itself when SUMPBOOK_SCREENSHOTS names a folder (see
-# src/gui/mod.rs) and saves each window snapshot as PPM; ImageMagick turns them into PNG.
+# src/gui/screenshots.rs) and saves each window snapshot as PPM; ImageMagick turns them into PNG.
 set -euo pipefail
 
 here="$(cd "$(dirname "$0")/.." && pwd)"

@@ -8,17 +8,21 @@
 //! - `physics`: pure fluid-power, viscosity, cleanliness, oil-life and trend functions, with the
 //!   timed stroke and the sensitive component they compute on.
 //! - `health`: the rules — baselines, indicators, flags, limits, work planning, screening.
-//! - `store`: the shop database (SQLite file or PostgreSQL server); the only place with SQL.
-//! - `exchange`: CSV in (`csv_in/`) and out, the demo shop (`demo/`), the large benchmark shop.
-//! - `report`: the PDF's page engine (`layout/`), charts and pages.
+//! - `store`: the shop database (SQLite file or PostgreSQL server); the only place with SQL
+//!   (`open`, `migrate`, `lock_wait`, `backup`, `transactions`, one file per table family).
+//! - `exchange`: CSV in (`csv_in/`) and out, the column mapping of others' files (`mapping/`),
+//!   the demo shop (`demo/`), the large benchmark shop.
+//! - `report`: the PDF's page engine (`layout/`), charts (`charts/`) and pages.
 //! - `random`: the one fixed random stream of the demo, the large shop and the simulation.
 //! - `outfile`: output files written whole beside a user's path, never through a link.
 //! - `sim`: the detection benchmark's simulated shop and its scoring (pure).
 //! - `app`: one function per user action, the only door of the faces (`entry/` the form rules,
-//!   `import` the one import path, `report/` the printed report, `view/` the presentation
-//!   layer every face builds its output from, `vocab` the result types).
+//!   `import` the one import path, `work/` due list, acks, limits and baselines, `report/` the
+//!   printed report, `view/` the presentation layer every face builds its output from, `vocab`
+//!   the result types).
 //! - `cli`: the command line (`status/` one file per command).
-//! - `gui`: the desktop app's screen adapters (`unit/` the unit page).
+//! - `gui`: the desktop app's screen adapters (`unit/` the unit page, `screenshots` the
+//!   screenshot run).
 //!
 //! The path of one CSV row: `cli::data` → `Shop::import` (`app::import`) → `exchange::csv_in`
 //! (header, cells into SI with bounds, records) → `store::bulk` in one transaction.

@@ -597,8 +597,8 @@ fn the_checks_catch_what_they_are_for() {
         ],
         "{found:#?}"
     );
-    assert_eq!(test_handle_in_sources("src/app/work.rs", handles).len(), 1);
-    assert!(test_handle_in_sources("src/app/work.rs", bad).is_empty());
+    assert_eq!(test_handle_in_sources("src/app/work/mod.rs", handles).len(), 1);
+    assert!(test_handle_in_sources("src/app/work/mod.rs", bad).is_empty());
 
     let sql = "//! x\nuse rusqlite::Connection;\n// rusqlite in a comment\nfn f() { let _ = \"postgres://\"; }\n";
     assert_eq!(db_driver_uses("src/app/x.rs", sql).len(), 1);
