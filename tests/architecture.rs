@@ -554,18 +554,22 @@ fn every_source_file_says_what_it_owns() {
     check_all(opening_line);
 }
 
+/// The `file:line` each violation names.
+fn places(found: &[String]) -> Vec<&str> {
+    found
+        .iter()
+        .map(|m| m.split(": ").next().unwrap_or(""))
+        .collect()
+}
+
 /// The checks themselves catch what they are for (and let pass what they should), on small
 /// invented files.
 #[test]
 fn the_checks_catch_what_they_are_for() {
     let bad = "//! x\nuse crate::app::shop::Shop;\nuse crate::{model::Unit, store::{Store, columns}};\nfn f(s: &Shop) {\n    let n = super::super::super::health::State::Act; // crate::store in a comment\n    let t = \"crate::exchange in a string\";\n    s.store();\n}\n";
     let found = face_violations("src/gui/unit/tiles.rs", bad);
-    let lines: Vec<&str> = found
-        .iter()
-        .map(|m| m.split(": ").next().unwrap_or(""))
-        .collect();
     assert_eq!(
-        lines,
+        places(&found),
         [
             "src/gui/unit/tiles.rs:3",
             "src/gui/unit/tiles.rs:3",
@@ -584,12 +588,8 @@ fn the_checks_catch_what_they_are_for() {
     // Every way of writing a call of the handle, and what only looks like one.
     let handles = "//! x\nfn f(s: &Shop) {\n    s . store_mut ();\n    Shop::store(s);\n    s\n        .store_for_tests();\n    s.store_name(); restore(s); s.store;\n    let t = \"s.store()\";\n}\n";
     let found = face_violations("src/cli/status/mod.rs", handles);
-    let lines: Vec<&str> = found
-        .iter()
-        .map(|m| m.split(": ").next().unwrap_or(""))
-        .collect();
     assert_eq!(
-        lines,
+        places(&found),
         [
             "src/cli/status/mod.rs:3",
             "src/cli/status/mod.rs:4",
@@ -597,7 +597,10 @@ fn the_checks_catch_what_they_are_for() {
         ],
         "{found:#?}"
     );
-    assert_eq!(test_handle_in_sources("src/app/work/mod.rs", handles).len(), 1);
+    assert_eq!(
+        test_handle_in_sources("src/app/work/mod.rs", handles).len(),
+        1
+    );
     assert!(test_handle_in_sources("src/app/work/mod.rs", bad).is_empty());
 
     let sql = "//! x\nuse rusqlite::Connection;\n// rusqlite in a comment\nfn f() { let _ = \"postgres://\"; }\n";
