@@ -241,6 +241,7 @@ fn layout_doc(paper: Paper, name: &str, flags: usize) -> ReportDoc {
             mark: Some(Mark::Watch),
         }],
         remarks: Vec::new(),
+        corrections: Vec::new(),
     };
     let short = UnitSection {
         tag: "LX-02".into(),
@@ -1058,4 +1059,111 @@ fn the_route_sheet_lists_the_round_in_form_order_with_last_values_and_limits() {
     );
     assert!(text.contains("penetrate skin"), "{text}");
     assert!(text.contains("Technician"), "{text}");
+}
+
+/// A reading corrected after entry is marked beside every figure that rests on it, and the
+/// unit page lists the period's corrections with old → new, who, when and why; a deletion and
+/// its restore are listed too. Read back with pdftotext (an outside reader).
+#[test]
+fn figures_that_rest_on_a_corrected_reading_are_marked_and_the_corrections_listed() {
+    use sumpbook::app::entry::{self, Entered, Reading};
+    use sumpbook::app::report::{write_report, ReportOptions};
+    use sumpbook::app::shop::Shop;
+    let dir = tempfile::tempdir().unwrap();
+    let shop = Shop::create_demo(&dir.path().join("demo.sqlite")).unwrap();
+    let store = shop.store_for_tests();
+    let unit = store.unit_by_tag("PB-03-A").unwrap().unwrap();
+    let checks = store.checks_for_unit(unit.id, None).unwrap();
+    let (latest, older) = (&checks[checks.len() - 1], &checks[checks.len() - 2]);
+    // The latest check's pressure re-read from the gauge photo; an older one deleted and put back.
+    let fields = entry::reading_fields(&shop, Reading::Check, latest.id).unwrap();
+    let mut entered = Entered::from_fields(&fields);
+    entered.set("note", "gauge photo re-read");
+    entry::edit_reading(
+        &shop,
+        Reading::Check,
+        latest.id,
+        &entered,
+        "R. Quennell",
+        "typo in the note",
+    )
+    .unwrap();
+    entry::delete_reading(&shop, Reading::Check, older.id, "AK", "typed twice").unwrap();
+    let deletion = sumpbook::app::edit_trail::unit_edits(&shop, "PB-03-A")
+        .unwrap()
+        .edits
+        .last()
+        .unwrap()
+        .edit_id;
+    sumpbook::app::edit_trail::restore_reading(
+        &shop,
+        "PB-03-A",
+        deletion,
+        "R. Engineer",
+        "not a twin",
+    )
+    .unwrap();
+
+    // One of the checks the unit's baseline was computed from (its era's first twelve, from
+    // 2024-11-29), corrected long before the period: marked on the baseline, not listed.
+    let early = checks
+        .iter()
+        .find(|c| c.taken_at.date_naive() >= NaiveDate::from_ymd_opt(2024, 12, 1).unwrap())
+        .unwrap();
+    let fields = entry::reading_fields(&shop, Reading::Check, early.id).unwrap();
+    let mut entered = Entered::from_fields(&fields);
+    entered.set("note", "re-read");
+    entry::edit_reading(
+        &shop,
+        Reading::Check,
+        early.id,
+        &entered,
+        "JT",
+        "baseline check re-read",
+    )
+    .unwrap();
+
+    let out = dir.path().join("corrected.pdf");
+    let opts = ReportOptions {
+        out: out.clone(),
+        units: vec!["PB-03-A".into(), "DP-08-C".into()],
+        from: None,
+        to: Some(sumpbook::exchange::demo::end_date()),
+        paper: Paper::Letter,
+        prepared_by: String::new(),
+        replace: false,
+    };
+    let s = write_report(&shop, &opts, &mut |_, _| true).unwrap();
+    if let Some(keep) = std::env::var_os("SUMPBOOK_KEEP_PDF") {
+        std::fs::copy(&out, keep).unwrap();
+    }
+    assert!(s.completed);
+    let text = squeeze(&pdf_text(&out));
+    let (at_pb, at_dp) = (
+        text.find("PB-03-A · ").unwrap(),
+        text.find("DP-08-C · ").unwrap(),
+    );
+    assert!(at_pb < at_dp, "the order asked");
+    let (pb, dp) = (&text[at_pb..at_dp], &text[at_dp..]);
+    assert!(pb.contains("Corrections in the period"), "{pb}");
+    assert!(pb.contains("(check corrected)"), "{pb}");
+    assert!(pb.contains("1 of its checks corrected"), "{pb}");
+    assert!(!pb.contains("baseline check re-read"), "{pb}");
+    assert!(pb.contains("note: — → gauge photo re-read"), "{pb}");
+    assert!(
+        pb.contains("R. Quennell") && pb.contains("typo in the note"),
+        "{pb}"
+    );
+    assert!(
+        pb.contains("(deleted)") && pb.contains("typed twice"),
+        "{pb}"
+    );
+    assert!(
+        pb.contains("(put back)") && pb.contains("not a twin"),
+        "{pb}"
+    );
+    // The other unit had nothing corrected: no list, no mark.
+    assert!(!dp.contains("Corrections in the period"), "{dp}");
+    assert!(!dp.contains("corrected"), "{dp}");
+    assert_nothing_overflows_or_overlaps(&out);
 }

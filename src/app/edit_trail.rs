@@ -48,6 +48,9 @@ pub struct Edit {
     pub record_id: Id,
     /// The record in words: `check of 2026-12-01 08:00 EST`.
     pub record_text: String,
+    /// When the reading was taken (or the work done), as it stood before the edit; `None` for
+    /// the unit's register entry.
+    pub record_at: Option<DateTime<Utc>>,
     pub action: EditAction,
     /// Every field that differs (a deletion or a restore lists the fields the record held).
     pub changes: Vec<FieldChange>,
@@ -65,6 +68,19 @@ pub struct UnitEdits {
 }
 
 impl UnitEdits {
+    /// The edits of the unit's readings and work records (checks, samples, events: changes,
+    /// deletions and restores) that were made from `from` up to `to`, or that touch a reading
+    /// taken then (a later correction of a reading of the period changes the period's figures
+    /// too), oldest first.
+    pub fn of_readings_between(&self, from: DateTime<Utc>, to: DateTime<Utc>) -> Vec<&Edit> {
+        let within = |t: DateTime<Utc>| t >= from && t <= to;
+        self.edits
+            .iter()
+            .filter(|e| table_of(&e.record).is_some())
+            .filter(|e| within(e.at) || e.record_at.is_some_and(within))
+            .collect()
+    }
+
     /// The ids of the readings of `record` (`check`, `sample`, `event`) that were corrected and
     /// are still stored, so a table can mark them.
     pub fn corrected(&self, record: &str) -> Vec<Id> {
@@ -117,11 +133,22 @@ pub fn unit_edits_in(store: &Store, tag: &str) -> Result<UnitEdits, AppError> {
         .unit_by_tag(tag)
         .map_err(store_error)?
         .ok_or_else(|| AppError::BadInput(format!("no unit `{tag}` in this shop")))?;
-    let zone = zone_of(store);
     let log = store.edit_log().map_err(store_error)?;
+    unit_edits_from(store, &log, unit.id, &unit.tag)
+}
+
+/// The trail of unit `unit_id` (tagged `tag`) from the whole edit history `log`, read once by
+/// a caller that needs the trails of many units (the report).
+pub fn unit_edits_from(
+    store: &Store,
+    log: &[EditRecord],
+    unit_id: Id,
+    tag: &str,
+) -> Result<UnitEdits, AppError> {
+    let zone = zone_of(store);
     let mut edits: Vec<Edit> = log
         .iter()
-        .filter_map(|r| edit_of_unit(r, unit.id, zone))
+        .filter_map(|r| edit_of_unit(r, unit_id, zone))
         .collect();
     for i in 0..edits.len() {
         let e = &edits[i];
@@ -138,7 +165,7 @@ pub fn unit_edits_in(store: &Store, tag: &str) -> Result<UnitEdits, AppError> {
         edits[i].restorable = free;
     }
     Ok(UnitEdits {
-        unit: unit.tag,
+        unit: tag.to_string(),
         time_zone: zone.name().to_string(),
         edits,
     })
@@ -273,6 +300,7 @@ fn edit_of_unit(r: &EditRecord, unit_id: Id, zone: Zone) -> Option<Edit> {
         record: record.to_string(),
         record_id: r.row_id,
         record_text,
+        record_at: when,
         action,
         changes,
         restorable: false,

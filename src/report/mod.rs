@@ -120,6 +120,19 @@ pub struct IndicatorRow {
     pub change: String,
 }
 
+/// A correction, deletion or restore of one of a unit's readings, made in the report's period.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Correction {
+    /// When it was made, in the shop's time.
+    pub when: String,
+    /// The reading and what was done to it, e.g. "check of 2026-12-01 08:00 EST (changed)".
+    pub record: String,
+    /// Each field old → new (a deletion or restore: what the reading held).
+    pub changes: String,
+    pub by: String,
+    pub why: String,
+}
+
 /// Everything on one unit's page.
 #[derive(Clone, Debug, PartialEq)]
 pub struct UnitSection {
@@ -142,6 +155,8 @@ pub struct UnitSection {
     /// Lines under the summary: what cannot be judged yet and when it will be, and the
     /// readings the screening questioned (confirmed or not).
     pub remarks: Vec<String>,
+    /// The corrections of the unit's readings made in the period, oldest first.
+    pub corrections: Vec<Correction>,
 }
 
 /// The whole report, every figure already formatted for print.

@@ -1,5 +1,6 @@
 //! One unit's part of the report: identity, fluid, era and baseline; the indicator table;
-//! the vector charts; flags with their acknowledgements; work due; sign-off lines.
+//! the vector charts; flags with their acknowledgements; the period's corrections of its
+//! readings; work due; sign-off lines.
 //! The charts take the room the page has left, within limits, so that a usual unit fits on
 //! one page of either paper size; a long name or many flags continue on further pages.
 //! Draws what the application layer put in the [`UnitSection`]; decides nothing.
@@ -7,7 +8,7 @@
 use super::charts;
 use super::fleet_page::{findings_table, work_table, TableSpec};
 use super::layout::{size, Cell, Face, Layout, DARK};
-use super::UnitSection;
+use super::{Correction, UnitSection};
 
 /// Chart heights in points: what they shrink to before the page is let to run over, and
 /// what they grow to at most.
@@ -107,12 +108,15 @@ pub fn draw(l: &mut Layout, u: &UnitSection) {
 
     let flags = (!u.flags.is_empty()).then(|| findings_table(&u.flags, false));
     let work = (!u.work.is_empty()).then(|| work_table(&u.work, false));
+    let corrections = (!u.corrections.is_empty()).then(|| corrections_table(&u.corrections));
 
     if !u.charts.is_empty() {
         let heading = "Over the period";
         let chart_rows = u.charts.len().div_ceil(2);
         // What must follow the charts on this page, so the charts can take the rest.
-        let after = l.heading_height(heading) + 3.0 + rest_height(l, flags.as_ref(), work.as_ref());
+        let after = l.heading_height(heading)
+            + 3.0
+            + rest_height(l, flags.as_ref(), corrections.as_ref(), work.as_ref());
         let room = (l.remaining() - after - FIT_SLACK) / chart_rows as f32 - CHART_ROW_GAP;
         // When the rest will not fit on this page anyway, the charts keep a readable size.
         let chart_h = if room < CHART_MIN_H {
@@ -142,7 +146,34 @@ pub fn draw(l: &mut Layout, u: &UnitSection) {
     }
     l.gap(5.0);
 
+    if let Some((f, h, r)) = &corrections {
+        l.heading(CORRECTIONS, 24.0);
+        l.table(f, h, r, size::SMALL);
+        l.gap(5.0);
+    }
+
     tail(l, work.as_ref());
+}
+
+const CORRECTIONS: &str = "Corrections in the period";
+
+/// The period's corrections of the unit's readings: when, which reading, each field old → new,
+/// who and why.
+fn corrections_table(corrections: &[Correction]) -> TableSpec {
+    let header = ["When", "Reading", "Old → new", "By", "Why"].map(Cell::bold);
+    let rows = corrections
+        .iter()
+        .map(|c| {
+            vec![
+                Cell::plain(c.when.clone()),
+                Cell::plain(c.record.clone()),
+                Cell::plain(c.changes.clone()),
+                Cell::plain(c.by.clone()),
+                Cell::plain(c.why.clone()),
+            ]
+        })
+        .collect();
+    (vec![1.2, 1.7, 3.3, 0.9, 1.9], header.to_vec(), rows)
 }
 
 /// Work due and the sign-off lines: side by side when they fit the page together, else one
@@ -197,11 +228,23 @@ fn tail_side_by_side_height(l: &mut Layout, work: Option<&TableSpec>) -> f32 {
     w.max(s)
 }
 
-/// Height of everything after the charts: flags, then work due beside the sign-off lines.
-fn rest_height(l: &mut Layout, flags: Option<&TableSpec>, work: Option<&TableSpec>) -> f32 {
+/// Height of everything after the charts: flags, the period's corrections, then work due
+/// beside the sign-off lines.
+fn rest_height(
+    l: &mut Layout,
+    flags: Option<&TableSpec>,
+    corrections: Option<&TableSpec>,
+    work: Option<&TableSpec>,
+) -> f32 {
     let flags_h = match flags {
         Some((f, h, r)) => l.table_height(f, h, r, size::SMALL),
         None => l.paragraph_height(Face::Regular, size::BODY, 0.0, NO_FLAGS),
     };
-    l.heading_height("Flags") + flags_h + 5.0 + tail_side_by_side_height(l, work)
+    let corrections_h = match corrections {
+        Some((f, h, r)) => {
+            l.heading_height(CORRECTIONS) + l.table_height(f, h, r, size::SMALL) + 5.0
+        }
+        None => 0.0,
+    };
+    l.heading_height("Flags") + flags_h + 5.0 + corrections_h + tail_side_by_side_height(l, work)
 }

@@ -1,5 +1,5 @@
 //! The report's indicator table of one unit: `app::view`'s tiles with the change over the
-//! report's period and the questioned marks. It must not read the shop, evaluate, or word a
+//! report's period and the questioned and corrected marks. It must not read the shop, evaluate, or word a
 //! value, baseline or limit of its own.
 
 use super::*;
@@ -15,6 +15,7 @@ use crate::units::UnitSystem;
 
 pub(super) fn indicator_rows(
     u: &UnitStatus,
+    edits: &crate::app::edit_trail::UnitEdits,
     (from, to): (NaiveDate, NaiveDate),
     sys: UnitSystem,
     zone: Zone,
@@ -32,6 +33,9 @@ pub(super) fn indicator_rows(
             };
             if let Some(q) = questioned_mark(u, &t.key) {
                 latest.push_str(&format!(" ({q})"));
+            }
+            if let Some(c) = corrected_mark(u, edits, &t.key) {
+                latest.push_str(&format!(" ({c})"));
             }
             let points: Vec<(DateTime<Utc>, f64)> = u
                 .health

@@ -10,6 +10,7 @@
 //! a file, and an existing file is replaced only when asked.
 
 mod chart_specs;
+mod corrections;
 mod fleet_rows;
 mod indicator_rows;
 mod questioned;
@@ -19,6 +20,7 @@ mod unit_section;
 mod words;
 
 use chart_specs::*;
+use corrections::*;
 use fleet_rows::*;
 use indicator_rows::*;
 use questioned::*;
@@ -263,6 +265,8 @@ pub fn build_report(
     }
 
     let machines = store.machines().map_err(store_error)?;
+    // The edit history, read once for every unit's corrections.
+    let log = store.edit_log().map_err(store_error)?;
     let registers = store.units().map_err(store_error)?;
     let mut units = Vec::new();
     for u in &chosen {
@@ -273,11 +277,13 @@ pub fn build_report(
             .map_err(store_error)?
             .map(|h| h.events)
             .unwrap_or_default();
+        let edits = super::edit_trail::unit_edits_from(store, &log, u.unit_id, &u.unit)?;
         units.push(unit_section(
             u,
             unit,
             machine,
             &events,
+            &edits,
             (from, to),
             sys,
             zone,
@@ -334,7 +340,11 @@ pub fn build_report(
              least-squares slope over the last 12 points, ↑ rising or ↓ falling where it is significant \
              (|t| ≥ 2), → no clear trend. On the unit pages, change is the last value in the period minus the first; \
              cost of waiting is the heat the lost flow makes at working pressure (lost flow × pressure), and its \
-             cost a year at the unit's run hours and the shop's price per kWh.",
+             cost a year at the unit's run hours and the shop's price per kWh. \
+             A figure marked \"check corrected\" (or \"sample corrected\") rests on a reading changed after it was \
+             entered, as does a baseline whose checks were; each unit page lists the corrections of its readings made in the period or made since to \
+             a reading of the period, field by field as stored (the column name gives the unit), with who, \
+             when and why.",
             zone.name(),
             match sys {
                 UnitSystem::Metric => "metric",

@@ -120,11 +120,13 @@ fn baseline_text(u: &UnitStatus, sys: UnitSystem, zone: Zone) -> String {
     format!("{}; {}", values.join(", "), sources.join("; "))
 }
 
+#[allow(clippy::too_many_arguments)]
 pub(super) fn unit_section(
     u: &UnitStatus,
     unit: Option<&Unit>,
     machine: Option<&Machine>,
     events: &[crate::model::Event],
+    edits: &crate::app::edit_trail::UnitEdits,
     (from, to): (NaiveDate, NaiveDate),
     sys: UnitSystem,
     zone: Zone,
@@ -216,8 +218,12 @@ pub(super) fn unit_section(
         summary,
         identity,
         fluid,
-        baseline: baseline_text(u, sys, zone),
-        indicators: indicator_rows(u, (from, to), sys, zone),
+        baseline: match baseline_corrected(u, edits) {
+            Some(c) => format!("{}; {c}", baseline_text(u, sys, zone)),
+            None => baseline_text(u, sys, zone),
+        },
+        indicators: indicator_rows(u, edits, (from, to), sys, zone),
+        corrections: period_corrections(edits, (from, to), zone),
         charts: charts(u, events, (from, to), sys, zone),
         remarks: u
             .health
