@@ -6,7 +6,11 @@
 #               100 k and 1 M rows; also vs the shell putting the same CSV into the shop's
 #               own checks table (import_schema*.sql), which is what the schema costs
 #   status      `sumpbook status` on 1,000 units x 520 checks + 52 samples vs one full-scan
-#               aggregate query over the same tables in the sqlite3 shell
+#               aggregate query over the same tables in the sqlite3 shell: a full evaluation
+#               (nothing kept: the kept evaluations emptied by the shell first), a status with
+#               nothing changed (every unit's evaluation kept), and one after a check added by
+#               the shell, against `status --unit` of that unit alone; peak memory of a full
+#               evaluation there and on 1,000 units x 2,000 checks + 200 samples (flat = 1.0)
 #   start-up    app start to first frame on that shop vs on an empty shop (Xvfb)
 #   report      `sumpbook report` for 10 and 100 units (linear: 10x); the demo report's size
 #   server      the large shop copied onto a PostgreSQL server (a throwaway cluster of this run):
@@ -152,26 +156,69 @@ fi
 if want status; then
     say "== fleet status: sumpbook status vs one full-scan aggregate in the sqlite3 shell (1000 units x 520 checks + 52 samples)"
     db="$OUT/large.sqlite"
+    forget() { sqlite3 "$1" "DELETE FROM kept_evaluations"; }
+    # The unit a check is added to, and its next check time (one week after its last).
+    tag=$(sqlite3 "$db" "SELECT tag FROM units ORDER BY id LIMIT 1 OFFSET 500")
     # Warm the page cache for both.
     "$BIN" --db "$db" status >/dev/null
     sqlite3 "$db" <"$ROOT/benches/fleet_scan.sql" >/dev/null
-    t_ours=() t_scan=() t_group=() t_index=() rss=() c_ours=() c_scan=()
+    t_ours=() t_scan=() t_group=() t_index=() rss=() c_ours=() c_scan=() t_kept=() t_one=() t_unit=() rss_kept=()
     for _ in $(seq "$REPS"); do
+        forget "$db"
         t_ours+=("$(timed "$OUT/status.out" "$OUT/rss" "$BIN" --db "$db" status)")
         rss+=("$(rss_of "$OUT/rss")"); c_ours+=("$(cpu_of "$OUT/rss")")
         t_scan+=("$(timed "$OUT/scan.out" "$OUT/rss2" sqlite3 "$db" ".read $ROOT/benches/fleet_scan.sql")")
         c_scan+=("$(cpu_of "$OUT/rss2")")
+        t_kept+=("$(timed "$OUT/status-kept.out" "$OUT/rss2" "$BIN" --db "$db" status)")
+        rss_kept+=("$(rss_of "$OUT/rss2")")
+        cmp -s <(tail -n +2 "$OUT/status.out") <(tail -n +2 "$OUT/status-kept.out") || { echo "the kept status differs from the evaluated one" >&2; exit 1; }
+        # One check more on one unit, written by another program (the shell), a week after its last.
+        sqlite3 "$db" "INSERT INTO checks (unit_id, taken_at, reservoir_temp_c, ambient_temp_c, pressure_bar, stroke_time_s, oil_level, filter, hours)
+            SELECT unit_id, strftime('%Y-%m-%dT%H:%M:%SZ', max(taken_at), '+7 days'), reservoir_temp_c, ambient_temp_c, pressure_bar,
+                   stroke_time_s, oil_level, filter, hours + 40
+            FROM checks WHERE unit_id = (SELECT id FROM units WHERE tag = '$tag')
+            AND taken_at = (SELECT max(taken_at) FROM checks WHERE unit_id = (SELECT id FROM units WHERE tag = '$tag'))"
+        t_one+=("$(timed "$OUT/status-one.out" "$OUT/rss2" "$BIN" --db "$db" status)")
+        t_unit+=("$(timed "$OUT/status-unit.out" "$OUT/rss2" "$BIN" --db "$db" status --unit "$tag")")
         t_group+=("$(timed "$OUT/group.out" "$OUT/rss2" sqlite3 "$db" ".read $ROOT/benches/fleet_scan_grouped.sql")")
         t_index+=("$(timed "$OUT/index.out" "$OUT/rss2" sqlite3 "$db" ".read $ROOT/benches/fleet_scan_indexed.sql")")
     done
     head -2 "$OUT/status.out" | tail -1 | sed 's/^/  sumpbook: /' | tee -a "$RESULTS"
     mo=$(median "${t_ours[@]}"); ms=$(median "${t_scan[@]}"); mg=$(median "${t_group[@]}"); mi=$(median "${t_index[@]}")
+    mk=$(median "${t_kept[@]}"); m1=$(median "${t_one[@]}"); mu=$(median "${t_unit[@]}")
     r=$(ratio "$mo" "$ms"); rg=$(ratio "$mo" "$mg")
-    say "  sumpbook status ${mo}s (peak $(awk -v k="$(median "${rss[@]}")" 'BEGIN { printf "%.0f", k / 1024 }') MiB); full-scan aggregate ${ms}s; per-unit grouped scan ${mg}s"
+    peak=$(awk -v k="$(median "${rss[@]}")" 'BEGIN { printf "%.1f", k / 1024 }')
+    say "  full evaluation (nothing kept): sumpbook status ${mo}s (peak ${peak} MiB); full-scan aggregate ${ms}s; per-unit grouped scan ${mg}s"
     say "  ratio: ${r}x the full scan (target <= 2.0: $(verdict "$r" "<=" 2.0)); ${rg}x the grouped scan"
     say "  CPU seconds: sumpbook $(median "${c_ours[@]}"), full scan $(median "${c_scan[@]}"): CPU ratio $(ratio "$(median "${c_ours[@]}")" "$(median "${c_scan[@]}")")x"
-    say "  the same aggregate over the rows in the fleet read's order (time indexes, as the index rule asks): ${mi}s = $(ratio "$mi" "$ms")x the full scan"
+    say "  the same aggregate over the rows in the time-index order: ${mi}s = $(ratio "$mi" "$ms")x the full scan"
+    rk=$(ratio "$mk" "$ms")
+    say "  nothing changed (every evaluation kept): ${mk}s (peak $(awk -v k="$(median "${rss_kept[@]}")" 'BEGIN { printf "%.1f", k / 1024 }') MiB) = ${rk}x the full scan (target <= 0.2: $(verdict "$rk" "<=" 0.2))"
+    extra=$(awk -v a="$m1" -v b="$mu" 'BEGIN { printf "%.3f", a - b }')
+    r1=$(ratio "$extra" "$ms")
+    say "  after one check added by the shell to $tag: ${m1}s; that unit alone (status --unit) ${mu}s;"
+    say "      the rest of the fleet ${extra}s = ${r1}x the full scan (target <= 0.05: $(verdict "$r1" "<=" 0.05))"
     SUMMARY+=("fleet status        ${r}x one full-scan aggregate (target <= 2.0x) $(verdict "$r" "<=" 2.0)")
+    SUMMARY+=("status, kept        ${rk}x the full scan with nothing changed (target <= 0.2x) $(verdict "$rk" "<=" 0.2)")
+    SUMMARY+=("status, one check   that unit + ${r1}x the full scan (target <= 0.05x) $(verdict "$r1" "<=" 0.05)")
+
+    # Memory of a full evaluation as histories grow: the same fleet with 2,000 checks a unit.
+    gen large2k --units 1000 --checks 2000 --samples 200
+    forget "$OUT/large2k.sqlite"
+    "$BIN" --db "$OUT/large2k.sqlite" status >/dev/null
+    m520=() m2k=()
+    for _ in 1 2; do
+        forget "$db"; timed "$OUT/status.out" "$OUT/rss" "$BIN" --db "$db" status >/dev/null
+        m520+=("$(rss_of "$OUT/rss")")
+        forget "$OUT/large2k.sqlite"; timed "$OUT/status2k.out" "$OUT/rss" "$BIN" --db "$OUT/large2k.sqlite" status >/dev/null
+        m2k+=("$(rss_of "$OUT/rss")")
+    done
+    a=$(awk -v k="$(median "${m520[@]}")" 'BEGIN { printf "%.1f", k / 1024 }')
+    b=$(awk -v k="$(median "${m2k[@]}")" 'BEGIN { printf "%.1f", k / 1024 }')
+    worst=$(awk -v a="$a" -v b="$b" 'BEGIN { print (a > b) ? a : b }')
+    flat=$(ratio "$b" "$a")
+    say "  peak memory of a full evaluation: ${a} MiB at 520 checks a unit, ${b} MiB at 2,000: ${flat}x (flat = 1.0; target <= 64 MiB: $(verdict "$worst" "<=" 64))"
+    SUMMARY+=("status memory       ${a} MiB at 520 checks a unit, ${b} MiB at 2,000 (target flat, <= 64 MiB) $(verdict "$worst" "<=" 64)")
     say ""
 fi
 
@@ -206,7 +253,8 @@ if want startup; then
             b=$(ns)
             secs "$a" "$b"
         }
-        startup "$empty" 1 >/dev/null; startup "$OUT/large.sqlite" 1 >/dev/null
+        # The large shop's evaluations are kept by its first start (as by any status before).
+        startup "$empty" filled >/dev/null; startup "$OUT/large.sqlite" filled >/dev/null
         t_large=() t_empty=() f_large=() f_empty=()
         for _ in $(seq $((REPS * 3))); do
             t_empty+=("$(startup "$empty" 1)")
@@ -222,8 +270,10 @@ if want startup; then
         r=$(ratio "$ml" "$me")
         say "  first frame (medians of $((REPS * 3))): empty shop ${me}s, large shop ${ml}s"
         say "  ratio: ${r}x (target <= 1.3: $(verdict "$r" "<=" 1.3))"
-        say "  every screen filled (fleet evaluated on a worker after the first frame): empty ${fe}s, large ${fl}s = $(ratio "$fl" "$fe")x"
+        rf=$(ratio "$fl" "$fe")
+        say "  every screen filled (the fleet read on a worker after the first frame, its evaluations kept): empty ${fe}s, large ${fl}s = ${rf}x (target <= 1.5: $(verdict "$rf" "<=" 1.5))"
         SUMMARY+=("start-up            ${r}x the empty shop (target <= 1.3x) $(verdict "$r" "<=" 1.3)")
+        SUMMARY+=("screens filled      ${rf}x the empty shop (target <= 1.5x) $(verdict "$rf" "<=" 1.5)")
     fi
     say ""
 fi
@@ -290,18 +340,34 @@ if want server; then
         say "  sumpbook copy file -> server: ${t}s, every table verified"
         "$BIN" --db "$PG/large" status >/dev/null
         pq -d large -f "$ROOT/benches/fleet_scan.sql" >/dev/null
-        t_srv=() t_file=() t_scan=()
+        t_srv=() t_file=() t_scan=() t_srv_kept=() t_srv_one=() t_srv_unit=()
+        stag=$(pq -d large -tA -c "SELECT tag FROM units ORDER BY id LIMIT 1 OFFSET 500")
         for _ in $(seq "$REPS"); do
+            pq -d large -c "DELETE FROM kept_evaluations" >/dev/null
             t_srv+=("$(timed "$OUT/status-srv.out" "$OUT/rss" "$BIN" --db "$PG/large" status)")
+            sqlite3 "$OUT/large.sqlite" "DELETE FROM kept_evaluations"
             t_file+=("$(timed "$OUT/status-file.out" "$OUT/rss" "$BIN" --db "$OUT/large.sqlite" status)")
             t_scan+=("$(timed "$OUT/scan-srv.out" "$OUT/rss" psql -q -X -h 127.0.0.1 -p "$PG_PORT" -U sumpbook -d large -f "$ROOT/benches/fleet_scan.sql")")
+            t_srv_kept+=("$(timed "$OUT/status-srv-kept.out" "$OUT/rss" "$BIN" --db "$PG/large" status)")
+            pq -d large -c "INSERT INTO checks (unit_id, taken_at, reservoir_temp_c, ambient_temp_c, pressure_bar, stroke_time_s, oil_level, filter, hours)
+                SELECT unit_id, to_char(to_timestamp(max(taken_at), 'YYYY-MM-DD\"T\"HH24:MI:SS\"Z\"') + interval '7 days', 'YYYY-MM-DD\"T\"HH24:MI:SS\"Z\"'),
+                       70, 20, 150, 3.0, 'ok', 'ok', NULL
+                FROM checks WHERE unit_id = (SELECT id FROM units WHERE tag = '$stag') GROUP BY unit_id" >/dev/null
+            t_srv_one+=("$(timed "$OUT/status-srv-one.out" "$OUT/rss" "$BIN" --db "$PG/large" status)")
+            t_srv_unit+=("$(timed "$OUT/status-srv-unit.out" "$OUT/rss" "$BIN" --db "$PG/large" status --unit "$stag")")
         done
-        cmp -s <(tail -n +2 "$OUT/status-srv.out") <(tail -n +2 "$OUT/status-file.out") || say "  note: the server's status differs from the file's after the first line"
         ms=$(median "${t_srv[@]}"); mf=$(median "${t_file[@]}"); mq=$(median "${t_scan[@]}")
         rf=$(ratio "$ms" "$mf"); rq=$(ratio "$ms" "$mq")
-        say "  sumpbook status on the server ${ms}s, on the file ${mf}s, full-scan aggregate in psql ${mq}s"
+        mk=$(median "${t_srv_kept[@]}"); m1=$(median "${t_srv_one[@]}"); mu=$(median "${t_srv_unit[@]}")
+        rk=$(ratio "$mk" "$mq")
+        extra=$(awk -v a="$m1" -v b="$mu" 'BEGIN { printf "%.3f", a - b }')
+        r1=$(ratio "$extra" "$mq")
+        say "  sumpbook status on the server (nothing kept) ${ms}s, on the file ${mf}s, full-scan aggregate in psql ${mq}s"
         say "  ratio: ${rf}x the file; ${rq}x the server's own full scan"
+        say "  nothing changed (every evaluation kept): ${mk}s = ${rk}x the server's full scan (target <= 0.2: $(verdict "$rk" "<=" 0.2))"
+        say "  after one check added in psql to $stag: ${m1}s; that unit alone ${mu}s; the rest ${extra}s = ${r1}x (target <= 0.05: $(verdict "$r1" "<=" 0.05))"
         SUMMARY+=("server status       ${rf}x the file, ${rq}x one full-scan aggregate in psql")
+        SUMMARY+=("server, kept        ${rk}x psql's full scan with nothing changed (target <= 0.2x) $(verdict "$rk" "<=" 0.2); one check: that unit + ${r1}x $(verdict "$r1" "<=" 0.05)")
 
         csv="$OUT/reg1m.csv.d/checks.csv"
         rows=$(($(wc -l <"$csv") - 1))

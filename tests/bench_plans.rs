@@ -25,6 +25,10 @@ fn assert_indexed_reads(store: &Store, when: &str) {
         "fleet.samples",
         "unit.checks",
         "unit.samples",
+        "batch.checks",
+        "batch.samples",
+        "batch.events",
+        "batch.next_records",
     ] {
         assert!(
             names.contains(&expected),
@@ -47,6 +51,8 @@ fn assert_indexed_reads(store: &Store, when: &str) {
         ("fleet.samples", "samples"),
         ("unit.checks", "checks"),
         ("unit.samples", "samples"),
+        ("batch.checks", "checks"),
+        ("batch.samples", "samples"),
     ] {
         let plan = &plans.iter().find(|(n, _)| n == name).unwrap().1;
         assert!(

@@ -1312,6 +1312,23 @@ fn a_shop_of_every_earlier_schema_version_upgrades_with_all_its_rows_and_a_backu
         assert_eq!(dump(&backup), old_dump, "the backup is not the old shop");
         assert_eq!(integrity(&backup), "ok");
 
+        // Every unit has its evaluation counter (kept evaluations, schema 7), and the shop one.
+        let conn = Connection::open(&db).unwrap();
+        let (units, counters): (i64, i64) = conn
+            .query_row(
+                "SELECT (SELECT count(*) FROM units), \
+                 (SELECT count(*) FROM eval_revisions WHERE unit_id IN (SELECT id FROM units) OR unit_id = 0)",
+                [],
+                |r| Ok((r.get(0)?, r.get(1)?)),
+            )
+            .unwrap();
+        assert_eq!(
+            counters,
+            units + 1,
+            "counters after the upgrade from {version}"
+        );
+        drop(conn);
+
         // The upgraded shop works as a shop: health, export, another open (no second backup).
         ok(&db, &["status"]);
         ok(&db, &["export", "units"]);

@@ -1057,3 +1057,52 @@ fn a_deleted_check_is_restored_by_an_engineer_and_refused_to_a_technician() {
         "{err:?}"
     );
 }
+
+#[test]
+fn kept_evaluations_on_a_server_follow_direct_sql() {
+    // The kept path of `app::kept` on PostgreSQL: a status with nothing changed reads every
+    // unit kept; a check or a shop-wide limit written in plain SQL by another session is seen,
+    // and the status is the one a fresh evaluation gives (`Detail::Full`, series left out).
+    use sumpbook::app::status::{fleet_status_in, Detail, UnitStatus};
+    let Some(_) = server() else { return };
+    let url = new_database();
+    let mut shop = Shop::create(std::path::Path::new(&url)).unwrap();
+    shop.load_demo().unwrap();
+    let store = shop.store_for_tests();
+    let when: chrono::DateTime<chrono::Utc> = "2026-11-28T12:00:00Z".parse().unwrap();
+    let fresh = || -> Vec<UnitStatus> {
+        let mut f = fleet_status_in(store, Some(when), Detail::Full).unwrap();
+        for u in &mut f.units {
+            u.health.series = Vec::new();
+            u.health.checks = Vec::new();
+            u.health.samples = Vec::new();
+        }
+        f.units
+    };
+    let status = |evaluated: usize, what: &str| {
+        let f = fleet_status_in(store, Some(when), Detail::Summary).unwrap();
+        assert_eq!(f.units, fresh(), "{what}: differs from a fresh evaluation");
+        assert_eq!(f.evaluated, evaluated, "{what}: units evaluated");
+        f
+    };
+    let first = fleet_status_in(store, Some(when), Detail::Summary).unwrap();
+    assert_eq!(first.evaluated, first.units.len(), "nothing kept at first");
+    assert_eq!(first.units, fresh());
+    status(0, "nothing changed");
+    let unit = first.units[0].unit_id;
+    let mut sql = admin(&url);
+    sql.execute(
+        "INSERT INTO checks (unit_id, taken_at, reservoir_temp_c, ambient_temp_c, pressure_bar, filter) \
+         VALUES ($1, '2026-11-28T07:00:00Z', 93.0, 20.0, 150.0, 'bypass')",
+        &[&unit],
+    )
+    .unwrap();
+    status(1, "a check written in SQL");
+    sql.execute(
+        "INSERT INTO limits (unit_id, key, watch, act) VALUES (NULL, 'reservoir_temp_c', 30.0, 35.0)",
+        &[],
+    )
+    .unwrap();
+    status(first.units.len(), "a shop-wide limit written in SQL");
+    assert!(count(&url, "kept_evaluations") >= first.units.len() as i64);
+}

@@ -8,6 +8,7 @@ mod faces;
 #[cfg(feature = "gui")]
 mod gui;
 mod health_scenarios;
+mod kept;
 mod physics_reference;
 mod reliability;
 mod report;

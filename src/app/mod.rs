@@ -10,6 +10,7 @@ pub mod entry;
 pub mod entry_check;
 pub mod figures;
 pub mod import;
+pub mod kept;
 pub mod local_time;
 pub mod report;
 pub mod rights;

@@ -89,16 +89,20 @@ pub struct FleetStatus {
     pub counts: StateCounts,
     /// Worst state first; within a state, the route order.
     pub units: Vec<UnitStatus>,
+    /// How many units were evaluated for this status; the others' evaluations were kept from
+    /// before and still held (`app::kept`).
+    #[serde(default)]
+    pub evaluated: usize,
 }
 
 /// What the evaluation reads of a shop, besides the histories.
-struct ShopData {
+pub(crate) struct ShopData {
     settings: Settings,
     fluids: Vec<Fluid>,
     limit_rows: Vec<LimitSetting>,
 }
 
-fn shop_data(store: &Store) -> Result<ShopData, AppError> {
+pub(crate) fn shop_data(store: &Store) -> Result<ShopData, AppError> {
     Ok(ShopData {
         settings: store.settings().map_err(store_error)?,
         fluids: store.fluids().map_err(store_error)?,
@@ -106,14 +110,20 @@ fn shop_data(store: &Store) -> Result<ShopData, AppError> {
     })
 }
 
-fn unit_status(h: &UnitHistory, data: &ShopData, at: DateTime<Utc>, detail: Detail) -> UnitStatus {
+pub(crate) fn unit_status(
+    h: &UnitHistory,
+    data: &ShopData,
+    at: DateTime<Utc>,
+    detail: Detail,
+) -> UnitStatus {
     let limits = Limits::resolve(&data.limit_rows, Some(h.unit.id));
     let mut health = health::evaluate(h, &data.fluids, &limits, at, data.settings.unit_system);
     let waiting_cost = waiting_cost(h, &health, at, data.settings.electricity_price);
     if detail == Detail::Summary {
-        health.series.clear();
-        health.checks.clear();
-        health.samples.clear();
+        // Dropped with their memory (`clear` would keep each unit's capacity allocated).
+        health.series = Vec::new();
+        health.checks = Vec::new();
+        health.samples = Vec::new();
     }
     UnitStatus {
         unit_id: h.unit.id,
@@ -148,9 +158,7 @@ pub fn fleet_status_in(
     detail: Detail,
 ) -> Result<FleetStatus, AppError> {
     let when = at.unwrap_or_else(Utc::now);
-    let data = shop_data(store)?;
-    let histories = store.unit_histories(Some(when)).map_err(store_error)?;
-    let mut units = evaluate_all(&histories, &data, when, detail);
+    let (mut units, evaluated, data) = super::kept::fleet_units(store, when, detail)?;
     sort_worst_first(&mut units);
     let counts = StateCounts::of(units.iter().map(|u| u.state));
     Ok(FleetStatus {
@@ -160,6 +168,7 @@ pub fn fleet_status_in(
         replay: at.is_some(),
         counts,
         units,
+        evaluated,
     })
 }
 
@@ -211,44 +220,6 @@ pub fn unit_read_in(
         status,
         settings: data.settings,
         fluids: data.fluids,
-    })
-}
-
-/// Units below this many are evaluated on the calling thread; a thread costs more than it
-/// saves.
-const PARALLEL_UNITS: usize = 64;
-
-/// Every unit's status, in the order of `histories`. Units are independent, so a large fleet
-/// is split across the machine's cores.
-fn evaluate_all(
-    histories: &[UnitHistory],
-    data: &ShopData,
-    when: DateTime<Utc>,
-    detail: Detail,
-) -> Vec<UnitStatus> {
-    let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
-    if histories.len() < PARALLEL_UNITS || threads < 2 {
-        return histories
-            .iter()
-            .map(|h| unit_status(h, data, when, detail))
-            .collect();
-    }
-    let per = histories.len().div_ceil(threads);
-    std::thread::scope(|s| {
-        let parts: Vec<_> = histories
-            .chunks(per)
-            .map(|part| {
-                s.spawn(move || {
-                    part.iter()
-                        .map(|h| unit_status(h, data, when, detail))
-                        .collect::<Vec<_>>()
-                })
-            })
-            .collect();
-        parts
-            .into_iter()
-            .flat_map(|p| p.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
-            .collect()
     })
 }
 

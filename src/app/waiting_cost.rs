@@ -46,13 +46,16 @@ pub fn waiting_cost(
     let pressure = upto.iter().rev().find_map(|c| c.pressure)?.si();
     let heat = lost_flow_heat(Flow(lost), Pressure(pressure));
     let year_ago = at - Duration::days(365);
-    let meter: Vec<(f64, f64)> = upto
+    let readings: Vec<_> = upto
         .iter()
         .filter(|c| c.taken_at >= year_ago)
-        .filter_map(|c| {
-            c.hours
-                .map(|hrs| ((c.taken_at - year_ago).num_seconds() as f64 / 86_400.0, hrs))
-        })
+        .filter_map(|c| c.hours.map(|hrs| (c.taken_at, hrs)))
+        .collect();
+    // Days from the first reading of the year, so that the figure is the same whatever the
+    // instant judged within the span it holds for (`app::kept`).
+    let meter: Vec<(f64, f64)> = readings
+        .iter()
+        .map(|(t, hrs)| ((*t - readings[0].0).num_seconds() as f64 / 86_400.0, *hrs))
         .collect();
     let run_hours = match (meter.first(), meter.last()) {
         (Some(a), Some(b)) => run_hours_per_year(*a, *b),
@@ -69,6 +72,16 @@ pub fn waiting_cost(
         price_per_kwh: price,
         cost_per_year: energy.zip(price).map(|(e, p)| e * p),
     })
+}
+
+/// Until when the run hours of [`waiting_cost`] at `at` stay as they are while no record is
+/// added: the first hour-meter reading of the year leaves it 365 days after it was taken.
+pub fn run_hours_hold_until(h: &UnitHistory, at: DateTime<Utc>) -> Option<DateTime<Utc>> {
+    let year_ago = at - Duration::days(365);
+    h.checks
+        .iter()
+        .find(|c| c.taken_at >= year_ago && c.taken_at <= at && c.hours.is_some())
+        .map(|c| c.taken_at + Duration::days(365) + Duration::seconds(1))
 }
 
 impl WaitingCost {

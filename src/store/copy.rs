@@ -30,8 +30,16 @@ pub const COPIED_TABLES: [&str; 12] = [
 ];
 
 /// Tables of a shop that belong to the database itself, not to the shop's data: its markers,
-/// the SQLite edit context (empty between edits) and the server's schema version.
-const OWN_TABLES: [&str; 3] = ["sumpbook_meta", "edit_context", "sumpbook_schema_version"];
+/// the SQLite edit context (empty between edits), the server's schema version, and the kept
+/// evaluations with their counters (derived from the data; the copy's own triggers count its
+/// rows as they are written, and its evaluations are kept when it is first evaluated).
+const OWN_TABLES: [&str; 5] = [
+    "sumpbook_meta",
+    "edit_context",
+    "sumpbook_schema_version",
+    "eval_revisions",
+    "kept_evaluations",
+];
 
 /// Rows read per step, so that a server shop of millions of rows is never all in memory.
 const CHUNK: i64 = 5_000;

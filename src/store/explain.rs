@@ -12,7 +12,8 @@ const UNTIL: &str = "9999-12-31T23:59:59Z";
 
 impl Store {
     /// `(name, plan)` for each query the fleet board (`fleet.*`, one query per table for the
-    /// whole shop) and the unit page (`unit.*`, one unit) run on the tables of readings. The plan
+    /// whole shop; `batch.*`, a run of units at a time) and the unit page (`unit.*`, one unit)
+    /// run on the tables of readings. The plan
     /// is SQLite's `EXPLAIN QUERY PLAN`, one step per line, nested steps indented by two spaces,
     /// e.g. `SEARCH checks USING INDEX checks_taken_at (taken_at<?)`.
     pub fn explain_fleet_queries(&self) -> Result<Vec<(String, String)>, StoreError> {
@@ -54,6 +55,19 @@ impl Store {
         ));
         for (name, sql) in unit {
             out.push((name.to_string(), self.plan(&sql, &[&1i64, &UNTIL])?));
+        }
+        // The streaming read of a full evaluation (`unit_batches`): a run of units at a time.
+        use super::unit_batches as b;
+        for (name, sql) in [
+            ("batch.checks", b::batch_checks_sql()),
+            ("batch.samples", b::batch_samples_sql()),
+            ("batch.events", b::batch_events_sql()),
+            (
+                "batch.next_records",
+                b::batch_next_records_sql().to_string(),
+            ),
+        ] {
+            out.push((name.to_string(), self.plan(&sql, &[&1i64, &40i64, &UNTIL])?));
         }
         Ok(out)
     }

@@ -155,29 +155,12 @@ impl Store {
         may_split: bool,
     ) -> Result<Vec<UnitHistory>, StoreError> {
         let until = until_text(at);
-        let machines: HashMap<Id, _> = self.machines()?.into_iter().map(|m| (m.id, m)).collect();
-        let fluids: HashMap<Id, _> = self.fluids()?.into_iter().map(|f| (f.id, f)).collect();
-        let mut out = Vec::new();
-        let mut slot: HashMap<Id, usize> = HashMap::new();
-        for unit in self.units()? {
-            let Some(machine) = machines.get(&unit.machine_id) else {
-                continue;
-            };
-            if unit.archived || machine.archived {
-                continue;
-            }
-            slot.insert(unit.id, out.len());
-            out.push(UnitHistory {
-                machine: machine.clone(),
-                fluid: unit.fluid_id.and_then(|f| fluids.get(&f).cloned()),
-                unit,
-                checks: Vec::new(),
-                samples: Vec::new(),
-                events: Vec::new(),
-                manual_baselines: Vec::new(),
-                acknowledgements: Vec::new(),
-            });
-        }
+        let mut out = self.active_unit_shells()?;
+        let slot: HashMap<Id, usize> = out
+            .iter()
+            .enumerate()
+            .map(|(i, h)| (h.unit.id, i))
+            .collect();
 
         let mut total = 0i64;
         let counts = self.query(fleet_check_counts_sql(), params![until], |r| {

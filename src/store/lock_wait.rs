@@ -36,6 +36,18 @@ struct Wait {
     last_progress: std::time::Instant,
     last_told: Option<std::time::Instant>,
     files: Vec<Option<(u64, std::time::SystemTime)>>,
+    /// Give up at once instead of waiting (a write that may as well be skipped, `kept`).
+    give_up: bool,
+}
+
+/// Makes the busy handler of the connection whose SQLite handle is at `key` give up at once
+/// (`true`) or wait as usual (`false`).
+pub(super) fn set_give_up(key: usize, give_up: bool) {
+    if let Ok(mut waits) = WAITS.lock() {
+        if let Some(w) = waits.get_mut(&key) {
+            w.give_up = give_up;
+        }
+    }
 }
 
 /// The waits of every open connection, by the address of its SQLite handle (the busy
@@ -68,6 +80,9 @@ extern "C" fn wait_for_lock(ctx: *mut std::ffi::c_void, count: std::ffi::c_int) 
         let Some(w) = waits.get_mut(&(ctx as usize)) else {
             return 0;
         };
+        if w.give_up {
+            return 0;
+        }
         let marks = file_marks(&w.path);
         if count == 0 {
             w.since = now;
@@ -122,6 +137,7 @@ pub(super) fn watch(conn: &Connection, path: &Path) -> Result<(), StoreError> {
                 last_progress: now,
                 last_told: None,
                 files: Vec::new(),
+                give_up: false,
             },
         );
     }

@@ -41,6 +41,7 @@ pub mod explain;
 pub mod fluids;
 pub mod history;
 pub mod import_profiles;
+mod kept;
 mod lock_wait;
 pub mod machines_units;
 mod migrate;
@@ -52,15 +53,18 @@ mod server;
 pub mod settings;
 mod transactions;
 mod unclean_close;
+mod unit_batches;
 
 pub use bulk::{Bulk, Put};
 pub use errors::StoreError;
+pub use kept::{KeptEvaluation, KeptRead};
 pub use lock_wait::{report_waits_with, BUSY_TIMEOUT, WAIT_REPORT_AFTER, WAIT_REPORT_EVERY};
 pub use migrate::{backup_path_before_migration, MIGRATIONS};
 pub use open::APPLICATION_ID;
 pub use row_values::{fmt_time, fmt_time_stamp, parse_time};
 pub use server::is_server_address;
 pub use unclean_close::report_notices_with;
+pub use unit_batches::NextRecords;
 
 use db::{Db, Row, ToDb};
 pub(crate) use errors::classify;
@@ -87,6 +91,9 @@ pub struct Store {
     /// Set by [`Store::correcting`]: the next edit is refused if this row (table, id) was
     /// edited after this edit-history mark.
     expect_unedited: Cell<Option<(&'static str, Id, i64)>>,
+    /// Rows this connection changed keeping evaluations (`kept`): not a change of the shop's
+    /// data, so [`Store::change_stamp`] leaves them out.
+    own_keeping: Cell<u64>,
 }
 
 impl std::fmt::Debug for Store {
@@ -121,7 +128,7 @@ impl Store {
         let other: i64 = conn
             .query_row("PRAGMA data_version", [], |r| r.get(0))
             .map_err(StoreError::from)?;
-        Ok((other, conn.total_changes()))
+        Ok((other, conn.total_changes() - self.own_keeping.get()))
     }
 
     /// The file this store was opened from.

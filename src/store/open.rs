@@ -103,6 +103,7 @@ impl Store {
             queries: Cell::new(0),
             created: false,
             expect_unedited: Cell::new(None),
+            own_keeping: Cell::new(0),
         };
         store.prepare_connection().map_err(|e| match e {
             StoreError::Busy => StoreError::Locked {
@@ -126,6 +127,7 @@ impl Store {
             queries: Cell::new(0),
             created: false,
             expect_unedited: Cell::new(None),
+            own_keeping: Cell::new(0),
         };
         store.prepare_connection()?;
         Ok(store)

@@ -65,15 +65,18 @@ impl ShopRole {
 
     /// The table rights beyond reading everything.
     fn grants(self) -> &'static [(&'static str, &'static str)] {
-        // Whoever imports files keeps the column mappings they need.
-        const LOG: [(&str, &str); 5] = [
+        // Whoever imports files keeps the column mappings they need; whoever evaluates a unit
+        // first keeps its evaluation for the others (`kept`).
+        const LOG: [(&str, &str); 6] = [
+            ("INSERT, UPDATE, DELETE", "kept_evaluations"),
             ("INSERT", "checks"),
             ("INSERT", "samples"),
             ("INSERT", "events"),
             ("INSERT", "acknowledgements"),
             ("INSERT, UPDATE", "import_profiles"),
         ];
-        const ENGINEER: [(&str, &str); 14] = [
+        const ENGINEER: [(&str, &str); 15] = [
+            ("INSERT, UPDATE, DELETE", "kept_evaluations"),
             ("INSERT", "checks"),
             ("INSERT", "samples"),
             ("INSERT", "events"),
@@ -89,7 +92,10 @@ impl ShopRole {
             ("UPDATE", "settings"),
             ("INSERT, UPDATE", "import_profiles"),
         ];
-        const SUPERVISOR: [(&str, &str); 1] = [("INSERT", "acknowledgements")];
+        const SUPERVISOR: [(&str, &str); 2] = [
+            ("INSERT", "acknowledgements"),
+            ("INSERT, UPDATE, DELETE", "kept_evaluations"),
+        ];
         match self {
             ShopRole::Technician => &LOG,
             ShopRole::Engineer => &ENGINEER,

@@ -68,6 +68,7 @@ pub(crate) fn open(url: &str) -> Result<Store, StoreError> {
         queries: Cell::new(0),
         created,
         expect_unedited: Cell::new(None),
+        own_keeping: Cell::new(0),
     })
 }
 
