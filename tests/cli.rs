@@ -949,7 +949,7 @@ fn history_on_one_backend() {
     assert!(
         lines[confirmed + 1..]
             .iter()
-            .any(|l| l.trim() == "confirmed_by: — → R. Quennell"),
+            .any(|l| l.trim() == "confirmed by: — → R. Quennell"),
         "{out}"
     );
     let deleted = lines
@@ -960,7 +960,7 @@ fn history_on_one_backend() {
     assert!(
         lines[deleted + 1..]
             .iter()
-            .any(|l| l.trim().starts_with("reservoir_temp_c: ")),
+            .any(|l| l.trim().starts_with("reservoir temp: ") && l.trim().ends_with(" °C")),
         "{out}"
     );
 

@@ -12,7 +12,9 @@ use super::shop::{zone_of, Shop};
 use super::status::store_error;
 use super::AppError;
 use crate::model::{EditRecord, Id};
+use crate::quantity::{self, Quantity};
 use crate::store::Store;
+use crate::units::{Flow, Length, Pressure, Seconds, Temperature, UnitSystem, Viscosity, Volume};
 
 /// What happened to a record.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
@@ -24,13 +26,73 @@ pub enum EditAction {
     Restored,
 }
 
-/// One field's value before and after an edit, as stored (the column name says its unit).
+/// One field's value before and after an edit, as stored (the column name says its unit),
+/// and as the shop reads it.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct FieldChange {
     pub field: String,
     pub old: String,
     /// `None` when the record was deleted; a restore's fields are `—` → the value put back.
     pub new: Option<String>,
+    /// The field in words, without the stored unit (`pressure` for `pressure_bar`).
+    pub label: String,
+    /// `old` and `new` in the shop's units and time zone (`2495 psi`, `2026-12-01 08:00 EST`);
+    /// other values as stored.
+    pub old_shown: String,
+    pub new_shown: Option<String>,
+}
+
+/// The stored unit suffix of a column, and the quantity a stored number there makes.
+fn stored_quantity(field: &str) -> Option<(&'static str, fn(f64) -> Quantity)> {
+    const SUFFIXES: [(&str, fn(f64) -> Quantity); 7] = [
+        ("_bar", |v| Quantity::Pressure(Pressure::from_bar(v))),
+        ("_c", |v| Quantity::Temperature(Temperature::from_c(v))),
+        ("_lpm", |v| Quantity::Flow(Flow::from_lpm(v))),
+        ("_mm", |v| Quantity::Length(Length::from_mm(v))),
+        ("_l", |v| Quantity::Volume(Volume::from_l(v))),
+        ("_cst", |v| Quantity::Viscosity(Viscosity::from_cst(v))),
+        ("_s", |v| Quantity::Time(Seconds(v))),
+    ];
+    SUFFIXES
+        .iter()
+        .find(|(suffix, _)| field.ends_with(suffix))
+        .map(|&(suffix, q)| (suffix, q))
+}
+
+/// A column's name in words: without its stored unit, underscores as spaces.
+fn label_of(field: &str) -> String {
+    let bare = match stored_quantity(field) {
+        Some((suffix, _)) => &field[..field.len() - suffix.len()],
+        None => field,
+    };
+    bare.replace('_', " ")
+}
+
+/// A stored value as the shop reads it: a number of a column with a stored unit in the shop's
+/// units, an instant (a column ending `_at`) in the shop's time zone; the rest as stored.
+fn shown(field: &str, stored: &str, sys: UnitSystem, zone: Zone) -> String {
+    if field.ends_with("_at") {
+        if let Ok(t) = stored.parse::<DateTime<Utc>>() {
+            return zone.show_marked(t);
+        }
+    }
+    match (stored_quantity(field), stored.parse::<f64>()) {
+        (Some((_, q)), Ok(v)) if v.is_finite() => quantity::format(q(v), sys),
+        _ => stored.to_string(),
+    }
+}
+
+impl FieldChange {
+    fn new(field: &str, old: String, new: Option<String>, sys: UnitSystem, zone: Zone) -> Self {
+        FieldChange {
+            label: label_of(field),
+            old_shown: shown(field, &old, sys, zone),
+            new_shown: new.as_deref().map(|n| shown(field, n, sys, zone)),
+            field: field.to_string(),
+            old,
+            new,
+        }
+    }
 }
 
 /// One edit of one record.
@@ -113,9 +175,9 @@ impl Edit {
             "{}  {}  {what} by {}: {why}  (edit {})",
             self.at_shown, self.record_text, self.by, self.edit_id
         )];
-        out.extend(self.changes.iter().map(|c| match &c.new {
-            Some(new) => format!("    {}: {} → {new}", c.field, c.old),
-            None => format!("    {}: {}", c.field, c.old),
+        out.extend(self.changes.iter().map(|c| match &c.new_shown {
+            Some(new) => format!("    {}: {} → {new}", c.label, c.old_shown),
+            None => format!("    {}: {}", c.label, c.old_shown),
         }));
         out
     }
@@ -146,9 +208,13 @@ pub fn unit_edits_from(
     tag: &str,
 ) -> Result<UnitEdits, AppError> {
     let zone = zone_of(store);
+    let sys = store
+        .settings()
+        .map(|s| s.unit_system)
+        .unwrap_or(UnitSystem::Metric);
     let mut edits: Vec<Edit> = log
         .iter()
-        .filter_map(|r| edit_of_unit(r, unit_id, zone))
+        .filter_map(|r| edit_of_unit(r, unit_id, zone, sys))
         .collect();
     for i in 0..edits.len() {
         let e = &edits[i];
@@ -259,7 +325,7 @@ fn record_of(table: &str) -> Option<(&'static str, Option<&'static str>)> {
 
 /// `r` as an edit of unit `unit_id`'s records, or `None` when it is another unit's or not a
 /// unit's record at all.
-fn edit_of_unit(r: &EditRecord, unit_id: Id, zone: Zone) -> Option<Edit> {
+fn edit_of_unit(r: &EditRecord, unit_id: Id, zone: Zone, sys: UnitSystem) -> Option<Edit> {
     let (record, time_col) = record_of(&r.table)?;
     let old = parse_object(&r.old_value);
     let new = r.new_value.as_deref().map(parse_object);
@@ -287,9 +353,14 @@ fn edit_of_unit(r: &EditRecord, unit_id: Id, zone: Zone) -> Option<Edit> {
         ),
     };
     let (action, changes) = match &new {
-        Some(_) if r.action == "restore" => (EditAction::Restored, restored_fields(&old)),
-        Some(n) => (EditAction::Changed, changed_fields(&old, Some(n))),
-        None => (EditAction::Deleted, changed_fields(&old, None)),
+        Some(_) if r.action == "restore" => {
+            (EditAction::Restored, restored_fields(&old, sys, zone))
+        }
+        Some(n) => (
+            EditAction::Changed,
+            changed_fields(&old, Some(n), sys, zone),
+        ),
+        None => (EditAction::Deleted, changed_fields(&old, None, sys, zone)),
     };
     Some(Edit {
         edit_id: r.id,
@@ -308,14 +379,10 @@ fn edit_of_unit(r: &EditRecord, unit_id: Id, zone: Zone) -> Option<Edit> {
 }
 
 /// The fields a restored record holds again, each as `—` → its value.
-fn restored_fields(held: &Map<String, Value>) -> Vec<FieldChange> {
-    changed_fields(held, None)
+fn restored_fields(held: &Map<String, Value>, sys: UnitSystem, zone: Zone) -> Vec<FieldChange> {
+    changed_fields(held, None, sys, zone)
         .into_iter()
-        .map(|c| FieldChange {
-            field: c.field,
-            old: "—".into(),
-            new: Some(c.old),
-        })
+        .map(|c| FieldChange::new(&c.field, "—".into(), Some(c.old), sys, zone))
         .collect()
 }
 
@@ -328,23 +395,21 @@ fn parse_object(text: &str) -> Map<String, Value> {
 
 /// The fields of `old` that `new` holds otherwise (all that held a value when `new` is `None`),
 /// by field name; the record's own and its unit's ids are left out.
-fn changed_fields(old: &Map<String, Value>, new: Option<&Map<String, Value>>) -> Vec<FieldChange> {
+fn changed_fields(
+    old: &Map<String, Value>,
+    new: Option<&Map<String, Value>>,
+    sys: UnitSystem,
+    zone: Zone,
+) -> Vec<FieldChange> {
     old.iter()
         .filter(|(k, _)| !matches!(k.as_str(), "id" | "unit_id"))
         .filter_map(|(k, v)| match new {
             Some(n) => {
                 let after = n.get(k).unwrap_or(&Value::Null);
-                (after != v).then(|| FieldChange {
-                    field: k.clone(),
-                    old: value_text(v),
-                    new: Some(value_text(after)),
-                })
+                (after != v)
+                    .then(|| FieldChange::new(k, value_text(v), Some(value_text(after)), sys, zone))
             }
-            None => (!v.is_null()).then(|| FieldChange {
-                field: k.clone(),
-                old: value_text(v),
-                new: None,
-            }),
+            None => (!v.is_null()).then(|| FieldChange::new(k, value_text(v), None, sys, zone)),
         })
         .collect()
 }
@@ -383,34 +448,56 @@ mod tests {
         let new = r#"{"id":5,"unit_id":2,"taken_at":"2026-12-01T13:00:00Z","pressure_bar":17.2,"note":"gauge re-read"}"#;
         // America/New_York keeps EST (UTC-5) in December: US Energy Policy Act of 2005.
         let ny = Zone::named("America/New_York").unwrap();
-        let e = edit_of_unit(&record("checks", 5, old, Some(new)), 2, ny).unwrap();
+        let e = edit_of_unit(
+            &record("checks", 5, old, Some(new)),
+            2,
+            ny,
+            UnitSystem::Metric,
+        )
+        .unwrap();
         assert_eq!(e.action, EditAction::Changed);
         assert_eq!(e.record_text, "check of 2026-12-01 08:00 EST");
         assert_eq!(e.at_shown, "2026-12-01 09:00 EST");
+        let stored: Vec<(&str, &str, Option<&str>)> = e
+            .changes
+            .iter()
+            .map(|c| (c.field.as_str(), c.old.as_str(), c.new.as_deref()))
+            .collect();
         assert_eq!(
-            e.changes,
-            vec![
-                FieldChange {
-                    field: "note".into(),
-                    old: "—".into(),
-                    new: Some("gauge re-read".into())
-                },
-                FieldChange {
-                    field: "pressure_bar".into(),
-                    old: "172.0".into(),
-                    new: Some("17.2".into())
-                },
+            stored,
+            [
+                ("note", "—", Some("gauge re-read")),
+                ("pressure_bar", "172.0", Some("17.2")),
             ]
         );
+        assert_eq!(e.lines()[2], "    pressure: 172.0 bar → 17.2 bar");
         // Another unit's record is not this unit's trail.
-        assert!(edit_of_unit(&record("checks", 5, old, Some(new)), 3, ny).is_none());
-        assert!(edit_of_unit(&record("fluids", 5, old, Some(new)), 2, ny).is_none());
+        assert!(edit_of_unit(
+            &record("checks", 5, old, Some(new)),
+            3,
+            ny,
+            UnitSystem::Metric
+        )
+        .is_none());
+        assert!(edit_of_unit(
+            &record("fluids", 5, old, Some(new)),
+            2,
+            ny,
+            UnitSystem::Metric
+        )
+        .is_none());
     }
 
     #[test]
     fn a_deletion_lists_what_the_record_held() {
         let old = r#"{"id":9,"unit_id":2,"done_at":"2026-12-01T13:00:00Z","kind":"top_up","volume_l":null}"#;
-        let e = edit_of_unit(&record("events", 9, old, None), 2, Zone::default()).unwrap();
+        let e = edit_of_unit(
+            &record("events", 9, old, None),
+            2,
+            Zone::default(),
+            UnitSystem::Metric,
+        )
+        .unwrap();
         assert_eq!(e.action, EditAction::Deleted);
         assert_eq!(e.record_text, "top_up of 2026-12-01 13:00 UTC");
         let fields: Vec<&str> = e.changes.iter().map(|c| c.field.as_str()).collect();
@@ -423,26 +510,62 @@ mod tests {
         let held = r#"{"id":9,"unit_id":2,"done_at":"2026-12-01T13:00:00Z","kind":"top_up","volume_l":null}"#;
         let mut r = record("events", 9, held, Some(held));
         r.action = "restore".into();
-        let e = edit_of_unit(&r, 2, Zone::default()).unwrap();
+        let e = edit_of_unit(&r, 2, Zone::default(), UnitSystem::Metric).unwrap();
         assert_eq!(e.action, EditAction::Restored);
+        let stored: Vec<(&str, &str, Option<&str>)> = e
+            .changes
+            .iter()
+            .map(|c| (c.field.as_str(), c.old.as_str(), c.new.as_deref()))
+            .collect();
         assert_eq!(
-            e.changes,
-            vec![
-                FieldChange {
-                    field: "done_at".into(),
-                    old: "—".into(),
-                    new: Some("2026-12-01T13:00:00Z".into())
-                },
-                FieldChange {
-                    field: "kind".into(),
-                    old: "—".into(),
-                    new: Some("top_up".into())
-                },
+            stored,
+            [
+                ("done_at", "—", Some("2026-12-01T13:00:00Z")),
+                ("kind", "—", Some("top_up")),
             ]
         );
+        assert_eq!(e.lines()[1], "    done at: — → 2026-12-01 13:00 UTC");
         assert_eq!(
             e.lines()[0],
             "2026-12-01 14:00 UTC  top_up of 2026-12-01 13:00 UTC  RESTORED by AK: typo  (edit 7)"
         );
+    }
+
+    #[test]
+    fn a_us_shop_reads_its_trail_in_its_own_units_and_time() {
+        // 172 bar is 2494.7 psi and 17.2 bar 249.5 psi (1 bar = 100 kPa, 1 psi = 6.894757 kPa:
+        // NIST SP 811, Appendix B); 45 °C is 113 °F; 13:00 UTC is 08:00 EST.
+        let old = r#"{"id":5,"unit_id":2,"taken_at":"2026-12-01T13:00:00Z","pressure_bar":172.0,"reservoir_temp_c":45.0}"#;
+        let new = r#"{"id":5,"unit_id":2,"taken_at":"2026-12-01T14:00:00Z","pressure_bar":17.2,"reservoir_temp_c":45.0}"#;
+        let ny = Zone::named("America/New_York").unwrap();
+        let e = edit_of_unit(&record("checks", 5, old, Some(new)), 2, ny, UnitSystem::Us).unwrap();
+        let shown: Vec<(&str, &str, Option<&str>)> = e
+            .changes
+            .iter()
+            .map(|c| {
+                (
+                    c.label.as_str(),
+                    c.old_shown.as_str(),
+                    c.new_shown.as_deref(),
+                )
+            })
+            .collect();
+        assert_eq!(
+            shown,
+            [
+                ("pressure", "2495 psi", Some("249 psi")),
+                (
+                    "taken at",
+                    "2026-12-01 08:00 EST",
+                    Some("2026-12-01 09:00 EST")
+                ),
+            ]
+        );
+        // The stored values stay as stored, for the JSON.
+        assert_eq!(e.changes[0].old, "172.0");
+        let d = r#"{"id":9,"unit_id":2,"done_at":"2026-12-01T13:00:00Z","volume_l":20.0}"#;
+        let e = edit_of_unit(&record("events", 9, d, None), 2, ny, UnitSystem::Us).unwrap();
+        // 20 L is 5.28 US gallons (1 gal = 3.785411784 L: NIST Handbook 44, Appendix C).
+        assert_eq!(e.changes[1].old_shown, "5.28 gal");
     }
 }

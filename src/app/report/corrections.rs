@@ -92,9 +92,9 @@ pub(super) fn period_corrections(
                     "changed",
                     e.changes
                         .iter()
-                        .map(|c| match &c.new {
-                            Some(new) => format!("{}: {} → {new}", c.field, c.old),
-                            None => format!("{}: {}", c.field, c.old),
+                        .map(|c| match &c.new_shown {
+                            Some(new) => format!("{}: {} → {new}", c.label, c.old_shown),
+                            None => format!("{}: {}", c.label, c.old_shown),
                         })
                         .collect::<Vec<_>>()
                         .join("; "),
