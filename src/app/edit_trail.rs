@@ -42,9 +42,12 @@ pub struct FieldChange {
     pub new_shown: Option<String>,
 }
 
+/// The quantity a stored number of a column makes, from its stored unit.
+type FromStored = fn(f64) -> Quantity;
+
 /// The stored unit suffix of a column, and the quantity a stored number there makes.
-fn stored_quantity(field: &str) -> Option<(&'static str, fn(f64) -> Quantity)> {
-    const SUFFIXES: [(&str, fn(f64) -> Quantity); 7] = [
+fn stored_quantity(field: &str) -> Option<(&'static str, FromStored)> {
+    const SUFFIXES: [(&str, FromStored); 7] = [
         ("_bar", |v| Quantity::Pressure(Pressure::from_bar(v))),
         ("_c", |v| Quantity::Temperature(Temperature::from_c(v))),
         ("_lpm", |v| Quantity::Flow(Flow::from_lpm(v))),
