@@ -431,6 +431,14 @@ fn value_text(v: &Value) -> String {
 mod tests {
     use super::*;
 
+    /// Each change as stored: (field, old, new).
+    fn stored(e: &Edit) -> Vec<(&str, &str, Option<&str>)> {
+        e.changes
+            .iter()
+            .map(|c| (c.field.as_str(), c.old.as_str(), c.new.as_deref()))
+            .collect()
+    }
+
     fn record(table: &str, row_id: Id, old: &str, new: Option<&str>) -> EditRecord {
         EditRecord {
             id: 7,
@@ -461,13 +469,8 @@ mod tests {
         assert_eq!(e.action, EditAction::Changed);
         assert_eq!(e.record_text, "check of 2026-12-01 08:00 EST");
         assert_eq!(e.at_shown, "2026-12-01 09:00 EST");
-        let stored: Vec<(&str, &str, Option<&str>)> = e
-            .changes
-            .iter()
-            .map(|c| (c.field.as_str(), c.old.as_str(), c.new.as_deref()))
-            .collect();
         assert_eq!(
-            stored,
+            stored(&e),
             [
                 ("note", "—", Some("gauge re-read")),
                 ("pressure_bar", "172.0", Some("17.2")),
@@ -515,13 +518,8 @@ mod tests {
         r.action = "restore".into();
         let e = edit_of_unit(&r, 2, Zone::default(), UnitSystem::Metric).unwrap();
         assert_eq!(e.action, EditAction::Restored);
-        let stored: Vec<(&str, &str, Option<&str>)> = e
-            .changes
-            .iter()
-            .map(|c| (c.field.as_str(), c.old.as_str(), c.new.as_deref()))
-            .collect();
         assert_eq!(
-            stored,
+            stored(&e),
             [
                 ("done_at", "—", Some("2026-12-01T13:00:00Z")),
                 ("kind", "—", Some("top_up")),
