@@ -180,6 +180,18 @@ struct Pending {
     sigma: f64,
 }
 
+impl Pending {
+    /// Whether the next reading `x` of the field (`again`: questioned itself) confirms this
+    /// one against the history `hist` it is now judged on: a frame break repeated, or a
+    /// reading out of the same history on the same side and within `SIGMAS` of this one (σ
+    /// at least `floor`) — a real change, not a slip.
+    fn confirmed_by(&self, x: f64, again: bool, hist: Option<(f64, f64)>, floor: f64) -> bool {
+        let side = outside(x, hist).unwrap_or(0.0);
+        let close = (x - self.value).abs() <= SIGMAS * self.sigma.max(floor);
+        again && side == self.side && (self.side == 0.0 || close)
+    }
+}
+
 /// A person's confirmation of a check, where the record carries one.
 fn confirmed_check(c: &Check) -> Option<ConfirmedBy> {
     c.confirmed.as_ref().map(|k| ConfirmedBy::Person {
@@ -290,12 +302,8 @@ fn screen_checks(
                 return true; // not read this time: still waiting
             };
             let again = found.iter().any(|s| s.field == w.field);
-            let i = idx(w.field);
-            let hist = recent(w.field, &st.accepted[i]);
-            let side = outside(x, hist).unwrap_or(0.0);
-            let close = (x - w.value).abs() <= SIGMAS * w.sigma.max(floor(w.field));
-            let confirms = again && side == w.side && (w.side == 0.0 || close);
-            if confirms {
+            let hist = recent(w.field, &st.accepted[idx(w.field)]);
+            if w.confirmed_by(x, again, hist, floor(w.field)) {
                 out[w.at].confirmed = Some(ConfirmedBy::NextReading { at: c.taken_at });
                 agrees.push(w.field);
             }
@@ -415,9 +423,7 @@ fn screen_samples(
             let Some(x) = sample_hist_value(s, w.field) else {
                 return true; // not measured this time: still waiting
             };
-            let side = outside(x, st.recent(w.field)).unwrap_or(0.0);
-            let close = (x - w.value).abs() <= SIGMAS * w.sigma;
-            if again && side == w.side && close {
+            if w.confirmed_by(x, again, st.recent(w.field), 0.0) {
                 out[w.at].confirmed = Some(ConfirmedBy::NextReading { at: s.sampled_at });
                 agrees.push((w.field, w.value));
             }
