@@ -159,9 +159,9 @@ pub(super) fn figure_of(kind: FlagKind, g: &Graded) -> Option<Figure> {
 pub(super) const TREND_SAMPLES: usize = 3;
 
 /// Raises to act a sample indicator that is past its watch limit and heading for its act limit
-/// faster than the samples come: the last `TREND_SAMPLES` values of the era each further from
-/// good (further in the direction the latest lies from good), the latest at watch, and the least-squares line through
-/// them, carried on from the latest value at its slope for the time to the next sample due
+/// faster than the samples come: the last `TREND_SAMPLES` values of the era each further than
+/// the one before in the direction the latest lies from good, the latest at watch, and the
+/// least-squares line through them, carried on from the latest value at its slope for the time to the next sample due
 /// (`horizon_days`, or the samples' own mean spacing if shorter), at or past `act`. Projecting a
 /// trend to its alarm limit is the usual estimate of time left in condition monitoring (ISO
 /// 13381-1, from memory); asking for a run of moves away, rather than any two samples, keeps the
