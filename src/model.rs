@@ -176,6 +176,26 @@ pub struct Event {
     pub note: String,
 }
 
+/// What marking work done records beside its [`Event`]: the hour meter, the filter element
+/// fitted and the work order. Kept apart from the event, which the health engine reads,
+/// because none of it changes a unit's evaluation; stored in the event's own row.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct EventDetails {
+    /// The unit's hour meter when the work was done, in hours.
+    pub hours: Option<f64>,
+    /// The part number of the filter element fitted ('' when not given).
+    pub filter_part: String,
+    /// The shop's work-order reference ('' when not given).
+    pub work_order: String,
+}
+
+impl EventDetails {
+    /// Whether nothing beyond the event itself was recorded.
+    pub fn is_empty(&self) -> bool {
+        self.hours.is_none() && self.filter_part.is_empty() && self.work_order.is_empty()
+    }
+}
+
 /// Someone has seen a flag; it stays marked until the flag's state changes.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Acknowledgement {

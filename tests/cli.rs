@@ -1337,3 +1337,148 @@ fn log_check_asks_about_readings_the_last_check_had_and_goes_on_with_leave_blank
     let after = ok(d, &["--db", "shop.sqlite", "export", "checks"]);
     assert_eq!(after.matches(",AK,").count(), 1, "{after}");
 }
+
+/// Work marked done from the command line carries its hour meter, the fluid put in, the filter
+/// part and the work order: stored, echoed, listed in JSON, exported and imported back the
+/// same in both unit systems. An hour meter below the reading before it or above the one after
+/// it, and a date in the future, are refused with the reason and write nothing.
+#[test]
+fn log_event_records_hour_meter_fluid_filter_part_and_work_order_and_they_round_trip() {
+    crate::backends::on_each_backend(|| {
+        let dir = tempfile::tempdir().unwrap();
+        let d = dir.path();
+        let db = &shop_name("shop.sqlite");
+        ok(d, &["--db", db, "demo"]);
+        // SH-04-A's hour meter read 45868 h on 2026-11-20 and 45905 h on 2026-11-27 (demo).
+        let hours_of = |day: &str| -> f64 {
+            ok(d, &["--db", db, "export", "checks"])
+                .lines()
+                .find(|l| l.starts_with(&format!("SH-04-A,{day}")))
+                .unwrap()
+                .split(',')
+                .nth(9)
+                .unwrap()
+                .parse()
+                .unwrap()
+        };
+        let (before, after) = (hours_of("2026-11-20"), hours_of("2026-11-27"));
+        assert!(before < after);
+        let events_before = ok(d, &["--db", db, "export", "events"]);
+        let log = |extra: &[&str]| -> Vec<String> {
+            let mut a: Vec<String> = [
+                "--db",
+                db,
+                "log-event",
+                "SH-04-A",
+                "fluid_change",
+                "--at",
+                "2026-11-25 10:00",
+                "--by",
+                "T. Fitter",
+                "--volume",
+                "180l",
+                "--fluid",
+                "Stock HM 32",
+            ]
+            .iter()
+            .map(|s| s.to_string())
+            .collect();
+            a.extend(extra.iter().map(|s| s.to_string()));
+            a
+        };
+        fn args(a: &[String]) -> Vec<&str> {
+            a.iter().map(String::as_str).collect()
+        }
+        let e = refused(
+            d,
+            &args(&log(&["--hours", &(before - 8.0).to_string()])),
+            "is below the",
+        );
+        assert!(e.contains(&format!("{before} h read on SH-04-A")), "{e}");
+        let e = refused(
+            d,
+            &args(&log(&["--hours", &(after + 1.0).to_string()])),
+            "is above the",
+        );
+        assert!(e.contains("later, at 2026-11-27"), "{e}");
+        refused(d, &args(&log(&["--hours", "lots"])), "--hours: `lots`");
+        let mut future = log(&[]);
+        future[6] = "2099-01-01 08:00".into();
+        refused(d, &args(&future), "is in the future");
+        let long = "W".repeat(61);
+        refused(
+            d,
+            &args(&log(&["--work-order", &long])),
+            "the work order is 61 characters long",
+        );
+        assert_eq!(
+            ok(d, &["--db", db, "export", "events"]),
+            events_before,
+            "a refusal writes nothing"
+        );
+
+        let mid = ((before + after) / 2.0).round();
+        let out = ok(
+            d,
+            &args(&log(&[
+                "--hours",
+                &format!("{mid}h"),
+                "--filter-part",
+                " RF-10-BN ",
+                "--work-order",
+                "WO-4471",
+                "--json",
+            ])),
+        );
+        let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+        assert_eq!(v["details"]["hours"], mid);
+        assert_eq!(v["details"]["filter_part"], "RF-10-BN");
+        assert_eq!(v["details"]["work_order"], "WO-4471");
+        assert_eq!(v["fluid"], "Stock HM 32");
+        // A filter change with only a part, in words.
+        let out = ok(
+            d,
+            &[
+                "--db",
+                db,
+                "log-event",
+                "SH-04-A",
+                "filter_change",
+                "--at",
+                "2026-11-26 09:00",
+                "--by",
+                "T. Fitter",
+                "--filter-part",
+                "RF-10-BN",
+            ],
+        );
+        assert!(out.contains("  filter part RF-10-BN"), "{out}");
+
+        let lines = exported_by(d, db, "events", "SH-04-A", "T. Fitter");
+        assert_eq!(lines.len(), 2, "{lines:?}");
+        assert!(
+            lines[0].ends_with(&format!(",{mid},RF-10-BN,WO-4471")),
+            "{lines:?}"
+        );
+        assert!(lines[1].ends_with(",,RF-10-BN,"), "{lines:?}");
+
+        // Exported and imported into a new shop, in each unit system: the same events.
+        for units in ["metric", "us"] {
+            let copy = &shop_name(&format!("copy-{units}.sqlite"));
+            ok(d, &["--db", copy, "init"]);
+            for kind in ["units", "events"] {
+                let file = format!("{kind}-{units}.csv");
+                ok(
+                    d,
+                    &["--db", db, "export", kind, "--units", units, "--out", &file],
+                );
+                ok(d, &["--db", copy, "import", kind, &file]);
+            }
+            assert_eq!(
+                ok(d, &["--db", copy, "export", "events", "--units", "metric"]),
+                ok(d, &["--db", db, "export", "events", "--units", "metric"]),
+                "events through a {units} file"
+            );
+        }
+    });
+}

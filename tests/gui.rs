@@ -744,6 +744,7 @@ fn a_unit_without_readings_since_its_fluid_change_shows_not_judged_yet_and_what_
             fluid: None,
             by: "R. Engineer".into(),
             note: String::new(),
+            details: Default::default(),
         };
         sumpbook::app::work::log_event(&s, &tag, &input).unwrap();
         // And its first walk-round check of the new era, half an hour later (so no check is
@@ -890,6 +891,7 @@ fn a_save_made_elsewhere_shows_on_the_board_at_the_next_look() {
             fluid: None,
             by: "R. Engineer".into(),
             note: String::new(),
+            details: Default::default(),
         };
         sumpbook::app::work::log_event(&other, &tag, &input).unwrap();
         tag
@@ -1928,4 +1930,153 @@ fn file_fields_have_the_desktops_chooser_beside_the_typed_path() {
         field(&f.app, "Report file").accessible_value().unwrap(),
         typed.display().to_string()
     );
+}
+
+/// Marking a fluid change done from the work list: the caution is beside the form, the form
+/// opens on when it was done (now, the shop's time) with the cursor there, Tab goes on to who,
+/// the fluid is chosen from the shop's fluids (the unit's own first), and Enter records it from
+/// any field. An hour meter below the last reading is refused with the reason, the cursor goes
+/// to it and nothing typed is lost; corrected, the event is stored with every detail and the
+/// unit's history lists them.
+#[test]
+fn mark_done_records_when_hour_meter_fluid_filter_part_and_work_order_from_the_keyboard() {
+    use sumpbook::gui::ui::{UnitAdapter, WorkAdapter};
+    let f = open_demo();
+    f.app.show(Screen::Work);
+    let label = labels_starting(&f.app, "Mark done… ")
+        .into_iter()
+        .find(|l| l.ends_with(" fluid change"))
+        .expect("a fluid change on the work list");
+    let tag = label
+        .trim_start_matches("Mark done… ")
+        .trim_end_matches(" fluid change")
+        .to_string();
+    button(&f.app, &label).invoke_accessible_default_action();
+    let a = f.app.window().global::<WorkAdapter>();
+    assert!(
+        a.get_safety().contains("Relieve pressure"),
+        "{}",
+        a.get_safety()
+    );
+    assert!(
+        a.get_safety().contains("machine builder"),
+        "{}",
+        a.get_safety()
+    );
+    let zone = sumpbook::app::entry::shop_settings(&shop(&f.path))
+        .unwrap()
+        .time_zone;
+    let at_label = format!("Done on (shop time, {zone})");
+    let now = demo_now().unwrap();
+    let tz: chrono_tz::Tz = zone.parse().unwrap();
+    assert_eq!(
+        field(&f.app, &at_label).accessible_value().unwrap(),
+        now.with_timezone(&tz).format("%Y-%m-%d %H:%M").to_string()
+    );
+    // The shop's fluids to choose from, the unit's fluid in service chosen.
+    let s = shop(&f.path);
+    let unit = s.store_for_tests().unit_by_tag(&tag).unwrap().unwrap();
+    let fluids: Vec<String> = a.get_fluids().iter().map(|f| f.to_string()).collect();
+    let in_service = s
+        .store_for_tests()
+        .fluid(unit.fluid_id.unwrap())
+        .unwrap()
+        .unwrap()
+        .name;
+    assert_eq!(
+        fluids.get(a.get_fluid_index() as usize),
+        Some(&in_service),
+        "{fluids:?}"
+    );
+    assert!(fluids.len() >= 2, "{fluids:?}");
+    let other = fluids.iter().position(|n| *n != in_service).unwrap();
+    with_role(&f.app, "Fluid put in", AccessibleRole::Combobox);
+    a.set_fluid_index(other as i32);
+
+    // The cursor is on "Done on": a minute earlier typed over it, Tab to who.
+    let earlier = now - chrono::Duration::minutes(1);
+    field(&f.app, &at_label).set_accessible_value(
+        earlier
+            .with_timezone(&tz)
+            .format("%Y-%m-%d %H:%M")
+            .to_string(),
+    );
+    key(&f.app, Key::Tab);
+    type_text(&f.app, "T. Fitter");
+    assert_eq!(
+        field(&f.app, "Done by").accessible_value().unwrap(),
+        "T. Fitter"
+    );
+    let last = s
+        .store_for_tests()
+        .hour_meter_around(unit.id, now)
+        .unwrap()
+        .before
+        .expect("the unit's hour meter was read")
+        .0;
+    assert!(a.get_hours_hint().starts_with(&format!("{last} h on ")));
+    key(&f.app, Key::Tab);
+    type_text(&f.app, &format!("{}", last - 10.0));
+    let volume = labels_starting(&f.app, "Volume put in (");
+    field(&f.app, &volume[0]).set_accessible_value("180");
+    field(&f.app, "Filter part").set_accessible_value("RF-10-BN");
+    field(&f.app, "Work order").set_accessible_value("WO-4471");
+    field(&f.app, "Hour meter (h)").set_accessible_value(format!("{}", last - 10.0));
+    key(&f.app, Key::Return);
+    let msg = message(&f.app);
+    assert!(msg.contains("is below the"), "{msg}");
+    let events = |s: &Shop| s.store_for_tests().events_for_unit(unit.id, None).unwrap();
+    let before = events(&s).len();
+    assert_eq!(a.get_focus_on(), "hours");
+    assert_eq!(
+        field(&f.app, "Filter part").accessible_value().unwrap(),
+        "RF-10-BN"
+    );
+    assert_eq!(
+        field(&f.app, "Done by").accessible_value().unwrap(),
+        "T. Fitter"
+    );
+
+    // Corrected, Enter records it.
+    field(&f.app, "Hour meter (h)").set_accessible_value(format!("{}", last + 4.0));
+    key(&f.app, Key::Return);
+    let msg = message(&f.app);
+    assert!(msg.starts_with("Recorded: fluid change on"), "{msg}");
+    let after = events(&shop(&f.path));
+    assert_eq!(after.len(), before + 1, "{msg}");
+    let e = after.iter().find(|e| e.by == "T. Fitter").unwrap();
+    assert_eq!(e.done_at, earlier);
+    assert_eq!(e.kind, sumpbook::model::EventKind::FluidChange);
+    assert!((e.volume.unwrap().litres() - 180.0).abs() < 1e-9);
+    assert_eq!(
+        e.fluid_id.map(|id| id != unit.fluid_id.unwrap()),
+        Some(true)
+    );
+    let details = shop(&f.path)
+        .store_for_tests()
+        .event_details_of_unit(unit.id)
+        .unwrap();
+    let (_, d) = details.iter().find(|(id, _)| *id == e.id).unwrap();
+    assert_eq!(d.hours, Some(last + 4.0));
+    assert_eq!(d.filter_part, "RF-10-BN");
+    assert_eq!(d.work_order, "WO-4471");
+
+    // The unit's history lists the work done with its details, newest first.
+    f.app.open_unit(unit.id);
+    let u = f.app.window().global::<UnitAdapter>();
+    u.invoke_choose_table(2);
+    let columns: Vec<String> = u
+        .get_columns()
+        .iter()
+        .map(|c| c.title.to_string())
+        .collect();
+    let row = u.get_rows().row_data(0).unwrap();
+    let cell = |title: &str| {
+        let i = columns.iter().position(|c| c == title).unwrap();
+        row.row_data(i).unwrap().text.to_string()
+    };
+    assert_eq!(cell("Hour meter h"), format!("{}", last + 4.0));
+    assert_eq!(cell("Filter part"), "RF-10-BN");
+    assert_eq!(cell("Work order"), "WO-4471");
+    assert_eq!(cell("By"), "T. Fitter");
 }

@@ -17,3 +17,8 @@ pub use crate::report::Paper;
 pub use crate::sim::score::FaultFigures;
 pub use crate::sim::shop::Params as SimParams;
 pub use crate::store::roles::ShopRole;
+
+/// Said after the one-line caution beside a form that records work which opened the circuit
+/// (a fluid or filter change): who decides how the work is done.
+pub const WHO_DECIDES: &str = "The machine builder's instructions, local codes and qualified \
+people decide how the work is done.";

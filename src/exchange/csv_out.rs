@@ -10,7 +10,7 @@ use std::collections::HashMap;
 use std::io::Write;
 
 use super::{escape_cell, ExchangeError, FileKind};
-use crate::model::{Check, Confirmation, Event, Fluid, Id, Machine, Sample, Unit};
+use crate::model::{Check, Confirmation, Event, EventDetails, Fluid, Id, Machine, Sample, Unit};
 use crate::store::{columns, fmt_time_stamp, Store, StoreError};
 use crate::units::UnitSystem;
 
@@ -94,6 +94,9 @@ pub fn header(kind: FileKind, system: UnitSystem) -> Vec<&'static str> {
                 "fluid_name",
                 "by",
                 "note",
+                "hours",
+                "filter_part",
+                "work_order",
             ]
         }
     }
@@ -253,7 +256,7 @@ pub fn export(
             })?;
         }
         FileKind::Events => {
-            store.each_event(|e: Event| -> Result<(), ExchangeError> {
+            store.each_event(|e: Event, d: EventDetails| -> Result<(), ExchangeError> {
                 w.write_record([
                     tag(e.unit_id)?,
                     fmt_time_stamp(&e.done_at),
@@ -262,6 +265,9 @@ pub fn export(
                     fluid_name(e.fluid_id),
                     text(&e.by),
                     text(&e.note),
+                    num(d.hours.map(columns::tidy)),
+                    text(&d.filter_part),
+                    text(&d.work_order),
                 ])
                 .map_err(werr)?;
                 rows += 1;

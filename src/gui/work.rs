@@ -10,6 +10,7 @@ use super::ui::HealthState;
 use super::ui::{WorkAdapter, WorkRow};
 use super::{err_text, model, on, on_arg, s, Ctx, Screen};
 use crate::app::entry;
+use crate::app::entry::MarkDoneForm;
 use crate::app::vocab::WorkKind;
 use crate::app::vocab::CAUTION_SHORT;
 use crate::app::work::{DueBucket, DueItem};
@@ -18,6 +19,8 @@ use crate::quantity::Kind;
 #[derive(Default)]
 pub(crate) struct WorkState {
     items: Vec<DueItem>,
+    /// The shop's fluids as the form's fluid list shows them.
+    fluids: Vec<String>,
 }
 
 pub(super) fn install(ctx: &Rc<Ctx>) {
@@ -129,8 +132,39 @@ fn choose(ctx: &Rc<Ctx>, i: i32) {
             }
         }
         _ => {
-            a.set_needs_litres(item.kind == WorkKind::FluidChange);
+            let prompt = match entry::mark_done_prompt(&ctx.shop, &item.unit, item.kind, ctx.now())
+            {
+                Ok(p) => p,
+                Err(e) => {
+                    a.set_message(s(err_text(&e)));
+                    a.set_message_level(2);
+                    return;
+                }
+            };
+            let f = &prompt.form;
+            a.set_done_at(s(&f.at));
+            a.set_zone_name(s(ctx.zone.get().name()));
+            a.set_hours(s(""));
+            a.set_hours_hint(s(&prompt.last_hours));
+            a.set_litres(s(""));
+            a.set_filter_part(s(""));
+            a.set_work_order(s(""));
+            a.set_note(s(""));
+            a.set_fluids(model(prompt.fluids.iter().map(s).collect()));
+            a.set_fluid_index(
+                prompt
+                    .fluids
+                    .iter()
+                    .position(|n| *n == f.fluid)
+                    .map_or(-1, |p| p as i32),
+            );
+            a.set_safety(s(prompt.caution.as_deref().unwrap_or(CAUTION_SHORT)));
+            a.set_needs_litres(prompt.takes_fluid);
+            ctx.work.borrow_mut().fluids = prompt.fluids;
+            // The cursor on the first field: when, then Tab through the rest.
+            a.set_focus_on(s("at"));
             a.set_done_index(i);
+            a.set_focus_tick(a.get_focus_tick() + 1);
         }
     }
 }
@@ -143,20 +177,21 @@ fn mark_done(ctx: &Rc<Ctx>) {
     let Some(item) = item.filter(|_| i >= 0) else {
         return;
     };
-    let volume = if item.kind == WorkKind::FluidChange {
-        a.get_litres().to_string()
-    } else {
-        String::new()
+    let fluid = usize::try_from(a.get_fluid_index())
+        .ok()
+        .and_then(|i| ctx.work.borrow().fluids.get(i).cloned())
+        .unwrap_or_default();
+    let form = MarkDoneForm {
+        at: a.get_done_at().to_string(),
+        by: a.get_by().to_string(),
+        hours: a.get_hours().to_string(),
+        fluid,
+        volume: a.get_litres().to_string(),
+        filter_part: a.get_filter_part().to_string(),
+        work_order: a.get_work_order().to_string(),
+        note: a.get_note().to_string(),
     };
-    match entry::mark_done(
-        &ctx.shop,
-        &item.unit,
-        item.kind,
-        &a.get_by(),
-        &a.get_note(),
-        &volume,
-        ctx.now(),
-    ) {
+    match entry::mark_done(&ctx.shop, &item.unit, item.kind, &form, ctx.now()) {
         Ok(logged) => {
             let next = logged
                 .work
@@ -166,6 +201,9 @@ fn mark_done(ctx: &Rc<Ctx>) {
                 .unwrap_or_default();
             a.set_note(s(""));
             a.set_litres(s(""));
+            a.set_hours(s(""));
+            a.set_filter_part(s(""));
+            a.set_work_order(s(""));
             refresh(ctx);
             a.set_message(s(format!(
                 "Recorded: {} on {}.{}",
@@ -180,9 +218,15 @@ fn mark_done(ctx: &Rc<Ctx>) {
             a.set_message_level(0);
             super::fleet::refresh(ctx);
         }
-        Err(e) => {
-            a.set_message(s(err_text(&e)));
+        Err(refused) => {
+            // Nothing was written and every field keeps what was typed; the cursor goes to
+            // the field at fault.
+            a.set_message(s(err_text(&refused.error)));
             a.set_message_level(2);
+            if !refused.field.is_empty() {
+                a.set_focus_on(s(refused.field));
+                a.set_focus_tick(a.get_focus_tick() + 1);
+            }
         }
     }
 }

@@ -22,12 +22,14 @@ use std::collections::HashMap;
 
 use super::checks::{check_from_row, CheckRow, CHECK_COLS, INSERT_CHECK};
 use super::db::params;
-use super::events::{event_from_row, EventRow, EVENT_COLS, INSERT_EVENT};
+use super::events::{
+    details_from_row, event_from_row, EventRow, DETAIL_COLS, EVENT_COLS, INSERT_EVENT,
+};
 use super::fluids::{FluidRow, INSERT_FLUID};
 use super::machines_units::{check_machine, UnitRow, INSERT_MACHINE, INSERT_UNIT};
 use super::samples::{sample_from_row, SampleRow, INSERT_SAMPLE, SAMPLE_COLS};
 use super::{Store, StoreError, TxGuard};
-use crate::model::{Check, Event, Fluid, Id, Machine, Sample, Unit};
+use crate::model::{Check, Event, EventDetails, Fluid, Id, Machine, Sample, Unit};
 
 /// What happened to one row written through [`Bulk`].
 #[derive(Debug, Clone, PartialEq)]
@@ -62,7 +64,8 @@ impl BulkSql {
             ),
             ins_event: format!("{INSERT_EVENT} ON CONFLICT (unit_id, done_at, kind) DO NOTHING"),
             sel_event: format!(
-                "SELECT {EVENT_COLS} FROM events WHERE unit_id = ?1 AND done_at = ?2 AND kind = ?3"
+                "SELECT {EVENT_COLS}, {DETAIL_COLS} FROM events \
+                 WHERE unit_id = ?1 AND done_at = ?2 AND kind = ?3"
             ),
         }
     }
@@ -266,14 +269,27 @@ impl<'s> Bulk<'s> {
 
     /// Writes an event unless one of the same unit, time and kind is stored.
     pub fn put_event(&mut self, e: &Event) -> Result<Put<Event>, StoreError> {
-        let row = EventRow::from_model(e)?;
+        Ok(match self.put_event_with(e, &EventDetails::default())? {
+            Put::Inserted(id) => Put::Inserted(id),
+            Put::Exists(stored) => Put::Exists(Box::new(stored.0)),
+        })
+    }
+
+    /// Writes an event with what was recorded beside it unless one of the same unit, time and
+    /// kind is stored (then the stored one, with its details).
+    pub fn put_event_with(
+        &mut self,
+        e: &Event,
+        d: &EventDetails,
+    ) -> Result<Put<(Event, EventDetails)>, StoreError> {
+        let row = EventRow::from_model(e, d)?;
         let store = self.store;
         store.count();
         let stored = || {
             store.query_opt(
                 &self.sql.sel_event,
                 params![row.unit_id, row.done_at, row.kind],
-                event_from_row,
+                |r| Ok((event_from_row(r)?, details_from_row(r)?)),
             )
         };
         // A shop file: look first (see the module documentation).
@@ -282,7 +298,7 @@ impl<'s> Bulk<'s> {
                 return Ok(Put::Exists(Box::new(existing)));
             }
         }
-        let id = self.insert_reading(&self.sql.ins_event, &row.params()[..])?;
+        let id = self.insert_reading(&self.sql.ins_event, &row.insert_params()[..])?;
         if let Some(id) = id {
             return Ok(Put::Inserted(id));
         }

@@ -1,5 +1,6 @@
 //! Maintenance events (fluid change, top-up, filter change, rebuild, repair, cooler clean,
-//! note): typed reads and writes of the `events` table.
+//! note): typed reads and writes of the `events` table, with what marking work done records
+//! beside an event (hour meter, filter part, work order: [`EventDetails`]).
 //!
 //! One row per unit, time and kind. No CSV, no health.
 
@@ -8,10 +9,26 @@ use chrono::{DateTime, Utc};
 
 use super::columns::litres;
 use super::{enum_col, fmt_time, time_col, Store, StoreError};
-use crate::model::{Event, Id};
+use crate::model::{Event, EventDetails, Id};
 use crate::units::Volume;
 
 pub(crate) const EVENT_COLS: &str = "id, unit_id, done_at, kind, volume_l, fluid_id, done_by, note";
+
+/// The columns of [`EventDetails`], read after [`EVENT_COLS`].
+pub(crate) const DETAIL_COLS: &str = "hours, filter_part, work_order";
+
+/// The details of an event row read as `EVENT_COLS, DETAIL_COLS`.
+pub(crate) fn details_from_row(r: &Row<'_>) -> Result<EventDetails, StoreError> {
+    Ok(EventDetails {
+        hours: r.get(8)?,
+        filter_part: r.get(9)?,
+        work_order: r.get(10)?,
+    })
+}
+
+fn event_and_details(r: &Row<'_>) -> Result<(Event, EventDetails), StoreError> {
+    Ok((event_from_row(r)?, details_from_row(r)?))
+}
 
 pub(crate) fn event_from_row(r: &Row<'_>) -> Result<Event, StoreError> {
     Ok(Event {
@@ -36,10 +53,13 @@ pub(crate) struct EventRow<'a> {
     pub fluid_id: Option<Id>,
     pub done_by: &'a str,
     pub note: &'a str,
+    pub hours: Option<f64>,
+    pub filter_part: &'a str,
+    pub work_order: &'a str,
 }
 
 impl<'a> EventRow<'a> {
-    pub fn from_model(e: &'a Event) -> Result<Self, StoreError> {
+    pub fn from_model(e: &'a Event, d: &'a EventDetails) -> Result<Self, StoreError> {
         Ok(EventRow {
             unit_id: e.unit_id,
             done_at: fmt_time("done_at", &e.done_at)?,
@@ -48,9 +68,13 @@ impl<'a> EventRow<'a> {
             fluid_id: e.fluid_id,
             done_by: &e.by,
             note: &e.note,
+            hours: d.hours,
+            filter_part: &d.filter_part,
+            work_order: &d.work_order,
         })
     }
 
+    /// The event's columns (`EVENT_COLS` after `id`), as [`Store::update_event`] binds them.
     pub fn params(&self) -> [&dyn ToDb; 7] {
         [
             &self.unit_id,
@@ -62,6 +86,22 @@ impl<'a> EventRow<'a> {
             &self.note,
         ]
     }
+
+    /// Every column of a new row, as [`INSERT_EVENT`] binds them.
+    pub fn insert_params(&self) -> [&dyn ToDb; 10] {
+        [
+            &self.unit_id,
+            &self.done_at,
+            &self.kind,
+            &self.volume_l,
+            &self.fluid_id,
+            &self.done_by,
+            &self.note,
+            &self.hours,
+            &self.filter_part,
+            &self.work_order,
+        ]
+    }
 }
 
 /// The events of one unit up to a time (`?1` unit, `?2` time), oldest first.
@@ -70,19 +110,74 @@ pub(crate) fn unit_events_sql() -> String {
 }
 
 pub(crate) const INSERT_EVENT: &str =
-    "INSERT INTO events (unit_id, done_at, kind, volume_l, fluid_id, done_by, note) \
-     VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7)";
+    "INSERT INTO events (unit_id, done_at, kind, volume_l, fluid_id, done_by, note, hours, \
+     filter_part, work_order) VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)";
 
 impl Store {
     /// Records one event and returns its id.
     pub fn insert_event(&self, e: &Event) -> Result<Id, StoreError> {
-        let row = EventRow::from_model(e)?;
-        self.insert_row(INSERT_EVENT, &row.params()[..])
+        self.insert_event_with(e, &EventDetails::default())
+    }
+
+    /// Records one event with what marking it done recorded beside it; returns its id.
+    pub fn insert_event_with(&self, e: &Event, d: &EventDetails) -> Result<Id, StoreError> {
+        let row = EventRow::from_model(e, d)?;
+        self.insert_row(INSERT_EVENT, &row.insert_params()[..])
     }
 
     pub fn event(&self, id: Id) -> Result<Option<Event>, StoreError> {
         let sql = format!("SELECT {EVENT_COLS} FROM events WHERE id = ?1");
         self.query_opt(&sql, params![id], event_from_row)
+    }
+
+    /// What marking work done recorded beside each event of one unit, by event id, oldest
+    /// first; events with nothing recorded beside them are left out.
+    pub fn event_details_of_unit(
+        &self,
+        unit_id: Id,
+    ) -> Result<Vec<(Id, EventDetails)>, StoreError> {
+        let sql = format!(
+            "SELECT id, {DETAIL_COLS} FROM events WHERE unit_id = ?1 \
+             AND (hours IS NOT NULL OR filter_part <> '' OR work_order <> '') ORDER BY done_at, kind"
+        );
+        self.query(&sql, params![unit_id], |r| {
+            Ok((
+                r.get(0)?,
+                EventDetails {
+                    hours: r.get(1)?,
+                    filter_part: r.get(2)?,
+                    work_order: r.get(3)?,
+                },
+            ))
+        })
+    }
+
+    /// The highest hour meter read on a unit at or before `at` (checks and work done), and
+    /// the lowest read after it, each with when it was read: an hour meter only counts up, so
+    /// a new reading at `at` belongs between them.
+    pub fn hour_meter_around(
+        &self,
+        unit_id: Id,
+        at: DateTime<Utc>,
+    ) -> Result<HourMeterAround, StoreError> {
+        let at = fmt_time("at", &at)?;
+        let read = |sql: &str| -> Result<Option<(f64, DateTime<Utc>)>, StoreError> {
+            self.query_opt(sql, params![unit_id, at], |r| {
+                Ok((r.get::<f64>(0)?, time_col(r, 1)?))
+            })
+        };
+        let readings = "SELECT hours, taken_at AS read_at FROM checks WHERE unit_id = ?1 AND hours IS NOT NULL \
+             UNION ALL SELECT hours, done_at AS read_at FROM events WHERE unit_id = ?1 AND hours IS NOT NULL";
+        Ok(HourMeterAround {
+            before: read(&format!(
+                "SELECT hours, read_at FROM ({readings}) r WHERE read_at <= ?2 \
+                 ORDER BY hours DESC, read_at LIMIT 1"
+            ))?,
+            after: read(&format!(
+                "SELECT hours, read_at FROM ({readings}) r WHERE read_at > ?2 \
+                 ORDER BY hours, read_at LIMIT 1"
+            ))?,
+        })
     }
 
     /// The events of one unit, oldest first; with `at`, only those done at or before it.
@@ -96,8 +191,10 @@ impl Store {
     }
 
     /// Changes a stored event (found by `e.id`), keeping the old values in the edit history.
+    /// What was recorded beside it (hour meter, filter part, work order) stays as stored.
     pub fn update_event(&self, e: &Event, by: &str, reason: &str) -> Result<(), StoreError> {
-        let row = EventRow::from_model(e)?;
+        let kept = EventDetails::default();
+        let row = EventRow::from_model(e, &kept)?;
         self.with_edit(by, reason, |s| {
             let mut p: Vec<&dyn ToDb> = row.params().to_vec();
             p.push(&e.id);
@@ -124,13 +221,28 @@ impl Store {
     }
 }
 
+/// The hour meter read on a unit around a moment; see [`Store::hour_meter_around`].
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct HourMeterAround {
+    /// The highest reading at or before the moment, and when it was read.
+    pub before: Option<(f64, DateTime<Utc>)>,
+    /// The lowest reading after the moment, and when it was read.
+    pub after: Option<(f64, DateTime<Utc>)>,
+}
+
 impl Store {
-    /// Every event of the shop in time order (then by unit and kind), one at a time.
+    /// Every event of the shop in time order (then by unit and kind), one at a time, with
+    /// what was recorded beside it.
     pub fn each_event<E: From<StoreError>>(
         &self,
-        mut f: impl FnMut(Event) -> Result<(), E>,
+        mut f: impl FnMut(Event, EventDetails) -> Result<(), E>,
     ) -> Result<(), E> {
-        let sql = format!("SELECT {EVENT_COLS} FROM events ORDER BY done_at, unit_id, kind");
-        self.query_each(&sql, params![], |r| f(event_from_row(r)?))
+        let sql = format!(
+            "SELECT {EVENT_COLS}, {DETAIL_COLS} FROM events ORDER BY done_at, unit_id, kind"
+        );
+        self.query_each(&sql, params![], |r| {
+            let (e, d) = event_and_details(r)?;
+            f(e, d)
+        })
     }
 }

@@ -7,11 +7,11 @@ use super::*;
 use chrono::{DateTime, Utc};
 
 use crate::app::shop::Shop;
-use crate::app::status::{unit_read_in, UnitStatus};
+use crate::app::status::{store_error, unit_read_in, UnitStatus};
 use crate::app::work::{self as work, EventInput, LoggedEvent};
 use crate::app::AppError;
 use crate::health::{FlagKind, WorkKind};
-use crate::model::{EventKind, Fluid, Id, UnitHistory};
+use crate::model::{EventDetails, EventKind, Fluid, Id, UnitHistory};
 use crate::quantity::Kind;
 use crate::units::{UnitSystem, Volume};
 
@@ -26,6 +26,19 @@ pub struct UnitView {
     pub zone: crate::app::local_time::Zone,
     /// Every correction and deletion of the unit's records.
     pub edits: crate::app::edit_trail::UnitEdits,
+    /// What was recorded beside the unit's events (hour meter, filter part, work order), by
+    /// event id; events with nothing beside them are not listed.
+    pub event_details: Vec<(Id, EventDetails)>,
+}
+
+impl UnitView {
+    /// What was recorded beside event `id`, if anything.
+    pub fn details_of(&self, id: Id) -> Option<&EventDetails> {
+        self.event_details
+            .iter()
+            .find(|(e, _)| *e == id)
+            .map(|(_, d)| d)
+    }
 }
 
 pub fn unit_view(shop: &Shop, unit_id: Id, now: DateTime<Utc>) -> Result<UnitView, AppError> {
@@ -34,7 +47,9 @@ pub fn unit_view(shop: &Shop, unit_id: Id, now: DateTime<Utc>) -> Result<UnitVie
     // made from the same read.
     let read = unit_read_in(store, unit_id, Some(now))?;
     let edits = crate::app::edit_trail::unit_edits_in(store, &read.history.unit.tag)?;
+    let event_details = store.event_details_of_unit(unit_id).map_err(store_error)?;
     Ok(UnitView {
+        event_details,
         status: read.status,
         history: read.history,
         fluids: read.fluids,
@@ -109,36 +124,173 @@ pub fn event_for(kind: WorkKind) -> Option<EventKind> {
     }
 }
 
-/// Marks planned work on a unit done by recording its event; `volume` is the fluid put in
-/// (blank allowed; a bare number in the shop's unit).
+/// What the "Mark done" form holds, as typed: every field is text, read in the shop's units
+/// and time zone when the work is recorded.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct MarkDoneForm {
+    /// When it was done, in the shop's time; blank is now.
+    pub at: String,
+    pub by: String,
+    /// The hour meter, in hours.
+    pub hours: String,
+    /// The fluid put in, by name (a fluid change); blank is the unit's fluid in service.
+    pub fluid: String,
+    /// The fluid put in: a bare number in the shop's unit, or with its unit.
+    pub volume: String,
+    pub filter_part: String,
+    pub work_order: String,
+    pub note: String,
+}
+
+/// The "Mark done" form as it opens on a piece of work: the time now in the shop's zone, the
+/// unit's fluid in service, the fluids to choose from, what the hour meter last read, and the
+/// caution for work that opens the circuit.
+#[derive(Clone, Debug, PartialEq)]
+pub struct MarkDonePrompt {
+    pub form: MarkDoneForm,
+    /// The shop's fluids by name, for the fluid put in.
+    pub fluids: Vec<String>,
+    /// Whether the work puts fluid in (the fluid and volume fields).
+    pub takes_fluid: bool,
+    /// What the hour meter last read and when (`10121 h on 2024-11-18 07:31 CST`), or `""`.
+    pub last_hours: String,
+    /// The safety caution shown beside the form where the work opens the circuit.
+    pub caution: Option<String>,
+}
+
+/// The form to mark `kind` done on unit `tag` at `now`.
+pub fn mark_done_prompt(
+    shop: &Shop,
+    tag: &str,
+    kind: WorkKind,
+    now: DateTime<Utc>,
+) -> Result<MarkDonePrompt, AppError> {
+    let store = shop.store();
+    let zone = crate::app::shop::zone_of(store);
+    let unit = store
+        .unit_by_tag(tag)
+        .map_err(store_error)?
+        .ok_or_else(|| AppError::BadInput(format!("no unit `{}` in this shop", tag.trim())))?;
+    let fluids = store.fluids().map_err(store_error)?;
+    let in_service = unit
+        .fluid_id
+        .and_then(|id| fluids.iter().find(|f| f.id == id))
+        .map(|f| f.name.clone())
+        .unwrap_or_default();
+    let takes_fluid = kind == WorkKind::FluidChange;
+    let last_hours = store
+        .hour_meter_around(unit.id, now)
+        .map_err(store_error)?
+        .before
+        .map(|(h, at)| format!("{h} h on {}", zone.show_marked(at)))
+        .unwrap_or_default();
+    Ok(MarkDonePrompt {
+        form: MarkDoneForm {
+            at: zone.show(now),
+            fluid: if takes_fluid {
+                in_service
+            } else {
+                String::new()
+            },
+            ..MarkDoneForm::default()
+        },
+        fluids: fluids.into_iter().map(|f| f.name).collect(),
+        takes_fluid,
+        last_hours,
+        caution: matches!(kind, WorkKind::FluidChange | WorkKind::FilterChange).then(|| {
+            format!(
+                "{} {}",
+                crate::app::vocab::CAUTION_SHORT,
+                crate::app::vocab::WHO_DECIDES
+            )
+        }),
+    })
+}
+
+/// A refusal of the "Mark done" form: the field to put the cursor in (`at`, `by`, `hours`,
+/// `volume`, `filter_part`, `work_order`; `""` when no one field is at fault) and why. Nothing
+/// was written.
+#[derive(Debug)]
+pub struct MarkDoneRefused {
+    pub field: &'static str,
+    pub error: AppError,
+}
+
+impl std::fmt::Display for MarkDoneRefused {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        self.error.fmt(f)
+    }
+}
+
+/// Marks planned work on a unit done by recording its event with what the form holds: when
+/// (the shop's time, blank now), the hour meter, the fluid and volume put in (a fluid change),
+/// the filter part and the work order. Nothing is written unless every field reads.
 pub fn mark_done(
     shop: &Shop,
     tag: &str,
     kind: WorkKind,
-    by: &str,
-    note: &str,
-    volume: &str,
+    form: &MarkDoneForm,
     now: DateTime<Utc>,
-) -> Result<LoggedEvent, AppError> {
-    let by = need("Done by", by)?;
+) -> Result<LoggedEvent, MarkDoneRefused> {
+    let on = |field: &'static str| move |error: AppError| MarkDoneRefused { field, error };
+    let bad = |field: &'static str| {
+        move |e: String| MarkDoneRefused {
+            field,
+            error: AppError::BadInput(e),
+        }
+    };
+    let by = need("Done by", &form.by).map_err(on("by"))?;
     let store = shop.store();
-    let system = settings(store)?.unit_system;
+    let system = settings(store).map_err(on(""))?.unit_system;
+    let zone = crate::app::shop::zone_of(store);
     let Some(event) = event_for(kind) else {
-        return Err(AppError::BadInput(format!(
+        return Err(bad("")(format!(
             "a {} is done by entering it, not by marking it",
             kind.label()
         )));
     };
-    let volume = read_quantity(volume, Kind::Volume, system)
-        .map_err(AppError::BadInput)?
-        .map(Volume);
+    let at = read_when(&form.at, now, zone)
+        .map_err(|e| format!("Done on: {e}"))
+        .map_err(bad("at"))?;
+    let hours = read_number(form.hours.trim().trim_end_matches('h'))
+        .map_err(|e| format!("Hour meter: {e}"))
+        .map_err(bad("hours"))?;
+    let takes_fluid = kind == WorkKind::FluidChange;
+    let (volume, fluid) = if takes_fluid {
+        let volume = read_quantity(&form.volume, Kind::Volume, system)
+            .map_err(|e| format!("Fluid put in: {e}"))
+            .map_err(bad("volume"))?
+            .map(Volume);
+        if volume.is_some_and(|v| v.si().is_nan() || v.si() <= 0.0) {
+            return Err(bad("volume")("Fluid put in: must be more than zero".into()));
+        }
+        let fluid = Some(form.fluid.trim().to_string()).filter(|f| !f.is_empty());
+        (volume, fluid)
+    } else {
+        (None, None)
+    };
+    let details = work::check_details_in(
+        store,
+        tag,
+        at,
+        &EventDetails {
+            hours,
+            filter_part: form.filter_part.clone(),
+            work_order: form.work_order.clone(),
+        },
+    )
+    .map_err(|r| MarkDoneRefused {
+        field: r.field,
+        error: r.error,
+    })?;
     let input = EventInput {
         kind: event,
-        at: None,
+        at: Some(at),
         volume,
-        fluid: None,
+        fluid,
         by,
-        note: note.trim().to_string(),
+        note: form.note.trim().to_string(),
+        details,
     };
-    work::log_event_in(store, tag, &input, now)
+    work::log_event_in(store, tag, &input, now).map_err(on(""))
 }

@@ -14,7 +14,7 @@ use super::AppError;
 use crate::health::limits::{LimitKey, Limits};
 use crate::health::plan::SAFETY_CAUTIONS;
 use crate::health::{Flag, FlagKind, State, WorkItem, WorkKind};
-use crate::model::{Acknowledgement, Event, EventKind, Unit};
+use crate::model::{Acknowledgement, Event, EventDetails, EventKind, Unit};
 use crate::store::{Store, StoreError};
 use crate::units::Volume;
 
@@ -250,6 +250,8 @@ pub struct LoggedEvent {
     pub event: Event,
     /// The fluid put in, by name.
     pub fluid: Option<String>,
+    /// The hour meter, filter part and work order recorded with it.
+    pub details: EventDetails,
     /// Whether the unit register's fluid in service was changed to it.
     pub fluid_in_service_changed: bool,
     /// The unit's planned work after the event.
@@ -267,6 +269,136 @@ pub struct EventInput {
     pub fluid: Option<String>,
     pub by: String,
     pub note: String,
+    /// The hour meter when it was done, the filter part fitted and the work order.
+    pub details: EventDetails,
+}
+
+/// What was recorded beside an event, in words (`hour meter 10250 h · filter part RF-10 ·
+/// work order WO-4471`), `""` when nothing was.
+pub fn details_words(d: &EventDetails) -> String {
+    let mut parts = Vec::new();
+    if let Some(h) = d.hours {
+        parts.push(format!("hour meter {h} h"));
+    }
+    if !d.filter_part.is_empty() {
+        parts.push(format!("filter part {}", d.filter_part));
+    }
+    if !d.work_order.is_empty() {
+        parts.push(format!("work order {}", d.work_order));
+    }
+    parts.join(" · ")
+}
+
+/// The longest filter part number or work-order reference taken: either is a reference, not a
+/// note (the note takes the words).
+const MAX_REFERENCE_CHARS: usize = 60;
+
+/// A refusal of what was recorded beside an event, with the field it concerns (`hours`,
+/// `filter_part` or `work_order`), so that a form can put the cursor there.
+#[derive(Debug)]
+pub struct DetailRefused {
+    pub field: &'static str,
+    pub error: AppError,
+}
+
+/// The details of work on unit `tag` at `at` as they would be stored; see [`checked_details`].
+pub fn check_details_in(
+    store: &Store,
+    tag: &str,
+    at: DateTime<Utc>,
+    d: &EventDetails,
+) -> Result<EventDetails, DetailRefused> {
+    let unit = store
+        .unit_by_tag(tag)
+        .map_err(store_error)
+        .and_then(|u| {
+            u.ok_or_else(|| AppError::BadInput(format!("no unit `{}` in this shop", tag.trim())))
+        })
+        .map_err(|error| DetailRefused { field: "", error })?;
+    checked_details(store, &unit, at, d, crate::app::shop::zone_of(store))
+}
+
+/// The details as they are stored: references trimmed and of a sane length, and an hour meter
+/// that fits between the unit's readings before and after `at` (an hour meter only counts up).
+fn checked_details(
+    store: &Store,
+    unit: &Unit,
+    at: DateTime<Utc>,
+    d: &EventDetails,
+    zone: super::local_time::Zone,
+) -> Result<EventDetails, DetailRefused> {
+    let refused = |field: &'static str, message: String| DetailRefused {
+        field,
+        error: AppError::BadInput(message),
+    };
+    let reference =
+        |field: &'static str, what: &str, text: &str| -> Result<String, DetailRefused> {
+            let t = text.trim();
+            if t.chars().count() > MAX_REFERENCE_CHARS {
+                return Err(refused(
+                    field,
+                    format!(
+                        "{what} is {} characters long; give the reference alone (at most \
+                 {MAX_REFERENCE_CHARS}) and put any words in the note",
+                        t.chars().count()
+                    ),
+                ));
+            }
+            if t.chars().any(char::is_control) {
+                return Err(refused(
+                    field,
+                    format!("{what} holds a line break or another control character"),
+                ));
+            }
+            Ok(t.to_string())
+        };
+    let filter_part = reference("filter_part", "the filter part", &d.filter_part)?;
+    let work_order = reference("work_order", "the work order", &d.work_order)?;
+    if let Some(h) = d.hours {
+        let b = crate::bounds::HOURS;
+        if !h.is_finite() || h < b.lo || h > b.hi {
+            return Err(refused(
+                "hours",
+                format!(
+                    "the hour meter must be a number of hours from {} to {}",
+                    b.lo, b.hi
+                ),
+            ));
+        }
+        let around = store
+            .hour_meter_around(unit.id, at)
+            .map_err(|e| DetailRefused {
+                field: "",
+                error: store_error(e),
+            })?;
+        if let Some((before, when)) = around.before.filter(|(b, _)| h < *b) {
+            return Err(refused(
+                "hours",
+                format!(
+                    "the hour meter {h} h is below the {before} h read on {} at {}; an hour meter \
+                 only counts up, so check the figure (or the date of the work)",
+                    unit.tag,
+                    zone.show_marked(when)
+                ),
+            ));
+        }
+        if let Some((after, when)) = around.after.filter(|(a, _)| h > *a) {
+            return Err(refused(
+                "hours",
+                format!(
+                    "the hour meter {h} h is above the {after} h read on {} later, at {}; an hour \
+                 meter only counts up, so check the figure (or the date of the work)",
+                    unit.tag,
+                    zone.show_marked(when)
+                ),
+            ));
+        }
+    }
+    Ok(EventDetails {
+        hours: d.hours,
+        filter_part,
+        work_order,
+    })
 }
 
 /// Records work done on unit `tag` (a fluid change, filter change, top-up, ...), which restarts
@@ -324,6 +456,7 @@ pub fn log_event_in(
         },
         (None, false) => None,
     };
+    let details = checked_details(store, &unit, at, &input.details, zone).map_err(|r| r.error)?;
     let event = Event {
         id: 0,
         unit_id: unit.id,
@@ -334,15 +467,17 @@ pub fn log_event_in(
         by: input.by.trim().to_string(),
         note: input.note.trim().to_string(),
     };
-    let id = store.insert_event(&event).map_err(|e| match e {
-        StoreError::Duplicate { .. } => AppError::BadInput(format!(
-            "a {} of {} at {} is already recorded",
-            input.kind,
-            unit.tag,
-            zone.show_exact(at)
-        )),
-        other => store_error(other),
-    })?;
+    let id = store
+        .insert_event_with(&event, &details)
+        .map_err(|e| match e {
+            StoreError::Duplicate { .. } => AppError::BadInput(format!(
+                "a {} of {} at {} is already recorded",
+                input.kind,
+                unit.tag,
+                zone.show_exact(at)
+            )),
+            other => store_error(other),
+        })?;
     let mut changed = false;
     if input.kind == EventKind::FluidChange {
         if let Some(f) = &fluid {
@@ -370,6 +505,7 @@ pub fn log_event_in(
         unit: unit.tag,
         event: Event { id, ..event },
         fluid: fluid.map(|f| f.name),
+        details,
         fluid_in_service_changed: changed,
         work: after.health.work,
     })

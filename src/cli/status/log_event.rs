@@ -9,7 +9,7 @@ use clap::Args;
 use crate::app::shop::Shop;
 use crate::app::work::{self, EventInput};
 use crate::cli::Failure;
-use crate::model::EventKind;
+use crate::model::{EventDetails, EventKind};
 use crate::quantity::{format, parse_volume, Quantity};
 
 #[derive(Args, Debug, Clone, PartialEq)]
@@ -30,6 +30,16 @@ pub struct LogEventArgs {
     /// The fluid put in (by name); default the unit's fluid in service.
     #[arg(long, value_name = "NAME")]
     pub fluid: Option<String>,
+    /// The unit's hour meter when it was done, in hours: 10250; not below the last reading
+    /// before it, nor above one after it.
+    #[arg(long, value_name = "HOURS")]
+    pub hours: Option<String>,
+    /// The part number of the filter element fitted.
+    #[arg(long, value_name = "PART", default_value = "")]
+    pub filter_part: String,
+    /// The shop's work-order reference the work was done under.
+    #[arg(long, value_name = "REF", default_value = "")]
+    pub work_order: String,
     /// Who did it.
     #[arg(long, value_name = "NAME", default_value = "")]
     pub by: String,
@@ -53,6 +63,22 @@ pub fn run_log_event(shop: &Shop, args: &LogEventArgs, out: &mut dyn Write) -> R
         .as_deref()
         .map(|v| parse_volume(v).map_err(|e| Failure::bad_input(format!("--volume: {e}"))))
         .transpose()?;
+    let hours = args
+        .hours
+        .as_deref()
+        .map(|h| {
+            let t = h.trim().trim_end_matches('h').trim_end();
+            t.parse::<f64>()
+                .ok()
+                .filter(|v| v.is_finite())
+                .ok_or_else(|| {
+                    Failure::bad_input(format!(
+                        "--hours: `{}` is not a number of hours (use a decimal point: 10250.5)",
+                        h.trim()
+                    ))
+                })
+        })
+        .transpose()?;
     let input = EventInput {
         kind,
         at,
@@ -60,6 +86,11 @@ pub fn run_log_event(shop: &Shop, args: &LogEventArgs, out: &mut dyn Write) -> R
         fluid: args.fluid.clone(),
         by: args.by.clone(),
         note: args.note.clone(),
+        details: EventDetails {
+            hours,
+            filter_part: args.filter_part.clone(),
+            work_order: args.work_order.clone(),
+        },
     };
     let r = work::log_event(shop, &args.unit, &input)?;
     if args.json {
@@ -83,6 +114,10 @@ pub fn run_log_event(shop: &Shop, args: &LogEventArgs, out: &mut dyn Write) -> R
         r.unit,
         shop.zone().show_marked(r.event.done_at)
     )?;
+    let details = work::details_words(&r.details);
+    if !details.is_empty() {
+        writeln!(out, "  {details}")?;
+    }
     if r.fluid_in_service_changed {
         writeln!(
             out,

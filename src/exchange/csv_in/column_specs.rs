@@ -110,6 +110,9 @@ pub(crate) const EVENT_COLS: &[ColSpec] = &[
     col("fluid_name", "fluid_name", Plain),
     col("by", "by", Plain),
     col("note", "note", Plain),
+    col("hours", "hours", Plain),
+    col("filter_part", "filter_part", Plain),
+    col("work_order", "work_order", Plain),
 ];
 
 pub(crate) fn specs(kind: FileKind) -> &'static [ColSpec] {

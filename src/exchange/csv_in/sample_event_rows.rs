@@ -6,7 +6,7 @@ use crate::bounds;
 use std::str::FromStr;
 
 use crate::exchange::ExchangeError;
-use crate::model::{Event, EventKind, Sample, ViscReading};
+use crate::model::{Event, EventDetails, EventKind, Sample, ViscReading};
 use crate::physics::cleanliness::Iso4406Code;
 use crate::store::columns::{self};
 use crate::store::{Bulk, Put};
@@ -194,6 +194,11 @@ impl Importer {
         };
         let by = row.free(self.slot("by"));
         let note = row.free(self.slot("note"));
+        let details = EventDetails {
+            hours: row.plain(self.slot("hours"), bound(bounds::HOURS)),
+            filter_part: row.free(self.slot("filter_part")),
+            work_order: row.free(self.slot("work_order")),
+        };
         let (Some(unit_id), Some(done_at), Some(kind)) = (unit_id, done_at, kind) else {
             return Ok(None);
         };
@@ -210,9 +215,10 @@ impl Importer {
             by,
             note,
         };
-        match bulk.put_event(&event) {
+        match bulk.put_event_with(&event, &details) {
             Ok(Put::Inserted(_)) => Ok(Some(Outcome::Inserted(None))),
-            Ok(Put::Exists(st)) => {
+            Ok(Put::Exists(stored)) => {
+                let (st, st_details) = *stored;
                 let mut diff = Vec::new();
                 if differs(
                     event.volume.map(columns::litres),
@@ -228,6 +234,15 @@ impl Importer {
                 }
                 if differs_text(&event.note, &st.note) {
                     diff.push(self.name("note"));
+                }
+                if differs(details.hours, st_details.hours) {
+                    diff.push(self.name("hours"));
+                }
+                if differs_text(&details.filter_part, &st_details.filter_part) {
+                    diff.push(self.name("filter_part"));
+                }
+                if differs_text(&details.work_order, &st_details.work_order) {
+                    diff.push(self.name("work_order"));
                 }
                 self.existing(
                     row,

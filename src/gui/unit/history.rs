@@ -221,6 +221,9 @@ fn event_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
         col(&format!("Volume {}", t(Kind::Volume)), 123.0),
         col("Fluid", 168.0),
         col("By", 98.0),
+        col("Hour meter h", 108.0),
+        col("Filter part", 118.0),
+        col("Work order", 108.0),
         col("Note", 318.0),
         col("Edited", 98.0),
     ];
@@ -229,6 +232,7 @@ fn event_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
     let v = v.clone();
     let make = move |i: usize| {
         let e = &v.history.events[v.history.events.len() - 1 - i];
+        let d = v.details_of(e.id);
         let fluid = e
             .fluid_id
             .and_then(|id| v.fluids.iter().find(|f| f.id == id))
@@ -243,6 +247,13 @@ fn event_table(v: &Rc<UnitView>, sys: UnitSystem) -> (Vec<TableColumn>, Vec<i64>
             ),
             cell(opt(fluid)),
             cell(&e.by),
+            cell(
+                d.and_then(|d| d.hours)
+                    .map(|h| h.to_string())
+                    .unwrap_or_default(),
+            ),
+            cell(d.map(|d| d.filter_part.as_str()).unwrap_or_default()),
+            cell(d.map(|d| d.work_order.as_str()).unwrap_or_default()),
             cell(&e.note),
             cell(edited(&corrected, e.id)),
         ]
