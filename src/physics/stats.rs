@@ -445,14 +445,91 @@ pub fn median_of_last(values: &[f64], n: usize) -> Option<f64> {
     if n == 0 || values.is_empty() {
         return None;
     }
-    let mut last: Vec<f64> = values[values.len().saturating_sub(n)..].to_vec();
-    last.sort_by(f64::total_cmp);
-    let m = last.len();
-    Some(if m % 2 == 1 {
-        last[m / 2]
+    Some(median_in(
+        values[values.len().saturating_sub(n)..].iter().copied(),
+    ))
+}
+
+/// Up to this many values are ordered in a buffer on the stack: the screen and the
+/// indicators take medians of windows of 3 to 8 values at every reading of every unit, and a
+/// fresh vector each time cost more than the ordering itself.
+const ON_STACK: usize = 16;
+
+/// The median of `values` (at least one), ordered as `f64::total_cmp` orders them.
+fn median_in(values: impl ExactSizeIterator<Item = f64>) -> f64 {
+    let m = values.len();
+    // Padded with the greatest key, which sorts to the end.
+    let mut stack = [i64::MAX; ON_STACK];
+    let mut heap = Vec::new();
+    let keys: &mut [i64] = if m <= ON_STACK {
+        &mut stack
     } else {
-        0.5 * (last[m / 2 - 1] + last[m / 2])
-    })
+        heap.resize(m, 0);
+        &mut heap
+    };
+    for (k, v) in keys.iter_mut().zip(values) {
+        *k = order_key(v);
+    }
+    match keys.first_chunk_mut::<NETWORK>() {
+        Some(eight) if m <= NETWORK => sort_eight(eight),
+        // Equal keys are equal bit patterns, so an unstable sort gives the same order.
+        _ => keys[..m].sort_unstable(),
+    }
+    let at = |i: usize| from_order_key(keys[i]);
+    if m % 2 == 1 {
+        at(m / 2)
+    } else {
+        0.5 * (at(m / 2 - 1) + at(m / 2))
+    }
+}
+
+/// Up to this many keys are ordered by [`sort_eight`].
+const NETWORK: usize = 8;
+
+/// Sorts eight keys by a fixed network of 19 compare-exchanges in 6 layers (D. E. Knuth, *The
+/// Art of Computer Programming*, vol. 3, 5.3.4, the best known network for eight elements),
+/// each a branch-free min and max: windows of a few readings arrive in no order a branch
+/// predictor can learn, and an insertion sort's mispredicted branches were most of its time.
+fn sort_eight(k: &mut [i64; NETWORK]) {
+    const PAIRS: [(usize, usize); 19] = [
+        (0, 2),
+        (1, 3),
+        (4, 6),
+        (5, 7),
+        (0, 4),
+        (1, 5),
+        (2, 6),
+        (3, 7),
+        (0, 1),
+        (2, 3),
+        (4, 5),
+        (6, 7),
+        (2, 4),
+        (3, 5),
+        (1, 4),
+        (3, 6),
+        (1, 2),
+        (3, 4),
+        (5, 6),
+    ];
+    for (i, j) in PAIRS {
+        let (a, b) = (k[i], k[j]);
+        k[i] = a.min(b);
+        k[j] = a.max(b);
+    }
+}
+
+/// An integer whose order is `f64::total_cmp`'s order of `x` (the same mapping the standard
+/// library uses inside `total_cmp`: a negative value's bits other than the sign are flipped),
+/// so that ordering compares integers.
+fn order_key(x: f64) -> i64 {
+    let b = x.to_bits() as i64;
+    b ^ (((b >> 63) as u64) >> 1) as i64
+}
+
+/// The value of an [`order_key`] (the mapping is its own inverse).
+fn from_order_key(k: i64) -> f64 {
+    f64::from_bits((k ^ (((k >> 63) as u64) >> 1) as i64) as u64)
 }
 
 /// Median of `values` (any order); `None` for none or any value that is not finite.
@@ -472,8 +549,12 @@ pub const MAD_TO_SIGMA: f64 = 1.482_602_218_505_602;
 /// small sample cannot move far): `(median, 1.4826 · median |x − median|)`.
 pub fn median_and_mad_sigma(values: &[f64]) -> Option<(f64, f64)> {
     let m = median(values)?;
-    let dev: Vec<f64> = values.iter().map(|v| (v - m).abs()).collect();
-    Some((m, MAD_TO_SIGMA * median(&dev)?))
+    let dev = values.iter().map(|v| (v - m).abs());
+    // The deviations of finite values from a finite median can still overflow to infinity.
+    let d = median_in(dev.clone());
+    dev.clone()
+        .all(f64::is_finite)
+        .then_some((m, MAD_TO_SIGMA * d))
 }
 
 #[cfg(test)]
@@ -594,6 +675,79 @@ mod tests {
                     "{name} {key}: {got} vs {want}"
                 );
             }
+        }
+    }
+
+    /// The median as first written: a sorted copy (`sort_by(f64::total_cmp)`), the middle
+    /// value or the mean of the middle two.
+    fn median_by_sorting(values: &[f64]) -> f64 {
+        let mut v = values.to_vec();
+        v.sort_by(f64::total_cmp);
+        let m = v.len();
+        if m % 2 == 1 {
+            v[m / 2]
+        } else {
+            0.5 * (v[m / 2 - 1] + v[m / 2])
+        }
+    }
+
+    #[test]
+    fn medians_are_bit_for_bit_those_of_a_sorted_copy() {
+        // Kept evaluations compare results exactly, so the ordering through integer keys must
+        // give the very bits a sorted copy gives, signed zeros, infinities and NaNs included.
+        let mut r = crate::random::SplitMix64::new(7);
+        let special = [
+            0.0,
+            -0.0,
+            f64::INFINITY,
+            f64::NEG_INFINITY,
+            f64::NAN,
+            -f64::NAN,
+            1e-310,
+        ];
+        for case in 0..4000 {
+            let len = 1 + case % 40;
+            let v: Vec<f64> = (0..len)
+                .map(|_| match r.next_u64() % 10 {
+                    0 => special[(r.next_u64() % special.len() as u64) as usize],
+                    1 => (r.next_u64() % 5) as f64,
+                    _ => r.gaussian() * 1e3,
+                })
+                .collect();
+            for n in [1, 3, 8, len] {
+                let want = median_by_sorting(&v[v.len().saturating_sub(n)..]);
+                let got = median_of_last(&v, n).unwrap();
+                assert_eq!(got.to_bits(), want.to_bits(), "{v:?}, last {n}");
+            }
+            let finite: Vec<f64> = v.iter().copied().filter(|x| x.is_finite()).collect();
+            if !finite.is_empty() {
+                let m = median_by_sorting(&finite);
+                let dev: Vec<f64> = finite.iter().map(|x| (x - m).abs()).collect();
+                let (gm, gs) = median_and_mad_sigma(&finite).unwrap();
+                assert_eq!(gm.to_bits(), m.to_bits());
+                let s = MAD_TO_SIGMA * median_by_sorting(&dev);
+                assert_eq!(gs.to_bits(), s.to_bits(), "{finite:?}");
+            }
+        }
+        assert_eq!(
+            median_and_mad_sigma(&[-f64::MAX, -f64::MAX, f64::MAX]),
+            None
+        );
+    }
+
+    #[test]
+    fn the_network_sorts_every_input_of_zeros_and_ones() {
+        // A comparator network sorts every input if it sorts every 0-1 input (Knuth, vol. 3,
+        // 5.3.4, the zero-one principle): all 256 of them.
+        for bits in 0_u32..256 {
+            let mut k = [0_i64; NETWORK];
+            for (i, v) in k.iter_mut().enumerate() {
+                *v = i64::from((bits >> i) & 1);
+            }
+            let mut want = k;
+            want.sort_unstable();
+            sort_eight(&mut k);
+            assert_eq!(k, want, "{bits:08b}");
         }
     }
 
