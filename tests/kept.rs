@@ -5,7 +5,8 @@
 //! fresh evaluation gives, and only the units it touches are evaluated again.
 //!
 //! "A fresh evaluation" is the same engine run on every unit without anything kept
-//! (`Detail::Full`, whose chart series and rows are then left out as a summary leaves them).
+//! (`Detail::Full`, then cut to a summary by `UnitStatus::summary`); `status --json`, which
+//! reads the summary, is compared with the one of the full evaluation itself.
 
 use chrono::{DateTime, Duration, Utc};
 use rusqlite::Connection;
@@ -32,14 +33,9 @@ fn units(f: &FleetStatus) -> Vec<UnitStatus> {
 
 /// Every unit evaluated afresh at `when`, as a summary.
 fn fresh(store: &Store, when: DateTime<Utc>) -> Vec<UnitStatus> {
-    let mut f = fleet_status_in(store, Some(when), Detail::Full).unwrap();
+    let f = fleet_status_in(store, Some(when), Detail::Full).unwrap();
     assert_eq!(f.evaluated, f.units.len(), "a full status keeps nothing");
-    for u in &mut f.units {
-        u.health.series = Vec::new();
-        u.health.checks = Vec::new();
-        u.health.samples = Vec::new();
-    }
-    f.units
+    f.units.into_iter().map(UnitStatus::summary).collect()
 }
 
 /// The status at `when` through the kept path: asserts it is the fresh one and that
@@ -350,4 +346,41 @@ fn a_counter_removed_or_lowered_takes_its_kept_evaluations_along() {
     // Nothing can be kept without the shop's counter, and the status is still right.
     status_is_fresh(store, when, n, "without counters");
     status_is_fresh(store, when, n, "still without counters");
+}
+
+#[test]
+fn what_the_faces_show_from_kept_summaries_is_what_a_full_evaluation_shows() {
+    // The kept form holds a summary only; `status --json`, the board's lines and the due list
+    // read from it must be those of the full evaluation, in metric and in US units.
+    use sumpbook::app::view::fleet_line;
+    use sumpbook::app::work::due_list_from;
+    let (_dir, path, shop, _) = demo_evaluated();
+    let store = shop.store_for_tests();
+    for round in 0..2 {
+        if round == 1 {
+            edit_behind_the_back(&path, "UPDATE settings SET unit_system = 'us'");
+            fleet_status_in(store, Some(noon()), Detail::Summary).unwrap();
+        }
+        let kept = fleet_status_in(store, Some(noon()), Detail::Summary).unwrap();
+        assert_eq!(kept.evaluated, 0, "every unit read kept");
+        let full = fleet_status_in(store, Some(noon()), Detail::Full).unwrap();
+        assert!(full.units.iter().any(|u| !u.health.tiles.is_empty()));
+        assert_eq!(
+            serde_json::to_string_pretty(&kept.to_json_view()).unwrap(),
+            serde_json::to_string_pretty(&full.to_json_view()).unwrap(),
+            "status --json"
+        );
+        let lines = |f: &FleetStatus| -> Vec<_> {
+            f.units
+                .iter()
+                .map(|u| fleet_line(u, f.unit_system))
+                .collect()
+        };
+        assert_eq!(lines(&kept), lines(&full), "the board's lines");
+        assert_eq!(
+            due_list_from(store, &kept, None).unwrap(),
+            due_list_from(store, &full, None).unwrap(),
+            "the due list"
+        );
+    }
 }

@@ -1062,7 +1062,7 @@ fn a_deleted_check_is_restored_by_an_engineer_and_refused_to_a_technician() {
 fn kept_evaluations_on_a_server_follow_direct_sql() {
     // The kept path of `app::kept` on PostgreSQL: a status with nothing changed reads every
     // unit kept; a check or a shop-wide limit written in plain SQL by another session is seen,
-    // and the status is the one a fresh evaluation gives (`Detail::Full`, series left out).
+    // and the status is the one a fresh evaluation gives (`Detail::Full` cut to a summary).
     use sumpbook::app::status::{fleet_status_in, Detail, UnitStatus};
     let Some(_) = server() else { return };
     let url = new_database();
@@ -1071,13 +1071,8 @@ fn kept_evaluations_on_a_server_follow_direct_sql() {
     let store = shop.store_for_tests();
     let when: chrono::DateTime<chrono::Utc> = "2026-11-28T12:00:00Z".parse().unwrap();
     let fresh = || -> Vec<UnitStatus> {
-        let mut f = fleet_status_in(store, Some(when), Detail::Full).unwrap();
-        for u in &mut f.units {
-            u.health.series = Vec::new();
-            u.health.checks = Vec::new();
-            u.health.samples = Vec::new();
-        }
-        f.units
+        let f = fleet_status_in(store, Some(when), Detail::Full).unwrap();
+        f.units.into_iter().map(UnitStatus::summary).collect()
     };
     let status = |evaluated: usize, what: &str| {
         let f = fleet_status_in(store, Some(when), Detail::Summary).unwrap();

@@ -8,23 +8,28 @@
 //! computed it and the instant judged all match; the span of instants it holds for ends at the
 //! unit's next record after the instant it was computed at, at the next calendar day (planned
 //! work counts days) and when the first hour-meter reading of the year leaves the year (the
-//! cost of waiting). No health rule lives here; the engine stays `health::evaluate`.
+//! cost of waiting). What is kept is a unit's summary only (`UnitStatus::summary`: what the
+//! board, `status`, the due list and the walk-round read), less what the unit's own row gives
+//! afresh; a unit page or report evaluates its unit in full. No health rule lives here; the
+//! engine stays `health::evaluate`.
 
 use std::collections::HashMap;
 use std::sync::LazyLock;
 
 use chrono::{DateTime, Duration, Utc};
+use serde::{Deserialize, Serialize};
 
 use super::status::{shop_data, store_error, unit_status, Detail, ShopData, UnitStatus};
-use super::waiting_cost::run_hours_hold_until;
+use super::waiting_cost::{run_hours_hold_until, WaitingCost};
 use super::AppError;
 
+use crate::health::{Flag, Indicators, NotJudged, State, SuspectReading, UnitHealth, WorkItem};
 use crate::model::{Id, UnitHistory};
 use crate::store::{KeptEvaluation, KeptRead, NextRecords, Store};
 
 /// Raised by hand when the engine's rules change in a way the program's build would not show
 /// (it is part of [`engine`], beside the build's own identity).
-const RULES_EDITION: u32 = 1;
+const RULES_EDITION: u32 = 2;
 
 /// The engine that computes an evaluation: the rules' edition, the program's version and the
 /// identity of the running program file (its size and time of change), so that any other
@@ -61,6 +66,102 @@ pub fn engine() -> &'static str {
     &ENGINE
 }
 
+/// What is kept of a unit's summary (`UnitStatus::summary`): all of it but what the unit's own
+/// row gives afresh at every read (tag, machine, route order), what follows from the rest (the
+/// next work, the instant judged) and what a summary leaves out. Written from borrowed parts.
+#[derive(Serialize)]
+struct KeptRef<'a> {
+    state: State,
+    fluid: &'a Option<String>,
+    indicators: &'a Indicators,
+    flags: &'a [Flag],
+    work: &'a [WorkItem],
+    last_check: Option<DateTime<Utc>>,
+    last_sample: Option<DateTime<Utc>>,
+    not_judged: &'a [NotJudged],
+    suspects: &'a [SuspectReading],
+    waiting_cost: &'a Option<WaitingCost>,
+}
+
+/// [`KeptRef`] as read back.
+#[derive(Deserialize)]
+struct Kept {
+    state: State,
+    fluid: Option<String>,
+    indicators: Indicators,
+    flags: Vec<Flag>,
+    work: Vec<WorkItem>,
+    last_check: Option<DateTime<Utc>>,
+    last_sample: Option<DateTime<Utc>>,
+    not_judged: Vec<NotJudged>,
+    suspects: Vec<SuspectReading>,
+    waiting_cost: Option<WaitingCost>,
+}
+
+impl<'a> KeptRef<'a> {
+    fn of(s: &'a UnitStatus) -> KeptRef<'a> {
+        let h = &s.health;
+        KeptRef {
+            state: s.state,
+            fluid: &s.fluid,
+            indicators: &h.indicators,
+            flags: &h.flags,
+            work: &h.work,
+            last_check: h.last_check,
+            last_sample: h.last_sample,
+            not_judged: &h.not_judged,
+            suspects: &h.suspects,
+            waiting_cost: &s.waiting_cost,
+        }
+    }
+}
+
+impl Kept {
+    /// The summary of `shell`'s unit judged at `at` that this kept form holds.
+    fn status(self, shell: &UnitHistory, at: DateTime<Utc>) -> UnitStatus {
+        let health = UnitHealth {
+            at,
+            state: self.state,
+            eras: Vec::new(),
+            fluid: None,
+            baseline: Default::default(),
+            indicators: self.indicators,
+            flags: self.flags,
+            work: self.work,
+            tiles: Vec::new(),
+            series: Vec::new(),
+            checks: Vec::new(),
+            samples: Vec::new(),
+            last_check: self.last_check,
+            last_sample: self.last_sample,
+            not_judged: self.not_judged,
+            restarts: Vec::new(),
+            suspects: self.suspects,
+        };
+        UnitStatus {
+            unit_id: shell.unit.id,
+            unit: shell.unit.tag.clone(),
+            machine: shell.machine.tag.clone(),
+            machine_name: shell.machine.name.clone(),
+            machine_kind: shell.machine.kind.clone(),
+            route_order: shell.unit.route_order,
+            state: self.state,
+            fluid: self.fluid,
+            next_due: health.work.iter().min_by_key(|w| w.due).cloned(),
+            health,
+            waiting_cost: self.waiting_cost,
+        }
+    }
+}
+
+/// The kept text of a unit's summary `s` (of `shell`'s unit), when it reads back exactly as
+/// `s` is: a figure JSON cannot carry, such as a NaN, would not, and is then not kept.
+fn kept_text(shell: &UnitHistory, s: &UnitStatus) -> Option<String> {
+    let text = serde_json::to_string(&KeptRef::of(s)).ok()?;
+    let back: Kept = serde_json::from_str(&text).ok()?;
+    (back.status(shell, s.health.at) == *s).then_some(text)
+}
+
 /// Replays of dates before this long ago go to the replay slot, so that they never push out
 /// the evaluation of the present.
 const PRESENT_WITHIN_MINUTES: i64 = 60;
@@ -82,15 +183,12 @@ pub(crate) fn fleet_units(
     let keeping = detail == Detail::Summary;
     // The counters first: whatever is read after them is at least as new, so an evaluation
     // kept under them is never newer than what they say.
-    let mut served: HashMap<Id, UnitStatus> = HashMap::new();
+    let mut served: HashMap<Id, Kept> = HashMap::new();
     let kept = if keeping {
         store.kept_evaluations::<AppError>(engine(), when, |unit, body| {
             // One that does not read (another shape of the program's results) is evaluated.
-            if let Ok(mut s) = serde_json::from_str::<UnitStatus>(body) {
-                if s.unit_id == unit {
-                    s.health.at = when;
-                    served.insert(unit, s);
-                }
+            if let Ok(k) = serde_json::from_str::<Kept>(body) {
+                served.insert(unit, k);
             }
             Ok(())
         })?
@@ -103,17 +201,16 @@ pub(crate) fn fleet_units(
     let mut needed = Vec::new();
     for shell in shells {
         match served.remove(&shell.unit.id) {
-            Some(s) => out.push(s),
+            Some(k) => out.push(k.status(&shell, when)),
             None => needed.push(shell),
         }
     }
     let evaluated = needed.len();
-    let fresh = evaluate_streaming(store, needed, &data, when, detail)?;
+    let mut fresh = evaluate_streaming(store, needed, &data, when, detail)?;
     if keeping {
         if let Some(shop_rev) = kept.shop_rev {
             let slot = u8::from(when < Utc::now() - Duration::minutes(PRESENT_WITHIN_MINUTES));
-            // Each text is made as it is written, so that they are never all held at once.
-            let rows = fresh.iter().filter_map(|(s, until, keepable)| {
+            let rows = fresh.iter_mut().filter_map(|(s, until, text)| {
                 Some(KeptEvaluation {
                     unit_id: s.unit_id,
                     slot,
@@ -122,7 +219,7 @@ pub(crate) fn fleet_units(
                     engine: engine().to_string(),
                     evaluated_at: when,
                     holds_until: *until,
-                    body: keepable.then(|| serde_json::to_string(s).ok()).flatten()?,
+                    body: text.take()?,
                 })
             });
             store.keep_evaluations(rows).map_err(store_error)?;
@@ -150,10 +247,9 @@ pub(crate) fn holds_until(
         .max(at + Duration::seconds(1))
 }
 
-/// A unit's status, until when it holds, and whether it may be kept (at `Detail::Summary`,
-/// when its text reads back exactly as it is: a figure JSON cannot carry, such as a NaN, would
-/// not).
-type Evaluated = (UnitStatus, DateTime<Utc>, bool);
+/// A unit's status, until when it holds, and the text to keep of it (at `Detail::Summary`, when
+/// it reads back exactly: [`kept_text`]).
+type Evaluated = (UnitStatus, DateTime<Utc>, Option<String>);
 
 /// Evaluates `units` (shells without records) at `when`, reading them a batch at a time: the
 /// store reads the next batch while the cores evaluate the ones before it.
@@ -175,11 +271,11 @@ fn evaluate_streaming(
             .map(|h| {
                 let s = unit_status(&h, data, when, detail);
                 let until = holds_until(&h, when, next.get(&h.unit.id).copied());
-                let keepable = detail == Detail::Summary
-                    && serde_json::to_string(&s).is_ok_and(|b| {
-                        serde_json::from_str::<UnitStatus>(&b).is_ok_and(|back| back == s)
-                    });
-                (s, until, keepable)
+                let text = match detail {
+                    Detail::Summary => kept_text(&h, &s),
+                    Detail::Full => None,
+                };
+                (s, until, text)
             })
             .collect()
     };

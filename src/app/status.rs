@@ -23,7 +23,10 @@ pub(crate) fn store_error(e: StoreError) -> AppError {
 /// How much of each unit's findings to keep.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Detail {
-    /// State, indicators, flags, tiles and work: enough for a fleet board or summary page.
+    /// What the fleet board, `status` (text and `--json`), the due list and the walk-round
+    /// read: state, indicators, flags, planned work, what cannot be judged yet, questioned
+    /// readings, the last check and sample and the cost of waiting ([`UnitStatus::summary`]).
+    /// A unit page or report asks for `Full`.
     Summary,
     /// Everything, with chart series and the per-check and per-sample rows: a unit page.
     Full,
@@ -117,15 +120,9 @@ pub(crate) fn unit_status(
     detail: Detail,
 ) -> UnitStatus {
     let limits = Limits::resolve(&data.limit_rows, Some(h.unit.id));
-    let mut health = health::evaluate(h, &data.fluids, &limits, at, data.settings.unit_system);
+    let health = health::evaluate(h, &data.fluids, &limits, at, data.settings.unit_system);
     let waiting_cost = waiting_cost(h, &health, at, data.settings.electricity_price);
-    if detail == Detail::Summary {
-        // Dropped with their memory (`clear` would keep each unit's capacity allocated).
-        health.series = Vec::new();
-        health.checks = Vec::new();
-        health.samples = Vec::new();
-    }
-    UnitStatus {
+    let s = UnitStatus {
         unit_id: h.unit.id,
         unit: h.unit.tag.clone(),
         machine: h.machine.tag.clone(),
@@ -137,6 +134,28 @@ pub(crate) fn unit_status(
         next_due: health.work.iter().min_by_key(|w| w.due).cloned(),
         health,
         waiting_cost,
+    };
+    match detail {
+        Detail::Summary => s.summary(),
+        Detail::Full => s,
+    }
+}
+
+impl UnitStatus {
+    /// The summary of a unit's status (`Detail::Summary`): the era, fluid, baseline, tiles,
+    /// restarts, chart series and per-reading rows left out (the vectors dropped with their
+    /// memory; `clear` would keep each one's capacity), all else as it is.
+    pub fn summary(mut self) -> UnitStatus {
+        let h = &mut self.health;
+        h.eras = Vec::new();
+        h.fluid = None;
+        h.baseline = health::Baseline::default();
+        h.tiles = Vec::new();
+        h.series = Vec::new();
+        h.checks = Vec::new();
+        h.samples = Vec::new();
+        h.restarts = Vec::new();
+        self
     }
 }
 
