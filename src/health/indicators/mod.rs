@@ -36,7 +36,7 @@ use fluid::sample_points;
 pub use heat::HeatLoad;
 use hours::{equiv_hours_per_day, equivalent_over, hour_readings};
 pub(crate) use hours::{hours_at, hours_per_day};
-pub use steps::{confirmed_level, step_at, sudden_loss};
+pub use steps::{confirmed_level, loss_against, step_at, sudden_loss, Stroke};
 use summary::summarise;
 pub use tiles::{series, tiles, trend, Dim, Direction, Forecast, Series, SeriesPoint, Tile, Trend};
 
@@ -614,38 +614,53 @@ pub fn compute(
         None => None,
     };
 
-    // Sudden loss: two checks in a row well below the weeks just before them — on the flow
-    // corrected to the reference conditions where the leakage is resolved (a hot week moves a
-    // leaky pump's timed flow), as timed where it is not (nor then is its move with the oil).
+    // Sudden loss: two checks in a row well below what the weeks just before them give
+    // (`loss_against`): compared on the flow corrected to the reference conditions where the
+    // leakage is resolved (a hot week moves a leaky pump's timed flow), as timed where it is
+    // not; in a hall warmer than at the checks before, against their leakage moved to the
+    // check's oil. The displacement is the era's fit where it is well determined, else the
+    // rated flow: a loose fit's displacement, carried to a hot week's p/ν, would expect a
+    // loss that hides a real one.
     let watch_pct = limits.get(LimitKey::LostFlowPct).watch;
+    let warmer = limits.get(LimitKey::HeatRiseDriftK).watch.unwrap_or(5.0);
     let corrected_sudden = leak_resolved == Some(true);
-    let mut flows: Vec<(DateTime<Utc>, f64)> = Vec::new();
+    let sudden_d = fit_judged.map(|f| f.displacement).or(rated.map(|r| r.si()));
+    let mut strokes: Vec<(DateTime<Utc>, Stroke)> = Vec::new();
     for p in points.iter_mut() {
+        let Some(q) = p.effective_flow else { continue };
         let flow = if corrected_sudden {
             p.corrected_flow
         } else {
-            p.effective_flow
+            Some(q)
         };
-        let Some(q) = flow else { continue };
+        let Some(flow) = flow else { continue };
         if restarts.iter().any(|r| {
             r.addresses(BaselineIndicator::EffectiveFlow)
-                && flows.last().is_some_and(|l| r.at > l.0)
+                && strokes.last().is_some_and(|l| r.at > l.0)
         }) {
-            flows.clear();
+            strokes.clear();
         }
-        flows.push((p.at, q));
-        let n = flows.len();
+        strokes.push((
+            p.at,
+            Stroke {
+                q,
+                flow,
+                p: p.pressure,
+                nu: p.viscosity_at_temp,
+                ambient: p.ambient_temp,
+            },
+        ));
+        let n = strokes.len();
         if n >= 2 + SUDDEN_BEFORE_MIN {
-            let before: Vec<f64> = flows[n.saturating_sub(2 + SUDDEN_BEFORE)..n - 2]
+            let before: Vec<Stroke> = strokes[n.saturating_sub(2 + SUDDEN_BEFORE)..n - 2]
                 .iter()
-                .map(|f| f.1)
+                .map(|s| s.1)
                 .collect();
-            if let Some(m) = stats::median(&before).filter(|m| *m > 0.0) {
-                p.sudden_loss_pct = Some(sudden_loss(
-                    (1.0 - flows[n - 2].1 / m) * 100.0,
-                    (1.0 - flows[n - 1].1 / m) * 100.0,
-                    watch_pct,
-                ));
+            if let (Some(first), Some(second)) = (
+                loss_against(&before, &strokes[n - 2].1, sudden_d, warmer),
+                loss_against(&before, &strokes[n - 1].1, sudden_d, warmer),
+            ) {
+                p.sudden_loss_pct = Some(sudden_loss(first, second, watch_pct));
             }
         }
     }

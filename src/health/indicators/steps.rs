@@ -16,6 +16,55 @@ pub fn sudden_loss(first: f64, second: f64, watch: Option<f64>) -> f64 {
     }
 }
 
+/// One timed stroke as the sudden loss reads it, SI: the timed flow `q`, the flow it is
+/// compared by where the hall explains nothing (`flow`: the corrected flow where the leakage
+/// is resolved, else the timed one), and where read the working pressure `p`, the oil's
+/// viscosity `nu` at its temperature and the hall temperature `ambient`.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct Stroke {
+    pub q: f64,
+    pub flow: f64,
+    pub p: Option<f64>,
+    pub nu: Option<f64>,
+    pub ambient: Option<f64>,
+}
+
+impl Stroke {
+    /// The leakage driver p/ν of laminar gap flow.
+    fn x(&self) -> Option<f64> {
+        Some(self.p? / self.nu.filter(|n| *n > 0.0)?).filter(|x| x.is_finite() && *x > 0.0)
+    }
+}
+
+/// How far below what the checks `before` give (%) one stroke `now` is. In a hall warmer than
+/// at the checks before (their median) by at least `warmer` K, with the displacement `d`
+/// known and every check's oil and pressure read, the expected flow is `d` less the leakage
+/// of the checks before — the median of their conductances (d − q)/(p/ν), never below zero —
+/// moved to `now`'s pressure and oil: laminar gap leakage goes as p/ν (Hagen–Poiseuille), so
+/// a hot spell's thinner oil takes its share from the expectation while a relief valve
+/// starting to pass oil shows in full. Else `now.flow` against the median of theirs: a unit
+/// that heats its own oil (a fouling cooler, a path to tank) loses the flow its thinner oil
+/// leaks as part of its fault. None with no reference.
+pub fn loss_against(before: &[Stroke], now: &Stroke, d: Option<f64>, warmer: f64) -> Option<f64> {
+    let halls: Option<Vec<f64>> = before.iter().map(|s| s.ambient).collect();
+    let hot_spell = match (now.ambient, halls.as_deref().and_then(stats::median)) {
+        (Some(a), Some(m)) => a - m >= warmer,
+        _ => false,
+    };
+    let gs: Option<Vec<f64>> = before
+        .iter()
+        .map(|s| Some(((d? - s.q) / s.x()?).max(0.0)))
+        .collect();
+    let (expected, q) = match (hot_spell, d, gs, now.x()) {
+        (true, Some(d), Some(gs), Some(x)) => (stats::median(&gs).map(|g| d - g * x), now.q),
+        _ => (
+            stats::median(&before.iter().map(|s| s.flow).collect::<Vec<_>>()),
+            now.flow,
+        ),
+    };
+    expected.filter(|e| *e > 0.0).map(|e| (1.0 - q / e) * 100.0)
+}
+
 /// Where a step in flow and heat began, if one did: the first of two checks in a row whose
 /// timed flow is below, and whose heat rise at the same pressure is above, the median of up
 /// to `SUDDEN_BEFORE` checks before them, each by at least the watch limit of its own flag
@@ -165,6 +214,45 @@ mod tests {
             v.push(stepping(7, b.0, b.1, b.2));
             assert_eq!(step_at(&v, &l, &[]), None, "{why}");
         }
+    }
+
+    #[test]
+    fn a_sudden_loss_in_a_hot_spell_is_read_against_the_leakage_before() {
+        // Worked by hand. Displacement 100, pressure 1; an oil whose viscosity is 1/(T − 250)
+        // (any falling line will do for the arithmetic). Four checks at 95 in a hall at 280 K
+        // with the oil at 300 K: ν = 1/50, p/ν = 50, conductance 5/50 = 0.1.
+        let s = |q: f64, ambient: f64, oil: f64| Stroke {
+            q,
+            flow: q,
+            p: Some(1.0),
+            nu: Some(1.0 / (oil - 250.0)),
+            ambient: Some(ambient),
+        };
+        let before = [s(95.0, 280.0, 300.0); 4];
+        // A hot spell, the hall 10 K warmer and the oil at 350 K: p/ν = 100, leakage 10,
+        // 90 expected, 90 timed: no loss.
+        let hot = loss_against(&before, &s(90.0, 290.0, 350.0), Some(100.0), 5.0).unwrap();
+        assert!(hot.abs() < 1e-9, "{hot}");
+        // A relief valve passing oil in that hot spell: 70 timed, 1 − 70/90 = 22.22 % below.
+        let bypass = loss_against(&before, &s(70.0, 290.0, 350.0), Some(100.0), 5.0).unwrap();
+        assert!((bypass - 22.222).abs() < 1e-3, "{bypass}");
+        // The same hot oil in the same hall (a unit heating its own oil): against the flow
+        // before, 1 − 90/95 = 5.263 %.
+        let own = loss_against(&before, &s(90.0, 282.0, 350.0), Some(100.0), 5.0).unwrap();
+        assert!((own - 5.263).abs() < 1e-3, "{own}");
+        // No displacement, or a check before without its oil: the same plain reading.
+        let plain = loss_against(&before, &s(90.0, 290.0, 350.0), None, 5.0);
+        assert_eq!(plain, Some(own));
+        let mut gap = before;
+        gap[0].nu = None;
+        assert_eq!(
+            loss_against(&gap, &s(90.0, 290.0, 350.0), Some(100.0), 5.0),
+            plain
+        );
+        // Timed flows above the displacement (negative conductance) count as no leakage.
+        let over = [s(101.0, 280.0, 300.0); 4];
+        let none = loss_against(&over, &s(90.0, 290.0, 350.0), Some(100.0), 5.0).unwrap();
+        assert!((none - 10.0).abs() < 1e-9, "{none}");
     }
 
     #[test]
