@@ -106,7 +106,13 @@ impl HeatLoad {
     /// The heat load a sound unit has at a check — pressure `p`, hall at `ambient` (K), the oil
     /// read at `nu_read` — against the reference's: the factor its baseline heat rise is
     /// scaled by there. The oil is taken where a sound unit would settle (`settled_rise`); the
-    /// oil as read where that cannot be told (no hall reading, no resistance).
+    /// oil as read where that cannot be told (no hall reading, no resistance). Never below the
+    /// load at the reference's own oil: how much of the heat the leakage carries rests on the
+    /// share of input power taken as heat (common practice, not measured), so thicker oil than
+    /// the baseline's — a winter after a baseline formed in summer — is not taken to cool the
+    /// unit by the leakage it no longer passes: a heat rise that stays where it was must not
+    /// read as a drift. Thinner oil still raises the load, so a summer after a winter baseline
+    /// keeps its explanation.
     pub fn ratio(
         &self,
         p: f64,
@@ -121,7 +127,7 @@ impl HeatLoad {
                 .or(nu_read),
             _ => nu_read,
         };
-        let here = self.at(p, nu)?;
+        let here = self.at(p, nu)?.max(self.at(p, self.viscosity)?);
         let there = self.at(self.pressure, self.viscosity)?;
         Some(here / there)
     }
@@ -202,5 +208,27 @@ mod tests {
             ..m
         };
         assert!(runaway.settled_rise(100.0e5, amb, oil).is_none());
+    }
+
+    #[test]
+    fn thicker_oil_than_the_baseline_s_never_lowers_the_load() {
+        // The model of the test above, its oil at the reference viscosity in a hall 20 K over
+        // ambient. In a cold hall whose oil would settle thick, ν_ref/ν = 0.5 at 100 bar:
+        // with the leakage halved the load would be (0.20 + 0.025)/0.25 = 0.9; it is taken at
+        // the reference's oil, 1.0 (by hand). At 120 bar the same: (0.20 + 0.05 · 1.2) · 1.2
+        // / 0.25 = 1.248.
+        let r = Reference {
+            viscosity: 30e-6,
+            pressure: 100.0e5,
+        };
+        let m = HeatLoad::with_leakage(r, 1.0, 0.05, 0.25);
+        let thick = |_: f64| Some(60e-6);
+        let k = m.ratio(100.0e5, None, Some(60e-6), thick).unwrap();
+        assert!((k - 1.0).abs() < 1e-12, "{k}");
+        let k = m.ratio(120.0e5, None, Some(60e-6), thick).unwrap();
+        assert!((k - 1.248).abs() < 1e-12, "{k}");
+        // Thinner oil still raises it: 15 cSt at 100 bar, (0.20 + 0.10)/0.25 = 1.2.
+        let k = m.ratio(100.0e5, None, Some(15e-6), thick).unwrap();
+        assert!((k - 1.2).abs() < 1e-12, "{k}");
     }
 }
