@@ -242,6 +242,7 @@ fn layout_doc(paper: Paper, name: &str, flags: usize) -> ReportDoc {
         }],
         remarks: Vec::new(),
         corrections: Vec::new(),
+        work_done: Vec::new(),
     };
     let short = UnitSection {
         tag: "LX-02".into(),
@@ -1165,5 +1166,76 @@ fn figures_that_rest_on_a_corrected_reading_are_marked_and_the_corrections_liste
     // The other unit had nothing corrected: no list, no mark.
     assert!(!dp.contains("Corrections in the period"), "{dp}");
     assert!(!dp.contains("corrected"), "{dp}");
+    assert_nothing_overflows_or_overlaps(&out);
+}
+
+/// Work done in the report's period is listed on the unit's page with what was recorded with
+/// it: the volume and fluid put in, the hour meter, the filter part and the work order.
+#[test]
+fn work_done_in_the_period_is_listed_with_its_hour_meter_filter_part_and_work_order() {
+    use sumpbook::app::report::{write_report, ReportOptions};
+    use sumpbook::app::shop::Shop;
+    use sumpbook::app::work::{log_event_in, EventInput};
+    use sumpbook::model::{EventDetails, EventKind};
+    let dir = tempfile::tempdir().unwrap();
+    let shop = Shop::create_demo(&dir.path().join("demo.sqlite")).unwrap();
+    let store = shop.store_for_tests();
+    let end = sumpbook::exchange::demo::end_date();
+    let at = (end - chrono::Days::new(2))
+        .and_hms_opt(10, 0, 0)
+        .unwrap()
+        .and_utc();
+    let unit = store.unit_by_tag("PB-03-A").unwrap().unwrap();
+    let around = store.hour_meter_around(unit.id, at).unwrap();
+    let hours = around.before.unwrap().0 + 1.0;
+    assert!(around.after.is_none_or(|(h, _)| h >= hours));
+    let input = EventInput {
+        kind: EventKind::FilterChange,
+        at: Some(at),
+        volume: None,
+        fluid: None,
+        by: "T. Fitter".into(),
+        note: "pressure filter element".into(),
+        details: EventDetails {
+            hours: Some(hours),
+            filter_part: "RF-10-BN".into(),
+            work_order: "WO-4471".into(),
+        },
+    };
+    log_event_in(store, "PB-03-A", &input, at + chrono::Duration::hours(1)).unwrap();
+
+    let out = dir.path().join("work-done.pdf");
+    let opts = ReportOptions {
+        out: out.clone(),
+        units: vec!["PB-03-A".into(), "DP-08-C".into()],
+        from: None,
+        to: Some(end),
+        paper: Paper::Letter,
+        prepared_by: String::new(),
+        replace: false,
+    };
+    assert!(
+        write_report(&shop, &opts, &mut |_, _| true)
+            .unwrap()
+            .completed
+    );
+    let text = squeeze(&pdf_text(&out));
+    let (at_pb, at_dp) = (
+        text.find("PB-03-A · ").unwrap(),
+        text.find("DP-08-C · ").unwrap(),
+    );
+    let pb = &text[at_pb..at_dp];
+    assert!(pb.contains("Work done"), "{pb}");
+    assert!(pb.contains("filter change: "), "{pb}");
+    assert!(
+        pb.contains(&format!(
+            "hour meter {hours} h · filter part RF-10-BN · work order WO-4471"
+        )),
+        "{pb}"
+    );
+    assert!(
+        pb.contains("T. Fitter") && pb.contains("pressure filter element"),
+        "{pb}"
+    );
     assert_nothing_overflows_or_overlaps(&out);
 }

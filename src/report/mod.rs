@@ -120,6 +120,20 @@ pub struct IndicatorRow {
     pub change: String,
 }
 
+/// Work done on a unit in the report's period (a fluid change, filter change, top-up, ...).
+#[derive(Clone, Debug, PartialEq)]
+pub struct WorkDone {
+    /// When it was done, in the shop's time.
+    pub when: String,
+    /// What was done, in words ("fluid change").
+    pub what: String,
+    /// The fluid and volume put in, the hour meter, the filter part and the work order, as
+    /// recorded ("180 L Stock HM 46 · hour meter 45890 h · filter part RF-10-BN").
+    pub recorded: String,
+    pub by: String,
+    pub note: String,
+}
+
 /// A correction, deletion or restore of one of a unit's readings, made in the report's period.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Correction {
@@ -157,6 +171,8 @@ pub struct UnitSection {
     pub remarks: Vec<String>,
     /// The corrections of the unit's readings made in the period, oldest first.
     pub corrections: Vec<Correction>,
+    /// The work done on the unit in the period, oldest first.
+    pub work_done: Vec<WorkDone>,
 }
 
 /// The whole report, every figure already formatted for print.

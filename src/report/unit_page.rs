@@ -1,4 +1,5 @@
-//! One unit's part of the report: identity, fluid, era and baseline; the indicator table;
+//! One unit's part of the report: identity, fluid, era and baseline; the period's work done
+//! with what was recorded with it; the indicator table;
 //! the vector charts; flags with their acknowledgements; the period's corrections of its
 //! readings; work due; sign-off lines.
 //! The charts take the room the page has left, within limits, so that a usual unit fits on
@@ -8,7 +9,7 @@
 use super::charts;
 use super::fleet_page::{findings_table, work_table, TableSpec};
 use super::layout::{size, Cell, Face, Layout, DARK};
-use super::{Correction, UnitSection};
+use super::{Correction, UnitSection, WorkDone};
 
 /// Chart heights in points: what they shrink to before the page is let to run over, and
 /// what they grow to at most.
@@ -58,6 +59,13 @@ pub fn draw(l: &mut Layout, u: &UnitSection) {
     if !u.baseline.is_empty() {
         l.key_values(
             &[("Baseline".to_string(), u.baseline.clone())],
+            1,
+            size::SMALL,
+        );
+    }
+    if !u.work_done.is_empty() {
+        l.key_values(
+            &[("Work done".to_string(), work_done_text(&u.work_done))],
             1,
             size::SMALL,
         );
@@ -156,6 +164,31 @@ pub fn draw(l: &mut Layout, u: &UnitSection) {
 }
 
 const CORRECTIONS: &str = "Corrections in the period";
+
+/// The period's work done on the unit, oldest first, in one run of text (a page has no room
+/// for another table): when, what, what was recorded with it, the note, who.
+fn work_done_text(done: &[WorkDone]) -> String {
+    done.iter()
+        .map(|d| {
+            let said = [d.recorded.as_str(), d.note.as_str()]
+                .into_iter()
+                .filter(|t| !t.is_empty())
+                .collect::<Vec<_>>()
+                .join(" · ");
+            let by = if d.by.is_empty() {
+                String::new()
+            } else {
+                format!(" ({})", d.by)
+            };
+            if said.is_empty() {
+                format!("{} {}{by}", d.when, d.what)
+            } else {
+                format!("{} {}: {said}{by}", d.when, d.what)
+            }
+        })
+        .collect::<Vec<_>>()
+        .join("; ")
+}
 
 /// The period's corrections of the unit's readings: when, which reading, each field old → new,
 /// who and why.

@@ -268,6 +268,7 @@ pub fn build_report(
     // The edit history, read once for every unit's corrections.
     let log = store.edit_log().map_err(store_error)?;
     let registers = store.units().map_err(store_error)?;
+    let fluids = store.fluids().map_err(store_error)?;
     let mut units = Vec::new();
     for u in &chosen {
         let unit = registers.iter().find(|r| r.id == u.unit_id);
@@ -278,16 +279,12 @@ pub fn build_report(
             .map(|h| h.events)
             .unwrap_or_default();
         let edits = super::edit_trail::unit_edits_from(store, &log, u.unit_id, &u.unit)?;
-        units.push(unit_section(
-            u,
-            unit,
-            machine,
-            &events,
-            &edits,
-            (from, to),
-            sys,
-            zone,
-        ));
+        let details = store
+            .event_details_of_unit(u.unit_id)
+            .map_err(store_error)?;
+        let mut section = unit_section(u, unit, machine, &events, &edits, (from, to), sys, zone);
+        section.work_done = period_work_done(&events, &details, &fluids, (from, to), sys, zone);
+        units.push(section);
     }
 
     // The work of the evaluation above: the shop is read and judged once per report.

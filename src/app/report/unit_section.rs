@@ -224,6 +224,8 @@ pub(super) fn unit_section(
         },
         indicators: indicator_rows(u, edits, (from, to), sys, zone),
         corrections: period_corrections(edits, (from, to), zone),
+        // Filled by the caller, which reads what was recorded beside the events.
+        work_done: Vec::new(),
         charts: charts(u, events, (from, to), sys, zone),
         remarks: u
             .health
@@ -260,4 +262,50 @@ pub(super) fn unit_section(
             })
             .collect(),
     }
+}
+
+/// The work done on a unit in the period, oldest first: when, what, the fluid and volume put
+/// in and what was recorded beside the event (hour meter, filter part, work order), who, the
+/// note. `details` by event id, `fluids` the shop's.
+pub(super) fn period_work_done(
+    events: &[crate::model::Event],
+    details: &[(crate::model::Id, crate::model::EventDetails)],
+    fluids: &[Fluid],
+    (from, to): (NaiveDate, NaiveDate),
+    sys: UnitSystem,
+    zone: Zone,
+) -> Vec<crate::report::WorkDone> {
+    let (start, end) = (zone.day_start(from), zone.day_end(to));
+    events
+        .iter()
+        .filter(|e| e.done_at >= start && e.done_at <= end)
+        .map(|e| {
+            let mut recorded = Vec::new();
+            let fluid = e
+                .fluid_id
+                .and_then(|id| fluids.iter().find(|f| f.id == id))
+                .map(|f| f.name.clone());
+            let put_in = [e.volume.map(|v| format(Quantity::Volume(v), sys)), fluid]
+                .into_iter()
+                .flatten()
+                .collect::<Vec<_>>()
+                .join(" ");
+            if !put_in.is_empty() {
+                recorded.push(put_in);
+            }
+            if let Some((_, d)) = details.iter().find(|(id, _)| *id == e.id) {
+                let words = crate::app::work::details_words(d);
+                if !words.is_empty() {
+                    recorded.push(words);
+                }
+            }
+            crate::report::WorkDone {
+                when: zone.show(e.done_at),
+                what: e.kind.as_str().replace('_', " "),
+                recorded: recorded.join(" · "),
+                by: e.by.clone(),
+                note: e.note.clone(),
+            }
+        })
+        .collect()
 }
