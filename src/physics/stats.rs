@@ -450,32 +450,33 @@ pub fn median_of_last(values: &[f64], n: usize) -> Option<f64> {
     ))
 }
 
-/// Up to this many values are ordered in a buffer on the stack: the screen and the
-/// indicators take medians of windows of 3 to 8 values at every reading of every unit, and a
-/// fresh vector each time cost more than the ordering itself.
-const ON_STACK: usize = 16;
+/// Up to this many values are ordered in registers by [`sort_eight`]: the screen and the
+/// indicators take medians of windows of 3 to 8 values several times at every reading of every
+/// unit, and a fresh sorted vector each time was a quarter of a fleet evaluation's CPU.
+const NETWORK: usize = 8;
 
 /// The median of `values` (at least one), ordered as `f64::total_cmp` orders them.
 fn median_in(values: impl ExactSizeIterator<Item = f64>) -> f64 {
     let m = values.len();
-    // Padded with the greatest key, which sorts to the end.
-    let mut stack = [i64::MAX; ON_STACK];
-    let mut heap = Vec::new();
-    let keys: &mut [i64] = if m <= ON_STACK {
-        &mut stack
-    } else {
-        heap.resize(m, 0);
-        &mut heap
-    };
-    for (k, v) in keys.iter_mut().zip(values) {
-        *k = order_key(v);
+    if m <= NETWORK {
+        // Padded with the greatest key, which the network sorts to the end.
+        let mut keys = [i64::MAX; NETWORK];
+        for (k, v) in keys.iter_mut().zip(values) {
+            *k = order_key(v);
+        }
+        sort_eight(&mut keys);
+        return middle(&keys[..m]);
     }
-    match keys.first_chunk_mut::<NETWORK>() {
-        Some(eight) if m <= NETWORK => sort_eight(eight),
-        // Equal keys are equal bit patterns, so an unstable sort gives the same order.
-        _ => keys[..m].sort_unstable(),
-    }
-    let at = |i: usize| from_order_key(keys[i]);
+    let mut keys: Vec<i64> = values.map(order_key).collect();
+    // Equal keys are equal bit patterns, so an unstable sort gives the same order.
+    keys.sort_unstable();
+    middle(&keys)
+}
+
+/// The median of sorted keys: the middle value, or the mean of the middle two.
+fn middle(sorted: &[i64]) -> f64 {
+    let m = sorted.len();
+    let at = |i: usize| from_order_key(sorted[i]);
     if m % 2 == 1 {
         at(m / 2)
     } else {
@@ -483,40 +484,29 @@ fn median_in(values: impl ExactSizeIterator<Item = f64>) -> f64 {
     }
 }
 
-/// Up to this many keys are ordered by [`sort_eight`].
-const NETWORK: usize = 8;
-
 /// Sorts eight keys by a fixed network of 19 compare-exchanges in 6 layers (D. E. Knuth, *The
 /// Art of Computer Programming*, vol. 3, 5.3.4, the best known network for eight elements),
-/// each a branch-free min and max: windows of a few readings arrive in no order a branch
-/// predictor can learn, and an insertion sort's mispredicted branches were most of its time.
+/// each a branch-free min and max written out, so that the keys stay in registers: windows of
+/// a few readings arrive in no order a branch predictor can learn, and an insertion sort's
+/// mispredicted branches were most of its time.
 fn sort_eight(k: &mut [i64; NETWORK]) {
-    const PAIRS: [(usize, usize); 19] = [
-        (0, 2),
-        (1, 3),
-        (4, 6),
-        (5, 7),
-        (0, 4),
-        (1, 5),
-        (2, 6),
-        (3, 7),
-        (0, 1),
-        (2, 3),
-        (4, 5),
-        (6, 7),
-        (2, 4),
-        (3, 5),
-        (1, 4),
-        (3, 6),
-        (1, 2),
-        (3, 4),
-        (5, 6),
-    ];
-    for (i, j) in PAIRS {
-        let (a, b) = (k[i], k[j]);
-        k[i] = a.min(b);
-        k[j] = a.max(b);
+    let mut a = *k;
+    macro_rules! layer {
+        ($(($i:literal, $j:literal)),*) => {
+            $(
+                let (lo, hi) = (a[$i].min(a[$j]), a[$i].max(a[$j]));
+                a[$i] = lo;
+                a[$j] = hi;
+            )*
+        };
     }
+    layer!((0, 2), (1, 3), (4, 6), (5, 7));
+    layer!((0, 4), (1, 5), (2, 6), (3, 7));
+    layer!((0, 1), (2, 3), (4, 5), (6, 7));
+    layer!((2, 4), (3, 5));
+    layer!((1, 4), (3, 6));
+    layer!((1, 2), (3, 4), (5, 6));
+    *k = a;
 }
 
 /// An integer whose order is `f64::total_cmp`'s order of `x` (the same mapping the standard
