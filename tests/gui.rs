@@ -2080,3 +2080,78 @@ fn mark_done_records_when_hour_meter_fluid_filter_part_and_work_order_from_the_k
     assert_eq!(cell("Work order"), "WO-4471");
     assert_eq!(cell("By"), "T. Fitter");
 }
+
+/// The route sheet's file has the desktop's save dialog beside the typed path, as the report's
+/// does: it opens at the name offered in the output folder, a name chosen without its ending
+/// gets .pdf, a cancelled dialog changes nothing, and the sheet is written where chosen.
+#[test]
+fn the_route_sheet_file_has_the_desktops_chooser_beside_the_typed_path() {
+    use std::cell::RefCell;
+    use std::rc::Rc;
+    use sumpbook::gui::files::FileQuestion;
+    let f = open_demo();
+    f.app.set_output_folder(f._dir.path());
+    let opened: Rc<RefCell<Vec<PathBuf>>> = Rc::default();
+    {
+        let o = opened.clone();
+        f.app.set_file_opener(move |p| {
+            o.borrow_mut().push(p.to_path_buf());
+            Ok(())
+        });
+    }
+    let asked: Rc<RefCell<Vec<FileQuestion>>> = Rc::default();
+    let answers: Rc<RefCell<Vec<Option<PathBuf>>>> = Rc::default();
+    {
+        let (asked, answers) = (asked.clone(), answers.clone());
+        f.app.set_file_chooser(move |q| {
+            asked.borrow_mut().push(q.clone());
+            answers.borrow_mut().remove(0)
+        });
+    }
+    f.app.show(Screen::Walk);
+    let offered = field(&f.app, "Route sheet file")
+        .accessible_value()
+        .unwrap();
+    assert_eq!(Path::new(offered.as_str()).parent(), Some(f._dir.path()));
+    assert!(offered.ends_with(".pdf"), "{offered}");
+
+    answers.borrow_mut().push(None);
+    button(&f.app, "Choose where to save the route sheet").invoke_accessible_default_action();
+    let q = asked.borrow().last().cloned().unwrap();
+    assert!(q.save && q.extensions == ["pdf"], "{q:?}");
+    assert_eq!(q.folder, f._dir.path());
+    assert_eq!(
+        q.name.as_deref(),
+        Path::new(offered.as_str())
+            .file_name()
+            .and_then(|n| n.to_str())
+    );
+    assert_eq!(
+        field(&f.app, "Route sheet file")
+            .accessible_value()
+            .unwrap(),
+        offered
+    );
+
+    let sub = f._dir.path().join("rounds");
+    std::fs::create_dir(&sub).unwrap();
+    answers.borrow_mut().push(Some(sub.join("monday round")));
+    button(&f.app, "Choose where to save the route sheet").invoke_accessible_default_action();
+    let chosen = sub.join("monday round.pdf");
+    assert_eq!(
+        field(&f.app, "Route sheet file")
+            .accessible_value()
+            .unwrap(),
+        chosen.display().to_string()
+    );
+    button(&f.app, "Print route sheet").invoke_accessible_default_action();
+    let m = message(&f.app);
+    assert!(m.contains("Route sheet written"), "{m}");
+    assert_eq!(*opened.borrow(), vec![chosen.clone()]);
+    let (_, first) = first_route_unit(&f.path);
+    assert!(pdf_text(&chosen).contains(&format!("1. {first} ·")));
+    assert!(
+        !Path::new(offered.as_str()).exists(),
+        "nothing at the name offered"
+    );
+}

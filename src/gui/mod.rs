@@ -323,7 +323,10 @@ pub(crate) fn show(ctx: &Rc<Ctx>, screen: Screen) {
     match screen {
         Screen::Fleet => fleet::refresh(ctx),
         Screen::Unit => unit::refresh(ctx),
-        Screen::Walk => walk::refresh(ctx),
+        Screen::Walk => {
+            walk::refresh(ctx);
+            walk::offer_sheet_out(ctx);
+        }
         Screen::Samples => samples::refresh(ctx),
         Screen::Work => work::refresh(ctx),
         Screen::Import => import::refresh(ctx),
@@ -424,6 +427,21 @@ pub(crate) fn choose_file(ctx: &Rc<Ctx>, q: &files::FileQuestion) -> Option<Path
 pub(crate) fn choose_csv(ctx: &Rc<Ctx>, typed: &str, title: &str) -> Option<PathBuf> {
     let folder = files::folder_of(typed, reports::default_folder(ctx));
     choose_file(ctx, &files::FileQuestion::open_csv(title, folder))
+}
+
+/// Asks where to save a PDF now typed as `typed`, the dialog opening at that file (its folder
+/// and name; the output folder when it has none). A name chosen without its ending gets .pdf.
+pub(crate) fn choose_pdf(ctx: &Rc<Ctx>, typed: &str, title: &str) -> Option<PathBuf> {
+    let q = files::FileQuestion::save_pdf(
+        title,
+        std::path::Path::new(typed.trim()),
+        reports::default_folder(ctx),
+    );
+    let mut path = choose_file(ctx, &q)?;
+    if path.extension().is_none() {
+        path.set_extension("pdf");
+    }
+    Some(path)
 }
 
 /// The walk-round order, from the current fleet evaluation.

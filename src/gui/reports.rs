@@ -91,17 +91,7 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
     a.on_choose_out(on(ctx, |ctx| {
         let Some(w) = ctx.win() else { return };
         let a = w.global::<ReportAdapter>();
-        let typed = a.get_out().to_string();
-        let q = super::files::FileQuestion::save_pdf(
-            "Save the report as",
-            Path::new(typed.trim()),
-            default_folder(ctx),
-        );
-        if let Some(mut path) = super::choose_file(ctx, &q) {
-            // A name typed in the dialog without its ending still gets one.
-            if path.extension().is_none() {
-                path.set_extension("pdf");
-            }
+        if let Some(path) = super::choose_pdf(ctx, &a.get_out(), "Save the report as") {
             a.set_out(s(path.display().to_string()));
         }
     }));

@@ -27,6 +27,9 @@ pub(crate) struct WalkState {
     /// The time the form was filled with (as shown, and the instant it stands for): saved as
     /// that instant while the text is left as it is.
     filled_at: Option<(String, DateTime<Utc>)>,
+    /// The route sheet's file as offered (a free name in the output folder): once written
+    /// there, the next free name is offered.
+    sheet_offered: Option<String>,
 }
 
 pub(super) fn install(ctx: &Rc<Ctx>) {
@@ -51,6 +54,13 @@ pub(super) fn install(ctx: &Rc<Ctx>) {
         mark_and_advance(ctx, "skipped");
     }));
     a.on_print_sheet(on(ctx, print_sheet));
+    a.on_choose_sheet_out(on(ctx, |ctx| {
+        let Some(w) = ctx.win() else { return };
+        let a = w.global::<WalkAdapter>();
+        if let Some(path) = super::choose_pdf(ctx, &a.get_sheet_out(), "Save the route sheet as") {
+            a.set_sheet_out(s(path.display().to_string()));
+        }
+    }));
     a.on_select(on_arg(ctx, |ctx, i: i32| {
         go_to(ctx, i.max(0) as usize);
     }));
@@ -364,13 +374,34 @@ pub(super) fn demo_entry(ctx: &Rc<Ctx>) {
     a.invoke_save();
 }
 
-/// Writes the route sheet beside the reports (a free name, never over a file) and opens it.
+/// Offers a free name in the output folder for the route sheet, unless a file is typed or
+/// chosen already.
+pub(super) fn offer_sheet_out(ctx: &Rc<Ctx>) {
+    let Some(w) = ctx.win() else { return };
+    let a = w.global::<WalkAdapter>();
+    let typed = a.get_sheet_out();
+    let offered = ctx.walk.borrow().sheet_offered.clone();
+    if typed.trim().is_empty() || offered.as_deref() == Some(typed.as_str()) {
+        let path =
+            crate::app::report::default_route_sheet_path(&super::reports::default_folder(ctx))
+                .display()
+                .to_string();
+        a.set_sheet_out(s(&path));
+        ctx.walk.borrow_mut().sheet_offered = Some(path);
+    }
+}
+
+/// Writes the route sheet to the file typed or chosen (never over a file; the name offered is
+/// a free one) and opens it.
 fn print_sheet(ctx: &Rc<Ctx>) {
     let Some(w) = ctx.win() else { return };
     let a = w.global::<WalkAdapter>();
-    let path = crate::app::report::default_route_sheet_path(&super::reports::default_folder(ctx));
+    offer_sheet_out(ctx);
+    let path = std::path::PathBuf::from(a.get_sheet_out().trim());
     match crate::app::route_sheet::write_route_sheet(&ctx.shop, &path, None, false) {
         Ok(sum) => {
+            // The name offered is taken now: the next sheet gets a free one.
+            offer_sheet_out(ctx);
             a.set_message(s(format!(
                 "Route sheet written to {} ({} units, {} page(s)).",
                 sum.path.display(),
