@@ -32,6 +32,11 @@ pub const WINDOW: usize = 8;
 /// Fewer accepted earlier readings than this and the history rule is not applied (the frame
 /// rules still are): a robust spread of fewer points says little.
 pub const MIN_HISTORY: usize = 3;
+/// The acid numbers' history rule needs fewer: their spread is the floor `FLOOR_ACID_LN` at so
+/// few samples whatever they show, so two earlier samples give the median it is held against
+/// (a sample a month or a quarter: waiting for a third lets the era's third sample through
+/// unscreened).
+pub const MIN_ACID_HISTORY: usize = 2;
 /// A reading further than this many robust σ from the median of its recent history is
 /// questioned. The rule is Hampel's identifier (median ± t · 1.4826 · MAD; F. R. Hampel 1974,
 /// L. Davies and U. Gather, "The identification of multiple outliers", JASA 1993), with t

@@ -350,10 +350,10 @@ pub(super) struct SampleScreen {
 
 impl SampleScreen {
     /// Median and robust σ (floored) of the last `WINDOW` accepted values of a field, when
-    /// there are at least `MIN_HISTORY`.
+    /// there are at least `MIN_ACID_HISTORY`.
     pub(super) fn recent(&self, f: Field) -> Option<(f64, f64)> {
         let acc = &self.accepted[sample_idx(f)?];
-        if acc.len() < MIN_HISTORY {
+        if acc.len() < MIN_ACID_HISTORY {
             return None;
         }
         let last = &acc[acc.len().saturating_sub(WINDOW)..];

@@ -235,6 +235,13 @@ fn a_slipped_decimal_in_an_acid_number_is_questioned_against_the_unit_s_own_samp
         .map(|x| x.field)
         .collect();
     assert_eq!(asked, vec![Field::Acid]);
+    // Two earlier samples of the era are enough (the floor sets the spread): 0.40 typed as
+    // 4.0 at the era's third sample, ln(4.0 / 0.405) = 2.29 beyond 1.0; after one, not yet.
+    let h = sampled(&[100.0; 3], &[0.41, 0.40, 4.0], None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 3), vec![(Field::Acid, false)]);
+    let h = sampled(&[100.0; 2], &[0.41, 4.0], None);
+    assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
     // A tenth (0.04 for 0.40) is questioned as well: below.
     let h = sampled(&[100.0; 4], &[0.40, 0.42, 0.38, 0.04], None);
     let s = screen_history(&h, None, UnitSystem::Metric);
