@@ -138,9 +138,21 @@ pub(super) fn run_detectors(
         let mut run = 0usize;
         let mut prev_at: Option<DateTime<Utc>> = None;
         for p in points.iter_mut().filter(|p| manual || !p.in_baseline) {
-            let Some(x) = value_of(p, b.indicator) else {
+            let Some(mut x) = value_of(p, b.indicator) else {
                 continue;
             };
+            // A check corrected from thicker oil or a lighter job than the baseline's carries
+            // the stopwatch's scatter k times over (k = the leakage's scale to the reference,
+            // `flow_scale`), while the limits rest on the baseline's own scatter: its distance
+            // from the baseline is weighed by 1/k, as a chart weighs a reading by its own
+            // spread (the standardised statistic of an EWMA with unequal variances,
+            // Montgomery), so a baseline formed in summer does not read every winter check as
+            // a drift. A check corrected from thinner oil keeps its full weight.
+            if b.indicator == BaselineIndicator::CorrectedFlow {
+                if let Some(k) = p.flow_scale.filter(|k| *k > 1.0 && k.is_finite()) {
+                    x = b.value + (x - b.value) / k;
+                }
+            }
             if let Some(from) = prev_at {
                 if restarts
                     .iter()
@@ -204,5 +216,69 @@ pub(super) fn run_detectors(
                 material,
             });
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::health::baseline::BaselineValue;
+    use crate::health::testutil::t;
+
+    /// Ten checks whose flow, corrected to the baseline's oil, reads 90 against a baseline of
+    /// 100 (entered by hand: known, no standard error), each corrected by the scale `k`.
+    fn drifted(k: f64) -> Vec<CheckPoint> {
+        let b = Baseline {
+            values: vec![BaselineValue {
+                indicator: BaselineIndicator::CorrectedFlow,
+                value: 100.0,
+                spread: 2.5,
+                value_se: 0.0,
+                complete: true,
+                source: BaselineSource::Manual {
+                    by: "test".into(),
+                    at: t("2024-01-01"),
+                },
+            }],
+            closed_at: None,
+        };
+        let mut pts: Vec<CheckPoint> = (0..10)
+            .map(|w| CheckPoint {
+                check_id: w,
+                at: t("2024-01-08") + chrono::Duration::weeks(w),
+                corrected_flow: Some(90.0),
+                flow_scale: Some(k),
+                ..CheckPoint::default()
+            })
+            .collect();
+        run_detectors(&mut pts, &b, &Limits::builtin(), &[]);
+        pts
+    }
+
+    #[test]
+    fn a_check_corrected_from_thick_oil_weighs_by_its_own_scatter() {
+        // Worked by hand, λ = 0.2: an EWMA of a constant x from 100 stands at
+        // 100 − (100 − x)(1 − 0.8ⁿ) after n checks, 1 − 0.8¹⁰ = 0.8926. At the baseline's own
+        // oil (k = 1) the tenth reads 91.07, 8.93 % under the baseline: past the 8 % watch
+        // limit of lost flow (and two spreads, 5 %), a material drift.
+        let at_ref = drifted(1.0);
+        let last = at_ref[9].drift[0].clone();
+        assert!(
+            (last.ewma - (100.0 - 10.0 * 0.892_626_3)).abs() < 1e-4,
+            "{last:?}"
+        );
+        assert!(last.material && last.signal, "{last:?}");
+        // Corrected from oil three times as thick: each reading is 10/3 under, the EWMA
+        // 100 − 3.333 · 0.8926 = 97.02, 2.98 % under: not material.
+        let thick = drifted(3.0);
+        let last = thick[9].drift[0].clone();
+        assert!(
+            (last.ewma - (100.0 - 10.0 / 3.0 * 0.892_626_3)).abs() < 1e-4,
+            "{last:?}"
+        );
+        assert!(!last.material, "{last:?}");
+        // From thinner oil (k < 1) a reading keeps its full weight.
+        let thin = drifted(0.5);
+        assert_eq!(thin[9].drift[0].ewma, at_ref[9].drift[0].ewma);
     }
 }

@@ -86,6 +86,10 @@ pub struct CheckPoint {
     /// Effective flow corrected to the baseline's oil viscosity and pressure:
     /// Q_rated − (Q_rated − Q)·(ν/ν_ref)·(p_ref/p). Only wear moves it.
     pub corrected_flow: Option<f64>,
+    /// The factor (ν/ν_ref)·(p_ref/p) the leakage was scaled by to correct this check's flow:
+    /// the stopwatch's scatter reaches the corrected flow this many times over.
+    #[serde(default)]
+    pub flow_scale: Option<f64>,
     pub lost_flow_pct: Option<f64>,
     /// Median of the lost flow of the last 3 checks of the era that have one.
     pub lost_flow_median_pct: Option<f64>,
@@ -374,6 +378,7 @@ pub fn compute(
             (Some(r), Some(nu), Some(pr)) => Some(nu / r.viscosity * r.pressure / pr),
             _ => None,
         };
+        p.flow_scale = scale;
         p.corrected_flow = match (displacement, p.effective_flow, scale) {
             (Some(d), Some(q), Some(k)) => Some(d - (d - q) * k),
             _ => None,
