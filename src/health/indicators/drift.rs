@@ -4,8 +4,9 @@
 use super::*;
 
 /// Maintenance that restarts the detectors and flags of what it addresses: a cooler clean the
-/// heat rise; a repair the flow, leakage and case drain; a filter change the cleanliness (its
-/// samples before the change no longer stand for the oil). Fluid changes and rebuilds start a
+/// heat rise; a repair the flow, leakage and case drain, and the heat rise too (what passed oil
+/// to tank — a relief or directional valve — heated it as much as it robbed the stroke); a
+/// filter change the cleanliness (its samples before the change no longer stand for the oil). Fluid changes and rebuilds start a
 /// new era instead.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Restart {
@@ -18,7 +19,7 @@ impl Restart {
     pub fn addresses(&self, ind: BaselineIndicator) -> bool {
         match self.event {
             EventKind::CoolerClean => ind == BaselineIndicator::HeatRise,
-            EventKind::Repair => ind != BaselineIndicator::HeatRise,
+            EventKind::Repair => true,
             _ => false,
         }
     }
@@ -28,7 +29,13 @@ impl Restart {
         use crate::health::flags::FlagKind as K;
         match self.event {
             EventKind::CoolerClean => &[K::HeatRise, K::Drift],
-            EventKind::Repair => &[K::LostFlow, K::LeakConductance, K::CaseDrain, K::Drift],
+            EventKind::Repair => &[
+                K::LostFlow,
+                K::LeakConductance,
+                K::CaseDrain,
+                K::HeatRise,
+                K::Drift,
+            ],
             EventKind::FilterChange => &[K::Cleanliness, K::Filter],
             _ => &[],
         }
@@ -280,5 +287,57 @@ mod tests {
         // From thinner oil (k < 1) a reading keeps its full weight.
         let thin = drifted(0.5);
         assert_eq!(thin[9].drift[0].ewma, at_ref[9].drift[0].ewma);
+    }
+
+    #[test]
+    fn a_repair_restarts_the_heat_rise_detectors() {
+        // A heat rise of 30 K against a baseline of 20 K (entered by hand) for six checks, a
+        // repair (a relief valve that passed oil), then the first check after it at 20 K: the
+        // EWMA starts afresh from the baseline, 20 + 0.2 · (20 − 20) = 20 (by hand), where
+        // without the restart it would carry the shift on.
+        let b = Baseline {
+            values: vec![BaselineValue {
+                indicator: BaselineIndicator::HeatRise,
+                value: 20.0,
+                spread: 2.0,
+                value_se: 0.0,
+                complete: true,
+                source: BaselineSource::Manual {
+                    by: "test".into(),
+                    at: t("2024-01-01"),
+                },
+            }],
+            closed_at: None,
+        };
+        let mut pts: Vec<CheckPoint> = (0..7)
+            .map(|w| CheckPoint {
+                check_id: w,
+                at: t("2024-01-08") + chrono::Duration::weeks(w),
+                heat_rise_corrected: Some(if w < 6 { 30.0 } else { 20.0 }),
+                heat_rise: Some(if w < 6 { 30.0 } else { 20.0 }),
+                ..CheckPoint::default()
+            })
+            .collect();
+        let repair = Restart {
+            at: pts[5].at + chrono::Duration::days(2),
+            event_id: 1,
+            event: EventKind::Repair,
+        };
+        assert!(repair
+            .flag_kinds()
+            .contains(&crate::health::flags::FlagKind::HeatRise));
+        run_detectors(
+            &mut pts,
+            &b,
+            &Limits::builtin(),
+            std::slice::from_ref(&repair),
+        );
+        assert!(pts[5].drift[0].ewma > 25.0, "{:?}", pts[5].drift);
+        assert!(
+            (pts[6].drift[0].ewma - 20.0).abs() < 1e-9,
+            "{:?}",
+            pts[6].drift
+        );
+        assert!(!pts[6].drift[0].signal);
     }
 }
