@@ -1482,3 +1482,129 @@ fn log_event_records_hour_meter_fluid_filter_part_and_work_order_and_they_round_
         }
     });
 }
+
+/// A new reading never takes the number of a deleted one: the shop's newest check (the
+/// highest number given so far) deleted, a check added after it, and the deleted one is still
+/// put back as it was, its edits its own, on a shop file and on a server, and on a server the
+/// shop file was copied onto after the deletion.
+#[test]
+fn a_reading_added_after_the_newest_was_deleted_leaves_the_deletion_restorable() {
+    crate::backends::on_each_backend(|| {
+        let dir = tempfile::tempdir().unwrap();
+        let d = dir.path();
+        let db = &shop_name("shop.sqlite");
+        let path = if db.starts_with("postgres") {
+            std::path::PathBuf::from(db)
+        } else {
+            d.join(db)
+        };
+        ok(d, &["--db", db, "demo"]);
+        let tag = delete_the_newest_check(&path);
+        added_then_restored(d, db, &tag);
+        if crate::backends::server().is_some()
+            && crate::backends::current() == crate::backends::Backend::File
+        {
+            // The file with that deletion outstanding, copied onto a server: the server's
+            // numbering goes on past the deleted reading's too.
+            let url = crate::backends::new_database();
+            ok(d, &["--db", "copied.sqlite", "demo"]);
+            let tag = delete_the_newest_check(&d.join("copied.sqlite"));
+            ok(d, &["copy", "--from", "copied.sqlite", "--to", &url]);
+            added_then_restored(d, &url, &tag);
+        }
+    });
+}
+
+/// Deletes the check with the highest number in the shop at `path` (the last one written) as
+/// the unit page does; its unit's tag.
+fn delete_the_newest_check(path: &Path) -> String {
+    let shop = sumpbook::app::shop::Shop::open(path).unwrap();
+    let store = shop.store_for_tests();
+    let (tag, _) = store
+        .units()
+        .unwrap()
+        .into_iter()
+        .filter_map(|u| {
+            let last = store
+                .checks_for_unit(u.id, None)
+                .unwrap()
+                .into_iter()
+                .map(|c| c.id)
+                .max()?;
+            Some((u.tag, last))
+        })
+        .max_by_key(|(_, id)| *id)
+        .unwrap();
+    drop(shop);
+    let deleted = crate::run::delete_newest_check(path, &tag);
+    let shop = sumpbook::app::shop::Shop::open(path).unwrap();
+    let highest = shop
+        .store_for_tests()
+        .units()
+        .unwrap()
+        .into_iter()
+        .flat_map(|u| shop.store_for_tests().checks_for_unit(u.id, None).unwrap())
+        .map(|c| c.id)
+        .max()
+        .unwrap();
+    assert!(
+        highest < deleted,
+        "the deleted check had the highest number"
+    );
+    tag
+}
+
+/// With the newest check of `tag` deleted: a check logged after it has no edits of its own,
+/// and the deletion is put back, both checks then stored.
+fn added_then_restored(d: &Path, db: &str, tag: &str) {
+    let edits = |db: &str| -> Vec<serde_json::Value> {
+        let v: serde_json::Value =
+            serde_json::from_str(&ok(d, &["--db", db, "history", tag, "--json"])).unwrap();
+        v["edits"].as_array().unwrap().clone()
+    };
+    let before = edits(db);
+    let deletion = before.last().unwrap().clone();
+    assert_eq!(deletion["action"], "deleted");
+    assert_eq!(deletion["restorable"], true);
+    let checks = ok(d, &["--db", db, "export", "checks"]).lines().count();
+    ok(
+        d,
+        &[
+            "--db",
+            db,
+            "log-check",
+            "--leave-blank",
+            tag,
+            "--at",
+            "2026-12-01 08:00",
+            "--oil-level",
+            "ok",
+            "--by",
+            "T. New",
+        ],
+    );
+    // The new check took no number of the history: the deletion is still the reading's latest
+    // edit, still restorable, and no edit reads as the new check's.
+    let after = edits(db);
+    assert_eq!(after.len(), before.len(), "{after:?}");
+    assert_eq!(after.last().unwrap()["restorable"], true, "{after:?}");
+    let out = ok(
+        d,
+        &[
+            "--db",
+            db,
+            "history",
+            tag,
+            "--restore",
+            &deletion["edit_id"].as_i64().unwrap().to_string(),
+            "--by",
+            "R. Engineer",
+            "--reason",
+            "the right unit after all",
+        ],
+    );
+    assert!(out.contains("Put back the check of "), "{out}");
+    let export = ok(d, &["--db", db, "export", "checks"]);
+    assert_eq!(export.lines().count(), checks + 2, "both checks stored");
+    assert_eq!(export.matches(",T. New,").count(), 1);
+}

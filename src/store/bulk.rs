@@ -52,17 +52,27 @@ struct BulkSql {
 }
 
 impl BulkSql {
-    fn new() -> BulkSql {
+    fn new(store: &Store) -> BulkSql {
+        let ins = |sql: &str, table: &str| store.reading_insert(sql, table);
         BulkSql {
-            ins_check: format!("{INSERT_CHECK} ON CONFLICT (unit_id, taken_at) DO NOTHING"),
+            ins_check: format!(
+                "{} ON CONFLICT (unit_id, taken_at) DO NOTHING",
+                ins(INSERT_CHECK, "checks")
+            ),
             sel_check: format!(
                 "SELECT {CHECK_COLS} FROM checks WHERE unit_id = ?1 AND taken_at = ?2"
             ),
-            ins_sample: format!("{INSERT_SAMPLE} ON CONFLICT (unit_id, sampled_at) DO NOTHING"),
+            ins_sample: format!(
+                "{} ON CONFLICT (unit_id, sampled_at) DO NOTHING",
+                ins(INSERT_SAMPLE, "samples")
+            ),
             sel_sample: format!(
                 "SELECT {SAMPLE_COLS} FROM samples WHERE unit_id = ?1 AND sampled_at = ?2"
             ),
-            ins_event: format!("{INSERT_EVENT} ON CONFLICT (unit_id, done_at, kind) DO NOTHING"),
+            ins_event: format!(
+                "{} ON CONFLICT (unit_id, done_at, kind) DO NOTHING",
+                ins(INSERT_EVENT, "events")
+            ),
             sel_event: format!(
                 "SELECT {EVENT_COLS}, {DETAIL_COLS} FROM events \
                  WHERE unit_id = ?1 AND done_at = ?2 AND kind = ?3"
@@ -111,7 +121,7 @@ impl Store {
             machines,
             units,
             fluids,
-            sql: BulkSql::new(),
+            sql: BulkSql::new(store),
             refused: RefCell::new(None),
         })
     }

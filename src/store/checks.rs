@@ -118,16 +118,20 @@ impl Store {
     /// Adds one check and returns its id. A check of the same unit at the same time is refused.
     pub fn insert_check(&self, c: &Check) -> Result<Id, StoreError> {
         let row = CheckRow::from_model(c)?;
-        self.insert_row(INSERT_CHECK, &row.params()[..])
+        self.insert_row(
+            &self.reading_insert(INSERT_CHECK, "checks"),
+            &row.params()[..],
+        )
     }
 
     /// Adds many checks in one transaction: all or none.
     pub fn insert_checks(&self, checks: &[Check]) -> Result<Vec<Id>, StoreError> {
         let tx = self.begin()?;
         let mut ids = Vec::with_capacity(checks.len());
+        let insert = self.reading_insert(INSERT_CHECK, "checks");
         for c in checks {
             let row = CheckRow::from_model(c)?;
-            ids.push(self.insert_row(INSERT_CHECK, &row.params()[..])?);
+            ids.push(self.insert_row(&insert, &row.params()[..])?);
         }
         tx.commit()?;
         Ok(ids)

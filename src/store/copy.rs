@@ -126,8 +126,10 @@ impl Db {
         }
     }
 
-    /// After rows were written with their ids: new rows of the server go on after the
-    /// highest (SQLite does so by itself).
+    /// After rows were written with their ids (the edit history among them): new rows of the
+    /// server go on after the highest, and after every id the edit history names for the table
+    /// (a reading deleted as the newest keeps its number, to be put back). A shop file gives
+    /// a reading its id as it is written (`Store::reading_insert`).
     fn ids_follow_rows(&self, table: &str) -> Result<(), StoreError> {
         match self {
             Db::Lite(_) => Ok(()),
@@ -144,7 +146,9 @@ impl Db {
                 if has_identity {
                     self.batch(&format!(
                         "SELECT setval(pg_get_serial_sequence('{table}', 'id'), \
-                         coalesce((SELECT max(id) FROM {table}), 0) + 1, false)"
+                         greatest(coalesce((SELECT max(id) FROM {table}), 0), \
+                         coalesce((SELECT max(row_id) FROM edit_log WHERE table_name = '{table}'), 0)) \
+                         + 1, false)"
                     ))?;
                 }
                 Ok(())
@@ -350,8 +354,11 @@ impl Store {
                     marks.join(", ")
                 );
                 write(&sql)?;
-                dest.db.ids_follow_rows(table)?;
             }
+        }
+        // Once the edit history is in, which names ids the tables no longer hold.
+        for table in COPIED_TABLES.iter().filter(|t| **t != "settings") {
+            dest.db.ids_follow_rows(table)?;
         }
         let pairs: Vec<(TableDigest, TableDigest)> = self
             .table_digests()?

@@ -122,7 +122,10 @@ impl Store {
     /// Records one event with what marking it done recorded beside it; returns its id.
     pub fn insert_event_with(&self, e: &Event, d: &EventDetails) -> Result<Id, StoreError> {
         let row = EventRow::from_model(e, d)?;
-        self.insert_row(INSERT_EVENT, &row.insert_params()[..])
+        self.insert_row(
+            &self.reading_insert(INSERT_EVENT, "events"),
+            &row.insert_params()[..],
+        )
     }
 
     pub fn event(&self, id: Id) -> Result<Option<Event>, StoreError> {

@@ -26,6 +26,27 @@ use rusqlite::Connection;
 
 use crate::model::Id;
 
+/// `insert` (`INSERT INTO table (cols) VALUES (values)`) with the id given first, one above
+/// every id `table` holds and every id the edit history names for it (see
+/// [`Store::reading_insert`]). Both maxima are read off an index (the row id, and the edit
+/// history's (table, row) index).
+fn fresh_id_insert(insert: &str, table: &str) -> String {
+    let next = format!(
+        "(SELECT max(ifnull((SELECT max(id) FROM {table}), 0), \
+         ifnull((SELECT max(row_id) FROM edit_log WHERE table_name = '{table}'), 0)) + 1)"
+    );
+    let head = format!("INSERT INTO {table} (");
+    match (insert.strip_prefix(&head), insert.find(" VALUES (")) {
+        (Some(_), Some(v)) => format!(
+            "{head}id, {}{next}, {}",
+            &insert[head.len()..v + " VALUES (".len()],
+            &insert[v + " VALUES (".len()..]
+        ),
+        // Every caller passes one of the readings' INSERTs; anything else is left alone.
+        _ => insert.to_string(),
+    }
+}
+
 pub mod acks;
 mod backup;
 pub mod baselines_limits;
@@ -188,6 +209,21 @@ impl Store {
         self.db.execute(sql, params)
     }
 
+    /// The INSERT of a new reading (`insert`, into `table`: checks, samples or events) as this
+    /// backend takes it. On a shop file the new row's id is given with it: one above every id
+    /// the table holds and every id its edit history names. SQLite would otherwise hand out the
+    /// highest id held plus one, which after the newest reading was deleted is that reading's
+    /// own: its deletion could no longer be put back, and its edits would read as the new
+    /// row's. The table itself is left as it is (an id kept above all by AUTOINCREMENT would
+    /// mean making the table again). A server's identity column never hands a number out
+    /// twice, and a copy onto a server moves it past the history's (`copy`).
+    pub(crate) fn reading_insert(&self, insert: &str, table: &str) -> String {
+        if self.is_server() {
+            return insert.to_string();
+        }
+        fresh_id_insert(insert, table)
+    }
+
     /// Runs an INSERT and returns the new row's id.
     fn insert_row(&self, sql: &str, params: &[&dyn ToDb]) -> Result<Id, StoreError> {
         self.count();
@@ -242,5 +278,36 @@ impl Store {
     ) -> Result<(), E> {
         self.count();
         self.db.each(sql, params, f)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Each reading's INSERT takes its id above every id its table and the edit history hold.
+    #[test]
+    fn a_readings_insert_on_a_file_names_its_id() {
+        for (insert, table) in [
+            (checks::INSERT_CHECK, "checks"),
+            (samples::INSERT_SAMPLE, "samples"),
+            (events::INSERT_EVENT, "events"),
+        ] {
+            let sql = fresh_id_insert(insert, table);
+            assert!(
+                sql.starts_with(&format!("INSERT INTO {table} (id, unit_id, ")),
+                "{sql}"
+            );
+            assert!(
+                sql.contains(&format!(
+                    "VALUES ((SELECT max(ifnull((SELECT max(id) FROM {table}), 0), "
+                )),
+                "{sql}"
+            );
+            assert!(
+                sql.contains(&format!("WHERE table_name = '{table}'), 0)) + 1), ?1, ?2")),
+                "{sql}"
+            );
+        }
     }
 }

@@ -118,7 +118,10 @@ impl Store {
     /// Adds one sample result and returns its id.
     pub fn insert_sample(&self, s: &Sample) -> Result<Id, StoreError> {
         let row = SampleRow::from_model(s)?;
-        self.insert_row(INSERT_SAMPLE, &row.params()[..])
+        self.insert_row(
+            &self.reading_insert(INSERT_SAMPLE, "samples"),
+            &row.params()[..],
+        )
     }
 
     pub fn sample(&self, id: Id) -> Result<Option<Sample>, StoreError> {
