@@ -15,6 +15,16 @@ fn shop_name(name: &str) -> String {
         .to_string()
 }
 
+/// A command's words: `base`, then `more`.
+fn words(base: &[&str], more: &[&str]) -> Vec<String> {
+    base.iter().chain(more).map(|s| s.to_string()).collect()
+}
+
+/// Words made by [`words`], as `ok` and `refused` take them.
+fn as_str(a: &[String]) -> Vec<&str> {
+    a.iter().map(String::as_str).collect()
+}
+
 #[test]
 fn init_demo_export_import_and_backup_through_the_binary() {
     crate::backends::on_each_backend(|| {
@@ -1292,28 +1302,23 @@ fn log_check_asks_about_readings_the_last_check_had_and_goes_on_with_leave_blank
         .format("%Y-%m-%dT%H:%M:%SZ")
         .to_string();
     let temp = format!("{:.1}C", last.reservoir_temp.unwrap().c());
-    let args = |more: &[&'static str]| -> Vec<String> {
-        let mut a: Vec<String> = [
-            "--db",
-            "shop.sqlite",
-            "log-check",
-            &tag,
-            "--at",
-            &at,
-            "--reservoir-temp",
-            &temp,
-            "--by",
-            "AK",
-        ]
-        .iter()
-        .map(|s| s.to_string())
-        .collect();
-        a.extend(more.iter().map(|s| s.to_string()));
-        a
+    let args = |more: &[&str]| -> Vec<String> {
+        words(
+            &[
+                "--db",
+                "shop.sqlite",
+                "log-check",
+                &tag,
+                "--at",
+                &at,
+                "--reservoir-temp",
+                &temp,
+                "--by",
+                "AK",
+            ],
+            more,
+        )
     };
-    fn as_str(a: &[String]) -> Vec<&str> {
-        a.iter().map(String::as_str).collect()
-    }
     // Only the reservoir temperature: the readings the last check had are listed, each with
     // the option that gives it, and nothing is saved.
     let asked = args(&[]);
@@ -1365,50 +1370,45 @@ fn log_event_records_hour_meter_fluid_filter_part_and_work_order_and_they_round_
         assert!(before < after);
         let events_before = ok(d, &["--db", db, "export", "events"]);
         let log = |extra: &[&str]| -> Vec<String> {
-            let mut a: Vec<String> = [
-                "--db",
-                db,
-                "log-event",
-                "SH-04-A",
-                "fluid_change",
-                "--at",
-                "2026-11-25 10:00",
-                "--by",
-                "T. Fitter",
-                "--volume",
-                "180l",
-                "--fluid",
-                "Stock HM 32",
-            ]
-            .iter()
-            .map(|s| s.to_string())
-            .collect();
-            a.extend(extra.iter().map(|s| s.to_string()));
-            a
+            words(
+                &[
+                    "--db",
+                    db,
+                    "log-event",
+                    "SH-04-A",
+                    "fluid_change",
+                    "--at",
+                    "2026-11-25 10:00",
+                    "--by",
+                    "T. Fitter",
+                    "--volume",
+                    "180l",
+                    "--fluid",
+                    "Stock HM 32",
+                ],
+                extra,
+            )
         };
-        fn args(a: &[String]) -> Vec<&str> {
-            a.iter().map(String::as_str).collect()
-        }
         let e = refused(
             d,
-            &args(&log(&["--hours", &(before - 8.0).to_string()])),
+            &as_str(&log(&["--hours", &(before - 8.0).to_string()])),
             "is below the",
         );
         assert!(e.contains(&format!("{before} h read on SH-04-A")), "{e}");
         let e = refused(
             d,
-            &args(&log(&["--hours", &(after + 1.0).to_string()])),
+            &as_str(&log(&["--hours", &(after + 1.0).to_string()])),
             "is above the",
         );
         assert!(e.contains("later, at 2026-11-27"), "{e}");
-        refused(d, &args(&log(&["--hours", "lots"])), "--hours: `lots`");
+        refused(d, &as_str(&log(&["--hours", "lots"])), "--hours: `lots`");
         let mut future = log(&[]);
         future[6] = "2099-01-01 08:00".into();
-        refused(d, &args(&future), "is in the future");
+        refused(d, &as_str(&future), "is in the future");
         let long = "W".repeat(61);
         refused(
             d,
-            &args(&log(&["--work-order", &long])),
+            &as_str(&log(&["--work-order", &long])),
             "the work order is 61 characters long",
         );
         assert_eq!(
@@ -1420,7 +1420,7 @@ fn log_event_records_hour_meter_fluid_filter_part_and_work_order_and_they_round_
         let mid = ((before + after) / 2.0).round();
         let out = ok(
             d,
-            &args(&log(&[
+            &as_str(&log(&[
                 "--hours",
                 &format!("{mid}h"),
                 "--filter-part",

@@ -1831,25 +1831,29 @@ fn setup_shows_words_not_codes_and_names_a_new_record_once_saved() {
     assert!(coded.is_empty(), "codes in limit labels: {coded:?}");
 }
 
+/// The questions a file dialog was asked, and the answers it gives next (first first).
+type Asked = std::rc::Rc<std::cell::RefCell<Vec<sumpbook::gui::files::FileQuestion>>>;
+type Answers = std::rc::Rc<std::cell::RefCell<Vec<Option<PathBuf>>>>;
+
+/// A stand-in for the desktop's file dialog: records each question, gives the next answer.
+fn stand_in_chooser(app: &App) -> (Asked, Answers) {
+    let asked = Asked::default();
+    let answers = Answers::default();
+    let (a, b) = (asked.clone(), answers.clone());
+    app.set_file_chooser(move |q| {
+        a.borrow_mut().push(q.clone());
+        b.borrow_mut().remove(0)
+    });
+    (asked, answers)
+}
+
 #[test]
 fn file_fields_have_the_desktops_chooser_beside_the_typed_path() {
-    use std::cell::RefCell;
-    use std::rc::Rc;
-    use sumpbook::gui::files::FileQuestion;
     use sumpbook::gui::ui::{ImportAdapter, SampleAdapter};
     let f = open_demo();
     f.app.run_jobs_inline();
     f.app.set_output_folder(f._dir.path());
-    // A stand-in for the desktop's dialog: records each question, gives the next answer.
-    let asked: Rc<RefCell<Vec<FileQuestion>>> = Rc::default();
-    let answers: Rc<RefCell<Vec<Option<PathBuf>>>> = Rc::default();
-    {
-        let (asked, answers) = (asked.clone(), answers.clone());
-        f.app.set_file_chooser(move |q| {
-            asked.borrow_mut().push(q.clone());
-            answers.borrow_mut().remove(0)
-        });
-    }
+    let (asked, answers) = stand_in_chooser(&f.app);
     let lab = f._dir.path().join("lab.csv");
     std::fs::write(
         &lab,
@@ -2088,7 +2092,6 @@ fn mark_done_records_when_hour_meter_fluid_filter_part_and_work_order_from_the_k
 fn the_route_sheet_file_has_the_desktops_chooser_beside_the_typed_path() {
     use std::cell::RefCell;
     use std::rc::Rc;
-    use sumpbook::gui::files::FileQuestion;
     let f = open_demo();
     f.app.set_output_folder(f._dir.path());
     let opened: Rc<RefCell<Vec<PathBuf>>> = Rc::default();
@@ -2099,15 +2102,7 @@ fn the_route_sheet_file_has_the_desktops_chooser_beside_the_typed_path() {
             Ok(())
         });
     }
-    let asked: Rc<RefCell<Vec<FileQuestion>>> = Rc::default();
-    let answers: Rc<RefCell<Vec<Option<PathBuf>>>> = Rc::default();
-    {
-        let (asked, answers) = (asked.clone(), answers.clone());
-        f.app.set_file_chooser(move |q| {
-            asked.borrow_mut().push(q.clone());
-            answers.borrow_mut().remove(0)
-        });
-    }
+    let (asked, answers) = stand_in_chooser(&f.app);
     f.app.show(Screen::Walk);
     let offered = field(&f.app, "Route sheet file")
         .accessible_value()

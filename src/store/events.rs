@@ -87,20 +87,16 @@ impl<'a> EventRow<'a> {
         ]
     }
 
-    /// Every column of a new row, as [`INSERT_EVENT`] binds them.
-    pub fn insert_params(&self) -> [&dyn ToDb; 10] {
-        [
-            &self.unit_id,
-            &self.done_at,
-            &self.kind,
-            &self.volume_l,
-            &self.fluid_id,
-            &self.done_by,
-            &self.note,
-            &self.hours,
+    /// Every column of a new row, as [`INSERT_EVENT`] binds them: the event's, then its
+    /// details'.
+    pub fn insert_params(&self) -> Vec<&dyn ToDb> {
+        let mut p = self.params().to_vec();
+        p.extend([
+            &self.hours as &dyn ToDb,
             &self.filter_part,
             &self.work_order,
-        ]
+        ]);
+        p
     }
 }
 
