@@ -2013,7 +2013,7 @@ fn mark_done_records_when_hour_meter_fluid_filter_part_and_work_order_from_the_k
     );
     let last = s
         .store_for_tests()
-        .hour_meter_around(unit.id, now)
+        .hour_meter_around(unit.id, now, None)
         .unwrap()
         .before
         .expect("the unit's hour meter was read")

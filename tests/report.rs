@@ -1186,7 +1186,7 @@ fn work_done_in_the_period_is_listed_with_its_hour_meter_filter_part_and_work_or
         .unwrap()
         .and_utc();
     let unit = store.unit_by_tag("PB-03-A").unwrap().unwrap();
-    let around = store.hour_meter_around(unit.id, at).unwrap();
+    let around = store.hour_meter_around(unit.id, at, None).unwrap();
     let hours = around.before.unwrap().0 + 1.0;
     assert!(around.after.is_none_or(|(h, _)| h >= hours));
     let input = EventInput {

@@ -153,20 +153,25 @@ impl Store {
 
     /// The highest hour meter read on a unit at or before `at` (checks and work done), and
     /// the lowest read after it, each with when it was read: an hour meter only counts up, so
-    /// a new reading at `at` belongs between them.
+    /// a new reading at `at` belongs between them. `except` leaves out an event's own reading
+    /// (the one being corrected).
     pub fn hour_meter_around(
         &self,
         unit_id: Id,
         at: DateTime<Utc>,
+        except: Option<Id>,
     ) -> Result<HourMeterAround, StoreError> {
+        // Ids are positive, so -1 leaves nothing out.
+        let except = except.unwrap_or(-1);
         let at = fmt_time("at", &at)?;
         let read = |sql: &str| -> Result<Option<(f64, DateTime<Utc>)>, StoreError> {
-            self.query_opt(sql, params![unit_id, at], |r| {
+            self.query_opt(sql, params![unit_id, at, except], |r| {
                 Ok((r.get::<f64>(0)?, time_col(r, 1)?))
             })
         };
         let readings = "SELECT hours, taken_at AS read_at FROM checks WHERE unit_id = ?1 AND hours IS NOT NULL \
-             UNION ALL SELECT hours, done_at AS read_at FROM events WHERE unit_id = ?1 AND hours IS NOT NULL";
+             UNION ALL SELECT hours, done_at AS read_at FROM events WHERE unit_id = ?1 AND hours IS NOT NULL \
+             AND id <> ?3";
         Ok(HourMeterAround {
             before: read(&format!(
                 "SELECT hours, read_at FROM ({readings}) r WHERE read_at <= ?2 \
@@ -201,6 +206,38 @@ impl Store {
                     "UPDATE events SET unit_id = ?1, done_at = ?2, kind = ?3, volume_l = ?4, fluid_id = ?5, \
                      done_by = ?6, note = ?7 WHERE id = ?8",
                 &p[..])?;
+            if n == 0 {
+                return Err(StoreError::NotFound(format!("event {}", e.id)));
+            }
+            Ok(())
+        })
+    }
+
+    /// What was recorded beside a stored event (nothing recorded: all blank).
+    pub fn event_details(&self, id: Id) -> Result<Option<EventDetails>, StoreError> {
+        let sql = format!("SELECT {EVENT_COLS}, {DETAIL_COLS} FROM events WHERE id = ?1");
+        self.query_opt(&sql, params![id], details_from_row)
+    }
+
+    /// Changes a stored event (found by `e.id`) and what was recorded beside it, keeping the
+    /// old values in the edit history.
+    pub fn update_event_with(
+        &self,
+        e: &Event,
+        d: &EventDetails,
+        by: &str,
+        reason: &str,
+    ) -> Result<(), StoreError> {
+        let row = EventRow::from_model(e, d)?;
+        self.with_edit(by, reason, |s| {
+            let mut p = row.insert_params();
+            p.push(&e.id);
+            let n = s.exec(
+                "UPDATE events SET unit_id = ?1, done_at = ?2, kind = ?3, volume_l = ?4, \
+                 fluid_id = ?5, done_by = ?6, note = ?7, hours = ?8, filter_part = ?9, \
+                 work_order = ?10 WHERE id = ?11",
+                &p[..],
+            )?;
             if n == 0 {
                 return Err(StoreError::NotFound(format!("event {}", e.id)));
             }

@@ -7,7 +7,7 @@ use super::*;
 use crate::app::shop::Shop;
 use crate::app::status::store_error;
 use crate::app::AppError;
-use crate::model::{Event, EventKind, Id, Sample};
+use crate::model::{Event, EventDetails, EventKind, Id, Sample};
 use crate::physics::cleanliness::Iso4406Code;
 use crate::quantity::{self, Kind, Quantity};
 use crate::units::{UnitSystem, Viscosity, Volume};
@@ -127,6 +127,10 @@ pub fn reading_fields(shop: &Shop, which: Reading, id: Id) -> Result<Vec<Field>,
         }
         Reading::Event => {
             let e = store.event(id).map_err(store_error)?.ok_or_else(missing)?;
+            let d = store
+                .event_details(id)
+                .map_err(store_error)?
+                .unwrap_or_default();
             let kinds: Vec<&str> = EventKind::ALL.iter().map(|k| k.as_str()).collect();
             vec![
                 Field::choice("kind", "What was done", &kinds, e.kind.as_str()),
@@ -136,6 +140,13 @@ pub fn reading_fields(shop: &Shop, which: Reading, id: Id) -> Result<Vec<Field>,
                     system,
                 )),
                 Field::text("by", "Done by").with_value(e.by),
+                Field {
+                    unit: "h".into(),
+                    ..Field::text("hours", "Hour meter")
+                }
+                .with_value(d.hours.map(|h| h.to_string()).unwrap_or_default()),
+                Field::text("filter_part", "Filter part").with_value(d.filter_part),
+                Field::text("work_order", "Work order").with_value(d.work_order),
                 Field::text("note", "Note").with_value(e.note),
             ]
         }
@@ -259,6 +270,31 @@ pub fn edit_reading(
                 Ok(v) => v.map(Volume),
                 Err(e) => return Ok(SaveOutcome::Refused(vec![Problem::refused("volume", e)])),
             };
+            let hours = match read_number(entered.get("hours").trim().trim_end_matches('h')) {
+                Ok(h) => h,
+                Err(e) => return Ok(SaveOutcome::Refused(vec![Problem::refused("hours", e)])),
+            };
+            let tag = unit_of(store, ev.unit_id)?.tag;
+            let details = EventDetails {
+                hours,
+                filter_part: entered.get("filter_part").to_string(),
+                work_order: entered.get("work_order").to_string(),
+            };
+            let details = match crate::app::work::check_details_in(
+                store,
+                &tag,
+                ev.done_at,
+                &details,
+                Some(id),
+            ) {
+                Ok(d) => d,
+                Err(r) => {
+                    return Ok(SaveOutcome::Refused(vec![Problem::refused(
+                        r.field,
+                        r.error.to_string(),
+                    )]))
+                }
+            };
             let new = Event {
                 kind,
                 volume,
@@ -266,7 +302,9 @@ pub fn edit_reading(
                 note: entered.get("note").to_string(),
                 ..ev
             };
-            store.update_event(&new, &by, reason).map_err(store_error)?;
+            store
+                .update_event_with(&new, &details, &by, reason)
+                .map_err(store_error)?;
         }
     }
     Ok(SaveOutcome::Saved(()))

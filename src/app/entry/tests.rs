@@ -434,3 +434,62 @@ fn corrections_need_a_reason_and_are_kept() {
     assert!(shop.store().check(c.id).unwrap().is_none());
     assert_eq!(shop.store().edit_history("checks", c.id).unwrap().len(), 2);
 }
+
+/// The hour meter, filter part and work order of work done are corrected like the rest of the
+/// event: in the form with their stored values, kept in the edit history, and the hour meter
+/// judged against the unit's other readings, not its own old value.
+#[test]
+fn work_done_details_are_corrected_in_the_form_and_kept() {
+    let (_d, shop) = demo();
+    let u = first_unit(&shop);
+    let store = shop.store();
+    let last = store.checks_for_unit(u.id, None).unwrap().pop().unwrap();
+    let read = last.hours.expect("the demo's checks read the hour meter");
+    let at = last.taken_at + Duration::hours(2);
+    let input = work::EventInput {
+        kind: crate::model::EventKind::FilterChange,
+        at: Some(at),
+        volume: None,
+        fluid: None,
+        by: "T. Fitter".into(),
+        note: String::new(),
+        details: crate::model::EventDetails {
+            hours: Some(read + 9.0),
+            filter_part: "RF-10-BN".into(),
+            work_order: "WO-4417".into(),
+        },
+    };
+    let id = work::log_event_in(store, &u.tag, &input, at)
+        .unwrap()
+        .event
+        .id;
+    let fields = reading_fields(&shop, Reading::Event, id).unwrap();
+    let value = |k: &str| fields.iter().find(|f| f.key == k).unwrap().value.clone();
+    assert_eq!(value("hours"), format!("{}", read + 9.0));
+    assert_eq!(value("work_order"), "WO-4417");
+
+    // Below the check before it: refused on the hour meter, nothing written.
+    let mut e = Entered::from_fields(&fields);
+    e.set("hours", &format!("{}", read - 1.0));
+    let out = edit_reading(&shop, Reading::Event, id, &e, "R. E", "re-read").unwrap();
+    assert!(
+        matches!(out, SaveOutcome::Refused(ref p) if p[0].field == "hours" && p[0].message.contains("is below the")),
+        "{out:?}"
+    );
+    // Below its own old figure but not the check's: a correction, kept with the old values.
+    e.set("hours", &format!("{}", read + 1.0));
+    e.set("work_order", "WO-4471");
+    let out = edit_reading(&shop, Reading::Event, id, &e, "R. E", "digits swapped").unwrap();
+    assert_eq!(out, SaveOutcome::Saved(()));
+    let d = store.event_details(id).unwrap().unwrap();
+    assert_eq!(d.hours, Some(read + 1.0));
+    assert_eq!(d.work_order, "WO-4471");
+    assert_eq!(d.filter_part, "RF-10-BN");
+    let hist = store.edit_history("events", id).unwrap();
+    assert_eq!(hist.len(), 1);
+    assert!(
+        hist[0].old_value.contains("\"work_order\":\"WO-4417\""),
+        "{}",
+        hist[0].old_value
+    );
+}

@@ -179,7 +179,7 @@ pub fn mark_done_prompt(
         .unwrap_or_default();
     let takes_fluid = kind == WorkKind::FluidChange;
     let last_hours = store
-        .hour_meter_around(unit.id, now)
+        .hour_meter_around(unit.id, now, None)
         .map_err(store_error)?
         .before
         .map(|(h, at)| format!("{h} h on {}", zone.show_marked(at)))
@@ -278,6 +278,7 @@ pub fn mark_done(
             filter_part: form.filter_part.clone(),
             work_order: form.work_order.clone(),
         },
+        None,
     )
     .map_err(|r| MarkDoneRefused {
         field: r.field,

@@ -302,11 +302,13 @@ pub struct DetailRefused {
 }
 
 /// The details of work on unit `tag` at `at` as they would be stored; see [`checked_details`].
+/// `except`: the event whose details these are, when it is stored already (a correction).
 pub fn check_details_in(
     store: &Store,
     tag: &str,
     at: DateTime<Utc>,
     d: &EventDetails,
+    except: Option<crate::model::Id>,
 ) -> Result<EventDetails, DetailRefused> {
     let unit = store
         .unit_by_tag(tag)
@@ -315,7 +317,14 @@ pub fn check_details_in(
             u.ok_or_else(|| AppError::BadInput(format!("no unit `{}` in this shop", tag.trim())))
         })
         .map_err(|error| DetailRefused { field: "", error })?;
-    checked_details(store, &unit, at, d, crate::app::shop::zone_of(store))
+    checked_details(
+        store,
+        &unit,
+        at,
+        d,
+        except,
+        crate::app::shop::zone_of(store),
+    )
 }
 
 /// The details as they are stored: references trimmed and of a sane length, and an hour meter
@@ -325,6 +334,7 @@ fn checked_details(
     unit: &Unit,
     at: DateTime<Utc>,
     d: &EventDetails,
+    except: Option<crate::model::Id>,
     zone: super::local_time::Zone,
 ) -> Result<EventDetails, DetailRefused> {
     let refused = |field: &'static str, message: String| DetailRefused {
@@ -366,7 +376,7 @@ fn checked_details(
             ));
         }
         let around = store
-            .hour_meter_around(unit.id, at)
+            .hour_meter_around(unit.id, at, except)
             .map_err(|e| DetailRefused {
                 field: "",
                 error: store_error(e),
@@ -456,7 +466,8 @@ pub fn log_event_in(
         },
         (None, false) => None,
     };
-    let details = checked_details(store, &unit, at, &input.details, zone).map_err(|r| r.error)?;
+    let details =
+        checked_details(store, &unit, at, &input.details, None, zone).map_err(|r| r.error)?;
     let event = Event {
         id: 0,
         unit_id: unit.id,
