@@ -5,7 +5,7 @@
 //! One row per unit, time and kind. No CSV, no health.
 
 use super::db::{params, Row, ToDb};
-use chrono::{DateTime, Utc};
+use chrono::{DateTime, SubsecRound, Utc};
 
 use super::columns::litres;
 use super::{enum_col, fmt_time, time_col, Store, StoreError};
@@ -163,7 +163,8 @@ impl Store {
     ) -> Result<HourMeterAround, StoreError> {
         // Ids are positive, so -1 leaves nothing out.
         let except = except.unwrap_or(-1);
-        let at = fmt_time("at", &at)?;
+        // Readings are stored to the second, so the moment's fraction changes nothing.
+        let at = fmt_time("at", &at.trunc_subsecs(0))?;
         let read = |sql: &str| -> Result<Option<(f64, DateTime<Utc>)>, StoreError> {
             self.query_opt(sql, params![unit_id, at, except], |r| {
                 Ok((r.get::<f64>(0)?, time_col(r, 1)?))
