@@ -463,6 +463,17 @@ fn work_done_details_are_corrected_in_the_form_and_kept() {
         .unwrap()
         .event
         .id;
+    // The form opens at the clock's time, fraction of a second and all.
+    let now = at + Duration::nanoseconds(123_456_789);
+    let prompt =
+        mark_done_prompt(&shop, &u.tag, crate::health::WorkKind::FilterChange, now).unwrap();
+    assert!(
+        prompt
+            .last_hours
+            .starts_with(&format!("{} h on ", read + 9.0)),
+        "{}",
+        prompt.last_hours
+    );
     let fields = reading_fields(&shop, Reading::Event, id).unwrap();
     let value = |k: &str| fields.iter().find(|f| f.key == k).unwrap().value.clone();
     assert_eq!(value("hours"), format!("{}", read + 9.0));
