@@ -384,3 +384,23 @@ fn what_the_faces_show_from_kept_summaries_is_what_a_full_evaluation_shows() {
         );
     }
 }
+
+#[test]
+fn a_day_ends_at_the_shop_s_own_midnight() {
+    // A shop in Tokyo (UTC+9 all year, tz database): its day ends at 15:00 UTC. Due dates
+    // and overdue days are counted on that day, so an evaluation kept at 23:00 there is not
+    // served at 00:30 there, though both are the same UTC day.
+    let (_dir, path, shop) = demo();
+    let store = shop.store_for_tests();
+    let n = active(store);
+    edit_behind_the_back(&path, "UPDATE settings SET time_zone = 'Asia/Tokyo'");
+    let late = at("2026-11-28T14:00:00Z");
+    status_is_fresh(store, late, n, "23:00 in Tokyo");
+    status_is_fresh(store, late + Duration::minutes(30), 0, "23:30 in Tokyo");
+    status_is_fresh(
+        store,
+        at("2026-11-28T15:30:00Z"),
+        n,
+        "00:30 the next day in Tokyo",
+    );
+}

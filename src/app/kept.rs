@@ -230,15 +230,19 @@ pub(crate) fn fleet_units(
 }
 
 /// Until when an evaluation of `h` at `at` holds while nothing is written: the unit's next
-/// record after `at` (`next`), the next day, and the cost of waiting's year.
+/// record after `at` (`next`), the start of the shop's next day (`calendar`: the engine counts
+/// days due and overdue on the shop's own calendar), and the cost of waiting's year.
 pub(crate) fn holds_until(
     h: &UnitHistory,
     at: DateTime<Utc>,
     next: Option<DateTime<Utc>>,
+    calendar: crate::health::Calendar,
 ) -> DateTime<Utc> {
-    let next_day = (at.date_naive() + Duration::days(1))
-        .and_hms_opt(0, 0, 0)
-        .map_or(at + Duration::seconds(1), |d| d.and_utc());
+    let next_day = calendar
+        .day(at)
+        .succ_opt()
+        .and_then(|d| calendar.start(d))
+        .unwrap_or(at + Duration::seconds(1));
     [Some(next_day), next, run_hours_hold_until(h, at)]
         .into_iter()
         .flatten()
@@ -265,12 +269,13 @@ fn evaluate_streaming(
     }
     // Neighbouring ids in one batch: each read is one range of the (unit, time) keys.
     units.sort_by_key(|h| h.unit.id);
+    let calendar = data.calendar();
     let eval = |batch: Vec<UnitHistory>, next: NextRecords| -> Vec<Evaluated> {
         batch
             .into_iter()
             .map(|h| {
                 let s = unit_status(&h, data, when, detail);
-                let until = holds_until(&h, when, next.get(&h.unit.id).copied());
+                let until = holds_until(&h, when, next.get(&h.unit.id).copied(), calendar);
                 let text = match detail {
                     Detail::Summary => kept_text(&h, &s),
                     Detail::Full => None,

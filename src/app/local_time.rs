@@ -124,7 +124,9 @@ impl Zone {
 
     /// The first instant of day `d` here (the start of a report's period).
     pub fn day_start(&self, d: NaiveDate) -> DateTime<Utc> {
-        self.first_instant_from(d.and_time(NaiveTime::MIN))
+        self.calendar()
+            .start(d)
+            .unwrap_or_else(|| d.and_time(NaiveTime::MIN).and_utc())
     }
 
     /// The last second of day `d` here (`status --at DATE`: as the day ended).
@@ -135,13 +137,9 @@ impl Zone {
         }
     }
 
-    fn first_instant_from(&self, naive: NaiveDateTime) -> DateTime<Utc> {
-        // A day that begins in a gap (some zones move midnight) begins at the gap's end.
-        (0..=180)
-            .map(|m| naive + chrono::Duration::minutes(m))
-            .find_map(|t| self.0.from_local_datetime(&t).earliest())
-            .map(|t| t.with_timezone(&Utc))
-            .unwrap_or_else(|| naive.and_utc())
+    /// The engine's calendar in this zone: the days it writes due dates and flags on.
+    pub fn calendar(&self) -> crate::health::Calendar {
+        crate::health::Calendar::of(self.0)
     }
 
     /// The calendar day of instant `t` here.

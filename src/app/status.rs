@@ -105,6 +105,13 @@ pub(crate) struct ShopData {
     limit_rows: Vec<LimitSetting>,
 }
 
+impl ShopData {
+    /// The engine's calendar: the shop's time zone.
+    pub(crate) fn calendar(&self) -> crate::health::Calendar {
+        crate::app::local_time::Zone::of_setting(&self.settings.time_zone).calendar()
+    }
+}
+
 pub(crate) fn shop_data(store: &Store) -> Result<ShopData, AppError> {
     Ok(ShopData {
         settings: store.settings().map_err(store_error)?,
@@ -120,7 +127,14 @@ pub(crate) fn unit_status(
     detail: Detail,
 ) -> UnitStatus {
     let limits = Limits::resolve(&data.limit_rows, Some(h.unit.id));
-    let health = health::evaluate(h, &data.fluids, &limits, at, data.settings.unit_system);
+    let health = health::evaluate(
+        h,
+        &data.fluids,
+        &limits,
+        at,
+        data.settings.unit_system,
+        data.calendar(),
+    );
     let waiting_cost = waiting_cost(h, &health, at, data.settings.electricity_price);
     let s = UnitStatus {
         unit_id: h.unit.id,

@@ -106,7 +106,10 @@ pub fn run_route_sheet(
 ) -> Result<(), Failure> {
     let path = match &args.out {
         Some(p) => p.clone(),
-        None => crate::app::report::default_route_sheet_path(std::path::Path::new(".")),
+        None => crate::app::report::default_route_sheet_path(
+            std::path::Path::new("."),
+            shop.zone().date_of(chrono::Utc::now()),
+        ),
     };
     let s = crate::app::route_sheet::write_route_sheet(shop, &path, args.paper, args.force)?;
     writeln!(

@@ -156,7 +156,7 @@ pub(super) fn refresh(ctx: &Rc<Ctx>) {
         .collect();
     a.set_units(model(units));
     if !ctx.report.borrow().filled {
-        let today = ctx.now().date_naive();
+        let today = ctx.shop.zone().date_of(ctx.now());
         a.set_to(s(today.to_string()));
         a.set_from(s((today - Duration::days(DEFAULT_PERIOD_DAYS)).to_string()));
         a.set_paper(match crate::app::report::paper_for(fleet.unit_system) {
@@ -239,7 +239,7 @@ fn options(ctx: &Ctx, a: &ReportAdapter<'_>) -> Result<ReportOptions, AppError> 
     if out.as_os_str().is_empty() {
         out = default_out_path(
             &default_folder(ctx),
-            to.unwrap_or_else(|| ctx.now().date_naive()),
+            to.unwrap_or_else(|| ctx.shop.zone().date_of(ctx.now())),
         );
         a.set_out(s(out.display().to_string()));
     } else if out.extension().is_none() && !out.is_dir() {

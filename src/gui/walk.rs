@@ -382,10 +382,11 @@ pub(super) fn offer_sheet_out(ctx: &Rc<Ctx>) {
     let typed = a.get_sheet_out();
     let offered = ctx.walk.borrow().sheet_offered.clone();
     if typed.trim().is_empty() || offered.as_deref() == Some(typed.as_str()) {
-        let path =
-            crate::app::report::default_route_sheet_path(&super::reports::default_folder(ctx))
-                .display()
-                .to_string();
+        let today = ctx.shop.zone().date_of(ctx.now());
+        let folder = super::reports::default_folder(ctx);
+        let path = crate::app::report::default_route_sheet_path(&folder, today)
+            .display()
+            .to_string();
         a.set_sheet_out(s(&path));
         ctx.walk.borrow_mut().sheet_offered = Some(path);
     }

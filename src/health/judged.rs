@@ -295,7 +295,7 @@ pub fn not_judged(h: &UnitHistory, c: &Computed, work: &[WorkItem]) -> Vec<NotJu
             "Cleanliness",
             format!(
                 "no particle count since the filter change of {}",
-                f.date_naive()
+                c.calendar.day(f)
             ),
             at_next("sample", next_sample),
             None,

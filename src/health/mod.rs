@@ -143,6 +143,41 @@ pub fn day(t: DateTime<Utc>) -> NaiveDate {
     t.date_naive()
 }
 
+/// The shop's calendar: the day an instant falls on where the shop is, for the dates the
+/// engine writes (a flag's start, work due, the text of its reasons). A check logged at 20:00
+/// in a shop five hours behind UTC is that evening's, not the next day's. UTC by default.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct Calendar(Option<chrono_tz::Tz>);
+
+impl Calendar {
+    /// The calendar of a time zone from the tz database.
+    pub fn of(zone: chrono_tz::Tz) -> Calendar {
+        Calendar(Some(zone))
+    }
+
+    /// The day `t` falls on in the shop.
+    pub fn day(&self, t: DateTime<Utc>) -> NaiveDate {
+        match self.0 {
+            Some(z) => t.with_timezone(&z).date_naive(),
+            None => t.date_naive(),
+        }
+    }
+
+    /// The instant the shop's day `d` begins: its first valid minute where the clocks skip
+    /// midnight (some zones move it); `None` only outside chrono's range.
+    pub fn start(&self, d: NaiveDate) -> Option<DateTime<Utc>> {
+        use chrono::TimeZone;
+        let midnight = d.and_hms_opt(0, 0, 0)?;
+        match self.0 {
+            None => Some(midnight.and_utc()),
+            Some(z) => (0..=180)
+                .map(|m| midnight + chrono::Duration::minutes(m))
+                .find_map(|t| z.from_local_datetime(&t).earliest())
+                .map(|t| t.with_timezone(&Utc)),
+        }
+    }
+}
+
 /// Keeps only what was known at `at`: readings, events, hand baselines and acknowledgements
 /// dated up to and including it.
 pub fn as_known_at(history: &UnitHistory, at: DateTime<Utc>) -> UnitHistory {
@@ -190,6 +225,7 @@ pub fn evaluate(
     limits: &Limits,
     at: DateTime<Utc>,
     units: UnitSystem,
+    calendar: Calendar,
 ) -> UnitHealth {
     let h = known_at(history, at);
     let h: &UnitHistory = &h;
@@ -214,10 +250,11 @@ pub fn evaluate(
         h
     };
 
-    let computed = indicators::compute(h, era.as_ref(), fluid.as_ref(), limits);
+    let mut computed = indicators::compute(h, era.as_ref(), fluid.as_ref(), limits);
+    computed.calendar = calendar;
     let mut flags = flags::raise(h, &computed, limits, units);
     let work = plan::plan(h, &computed, &flags, limits, at);
-    flags.extend(flags::overdue(&work, limits, at));
+    flags.extend(flags::overdue(&work, limits, at, calendar));
     flags::mark_acknowledged(&mut flags, &h.acknowledgements);
     flags.sort_by(|a, b| {
         b.state

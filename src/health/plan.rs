@@ -13,7 +13,7 @@ use serde::{Deserialize, Serialize};
 use super::flags::{Flag, FlagKind};
 use super::indicators::{hours_at, Computed};
 use super::limits::{LimitKey, Limits};
-use super::{day, State};
+use super::{Calendar, State};
 use crate::model::{EventKind, FilterState, UnitHistory};
 
 /// The cautions (docs/engineering.md, "Safety"), in full, for reports and prompts.
@@ -96,6 +96,7 @@ fn earliest(c: Vec<Candidate>) -> Option<Candidate> {
 
 /// The date `remaining` hours after the last hour-meter reading, at `per_day` hours a day.
 fn date_after_hours(
+    calendar: Calendar,
     last: Option<DateTime<Utc>>,
     remaining: f64,
     per_day: Option<f64>,
@@ -106,7 +107,7 @@ fn date_after_hours(
         return None;
     }
     let step = Duration::try_seconds((days * 86_400.0).round() as i64)?;
-    last?.checked_add_signed(step).map(day)
+    last?.checked_add_signed(step).map(|t| calendar.day(t))
 }
 
 /// `d` + `days`, or `None` beyond the calendar chrono can hold.
@@ -122,7 +123,7 @@ pub fn plan(
     limits: &Limits,
     at: DateTime<Utc>,
 ) -> Vec<WorkItem> {
-    let today = day(at);
+    let today = c.calendar.day(at);
     let mut items: Vec<(WorkKind, Candidate)> = Vec::new();
     let last_check = h.checks.last().map(|c| c.taken_at);
     let first_check = h.checks.first().map(|c| c.taken_at);
@@ -146,12 +147,14 @@ pub fn plan(
     // Dates are added with checks: a due date past the calendar's end is no due date (a stored
     // interval from before ranges were enforced could be any number).
     let every = limits.value(LimitKey::CheckIntervalDays).round().max(1.0) as i64;
-    if let Some((last, due)) = last_check.and_then(|l| Some((l, add_days(day(l), every)?))) {
+    if let Some((last, due)) =
+        last_check.and_then(|l| Some((l, add_days(c.calendar.day(l), every)?)))
+    {
         items.push((
             WorkKind::Check,
             Candidate {
                 due,
-                basis: format!("every {every} days; last check {}", day(last)),
+                basis: format!("every {every} days; last check {}", c.calendar.day(last)),
                 pulled_forward: None,
             },
         ));
@@ -168,7 +171,7 @@ pub fn plan(
         Some((
             from,
             what,
-            add_days(day(from), (weeks * 7.0).round() as i64)?,
+            add_days(c.calendar.day(from), (weeks * 7.0).round() as i64)?,
         ))
     });
     if let Some((from, what, due)) = sample_due {
@@ -179,7 +182,7 @@ pub fn plan(
                 basis: format!(
                     "every {} weeks; {what} {}",
                     super::text::num(weeks, 1),
-                    day(from)
+                    c.calendar.day(from)
                 ),
                 pulled_forward: None,
             },
@@ -193,14 +196,16 @@ pub fn plan(
         let interval = limits.value(LimitKey::FilterChangeHours);
         if let (Some(now), Some(h0)) = (hours_now, hours_at(h, from)) {
             let remaining = interval - (now - h0);
-            if let Some(due) = date_after_hours(last_reading, remaining, c.hours_per_day) {
+            if let Some(due) =
+                date_after_hours(c.calendar, last_reading, remaining, c.hours_per_day)
+            {
                 cands.push(Candidate {
                     due,
                     basis: format!(
                         "every {} run-hours; {} h since {}",
                         super::text::num(interval, 0),
                         super::text::num(now - h0, 0),
-                        day(from)
+                        c.calendar.day(from)
                     ),
                     pulled_forward: None,
                 });
@@ -215,16 +220,19 @@ pub fn plan(
         {
             if matches!(ch.filter, Some(FilterState::Alert | FilterState::Bypass)) {
                 cands.push(Candidate {
-                    due: day(ch.taken_at),
-                    basis: format!("filter indicator at the check of {}", day(ch.taken_at)),
+                    due: c.calendar.day(ch.taken_at),
+                    basis: format!(
+                        "filter indicator at the check of {}",
+                        c.calendar.day(ch.taken_at)
+                    ),
                     pulled_forward: Some("the filter indicator is up: change the element".into()),
                 });
             }
         }
         if let Some(f) = flag(FlagKind::Cleanliness).filter(|f| f.state_since > from) {
             cands.push(Candidate {
-                due: day(f.state_since),
-                basis: format!("cleanliness sample of {}", day(f.state_since)),
+                due: c.calendar.day(f.state_since),
+                basis: format!("cleanliness sample of {}", c.calendar.day(f.state_since)),
                 pulled_forward: Some(
                     "oil over the cleanliness target: change the filter, then resample".into(),
                 ),
@@ -242,25 +250,28 @@ pub fn plan(
     if let Some(from) = change_from {
         let mut cands = Vec::new();
         let months = limits.value(LimitKey::FluidChangeMonths).round().max(1.0) as u32;
-        if let Some(due) = day(from).checked_add_months(Months::new(months)) {
+        if let Some(due) = c.calendar.day(from).checked_add_months(Months::new(months)) {
             cands.push(Candidate {
                 due,
-                basis: format!("every {months} months; since {}", day(from)),
+                basis: format!("every {months} months; since {}", c.calendar.day(from)),
                 pulled_forward: None,
             });
         }
         let interval = limits.value(LimitKey::FluidChangeHours);
         if let (Some(now), Some(h0)) = (hours_now, hours_at(h, from)) {
-            if let Some(due) =
-                date_after_hours(last_reading, interval - (now - h0), c.hours_per_day)
-            {
+            if let Some(due) = date_after_hours(
+                c.calendar,
+                last_reading,
+                interval - (now - h0),
+                c.hours_per_day,
+            ) {
                 cands.push(Candidate {
                     due,
                     basis: format!(
                         "every {} run-hours; {} h since {}",
                         super::text::num(interval, 0),
                         super::text::num(now - h0, 0),
-                        day(from)
+                        c.calendar.day(from)
                     ),
                     pulled_forward: None,
                 });
@@ -268,7 +279,9 @@ pub fn plan(
         }
         let life = limits.value(LimitKey::OilLifeEquivHours);
         if let Some(used) = c.summary.oil_equivalent_hours {
-            if let Some(due) = date_after_hours(last_reading, life - used, c.equiv_hours_per_day) {
+            if let Some(due) =
+                date_after_hours(c.calendar, last_reading, life - used, c.equiv_hours_per_day)
+            {
                 cands.push(Candidate {
                     due,
                     basis: format!(
@@ -297,8 +310,12 @@ pub fn plan(
         for (kind, why) in condition {
             if let Some(f) = flag(kind) {
                 cands.push(Candidate {
-                    due: day(f.state_since),
-                    basis: format!("{} sample of {}", kind.as_str(), day(f.state_since)),
+                    due: c.calendar.day(f.state_since),
+                    basis: format!(
+                        "{} sample of {}",
+                        kind.as_str(),
+                        c.calendar.day(f.state_since)
+                    ),
                     pulled_forward: Some(why.into()),
                 });
             }
@@ -320,8 +337,8 @@ pub fn plan(
             });
             if changed_between {
                 cands.push(Candidate {
-                    due: day(f.state_since),
-                    basis: format!("cleanliness sample of {} after a filter change", day(f.state_since)),
+                    due: c.calendar.day(f.state_since),
+                    basis: format!("cleanliness sample of {} after a filter change", c.calendar.day(f.state_since)),
                     pulled_forward: Some("still over target after a filter change: find the ingress, then change the fluid".into()),
                 });
             }

@@ -283,7 +283,7 @@ pub fn review_sample(
             p.push(Problem::unusual(key, sus.reason));
         }
     }
-    let preview = preview_sample(store, &h, &sample, now, system)?;
+    let preview = preview_sample(store, &h, &sample, now, system, zone)?;
     Ok(SampleReview {
         sample: Some(sample),
         problems: p,
@@ -307,6 +307,7 @@ fn preview_sample(
     sample: &Sample,
     now: DateTime<Utc>,
     system: UnitSystem,
+    zone: Zone,
 ) -> Result<SamplePreview, AppError> {
     const PROBE: Id = -1;
     let mut with = h.clone();
@@ -317,7 +318,7 @@ fn preview_sample(
     let fluids = store.fluids().map_err(store_error)?;
     let limits = Limits::resolve(&store.limits().map_err(store_error)?, Some(h.unit.id));
     let at = now.max(sample.sampled_at);
-    let health = health::evaluate(&with, &fluids, &limits, at, system);
+    let health = health::evaluate(&with, &fluids, &limits, at, system, zone.calendar());
     let point = health
         .samples
         .iter()

@@ -185,17 +185,13 @@ pub fn read_day(what: &str, text: &str) -> Result<Option<NaiveDate>, AppError> {
         })
 }
 
-/// Where a report of `to` goes in `folder` when no file is chosen: the default name, or the
-/// first numbered one (`-2`, `-3` …) that nothing is at yet, so a default never replaces.
-/// A free name for a route sheet printed today in `folder`.
-pub fn default_route_sheet_path(folder: &Path) -> PathBuf {
-    crate::outfile::free_name(
-        folder,
-        &format!("route-sheet-{}", Utc::now().date_naive()),
-        "pdf",
-    )
+/// A free name in `folder` for a route sheet printed on the shop's day `today`.
+pub fn default_route_sheet_path(folder: &Path, today: NaiveDate) -> PathBuf {
+    crate::outfile::free_name(folder, &format!("route-sheet-{today}"), "pdf")
 }
 
+/// Where a report of `to` goes in `folder` when no file is chosen: the default name, or the
+/// first numbered one (`-2`, `-3` …) that nothing is at yet, so a default never replaces.
 pub fn default_out_path(folder: &Path, to: NaiveDate) -> PathBuf {
     crate::outfile::free_name(folder, &format!("condition-report-{to}"), "pdf")
 }

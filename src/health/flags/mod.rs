@@ -13,7 +13,7 @@ use super::indicators::{CheckPoint, Computed, Dim, Restart, SamplePoint};
 use super::limits::{LimitKey, Limits};
 use super::plan::WorkItem;
 use super::text::{flow, num, tdiff, temp, visc};
-use super::{day, State};
+use super::{Calendar, State};
 use crate::model::{Acknowledgement, EventKind, FilterState, OilLevel, UnitHistory};
 use crate::units::UnitSystem;
 
@@ -131,7 +131,12 @@ pub struct Figure {
 
 /// The `overdue` flag of a unit from its planned work: the worst overdue item sets the state,
 /// the earliest sets the date it began.
-pub fn overdue(work: &[WorkItem], limits: &Limits, at: DateTime<Utc>) -> Option<Flag> {
+pub fn overdue(
+    work: &[WorkItem],
+    limits: &Limits,
+    at: DateTime<Utc>,
+    calendar: Calendar,
+) -> Option<Flag> {
     let overdue: Vec<&WorkItem> = work.iter().filter(|w| w.state > State::Steady).collect();
     let worst = overdue.iter().max_by_key(|w| (w.state, w.days_overdue))?;
     let ol = limits.get(LimitKey::OverdueDays);
@@ -157,10 +162,7 @@ pub fn overdue(work: &[WorkItem], limits: &Limits, at: DateTime<Utc>) -> Option<
         })
         .collect();
     let g = Graded {
-        at: state_since
-            .and_hms_opt(0, 0, 0)
-            .map(|d| d.and_utc())
-            .unwrap_or(at),
+        at: calendar.start(state_since).unwrap_or(at),
         state: worst.state,
         value: Some(worst.days_overdue as f64),
         limit: if worst.state == State::Act {

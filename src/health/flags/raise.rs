@@ -11,7 +11,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             out.push(new_flag(
                 kind,
                 &last,
-                day(since),
+                c.calendar.day(since),
                 state_since,
                 message(&last),
             ));
@@ -211,7 +211,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
                 pct(Some(d)),
                 if d < 0.0 { "thinner" } else { "thicker" },
                 pct(g.value),
-                day(by)
+                c.calendar.day(by)
             ),
             _ => figures,
         };
@@ -301,7 +301,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
                  (limit {} ppm)",
                 num(now, 0),
                 num(g.value.unwrap_or(0.0), 0),
-                day(by),
+                c.calendar.day(by),
                 num(g.limit.unwrap_or(0.0), 0)
             ),
             _ => format!(
@@ -331,7 +331,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
                  at that rate up {} by {}",
                 num(now, 2),
                 num(g.value.unwrap_or(0.0), 2),
-                day(by)
+                c.calendar.day(by)
             ),
             _ => format!(
                 "Acid number up {} mg KOH/g on the new oil",

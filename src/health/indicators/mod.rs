@@ -13,7 +13,7 @@ use serde::{Deserialize, Serialize};
 use super::baseline::{self, Baseline, BaselineIndicator, BaselineSource, Era};
 use super::flags::Flag;
 use super::limits::{LimitKey, Limits};
-use super::State;
+use super::{Calendar, State};
 use crate::model::{Check, EventKind, FilterState, Fluid, Id, OilLevel, Sample, UnitHistory};
 use crate::physics::cleanliness::{self as clean, Iso4406Code};
 use crate::physics::hydraulics as hyd;
@@ -197,6 +197,8 @@ pub struct Indicators {
 /// What `compute` hands to the flag and plan steps.
 #[derive(Clone, Debug, Default)]
 pub struct Computed {
+    /// The shop's calendar, for the dates the flags and the plan write.
+    pub calendar: Calendar,
     pub era: Option<Era>,
     pub fluid: Option<Fluid>,
     pub baseline: Baseline,

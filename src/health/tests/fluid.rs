@@ -148,6 +148,7 @@ fn a_fluid_change_starts_a_new_era_and_baseline() {
         &l,
         week(6),
         UnitSystem::Metric,
+        Calendar::default(),
     );
     assert_eq!(state_of(&before, FlagKind::Water), State::Act);
     let r = evaluate(
@@ -156,6 +157,7 @@ fn a_fluid_change_starts_a_new_era_and_baseline() {
         &l,
         week(11),
         UnitSystem::Metric,
+        Calendar::default(),
     );
     assert_eq!(r.eras.len(), 2);
     assert_eq!(r.eras[1].started_by, EraStart::FluidChange);

@@ -12,7 +12,7 @@ use crate::model::{Acknowledgement, EventKind, FilterState, OilLevel};
 use crate::units::{Flow, Temperature, Viscosity};
 
 pub(super) fn eval(h: &UnitHistory, limits: &Limits, at: DateTime<Utc>) -> UnitHealth {
-    evaluate(h, &[], limits, at, UnitSystem::Metric)
+    evaluate(h, &[], limits, at, UnitSystem::Metric, Calendar::default())
 }
 
 pub(super) fn state_of(health: &UnitHealth, kind: FlagKind) -> State {

@@ -242,3 +242,35 @@ fn work_is_planned_from_hours_months_and_condition() {
     );
     assert_eq!(state_of(&r, FlagKind::Acid), State::Steady);
 }
+
+#[test]
+fn dates_the_engine_writes_fall_on_the_shop_s_own_day() {
+    // A check at 20:00 on Monday 2024-03-04 in New York (EST, UTC−5) is stored as 01:00 UTC
+    // on Tuesday. The next check is due a week after that evening: Monday 2024-03-11 in the
+    // shop, Tuesday 2024-03-12 in UTC (tz database offsets; worked by hand).
+    let mut h = press();
+    let mut c = timed(1, 0, 4.0, 45.0, 20.0);
+    c.taken_at = t("2024-03-05T01:00:00Z");
+    h.checks.push(c);
+    let at = t("2024-03-05T02:00:00Z");
+    let due = |cal: Calendar| {
+        let r = evaluate(&h, &[], &Limits::builtin(), at, UnitSystem::Metric, cal);
+        let w = r
+            .work
+            .iter()
+            .find(|w| w.kind == WorkKind::Check)
+            .cloned()
+            .unwrap();
+        (w.due, w.basis)
+    };
+    let (shop, basis) = due(Calendar::of(chrono_tz::America::New_York));
+    assert_eq!(shop.to_string(), "2024-03-11");
+    assert!(basis.contains("last check 2024-03-04"), "{basis}");
+    assert_eq!(due(Calendar::default()).0.to_string(), "2024-03-12");
+    // The shop's day begins at its own midnight: 05:00 UTC in winter, 04:00 in summer.
+    let ny = Calendar::of(chrono_tz::America::New_York);
+    let d = |s: &str| s.parse::<chrono::NaiveDate>().unwrap();
+    assert_eq!(ny.start(d("2024-03-04")), Some(t("2024-03-04T05:00:00Z")));
+    assert_eq!(ny.start(d("2024-07-04")), Some(t("2024-07-04T04:00:00Z")));
+    assert_eq!(ny.day(t("2024-03-05T01:00:00Z")), d("2024-03-04"));
+}
