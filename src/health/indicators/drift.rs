@@ -232,14 +232,13 @@ mod tests {
     use crate::health::baseline::BaselineValue;
     use crate::health::testutil::t;
 
-    /// Ten checks whose flow, corrected to the baseline's oil, reads 90 against a baseline of
-    /// 100 (entered by hand: known, no standard error), each corrected by the scale `k`.
-    fn drifted(k: f64) -> Vec<CheckPoint> {
-        let b = Baseline {
+    /// A baseline of one indicator entered by hand: known, no standard error.
+    fn by_hand(indicator: BaselineIndicator, value: f64, spread: f64) -> Baseline {
+        Baseline {
             values: vec![BaselineValue {
-                indicator: BaselineIndicator::CorrectedFlow,
-                value: 100.0,
-                spread: 2.5,
+                indicator,
+                value,
+                spread,
                 value_se: 0.0,
                 complete: true,
                 source: BaselineSource::Manual {
@@ -248,7 +247,13 @@ mod tests {
                 },
             }],
             closed_at: None,
-        };
+        }
+    }
+
+    /// Ten checks whose flow, corrected to the baseline's oil, reads 90 against a baseline of
+    /// 100 (entered by hand: known, no standard error), each corrected by the scale `k`.
+    fn drifted(k: f64) -> Vec<CheckPoint> {
+        let b = by_hand(BaselineIndicator::CorrectedFlow, 100.0, 2.5);
         let mut pts: Vec<CheckPoint> = (0..10)
             .map(|w| CheckPoint {
                 check_id: w,
@@ -295,20 +300,7 @@ mod tests {
         // repair (a relief valve that passed oil), then the first check after it at 20 K: the
         // EWMA starts afresh from the baseline, 20 + 0.2 · (20 − 20) = 20 (by hand), where
         // without the restart it would carry the shift on.
-        let b = Baseline {
-            values: vec![BaselineValue {
-                indicator: BaselineIndicator::HeatRise,
-                value: 20.0,
-                spread: 2.0,
-                value_se: 0.0,
-                complete: true,
-                source: BaselineSource::Manual {
-                    by: "test".into(),
-                    at: t("2024-01-01"),
-                },
-            }],
-            closed_at: None,
-        };
+        let b = by_hand(BaselineIndicator::HeatRise, 20.0, 2.0);
         let mut pts: Vec<CheckPoint> = (0..7)
             .map(|w| CheckPoint {
                 check_id: w,
