@@ -226,7 +226,7 @@ pub(super) fn read_number(text: &str) -> Result<Option<f64>, String> {
     }
 }
 
-/// When something was done: blank → `now`; `YYYY-MM-DD HH:MM[:SS]` or `YYYY-MM-DD` in the
+/// A required name (who did it): the text trimmed, refused when blank.
 pub(super) fn need(what: &str, text: &str) -> Result<String, AppError> {
     let t = text.trim();
     if t.is_empty() {
