@@ -81,6 +81,8 @@ fn shown(field: &str, stored: &str, sys: UnitSystem, zone: Zone) -> String {
     }
     match (stored_quantity(field), stored.parse::<f64>()) {
         (Some((_, q)), Ok(v)) if v.is_finite() => quantity::format(q(v), sys),
+        // The hour meter is stored as a bare number of hours, the same in either system.
+        (None, Ok(v)) if field == "hours" && v.is_finite() => format!("{v} h"),
         _ => stored.to_string(),
     }
 }
@@ -477,6 +479,20 @@ mod tests {
             ]
         );
         assert_eq!(e.lines()[2], "    pressure: 172.0 bar → 17.2 bar");
+        // The hour meter reads in hours: 31581.0 as stored, 31581 h as shown.
+        let meter = edit_of_unit(
+            &record(
+                "checks",
+                5,
+                r#"{"id":5,"unit_id":2,"hours":31581.0}"#,
+                Some(r#"{"id":5,"unit_id":2,"hours":31518.5}"#),
+            ),
+            2,
+            ny,
+            UnitSystem::Us,
+        )
+        .unwrap();
+        assert_eq!(meter.lines()[1], "    hours: 31581 h → 31518.5 h");
         // Another unit's record is not this unit's trail.
         assert!(edit_of_unit(
             &record("checks", 5, old, Some(new)),
