@@ -50,6 +50,28 @@ pub const SUDDEN_BEFORE_MIN: usize = 4;
 /// How many points a trend line is fitted to (docs/engineering.md, "Computations").
 pub const TREND_POINTS: usize = 12;
 
+/// Whether an era's leakage fit is well determined: two standard errors of its conductance
+/// within `margin` of it (the leak-conductance watch margin, 1.3× → 0.3), so its own error
+/// cannot raise a flag.
+fn well_determined(f: &hyd::LeakageFit, margin: f64) -> bool {
+    2.0 * f.conductance_se <= margin * f.conductance
+}
+
+/// The displacement the flow is corrected with (m³/s): the era's leakage fit where it is well
+/// determined, else the rated flow, else a looser fit. A loose fit's displacement is often
+/// well above the pump's, and carried to warmer oil it takes a pump's wear for the season's
+/// thinner oil: a flow that fell by a third through a spring read as no loss at all.
+pub fn displacement_of(
+    fit: Option<hyd::LeakageFit>,
+    rated: Option<f64>,
+    margin: f64,
+) -> Option<f64> {
+    fit.filter(|f| well_determined(f, margin))
+        .map(|f| f.displacement)
+        .or(rated)
+        .or(fit.map(|f| f.displacement))
+}
+
 /// One detector's reading at one check.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct DriftPoint {
@@ -355,7 +377,13 @@ pub fn compute(
             .then(|| hyd::fit_leakage(&pts))
             .flatten()
     });
-    let displacement = fit.map(|f| f.displacement).or(rated.map(|r| r.si()));
+    let leak_margin = limits
+        .get(LimitKey::LeakConductanceRatio)
+        .watch
+        .unwrap_or(1.3)
+        - 1.0;
+    let fit_judged = fit.filter(|f| well_determined(f, leak_margin));
+    let displacement = displacement_of(fit, rated.map(|r| r.si()), leak_margin);
     for p in points.iter_mut() {
         // Laminar gap leakage Q_leak ∝ Δp/μ, so (D − Q)·ν/p stays put while only the oil
         // temperature or the job pressure moves (Hagen–Poiseuille gap flow).
@@ -592,12 +620,6 @@ pub fn compute(
     // baseline leakage against the rated flow must stand well above the spread of the
     // (corrected) timed flow, never taken below the stopwatch floor.
     let floor_rel = limits.value(LimitKey::MinSpreadPct) / 100.0;
-    let leak_margin = limits
-        .get(LimitKey::LeakConductanceRatio)
-        .watch
-        .unwrap_or(1.3)
-        - 1.0;
-    let fit_judged = fit.filter(|f| 2.0 * f.conductance_se <= leak_margin * f.conductance);
     let leak_resolved = match baseline.get(BaselineIndicator::LeakConductance) {
         Some(b) if matches!(b.source, BaselineSource::Manual { .. }) => Some(true),
         // The fitted conductance is judged where it is well determined: two of its standard

@@ -215,3 +215,31 @@ fn a_step_seen_at_watch_and_confirmed_beyond_act_is_act_at_the_second_check() {
     let p = r.checks.last().unwrap();
     assert!((p.sudden_loss_pct.unwrap() - 20.0).abs() < 1e-9);
 }
+
+#[test]
+fn a_loose_leakage_fit_does_not_override_the_rated_flow() {
+    // Hand values against the leak-conductance watch margin of 0.3 (1.3×): a fit whose
+    // conductance of 1.0 carries a standard error of 0.1 is well determined (2 × 0.1 ≤ 0.3)
+    // and its displacement of 140 is taken; with 0.4 it is loose (0.8 > 0.3) and the rated
+    // 105 is taken; with no rated flow the loose fit is all there is.
+    use crate::health::indicators::displacement_of;
+    let fit = |se: f64| crate::physics::hydraulics::LeakageFit {
+        displacement: 140.0,
+        displacement_se: 1.0,
+        conductance: 1.0,
+        conductance_se: se,
+        residual_sd: 1.0,
+        n: 12,
+    };
+    assert_eq!(
+        displacement_of(Some(fit(0.1)), Some(105.0), 0.3),
+        Some(140.0)
+    );
+    assert_eq!(
+        displacement_of(Some(fit(0.4)), Some(105.0), 0.3),
+        Some(105.0)
+    );
+    assert_eq!(displacement_of(Some(fit(0.4)), None, 0.3), Some(140.0));
+    assert_eq!(displacement_of(None, Some(105.0), 0.3), Some(105.0));
+    assert_eq!(displacement_of(None, None, 0.3), None);
+}
