@@ -14,7 +14,7 @@ use sumpbook::gui::{App, Screen};
 use crate::run::ok;
 
 /// The demo's last walk-round day plus a week: the board, `status --at` and `report --to` are
-/// all judged at the end of this day.
+/// all judged at the end of this day in the shop's time zone.
 fn judged_day() -> chrono::NaiveDate {
     sumpbook::exchange::demo::end_date() + chrono::Days::new(7)
 }
@@ -22,7 +22,10 @@ fn judged_day() -> chrono::NaiveDate {
 /// The fleet board's rows as read aloud: `TAG, STATE, figures`.
 fn board_rows(db: &Path, day: chrono::NaiveDate) -> Vec<String> {
     i_slint_backend_testing::init_no_event_loop();
-    let at = day.and_hms_opt(23, 59, 59).map(|t| t.and_utc());
+    // As `status --at DAY` takes it: the day's last second where the shop is (the engine
+    // counts days due and overdue on the shop's calendar).
+    let zone = sumpbook::app::shop::Shop::open(db).unwrap().zone();
+    let at = Some(zone.day_end(day));
     let app = App::open_at(db, at).unwrap();
     app.window()
         .window()
