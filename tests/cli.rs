@@ -1346,7 +1346,7 @@ fn log_check_asks_about_readings_the_last_check_had_and_goes_on_with_leave_blank
 /// Work marked done from the command line carries its hour meter, the fluid put in, the filter
 /// part and the work order: stored, echoed, listed in JSON, exported and imported back the
 /// same in both unit systems. An hour meter below the reading before it or above the one after
-/// it, and a date in the future, are refused with the reason and write nothing.
+/// it is asked about (kept only with --confirm), a date in the future refused; neither writes.
 #[test]
 fn log_event_records_hour_meter_fluid_filter_part_and_work_order_and_they_round_trip() {
     crate::backends::on_each_backend(|| {
@@ -1394,7 +1394,8 @@ fn log_event_records_hour_meter_fluid_filter_part_and_work_order_and_they_round_
             &as_str(&log(&["--hours", &(before - 8.0).to_string()])),
             "is below the",
         );
-        assert!(e.contains(&format!("{before} h read on SH-04-A")), "{e}");
+        assert!(e.contains(&format!("{before} h read at 2026-11-20")), "{e}");
+        assert!(e.contains("repeat with --confirm"), "{e}");
         let e = refused(
             d,
             &as_str(&log(&["--hours", &(after + 1.0).to_string()])),
@@ -1480,6 +1481,38 @@ fn log_event_records_hour_meter_fluid_filter_part_and_work_order_and_they_round_
                 "events through a {units} file"
             );
         }
+
+        // A meter replaced: the work is recorded with the new meter's figure once confirmed.
+        let replaced = [
+            "--db",
+            db,
+            "log-event",
+            "SH-04-A",
+            "filter_change",
+            "--at",
+            "2026-11-26 15:00",
+            "--by",
+            "M. Fitter",
+            "--hours",
+            "12",
+        ];
+        let e = refused(d, &replaced, "was the meter replaced?");
+        assert!(e.contains("repeat with --confirm"), "{e}");
+        assert!(exported_by(d, db, "events", "SH-04-A", "M. Fitter").is_empty());
+        let out = ok(
+            d,
+            &words(&replaced, &["--confirm"])
+                .iter()
+                .map(String::as_str)
+                .collect::<Vec<_>>(),
+        );
+        assert!(
+            out.contains("  kept as confirmed: hours: the hour meter 12 h is below the"),
+            "{out}"
+        );
+        let lines = exported_by(d, db, "events", "SH-04-A", "M. Fitter");
+        assert_eq!(lines.len(), 1, "{lines:?}");
+        assert!(lines[0].ends_with(",12,,"), "{lines:?}");
     });
 }
 

@@ -745,6 +745,7 @@ fn a_unit_without_readings_since_its_fluid_change_shows_not_judged_yet_and_what_
             by: "R. Engineer".into(),
             note: String::new(),
             details: Default::default(),
+            confirmed: false,
         };
         sumpbook::app::work::log_event(&s, &tag, &input).unwrap();
         // And its first walk-round check of the new era, half an hour later (so no check is
@@ -892,6 +893,7 @@ fn a_save_made_elsewhere_shows_on_the_board_at_the_next_look() {
             by: "R. Engineer".into(),
             note: String::new(),
             details: Default::default(),
+            confirmed: false,
         };
         sumpbook::app::work::log_event(&other, &tag, &input).unwrap();
         tag
@@ -2027,8 +2029,11 @@ fn mark_done_records_when_hour_meter_fluid_filter_part_and_work_order_from_the_k
     field(&f.app, "Work order").set_accessible_value("WO-4471");
     field(&f.app, "Hour meter (h)").set_accessible_value(format!("{}", last - 10.0));
     key(&f.app, Key::Return);
+    // Below the last reading: asked (a replaced meter is kept by Enter again), not written.
     let msg = message(&f.app);
     assert!(msg.contains("is below the"), "{msg}");
+    assert!(msg.contains("was the meter replaced?"), "{msg}");
+    assert!(msg.contains("press Enter (or Save) again"), "{msg}");
     let events = |s: &Shop| s.store_for_tests().events_for_unit(unit.id, None).unwrap();
     let before = events(&s).len();
     assert_eq!(a.get_focus_on(), "hours");

@@ -383,6 +383,7 @@ fn a_unit_without_baseline_gets_absolute_flags_and_a_fluid_change_starts_a_new_e
         by: "T. Tech".into(),
         note: "scheduled".into(),
         details: Default::default(),
+        confirmed: false,
     };
     let logged = log_event_in(&store, "ERA-1", &input, week(6) + Duration::hours(1)).unwrap();
     assert_eq!(logged.fluid.as_deref(), Some("Test HM 46"));

@@ -1201,6 +1201,7 @@ fn work_done_in_the_period_is_listed_with_its_hour_meter_filter_part_and_work_or
             filter_part: "RF-10-BN".into(),
             work_order: "WO-4471".into(),
         },
+        confirmed: false,
     };
     log_event_in(store, "PB-03-A", &input, at + chrono::Duration::hours(1)).unwrap();
 

@@ -10,7 +10,7 @@ use super::ui::HealthState;
 use super::ui::{WorkAdapter, WorkRow};
 use super::{err_text, model, on, on_arg, s, Ctx, Screen};
 use crate::app::entry;
-use crate::app::entry::MarkDoneForm;
+use crate::app::entry::{Answers, MarkDoneForm, SaveOutcome};
 use crate::app::vocab::WorkKind;
 use crate::app::vocab::CAUTION_SHORT;
 use crate::app::work::{DueBucket, DueItem};
@@ -21,6 +21,8 @@ pub(crate) struct WorkState {
     items: Vec<DueItem>,
     /// The shop's fluids as the form's fluid list shows them.
     fluids: Vec<String>,
+    /// The line and values last asked about; Enter again on the same values keeps them.
+    pending_confirm: Option<(i32, MarkDoneForm)>,
 }
 
 pub(super) fn install(ctx: &Rc<Ctx>) {
@@ -191,8 +193,29 @@ fn mark_done(ctx: &Rc<Ctx>) {
         work_order: a.get_work_order().to_string(),
         note: a.get_note().to_string(),
     };
-    match entry::mark_done(&ctx.shop, &item.unit, item.kind, &form, ctx.now()) {
-        Ok(logged) => {
+    // Enter again on the same values answers yes to what was asked, as on the walk-round.
+    let again = ctx.work.borrow().pending_confirm.as_ref() == Some(&(i, form.clone()));
+    let answers = if again { Answers::ALL } else { Answers::NONE };
+    let outcome = entry::mark_done(&ctx.shop, &item.unit, item.kind, &form, answers, ctx.now());
+    ctx.work.borrow_mut().pending_confirm = None;
+    match outcome {
+        Ok(SaveOutcome::NeedsConfirmation(p)) => {
+            // Nothing was written: the question beside the cursor, in the first field asked.
+            let (text, level) = super::problems_line(&p);
+            a.set_message(s(text));
+            a.set_message_level(level);
+            if let Some(field) = p.first().map(|q| q.field.clone()) {
+                a.set_focus_on(s(field));
+                a.set_focus_tick(a.get_focus_tick() + 1);
+            }
+            ctx.work.borrow_mut().pending_confirm = Some((i, form));
+        }
+        Ok(SaveOutcome::Refused(p)) => {
+            let (text, level) = super::problems_line(&p);
+            a.set_message(s(text));
+            a.set_message_level(level);
+        }
+        Ok(SaveOutcome::Saved(logged)) => {
             let next = logged
                 .work
                 .iter()

@@ -151,36 +151,43 @@ impl Store {
         })
     }
 
-    /// The highest hour meter read on a unit at or before `at` (checks and work done), and
-    /// the lowest read after it, each with when it was read: an hour meter only counts up, so
-    /// a new reading at `at` belongs between them. `except` leaves out an event's own reading
-    /// (the one being corrected).
+    /// The latest hour meter read on a unit at or before `at` (checks and work done), and the
+    /// earliest read after it, each with when it was read: a new reading at `at` is judged
+    /// against its neighbours in time (a meter replaced since the last reading reads lower, and
+    /// is asked about once, not at every reading after). `except` leaves out the reading being
+    /// corrected.
     pub fn hour_meter_around(
         &self,
         unit_id: Id,
         at: DateTime<Utc>,
-        except: Option<Id>,
+        except: Option<OwnReading>,
     ) -> Result<HourMeterAround, StoreError> {
         // Ids are positive, so -1 leaves nothing out.
-        let except = except.unwrap_or(-1);
+        let (except_check, except_event) = match except {
+            Some(OwnReading::Check(id)) => (id, -1),
+            Some(OwnReading::Event(id)) => (-1, id),
+            None => (-1, -1),
+        };
         // Readings are stored to the second, so the moment's fraction changes nothing.
         let at = fmt_time("at", &at.trunc_subsecs(0))?;
         let read = |sql: &str| -> Result<Option<(f64, DateTime<Utc>)>, StoreError> {
-            self.query_opt(sql, params![unit_id, at, except], |r| {
+            self.query_opt(sql, params![unit_id, at, except_event, except_check], |r| {
                 Ok((r.get::<f64>(0)?, time_col(r, 1)?))
             })
         };
-        let readings = "SELECT hours, taken_at AS read_at FROM checks WHERE unit_id = ?1 AND hours IS NOT NULL \
-             UNION ALL SELECT hours, done_at AS read_at FROM events WHERE unit_id = ?1 AND hours IS NOT NULL \
-             AND id <> ?3";
+        let readings = "SELECT hours, taken_at AS read_at FROM checks WHERE unit_id = ?1 \
+             AND hours IS NOT NULL AND id <> ?4 \
+             UNION ALL SELECT hours, done_at AS read_at FROM events WHERE unit_id = ?1 \
+             AND hours IS NOT NULL AND id <> ?3";
+        // Two readings at one moment: the higher one before, the lower one after.
         Ok(HourMeterAround {
             before: read(&format!(
                 "SELECT hours, read_at FROM ({readings}) r WHERE read_at <= ?2 \
-                 ORDER BY hours DESC, read_at LIMIT 1"
+                 ORDER BY read_at DESC, hours DESC LIMIT 1"
             ))?,
             after: read(&format!(
                 "SELECT hours, read_at FROM ({readings}) r WHERE read_at > ?2 \
-                 ORDER BY hours, read_at LIMIT 1"
+                 ORDER BY read_at, hours LIMIT 1"
             ))?,
         })
     }
@@ -261,10 +268,17 @@ impl Store {
 /// The hour meter read on a unit around a moment; see [`Store::hour_meter_around`].
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct HourMeterAround {
-    /// The highest reading at or before the moment, and when it was read.
+    /// The latest reading at or before the moment, and when it was read.
     pub before: Option<(f64, DateTime<Utc>)>,
-    /// The lowest reading after the moment, and when it was read.
+    /// The earliest reading after the moment, and when it was read.
     pub after: Option<(f64, DateTime<Utc>)>,
+}
+
+/// A stored reading left out of [`Store::hour_meter_around`]: the one being corrected.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum OwnReading {
+    Check(Id),
+    Event(Id),
 }
 
 impl Store {

@@ -14,6 +14,7 @@ use crate::model::{
     Check, Confirmation, FilterState, Id, OilLevel, PumpKind, StrokeDirection, TimedStroke, Unit,
 };
 use crate::quantity::Kind;
+use crate::store::events::HourMeterAround;
 use crate::units::{Flow, Length, Pressure, Seconds, Temperature, UnitSystem};
 
 /// One stop of the walk-round.
@@ -174,7 +175,11 @@ pub fn check_form(shop: &Shop, unit_id: Id, now: DateTime<Utc>) -> Result<CheckF
             ..Field::text("hours", "Hour meter")
         }
         .with_hint(
-            last_of(checks, |c| c.hours)
+            // The last reading by a check or by work done, as the question after it uses.
+            store
+                .hour_meter_around(unit_id, now, None)
+                .map_err(store_error)?
+                .before
                 .map(|(v, at)| format!("{v:.0} h · {}", ago(at, now)))
                 .unwrap_or("no earlier reading".into()),
         ),
@@ -232,14 +237,19 @@ pub struct CheckReview {
 
 /// Judges a check of `unit` as typed, against the bounds of docs/engineering.md ("Physical bounds
 /// of readings") and the unit's own record
-/// (`earlier` checks, oldest first, and its maintenance `events`). `base` gives the id, time and author of an edited check.
+/// (`earlier` checks, oldest first, its maintenance `events`, and the hour meter read `around`
+/// the check, by checks and work done alike). `base` gives the id, time and author of an
+/// edited check.
+#[allow(clippy::too_many_arguments)]
 pub(super) fn judge_check(
     unit: &Unit,
     earlier: &[Check],
     events: &[crate::model::Event],
+    around: &HourMeterAround,
     entered: &Entered,
     base: Check,
     system: UnitSystem,
+    zone: Zone,
 ) -> CheckReview {
     let mut p = Vec::new();
     let q = |key: &str, kind: Kind, p: &mut Vec<Problem>| -> Option<f64> {
@@ -269,16 +279,6 @@ pub(super) fn judge_check(
         p.push(Problem::refused("hours", e));
         None
     });
-    let before: Vec<&Check> = earlier
-        .iter()
-        .filter(|c| c.taken_at < base.taken_at && c.id != base.id)
-        .collect();
-    let last = |f: &dyn Fn(&Check) -> Option<f64>| {
-        before
-            .iter()
-            .rev()
-            .find_map(|c| f(c).map(|v| (v, c.taken_at)))
-    };
 
     let res_ok =
         res.filter(|&t| bound_temp("reservoir_temp", "Reservoir temperature", t, system, &mut p));
@@ -356,23 +356,13 @@ pub(super) fn judge_check(
                 "hours",
                 format!("an hour meter cannot read below zero (got {h})"),
             ));
-        } else if let Some((prev, at)) = last(&|c| c.hours) {
-            let elapsed_h = (base.taken_at - at).num_seconds() as f64 / 3600.0;
-            if h < prev {
-                p.push(Problem::unusual(
-                    "hours",
-                    format!("{h:.0} h is below last time's {prev:.0} h; was the meter replaced?"),
-                ));
-            } else if h - prev > elapsed_h + 1.0 {
-                p.push(Problem::unusual(
-                    "hours",
-                    format!(
-                        "{:.0} h more than last time, but only {:.0} h have passed; is the reading right?",
-                        h - prev,
-                        elapsed_h.max(0.0)
-                    ),
-                ));
-            }
+        } else {
+            // One rule with marking work done: the readings around it, checks and work done.
+            p.extend(
+                crate::app::work::hour_meter_questions(h, base.taken_at, around, zone)
+                    .into_iter()
+                    .map(|q| Problem::unusual("hours", q)),
+            );
         }
     }
     if let Some(q) = case_drain {
@@ -490,7 +480,12 @@ pub fn review_check(
         note: String::new(),
         confirmed: None,
     };
-    let mut review = judge_check(&unit, &earlier, &events, entered, base, system);
+    let around = store
+        .hour_meter_around(unit_id, at, None)
+        .map_err(store_error)?;
+    let mut review = judge_check(
+        &unit, &earlier, &events, &around, entered, base, system, zone,
+    );
     if pre.iter().any(|p| p.verdict == Verdict::Refused) {
         review.check = None;
     }

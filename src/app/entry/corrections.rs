@@ -226,7 +226,14 @@ pub fn edit_reading(
             let events = store
                 .events_for_unit(c.unit_id, None)
                 .map_err(store_error)?;
-            let review = judge_check(&unit, &earlier, &events, entered, c, system);
+            let around = store
+                .hour_meter_around(
+                    c.unit_id,
+                    c.taken_at,
+                    Some(crate::store::events::OwnReading::Check(c.id)),
+                )
+                .map_err(store_error)?;
+            let review = judge_check(&unit, &earlier, &events, &around, entered, c, system, zone);
             let refused: Vec<Problem> = review
                 .problems
                 .iter()
@@ -287,7 +294,9 @@ pub fn edit_reading(
                 &details,
                 Some(id),
             ) {
-                Ok(d) => d,
+                // A correction keeps an hour meter out of step with its neighbours (a replaced
+                // meter), as a corrected check keeps an unusual value: the engineer gives why.
+                Ok(checked) => checked.details,
                 Err(r) => {
                     return Ok(SaveOutcome::Refused(vec![Problem::refused(
                         r.field,

@@ -38,7 +38,7 @@ impl Problem {
             message: message.into(),
         }
     }
-    pub(super) fn unusual(field: &str, message: impl Into<String>) -> Self {
+    pub(crate) fn unusual(field: &str, message: impl Into<String>) -> Self {
         Problem {
             field: field.to_string(),
             verdict: Verdict::Unusual,

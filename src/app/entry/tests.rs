@@ -436,8 +436,7 @@ fn corrections_need_a_reason_and_are_kept() {
 }
 
 /// The hour meter, filter part and work order of work done are corrected like the rest of the
-/// event: in the form with their stored values, kept in the edit history, and the hour meter
-/// judged against the unit's other readings, not its own old value.
+/// event: in the form with their stored values and kept in the edit history.
 #[test]
 fn work_done_details_are_corrected_in_the_form_and_kept() {
     let (_d, shop) = demo();
@@ -445,7 +444,7 @@ fn work_done_details_are_corrected_in_the_form_and_kept() {
     let store = shop.store();
     let last = store.checks_for_unit(u.id, None).unwrap().pop().unwrap();
     let read = last.hours.expect("the demo's checks read the hour meter");
-    let at = last.taken_at + Duration::hours(2);
+    let at = last.taken_at + Duration::hours(10);
     let input = work::EventInput {
         kind: crate::model::EventKind::FilterChange,
         at: Some(at),
@@ -458,6 +457,7 @@ fn work_done_details_are_corrected_in_the_form_and_kept() {
             filter_part: "RF-10-BN".into(),
             work_order: "WO-4417".into(),
         },
+        confirmed: false,
     };
     let id = work::log_event_in(store, &u.tag, &input, at)
         .unwrap()
@@ -479,21 +479,15 @@ fn work_done_details_are_corrected_in_the_form_and_kept() {
     assert_eq!(value("hours"), format!("{}", read + 9.0));
     assert_eq!(value("work_order"), "WO-4417");
 
-    // Below the check before it: refused on the hour meter, nothing written.
+    // Below the check before it (a meter replaced and the work typed with its old figure):
+    // a correction keeps it, as a corrected check keeps an unusual value, with the reason.
     let mut e = Entered::from_fields(&fields);
     e.set("hours", &format!("{}", read - 1.0));
-    let out = edit_reading(&shop, Reading::Event, id, &e, "R. E", "re-read").unwrap();
-    assert!(
-        matches!(out, SaveOutcome::Refused(ref p) if p[0].field == "hours" && p[0].message.contains("is below the")),
-        "{out:?}"
-    );
-    // Below its own old figure but not the check's: a correction, kept with the old values.
-    e.set("hours", &format!("{}", read + 1.0));
     e.set("work_order", "WO-4471");
-    let out = edit_reading(&shop, Reading::Event, id, &e, "R. E", "digits swapped").unwrap();
+    let out = edit_reading(&shop, Reading::Event, id, &e, "R. E", "new meter").unwrap();
     assert_eq!(out, SaveOutcome::Saved(()));
     let d = store.event_details(id).unwrap().unwrap();
-    assert_eq!(d.hours, Some(read + 1.0));
+    assert_eq!(d.hours, Some(read - 1.0));
     assert_eq!(d.work_order, "WO-4471");
     assert_eq!(d.filter_part, "RF-10-BN");
     let hist = store.edit_history("events", id).unwrap();
@@ -503,4 +497,86 @@ fn work_done_details_are_corrected_in_the_form_and_kept() {
         "{}",
         hist[0].old_value
     );
+}
+
+/// After a real meter replacement the work is still recorded with its hour meter: "Mark done"
+/// asks about a reading below the unit's last one and writes nothing, then keeps it when the
+/// person answers yes (the walk-round's Enter again on the same values). The walk-round check
+/// after it is judged against that work's reading, not only against earlier checks.
+#[test]
+fn an_hour_meter_below_the_last_reading_is_asked_about_kept_when_confirmed_and_read_on_from() {
+    let (_d, shop) = demo();
+    let u = first_unit(&shop);
+    let store = shop.store();
+    let last = store.checks_for_unit(u.id, None).unwrap().pop().unwrap();
+    let read = last.hours.expect("the demo's checks read the hour meter");
+    assert!(read > 100.0, "{read}");
+    let now = last.taken_at + Duration::hours(2);
+    let form = MarkDoneForm {
+        by: "T. Fitter".into(),
+        hours: "12".into(),
+        filter_part: "RF-10-BN".into(),
+        ..MarkDoneForm::default()
+    };
+    let events = || store.events_for_unit(u.id, None).unwrap().len();
+    let n = events();
+    let kind = crate::health::WorkKind::FilterChange;
+    let asked = match mark_done(&shop, &u.tag, kind, &form, Answers::NONE, now).unwrap() {
+        SaveOutcome::NeedsConfirmation(p) => p,
+        other => panic!("{other:?}"),
+    };
+    assert_eq!(asked.len(), 1, "{asked:?}");
+    assert_eq!(
+        (asked[0].field.as_str(), asked[0].verdict),
+        ("hours", Verdict::Unusual)
+    );
+    assert!(
+        asked[0]
+            .message
+            .contains(&format!("is below the {read} h read at"))
+            && asked[0].message.contains("was the meter replaced?"),
+        "{}",
+        asked[0].message
+    );
+    assert_eq!(events(), n, "a question writes nothing");
+    let logged = match mark_done(&shop, &u.tag, kind, &form, Answers::ALL, now).unwrap() {
+        SaveOutcome::Saved(l) => l,
+        other => panic!("{other:?}"),
+    };
+    assert_eq!(logged.details.hours, Some(12.0));
+    assert_eq!(logged.confirmed.len(), 1, "{:?}", logged.confirmed);
+    assert_eq!(events(), n + 1);
+
+    // A week on, the walk-round reads on from the new meter: 12 h + 60 h run is no question
+    // (the old rule, earlier checks only, asked it below the old meter's figure); below the
+    // work's 12 h is asked.
+    let week = now + Duration::days(7);
+    let hours_asked = |typed: &str| -> Vec<Problem> {
+        review_check(
+            &shop,
+            u.id,
+            &entered(&[("hours", typed)]),
+            "",
+            "T. Tech",
+            week,
+        )
+        .unwrap()
+        .problems
+        .into_iter()
+        .filter(|p| p.field == "hours")
+        .collect()
+    };
+    assert_eq!(hours_asked("72"), vec![]);
+    let below = hours_asked("10");
+    assert_eq!(below.len(), 1, "{below:?}");
+    assert_eq!(below[0].verdict, Verdict::Unusual);
+    assert!(
+        below[0].message.contains("is below the 12 h read at"),
+        "{}",
+        below[0].message
+    );
+    // The form's hint names the last reading, the work's.
+    let form = check_form(&shop, u.id, week).unwrap();
+    let hint = &form.fields.iter().find(|f| f.key == "hours").unwrap().hint;
+    assert!(hint.starts_with("12 h · 7 d ago"), "{hint}");
 }

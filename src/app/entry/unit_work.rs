@@ -224,14 +224,17 @@ impl std::fmt::Display for MarkDoneRefused {
 
 /// Marks planned work on a unit done by recording its event with what the form holds: when
 /// (the shop's time, blank now), the hour meter, the fluid and volume put in (a fluid change),
-/// the filter part and the work order. Nothing is written unless every field reads.
+/// the filter part and the work order. Nothing is written unless every field reads; an hour
+/// meter out of step with the unit's other readings (a replaced meter) waits for `answers`, as
+/// an unusual reading of the walk-round does.
 pub fn mark_done(
     shop: &Shop,
     tag: &str,
     kind: WorkKind,
     form: &MarkDoneForm,
+    answers: Answers,
     now: DateTime<Utc>,
-) -> Result<LoggedEvent, MarkDoneRefused> {
+) -> Result<SaveOutcome<LoggedEvent>, MarkDoneRefused> {
     let on = |field: &'static str| move |error: AppError| MarkDoneRefused { field, error };
     let bad = |field: &'static str| {
         move |e: String| MarkDoneRefused {
@@ -269,7 +272,7 @@ pub fn mark_done(
     } else {
         (None, None)
     };
-    let details = work::check_details_in(
+    let checked = work::check_details_in(
         store,
         tag,
         at,
@@ -284,6 +287,9 @@ pub fn mark_done(
         field: r.field,
         error: r.error,
     })?;
+    if !answers.settle(&checked.questions) {
+        return Ok(SaveOutcome::NeedsConfirmation(checked.questions));
+    }
     let input = EventInput {
         kind: event,
         at: Some(at),
@@ -291,7 +297,10 @@ pub fn mark_done(
         fluid,
         by,
         note: form.note.trim().to_string(),
-        details,
+        details: checked.details,
+        confirmed: answers.keep_unusual,
     };
-    work::log_event_in(store, tag, &input, now).map_err(on(""))
+    work::log_event_in(store, tag, &input, now)
+        .map(SaveOutcome::Saved)
+        .map_err(on(""))
 }

@@ -15,13 +15,16 @@ use crate::health::limits::{LimitKey, Limits};
 use crate::health::plan::SAFETY_CAUTIONS;
 use crate::health::{Flag, FlagKind, State, WorkItem, WorkKind};
 use crate::model::{Acknowledgement, Event, EventDetails, EventKind, Unit};
+use crate::store::events::OwnReading;
 use crate::store::{Store, StoreError};
 use crate::units::Volume;
 
 mod baseline;
+mod hour_meter;
 mod limits;
 
 pub use baseline::{set_baseline, set_baseline_in, BaselineEntered};
+pub(crate) use hour_meter::hour_meter_questions;
 pub(crate) use limits::LimitScale;
 pub use limits::{
     limits, limits_in, read_limit, reset_limit, reset_limit_in, set_limit, set_limit_in, LimitRow,
@@ -254,6 +257,8 @@ pub struct LoggedEvent {
     pub details: EventDetails,
     /// Whether the unit register's fluid in service was changed to it.
     pub fluid_in_service_changed: bool,
+    /// The questions the person confirmed, as `field: question`.
+    pub confirmed: Vec<String>,
     /// The unit's planned work after the event.
     pub work: Vec<WorkItem>,
 }
@@ -271,6 +276,9 @@ pub struct EventInput {
     pub note: String,
     /// The hour meter when it was done, the filter part fitted and the work order.
     pub details: EventDetails,
+    /// Keep values asked about (an hour meter below the reading before it: a replaced meter);
+    /// without it they are listed and nothing is written.
+    pub confirmed: bool,
 }
 
 /// What was recorded beside an event, in words (`hour meter 10250 h · filter part RF-10 ·
@@ -301,15 +309,16 @@ pub struct DetailRefused {
     pub error: AppError,
 }
 
-/// The details of work on unit `tag` at `at` as they would be stored; see [`checked_details`].
-/// `except`: the event whose details these are, when it is stored already (a correction).
+/// The details of work on unit `tag` at `at` as they would be stored, with the questions they
+/// raise; see [`checked_details`]. `except`: the event whose details these are, when it is
+/// stored already (a correction).
 pub fn check_details_in(
     store: &Store,
     tag: &str,
     at: DateTime<Utc>,
     d: &EventDetails,
     except: Option<crate::model::Id>,
-) -> Result<EventDetails, DetailRefused> {
+) -> Result<CheckedDetails, DetailRefused> {
     let unit = store
         .unit_by_tag(tag)
         .map_err(store_error)
@@ -327,8 +336,17 @@ pub fn check_details_in(
     )
 }
 
+/// What was recorded beside an event as it would be stored, and what it asks before it is.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CheckedDetails {
+    pub details: EventDetails,
+    /// Unusual values to confirm (an hour meter out of step with the unit's other readings).
+    pub questions: Vec<crate::app::entry::Problem>,
+}
+
 /// The details as they are stored: references trimmed and of a sane length, and an hour meter
-/// that fits between the unit's readings before and after `at` (an hour meter only counts up).
+/// of a possible number of hours; one out of step with the unit's readings before and after
+/// `at` is asked about ([`hour_meter_questions`], the walk-round's rule), not refused.
 fn checked_details(
     store: &Store,
     unit: &Unit,
@@ -336,7 +354,7 @@ fn checked_details(
     d: &EventDetails,
     except: Option<crate::model::Id>,
     zone: super::local_time::Zone,
-) -> Result<EventDetails, DetailRefused> {
+) -> Result<CheckedDetails, DetailRefused> {
     let refused = |field: &'static str, message: String| DetailRefused {
         field,
         error: AppError::BadInput(message),
@@ -364,6 +382,7 @@ fn checked_details(
         };
     let filter_part = reference("filter_part", "the filter part", &d.filter_part)?;
     let work_order = reference("work_order", "the work order", &d.work_order)?;
+    let mut questions = Vec::new();
     if let Some(h) = d.hours {
         let b = crate::bounds::HOURS;
         if !h.is_finite() || h < b.lo || h > b.hi {
@@ -376,39 +395,37 @@ fn checked_details(
             ));
         }
         let around = store
-            .hour_meter_around(unit.id, at, except)
+            .hour_meter_around(unit.id, at, except.map(OwnReading::Event))
             .map_err(|e| DetailRefused {
                 field: "",
                 error: store_error(e),
             })?;
-        if let Some((before, when)) = around.before.filter(|(b, _)| h < *b) {
-            return Err(refused(
-                "hours",
-                format!(
-                    "the hour meter {h} h is below the {before} h read on {} at {}; an hour meter \
-                 only counts up, so check the figure (or the date of the work)",
-                    unit.tag,
-                    zone.show_marked(when)
-                ),
-            ));
-        }
-        if let Some((after, when)) = around.after.filter(|(a, _)| h > *a) {
-            return Err(refused(
-                "hours",
-                format!(
-                    "the hour meter {h} h is above the {after} h read on {} later, at {}; an hour \
-                 meter only counts up, so check the figure (or the date of the work)",
-                    unit.tag,
-                    zone.show_marked(when)
-                ),
-            ));
-        }
+        questions.extend(
+            hour_meter_questions(h, at, &around, zone)
+                .into_iter()
+                .map(|q| crate::app::entry::Problem::unusual("hours", q)),
+        );
     }
-    Ok(EventDetails {
-        hours: d.hours,
-        filter_part,
-        work_order,
+    Ok(CheckedDetails {
+        details: EventDetails {
+            hours: d.hours,
+            filter_part,
+            work_order,
+        },
+        questions,
     })
+}
+
+/// The questions as one refusal that says how to answer them (`answer`: the option or key).
+pub(crate) fn unanswered(questions: &[crate::app::entry::Problem], answer: &str) -> AppError {
+    let listed: Vec<String> = questions
+        .iter()
+        .map(|p| format!("{}: {}", p.field, p.message))
+        .collect();
+    AppError::BadInput(format!(
+        "the work was not recorded; these values are unusual ({answer} to keep them):\n{}",
+        listed.join("\n")
+    ))
 }
 
 /// Records work done on unit `tag` (a fluid change, filter change, top-up, ...), which restarts
@@ -466,8 +483,12 @@ pub fn log_event_in(
         },
         (None, false) => None,
     };
-    let details =
+    let checked =
         checked_details(store, &unit, at, &input.details, None, zone).map_err(|r| r.error)?;
+    if !input.confirmed && !checked.questions.is_empty() {
+        return Err(unanswered(&checked.questions, "repeat with --confirm"));
+    }
+    let details = checked.details;
     let event = Event {
         id: 0,
         unit_id: unit.id,
@@ -518,6 +539,11 @@ pub fn log_event_in(
         fluid: fluid.map(|f| f.name),
         details,
         fluid_in_service_changed: changed,
+        confirmed: checked
+            .questions
+            .iter()
+            .map(|p| format!("{}: {}", p.field, p.message))
+            .collect(),
         work: after.health.work,
     })
 }

@@ -46,6 +46,10 @@ pub struct LogEventArgs {
     /// What was done, in a few words.
     #[arg(long, value_name = "TEXT", default_value = "")]
     pub note: String,
+    /// Keep values asked about: an hour meter below the reading before it (a replaced meter)
+    /// or above one after it (they are listed otherwise, and nothing is recorded).
+    #[arg(long)]
+    pub confirm: bool,
     /// Print JSON.
     #[arg(long)]
     pub json: bool,
@@ -91,6 +95,7 @@ pub fn run_log_event(shop: &Shop, args: &LogEventArgs, out: &mut dyn Write) -> R
             filter_part: args.filter_part.clone(),
             work_order: args.work_order.clone(),
         },
+        confirmed: args.confirm,
     };
     let r = work::log_event(shop, &args.unit, &input)?;
     if args.json {
@@ -117,6 +122,9 @@ pub fn run_log_event(shop: &Shop, args: &LogEventArgs, out: &mut dyn Write) -> R
     let details = work::details_words(&r.details);
     if !details.is_empty() {
         writeln!(out, "  {details}")?;
+    }
+    for c in &r.confirmed {
+        writeln!(out, "  kept as confirmed: {c}")?;
     }
     if r.fluid_in_service_changed {
         writeln!(
