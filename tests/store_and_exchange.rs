@@ -701,6 +701,94 @@ fn export_then_import_into_a_new_shop_keeps_every_value_in_both_unit_systems() {
     });
 }
 
+/// A fluid that only work done names (put in once, no unit has it in service now) is not in
+/// the unit register's file; the events file carries its grade and viscosities beside its
+/// name, so importing both into a new shop adds it with the same values and the files read back
+/// the same. A name alone that a shop lacks is still refused, and data that differ from the
+/// stored fluid's are refused, not written over it.
+#[test]
+fn a_fluid_only_work_done_names_reaches_a_new_shop_through_the_events_file() {
+    let dir = tmp();
+    let original = new_store(dir.path(), "original.sqlite");
+    let (unit, _) = small_shop(&original);
+    let trial = Fluid {
+        id: 0,
+        name: "Trial HV 32".into(),
+        iso_vg: Some(32),
+        kv40_new: Some(Viscosity::from_cst(32.4)),
+        kv100_new: Some(Viscosity::from_cst(6.3)),
+        acid_new_mgkoh_g: None,
+        base_type: String::new(),
+    };
+    let trial_id = original.insert_fluid(&trial).unwrap();
+    original
+        .insert_event(&Event {
+            id: 0,
+            unit_id: unit,
+            done_at: t("2026-03-02T09:00:00Z"),
+            kind: EventKind::TopUp,
+            volume: Some(Volume::from_l(20.0)),
+            fluid_id: Some(trial_id),
+            by: "T. Fitter".into(),
+            note: String::new(),
+        })
+        .unwrap();
+    for system in [UnitSystem::Metric, UnitSystem::Us] {
+        let files = export_all(&original, system);
+        let units = String::from_utf8(files[0].1.clone()).unwrap();
+        assert!(!units.contains("Trial HV 32"), "{units}");
+        let mut copy = new_store(dir.path(), &format!("copy-{system:?}.sqlite"));
+        // The shop has no checks or samples: the unit register, then the work done.
+        for (kind, bytes) in files
+            .iter()
+            .filter(|(k, _)| matches!(k, FileKind::Units | FileKind::Events))
+        {
+            let path = dir.path().join(format!("{system:?}-{}", kind.file_name()));
+            std::fs::write(&path, bytes).unwrap();
+            let summary = import(&mut copy, *kind, &path);
+            if *kind == FileKind::Events {
+                assert_eq!(summary.fluids_added, 1, "{system:?}");
+            }
+        }
+        let added = copy
+            .fluids()
+            .unwrap()
+            .into_iter()
+            .find(|f| f.name == trial.name)
+            .expect("the trial fluid in the new shop");
+        assert_eq!(
+            (added.iso_vg, added.kv40_new, added.kv100_new),
+            (trial.iso_vg, trial.kv40_new, trial.kv100_new)
+        );
+        assert_eq!(export_all(&copy, system), files, "{system:?}");
+    }
+
+    // A name the shop lacks, without the fluid's data: refused, naming the cell.
+    let mut other = new_store(dir.path(), "other.sqlite");
+    small_shop(&other);
+    let name_only = dir.path().join("name-only.csv");
+    std::fs::write(
+        &name_only,
+        "unit_tag,done_at,kind,volume_l,fluid_name\nPR-01-M,2026-03-02T09:00:00Z,top_up,20,Trial HV 32\n",
+    )
+    .unwrap();
+    let e = import_file(&mut other, FileKind::Events, &name_only, false).unwrap_err();
+    assert!(e.to_string().contains("no fluid `Trial HV 32`"), "{e}");
+    // The stored fluid's name with another grade: refused, the stored fluid unchanged.
+    let other_grade = dir.path().join("other-grade.csv");
+    std::fs::write(
+        &other_grade,
+        "unit_tag,done_at,kind,volume_l,fluid_name,fluid_vg\nPR-01-M,2026-03-02T09:00:00Z,top_up,20,Stock HM 46,68\n",
+    )
+    .unwrap();
+    let e = import_file(&mut other, FileKind::Events, &other_grade, false).unwrap_err();
+    assert!(
+        e.to_string().contains("already stored with other values"),
+        "{e}"
+    );
+    assert!(other.events_for_unit(1, None).unwrap().is_empty());
+}
+
 #[test]
 fn text_that_a_spreadsheet_would_run_is_guarded_on_export_and_restored_on_import() {
     crate::backends::on_each_backend(|| {

@@ -92,6 +92,9 @@ pub fn header(kind: FileKind, system: UnitSystem) -> Vec<&'static str> {
                 "kind",
                 pick("volume_l", "volume_gal"),
                 "fluid_name",
+                "fluid_vg",
+                "fluid_kv40_cst",
+                "fluid_kv100_cst",
                 "by",
                 "note",
                 "hours",
@@ -149,6 +152,11 @@ pub fn export(
             .map(|f| text(&f.name))
             .unwrap_or_default()
     };
+    let fluid_vg = |id: Option<Id>| {
+        id.and_then(|f| fluids.get(&f)?.iso_vg)
+            .map(|v| v.to_string())
+            .unwrap_or_default()
+    };
     let temp = |t: Option<crate::units::Temperature>| {
         num(t.map(if us { columns::temp_f } else { columns::temp_c }))
     };
@@ -194,9 +202,7 @@ pub fn export(
                     s.map(|s| s.direction.to_string()).unwrap_or_default(),
                     u.sensitive_component.to_string(),
                     f.map(|f| text(&f.name)).unwrap_or_default(),
-                    f.and_then(|f| f.iso_vg)
-                        .map(|v| v.to_string())
-                        .unwrap_or_default(),
+                    fluid_vg(u.fluid_id),
                     cst(f.and_then(|f| f.kv40_new)),
                     cst(f.and_then(|f| f.kv100_new)),
                 ])
@@ -263,6 +269,11 @@ pub fn export(
                     e.kind.to_string(),
                     volume(e.volume),
                     fluid_name(e.fluid_id),
+                    // The fluid's own data beside its name, so that the file adds a fluid no
+                    // unit has in service any more to a shop that lacks it.
+                    fluid_vg(e.fluid_id),
+                    cst(e.fluid_id.and_then(|id| fluids.get(&id)?.kv40_new)),
+                    cst(e.fluid_id.and_then(|id| fluids.get(&id)?.kv100_new)),
                     text(&e.by),
                     text(&e.note),
                     num(d.hours.map(columns::tidy)),

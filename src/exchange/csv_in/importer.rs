@@ -90,7 +90,7 @@ impl Importer {
         match self.kind {
             FileKind::Checks => self.check_row(bulk, row),
             FileKind::Samples => self.sample_row(bulk, row),
-            FileKind::Events => self.event_row(bulk, row),
+            FileKind::Events => self.event_row(bulk, row, summary),
             FileKind::Units => self.unit_row(bulk, row, summary),
         }
     }

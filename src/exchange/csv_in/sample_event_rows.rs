@@ -167,6 +167,7 @@ impl Importer {
         &self,
         bulk: &mut Bulk<'_>,
         row: &mut RowReader<'_>,
+        summary: &mut crate::exchange::ImportSummary,
     ) -> Result<Option<Outcome>, ExchangeError> {
         let unit_id = self.unit_id(bulk, row);
         let done_at = row.when(self.slot("done_at"), "done_at");
@@ -177,21 +178,22 @@ impl Importer {
             row.parsed(self.slot("kind"))
         };
         let volume = row.volume(self.slot("volume"), bound(bounds::VOLUME_L));
-        let fluid_id = match row.text(self.slot("fluid_name")) {
-            Some(name) => {
-                match bulk.fluid_by_name(name) {
-                    Some(f) => Some(f.id),
-                    None => {
-                        row.err(
-                        &self.name("fluid_name"),
-                        format!("no fluid `{name}` in this shop (add it with the unit register first)"),
-                    );
-                        None
-                    }
-                }
+        // The fluid put in: a stored one by name, or one the shop lacks, added from the row's
+        // data as the unit register adds it (an export carries each fluid's data beside its
+        // name, so a fluid no unit has in service any more still reaches a new shop). A name
+        // alone that the shop lacks is refused: it is more likely a slip than a new fluid.
+        let fluid = self.fluid_cells(row);
+        if let Some(name) = &fluid.name {
+            if !fluid.has_data && bulk.fluid_by_name(name).is_none() {
+                row.err(
+                    &self.name("fluid_name"),
+                    format!(
+                        "no fluid `{name}` in this shop (add it with the unit register first, \
+                         or give its fluid_vg or viscosities in this row)"
+                    ),
+                );
             }
-            None => None,
-        };
+        }
         let by = row.free(self.slot("by"));
         let note = row.free(self.slot("note"));
         let details = EventDetails {
@@ -205,6 +207,9 @@ impl Importer {
         if !row.errors.is_empty() {
             return Ok(None);
         }
+        let Some(fluid_id) = self.fluid_of_row(bulk, row, &fluid, summary)? else {
+            return Ok(None);
+        };
         let event = Event {
             id: 0,
             unit_id,

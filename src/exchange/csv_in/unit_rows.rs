@@ -6,7 +6,7 @@ use crate::bounds;
 
 use crate::exchange::{ExchangeError, ImportSummary};
 use crate::model::{
-    Fluid, Machine, PumpKind, SensitiveComponent, StrokeDirection, TimedStroke, Unit,
+    Fluid, Id, Machine, PumpKind, SensitiveComponent, StrokeDirection, TimedStroke, Unit,
 };
 use crate::physics::viscosity::ISO_VG_GRADES;
 use crate::store::columns::{self};
@@ -38,45 +38,8 @@ impl Importer {
         let stroke_len = row.length(self.slot("stroke"), bound(bounds::STROKE_LENGTH_MM));
         let direction: Option<StrokeDirection> = row.parsed(self.slot("timed_direction"));
         let component: Option<SensitiveComponent> = row.parsed(self.slot("sensitive_component"));
-        let fluid_name = row.text(self.slot("fluid_name")).map(str::to_string);
-        let fluid_vg = row.integer(self.slot("fluid_vg"));
-        let fluid_kv40 = row.plain(self.slot("fluid_kv40"), bound(bounds::KV40_NEW_CST));
-        let fluid_kv100 = row.plain(self.slot("fluid_kv100"), bound(bounds::KV100_NEW_CST));
-
-        let iso_vg = match fluid_vg {
-            Some(v) if ISO_VG_GRADES.iter().any(|&(g, _)| i64::from(g) == v) => {
-                u32::try_from(v).ok()
-            }
-            Some(v) => {
-                let grades = ISO_VG_GRADES
-                    .iter()
-                    .map(|(g, _)| g.to_string())
-                    .collect::<Vec<_>>()
-                    .join(", ");
-                row.err(
-                    &self.name("fluid_vg"),
-                    format!("{v} is not an ISO VG grade (ISO 3448: {grades})"),
-                );
-                None
-            }
-            None => None,
-        };
-        if let (Some(a), Some(b)) = (fluid_kv40, fluid_kv100) {
-            if b >= a {
-                row.err(
-                    &self.name("fluid_kv100"),
-                    "must be below fluid_kv40_cst (oil thins as it warms)",
-                );
-            }
-        }
-        if fluid_name.is_none()
-            && (fluid_vg.is_some() || fluid_kv40.is_some() || fluid_kv100.is_some())
-        {
-            row.err(
-                "fluid_name",
-                "fluid properties are given without the fluid's name",
-            );
-        }
+        let fluid = self.fluid_cells(row);
+        let fluid_name = fluid.name.clone();
         // The timed stroke: bore, length and direction together; the rod for a retracting one.
         let any_stroke = self.slot("bore").is_some_and(|s| {
             row.rec
@@ -206,7 +169,7 @@ impl Importer {
             if let Some(name) = &fluid_name {
                 match &stored_fluid {
                     Some(f) if &f.name == name => {
-                        diff.extend(self.fluid_diff(f, iso_vg, fluid_kv40, fluid_kv100));
+                        diff.extend(self.fluid_diff(f, &fluid));
                     }
                     _ => diff.push(self.name("fluid_name")),
                 }
@@ -232,45 +195,9 @@ impl Importer {
             );
             return Ok(None);
         };
-        let fluid_id = match &fluid_name {
-            Some(name) => match bulk.fluid_by_name(name).cloned() {
-                Some(f) => {
-                    let diff = self.fluid_diff(&f, iso_vg, fluid_kv40, fluid_kv100);
-                    if !diff.is_empty() {
-                        row.err(
-                            &diff[0],
-                            format!(
-                                "fluid `{name}` is already stored with other values in {}",
-                                diff.join(", ")
-                            ),
-                        );
-                        return Ok(None);
-                    }
-                    Some(f.id)
-                }
-                None => {
-                    let fluid = Fluid {
-                        id: 0,
-                        name: name.clone(),
-                        iso_vg,
-                        kv40_new: fluid_kv40.map(Viscosity::from_cst),
-                        kv100_new: fluid_kv100.map(Viscosity::from_cst),
-                        acid_new_mgkoh_g: None,
-                        base_type: String::new(),
-                    };
-                    match bulk.insert_fluid(&fluid) {
-                        Ok(id) => {
-                            summary.fluids_added += 1;
-                            Some(id)
-                        }
-                        Err(e) => {
-                            row_store_error(row, e, |f| f.to_string())?;
-                            return Ok(None);
-                        }
-                    }
-                }
-            },
-            None => None,
+        let fluid_id = match self.fluid_of_row(bulk, row, &fluid, summary)? {
+            Some(id) => id,
+            None => return Ok(None),
         };
         let machine_id = match bulk.machine_by_tag(&machine_tag).cloned() {
             Some(m) => {
@@ -338,23 +265,126 @@ impl Importer {
         }
     }
 
-    fn fluid_diff(
+    /// The fluid cells of a row (the unit register's, or an event's fluid put in): its name,
+    /// ISO VG grade and new-oil viscosities, each checked; data without a name is refused.
+    pub(super) fn fluid_cells(&self, row: &mut RowReader<'_>) -> FluidCells {
+        let name = row.text(self.slot("fluid_name")).map(str::to_string);
+        let vg = row.integer(self.slot("fluid_vg"));
+        let kv40 = row.plain(self.slot("fluid_kv40"), bound(bounds::KV40_NEW_CST));
+        let kv100 = row.plain(self.slot("fluid_kv100"), bound(bounds::KV100_NEW_CST));
+        let iso_vg = match vg {
+            Some(v) if ISO_VG_GRADES.iter().any(|&(g, _)| i64::from(g) == v) => {
+                u32::try_from(v).ok()
+            }
+            Some(v) => {
+                let grades = ISO_VG_GRADES
+                    .iter()
+                    .map(|(g, _)| g.to_string())
+                    .collect::<Vec<_>>()
+                    .join(", ");
+                row.err(
+                    &self.name("fluid_vg"),
+                    format!("{v} is not an ISO VG grade (ISO 3448: {grades})"),
+                );
+                None
+            }
+            None => None,
+        };
+        if let (Some(a), Some(b)) = (kv40, kv100) {
+            if b >= a {
+                row.err(
+                    &self.name("fluid_kv100"),
+                    "must be below fluid_kv40_cst (oil thins as it warms)",
+                );
+            }
+        }
+        if name.is_none() && (vg.is_some() || kv40.is_some() || kv100.is_some()) {
+            row.err(
+                "fluid_name",
+                "fluid properties are given without the fluid's name",
+            );
+        }
+        FluidCells {
+            name,
+            iso_vg,
+            kv40,
+            kv100,
+            has_data: vg.is_some() || kv40.is_some() || kv100.is_some(),
+        }
+    }
+
+    /// The id of the fluid a row names (`Some(None)` when it names none): the stored one of
+    /// that name, refused when the row gives it other values; or, when the shop lacks it, a new
+    /// one made from the row's data. `None`: refused, the reason on the row.
+    pub(super) fn fluid_of_row(
         &self,
-        f: &Fluid,
-        vg: Option<u32>,
-        kv40: Option<f64>,
-        kv100: Option<f64>,
-    ) -> Vec<String> {
+        bulk: &mut Bulk<'_>,
+        row: &mut RowReader<'_>,
+        cells: &FluidCells,
+        summary: &mut ImportSummary,
+    ) -> Result<Option<Option<Id>>, ExchangeError> {
+        let Some(name) = &cells.name else {
+            return Ok(Some(None));
+        };
+        if let Some(f) = bulk.fluid_by_name(name).cloned() {
+            let diff = self.fluid_diff(&f, cells);
+            if !diff.is_empty() {
+                row.err(
+                    &diff[0],
+                    format!(
+                        "fluid `{name}` is already stored with other values in {}",
+                        diff.join(", ")
+                    ),
+                );
+                return Ok(None);
+            }
+            return Ok(Some(Some(f.id)));
+        }
+        let fluid = Fluid {
+            id: 0,
+            name: name.clone(),
+            iso_vg: cells.iso_vg,
+            kv40_new: cells.kv40.map(Viscosity::from_cst),
+            kv100_new: cells.kv100.map(Viscosity::from_cst),
+            acid_new_mgkoh_g: None,
+            base_type: String::new(),
+        };
+        match bulk.insert_fluid(&fluid) {
+            Ok(id) => {
+                summary.fluids_added += 1;
+                Ok(Some(Some(id)))
+            }
+            Err(e) => {
+                row_store_error(row, e, |f| f.to_string())?;
+                Ok(None)
+            }
+        }
+    }
+
+    fn fluid_diff(&self, f: &Fluid, cells: &FluidCells) -> Vec<String> {
         let mut diff = Vec::new();
-        if vg.is_some() && vg != f.iso_vg {
+        if cells.iso_vg.is_some() && cells.iso_vg != f.iso_vg {
             diff.push(self.name("fluid_vg"));
         }
-        if differs(kv40.map(columns::tidy), f.kv40_new.map(columns::cst)) {
+        if differs(cells.kv40.map(columns::tidy), f.kv40_new.map(columns::cst)) {
             diff.push(self.name("fluid_kv40"));
         }
-        if differs(kv100.map(columns::tidy), f.kv100_new.map(columns::cst)) {
+        if differs(
+            cells.kv100.map(columns::tidy),
+            f.kv100_new.map(columns::cst),
+        ) {
             diff.push(self.name("fluid_kv100"));
         }
         diff
     }
+}
+
+/// What one row says of a fluid; see [`Importer::fluid_cells`].
+pub(super) struct FluidCells {
+    pub name: Option<String>,
+    pub iso_vg: Option<u32>,
+    pub kv40: Option<f64>,
+    pub kv100: Option<f64>,
+    /// Whether the row gives any of the fluid's data (a grade or a viscosity).
+    pub has_data: bool,
 }
