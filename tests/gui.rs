@@ -1831,6 +1831,67 @@ fn setup_shows_words_not_codes_and_names_a_new_record_once_saved() {
         .filter(|l| looks_coded(l))
         .collect();
     assert!(coded.is_empty(), "codes in limit labels: {coded:?}");
+    // A ratio is not shown as a bare letter.
+    let units: Vec<String> = limits.iter().map(|l| l.unit.to_string()).collect();
+    assert!(!units.iter().any(|u| u == "x"), "{units:?}");
+    let ratio = limits
+        .iter()
+        .find(|l| l.key == "leak_conductance_ratio")
+        .unwrap();
+    assert_eq!(ratio.unit.as_str(), "× (ratio)");
+    // In a narrow window the longest description wraps onto more lines (its row grows)
+    // instead of being cut off; the shortest keeps one row's height.
+    f.app
+        .window()
+        .window()
+        .set_size(slint::LogicalSize::new(900.0, 1400.0));
+    let labels: Vec<String> = limits.iter().map(|l| l.label.to_string()).collect();
+    let longest = labels.iter().max_by_key(|l| l.chars().count()).unwrap();
+    let shortest = labels.iter().min_by_key(|l| l.chars().count()).unwrap();
+    let height = |label: &str| with_role(&f.app, label, AccessibleRole::Text).size().height;
+    assert!(
+        height(longest) > height(shortest) + 8.0,
+        "{longest:?} {} px, {shortest:?} {} px",
+        height(longest),
+        height(shortest)
+    );
+}
+
+/// Page Down skips the unit from every field of the walk-round form, the Technician and the
+/// time as well as the readings; each of them has the readings' focus ring.
+#[test]
+fn page_down_skips_the_unit_from_the_technician_and_the_time_too() {
+    let f = open_demo();
+    f.app.show(Screen::Walk);
+    let a = f.app.window().global::<WalkAdapter>();
+    assert_eq!(a.get_current(), 0);
+    // The cursor opens on Technician: what is typed goes there, and Page Down skips.
+    type_text(&f.app, "T. Tester");
+    assert_eq!(
+        field(&f.app, "Technician").accessible_value().unwrap(),
+        "T. Tester"
+    );
+    key(&f.app, Key::PageDown);
+    assert_eq!(a.get_current(), 1, "{}", message(&f.app));
+    assert!(
+        message(&f.app).starts_with("Skipped"),
+        "{}",
+        message(&f.app)
+    );
+    // The next form opens on its first reading; Shift+Tab goes back to the time, where what
+    // is typed lands, and Page Down skips from there too.
+    key(&f.app, Key::Backtab);
+    type_text(&f.app, "9");
+    assert!(
+        field(&f.app, "Taken at")
+            .accessible_value()
+            .unwrap()
+            .ends_with('9'),
+        "{:?}",
+        field(&f.app, "Taken at").accessible_value()
+    );
+    key(&f.app, Key::PageDown);
+    assert_eq!(a.get_current(), 2, "{}", message(&f.app));
 }
 
 /// The questions a file dialog was asked, and the answers it gives next (first first).
