@@ -159,6 +159,9 @@ fn a_check_written_by_another_program_is_seen_and_only_its_unit_is_evaluated() {
         )
         .unwrap();
     let after = status_is_fresh(store, when, 1, "after another program's check");
+    // A unit evaluated alone beside kept ones is not kept (writing it costs more than
+    // evaluating it again): the next status evaluates it again, and only it.
+    status_is_fresh(store, when, 1, "the same again");
     let changed = |f: &FleetStatus| f.units.iter().find(|u| u.unit_id == unit).cloned().unwrap();
     assert_ne!(
         changed(&before).health.last_check,
@@ -261,9 +264,12 @@ fn an_evaluation_kept_by_another_engine_is_never_read() {
     assert_eq!(u.state.key(), state);
 
     // The same text under this engine's name is read as it is: the key is all that guards it,
-    // which is why every input of an evaluation is in the key.
+    // which is why every input of an evaluation is in the key. (The unit evaluated alone just
+    // now was not kept, so its row still names the older engine: it is given this one's, as
+    // the other units' rows name it.)
     conn.execute(
-        "UPDATE kept_evaluations SET body = ?2 WHERE unit_id = ?1",
+        "UPDATE kept_evaluations SET body = ?2, engine = \
+         (SELECT engine FROM kept_evaluations WHERE unit_id <> ?1 LIMIT 1) WHERE unit_id = ?1",
         rusqlite::params![unit, planted.to_string()],
     )
     .unwrap();

@@ -173,8 +173,16 @@ const BATCH_CHECKS: usize = 8_000;
 /// Below this many units to evaluate, one thread does it all.
 const PARALLEL_UNITS: usize = 64;
 
+/// Fewer units than this evaluated beside kept ones are not kept, but evaluated again next
+/// time: keeping writes a transaction that SQLite copies into the shop file when the program
+/// closes it (five `fsync` calls: 4 to 15 ms measured on the benchmark machine), while
+/// evaluating a unit of 520 checks again takes about 2 ms. Units left so wait at most this
+/// many less one, and are kept with the next larger evaluation (a new day, a changed limit).
+const KEEP_FROM_UNITS: usize = 8;
+
 /// The statuses of the active units at `when` and how many had to be evaluated: kept ones that
-/// hold are read (at `Detail::Summary`), the rest evaluated and kept.
+/// hold are read (at `Detail::Summary`), the rest evaluated and kept (but see
+/// [`KEEP_FROM_UNITS`]).
 pub(crate) fn fleet_units(
     store: &Store,
     when: DateTime<Utc>,
@@ -183,17 +191,10 @@ pub(crate) fn fleet_units(
     let keeping = detail == Detail::Summary;
     // The counters first: whatever is read after them is at least as new, so an evaluation
     // kept under them is never newer than what they say.
-    let mut served: HashMap<Id, Kept> = HashMap::new();
-    let kept = if keeping {
-        store.kept_evaluations::<AppError>(engine(), when, |unit, body| {
-            // One that does not read (another shape of the program's results) is evaluated.
-            if let Ok(k) = serde_json::from_str::<Kept>(body) {
-                served.insert(unit, k);
-            }
-            Ok(())
-        })?
+    let (kept, mut served) = if keeping {
+        read_kept(store, when)?
     } else {
-        KeptRead::default()
+        (KeptRead::default(), HashMap::new())
     };
     let data = shop_data(store)?;
     let shells = store.active_unit_shells().map_err(store_error)?;
@@ -206,8 +207,9 @@ pub(crate) fn fleet_units(
         }
     }
     let evaluated = needed.len();
+    let from_kept = out.len();
     let mut fresh = evaluate_streaming(store, needed, &data, when, detail)?;
-    if keeping {
+    if keeping && (from_kept == 0 || evaluated >= KEEP_FROM_UNITS) {
         if let Some(shop_rev) = kept.shop_rev {
             let slot = u8::from(when < Utc::now() - Duration::minutes(PRESENT_WITHIN_MINUTES));
             let rows = fresh.iter_mut().filter_map(|(s, until, text)| {
@@ -227,6 +229,97 @@ pub(crate) fn fleet_units(
     }
     out.extend(fresh.into_iter().map(|(s, _, _)| s));
     Ok((out, evaluated, data))
+}
+
+/// Kept texts handed to the parsing threads this many at a time.
+const PARSE_BATCH: usize = 64;
+
+/// The counters and the kept evaluations that hold at `when`, parsed. Parsing the texts is
+/// most of the time of a status with nothing changed, so it runs on the other cores while the
+/// store reads on, a batch of texts at a time.
+fn read_kept(
+    store: &Store,
+    when: DateTime<Utc>,
+) -> Result<(KeptRead, HashMap<Id, Kept>), AppError> {
+    // One that does not read (another shape of the program's results) is evaluated.
+    let parse = |unit: Id, text: &str| serde_json::from_str::<Kept>(text).ok().map(|k| (unit, k));
+    let threads = worker_threads();
+    if threads < 2 {
+        let mut served = HashMap::new();
+        let kept = store.kept_evaluations::<AppError>(engine(), when, |unit, body| {
+            served.extend(parse(unit, body));
+            Ok(())
+        })?;
+        return Ok((kept, served));
+    }
+    let parse_batch = |batch: Vec<(Id, String)>| -> Vec<(Id, Kept)> {
+        batch
+            .into_iter()
+            .filter_map(|(unit, text)| parse(unit, &text))
+            .collect()
+    };
+    let (kept, parsed) = with_workers(threads, parse_batch, |send| {
+        let mut batch = Vec::with_capacity(PARSE_BATCH);
+        let kept = store.kept_evaluations::<AppError>(engine(), when, |unit, body| {
+            batch.push((unit, body.to_owned()));
+            if batch.len() == PARSE_BATCH {
+                let full = std::mem::replace(&mut batch, Vec::with_capacity(PARSE_BATCH));
+                // The workers take batches until this sender is gone.
+                let _ = send.send(full);
+            }
+            Ok(())
+        });
+        if !batch.is_empty() {
+            let _ = send.send(batch);
+        }
+        kept
+    });
+    Ok((kept?, parsed.into_iter().collect()))
+}
+
+/// How many threads evaluate or parse.
+fn worker_threads() -> usize {
+    std::thread::available_parallelism().map_or(1, |n| n.get().min(8))
+}
+
+/// Runs `produce` on this thread while `threads` workers apply `work` to each job it sends;
+/// gives back what `produce` returned and all the workers made. The channel holds one job
+/// waiting, so what is in memory is the jobs being worked on, the one waiting and the one
+/// being made.
+fn with_workers<J: Send, R: Send, P>(
+    threads: usize,
+    work: impl Fn(J) -> Vec<R> + Sync,
+    produce: impl FnOnce(&std::sync::mpsc::SyncSender<J>) -> P,
+) -> (P, Vec<R>) {
+    let (send, receive) = std::sync::mpsc::sync_channel::<J>(1);
+    let receive = std::sync::Mutex::new(receive);
+    let work = &work;
+    std::thread::scope(|scope| {
+        let workers: Vec<_> = (0..threads)
+            .map(|_| {
+                let receive = &receive;
+                scope.spawn(move || {
+                    let mut done = Vec::new();
+                    loop {
+                        let job = match receive.lock() {
+                            Ok(r) => r.recv(),
+                            Err(_) => break,
+                        };
+                        let Ok(job) = job else { break };
+                        done.extend(work(job));
+                    }
+                    done
+                })
+            })
+            .collect();
+        let produced = produce(&send);
+        drop(send);
+        let mut out = Vec::new();
+        for w in workers {
+            out.extend(w.join().unwrap_or_else(|e| std::panic::resume_unwind(e)));
+        }
+        (produced, out)
+    })
 }
 
 /// Until when an evaluation of `h` at `at` holds while nothing is written: the unit's next
@@ -284,7 +377,7 @@ fn evaluate_streaming(
             })
             .collect()
     };
-    let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
+    let threads = worker_threads();
     let per_unit = store.checks_per_unit_estimate().map_err(store_error)?;
     let mut batches = Batches::new(units, per_unit);
     if batches.len() < PARALLEL_UNITS || threads < 2 {
@@ -298,51 +391,20 @@ fn evaluate_streaming(
         }
         return Ok(out);
     }
-    // Room for one batch waiting: the memory in use is the batches being evaluated, the one
-    // waiting and the one being read.
-    let (send, receive) = std::sync::mpsc::sync_channel::<(Vec<UnitHistory>, NextRecords)>(1);
-    let receive = std::sync::Mutex::new(receive);
-    let eval = &eval;
-    std::thread::scope(|scope| -> Result<Vec<Evaluated>, AppError> {
-        let workers: Vec<_> = (0..threads)
-            .map(|_| {
-                let receive = &receive;
-                scope.spawn(move || {
-                    let mut done = Vec::new();
-                    loop {
-                        let job = match receive.lock() {
-                            Ok(r) => r.recv(),
-                            Err(_) => break,
-                        };
-                        let Ok((batch, next)) = job else { break };
-                        done.extend(eval(batch, next));
-                    }
-                    done
-                })
-            })
-            .collect();
-        let mut read = Ok(());
+    let work = |(batch, next): (Vec<UnitHistory>, NextRecords)| eval(batch, next);
+    let (read, out) = with_workers(threads, work, |send| {
         while let Some(mut batch) = batches.next_batch() {
-            match store.fill_histories(&mut batch, when) {
-                Ok(next) => {
-                    batches.learn(&batch);
-                    if send.send((batch, next)).is_err() {
-                        break;
-                    }
-                }
-                Err(e) => {
-                    read = Err(store_error(e));
-                    break;
-                }
+            let next = store
+                .fill_histories(&mut batch, when)
+                .map_err(store_error)?;
+            batches.learn(&batch);
+            if send.send((batch, next)).is_err() {
+                break;
             }
         }
-        drop(send);
-        let mut out = Vec::new();
-        for w in workers {
-            out.extend(w.join().unwrap_or_else(|e| std::panic::resume_unwind(e)));
-        }
-        read.map(|()| out)
-    })
+        Ok::<(), AppError>(())
+    });
+    read.map(|()| out)
 }
 
 /// The units to evaluate cut into batches of neighbouring ids, each of about
