@@ -1282,13 +1282,7 @@ fn log_check_asks_about_readings_the_last_check_had_and_goes_on_with_leave_blank
     ok(d, &["--db", "shop.sqlite", "demo"]);
     let (tag, last, zone) = {
         let shop = sumpbook::app::shop::Shop::open(&d.join("shop.sqlite")).unwrap();
-        let zone: chrono_tz::Tz = shop
-            .store_for_tests()
-            .settings()
-            .unwrap()
-            .time_zone
-            .parse()
-            .unwrap();
+        let zone = shop.zone();
         let stop = sumpbook::app::entry::route(&shop).unwrap().remove(0);
         let last = shop
             .store_for_tests()
@@ -1327,7 +1321,7 @@ fn log_check_asks_about_readings_the_last_check_had_and_goes_on_with_leave_blank
     assert!(e.contains("--oil-level"), "{e}");
     let expected = format!(
         "oil_level: Oil level is blank; the last check ({}) had {}",
-        last.taken_at.with_timezone(&zone).format("%Y-%m-%d"),
+        zone.show_date(last.taken_at),
         last.oil_level.unwrap()
     );
     assert!(e.contains(&expected), "{e}");

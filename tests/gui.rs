@@ -157,18 +157,9 @@ fn a_walk_round_check_typed_from_the_keyboard_is_stored() {
         "T. Tester"
     );
     let now = demo_now().unwrap();
-    let zone: chrono_tz::Tz = shop(&f.path)
-        .store_for_tests()
-        .settings()
-        .unwrap()
-        .time_zone
-        .parse()
-        .unwrap();
     assert_eq!(
         field(&f.app, "Taken at").accessible_value().unwrap(),
-        now.with_timezone(&zone)
-            .format("%Y-%m-%d %H:%M")
-            .to_string()
+        shop(&f.path).zone().show(now)
     );
     key(&f.app, Key::Tab);
     key(&f.app, Key::Tab);
