@@ -36,7 +36,8 @@ use fluid::sample_points;
 pub use heat::HeatLoad;
 use hours::{equiv_hours_per_day, equivalent_over, hour_readings};
 pub(crate) use hours::{hours_at, hours_per_day};
-pub use steps::{confirmed_level, loss_against, step_at, sudden_loss, Stroke};
+pub use steps::{confirmed_level, step_at, sudden_loss};
+use steps::{loss_against, Stroke};
 use summary::summarise;
 pub use tiles::{series, tiles, trend, Dim, Direction, Forecast, Series, SeriesPoint, Tile, Trend};
 
@@ -653,7 +654,7 @@ pub fn compute(
     let watch_pct = limits.get(LimitKey::LostFlowPct).watch;
     let warmer = limits.get(LimitKey::HeatRiseDriftK).watch.unwrap_or(5.0);
     let corrected_sudden = leak_resolved == Some(true);
-    let sudden_d = fit_judged.map(|f| f.displacement).or(rated.map(|r| r.si()));
+    let sudden_d = displacement_of(fit_judged, rated.map(|r| r.si()), leak_margin);
     let mut strokes: Vec<(DateTime<Utc>, Stroke)> = Vec::new();
     for p in points.iter_mut() {
         let Some(q) = p.effective_flow else { continue };
