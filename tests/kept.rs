@@ -250,10 +250,11 @@ fn an_evaluation_kept_by_another_engine_is_never_read() {
             |r| r.get(0),
         )
         .unwrap();
+    // The kept form names the unit's state `s` (`app::kept`).
     let mut planted: serde_json::Value = serde_json::from_str(&body).unwrap();
-    let state = planted["state"].as_str().unwrap().to_string();
+    let state = planted["s"].as_str().unwrap().to_string();
     let other_state = if state == "act" { "steady" } else { "act" };
-    planted["state"] = other_state.into();
+    planted["s"] = other_state.into();
     conn.execute(
         "UPDATE kept_evaluations SET engine = 'an older engine', body = ?2 WHERE unit_id = ?1",
         rusqlite::params![unit, planted.to_string()],

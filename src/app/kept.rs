@@ -10,26 +10,27 @@
 //! work counts days) and when the first hour-meter reading of the year leaves the year (the
 //! cost of waiting). What is kept is a unit's summary only (`UnitStatus::summary`: what the
 //! board, `status`, the due list and the walk-round read), less what the unit's own row gives
-//! afresh; a unit page or report evaluates its unit in full. No health rule lives here; the
+//! afresh, in a lean form of its own (`form`); a unit page or report evaluates its unit in full. No health rule lives here; the
 //! engine stays `health::evaluate`.
 
 use std::collections::HashMap;
 use std::sync::LazyLock;
 
 use chrono::{DateTime, Duration, Utc};
-use serde::{Deserialize, Serialize};
 
 use super::status::{shop_data, store_error, unit_status, Detail, ShopData, UnitStatus};
-use super::waiting_cost::{run_hours_hold_until, WaitingCost};
+use super::waiting_cost::run_hours_hold_until;
 use super::AppError;
 
-use crate::health::{Flag, Indicators, NotJudged, State, SuspectReading, UnitHealth, WorkItem};
 use crate::model::{Id, UnitHistory};
 use crate::store::{KeptEvaluation, KeptRead, NextRecords, Store};
 
-/// Raised by hand when the engine's rules change in a way the program's build would not show
-/// (it is part of [`engine`], beside the build's own identity).
-const RULES_EDITION: u32 = 2;
+mod form;
+use form::Kept;
+
+/// Raised by hand when the engine's rules or the kept form (`form`) change in a way the
+/// program's build would not show (it is part of [`engine`], beside the build's own identity).
+const RULES_EDITION: u32 = 3;
 
 /// The engine that computes an evaluation: the rules' edition, the program's version and the
 /// identity of the running program file (its size and time of change), so that any other
@@ -66,98 +67,10 @@ pub fn engine() -> &'static str {
     &ENGINE
 }
 
-/// What is kept of a unit's summary (`UnitStatus::summary`): all of it but what the unit's own
-/// row gives afresh at every read (tag, machine, route order), what follows from the rest (the
-/// next work, the instant judged) and what a summary leaves out. Written from borrowed parts.
-#[derive(Serialize)]
-struct KeptRef<'a> {
-    state: State,
-    fluid: &'a Option<String>,
-    indicators: &'a Indicators,
-    flags: &'a [Flag],
-    work: &'a [WorkItem],
-    last_check: Option<DateTime<Utc>>,
-    last_sample: Option<DateTime<Utc>>,
-    not_judged: &'a [NotJudged],
-    suspects: &'a [SuspectReading],
-    waiting_cost: &'a Option<WaitingCost>,
-}
-
-/// [`KeptRef`] as read back.
-#[derive(Deserialize)]
-struct Kept {
-    state: State,
-    fluid: Option<String>,
-    indicators: Indicators,
-    flags: Vec<Flag>,
-    work: Vec<WorkItem>,
-    last_check: Option<DateTime<Utc>>,
-    last_sample: Option<DateTime<Utc>>,
-    not_judged: Vec<NotJudged>,
-    suspects: Vec<SuspectReading>,
-    waiting_cost: Option<WaitingCost>,
-}
-
-impl<'a> KeptRef<'a> {
-    fn of(s: &'a UnitStatus) -> KeptRef<'a> {
-        let h = &s.health;
-        KeptRef {
-            state: s.state,
-            fluid: &s.fluid,
-            indicators: &h.indicators,
-            flags: &h.flags,
-            work: &h.work,
-            last_check: h.last_check,
-            last_sample: h.last_sample,
-            not_judged: &h.not_judged,
-            suspects: &h.suspects,
-            waiting_cost: &s.waiting_cost,
-        }
-    }
-}
-
-impl Kept {
-    /// The summary of `shell`'s unit judged at `at` that this kept form holds.
-    fn status(self, shell: &UnitHistory, at: DateTime<Utc>) -> UnitStatus {
-        let health = UnitHealth {
-            at,
-            state: self.state,
-            eras: Vec::new(),
-            fluid: None,
-            baseline: Default::default(),
-            indicators: self.indicators,
-            flags: self.flags,
-            work: self.work,
-            tiles: Vec::new(),
-            series: Vec::new(),
-            checks: Vec::new(),
-            samples: Vec::new(),
-            last_check: self.last_check,
-            last_sample: self.last_sample,
-            not_judged: self.not_judged,
-            restarts: Vec::new(),
-            suspects: self.suspects,
-        };
-        UnitStatus {
-            unit_id: shell.unit.id,
-            unit: shell.unit.tag.clone(),
-            machine: shell.machine.tag.clone(),
-            machine_name: shell.machine.name.clone(),
-            machine_kind: shell.machine.kind.clone(),
-            route_order: shell.unit.route_order,
-            state: self.state,
-            fluid: self.fluid,
-            next_due: health.work.iter().min_by_key(|w| w.due).cloned(),
-            health,
-            waiting_cost: self.waiting_cost,
-        }
-    }
-}
-
 /// The kept text of a unit's summary `s` (of `shell`'s unit), when it reads back exactly as
 /// `s` is: a figure JSON cannot carry, such as a NaN, would not, and is then not kept.
 fn kept_text(shell: &UnitHistory, s: &UnitStatus) -> Option<String> {
-    let text = serde_json::to_string(&KeptRef::of(s)).ok()?;
+    let text = serde_json::to_string(&Kept::of(s)).ok()?;
     let back: Kept = serde_json::from_str(&text).ok()?;
     (back.status(shell, s.health.at) == *s).then_some(text)
 }

@@ -106,11 +106,7 @@ pub(super) fn new_flag(
     state_since: DateTime<Utc>,
     message: String,
 ) -> Flag {
-    // Every message is written "what drifted, by how much: what to check first."
-    let (what, next_step) = match message.split_once(": ") {
-        Some((w, n)) => (w.to_string(), n.trim_end_matches('.').to_string()),
-        None => (message.clone(), String::new()),
-    };
+    let (what, next_step) = message_parts(&message);
     Flag {
         kind,
         state: g.state,

@@ -119,6 +119,15 @@ pub struct Flag {
     pub restarted: Option<Restart>,
 }
 
+/// A flag's message in its two parts, `what` and `next_step`: every message is written "what
+/// drifted, by how much: what to check first."
+pub fn message_parts(message: &str) -> (String, String) {
+    match message.split_once(": ") {
+        Some((w, n)) => (w.to_string(), n.trim_end_matches('.').to_string()),
+        None => (message.to_string(), String::new()),
+    }
+}
+
 /// A flag's figure: the judged value, the limit it reached and the baseline it is measured
 /// from, all in `dim` (SI for physical dimensions, as `Tile`).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
