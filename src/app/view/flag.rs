@@ -46,18 +46,24 @@ pub fn flag_view(f: &Flag, sys: UnitSystem, zone: Zone) -> FlagView {
         message: f.message.clone(),
         figure: figures::flag_figure(f, sys),
         since: f.since,
-        seen: match &f.acknowledgement {
-            Some(a) if f.acknowledged => Some(format!(
-                "seen by {} on {}{}",
-                a.by,
-                zone.show_date(a.at),
-                if a.note.trim().is_empty() {
-                    String::new()
-                } else {
-                    format!(": {}", a.note.trim())
-                }
-            )),
-            _ => None,
-        },
+        seen: seen_text(f, zone),
+    }
+}
+
+/// Who has seen flag `f`, when and with what note, once it is acknowledged: `seen by A.
+/// Person on 2026-03-02: note`.
+pub fn seen_text(f: &Flag, zone: Zone) -> Option<String> {
+    match &f.acknowledgement {
+        Some(a) if f.acknowledged => Some(format!(
+            "seen by {} on {}{}",
+            a.by,
+            zone.show_date(a.at),
+            if a.note.trim().is_empty() {
+                String::new()
+            } else {
+                format!(": {}", a.note.trim())
+            }
+        )),
+        _ => None,
     }
 }

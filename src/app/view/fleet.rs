@@ -8,7 +8,7 @@ use super::words::{due_words, state_mark, state_word, StateMark};
 use crate::app::figures;
 use crate::app::status::UnitStatus;
 use crate::health::indicators::Dim;
-use crate::health::State;
+use crate::health::{State, WorkItem};
 use crate::units::{UnitSystem, Viscosity};
 
 /// One key figure of a unit: its number in the display unit (for sorting and for tests that
@@ -139,6 +139,17 @@ pub struct DueView {
     pub text: String,
 }
 
+/// A unit's next planned work `w` as the fleet's lines show it.
+pub fn due_view(w: &WorkItem) -> DueView {
+    DueView {
+        task: w.kind.label(),
+        due: w.due,
+        days_overdue: w.days_overdue,
+        overdue: w.days_overdue > 0,
+        text: format!("{} {}", w.kind.label(), due_words(w.days_overdue)),
+    }
+}
+
 /// One unit's line on the fleet board, in `status` and on the report's fleet page.
 #[derive(Clone, Debug, PartialEq)]
 pub struct FleetLine {
@@ -209,13 +220,7 @@ pub fn fleet_line(u: &UnitStatus, sys: UnitSystem) -> FleetLine {
         key,
         board,
         figures,
-        next_due: u.next_due.as_ref().map(|w| DueView {
-            task: w.kind.label(),
-            due: w.due,
-            days_overdue: w.days_overdue,
-            overdue: w.days_overdue > 0,
-            text: format!("{} {}", w.kind.label(), due_words(w.days_overdue)),
-        }),
+        next_due: u.next_due.as_ref().map(due_view),
         all_seen: !u.health.flags.is_empty() && u.health.flags.iter().all(|f| f.acknowledged),
     }
 }

@@ -40,15 +40,22 @@ fn state_word(s: State) -> &'static str {
     crate::app::view::state_word_plain(s)
 }
 
+/// What a table shows for no value.
+const DASH: &str = "—";
+
 fn dash() -> String {
-    "—".into()
+    DASH.into()
 }
 
 fn pad(s: &str, w: usize) -> String {
+    let mut out = String::with_capacity(s.len() + w);
+    push_pad(&mut out, s, w);
+    out
+}
+
+/// `s` added to `line` as a column `w` characters wide, with at least one space after it.
+fn push_pad(line: &mut String, s: &str, w: usize) {
+    line.push_str(s);
     let n = s.chars().count();
-    if n >= w {
-        format!("{s} ")
-    } else {
-        format!("{s}{}", " ".repeat(w - n))
-    }
+    line.extend(std::iter::repeat_n(' ', w.saturating_sub(n).max(1)));
 }

@@ -60,15 +60,19 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus, zone: Zone) -> Result<(), F
         .map(|(h, w)| if *w == 0 { h.to_string() } else { pad(h, *w) })
         .collect();
     writeln!(out, "{}", header.trim_end())?;
+    // The cells the board shows (`view::key_figures`, `view::due_view`), written into one
+    // line kept between units: the table is most of what a status with everything kept does.
+    let mut line = String::new();
     for u in &f.units {
-        let l = view::fleet_line(u, sys);
-        let k = &l.key;
-        let cell =
-            |f: &Option<view::KeyFigure>| f.as_ref().map(|f| f.cell.clone()).unwrap_or_else(dash);
+        let k = view::key_figures(u, sys);
+        let due = u.next_due.as_ref().map(|w| view::due_view(w).text);
+        fn cell(f: &Option<view::KeyFigure>) -> Option<&str> {
+            f.as_ref().map(|f| f.cell.as_str())
+        }
         let cells = [
-            l.tag.clone(),
-            l.machine.clone(),
-            state_word(l.state).to_string(),
+            Some(u.unit.as_str()),
+            Some(u.machine.as_str()),
+            Some(state_word(u.state)),
             cell(&k.lost_flow),
             cell(&k.leak),
             cell(&k.heat_rise),
@@ -76,13 +80,17 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus, zone: Zone) -> Result<(), F
             cell(&k.iso4406),
             cell(&k.water),
             cell(&k.oil_life),
-            l.next_due.map(|d| d.text).unwrap_or_else(dash),
+            due.as_deref(),
         ];
-        let line: String = cells
-            .iter()
-            .zip(cols.iter())
-            .map(|(c, (_, w))| if *w == 0 { c.clone() } else { pad(c, *w) })
-            .collect();
+        line.clear();
+        for (c, (_, w)) in cells.iter().zip(cols.iter()) {
+            let c = c.unwrap_or(DASH);
+            if *w == 0 {
+                line.push_str(c);
+            } else {
+                push_pad(&mut line, c, *w);
+            }
+        }
         writeln!(out, "{}", line.trim_end())?;
     }
     let flagged: Vec<&UnitStatus> = f
@@ -188,17 +196,19 @@ fn flag_line(
     sys: UnitSystem,
     zone: Zone,
 ) -> Result<(), Failure> {
-    let v = view::flag_view(f, sys, zone);
-    let seen = v.seen.map(|s| format!("  [{s}]")).unwrap_or_default();
+    // The parts of `view::flag_view` this line shows, without copying the rest.
+    let seen = view::seen_text(f, zone)
+        .map(|s| format!("  [{s}]"))
+        .unwrap_or_default();
     writeln!(
         out,
         "  {}{}{}since {}  {}. {}{}",
         pad(unit, 10),
-        pad(state_word(v.state), 7),
-        pad(v.kind_key, 17),
-        v.since,
-        v.figure,
-        v.message,
+        pad(state_word(f.state), 7),
+        pad(f.kind.as_str(), 17),
+        f.since,
+        crate::app::figures::flag_figure(f, sys),
+        f.message,
         seen
     )?;
     Ok(())
