@@ -20,6 +20,7 @@ use crate::physics::viscosity::Walther;
 use crate::units::UnitSystem;
 
 mod rules;
+pub mod slips;
 
 pub use rules::sample;
 use rules::SampleScreen;
@@ -74,6 +75,19 @@ pub const RUN_GROSS: f64 = 1.5;
 /// questioned — further than a lab's scatter and a sample interval's oxidation take it, short
 /// of a slip.
 pub const FLOOR_ACID_LN: f64 = 0.2;
+/// A reading shaped like a typing slip (`slips`: two figures swapped, the decimal point one
+/// place off) is questioned nearer its history than `SIGMAS`: beyond this many robust σ of it
+/// (Hampel's usual limit of 3, the papers above), where undoing the slip lands within
+/// `RUN_SIGMAS` of the median. A real change of that size would have to fall, by chance, on
+/// the swapped digits of an ordinary reading. Applied to the acid number, which moves slowly
+/// between samples. Not to water: a real ingress often reads like that (410 ppm over a usual
+/// 140), so holding it would cost the detection a sample later.
+pub const SHAPE_SIGMAS: f64 = 3.0;
+/// The acid numbers' robust σ for the slip-shape rule is floored here, half of
+/// `FLOOR_ACID_LN`: the floor there sets how far a lone reading may go before it is questioned
+/// at all; here undoing the slip must also land close to the usual reading (common practice,
+/// no published source).
+pub const FLOOR_ACID_SHAPE_LN: f64 = 0.1;
 /// A working pressure more than this fraction above the relief setting cannot be held by the
 /// circuit (gauge tolerance; the entry form's own margin).
 pub const OVER_RELIEF: f64 = 0.10;
@@ -183,6 +197,11 @@ struct Pending {
     side: f64,
     /// The robust σ of the history it was judged against.
     sigma: f64,
+    /// Questioned for its slip shape (`SHAPE_SIGMAS`) rather than as beyond `SIGMAS`.
+    shape: bool,
+    /// A next reading that agreed with it but itself looked like a slipped decimal point has
+    /// been counted: one more agreeing reading confirms the run.
+    deferred: bool,
 }
 
 impl Pending {
@@ -302,33 +321,45 @@ fn screen_checks(
         let person = confirmed_check(c);
         // The next reading of a waiting field: does it confirm it?
         let mut agrees: Vec<Field> = Vec::new();
-        waiting.retain(|w| {
+        let mut confirmed_now: Vec<usize> = Vec::new();
+        let mut deferred: Vec<Field> = Vec::new();
+        waiting.retain_mut(|w| {
             let Some(x) = hist_value(c, w.field) else {
                 return true; // not read this time: still waiting
             };
             let again = found.iter().any(|s| s.field == w.field);
             let hist = recent(w.field, &st.accepted[idx(w.field)]);
-            if w.confirmed_by(x, again, hist, floor(w.field)) {
-                out[w.at].confirmed = Some(ConfirmedBy::NextReading { at: c.taken_at });
+            if !w.confirmed_by(x, again, hist, floor(w.field)) {
+                return false;
+            }
+            // A reading that itself looks like a slipped decimal point confirms nothing on
+            // its own: two such slips in a row agree with each other as a real step does.
+            // A third agreeing reading confirms the run.
+            if again && !w.deferred && decimal_shaped(w.field, x, hist) {
+                w.deferred = true;
+                deferred.push(w.field);
+                return true;
+            }
+            out[w.at].confirmed = Some(ConfirmedBy::NextReading { at: c.taken_at });
+            confirmed_now.push(w.at);
+            if !agrees.contains(&w.field) {
                 agrees.push(w.field);
             }
             false
         });
         // A waiting reading now confirmed joins the history before this one is taken in.
-        for f in &agrees {
-            if let Some(r) = out
+        confirmed_now.sort_unstable();
+        for at in confirmed_now {
+            let (f, id) = (out[at].field, out[at].id);
+            if let Some(v) = checks
                 .iter()
-                .rev()
-                .find(|r| r.record == Record::Check && r.field == *f && r.confirmed.is_some())
+                .find(|k| k.id == id)
+                .and_then(|k| hist_value(k, f))
             {
-                if let Some(prev) = checks.iter().find(|k| k.id == r.id) {
-                    if let Some(v) = hist_value(prev, *f) {
-                        let i = idx(*f);
-                        let hist = recent(*f, &st.accepted[i]);
-                        st.stepped[i] = outside(v, hist);
-                        st.accepted[i].push(v);
-                    }
-                }
+                let i = idx(f);
+                let hist = recent(f, &st.accepted[i]);
+                st.stepped[i] = outside(v, hist);
+                st.accepted[i].push(v);
             }
         }
         let mut held: Vec<Field> = Vec::new();
@@ -350,6 +381,8 @@ fn screen_checks(
                     value: x,
                     side: outside(x, hist).unwrap_or(0.0),
                     sigma: hist.map(|h| h.1).unwrap_or(0.0),
+                    shape: false,
+                    deferred: deferred.contains(&s.field),
                 });
             }
             out.push(SuspectReading {
@@ -428,6 +461,18 @@ fn screen_samples(
             let Some(x) = sample_hist_value(s, w.field) else {
                 return true; // not measured this time: still waiting
             };
+            if w.shape {
+                // Questioned for its shape: a next sample beyond `SHAPE_SIGMAS` on the same
+                // side and close to it shows the level has moved.
+                let moved = st
+                    .recent_for_shape(w.field)
+                    .is_some_and(|(m, sd)| (x - m) * w.side > SHAPE_SIGMAS * sd);
+                if moved && (x - w.value).abs() <= SIGMAS * w.sigma {
+                    out[w.at].confirmed = Some(ConfirmedBy::NextReading { at: s.sampled_at });
+                    agrees.push((w.field, w.value));
+                }
+                return false;
+            }
             if w.confirmed_by(x, again, st.recent(w.field), 0.0) {
                 out[w.at].confirmed = Some(ConfirmedBy::NextReading { at: s.sampled_at });
                 agrees.push((w.field, w.value));
@@ -448,14 +493,24 @@ fn screen_samples(
             if confirmed.is_none() {
                 held.push(f.field);
                 let x = sample_hist_value(s, f.field);
-                let hist = st.recent(f.field);
-                let side = x.and_then(|x| outside(x, hist)).unwrap_or(0.0);
+                let mut hist = st.recent(f.field);
+                let mut side = x.and_then(|x| outside(x, hist)).unwrap_or(0.0);
+                let shape = side == 0.0 && x.is_some_and(|x| st.slip_shaped(f.field, x).is_some());
+                if shape {
+                    hist = st.recent_for_shape(f.field);
+                    side = match (x, hist) {
+                        (Some(x), Some((m, _))) => (x - m).signum(),
+                        _ => 0.0,
+                    };
+                }
                 waiting.push(Pending {
                     at: out.len(),
                     field: f.field,
                     value: x.unwrap_or(f64::NAN),
                     side,
                     sigma: hist.map(|h| h.1).unwrap_or(0.0),
+                    shape,
+                    deferred: false,
                 });
             }
             out.push(SuspectReading {

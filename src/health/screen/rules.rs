@@ -86,6 +86,17 @@ pub(super) fn outside(x: f64, hist: Option<(f64, f64)>) -> Option<f64> {
     ((x - m).abs() > SIGMAS * s).then(|| (x - m).signum())
 }
 
+/// Whether a reading of a field judged on its logarithm (`hist_value`) looks like a slipped
+/// decimal point against its history: a tenth or ten times it lies within `RUN_SIGMAS` of the
+/// median. A factor of ten is the same slip in any unit, so no figure is written out here.
+pub(super) fn decimal_shaped(f: Field, x: f64, hist: Option<(f64, f64)>) -> bool {
+    let Some((m, s)) = hist else { return false };
+    on_log(f)
+        && [x - std::f64::consts::LN_10, x + std::f64::consts::LN_10]
+            .iter()
+            .any(|c| (c - m).abs() <= RUN_SIGMAS * s)
+}
+
 /// The state of the screen of one unit's checks, reading by reading in time order.
 #[derive(Default)]
 pub(super) struct CheckScreen {
@@ -361,6 +372,18 @@ impl SampleScreen {
         Some((m, s.max(FLOOR_ACID_LN)))
     }
 
+    /// Median and robust σ of the same values for the slip-shape rule, the σ floored at
+    /// `FLOOR_ACID_SHAPE_LN`.
+    pub(super) fn recent_for_shape(&self, f: Field) -> Option<(f64, f64)> {
+        let acc = &self.accepted[sample_idx(f)?];
+        if acc.len() < MIN_ACID_HISTORY {
+            return None;
+        }
+        let last = &acc[acc.len().saturating_sub(WINDOW)..];
+        let (m, s) = stats::median_and_mad_sigma(last)?;
+        Some((m, s.max(FLOOR_ACID_SHAPE_LN)))
+    }
+
     pub(super) fn push(&mut self, f: Field, v: f64) {
         if let Some(i) = sample_idx(f) {
             self.accepted[i].push(v);
@@ -384,6 +407,22 @@ impl SampleScreen {
                 continue;
             };
             let Some(side) = outside(x, Some((m, sigma))) else {
+                if let Some(meant) = self.slip_shaped(f, x) {
+                    out.push(Suspicion {
+                        field: f,
+                        reason: format!(
+                            "An acid number of {} mg KOH/g reads like {} {} (the unit's recent samples: \
+                             median {} mg KOH/g): is it right?",
+                            crate::health::text::num(x.exp(), 3),
+                            crate::health::text::num(meant.0, 3),
+                            match meant.1 {
+                                slips::Slip::Swapped => "with two figures swapped",
+                                slips::Slip::Decimal => "with the decimal point one place off",
+                            },
+                            crate::health::text::num(m.exp(), 2),
+                        ),
+                    });
+                }
                 continue;
             };
             let (now, usual) = (x.exp(), m.exp());
@@ -401,6 +440,22 @@ impl SampleScreen {
             });
         }
         out
+    }
+
+    /// The figure a reading of `f` (its logarithm `x`) may have been meant as, and the slip,
+    /// where it is beyond `SHAPE_SIGMAS` of the field's recent samples and undoing one typing
+    /// slip lands within `RUN_SIGMAS` of their median (the nearest such figure).
+    pub(super) fn slip_shaped(&self, f: Field, x: f64) -> Option<(f64, slips::Slip)> {
+        let (m, s) = self.recent_for_shape(f)?;
+        if (x - m).abs() <= SHAPE_SIGMAS * s {
+            return None;
+        }
+        slips::undone(x.exp())
+            .into_iter()
+            .map(|(v, slip)| ((v.ln() - m).abs(), v, slip))
+            .filter(|(d, _, _)| *d <= RUN_SIGMAS * s)
+            .min_by(|a, b| a.0.total_cmp(&b.0))
+            .map(|(_, v, slip)| (v, slip))
     }
 
     /// Takes a sample's acid number into the history, unless it is held as suspect.

@@ -277,3 +277,89 @@ fn a_real_rise_in_the_acid_number_is_confirmed_by_the_next_sample_and_a_fluid_ch
         vec![(Field::Acid, false)]
     );
 }
+
+#[test]
+fn an_acid_number_with_two_figures_swapped_is_questioned_until_the_next_sample_shows_a_real_rise() {
+    // 0.43, 0.40, 0.46, 0.44, then 0.74 (0.47 with the 4 and 7 swapped). Hampel's limit on
+    // the logarithm: median ln 0.435, σ floored at 0.2, 5σ = 1.0, and ln(0.74 / 0.435) = 0.53
+    // is inside it. The shape rule's σ floor is 0.1 (the MAD of the four, 0.02 in ln terms
+    // about 0.046 · 1.4826 = 0.068, is below it): 0.53 is beyond 3σ = 0.3, and 0.47 lies
+    // ln(0.47 / 0.435) = 0.077 from the median, within 2σ = 0.2 (by hand).
+    let h = sampled(&[100.0; 6], &[0.43, 0.40, 0.46, 0.44, 0.74, 0.45], None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 5), vec![(Field::Acid, false)], "{s:?}");
+    assert!(
+        s[0].reason
+            .contains("reads like 0.47 with two figures swapped"),
+        "{}",
+        s[0].reason
+    );
+    assert!(fields(&s, 6).is_empty());
+    assert_eq!(without_unconfirmed(&h, &s).samples[4].acid_mgkoh_g, None);
+    // What the sample form asks of it with the four before it stored.
+    let mut before = h.clone();
+    let new = before.samples.remove(4);
+    before.samples.truncate(4);
+    let asked = sample_in(&before, &new, UnitSystem::Metric);
+    assert_eq!(asked.len(), 1);
+    assert_eq!(asked[0].field, Field::Acid);
+    // A real rise: 0.74, then 0.78 (beyond 3σ on the same side, within 5σ of 0.74):
+    // confirmed, and the second counts too.
+    let h = sampled(&[100.0; 6], &[0.43, 0.40, 0.46, 0.44, 0.74, 0.78], None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 5), vec![(Field::Acid, true)], "{s:?}");
+    assert!(without_unconfirmed(&h, &s) == h);
+    // A rise of the same size that no single slip explains (0.66: swapped it reads the
+    // same; 6.6 and 0.066 are far) is no question.
+    let h = sampled(&[100.0; 5], &[0.43, 0.40, 0.46, 0.44, 0.66], None);
+    assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
+    // Water keeps to its frame: 710 ppm over a usual 170 reads like 170 swapped, but a
+    // real ingress reads like that as often.
+    let h = sampled(&[160.0, 175.0, 170.0, 710.0], &[0.4; 4], None);
+    assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
+}
+
+/// Eight ordinary weeks as `steady_weeks`, with a case drain of 2.2 to 2.6 L/min, then
+/// checks with the case drains `after`.
+fn case_drains(after: &[f64]) -> UnitHistory {
+    let mut h = steady_weeks();
+    for (i, c) in h.checks.iter_mut().enumerate() {
+        c.case_drain = Some(crate::units::Flow::from_lpm(2.2 + 0.05 * (i % 5) as f64));
+    }
+    for (i, q) in after.iter().enumerate() {
+        let mut c = timed(9 + i as Id, 8 + i as i64, 4.0, 45.0, 20.0);
+        c.pressure = Some(Pressure::from_bar(90.0));
+        c.case_drain = Some(crate::units::Flow::from_lpm(*q));
+        h.checks.push(c);
+    }
+    h
+}
+
+#[test]
+fn two_slipped_decimal_points_in_a_row_do_not_confirm_each_other() {
+    // 22 and 26 L/min over a usual 2.3 (2.2 and 2.6 with the decimal point slipped), then
+    // 2.5: the second agrees with the first, as a real step would, but is itself a tenth
+    // away from the usual reading (ln 2.6 within 2σ of ln 2.3, σ floored at 0.2), so it
+    // confirms nothing; the normal third leaves both unconfirmed.
+    let h = case_drains(&[22.0, 26.0, 2.5]);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 9), vec![(Field::CaseDrain, false)], "{s:?}");
+    assert_eq!(fields(&s, 10), vec![(Field::CaseDrain, false)], "{s:?}");
+    assert!(fields(&s, 11).is_empty());
+    let m = without_unconfirmed(&h, &s);
+    assert_eq!(
+        (m.checks[8].case_drain, m.checks[9].case_drain),
+        (None, None)
+    );
+    // A real step of that size: a third agreeing reading confirms the run of three.
+    let h = case_drains(&[22.0, 26.0, 24.0, 25.0]);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 9), vec![(Field::CaseDrain, true)], "{s:?}");
+    assert_eq!(fields(&s, 10), vec![(Field::CaseDrain, true)], "{s:?}");
+    assert!(without_unconfirmed(&h, &s) == h, "{s:?}");
+    // A step that is no factor of ten (2.3 → 9 → 9.5) is confirmed by the next check as
+    // before.
+    let h = case_drains(&[9.0, 9.5]);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 9), vec![(Field::CaseDrain, true)], "{s:?}");
+}
