@@ -251,7 +251,10 @@ fn flags_of(json: &serde_json::Value) -> HashMap<String, WeekFlags> {
                     wf.level = ACT;
                     wf.act_kinds.push(kind.to_string());
                 }
-                Some("watch") => wf.level = wf.level.max(WATCH),
+                Some("watch") => {
+                    wf.level = wf.level.max(WATCH);
+                    wf.watch_kinds.push(kind.to_string());
+                }
                 _ => {}
             }
         }

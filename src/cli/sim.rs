@@ -220,7 +220,7 @@ pub fn print_report(r: &SimReport, out: &mut dyn Write) -> std::io::Result<()> {
             f.slip_acts.to_string(),
         ),
         (
-            "flag gone after the repair, in checks".into(),
+            "the fault's flags gone after the repair, in checks".into(),
             clear_text(&e.checks_to_clear),
             clear_text(&f.checks_to_clear),
         ),
@@ -228,6 +228,11 @@ pub fn print_report(r: &SimReport, out: &mut dyn Write) -> std::io::Result<()> {
             "act gone after the repair, in checks".into(),
             clear_text(&e.checks_to_clear_act),
             clear_text(&f.checks_to_clear_act),
+        ),
+        (
+            "any flag of the unit gone after the repair".into(),
+            clear_text(&e.checks_to_clear_any),
+            clear_text(&f.checks_to_clear_any),
         ),
     ];
     let w0 = 52;

@@ -47,6 +47,31 @@ impl FaultKind {
         }
     }
 
+    /// Whether a flag of `flag_kind` (the engine's flag kinds in `status --json`, and the
+    /// fixed rule's) is one this fault can raise: the signals it moves in the simulation. A
+    /// fault of the pump, relief valve or cooler moves what the walk-round reads (flow, case
+    /// drain, heat, the oil temperature and their drifts); a fluid fault moves its own sample
+    /// figure (the filter's indicator too for dirt). After a repair only these flags have had
+    /// their cause removed.
+    pub fn raises(self, flag_kind: &str) -> bool {
+        match self {
+            FaultKind::PumpWear | FaultKind::ReliefBypass | FaultKind::CoolerFouling => matches!(
+                flag_kind,
+                "lost_flow"
+                    | "leak_conductance"
+                    | "case_drain"
+                    | "heat_rise"
+                    | "reservoir_temp"
+                    | "drift"
+                    | "stroke_time"
+                    | "oil_temp"
+            ),
+            FaultKind::WaterIngress => flag_kind == "water",
+            FaultKind::ParticleIngress => matches!(flag_kind, "cleanliness" | "filter"),
+            FaultKind::ViscosityLoss => matches!(flag_kind, "viscosity" | "kv40"),
+        }
+    }
+
     /// Whether the fault appears at once (a step) rather than developing over weeks.
     pub fn is_step(self) -> bool {
         self == FaultKind::ReliefBypass
