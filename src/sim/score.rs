@@ -4,8 +4,9 @@
 //! A timeline holds, for every unit and every week, the unit's flag level (none, watch, act) and
 //! the kinds of flag raised. From it: flag episodes (runs of consecutive weeks at watch or
 //! worse, or at act) on healthy units, per 100 healthy unit-years, their length, and the share
-//! of healthy unit-weeks at each level; per planted fault whether act was reached between onset
-//! and repair and how many weeks after the week its noise-free signal reached the act limit;
+//! of healthy unit-weeks at each level; per planted fault whether a flag it can raise
+//! (`FaultKind::raises`) reached act between onset and repair and how many weeks after the week
+//! its noise-free signal reached the act limit;
 //! act episodes that start in the week of a mistyped reading or the week after (before a
 //! further check could confirm it); and how many checks a flag outlives a repair.
 //!
@@ -334,7 +335,10 @@ pub fn score(
         }
         if let Some(ft) = &f.truth.fault {
             let end = ft.repair_week.unwrap_or(weeks).min(weeks);
-            let first_at = |lvl: u8| (ft.onset_week..end).find(|&w| levels[w] >= lvl);
+            // Found by a flag the fault can raise: a stroke-time act in a hot summer does not
+            // find a dirt ingress, nor an acid slip a worn pump.
+            let own: Vec<u8> = tl.iter().map(|w| w.level_for(ft.kind)).collect();
+            let first_at = |lvl: u8| (ft.onset_week..end).find(|&w| own[w] >= lvl);
             let act = first_at(ACT);
             let watch = first_at(WATCH);
             let d = ft.detectable_week as i64;
@@ -353,7 +357,6 @@ pub fn score(
                 }),
             });
             if let Some(r) = ft.repair_week {
-                let own: Vec<u8> = tl.iter().map(|w| w.level_for(ft.kind)).collect();
                 let clear = |lv: &[u8], lvl: u8| {
                     (r..weeks)
                         .find(|&w| lv[w] < lvl)
@@ -726,6 +729,30 @@ mod tests {
         assert_eq!(s.checks_to_clear, vec![Some(1)]);
         assert_eq!(s.checks_to_clear_act, vec![Some(1)]);
         assert_eq!(s.checks_to_clear_any, vec![None]);
+        // A fault is found only by a flag it can raise: a dirt ingress under a summer's
+        // stroke-time act is not found by it.
+        let dirt = UnitTruth {
+            unit: "D".into(),
+            healthy: false,
+            fault: Some(Fault {
+                kind: FaultKind::ParticleIngress,
+                onset_week: 1,
+                detectable_week: 3,
+                repair_week: None,
+                repair_event: None,
+            }),
+        };
+        let truth = truth_of(vec![dirt], vec![], 6);
+        let facts = vec![UnitFacts {
+            truth: &truth.units[0],
+            checked: vec![true; 6],
+        }];
+        let mut tl: Timeline = [0, 2, 2, 0, 0, 2].map(wf).to_vec();
+        tl[1].act_kinds = vec!["stroke_time".into()];
+        tl[2].act_kinds = vec!["stroke_time".into()];
+        tl[5].act_kinds = vec!["cleanliness".into()];
+        let s = score("f", &truth, &facts, &[tl]);
+        assert_eq!(s.detections[0].act_delay, Some(2));
         assert!(FaultKind::ReliefBypass.raises("drift"));
         assert!(!FaultKind::ReliefBypass.raises("viscosity"));
         assert!(FaultKind::ViscosityLoss.raises("kv40"));
