@@ -10,7 +10,7 @@
 //! transaction-local server settings) and the change stamp. Error codes are mapped to
 //! [`StoreError`] in `errors`. It knows no table of the shop and holds no rule of it.
 
-use std::cell::RefCell;
+use std::cell::{RefCell, RefMut};
 use std::collections::HashMap;
 
 use postgres::fallible_iterator::FallibleIterator;
@@ -322,8 +322,14 @@ impl ToDb for Owned {
 }
 
 /// A connection to a PostgreSQL server, with its prepared statements kept by SQL text.
+///
+/// Round trips are what a command on a server mostly waits for (each one waits for the server
+/// process to be given a core), so a statement without parameters is sent whole with its one
+/// execution (parse, bind, execute: one round trip), and only a statement with parameters is
+/// prepared first (a second round trip, once per connection), since its parameters' types are
+/// the server's to infer from the columns they meet.
 pub(crate) struct PgConn {
-    pub client: RefCell<postgres::Client>,
+    client: RefCell<postgres::Client>,
     cache: RefCell<HashMap<String, postgres::Statement>>,
     /// A call met the loss of the connection: the next one connects again.
     lost: std::cell::Cell<bool>,
@@ -383,15 +389,23 @@ impl PgConn {
     /// the call that met the loss was told so ([`StoreError::ServerGone`]), and what it did in
     /// an open transaction was lost with it. Prepared statements belong to the old connection.
     fn reconnect_if_lost(&self) -> Result<(), StoreError> {
-        if !self.lost.get() && !self.client.borrow().is_closed() {
+        if !self.lost.get() && !self.client()?.is_closed() {
             return Ok(());
         }
         let client =
             super::server::connect(&self.url).map_err(|e| StoreError::ServerGone(e.to_string()))?;
-        *self.client.borrow_mut() = client;
+        *self.client()? = client;
         self.cache.borrow_mut().clear();
         self.lost.set(false);
         self.listen()
+    }
+
+    /// The client, unless a call still holds it: a statement sent from inside another is an
+    /// error of the caller, told as such rather than a panic.
+    fn client(&self) -> Result<RefMut<'_, postgres::Client>, StoreError> {
+        self.client.try_borrow_mut().map_err(|_| {
+            StoreError::Server("a statement was sent while another was still being answered".into())
+        })
     }
 
     /// A server error as a [`StoreError`], noting a lost connection for the next call.
@@ -405,17 +419,39 @@ impl PgConn {
 
     /// Asks the server for the change notifications of every other connection's writes.
     pub(crate) fn listen(&self) -> Result<(), StoreError> {
-        self.client
-            .borrow_mut()
+        self.client()?
             .batch_execute(&format!("LISTEN {CHANGED_CHANNEL}"))
             .map_err(|e| self.failed(e))
+    }
+
+    /// Runs `sql`, statements without parameters in the simple protocol (one round trip for
+    /// all of them), and gives back the text of each row's columns. For the opening of a
+    /// shop, which asks several things at once before it knows the schema.
+    pub(crate) fn simple_rows(&self, sql: &str) -> Result<Vec<Vec<Option<String>>>, StoreError> {
+        self.reconnect_if_lost()?;
+        let messages = self
+            .client()?
+            .simple_query(sql)
+            .map_err(|e| self.failed(e))?;
+        let mut out = Vec::new();
+        for m in messages {
+            if let postgres::SimpleQueryMessage::Row(r) = m {
+                out.push(
+                    (0..r.len())
+                        .map(|i| r.try_get(i).map(|v| v.map(str::to_string)))
+                        .collect::<Result<_, _>>()
+                        .map_err(pg_col_err)?,
+                );
+            }
+        }
+        Ok(out)
     }
 
     /// Whether a change notification has arrived since the last call (without waiting for
     /// one).
     pub(crate) fn take_notifications(&self) -> Result<bool, StoreError> {
         self.reconnect_if_lost()?;
-        let mut client = self.client.borrow_mut();
+        let mut client = self.client()?;
         // Notifications are read off the connection while it answers something: an empty
         // statement is one round trip that reads no table.
         client.batch_execute("").map_err(|e| self.failed(e))?;
@@ -435,8 +471,7 @@ impl PgConn {
             return Ok(st.clone());
         }
         let st = self
-            .client
-            .borrow_mut()
+            .client()?
             .prepare(&dollar_placeholders(sql))
             .map_err(|e| self.failed(e))?;
         self.cache.borrow_mut().insert(sql.to_string(), st.clone());
@@ -453,8 +488,7 @@ impl PgConn {
         let refs: Vec<&(dyn PgToSql + Sync)> =
             vals.iter().map(|v| v as &(dyn PgToSql + Sync)).collect();
         let n = self
-            .client
-            .borrow_mut()
+            .client()?
             .execute(&st, &refs)
             .map_err(|e| self.failed(e))?;
         Ok(usize::try_from(n).unwrap_or(usize::MAX))
@@ -465,20 +499,24 @@ impl PgConn {
         sql: &str,
         params: &[&dyn ToDb],
     ) -> Result<Vec<postgres::Row>, StoreError> {
+        if params.is_empty() {
+            // Parsed, bound and run in one round trip (see the type's comment).
+            self.reconnect_if_lost()?;
+            return self
+                .client()?
+                .query_typed(&dollar_placeholders(sql), &[])
+                .map_err(|e| self.failed(e));
+        }
         let st = self.statement(sql)?;
         let vals = Self::values(params);
         let refs: Vec<&(dyn PgToSql + Sync)> =
             vals.iter().map(|v| v as &(dyn PgToSql + Sync)).collect();
-        self.client
-            .borrow_mut()
-            .query(&st, &refs)
-            .map_err(|e| self.failed(e))
+        self.client()?.query(&st, &refs).map_err(|e| self.failed(e))
     }
 
     pub(crate) fn batch(&self, sql: &str) -> Result<(), StoreError> {
         self.reconnect_if_lost()?;
-        self.client
-            .borrow_mut()
+        self.client()?
             .batch_execute(sql)
             .map_err(|e| self.failed(e))
     }

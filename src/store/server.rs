@@ -13,7 +13,7 @@ use std::path::{Path, PathBuf};
 
 use include_dir::{include_dir, Dir};
 
-use super::db::{Db, PgConn, PG_WRITE_LOCK};
+use super::db::{Db, PgConn, CHANGED_CHANNEL, PG_WRITE_LOCK};
 use super::{Store, StoreError};
 
 static PG_MIGRATION_DIR: Dir<'static> = include_dir!("$CARGO_MANIFEST_DIR/migrations/postgres");
@@ -60,8 +60,13 @@ pub(crate) fn open(url: &str) -> Result<Store, StoreError> {
         reason: e.to_string(),
     })?;
     let conn = PgConn::new(client, url);
-    let created = migrate(&conn, &shown)?;
-    conn.listen()?;
+    let created = if up_to_date(&conn) {
+        false
+    } else {
+        let created = migrate(&conn, &shown)?;
+        conn.listen()?;
+        created
+    };
     Ok(Store {
         db: Db::Pg(Box::new(conn)),
         path: shown,
@@ -88,6 +93,36 @@ pub(crate) fn schema_version(p: &PgConn) -> Result<usize, StoreError> {
         .map_err(|e| StoreError::Corrupt(e.to_string()))?
         .unwrap_or(0);
     Ok(usize::try_from(v).unwrap_or(0))
+}
+
+/// Whether the database holds this program's shop at the schema version this program knows,
+/// asked in one round trip that also starts listening for changes ([`PgConn::listen`]): what
+/// opens a shop on every command. It holds only where [`found_version`] would find the same
+/// (both marker tables in the current schema and readable, the application's mark, the
+/// version); anything else (an empty database, another program's tables, an older or newer
+/// shop, an error) is left to the full check and [`migrate`].
+fn up_to_date(p: &PgConn) -> bool {
+    let known = Store::latest_schema_version();
+    if migrations().len() != known {
+        return false;
+    }
+    let sql = format!(
+        "LISTEN {CHANGED_CHANNEL}; \
+         SELECT (SELECT version FROM sumpbook_schema_version), \
+         (SELECT value FROM sumpbook_meta WHERE key = 'application'), \
+         (SELECT count(*) FROM pg_catalog.pg_tables WHERE schemaname = current_schema() \
+          AND tablename IN ('sumpbook_schema_version', 'sumpbook_meta'))"
+    );
+    let Ok(rows) = p.simple_rows(&sql) else {
+        return false;
+    };
+    let [row] = rows.as_slice() else {
+        return false;
+    };
+    let text = |i: usize| row.get(i).and_then(|v| v.as_deref());
+    text(0).and_then(|v| v.parse::<usize>().ok()) == Some(known)
+        && text(1) == Some("sumpbook")
+        && text(2) == Some("2")
 }
 
 /// What the database holds: `None` for an empty one, the shop's schema version, or an error
