@@ -400,11 +400,11 @@ impl PgConn {
         self.listen()
     }
 
-    /// The client, unless a call still holds it: a statement sent from inside another is an
-    /// error of the caller, told as such rather than a panic.
+    /// The client, unless a streamed read ([`PgConn::stream`]) still holds it: a statement
+    /// sent from inside one is an error of the caller, told as such rather than a panic.
     fn client(&self) -> Result<RefMut<'_, postgres::Client>, StoreError> {
         self.client.try_borrow_mut().map_err(|_| {
-            StoreError::Server("a statement was sent while another was still being answered".into())
+            StoreError::Server("a statement was sent while a read was still streaming".into())
         })
     }
 
@@ -514,6 +514,27 @@ impl PgConn {
         self.client()?.query(&st, &refs).map_err(|e| self.failed(e))
     }
 
+    /// Runs a query and hands each row to `f` as it arrives, so that `f` works while the server
+    /// sends the rest. `f` must not use the connection (it is busy with the read): a statement
+    /// sent from `f` fails.
+    pub(crate) fn stream<E: From<StoreError>>(
+        &self,
+        sql: &str,
+        params: &[&dyn ToDb],
+        mut f: impl FnMut(&postgres::Row) -> Result<(), E>,
+    ) -> Result<(), E> {
+        let st = self.statement(sql)?;
+        let vals = Self::values(params);
+        let mut client = self.client()?;
+        let mut rows = client
+            .query_raw(&st, vals.iter())
+            .map_err(|e| self.failed(e))?;
+        while let Some(r) = rows.next().map_err(|e| self.failed(e))? {
+            f(&r)?;
+        }
+        Ok(())
+    }
+
     pub(crate) fn batch(&self, sql: &str) -> Result<(), StoreError> {
         self.reconnect_if_lost()?;
         self.client()?
@@ -590,6 +611,20 @@ impl Db {
                 }
                 Ok(())
             }
+        }
+    }
+
+    /// Runs a query and hands each row to `f` as it arrives (on a file as [`Db::each`]; on a
+    /// server while the server sends the rest, where `f` must not use the store).
+    pub(crate) fn stream<E: From<StoreError>>(
+        &self,
+        sql: &str,
+        params: &[&dyn ToDb],
+        mut f: impl FnMut(&Row<'_>) -> Result<(), E>,
+    ) -> Result<(), E> {
+        match self {
+            Db::Lite(_) => self.each(sql, params, f),
+            Db::Pg(p) => p.stream(sql, params, |r| f(&Row::Pg(r))),
         }
     }
 
