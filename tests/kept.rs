@@ -241,23 +241,29 @@ fn an_evaluation_kept_by_another_engine_is_never_read() {
     let store = shop.store_for_tests();
     let when = noon();
     let unit = unit_id(&shop, 0);
-    // What an older engine kept for the unit, under the counters of now: a different state.
+    // What an older engine kept for the unit, under the counters of now: a different state
+    // (another unit's kept text; a kept text names no unit, the unit's own row gives that).
     let conn = other(&path);
-    let body: String = conn
+    let fleet = fleet_status_in(store, Some(when), Detail::Summary).unwrap();
+    let state = fleet
+        .units
+        .iter()
+        .find(|u| u.unit_id == unit)
+        .unwrap()
+        .state
+        .key();
+    let donor = fleet.units.iter().find(|u| u.state.key() != state).unwrap();
+    let other_state = donor.state.key();
+    let planted: String = conn
         .query_row(
             "SELECT body FROM kept_evaluations WHERE unit_id = ?1",
-            [unit],
+            [donor.unit_id],
             |r| r.get(0),
         )
         .unwrap();
-    // The kept form names the unit's state `s` (`app::kept`).
-    let mut planted: serde_json::Value = serde_json::from_str(&body).unwrap();
-    let state = planted["s"].as_str().unwrap().to_string();
-    let other_state = if state == "act" { "steady" } else { "act" };
-    planted["s"] = other_state.into();
     conn.execute(
         "UPDATE kept_evaluations SET engine = 'an older engine', body = ?2 WHERE unit_id = ?1",
-        rusqlite::params![unit, planted.to_string()],
+        rusqlite::params![unit, planted],
     )
     .unwrap();
     let f = status_is_fresh(store, when, 1, "another engine's evaluation");
@@ -271,7 +277,7 @@ fn an_evaluation_kept_by_another_engine_is_never_read() {
     conn.execute(
         "UPDATE kept_evaluations SET body = ?2, engine = \
          (SELECT engine FROM kept_evaluations WHERE unit_id <> ?1 LIMIT 1) WHERE unit_id = ?1",
-        rusqlite::params![unit, planted.to_string()],
+        rusqlite::params![unit, planted],
     )
     .unwrap();
     let f = fleet_status_in(store, Some(when), Detail::Summary).unwrap();

@@ -30,7 +30,7 @@ use form::Kept;
 
 /// Raised by hand when the engine's rules or the kept form (`form`) change in a way the
 /// program's build would not show (it is part of [`engine`], beside the build's own identity).
-const RULES_EDITION: u32 = 3;
+const RULES_EDITION: u32 = 4;
 
 /// The engine that computes an evaluation: the rules' edition, the program's version and the
 /// identity of the running program file (its size and time of change), so that any other
@@ -68,10 +68,11 @@ pub fn engine() -> &'static str {
 }
 
 /// The kept text of a unit's summary `s` (of `shell`'s unit), when it reads back exactly as
-/// `s` is: a figure JSON cannot carry, such as a NaN, would not, and is then not kept.
+/// `s` is: an instant outside the kept form's nanoseconds (years 1677 to 2262) cannot be
+/// written, and a NaN figure never equals itself, so such a summary is not kept.
 fn kept_text(shell: &UnitHistory, s: &UnitStatus) -> Option<String> {
-    let text = serde_json::to_string(&Kept::of(s)).ok()?;
-    let back: Kept = serde_json::from_str(&text).ok()?;
+    let text = Kept::of(s).text()?;
+    let back = Kept::read(&text)?;
     (back.status(shell, s.health.at) == *s).then_some(text)
 }
 
@@ -104,13 +105,17 @@ pub(crate) fn fleet_units(
     let keeping = detail == Detail::Summary;
     // The counters first: whatever is read after them is at least as new, so an evaluation
     // kept under them is never newer than what they say.
-    let (kept, mut served) = if keeping {
-        read_kept(store, when)?
-    } else {
-        (KeptRead::default(), HashMap::new())
+    let read_rest = || {
+        Ok((
+            shop_data(store)?,
+            store.active_unit_shells().map_err(store_error)?,
+        ))
     };
-    let data = shop_data(store)?;
-    let shells = store.active_unit_shells().map_err(store_error)?;
+    let (kept, mut served, (data, shells)) = if keeping {
+        read_kept(store, when, read_rest)?
+    } else {
+        (KeptRead::default(), HashMap::new(), read_rest()?)
+    };
     let mut out = Vec::with_capacity(shells.len());
     let mut needed = Vec::new();
     for shell in shells {
@@ -147,15 +152,17 @@ pub(crate) fn fleet_units(
 /// Kept texts handed to the parsing threads this many at a time.
 const PARSE_BATCH: usize = 64;
 
-/// The counters and the kept evaluations that hold at `when`, parsed. Parsing the texts is
-/// most of the time of a status with nothing changed, so it runs on the other cores while the
-/// store reads on, a batch of texts at a time.
-fn read_kept(
+/// The counters and the kept evaluations that hold at `when`, parsed, and what `then` reads
+/// after them. Parsing the texts is most of the time of a status with nothing changed, so it
+/// runs on the other cores, a batch of texts at a time, while the store reads on: the texts,
+/// then `then`'s reads.
+fn read_kept<T>(
     store: &Store,
     when: DateTime<Utc>,
-) -> Result<(KeptRead, HashMap<Id, Kept>), AppError> {
+    then: impl FnOnce() -> Result<T, AppError>,
+) -> Result<(KeptRead, HashMap<Id, Kept>, T), AppError> {
     // One that does not read (another shape of the program's results) is evaluated.
-    let parse = |unit: Id, text: &str| serde_json::from_str::<Kept>(text).ok().map(|k| (unit, k));
+    let parse = |unit: Id, text: &str| Kept::read(text).map(|k| (unit, k));
     let threads = worker_threads();
     if threads < 2 {
         let mut served = HashMap::new();
@@ -163,7 +170,7 @@ fn read_kept(
             served.extend(parse(unit, body));
             Ok(())
         })?;
-        return Ok((kept, served));
+        return Ok((kept, served, then()?));
     }
     let parse_batch = |batch: Vec<(Id, String)>| -> Vec<(Id, Kept)> {
         batch
@@ -171,7 +178,7 @@ fn read_kept(
             .filter_map(|(unit, text)| parse(unit, &text))
             .collect()
     };
-    let (kept, parsed) = with_workers(threads, parse_batch, |send| {
+    let (read, parsed) = with_workers(threads, parse_batch, |send| {
         let mut batch = Vec::with_capacity(PARSE_BATCH);
         let kept = store.kept_evaluations::<AppError>(engine(), when, |unit, body| {
             batch.push((unit, body.to_owned()));
@@ -185,9 +192,11 @@ fn read_kept(
         if !batch.is_empty() {
             let _ = send.send(batch);
         }
-        kept
+        // The workers parse the last batches meanwhile.
+        Ok::<_, AppError>((kept?, then()?))
     });
-    Ok((kept?, parsed.into_iter().collect()))
+    let (kept, rest) = read?;
+    Ok((kept, parsed.into_iter().collect(), rest))
 }
 
 /// How many threads evaluate or parse.

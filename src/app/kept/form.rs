@@ -1,15 +1,18 @@
 //! The kept form of a unit's summary: the text `app::kept` stores for it, and the summary read
 //! back from that text. Nothing here judges, reads the shop or decides what holds.
 //!
-//! The form is lean because a status with nothing changed is mostly reading these texts: keys
-//! of one letter, the indicators as one array in a fixed order, instants as nanoseconds and
-//! days as day numbers, absent parts left out; and nothing stored that is the same for every
-//! unit or follows from what is stored (the safety caution of the work that opens the circuit,
-//! a flag's message split into its two parts), which was more than half of a unit's JSON. What
-//! it leaves out is put back on reading; a text is kept only when it reads back exactly as the
-//! summary it was made from (`app::kept`), so a part that does not follow as assumed here is
-//! not lost, only not kept. Figures stay JSON numbers, read back bit for bit (`serde_json`'s
-//! exact float parsing, on in Cargo.toml).
+//! The form is lean because a status with nothing changed is mostly reading these texts. It is
+//! binary (`postcard`: fields in order, no names; lengths and integers as variable-length
+//! integers, figures as their eight bytes, so read back bit for bit), written as base64 text
+//! because the column is text on both backends (a STRICT TEXT column on SQLite, and PostgreSQL
+//! text holds no NUL). Instants are kept as nanoseconds and days as day numbers; nothing is
+//! stored that is the same for every unit or follows from what is stored (the safety caution
+//! of the work that opens the circuit, a flag's message split into its two parts), which was
+//! more than half of a unit's JSON. What it leaves out is put back on reading; a text is kept
+//! only when it reads back exactly as the summary it was made from (`app::kept`), so a part
+//! that does not follow as assumed here is not lost, only not kept. The fields' order is the
+//! form: a build that changes it has another engine (`app::kept::engine`) and never reads
+//! what an older one kept.
 
 use chrono::serde::{ts_nanoseconds, ts_nanoseconds_option};
 use chrono::{DateTime, Utc};
@@ -20,10 +23,12 @@ use crate::app::waiting_cost::WaitingCost;
 use crate::health::flags::{message_parts, AckInfo, Figure};
 use crate::health::indicators::{Dim, Restart};
 use crate::health::plan::CAUTION_SHORT;
+use crate::health::screen::{Field, Record};
 use crate::health::{
-    Flag, FlagKind, Indicators, NotJudged, State, SuspectReading, UnitHealth, WorkItem, WorkKind,
+    ConfirmedBy, Flag, FlagKind, Indicators, NotJudged, State, SuspectReading, UnitHealth,
+    WorkItem, WorkKind,
 };
-use crate::model::UnitHistory;
+use crate::model::{Id, UnitHistory};
 
 /// Calendar days as day numbers (days from the first of January of year 1).
 mod day {
@@ -45,7 +50,7 @@ mod day {
 
         pub fn serialize<S: Serializer>(d: &Option<NaiveDate>, s: S) -> Result<S::Ok, S::Error> {
             match d {
-                Some(d) => super::serialize(d, s),
+                Some(d) => s.serialize_some(&d.num_days_from_ce()),
                 None => s.serialize_none(),
             }
         }
@@ -66,41 +71,24 @@ mod day {
 /// and what a summary leaves out.
 #[derive(Serialize, Deserialize)]
 pub(super) struct Kept {
-    #[serde(rename = "s")]
     state: State,
-    #[serde(rename = "u", default, skip_serializing_if = "Option::is_none")]
     fluid: Option<String>,
-    #[serde(rename = "i")]
     figures: KeptFigures,
-    #[serde(rename = "c", default, skip_serializing_if = "Option::is_none")]
     iso4406: Option<String>,
-    #[serde(rename = "t", default, skip_serializing_if = "Option::is_none")]
     iso4406_target: Option<String>,
-    #[serde(rename = "f", default, skip_serializing_if = "Vec::is_empty")]
     flags: Vec<KeptFlag>,
-    #[serde(rename = "w", default, skip_serializing_if = "Vec::is_empty")]
     work: Vec<KeptWork>,
-    #[serde(
-        rename = "l",
-        with = "ts_nanoseconds_option",
-        default,
-        skip_serializing_if = "Option::is_none"
-    )]
+    #[serde(with = "ts_nanoseconds_option")]
     last_check: Option<DateTime<Utc>>,
-    #[serde(
-        rename = "m",
-        with = "ts_nanoseconds_option",
-        default,
-        skip_serializing_if = "Option::is_none"
-    )]
+    #[serde(with = "ts_nanoseconds_option")]
     last_sample: Option<DateTime<Utc>>,
-    #[serde(rename = "n", default, skip_serializing_if = "Vec::is_empty")]
     not_judged: Vec<KeptNotJudged>,
-    #[serde(rename = "q", default, skip_serializing_if = "Vec::is_empty")]
-    suspects: Vec<SuspectReading>,
-    #[serde(rename = "x", default, skip_serializing_if = "Option::is_none")]
+    suspects: Vec<KeptSuspect>,
     waiting_cost: Option<KeptCost>,
 }
+
+/// The text of a kept form: its bytes in base64.
+const TEXT: base64::engine::GeneralPurpose = base64::engine::general_purpose::STANDARD_NO_PAD;
 
 /// The indicators' figures, in the order [`figures_of`] gives them.
 type KeptFigures = [Option<f64>; 21];
@@ -198,31 +186,19 @@ fn indicators_of(
 /// own ([`message_parts`]).
 #[derive(Serialize, Deserialize)]
 struct KeptFlag {
-    #[serde(rename = "k")]
     kind: FlagKind,
-    #[serde(rename = "s")]
     state: State,
-    #[serde(rename = "d", with = "day")]
+    #[serde(with = "day")]
     since: chrono::NaiveDate,
-    #[serde(rename = "t", with = "ts_nanoseconds")]
+    #[serde(with = "ts_nanoseconds")]
     state_since: DateTime<Utc>,
-    #[serde(rename = "m")]
     message: String,
-    #[serde(rename = "p", default, skip_serializing_if = "Option::is_none")]
     parts: Option<(String, String)>,
-    #[serde(rename = "a", default, skip_serializing_if = "is_false")]
     acknowledged: bool,
-    #[serde(rename = "b", default, skip_serializing_if = "Option::is_none")]
     acknowledgement: Option<AckInfo>,
     /// Dimension, value, limit and baseline.
-    #[serde(rename = "f", default, skip_serializing_if = "Option::is_none")]
     figure: Option<(Dim, f64, Option<f64>, Option<f64>)>,
-    #[serde(rename = "r", default, skip_serializing_if = "Option::is_none")]
     restarted: Option<Restart>,
-}
-
-fn is_false(b: &bool) -> bool {
-    !*b
 }
 
 impl KeptFlag {
@@ -276,28 +252,20 @@ impl KeptFlag {
 /// ([`CAUTION_SHORT`]) by a mark, any other in full.
 #[derive(Serialize, Deserialize)]
 enum KeptCaution {
-    #[serde(rename = "s")]
     Short,
-    #[serde(rename = "t")]
     Text(String),
 }
 
 /// A piece of planned work as kept.
 #[derive(Serialize, Deserialize)]
 struct KeptWork {
-    #[serde(rename = "k")]
     kind: WorkKind,
-    #[serde(rename = "d", with = "day")]
+    #[serde(with = "day")]
     due: chrono::NaiveDate,
-    #[serde(rename = "b")]
     basis: String,
-    #[serde(rename = "p", default, skip_serializing_if = "Option::is_none")]
     pulled_forward: Option<String>,
-    #[serde(rename = "o")]
     days_overdue: i64,
-    #[serde(rename = "s")]
     state: State,
-    #[serde(rename = "c", default, skip_serializing_if = "Option::is_none")]
     caution: Option<KeptCaution>,
 }
 
@@ -339,24 +307,13 @@ impl KeptWork {
 /// What cannot be judged yet, as kept.
 #[derive(Serialize, Deserialize)]
 struct KeptNotJudged {
-    #[serde(rename = "k")]
     key: String,
-    #[serde(rename = "l")]
     label: String,
-    #[serde(rename = "m")]
     missing: String,
-    #[serde(rename = "u")]
     until: String,
-    #[serde(rename = "c", default, skip_serializing_if = "Option::is_none")]
     checks_needed: Option<usize>,
-    #[serde(
-        rename = "d",
-        with = "day::opt",
-        default,
-        skip_serializing_if = "Option::is_none"
-    )]
+    #[serde(with = "day::opt")]
     due: Option<chrono::NaiveDate>,
-    #[serde(rename = "e", default, skip_serializing_if = "is_false")]
     expected: bool,
 }
 
@@ -391,6 +348,70 @@ impl KeptNotJudged {
             checks_needed: self.checks_needed,
             due: self.due,
             expected: self.expected,
+        }
+    }
+}
+
+/// A questioned reading as kept (the form has no field names, so a confirmation is an enum
+/// of its own rather than the tagged one of `SuspectReading`).
+#[derive(Serialize, Deserialize)]
+struct KeptSuspect {
+    record: Record,
+    id: Id,
+    #[serde(with = "ts_nanoseconds")]
+    at: DateTime<Utc>,
+    field: Field,
+    reason: String,
+    confirmed: Option<KeptConfirmed>,
+}
+
+#[derive(Serialize, Deserialize)]
+enum KeptConfirmed {
+    Person {
+        by: String,
+        #[serde(with = "ts_nanoseconds")]
+        at: DateTime<Utc>,
+    },
+    NextReading {
+        #[serde(with = "ts_nanoseconds")]
+        at: DateTime<Utc>,
+    },
+}
+
+impl KeptSuspect {
+    fn of(s: &SuspectReading) -> KeptSuspect {
+        let SuspectReading {
+            record,
+            id,
+            at,
+            field,
+            reason,
+            confirmed,
+        } = s.clone();
+        KeptSuspect {
+            record,
+            id,
+            at,
+            field,
+            reason,
+            confirmed: confirmed.map(|c| match c {
+                ConfirmedBy::Person { by, at } => KeptConfirmed::Person { by, at },
+                ConfirmedBy::NextReading { at } => KeptConfirmed::NextReading { at },
+            }),
+        }
+    }
+
+    fn suspect(self) -> SuspectReading {
+        SuspectReading {
+            record: self.record,
+            id: self.id,
+            at: self.at,
+            field: self.field,
+            reason: self.reason,
+            confirmed: self.confirmed.map(|c| match c {
+                KeptConfirmed::Person { by, at } => ConfirmedBy::Person { by, at },
+                KeptConfirmed::NextReading { at } => ConfirmedBy::NextReading { at },
+            }),
         }
     }
 }
@@ -470,9 +491,21 @@ impl Kept {
             last_check: h.last_check,
             last_sample: h.last_sample,
             not_judged: h.not_judged.iter().map(KeptNotJudged::of).collect(),
-            suspects: h.suspects.clone(),
+            suspects: h.suspects.iter().map(KeptSuspect::of).collect(),
             waiting_cost: s.waiting_cost.as_ref().map(kept_cost),
         }
+    }
+
+    /// The text of this kept form; `None` when a part cannot be written.
+    pub(super) fn text(&self) -> Option<String> {
+        use base64::Engine;
+        Some(TEXT.encode(postcard::to_allocvec(self).ok()?))
+    }
+
+    /// The kept form a text holds; `None` for one that does not read (another program's).
+    pub(super) fn read(text: &str) -> Option<Kept> {
+        use base64::Engine;
+        postcard::from_bytes(&TEXT.decode(text).ok()?).ok()
     }
 
     /// The summary of `shell`'s unit judged at `at` that this kept form holds.
@@ -498,7 +531,11 @@ impl Kept {
                 .map(KeptNotJudged::not_judged)
                 .collect(),
             restarts: Vec::new(),
-            suspects: self.suspects,
+            suspects: self
+                .suspects
+                .into_iter()
+                .map(KeptSuspect::suspect)
+                .collect(),
         };
         UnitStatus {
             unit_id: shell.unit.id,
@@ -542,12 +579,15 @@ mod tests {
         (dir, units)
     }
 
-    fn text(s: &UnitStatus) -> String {
-        serde_json::to_string(&Kept::of(s)).unwrap()
+    /// The bytes a kept text holds, as text where they are (to look for a string in them).
+    fn bytes(s: &UnitStatus) -> String {
+        use base64::Engine;
+        let b = TEXT.decode(Kept::of(s).text().unwrap()).unwrap();
+        String::from_utf8_lossy(&b).into_owned()
     }
 
     fn read_back(shell: &UnitHistory, s: &UnitStatus) -> UnitStatus {
-        serde_json::from_str::<Kept>(&text(s))
+        Kept::read(&Kept::of(s).text().unwrap())
             .unwrap()
             .status(shell, s.health.at)
     }
@@ -561,11 +601,12 @@ mod tests {
             .any(|(_, s)| s.health.work.iter().any(|w| w.caution.is_some())));
         for (shell, s) in &units {
             assert_eq!(read_back(shell, s), *s, "{}", s.unit);
-            let t = text(s);
-            // The caution and a flag's message parts are put back, not stored.
-            assert!(!t.contains(CAUTION_SHORT), "{t}");
+            let b = bytes(s);
+            // The caution and a flag's message parts are put back, not stored: each message
+            // is there once.
+            assert!(!b.contains(CAUTION_SHORT), "{b}");
             for f in &s.health.flags {
-                assert!(!t.contains(&format!("\"{}\"", f.what)), "{t}");
+                assert_eq!(b.matches(f.what.as_str()).count(), 1, "{b}");
             }
         }
     }
@@ -590,18 +631,42 @@ mod tests {
         s.health.work[0].caution = Some("Another caution.".into());
         s.next_due = s.health.work.iter().min_by_key(|w| w.due).cloned();
         s.health.last_check = Some(seen);
+        let suspect = |confirmed| SuspectReading {
+            record: Record::Check,
+            id: 7,
+            at: seen,
+            field: Field::Pressure,
+            reason: "far above the unit's last readings".into(),
+            confirmed,
+        };
+        s.health.suspects = vec![
+            suspect(None),
+            suspect(Some(ConfirmedBy::Person {
+                by: "A. Fitter".into(),
+                at: seen,
+            })),
+            suspect(Some(ConfirmedBy::NextReading { at: seen })),
+        ];
+        s.health.not_judged.push(NotJudged {
+            key: "water".into(),
+            label: "Water".into(),
+            missing: "no sample yet".into(),
+            until: "at the next sample".into(),
+            checks_needed: Some(3),
+            due: Some(chrono::NaiveDate::from_ymd_opt(2027, 1, 10).unwrap()),
+            expected: true,
+        });
         assert_eq!(read_back(shell, &s), s);
-        assert!(text(&s).contains("another first part"));
+        assert!(bytes(&s).contains("another first part"));
     }
 
     #[test]
-    fn a_figure_json_cannot_carry_does_not_read_back() {
-        // JSON has no infinity: it is written as null, so the text is not the summary and
-        // `app::kept` does not keep it.
+    fn a_text_that_is_not_a_kept_form_does_not_read() {
+        // A text that is not a kept form, or is cut short, does not read.
         let (_dir, units) = demo();
-        let (shell, s) = &units[0];
-        let mut s = s.clone();
-        s.health.indicators.lost_flow_pct = Some(f64::INFINITY);
-        assert_ne!(read_back(shell, &s), s);
+        let (_, s) = &units[0];
+        let text = Kept::of(s).text().unwrap();
+        assert!(Kept::read(&text[..text.len() / 2]).is_none());
+        assert!(Kept::read("{\"state\":\"act\"}").is_none());
     }
 }
