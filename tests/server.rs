@@ -158,6 +158,34 @@ fn copy_file_to_server_to_file_keeps_every_table_identical() {
         "already holds a shop",
     );
     assert_eq!(count(&url, "checks"), before);
+    // What the server kept before it is replaced is not read after: it evaluates (and keeps),
+    // the file moves on (the shop's lost-flow limit, which changes what status says), and the
+    // copy replaces the server's shop; the file and the server must then answer alike (below).
+    let at = ["status", "--json", "--at", "2026-06-01"];
+    let on = |db: &str| {
+        let mut args = vec!["--db", db];
+        args.extend(at);
+        ok(d, &args)
+    };
+    on(&url);
+    let was = on("demo.sqlite");
+    ok(
+        d,
+        &[
+            "--db",
+            "demo.sqlite",
+            "limits",
+            "set",
+            "lost_flow_pct",
+            "--watch",
+            "0.5",
+            "--act",
+            "0.6",
+            "--by",
+            "T. Varga",
+        ],
+    );
+    assert_ne!(on("demo.sqlite"), was, "the limit should change the status");
     ok(
         d,
         &["copy", "--from", "demo.sqlite", "--to", &url, "--replace"],
