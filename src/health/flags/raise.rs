@@ -37,6 +37,20 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             },
         ),
         &|g| {
+            // Raised by a sudden loss of the timed flow: say so, with its own figure (the flows
+            // of the baseline would contradict it).
+            let at = c.checks.iter().rev().find(|p| p.at == g.at);
+            if let Some(s) = at.and_then(|p| {
+                p.sudden_loss_pct
+                    .filter(|s| p.lost_flow_median_pct.is_none_or(|m| *s > m))
+            }) {
+                return format!(
+                    "The timed flow fell {} % below the checks before it, at two checks in a row: a step rather \
+                     than slow wear; check the relief valve for bypass first (a hot spot, a hissing valve), then \
+                     the pump.",
+                    num(s, 1)
+                );
+            }
             // At the reference conditions (the baseline's oil viscosity and pressure) where the
             // flow can be corrected to them, as the lost flow itself is.
             let corrected = base(BaselineIndicator::CorrectedFlow).is_some();

@@ -161,6 +161,42 @@ fn a_sudden_loss_of_flow_is_act_at_the_second_check() {
 }
 
 #[test]
+fn a_flag_raised_by_a_sudden_loss_shows_the_sudden_loss() {
+    // Twelve checks at 4.0 s and 45 °C oil, then two at 5.0 s with the oil at 60 °C in the same
+    // hall. The timed flow fell 20 % (4/5, by hand); the flow corrected to the baseline's oil
+    // takes part of it for the thinner oil, so the lost flow reads less, and the flag stands on
+    // the sudden loss: its message gives that figure, not the corrected flows.
+    let mut h = press();
+    for w in 0..12 {
+        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
+    }
+    for w in 12..14 {
+        h.checks.push(timed(w + 1, w, 5.0, 60.0, 20.0));
+    }
+    let r = eval(&h, &Limits::builtin(), week(13));
+    let p = r.checks.last().unwrap();
+    let sudden = p.sudden_loss_pct.unwrap();
+    assert!((sudden - 20.0).abs() < 1e-9, "{sudden}");
+    assert!(p.lost_flow_median_pct.unwrap() < sudden, "{p:?}");
+    let f = r
+        .flags
+        .iter()
+        .find(|f| f.kind == FlagKind::LostFlow)
+        .unwrap();
+    assert_eq!(f.state, State::Act);
+    assert!(
+        f.message.starts_with("The timed flow fell 20 % below"),
+        "{}",
+        f.message
+    );
+    assert!(
+        !f.message.contains("over the last 3 checks"),
+        "{}",
+        f.message
+    );
+}
+
+#[test]
 fn a_step_in_flow_and_heat_closes_a_baseline_still_growing() {
     // Seven checks at 4.0 s with the oil 25 K over the hall (the baseline grows from 4 to
     // 12), then a relief valve passes oil: 5.0 s (flow down 20 %) and the oil 40 K over
