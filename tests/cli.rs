@@ -191,6 +191,19 @@ fn limits_are_shown_and_taken_in_the_shops_units() {
     let metric = json(&["limits", "--json"]);
     assert_eq!(row(&metric, "reservoir_temp_c")["unit"], "°C");
     assert_eq!(row(&metric, "reservoir_temp_c")["act"], 70.0);
+    // A ratio is stored as `x` and shown as the multiplication sign with the word, in the
+    // table as on the Setup screen.
+    let ratio = row(&metric, "leak_conductance_ratio");
+    assert_eq!(
+        (ratio["unit"].as_str(), ratio["unit_words"].as_str()),
+        (Some("x"), Some("× (ratio)"))
+    );
+    let table = ok(d, &["--db", "l.sqlite", "limits"]);
+    let line = table
+        .lines()
+        .find(|l| l.starts_with("leak_conductance_ratio"))
+        .unwrap();
+    assert!(line.contains("× (ratio)"), "{line}");
     ok(
         d,
         &[

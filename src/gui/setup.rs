@@ -369,7 +369,7 @@ fn load_limits(ctx: &Rc<Ctx>) {
                                 .map(|c| format!(" ({c})"))
                                 .unwrap_or_default()
                         )),
-                        unit: s(limit_unit_words(&r.unit)),
+                        unit: s(&r.unit_words),
                         watch: s(if threshold { f(r.watch) } else { String::new() }),
                         act: s(f(r.act)),
                         source: s(src),
@@ -449,14 +449,5 @@ fn save_limits(ctx: &Rc<Ctx>) {
             a.set_message(s(err_text(&e)));
             a.set_message_level(2);
         }
-    }
-}
-
-/// A limit's unit as Setup shows it: a ratio (stored as `x`) as the multiplication sign and
-/// the word, so that a bare letter is not read as a unit of its own.
-fn limit_unit_words(unit: &str) -> String {
-    match unit {
-        "x" => "× (ratio)".to_string(),
-        other => other.to_string(),
     }
 }

@@ -24,6 +24,8 @@ pub struct LimitRow {
     pub watch: Option<f64>,
     pub act: Option<f64>,
     pub unit: String,
+    /// The unit as a reader is shown it (`unit_words`).
+    pub unit_words: String,
     pub watch_origin: LimitOrigin,
     pub act_origin: LimitOrigin,
     pub description: String,
@@ -50,6 +52,15 @@ fn scope(store: &Store, unit: Option<&str>) -> Result<Option<Unit>, AppError> {
     .transpose()
 }
 
+/// A limit's unit as a reader is shown it: a ratio (stored as `x`) as the multiplication sign
+/// and the word, so that a bare letter is not read as a unit of its own.
+pub fn unit_words(unit: &str) -> String {
+    match unit {
+        "x" => "× (ratio)".to_string(),
+        other => other.to_string(),
+    }
+}
+
 fn rows_of(limits: &Limits) -> Vec<LimitRow> {
     limits
         .all()
@@ -67,6 +78,7 @@ fn rows_of(limits: &Limits) -> Vec<LimitRow> {
             watch: l.watch,
             act: l.act,
             unit: l.key.unit().to_string(),
+            unit_words: unit_words(l.key.unit()),
             watch_origin: l.watch_origin,
             act_origin: l.act_origin,
             range: l.key.range().describe(l.key.unit()),

@@ -109,7 +109,7 @@ fn limits_table(out: &mut dyn Write, scope: &str, rows: &[LimitRow]) -> Result<(
                 10
             ),
             pad(&v(r.act), 10),
-            pad(&r.unit, 15),
+            pad(&r.unit_words, 15),
             pad(&from, 16),
             r.range
         )?;
