@@ -110,42 +110,17 @@ fn copy_file_to_server_to_file_keeps_every_table_identical() {
     ok(d, &["--db", "demo.sqlite", "demo"]);
     // An edit, so that the edit history is copied too.
     let tag = unit_tags(d, "demo.sqlite").remove(0);
-    ok(
-        d,
-        &[
-            "--db",
-            "demo.sqlite",
-            "limits",
-            "set",
-            "lost_flow_pct",
-            "--watch",
-            "12",
-            "--act",
-            "22",
-            "--unit",
-            &tag,
-            "--by",
-            "T. Varga",
-        ],
-    );
-    ok(
-        d,
-        &[
-            "--db",
-            "demo.sqlite",
-            "limits",
-            "set",
-            "lost_flow_pct",
-            "--watch",
-            "11",
-            "--act",
-            "21",
-            "--unit",
-            &tag,
-            "--by",
-            "T. Varga",
-        ],
-    );
+    // The file's lost-flow limit, for one unit or (`None`) the shop.
+    let lost_flow_limit = |watch: &str, act: &str, unit: Option<&str>| {
+        let mut args = vec!["--db", "demo.sqlite", "limits", "set", "lost_flow_pct"];
+        args.extend(["--watch", watch, "--act", act, "--by", "T. Varga"]);
+        if let Some(unit) = unit {
+            args.extend(["--unit", unit]);
+        }
+        ok(d, &args);
+    };
+    lost_flow_limit("12", "22", Some(&tag));
+    lost_flow_limit("11", "21", Some(&tag));
     let url = new_database();
     let out = ok(d, &["copy", "--from", "demo.sqlite", "--to", &url]);
     assert!(out.contains("every table matches"), "{out}");
@@ -169,22 +144,7 @@ fn copy_file_to_server_to_file_keeps_every_table_identical() {
     };
     on(&url);
     let was = on("demo.sqlite");
-    ok(
-        d,
-        &[
-            "--db",
-            "demo.sqlite",
-            "limits",
-            "set",
-            "lost_flow_pct",
-            "--watch",
-            "0.5",
-            "--act",
-            "0.6",
-            "--by",
-            "T. Varga",
-        ],
-    );
+    lost_flow_limit("0.5", "0.6", None);
     assert_ne!(on("demo.sqlite"), was, "the limit should change the status");
     ok(
         d,
