@@ -43,144 +43,31 @@ mod day {
         let n = i32::deserialize(d)?;
         NaiveDate::from_num_days_from_ce_opt(n).ok_or_else(|| D::Error::custom("day out of range"))
     }
-
-    /// The same for an optional day.
-    pub mod opt {
-        use super::*;
-
-        pub fn serialize<S: Serializer>(d: &Option<NaiveDate>, s: S) -> Result<S::Ok, S::Error> {
-            match d {
-                Some(d) => s.serialize_some(&d.num_days_from_ce()),
-                None => s.serialize_none(),
-            }
-        }
-
-        pub fn deserialize<'de, D: Deserializer<'de>>(d: D) -> Result<Option<NaiveDate>, D::Error> {
-            Option::<i32>::deserialize(d)?
-                .map(|n| {
-                    NaiveDate::from_num_days_from_ce_opt(n)
-                        .ok_or_else(|| D::Error::custom("day out of range"))
-                })
-                .transpose()
-        }
-    }
 }
 
 /// A unit's summary as kept: all of it but what the unit's own row gives afresh at every read
 /// (tag, machine, route order), what follows from the rest (the next work, the instant judged)
-/// and what a summary leaves out.
+/// and what a summary leaves out. The indicators, what cannot be judged yet and the cost of
+/// waiting are kept in their own serde form; flags, work and questioned readings in forms of
+/// their own below.
 #[derive(Serialize, Deserialize)]
 pub(super) struct Kept {
     state: State,
     fluid: Option<String>,
-    figures: KeptFigures,
-    iso4406: Option<String>,
-    iso4406_target: Option<String>,
+    indicators: Indicators,
     flags: Vec<KeptFlag>,
     work: Vec<KeptWork>,
     #[serde(with = "ts_nanoseconds_option")]
     last_check: Option<DateTime<Utc>>,
     #[serde(with = "ts_nanoseconds_option")]
     last_sample: Option<DateTime<Utc>>,
-    not_judged: Vec<KeptNotJudged>,
+    not_judged: Vec<NotJudged>,
     suspects: Vec<KeptSuspect>,
-    waiting_cost: Option<KeptCost>,
+    waiting_cost: Option<WaitingCost>,
 }
 
 /// The text of a kept form: its bytes in base64.
 const TEXT: base64::engine::GeneralPurpose = base64::engine::general_purpose::STANDARD_NO_PAD;
-
-/// The indicators' figures, in the order [`figures_of`] gives them.
-type KeptFigures = [Option<f64>; 21];
-
-/// The figures of `i` in a fixed order, and its two ISO 4406 codes. Every field is named, so a
-/// new indicator cannot be left out of the kept form unnoticed.
-fn figures_of(i: &Indicators) -> (KeptFigures, &Option<String>, &Option<String>) {
-    let Indicators {
-        lost_flow_pct,
-        vol_eff_pct,
-        heat_rise_k,
-        heat_rise_drift_k,
-        leak_conductance_ratio,
-        kv40_cst,
-        kv40_drift_pct,
-        iso4406,
-        iso4406_target,
-        water_ppm,
-        acid_rise,
-        oil_life_used_pct,
-        effective_flow_lpm,
-        hydraulic_power_kw,
-        reservoir_temp_c,
-        case_drain_rise_pct,
-        viscosity_index,
-        top_up_l_per_100h,
-        oil_equivalent_hours,
-        era_run_hours,
-        leak_conductance,
-        leak_conductance_se,
-        leak_conductance_ratio_se,
-    } = i;
-    let figures = [
-        *lost_flow_pct,
-        *vol_eff_pct,
-        *heat_rise_k,
-        *heat_rise_drift_k,
-        *leak_conductance_ratio,
-        *kv40_cst,
-        *kv40_drift_pct,
-        *water_ppm,
-        *acid_rise,
-        *oil_life_used_pct,
-        *effective_flow_lpm,
-        *hydraulic_power_kw,
-        *reservoir_temp_c,
-        *case_drain_rise_pct,
-        *viscosity_index,
-        *top_up_l_per_100h,
-        *oil_equivalent_hours,
-        *era_run_hours,
-        *leak_conductance,
-        *leak_conductance_se,
-        *leak_conductance_ratio_se,
-    ];
-    (figures, iso4406, iso4406_target)
-}
-
-/// The indicators of kept figures (in [`figures_of`]'s order) and codes.
-fn indicators_of(
-    f: KeptFigures,
-    iso4406: Option<String>,
-    iso4406_target: Option<String>,
-) -> Indicators {
-    let [lost_flow_pct, vol_eff_pct, heat_rise_k, heat_rise_drift_k, leak_conductance_ratio, kv40_cst, kv40_drift_pct, water_ppm, acid_rise, oil_life_used_pct, effective_flow_lpm, hydraulic_power_kw, reservoir_temp_c, case_drain_rise_pct, viscosity_index, top_up_l_per_100h, oil_equivalent_hours, era_run_hours, leak_conductance, leak_conductance_se, leak_conductance_ratio_se] =
-        f;
-    Indicators {
-        lost_flow_pct,
-        vol_eff_pct,
-        heat_rise_k,
-        heat_rise_drift_k,
-        leak_conductance_ratio,
-        kv40_cst,
-        kv40_drift_pct,
-        iso4406,
-        iso4406_target,
-        water_ppm,
-        acid_rise,
-        oil_life_used_pct,
-        effective_flow_lpm,
-        hydraulic_power_kw,
-        reservoir_temp_c,
-        case_drain_rise_pct,
-        viscosity_index,
-        top_up_l_per_100h,
-        oil_equivalent_hours,
-        era_run_hours,
-        leak_conductance,
-        leak_conductance_se,
-        leak_conductance_ratio_se,
-    }
-}
 
 /// A flag as kept: its message once, with its two parts only where they are not the message's
 /// own ([`message_parts`]).
@@ -304,54 +191,6 @@ impl KeptWork {
     }
 }
 
-/// What cannot be judged yet, as kept.
-#[derive(Serialize, Deserialize)]
-struct KeptNotJudged {
-    key: String,
-    label: String,
-    missing: String,
-    until: String,
-    checks_needed: Option<usize>,
-    #[serde(with = "day::opt")]
-    due: Option<chrono::NaiveDate>,
-    expected: bool,
-}
-
-impl KeptNotJudged {
-    fn of(n: &NotJudged) -> KeptNotJudged {
-        let NotJudged {
-            key,
-            label,
-            missing,
-            until,
-            checks_needed,
-            due,
-            expected,
-        } = n.clone();
-        KeptNotJudged {
-            key,
-            label,
-            missing,
-            until,
-            checks_needed,
-            due,
-            expected,
-        }
-    }
-
-    fn not_judged(self) -> NotJudged {
-        NotJudged {
-            key: self.key,
-            label: self.label,
-            missing: self.missing,
-            until: self.until,
-            checks_needed: self.checks_needed,
-            due: self.due,
-            expected: self.expected,
-        }
-    }
-}
-
 /// A questioned reading as kept (the form has no field names, so a confirmation is an enum
 /// of its own rather than the tagged one of `SuspectReading`).
 #[derive(Serialize, Deserialize)]
@@ -416,83 +255,21 @@ impl KeptSuspect {
     }
 }
 
-/// The cost of waiting as kept: lost flow, working pressure, heat in kW and hp, run hours,
-/// energy, price and cost a year.
-type KeptCost = (
-    f64,
-    f64,
-    f64,
-    f64,
-    Option<f64>,
-    Option<f64>,
-    Option<f64>,
-    Option<f64>,
-);
-
-fn kept_cost(c: &WaitingCost) -> KeptCost {
-    let WaitingCost {
-        lost_flow,
-        working_pressure,
-        heat_kw,
-        heat_hp,
-        run_hours_per_year,
-        energy_kwh_per_year,
-        price_per_kwh,
-        cost_per_year,
-    } = *c;
-    (
-        lost_flow,
-        working_pressure,
-        heat_kw,
-        heat_hp,
-        run_hours_per_year,
-        energy_kwh_per_year,
-        price_per_kwh,
-        cost_per_year,
-    )
-}
-
-fn waiting_cost_of(c: KeptCost) -> WaitingCost {
-    let (
-        lost_flow,
-        working_pressure,
-        heat_kw,
-        heat_hp,
-        run_hours_per_year,
-        energy_kwh_per_year,
-        price_per_kwh,
-        cost_per_year,
-    ) = c;
-    WaitingCost {
-        lost_flow,
-        working_pressure,
-        heat_kw,
-        heat_hp,
-        run_hours_per_year,
-        energy_kwh_per_year,
-        price_per_kwh,
-        cost_per_year,
-    }
-}
-
 impl Kept {
     /// The kept form of a unit's summary `s`.
     pub(super) fn of(s: &UnitStatus) -> Kept {
         let h = &s.health;
-        let (figures, iso4406, iso4406_target) = figures_of(&h.indicators);
         Kept {
             state: s.state,
             fluid: s.fluid.clone(),
-            figures,
-            iso4406: iso4406.clone(),
-            iso4406_target: iso4406_target.clone(),
+            indicators: h.indicators.clone(),
             flags: h.flags.iter().map(KeptFlag::of).collect(),
             work: h.work.iter().map(KeptWork::of).collect(),
             last_check: h.last_check,
             last_sample: h.last_sample,
-            not_judged: h.not_judged.iter().map(KeptNotJudged::of).collect(),
+            not_judged: h.not_judged.clone(),
             suspects: h.suspects.iter().map(KeptSuspect::of).collect(),
-            waiting_cost: s.waiting_cost.as_ref().map(kept_cost),
+            waiting_cost: s.waiting_cost.clone(),
         }
     }
 
@@ -516,7 +293,7 @@ impl Kept {
             eras: Vec::new(),
             fluid: None,
             baseline: Default::default(),
-            indicators: indicators_of(self.figures, self.iso4406, self.iso4406_target),
+            indicators: self.indicators,
             flags: self.flags.into_iter().map(KeptFlag::flag).collect(),
             work: self.work.into_iter().map(KeptWork::work).collect(),
             tiles: Vec::new(),
@@ -525,11 +302,7 @@ impl Kept {
             samples: Vec::new(),
             last_check: self.last_check,
             last_sample: self.last_sample,
-            not_judged: self
-                .not_judged
-                .into_iter()
-                .map(KeptNotJudged::not_judged)
-                .collect(),
+            not_judged: self.not_judged,
             restarts: Vec::new(),
             suspects: self
                 .suspects
@@ -548,7 +321,7 @@ impl Kept {
             fluid: self.fluid,
             next_due: health.work.iter().min_by_key(|w| w.due).cloned(),
             health,
-            waiting_cost: self.waiting_cost.map(waiting_cost_of),
+            waiting_cost: self.waiting_cost,
         }
     }
 }
