@@ -314,6 +314,49 @@ fn without_db_the_default_shop_is_used_and_starts_as_the_demo() {
         &["--db", default.to_str().unwrap(), "export", "units"],
     );
     assert_eq!(out, again);
+    // The first start's demo is moved to this week: its last walk-round is a Friday at most
+    // seven days before today, so no unit opens with its walk-round late. `demo` alone keeps
+    // the dates of sample-data/ (2026-11-27 last); `demo --this-week` moves them too.
+    let last_check = |args: &[&str]| -> chrono::NaiveDate {
+        let csv = ok(dir.path(), args);
+        let last = csv
+            .lines()
+            .skip(1)
+            .filter_map(|l| l.split(',').nth(1))
+            .max()
+            .unwrap()
+            .to_string();
+        chrono::NaiveDate::parse_from_str(&last[..10], "%Y-%m-%d").unwrap()
+    };
+    let today = chrono::Utc::now().date_naive();
+    let this_week = |d: chrono::NaiveDate| {
+        let behind = (today - d).num_days();
+        assert_eq!(chrono::Datelike::weekday(&d), chrono::Weekday::Fri, "{d}");
+        assert!((0..=7).contains(&behind), "{d} against {today}");
+    };
+    this_week(last_check(&["export", "checks"]));
+    let fixed = dir.path().join("fixed.sqlite");
+    let moved = dir.path().join("moved.sqlite");
+    ok(dir.path(), &["--db", fixed.to_str().unwrap(), "demo"]);
+    ok(
+        dir.path(),
+        &["--db", moved.to_str().unwrap(), "demo", "--this-week"],
+    );
+    assert_eq!(
+        last_check(&["--db", fixed.to_str().unwrap(), "export", "checks"]),
+        demo_end()
+    );
+    this_week(last_check(&[
+        "--db",
+        moved.to_str().unwrap(),
+        "export",
+        "checks",
+    ]));
+}
+
+/// The demo's own last walk-round (sample-data/README.md).
+fn demo_end() -> chrono::NaiveDate {
+    chrono::NaiveDate::from_ymd_opt(2026, 11, 27).unwrap()
 }
 
 #[test]

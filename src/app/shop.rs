@@ -8,6 +8,7 @@
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
+use chrono::{DateTime, Utc};
 use serde::Serialize;
 
 use super::AppError;
@@ -170,7 +171,7 @@ impl Shop {
             // An empty file where the first start would make the shop: this is a first start.
             Ok(_) => {
                 let mut shop = Shop::create(&path)?;
-                shop.load_demo()?;
+                shop.load_demo_this_week(Utc::now())?;
                 return Ok(shop);
             }
             Err(_) => {}
@@ -179,7 +180,9 @@ impl Shop {
             std::fs::create_dir_all(dir)
                 .map_err(|e| AppError::Failed(format!("{}: {e}", dir.display())))?;
         }
-        Shop::create_demo(&path)
+        let mut shop = Shop::create(&path)?;
+        shop.load_demo_this_week(Utc::now())?;
+        Ok(shop)
     }
 
     /// Creates a new empty shop at `path` (optionally naming it), or confirms that the file is
@@ -268,8 +271,20 @@ impl Shop {
         self.store.open_notice()
     }
 
-    /// Writes the demo shop into this shop, which must have no units yet.
+    /// Writes the demo shop into this shop, which must have no units yet, with the dates it
+    /// was made with (those of `sample-data/`).
     pub fn load_demo(&mut self) -> Result<DemoCounts, AppError> {
+        self.load_demo_moved(None)
+    }
+
+    /// Writes the demo shop with its dates moved forward by whole weeks so that its last
+    /// walk-round falls in the week before `now` (`demo::DemoShop::moved_to`): what a first
+    /// start shows, so that a new shop does not open with every unit's work late.
+    pub fn load_demo_this_week(&mut self, now: DateTime<Utc>) -> Result<DemoCounts, AppError> {
+        self.load_demo_moved(Some(now))
+    }
+
+    fn load_demo_moved(&mut self, now: Option<DateTime<Utc>>) -> Result<DemoCounts, AppError> {
         let n = self.store.unit_count()?;
         if n > 0 {
             return Err(AppError::BadInput(format!(
@@ -278,7 +293,10 @@ impl Shop {
                 self.path.display()
             )));
         }
-        let shop = demo::generate().map_err(|e| AppError::Failed(e.to_string()))?;
+        let mut shop = demo::generate().map_err(|e| AppError::Failed(e.to_string()))?;
+        if let Some(now) = now {
+            shop = shop.moved_to(now);
+        }
         demo::load(&mut self.store, &shop).map_err(|e| match e {
             demo::DemoError::Store(s) => AppError::Store(s),
             other => AppError::Failed(other.to_string()),

@@ -297,7 +297,16 @@ pub fn run_init(db: Option<&Path>, args: &InitArgs, out: &mut dyn Write) -> Resu
     Ok(())
 }
 
-pub fn run_demo(db: Option<&Path>, out: &mut dyn Write) -> Result<(), Failure> {
+/// Arguments of `demo`.
+#[derive(clap::Args, Debug)]
+pub struct DemoArgs {
+    /// Move every date forward by whole weeks so that the last walk-round falls in the
+    /// current week, as on the app's first start (default: the dates of `sample-data/`).
+    #[arg(long)]
+    pub this_week: bool,
+}
+
+pub fn run_demo(db: Option<&Path>, args: &DemoArgs, out: &mut dyn Write) -> Result<(), Failure> {
     let path = db_path(db)?;
     let mut shop = if Shop::is_server(&path)
         || std::fs::metadata(&path).is_ok_and(|m| m.len() > 0 || !m.is_file())
@@ -306,7 +315,11 @@ pub fn run_demo(db: Option<&Path>, out: &mut dyn Write) -> Result<(), Failure> {
     } else {
         Shop::create(&path)?
     };
-    let n = shop.load_demo()?;
+    let n = if args.this_week {
+        shop.load_demo_this_week(chrono::Utc::now())?
+    } else {
+        shop.load_demo()?
+    };
     writeln!(
         out,
         "demo shop written to {}: {} machines, {} units, {} fluids, {} checks, {} samples, {} events",

@@ -117,7 +117,7 @@ pub enum Command {
     /// Create a new, empty shop file (or confirm that the file is one).
     Init(data::InitArgs),
     /// Write the demo shop (an invented press shop with planted faults) into an empty shop.
-    Demo,
+    Demo(data::DemoArgs),
     /// Import a CSV file: all rows or none, unless --keep-going.
     Import(data::ImportArgs),
     /// The saved column mappings for files with their own column names (`import --map NAME`).
@@ -198,7 +198,7 @@ fn run_command(cli: &Cli, out: &mut dyn std::io::Write) -> Result<(), Failure> {
     match &cli.command {
         Some(Command::Calc(args)) => calc::run(args, out),
         Some(Command::Init(args)) => data::run_init(db.as_deref(), args, out),
-        Some(Command::Demo) => data::run_demo(db.as_deref(), out),
+        Some(Command::Demo(a)) => data::run_demo(db.as_deref(), a, out),
         Some(Command::Import(args)) => data::run_import(db.as_deref(), args, out),
         Some(Command::ImportMaps(args)) => data::run_import_maps(db.as_deref(), args, out),
         Some(Command::Export(args)) => data::run_export(db.as_deref(), args, out),

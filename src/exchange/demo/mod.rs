@@ -88,6 +88,45 @@ pub struct DemoShop {
     pub limits: Vec<LimitSetting>,
 }
 
+impl DemoShop {
+    /// The same shop with every date moved forward by whole weeks, as far as its latest
+    /// record stays at or before `now`: its last walk-round then falls in the week before `now`
+    /// (a shop opened today shows no work late just because the demo was made earlier).
+    /// Readings, weekdays, times of day and the spacing of every record stay as they are; the
+    /// seasons move with the dates. A demo already that recent is left as it is.
+    pub fn moved_to(mut self, now: DateTime<Utc>) -> DemoShop {
+        let latest = self
+            .checks
+            .iter()
+            .map(|c| c.taken_at)
+            .chain(self.samples.iter().map(|s| s.sampled_at))
+            .chain(self.events.iter().map(|e| e.done_at))
+            .max();
+        let Some(latest) = latest else { return self };
+        let weeks = (now - latest).num_seconds().div_euclid(7 * 86_400);
+        if weeks <= 0 {
+            return self;
+        }
+        let by = Duration::weeks(weeks);
+        for c in &mut self.checks {
+            c.taken_at += by;
+            if let Some(k) = c.confirmed.as_mut() {
+                k.at += by;
+            }
+        }
+        for s in &mut self.samples {
+            s.sampled_at += by;
+            if let Some(k) = s.confirmed.as_mut() {
+                k.at += by;
+            }
+        }
+        for e in &mut self.events {
+            e.done_at += by;
+        }
+        self
+    }
+}
+
 /// What [`load`] wrote.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize)]
 pub struct DemoCounts {
