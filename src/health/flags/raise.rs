@@ -503,8 +503,17 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
                 } else {
                     "above"
                 };
+                let here = d
+                    .shift_here_pct
+                    .map(|h| {
+                        format!(
+                            "; at this check's oil and pressure that is {} % of the flow",
+                            num(h, 1)
+                        )
+                    })
+                    .unwrap_or_default();
                 format!(
-                    "{name} has run {side} its baseline {b} for {} checks (EWMA {}, limit {})",
+                    "{name} has run {side} its baseline {b} for {} checks (EWMA {}, limit {}){here}",
                     num(g.value.unwrap_or(0.0), 0),
                     fmt(d.ewma),
                     fmt(d.ewma_limit)

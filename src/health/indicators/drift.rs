@@ -78,6 +78,7 @@ pub(super) fn run_detectors(
     baseline: &Baseline,
     limits: &Limits,
     restarts: &[Restart],
+    displacement: Option<f64>,
 ) {
     let lambda = limits.value(LimitKey::EwmaLambda);
     let l = limits.value(LimitKey::EwmaL);
@@ -199,7 +200,16 @@ pub(super) fn run_detectors(
             run = if signal { run + 1 } else { 0 };
             // …and by at least two of the baseline's own spreads, so that a unit whose
             // readings scatter widely (a heat rise that follows its jobs) needs a shift beyond
-            // its own scatter.
+            // its own scatter. A corrected flow's shift that passes the spreads at the
+            // reference may reach the watch limit at the check's own oil and pressure instead:
+            // a pump worn by the same leakage loses more of its stroke in a hot week, and that
+            // is what the press feels.
+            let here = match (b.indicator, falling) {
+                (BaselineIndicator::CorrectedFlow, true) => {
+                    shift_at_check(b.value, z, displacement, p.flow_scale)
+                }
+                _ => None,
+            };
             let material = match (b.indicator, material_at) {
                 (_, None) => false,
                 (BaselineIndicator::HeatRise, Some(w)) => z - b.value >= w.max(2.0 * sigma),
@@ -209,7 +219,8 @@ pub(super) fn run_detectors(
                     } else {
                         (z - b.value) / b.value * 100.0
                     };
-                    shift_pct >= w.max(2.0 * sigma / b.value.abs() * 100.0)
+                    shift_pct >= 2.0 * sigma / b.value.abs() * 100.0
+                        && shift_pct.max(here.unwrap_or(f64::NEG_INFINITY)) >= w
                 }
                 _ => false,
             };
@@ -221,9 +232,25 @@ pub(super) fn run_detectors(
                 signal,
                 run,
                 material,
+                shift_here_pct: here,
             });
         }
     }
+}
+
+/// The shift of a corrected flow's EWMA `z` below its baseline `base` (both at the reference
+/// conditions), as the share of flow it takes at this check's own oil and pressure, %: a
+/// leakage grown by Δ at the reference is Δ/k at a check whose leakage scales by k to the
+/// reference (`flow_scale`), against the sound pump's D − (D − base)/k there. Only for a
+/// check in thinner oil or at a harder job than the reference (k < 1), where the same wear
+/// robs the stroke of more; elsewhere the reference's own figure stands.
+fn shift_at_check(base: f64, z: f64, d: Option<f64>, k: Option<f64>) -> Option<f64> {
+    let (d, k) = (d?, k?);
+    if !(k > 0.0 && k < 1.0 && d.is_finite()) {
+        return None;
+    }
+    let sound = d - (d - base) / k;
+    (sound > 0.0).then(|| (base - z) / k / sound * 100.0)
 }
 
 #[cfg(test)]
@@ -263,7 +290,7 @@ mod tests {
                 ..CheckPoint::default()
             })
             .collect();
-        run_detectors(&mut pts, &b, &Limits::builtin(), &[]);
+        run_detectors(&mut pts, &b, &Limits::builtin(), &[], None);
         pts
     }
 
@@ -295,6 +322,61 @@ mod tests {
     }
 
     #[test]
+    fn a_shift_at_the_reference_is_weighed_again_at_the_checks_own_oil() {
+        // Worked by hand: a baseline of 100 at the reference, an EWMA of 96, displacement
+        // 110 and a check whose leakage is 1/0.4 = 2.5 times the reference's (k = 0.4). The
+        // sound pump gives 110 − (110 − 100)/0.4 = 85 there, the shift is 4/0.4 = 10, and
+        // 10/85 = 11.7647 %.
+        let h = shift_at_check(100.0, 96.0, Some(110.0), Some(0.4)).expect("k < 1");
+        assert!((h - 1000.0 / 85.0).abs() < 1e-9, "{h}");
+        // At the reference's oil or thicker, and without a displacement, nothing.
+        assert_eq!(shift_at_check(100.0, 96.0, Some(110.0), Some(1.0)), None);
+        assert_eq!(shift_at_check(100.0, 96.0, Some(110.0), Some(1.6)), None);
+        assert_eq!(shift_at_check(100.0, 96.0, None, Some(0.4)), None);
+        // A sound pump that would give nothing there (110 − 10/0.08 < 0): no share to give.
+        assert_eq!(shift_at_check(100.0, 96.0, Some(110.0), Some(0.08)), None);
+    }
+
+    /// Ten checks whose flow, corrected to the reference, reads 93 against a baseline of 100
+    /// (by hand, spread 2.5), each at the scale `k`, with the displacement `d`.
+    fn shifted_seven(k: f64, d: Option<f64>) -> DriftPoint {
+        let b = by_hand(BaselineIndicator::CorrectedFlow, 100.0, 2.5);
+        let mut pts: Vec<CheckPoint> = (0..10)
+            .map(|w| CheckPoint {
+                check_id: w,
+                at: t("2024-01-08") + chrono::Duration::weeks(w),
+                corrected_flow: Some(93.0),
+                flow_scale: Some(k),
+                ..CheckPoint::default()
+            })
+            .collect();
+        run_detectors(&mut pts, &b, &Limits::builtin(), &[], d);
+        pts[9].drift[0].clone()
+    }
+
+    #[test]
+    fn a_real_shift_in_hot_oil_is_material_where_the_stroke_feels_it() {
+        // The EWMA after ten checks: 100 − 7 · 0.8926 = 93.75 (λ = 0.2, by hand), 6.25 %
+        // under the baseline: past two spreads (2 · 2.5 %) but short of the 8 % watch limit
+        // of lost flow at the reference.
+        let at_ref = shifted_seven(1.0, Some(110.0));
+        assert!(at_ref.signal && !at_ref.material, "{at_ref:?}");
+        assert_eq!(at_ref.shift_here_pct, None);
+        // At k = 0.4 the sound pump gives 110 − 10/0.4 = 85 and the shift is 6.2484/0.4 =
+        // 15.62, 18.38 % of it: material.
+        let hot = shifted_seven(0.4, Some(110.0));
+        let here = hot.shift_here_pct.expect("a share at the check");
+        assert!(
+            (here - (100.0 - hot.ewma) / 0.4 / 85.0 * 100.0).abs() < 1e-9,
+            "{hot:?}"
+        );
+        assert!((here - 18.378).abs() < 0.001, "{here}");
+        assert!(hot.material, "{hot:?}");
+        // Without a displacement the share cannot be taken: the reference's figure stands.
+        assert!(!shifted_seven(0.4, None).material);
+    }
+
+    #[test]
     fn a_repair_restarts_the_heat_rise_detectors() {
         // A heat rise of 30 K against a baseline of 20 K (entered by hand) for six checks, a
         // repair (a relief valve that passed oil), then the first check after it at 20 K: the
@@ -323,6 +405,7 @@ mod tests {
             &b,
             &Limits::builtin(),
             std::slice::from_ref(&repair),
+            None,
         );
         assert!(pts[5].drift[0].ewma > 25.0, "{:?}", pts[5].drift);
         assert!(

@@ -92,6 +92,13 @@ pub struct DriftPoint {
     /// spreads: a shift that is both real and large enough to matter, which a statistical
     /// flag needs to reach act.
     pub material: bool,
+    /// For the corrected flow at a check in thinner oil or at a harder job than the
+    /// reference: the EWMA's shift below the baseline as the share of flow it takes at this
+    /// check's own oil and pressure, % (`drift::shift_at_check`). The same wear robs a hot
+    /// week's stroke of more, and a shift that is real at the reference (two of its spreads)
+    /// is material when it reaches the lost-flow watch limit here.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub shift_here_pct: Option<f64>,
 }
 
 /// The indicators of one check. SI values unless the name carries a unit.
@@ -615,7 +622,7 @@ pub fn compute(
         }
     }
 
-    run_detectors(&mut points, &baseline, limits, &restarts);
+    run_detectors(&mut points, &baseline, limits, &restarts, displacement);
 
     // Can the leakage be resolved at all? Where the era's fit resolved it, yes; else the
     // baseline leakage against the rated flow must stand well above the spread of the
