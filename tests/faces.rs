@@ -178,10 +178,18 @@ fn every_demo_unit_shows_the_same_key_figures_and_state_on_board_json_and_paper(
         if let Some(f) = u["flags"].as_array().and_then(|f| f.first()) {
             flagged += 1;
             let figure = f["figure"].as_str().unwrap();
-            let measure = figure
-                .split(|c: char| c.is_ascii_digit() || c == '+' || c == '-')
-                .next()
-                .unwrap();
+            // The words before the number: up to the first digit or a sign before one (the
+            // hyphen of "case-drain" is no sign).
+            let chars: Vec<char> = figure.chars().collect();
+            let cut = (0..chars.len())
+                .find(|&i| {
+                    chars[i].is_ascii_digit()
+                        || (matches!(chars[i], '+' | '-')
+                            && chars.get(i + 1).is_some_and(|c| c.is_ascii_digit()))
+                })
+                .unwrap_or(chars.len());
+            let measure: String = chars[..cut].iter().collect();
+            let measure = measure.as_str();
             let on_board = number_after(row_board, measure).unwrap_or_else(|| {
                 panic!("{tag}: no {measure:?} figure on the board {row_board:?}")
             });

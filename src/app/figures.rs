@@ -5,6 +5,7 @@
 //! Display only: conversion from SI to the display unit and a fixed number of decimals per
 //! dimension. Nothing here decides a state or a limit.
 
+use crate::health::baseline::BaselineIndicator;
 use crate::health::indicators::{Dim, Direction};
 use crate::health::{Flag, FlagKind};
 use crate::quantity::{format, Kind, Quantity};
@@ -140,12 +141,32 @@ pub fn flag_measure(kind: FlagKind) -> &'static str {
     }
 }
 
+/// What a drift flag's figure measures, by the indicator that drifted.
+pub fn drifted_measure(i: BaselineIndicator) -> &'static str {
+    match i {
+        BaselineIndicator::EffectiveFlow => "effective flow",
+        BaselineIndicator::CorrectedFlow => "flow at reference oil and pressure",
+        BaselineIndicator::HeatRise => "heat rise",
+        BaselineIndicator::LeakConductance => "leak conductance",
+        BaselineIndicator::CaseDrain => "case-drain flow",
+    }
+}
+
 /// The figure that raised a flag, against the limit it reached, in the shop's units:
 /// `heat rise over baseline +11.2 K (act at +10.0 K)`. The fleet board, the unit page, the
 /// report, `status` and its JSON all show a flag through this one function, so a flag never
 /// reads with two figures. A flag without a number (filter, oil level) reads as its kind.
 pub fn flag_figure(f: &Flag, sys: UnitSystem) -> String {
-    let measure = flag_measure(f.kind);
+    // A drift flag watches several indicators: its figure says which one drifted.
+    let drifted = f
+        .figure
+        .as_ref()
+        .and_then(|g| g.of)
+        .filter(|_| f.kind == FlagKind::Drift);
+    let measure = match drifted {
+        Some(i) => format!("{} of {}", flag_measure(f.kind), drifted_measure(i)),
+        None => flag_measure(f.kind).to_string(),
+    };
     // The engine's own figure of the flag, where it gives one: the value judged, in the
     // dimension a tile shows it in.
     if let Some(fig) = f.figure.as_ref().filter(|g| g.value.is_finite()) {
@@ -202,6 +223,57 @@ mod tests {
         assert_eq!(significant(96.24, 3, 2), "96.2");
         assert_eq!(significant(3.51, 3, 2), "3.51");
         assert_eq!(significant(0.0, 3, 2), "0");
+    }
+
+    #[test]
+    fn a_drift_flag_names_the_indicator_that_drifted() {
+        use crate::health::flags::Figure;
+        use crate::health::State;
+        // 122.2 and 115.7 L/min as SI (÷ 60 000, the litre is 10⁻³ m³, NIST SP 811).
+        let lpm = |v: f64| v / 60_000.0;
+        let flag = Flag {
+            kind: FlagKind::Drift,
+            state: State::Watch,
+            since: chrono::NaiveDate::from_ymd_opt(2025, 10, 27).expect("a date"),
+            state_since: chrono::DateTime::UNIX_EPOCH,
+            message: String::new(),
+            what: String::new(),
+            next_step: String::new(),
+            acknowledged: false,
+            acknowledgement: None,
+            figure: Some(Figure {
+                dim: Dim::Flow,
+                value: lpm(115.7),
+                limit: Some(lpm(117.7)),
+                baseline: Some(lpm(122.2)),
+                of: Some(BaselineIndicator::CorrectedFlow),
+            }),
+            restarted: None,
+        };
+        assert_eq!(
+            flag_figure(&flag, UnitSystem::Metric),
+            "drift (EWMA) of flow at reference oil and pressure 115.7 L/min \
+             (watch at 117.7 L/min, baseline 122.2 L/min)"
+        );
+        // A heat-rise drift says so; a figure that does not say reads as before.
+        let heat = Flag {
+            figure: Some(Figure {
+                dim: Dim::TempDiff,
+                value: 25.6,
+                limit: Some(21.8),
+                baseline: Some(18.1),
+                of: Some(BaselineIndicator::HeatRise),
+            }),
+            ..flag.clone()
+        };
+        assert!(
+            flag_figure(&heat, UnitSystem::Metric).starts_with("drift (EWMA) of heat rise 25.6 K")
+        );
+        let unnamed = Flag {
+            figure: flag.figure.clone().map(|g| Figure { of: None, ..g }),
+            ..flag
+        };
+        assert!(flag_figure(&unnamed, UnitSystem::Metric).starts_with("drift (EWMA) 115.7 L/min"));
     }
 
     #[test]

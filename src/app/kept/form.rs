@@ -20,6 +20,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::app::status::UnitStatus;
 use crate::app::waiting_cost::WaitingCost;
+use crate::health::baseline::BaselineIndicator;
 use crate::health::flags::{message_parts, AckInfo, Figure};
 use crate::health::indicators::{Dim, Restart};
 use crate::health::plan::CAUTION_SHORT;
@@ -83,10 +84,19 @@ struct KeptFlag {
     parts: Option<(String, String)>,
     acknowledged: bool,
     acknowledgement: Option<AckInfo>,
-    /// Dimension, value, limit and baseline.
-    figure: Option<(Dim, f64, Option<f64>, Option<f64>)>,
+    /// Dimension, value, limit, baseline and the indicator drifted on.
+    figure: Option<KeptFigure>,
     restarted: Option<Restart>,
 }
+
+/// A flag's figure: dimension, value, limit, baseline and the indicator drifted on.
+type KeptFigure = (
+    Dim,
+    f64,
+    Option<f64>,
+    Option<f64>,
+    Option<BaselineIndicator>,
+);
 
 impl KeptFlag {
     fn of(f: &Flag) -> KeptFlag {
@@ -104,7 +114,7 @@ impl KeptFlag {
             figure: f
                 .figure
                 .as_ref()
-                .map(|g| (g.dim, g.value, g.limit, g.baseline)),
+                .map(|g| (g.dim, g.value, g.limit, g.baseline, g.of)),
             restarted: f.restarted.clone(),
         }
     }
@@ -124,11 +134,12 @@ impl KeptFlag {
             next_step,
             acknowledged: self.acknowledged,
             acknowledgement: self.acknowledgement,
-            figure: self.figure.map(|(dim, value, limit, baseline)| Figure {
+            figure: self.figure.map(|(dim, value, limit, baseline, of)| Figure {
                 dim,
                 value,
                 limit,
                 baseline,
+                of,
             }),
             restarted: self.restarted,
         }

@@ -148,6 +148,7 @@ pub(super) fn figure_of(kind: FlagKind, g: &Graded) -> Option<Figure> {
         value: si(g.value?),
         limit: g.limit.map(si),
         baseline: None,
+        of: None,
     })
 }
 

@@ -136,6 +136,10 @@ pub struct Figure {
     pub value: f64,
     pub limit: Option<f64>,
     pub baseline: Option<f64>,
+    /// The indicator a statistical drift was found on (a drift flag watches several), so the
+    /// figure names what it measures.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub of: Option<crate::health::baseline::BaselineIndicator>,
 }
 
 /// The `overdue` flag of a unit from its planned work: the worst overdue item sets the state,

@@ -538,6 +538,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
                 value: d.ewma,
                 limit: Some(d.ewma_limit),
                 baseline: c.baseline.get(d.indicator).map(|b| b.value),
+                of: Some(d.indicator),
             });
         }
     }
