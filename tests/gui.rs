@@ -2103,6 +2103,12 @@ fn mark_done_records_when_hour_meter_fluid_filter_part_and_work_order_from_the_k
     key(&f.app, Key::Return);
     let msg = message(&f.app);
     assert!(msg.starts_with("Recorded: fluid change on"), "{msg}");
+    // Another oil went in: the message says the unit's fluid in service changed, as the
+    // command line does.
+    assert!(
+        msg.contains(". The unit's fluid in service is now "),
+        "{msg}"
+    );
     let after = events(&shop(&f.path));
     assert_eq!(after.len(), before + 1, "{msg}");
     let e = after.iter().find(|e| e.by == "T. Fitter").unwrap();

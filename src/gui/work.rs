@@ -228,16 +228,15 @@ fn mark_done(ctx: &Rc<Ctx>) {
             a.set_filter_part(s(""));
             a.set_work_order(s(""));
             refresh(ctx);
-            a.set_message(s(format!(
-                "Recorded: {} on {}.{}",
-                item.task,
-                logged.unit,
-                if next.is_empty() {
-                    String::new()
-                } else {
-                    format!(" Next due {next}.")
-                }
-            )));
+            let mut text = format!("Recorded: {} on {}.", item.task, logged.unit);
+            for note in crate::app::work::recorded_notes(&logged) {
+                text.push(' ');
+                text.push_str(&note);
+            }
+            if !next.is_empty() {
+                text.push_str(&format!(" Next due {next}."));
+            }
+            a.set_message(s(text));
             a.set_message_level(0);
             super::fleet::refresh(ctx);
         }

@@ -297,6 +297,23 @@ pub fn details_words(d: &EventDetails) -> String {
     parts.join(" · ")
 }
 
+/// What a record of work done settled beside the work itself, a sentence each: every question
+/// the person answered yes to (kept as confirmed) and a change of the unit's fluid in service.
+/// A form shows them after its "Recorded" line, as the command line prints them below its own.
+pub fn recorded_notes(r: &LoggedEvent) -> Vec<String> {
+    let mut out: Vec<String> = r
+        .confirmed
+        .iter()
+        .map(|c| format!("Kept as confirmed: {}.", c.trim_end_matches('.')))
+        .collect();
+    if r.fluid_in_service_changed {
+        if let Some(f) = &r.fluid {
+            out.push(format!("The unit's fluid in service is now {f}."));
+        }
+    }
+    out
+}
+
 /// The longest filter part number or work-order reference taken: either is a reference, not a
 /// note (the note takes the words).
 const MAX_REFERENCE_CHARS: usize = 60;
@@ -577,4 +594,43 @@ pub fn log_event(
     input: &EventInput,
 ) -> Result<LoggedEvent, AppError> {
     log_event_in(shop.store(), tag, input, Utc::now())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::{Event, EventKind};
+
+    fn logged(confirmed: &[&str], changed: bool) -> LoggedEvent {
+        LoggedEvent {
+            unit: "U-1".into(),
+            event: Event {
+                id: 1,
+                unit_id: 1,
+                done_at: chrono::DateTime::UNIX_EPOCH,
+                kind: EventKind::FluidChange,
+                volume: None,
+                fluid_id: None,
+                by: "T. Fitter".into(),
+                note: String::new(),
+            },
+            fluid: Some("Works stock HM 46".into()),
+            details: EventDetails::default(),
+            fluid_in_service_changed: changed,
+            confirmed: confirmed.iter().map(|c| c.to_string()).collect(),
+            work: Vec::new(),
+        }
+    }
+
+    #[test]
+    fn what_was_settled_beside_the_work_reads_a_sentence_each() {
+        assert!(recorded_notes(&logged(&[], false)).is_empty());
+        assert_eq!(
+            recorded_notes(&logged(&["hours: below the last reading."], true)),
+            vec![
+                "Kept as confirmed: hours: below the last reading.".to_string(),
+                "The unit's fluid in service is now Works stock HM 46.".to_string(),
+            ]
+        );
+    }
 }
