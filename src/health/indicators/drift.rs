@@ -277,21 +277,27 @@ mod tests {
         }
     }
 
-    /// Ten checks whose flow, corrected to the baseline's oil, reads 90 against a baseline of
-    /// 100 (entered by hand: known, no standard error), each corrected by the scale `k`.
-    fn drifted(k: f64) -> Vec<CheckPoint> {
+    /// Ten checks whose flow, corrected to the baseline's oil, reads `reading` against a
+    /// baseline of 100 (entered by hand, spread 2.5: known, no standard error), each corrected
+    /// by the scale `k`, with the displacement `d`.
+    fn corrected_run(reading: f64, k: f64, d: Option<f64>) -> Vec<CheckPoint> {
         let b = by_hand(BaselineIndicator::CorrectedFlow, 100.0, 2.5);
         let mut pts: Vec<CheckPoint> = (0..10)
             .map(|w| CheckPoint {
                 check_id: w,
                 at: t("2024-01-08") + chrono::Duration::weeks(w),
-                corrected_flow: Some(90.0),
+                corrected_flow: Some(reading),
                 flow_scale: Some(k),
                 ..CheckPoint::default()
             })
             .collect();
-        run_detectors(&mut pts, &b, &Limits::builtin(), &[], None);
+        run_detectors(&mut pts, &b, &Limits::builtin(), &[], d);
         pts
+    }
+
+    /// Readings of 90 (see `corrected_run`), no displacement.
+    fn drifted(k: f64) -> Vec<CheckPoint> {
+        corrected_run(90.0, k, None)
     }
 
     #[test]
@@ -337,21 +343,9 @@ mod tests {
         assert_eq!(shift_at_check(100.0, 96.0, Some(110.0), Some(0.08)), None);
     }
 
-    /// Ten checks whose flow, corrected to the reference, reads 93 against a baseline of 100
-    /// (by hand, spread 2.5), each at the scale `k`, with the displacement `d`.
+    /// The tenth of ten readings of 93 (see `corrected_run`): its drift point.
     fn shifted_seven(k: f64, d: Option<f64>) -> DriftPoint {
-        let b = by_hand(BaselineIndicator::CorrectedFlow, 100.0, 2.5);
-        let mut pts: Vec<CheckPoint> = (0..10)
-            .map(|w| CheckPoint {
-                check_id: w,
-                at: t("2024-01-08") + chrono::Duration::weeks(w),
-                corrected_flow: Some(93.0),
-                flow_scale: Some(k),
-                ..CheckPoint::default()
-            })
-            .collect();
-        run_detectors(&mut pts, &b, &Limits::builtin(), &[], d);
-        pts[9].drift[0].clone()
+        corrected_run(93.0, k, d)[9].drift[0].clone()
     }
 
     #[test]
