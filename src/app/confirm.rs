@@ -169,7 +169,7 @@ pub fn read_at(text: &str, zone: crate::app::local_time::Zone) -> Result<DateTim
 /// `by` confirms the `kind` reading of unit `tag` taken at `at`: it is what was measured, so
 /// it counts in baselines and detectors like any other. `note` says why (kept in the edit
 /// history). A reading already confirmed is refused, naming who confirmed it.
-pub fn confirm_reading_in(
+pub(crate) fn confirm_reading_in(
     store: &Store,
     tag: &str,
     kind: ReadingKind,
@@ -216,7 +216,7 @@ pub fn confirm_reading_in(
 /// `by` lifts the confirmation of the `kind` reading of unit `tag` taken at `at`, saying `why`
 /// (required: the edit history keeps it). A questioned reading is then held out of baselines
 /// and detectors again. A reading that is not confirmed is refused.
-pub fn lift_confirmation_in(
+pub(crate) fn lift_confirmation_in(
     store: &Store,
     tag: &str,
     kind: ReadingKind,

@@ -194,7 +194,7 @@ pub fn unit_edits(shop: &Shop, tag: &str) -> Result<UnitEdits, AppError> {
 }
 
 /// [`unit_edits`] on a store.
-pub fn unit_edits_in(store: &Store, tag: &str) -> Result<UnitEdits, AppError> {
+pub(crate) fn unit_edits_in(store: &Store, tag: &str) -> Result<UnitEdits, AppError> {
     let tag = tag.trim();
     let unit = store
         .unit_by_tag(tag)

@@ -236,7 +236,7 @@ pub struct UnitRead {
 
 /// One unit (by id) read once and evaluated at `at` (now when `None`): the unit page's one
 /// read of the unit's records.
-pub fn unit_read_in(
+pub(crate) fn unit_read_in(
     store: &Store,
     unit_id: i64,
     at: Option<DateTime<Utc>>,

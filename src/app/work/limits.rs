@@ -88,7 +88,7 @@ fn rows_of(limits: &Limits) -> Vec<LimitRow> {
 }
 
 /// The limits in force for unit `unit` (its overrides over the shop's), or the shop's.
-pub fn limits_in(store: &Store, unit: Option<&str>) -> Result<LimitsView, AppError> {
+pub(crate) fn limits_in(store: &Store, unit: Option<&str>) -> Result<LimitsView, AppError> {
     let u = scope(store, unit)?;
     let limits = Limits::resolve(
         &store.limits().map_err(store_error)?,
@@ -146,7 +146,7 @@ pub fn set_limit_in(
 
 /// Removes a stored shop default or unit override, so that the shop's value (or the built-in
 /// one) applies again. Returns whether there was one.
-pub fn reset_limit_in(
+pub(crate) fn reset_limit_in(
     store: &Store,
     key: &str,
     unit: Option<&str>,

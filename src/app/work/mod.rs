@@ -25,11 +25,8 @@ mod limits;
 
 pub use baseline::{set_baseline, set_baseline_in, BaselineEntered};
 pub(crate) use hour_meter::hour_meter_questions;
-pub(crate) use limits::LimitScale;
-pub use limits::{
-    limits, limits_in, read_limit, reset_limit, reset_limit_in, set_limit, set_limit_in, LimitRow,
-    LimitsView,
-};
+pub use limits::{limits, read_limit, reset_limit, set_limit, set_limit_in, LimitRow, LimitsView};
+pub(crate) use limits::{limits_in, reset_limit_in, LimitScale};
 
 /// Where a piece of work stands.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
@@ -329,7 +326,7 @@ pub struct DetailRefused {
 /// The details of work on unit `tag` at `at` as they would be stored, with the questions they
 /// raise; see [`checked_details`]. `except`: the event whose details these are, when it is
 /// stored already (a correction).
-pub fn check_details_in(
+pub(crate) fn check_details_in(
     store: &Store,
     tag: &str,
     at: DateTime<Utc>,
