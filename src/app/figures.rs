@@ -145,7 +145,7 @@ pub fn flag_measure(kind: FlagKind) -> &'static str {
 pub fn drifted_measure(i: BaselineIndicator) -> &'static str {
     match i {
         BaselineIndicator::EffectiveFlow => "effective flow",
-        BaselineIndicator::CorrectedFlow => "flow at reference oil and pressure",
+        BaselineIndicator::CorrectedFlow => "effective flow at baseline oil and pressure",
         BaselineIndicator::HeatRise => "heat rise",
         BaselineIndicator::LeakConductance => "leak conductance",
         BaselineIndicator::CaseDrain => "case-drain flow",
@@ -252,7 +252,7 @@ mod tests {
         };
         assert_eq!(
             flag_figure(&flag, UnitSystem::Metric),
-            "drift (EWMA) of flow at reference oil and pressure 115.7 L/min \
+            "drift (EWMA) of effective flow at baseline oil and pressure 115.7 L/min \
              (watch at 117.7 L/min, baseline 122.2 L/min)"
         );
         // A heat-rise drift says so; a figure that does not say reads as before.

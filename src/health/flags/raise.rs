@@ -468,7 +468,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
                         ("Effective flow", Box::new(|v| flow(v, sys)))
                     }
                     BaselineIndicator::CorrectedFlow => (
-                        "Effective flow (corrected for oil temperature)",
+                        "Effective flow at baseline oil and pressure",
                         Box::new(|v| flow(v, sys)),
                     ),
                     BaselineIndicator::HeatRise => (
@@ -486,7 +486,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
                         Box::new(|v| format!("{v:.3e} m³/s·m²/s/Pa")),
                     ),
                     BaselineIndicator::CaseDrain => (
-                        "Case-drain flow (corrected for oil temperature)",
+                        "Case-drain flow at baseline oil and pressure",
                         Box::new(|v| flow(v, sys)),
                     ),
                 };
