@@ -5,23 +5,48 @@ use super::*;
 
 /// Raises the condition flags of one unit (all kinds but `overdue`, which comes from the plan).
 pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) -> Vec<Flag> {
-    let mut out = Vec::new();
-    let mut push = |kind: FlagKind, g: Vec<Graded>, message: &dyn Fn(&Graded) -> String| {
+    let mut r = Raised { c, out: Vec::new() };
+    check_levels(&mut r, limits, sys);
+    reservoir_temperature(&mut r, h, limits, sys);
+    sample_flags(&mut r, limits, sys);
+    filter_and_oil_level(&mut r, h);
+    drift(&mut r, limits, sys);
+    let mut out = r.out;
+    drift_figure(&mut out, c);
+    baselines_and_restarts(&mut out, c);
+    out
+}
+
+/// The flags raised so far for one unit's evaluation `c`.
+struct Raised<'a> {
+    c: &'a Computed,
+    out: Vec<Flag>,
+}
+
+impl Raised<'_> {
+    /// Raises a flag of `kind` where the graded readings `g` end in an episode at watch or
+    /// worse, with the sentence `message` gives for its last reading.
+    fn push(&mut self, kind: FlagKind, g: Vec<Graded>, message: &dyn Fn(&Graded) -> String) {
         if let Some((last, since, state_since)) = episode(&g) {
-            out.push(new_flag(
+            self.out.push(new_flag(
                 kind,
                 &last,
-                c.calendar.day(since),
+                self.c.calendar.day(since),
                 state_since,
                 message(&last),
             ));
         }
-    };
+    }
+}
+
+/// Lost flow, leak conductance, case drain and heat rise: the checks against the era's baseline.
+fn check_levels(r: &mut Raised, limits: &Limits, sys: UnitSystem) {
+    let c = r.c;
     let pct = |v: Option<f64>| num(v.unwrap_or(0.0).abs(), 1);
     let base = |i: BaselineIndicator| c.baseline.get(i).map(|b| b.value);
 
     // Checks against the era baseline (median of the last 3).
-    push(
+    r.push(
         FlagKind::LostFlow,
         // Lost flow at the reference conditions, or a sudden loss of the timed flow over two
         // checks (a step such as a relief valve starting to pass oil, which heats the oil
@@ -80,7 +105,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             )
         },
     );
-    push(
+    r.push(
         FlagKind::LeakConductance,
         // Not judged where a stopwatch cannot resolve the leakage (see `leak_min_spreads`).
         if c.leak_resolved == Some(false) {
@@ -103,7 +128,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             )
         },
     );
-    push(
+    r.push(
         FlagKind::CaseDrain,
         graded_levels(
             &c.checks,
@@ -120,7 +145,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             )
         },
     );
-    push(
+    r.push(
         FlagKind::HeatRise,
         graded_levels(
             &c.checks,
@@ -144,7 +169,10 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             )
         },
     );
+}
 
+/// The reservoir temperature at every check, against absolute limits.
+fn reservoir_temperature(r: &mut Raised, h: &UnitHistory, limits: &Limits, sys: UnitSystem) {
     // Reservoir temperature: every check, against absolute limits. A single reading at act
     // shows watch until the next check confirms it; above the ceiling it is act at once.
     let ceiling = limits.get(LimitKey::ReservoirTempCeilingC);
@@ -173,7 +201,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             })
         })
         .collect();
-    push(FlagKind::ReservoirTemp, temps, &|g| {
+    r.push(FlagKind::ReservoirTemp, temps, &|g| {
         let v = g.value.unwrap_or(0.0) + crate::units::KELVIN_AT_0C;
         let l = g.limit.unwrap_or(0.0) + crate::units::KELVIN_AT_0C;
         format!(
@@ -183,6 +211,12 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             temp(l, sys)
         )
     });
+}
+
+/// Viscosity, cleanliness, water and acid number: the era's samples.
+fn sample_flags(r: &mut Raised, limits: &Limits, sys: UnitSystem) {
+    let c = r.c;
+    let pct = |v: Option<f64>| num(v.unwrap_or(0.0).abs(), 1);
 
     // Samples of the era against the new oil and the target.
     let kv = limits.get(LimitKey::Kv40DriftPct);
@@ -211,7 +245,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
         })
         .collect();
     let visc_by = act_on_trend(&mut visc_points, kv.act, horizon_days);
-    push(FlagKind::Viscosity, visc_points, &|g| {
+    r.push(FlagKind::Viscosity, visc_points, &|g| {
         let s = c.samples.iter().rev().find(|s| s.kv40_drift_pct.is_some());
         let new = c.fluid.as_ref().and_then(|f| f.kv40_new).map(|v| v.si());
         let now = s.and_then(|s| s.kv40);
@@ -266,7 +300,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
         .filter(|s| filtered_since.is_none_or(|f| s.at > f))
         .cloned()
         .collect();
-    push(
+    r.push(
         FlagKind::Cleanliness,
         graded_samples(
             &clean_samples,
@@ -307,7 +341,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
     );
     let mut water = graded_samples(&c.samples, limits, LimitKey::WaterPpm, |s| s.water_ppm);
     let water_by = act_on_trend(&mut water, limits.get(LimitKey::WaterPpm).act, horizon_days);
-    push(FlagKind::Water, water, &|g| {
+    r.push(FlagKind::Water, water, &|g| {
         let now = c.samples.iter().rev().find_map(|s| s.water_ppm);
         let what = match (water_by, now) {
             (Some(by), Some(now)) if g.state == State::Act => format!(
@@ -337,7 +371,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
         limits.get(LimitKey::AcidRiseMgKohG).act,
         horizon_days,
     );
-    push(FlagKind::Acid, acid, &|g| {
+    r.push(FlagKind::Acid, acid, &|g| {
         let now = c.samples.iter().rev().find_map(|s| s.acid_rise);
         let what = match (acid_by, now) {
             (Some(by), Some(now)) if g.state == State::Act => format!(
@@ -356,6 +390,11 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             "{what}: the oil is oxidising — check the oil temperature and aeration, and plan a fluid change."
         )
     });
+}
+
+/// The filter indicator and the oil level at the latest check.
+fn filter_and_oil_level(r: &mut Raised, h: &UnitHistory) {
+    let c = r.c;
 
     // Filter and oil level: the latest reading, cleared by the work that answers it.
     let cleared_after = |t: DateTime<Utc>, kinds: &[EventKind]| {
@@ -385,7 +424,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             })
         })
         .collect();
-    push(FlagKind::Filter, filters, &|g| {
+    r.push(FlagKind::Filter, filters, &|g| {
         if g.state == State::Act {
             "The filter indicator shows bypass: unfiltered oil is reaching the system — change the element now and \
              take a sample."
@@ -416,7 +455,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             })
         })
         .collect();
-    push(FlagKind::OilLevel, levels, &|_| {
+    r.push(FlagKind::OilLevel, levels, &|_| {
         let fluid = c
             .fluid
             .as_ref()
@@ -424,6 +463,11 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             .unwrap_or_default();
         format!("Oil level low at the last check: top up{fluid} and look for an external leak (hoses, fittings, rod seals).")
     });
+}
+
+/// The statistical drift flag.
+fn drift(r: &mut Raised, limits: &Limits, sys: UnitSystem) {
+    let c = r.c;
 
     // Statistical drift: the longest run of EWMA or CUSUM signals over the indicators.
     let dl = limits.get(LimitKey::DriftChecks);
@@ -458,7 +502,7 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             }
         })
         .collect();
-    push(FlagKind::Drift, drift, &|g| {
+    r.push(FlagKind::Drift, drift, &|g| {
         let p = c.checks.iter().rev().find(|p| !p.drift.is_empty());
         let d = p.and_then(|p| p.drift.iter().max_by_key(|d| d.run));
         let what = match d {
@@ -523,7 +567,10 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
         };
         format!("{what}: a small steady shift, not noise — look at it now, before it reaches the limits.")
     });
+}
 
+/// The drift flag's figure.
+fn drift_figure(out: &mut [Flag], c: &Computed) {
     // The drift flag's figure: the EWMA of the indicator that drifted, its limit and baseline.
     if let Some(f) = out.iter_mut().find(|f| f.kind == FlagKind::Drift) {
         let p = c.checks.iter().rev().find(|p| !p.drift.is_empty());
@@ -542,6 +589,10 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             });
         }
     }
+}
+
+/// The baselines of the figures measured against one, and the restart each flag follows.
+fn baselines_and_restarts(out: &mut [Flag], c: &Computed) {
     // Baselines of the figures measured against one, and the restart each flag follows.
     for f in out.iter_mut() {
         if let Some(fig) = f.figure.as_mut() {
@@ -559,6 +610,4 @@ pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) ->
             .find(|r| r.flag_kinds().contains(&f.kind))
             .cloned();
     }
-
-    out
 }
