@@ -124,74 +124,140 @@ pub fn plan(
     at: DateTime<Utc>,
 ) -> Vec<WorkItem> {
     let today = c.calendar.day(at);
-    let mut items: Vec<(WorkKind, Candidate)> = Vec::new();
-    let last_check = h.checks.last().map(|c| c.taken_at);
-    let first_check = h.checks.first().map(|c| c.taken_at);
     let last_reading = h
         .checks
         .iter()
         .rev()
         .find(|c| c.hours.is_some())
         .map(|c| c.taken_at);
-    let hours_now = last_reading.and_then(|t| hours_at(h, t));
-    let flag = |k: FlagKind| flags.iter().find(|f| f.kind == k && f.state == State::Act);
-    let last_event = |kinds: &[EventKind]| {
-        h.events
+    let unit = Planning {
+        h,
+        c,
+        flags,
+        limits,
+        first_check: h.checks.first().map(|c| c.taken_at),
+        last_reading,
+        hours_now: last_reading.and_then(|t| hours_at(h, t)),
+    };
+    let items: Vec<(WorkKind, Candidate)> = [
+        (WorkKind::Check, unit.check()),
+        (WorkKind::Sample, unit.sample()),
+        (WorkKind::FilterChange, unit.filter_change()),
+        (WorkKind::FluidChange, unit.fluid_change()),
+    ]
+    .into_iter()
+    .filter_map(|(kind, cand)| Some((kind, cand?)))
+    .collect();
+
+    let ol = limits.get(LimitKey::OverdueDays);
+    let mut out: Vec<WorkItem> = items
+        .into_iter()
+        .map(|(kind, cand)| {
+            let days_overdue = (today - cand.due).num_days();
+            let state = State::from_grade(ol.grade(days_overdue as f64));
+            WorkItem {
+                kind,
+                due: cand.due,
+                basis: cand.basis,
+                pulled_forward: cand.pulled_forward,
+                days_overdue,
+                state,
+                caution: matches!(
+                    kind,
+                    WorkKind::FluidChange | WorkKind::FilterChange | WorkKind::Sample
+                )
+                .then(|| CAUTION_SHORT.to_string()),
+            }
+        })
+        .collect();
+    out.sort_by_key(|w| (w.due, w.kind));
+    out
+}
+
+/// What the plan of one unit reads: its history, evaluation, flags and limits, and its hour
+/// meter.
+struct Planning<'a> {
+    h: &'a UnitHistory,
+    c: &'a Computed,
+    flags: &'a [Flag],
+    limits: &'a Limits,
+    first_check: Option<DateTime<Utc>>,
+    /// The latest check with an hour-meter reading, and the hours then.
+    last_reading: Option<DateTime<Utc>>,
+    hours_now: Option<f64>,
+}
+
+impl Planning<'_> {
+    /// The unit's flag of kind `k` at act, if any.
+    fn flag(&self, k: FlagKind) -> Option<&Flag> {
+        self.flags
+            .iter()
+            .find(|f| f.kind == k && f.state == State::Act)
+    }
+
+    /// When work of one of `kinds` was last done.
+    fn last_event(&self, kinds: &[EventKind]) -> Option<DateTime<Utc>> {
+        self.h
+            .events
             .iter()
             .rev()
             .find(|e| kinds.contains(&e.kind))
             .map(|e| e.done_at)
-    };
-
-    // Walk-round check.
-    // Dates are added with checks: a due date past the calendar's end is no due date (a stored
-    // interval from before ranges were enforced could be any number).
-    let every = limits.value(LimitKey::CheckIntervalDays).round().max(1.0) as i64;
-    if let Some((last, due)) =
-        last_check.and_then(|l| Some((l, add_days(c.calendar.day(l), every)?)))
-    {
-        items.push((
-            WorkKind::Check,
-            Candidate {
-                due,
-                basis: format!("every {every} days; last check {}", c.calendar.day(last)),
-                pulled_forward: None,
-            },
-        ));
     }
 
-    // Sample.
-    let weeks = limits.value(LimitKey::SampleIntervalWeeks).max(0.1);
-    let sample_from = h
-        .samples
-        .last()
-        .map(|s| (s.sampled_at, "last sample"))
-        .or(first_check.map(|t| (t, "first check")));
-    let sample_due = sample_from.and_then(|(from, what)| {
-        Some((
-            from,
-            what,
-            add_days(c.calendar.day(from), (weeks * 7.0).round() as i64)?,
-        ))
-    });
-    if let Some((from, what, due)) = sample_due {
-        items.push((
-            WorkKind::Sample,
-            Candidate {
-                due,
-                basis: format!(
-                    "every {} weeks; {what} {}",
-                    super::text::num(weeks, 1),
-                    c.calendar.day(from)
-                ),
-                pulled_forward: None,
-            },
-        ));
+    /// The next walk-round check.
+    fn check(&self) -> Option<Candidate> {
+        let (h, c, limits) = (self.h, self.c, self.limits);
+        // Dates are added with checks: a due date past the calendar's end is no due date (a stored
+        // interval from before ranges were enforced could be any number).
+        let every = limits.value(LimitKey::CheckIntervalDays).round().max(1.0) as i64;
+        let last_check = h.checks.last().map(|c| c.taken_at);
+        let (last, due) =
+            last_check.and_then(|l| Some((l, add_days(c.calendar.day(l), every)?)))?;
+        Some(Candidate {
+            due,
+            basis: format!("every {every} days; last check {}", c.calendar.day(last)),
+            pulled_forward: None,
+        })
     }
 
-    // Filter change: run-hours, or at once on the indicator or on dirty oil.
-    let filter_from = last_event(&[EventKind::FilterChange]).or(first_check);
-    if let Some(from) = filter_from {
+    /// The next fluid sample.
+    fn sample(&self) -> Option<Candidate> {
+        let (h, c, limits) = (self.h, self.c, self.limits);
+        let first_check = self.first_check;
+        let weeks = limits.value(LimitKey::SampleIntervalWeeks).max(0.1);
+        let sample_from = h
+            .samples
+            .last()
+            .map(|s| (s.sampled_at, "last sample"))
+            .or(first_check.map(|t| (t, "first check")));
+        let sample_due = sample_from.and_then(|(from, what)| {
+            Some((
+                from,
+                what,
+                add_days(c.calendar.day(from), (weeks * 7.0).round() as i64)?,
+            ))
+        });
+        let (from, what, due) = sample_due?;
+        Some(Candidate {
+            due,
+            basis: format!(
+                "every {} weeks; {what} {}",
+                super::text::num(weeks, 1),
+                c.calendar.day(from)
+            ),
+            pulled_forward: None,
+        })
+    }
+
+    /// The next filter change.
+    fn filter_change(&self) -> Option<Candidate> {
+        let (h, c, limits) = (self.h, self.c, self.limits);
+        let (first_check, last_reading, hours_now) =
+            (self.first_check, self.last_reading, self.hours_now);
+        // Filter change: run-hours, or at once on the indicator or on dirty oil.
+        let filter_from = self.last_event(&[EventKind::FilterChange]).or(first_check);
+        let from = filter_from?;
         let mut cands = Vec::new();
         let interval = limits.value(LimitKey::FilterChangeHours);
         if let (Some(now), Some(h0)) = (hours_now, hours_at(h, from)) {
@@ -229,7 +295,10 @@ pub fn plan(
                 });
             }
         }
-        if let Some(f) = flag(FlagKind::Cleanliness).filter(|f| f.state_since > from) {
+        if let Some(f) = self
+            .flag(FlagKind::Cleanliness)
+            .filter(|f| f.state_since > from)
+        {
             cands.push(Candidate {
                 due: c.calendar.day(f.state_since),
                 basis: format!("cleanliness sample of {}", c.calendar.day(f.state_since)),
@@ -238,16 +307,19 @@ pub fn plan(
                 ),
             });
         }
-        if let Some(best) = earliest(cands) {
-            items.push((WorkKind::FilterChange, best));
-        }
+        earliest(cands)
     }
 
-    // Fluid change: run-hours, oil-life equivalent hours or calendar months, whichever first;
-    // pulled forward by the condition of the oil.
-    let era_start = c.era.as_ref().map(|e| e.start);
-    let change_from = last_event(&[EventKind::FluidChange]).or(first_check);
-    if let Some(from) = change_from {
+    /// The next fluid change.
+    fn fluid_change(&self) -> Option<Candidate> {
+        let (h, c, limits) = (self.h, self.c, self.limits);
+        let (first_check, last_reading, hours_now) =
+            (self.first_check, self.last_reading, self.hours_now);
+        // Fluid change: run-hours, oil-life equivalent hours or calendar months, whichever first;
+        // pulled forward by the condition of the oil.
+        let era_start = c.era.as_ref().map(|e| e.start);
+        let change_from = self.last_event(&[EventKind::FluidChange]).or(first_check);
+        let from = change_from?;
         let mut cands = Vec::new();
         let months = limits.value(LimitKey::FluidChangeMonths).round().max(1.0) as u32;
         if let Some(due) = c.calendar.day(from).checked_add_months(Months::new(months)) {
@@ -308,7 +380,7 @@ pub fn plan(
             ),
         ];
         for (kind, why) in condition {
-            if let Some(f) = flag(kind) {
+            if let Some(f) = self.flag(kind) {
                 cands.push(Candidate {
                     due: c.calendar.day(f.state_since),
                     basis: format!(
@@ -321,7 +393,7 @@ pub fn plan(
             }
         }
         // Still dirty after a filter change: the dirt is coming in, or the oil is past saving.
-        if let Some(f) = flag(FlagKind::Cleanliness) {
+        if let Some(f) = self.flag(FlagKind::Cleanliness) {
             let previous_sample = c
                 .samples
                 .iter()
@@ -343,32 +415,6 @@ pub fn plan(
                 });
             }
         }
-        if let Some(best) = earliest(cands) {
-            items.push((WorkKind::FluidChange, best));
-        }
+        earliest(cands)
     }
-
-    let ol = limits.get(LimitKey::OverdueDays);
-    let mut out: Vec<WorkItem> = items
-        .into_iter()
-        .map(|(kind, cand)| {
-            let days_overdue = (today - cand.due).num_days();
-            let state = State::from_grade(ol.grade(days_overdue as f64));
-            WorkItem {
-                kind,
-                due: cand.due,
-                basis: cand.basis,
-                pulled_forward: cand.pulled_forward,
-                days_overdue,
-                state,
-                caution: matches!(
-                    kind,
-                    WorkKind::FluidChange | WorkKind::FilterChange | WorkKind::Sample
-                )
-                .then(|| CAUTION_SHORT.to_string()),
-            }
-        })
-        .collect();
-    out.sort_by_key(|w| (w.due, w.kind));
-    out
 }
