@@ -9,7 +9,7 @@ use chrono::NaiveDate;
 use serde::{Deserialize, Serialize};
 
 use super::baseline::BaselineIndicator;
-use super::indicators::Computed;
+use super::indicators::{CheckPoint, Computed};
 use super::plan::{WorkItem, WorkKind};
 use crate::model::UnitHistory;
 
@@ -68,65 +68,19 @@ fn at_next(what: &str, d: Option<NaiveDate>) -> String {
 /// Every indicator of the unit that cannot be judged at the evaluation date.
 pub fn not_judged(h: &UnitHistory, c: &Computed, work: &[WorkItem]) -> Vec<NotJudged> {
     let mut out: Vec<NotJudged> = Vec::new();
-    let next_check = due(work, WorkKind::Check);
-    let next_sample = due(work, WorkKind::Sample);
+    check_indicators(h, c, due(work, WorkKind::Check), &mut out);
+    sample_indicators(h, c, due(work, WorkKind::Sample), &mut out);
+    out
+}
+
+/// The indicators read at the walk-round check.
+fn check_indicators(
+    h: &UnitHistory,
+    c: &Computed,
+    next_check: Option<NaiveDate>,
+    out: &mut Vec<NotJudged>,
+) {
     let no_era = c.era.is_none();
-
-    // Checks against the era's baseline.
-    let baselined = |ind: BaselineIndicator,
-                     key: &str,
-                     label: &str,
-                     reading: &str,
-                     has: &dyn Fn(&super::indicators::CheckPoint) -> bool,
-                     judged: bool,
-                     expected: bool,
-                     out: &mut Vec<NotJudged>| {
-        if judged {
-            return;
-        }
-        let have = c.checks.iter().filter(|p| has(p)).count();
-        if no_era || have == 0 {
-            out.push(nj(
-                key,
-                label,
-                format!("no {reading} in this era"),
-                at_next("check", next_check),
-                None,
-                next_check,
-                expected,
-            ));
-            return;
-        }
-        if c.baseline.get(ind).is_none() {
-            let need = c.baseline_needs.saturating_sub(have).max(1);
-            out.push(nj(
-                key,
-                label,
-                format!(
-                    "the era's baseline is still forming ({have} of {} checks with a {reading})",
-                    c.baseline_needs
-                ),
-                format!(
-                    "after {need} more check{}",
-                    if need == 1 { "" } else { "s" }
-                ),
-                Some(need),
-                next_check,
-                expected,
-            ));
-        } else {
-            out.push(nj(
-                key,
-                label,
-                format!("no {reading} since the baseline was formed"),
-                at_next("check", next_check),
-                None,
-                next_check,
-                expected,
-            ));
-        }
-    };
-
     let has_stroke = h.unit.stroke.is_some();
     if !has_stroke {
         for (key, label) in [
@@ -150,26 +104,34 @@ pub fn not_judged(h: &UnitHistory, c: &Computed, work: &[WorkItem]) -> Vec<NotJu
             ("effective_flow", "Effective flow"),
         ] {
             baselined(
-                BaselineIndicator::EffectiveFlow,
-                key,
-                label,
-                "timed stroke",
-                &|p| p.effective_flow.is_some(),
+                c,
+                next_check,
+                Baselined {
+                    ind: BaselineIndicator::EffectiveFlow,
+                    key,
+                    label,
+                    reading: "timed stroke",
+                    has: &|p| p.effective_flow.is_some(),
+                    expected: true,
+                },
                 judged,
-                true,
-                &mut out,
+                out,
             );
         }
     }
     baselined(
-        BaselineIndicator::HeatRise,
-        "heat_rise",
-        "Heat rise",
-        "reservoir and ambient temperature",
-        &|p| p.heat_rise.is_some(),
+        c,
+        next_check,
+        Baselined {
+            ind: BaselineIndicator::HeatRise,
+            key: "heat_rise",
+            label: "Heat rise",
+            reading: "reservoir and ambient temperature",
+            has: &|p| p.heat_rise.is_some(),
+            expected: true,
+        },
         c.checks.iter().any(|p| p.heat_rise_drift_median.is_some()),
-        true,
-        &mut out,
+        out,
     );
     // Leak conductance: judged where the leakage can be resolved; not expected of every unit.
     let leak_judged =
@@ -197,14 +159,18 @@ pub fn not_judged(h: &UnitHistory, c: &Computed, work: &[WorkItem]) -> Vec<NotJu
             ));
         } else {
             baselined(
-                BaselineIndicator::LeakConductance,
-                "leak_conductance",
-                "Leak conductance",
-                "timed stroke with oil temperature and pressure",
-                &|p| p.leak_conductance.is_some(),
+                c,
+                next_check,
+                Baselined {
+                    ind: BaselineIndicator::LeakConductance,
+                    key: "leak_conductance",
+                    label: "Leak conductance",
+                    reading: "timed stroke with oil temperature and pressure",
+                    has: &|p| p.leak_conductance.is_some(),
+                    expected: false,
+                },
                 false,
-                false,
-                &mut out,
+                out,
             );
         }
     }
@@ -212,16 +178,20 @@ pub fn not_judged(h: &UnitHistory, c: &Computed, work: &[WorkItem]) -> Vec<NotJu
     let logs_drain = h.checks.iter().any(|ch| ch.case_drain.is_some());
     if logs_drain {
         baselined(
-            BaselineIndicator::CaseDrain,
-            "case_drain",
-            "Case drain",
-            "case-drain flow",
-            &|p| p.case_drain_corrected.is_some(),
+            c,
+            next_check,
+            Baselined {
+                ind: BaselineIndicator::CaseDrain,
+                key: "case_drain",
+                label: "Case drain",
+                reading: "case-drain flow",
+                has: &|p| p.case_drain_corrected.is_some(),
+                expected: true,
+            },
             c.checks
                 .iter()
                 .any(|p| p.case_drain_rise_median_pct.is_some()),
-            true,
-            &mut out,
+            out,
         );
     }
     // Reservoir temperature: absolute limits, judged from any reading of the era.
@@ -236,7 +206,15 @@ pub fn not_judged(h: &UnitHistory, c: &Computed, work: &[WorkItem]) -> Vec<NotJu
             true,
         ));
     }
+}
 
+/// The indicators read from the era's fluid samples.
+fn sample_indicators(
+    h: &UnitHistory,
+    c: &Computed,
+    next_sample: Option<NaiveDate>,
+    out: &mut Vec<NotJudged>,
+) {
     // Samples of the era.
     let sample_missing = |what: &str| {
         if c.samples.is_empty() {
@@ -337,5 +315,79 @@ pub fn not_judged(h: &UnitHistory, c: &Computed, work: &[WorkItem]) -> Vec<NotJu
             expected,
         ));
     }
-    out
+}
+
+/// An indicator judged against the era's baseline: what it is (`ind`, its tile `key` and
+/// `label`), the reading it is computed from (`reading`, and `has` whether a check has it).
+struct Baselined<'a> {
+    ind: BaselineIndicator,
+    key: &'a str,
+    label: &'a str,
+    reading: &'a str,
+    has: &'a dyn Fn(&CheckPoint) -> bool,
+    expected: bool,
+}
+
+/// What keeps a baselined indicator from being judged, unless it is `judged`: no reading in
+/// the era, a baseline still forming, or no reading since it formed.
+fn baselined(
+    c: &Computed,
+    next_check: Option<NaiveDate>,
+    b: Baselined,
+    judged: bool,
+    out: &mut Vec<NotJudged>,
+) {
+    let Baselined {
+        ind,
+        key,
+        label,
+        reading,
+        has,
+        expected,
+    } = b;
+    let no_era = c.era.is_none();
+    if judged {
+        return;
+    }
+    let have = c.checks.iter().filter(|p| has(p)).count();
+    if no_era || have == 0 {
+        out.push(nj(
+            key,
+            label,
+            format!("no {reading} in this era"),
+            at_next("check", next_check),
+            None,
+            next_check,
+            expected,
+        ));
+        return;
+    }
+    if c.baseline.get(ind).is_none() {
+        let need = c.baseline_needs.saturating_sub(have).max(1);
+        out.push(nj(
+            key,
+            label,
+            format!(
+                "the era's baseline is still forming ({have} of {} checks with a {reading})",
+                c.baseline_needs
+            ),
+            format!(
+                "after {need} more check{}",
+                if need == 1 { "" } else { "s" }
+            ),
+            Some(need),
+            next_check,
+            expected,
+        ));
+    } else {
+        out.push(nj(
+            key,
+            label,
+            format!("no {reading} since the baseline was formed"),
+            at_next("check", next_check),
+            None,
+            next_check,
+            expected,
+        ));
+    }
 }
