@@ -114,67 +114,15 @@ fn import_inner<R: Read>(
     rejects: Option<PathBuf>,
     mapping: Option<&Mapping>,
 ) -> Result<ImportSummary, ExchangeError> {
-    let io_err = |e: std::io::Error| ExchangeError::Io {
-        path: PathBuf::from(label),
-        source: e,
-    };
-    let guarded = LineGuard {
-        inner: input,
-        breaks: 0,
-        run: 0,
-    };
-    let mut input = BufReader::with_capacity(1 << 16, guarded);
-    let mut first = Vec::new();
-    if let Err(e) = input.read_until(b'\n', &mut first) {
-        return Err(match too_long(&e) {
-            Some(t) => ExchangeError::Rows(vec![RowError {
-                file: label.into(),
-                line: 1,
-                column: "header".into(),
-                reason: t.to_string(),
-            }]),
-            None => io_err(e),
-        });
-    }
-    // UTF-16 with a byte-order mark, or without one: ASCII header text then has a zero byte
-    // beside every letter (`u\0n\0i\0t\0`), which no UTF-8 header has. Said once, instead of
-    // an unknown column per garbled name.
-    let zeros = |parity: usize| {
-        first
-            .iter()
-            .skip(parity)
-            .step_by(2)
-            .filter(|&&b| b == 0)
-            .count()
-    };
-    let half = first.len() / 2;
-    let utf16_no_bom = half >= 2 && (zeros(0) * 4 >= half * 3 || zeros(1) * 4 >= half * 3);
-    if first.starts_with(b"\xFF\xFE") || first.starts_with(b"\xFE\xFF") || utf16_no_bom {
-        return Err(ExchangeError::Rows(vec![RowError {
-            file: label.into(),
-            line: 1,
-            column: "column 1".into(),
-            reason: "the file is UTF-16 text; save it as UTF-8 (in a spreadsheet: CSV UTF-8)"
-                .into(),
-        }]));
-    }
-    let first_line = first
-        .strip_prefix(b"\xEF\xBB\xBF")
-        .unwrap_or(&first)
-        .to_vec();
-    if first_line.iter().all(u8::is_ascii_whitespace) {
-        let expected = specs(kind)
-            .iter()
-            .map(|s| s.name)
-            .collect::<Vec<_>>()
-            .join(", ");
-        return Err(ExchangeError::Rows(vec![RowError {
-            file: label.into(),
-            line: 1,
-            column: "header".into(),
-            reason: format!("the file is empty; a {kind} file starts with a header line naming its columns: {expected}"),
-        }]));
-    }
+    let mut input = BufReader::with_capacity(
+        1 << 16,
+        LineGuard {
+            inner: input,
+            breaks: 0,
+            run: 0,
+        },
+    );
+    let first_line = first_line(kind, label, &mut input)?;
     let delimiter = detect_delimiter(&first_line);
     let mut reader = csv::ReaderBuilder::new()
         .delimiter(delimiter)
@@ -189,42 +137,7 @@ fn import_inner<R: Read>(
         );
 
     let mut rec = ByteRecord::new();
-    let csv_err = |e: csv::Error| ExchangeError::Io {
-        path: PathBuf::from(label),
-        source: e.into(),
-    };
-    let header_read = match reader.read_byte_record(&mut rec) {
-        Err(e) => {
-            if let csv::ErrorKind::Io(ioe) = e.kind() {
-                if let Some(t) = too_long(ioe) {
-                    return Err(ExchangeError::Rows(vec![RowError {
-                        file: label.into(),
-                        line: 1,
-                        column: "header".into(),
-                        reason: t.to_string(),
-                    }]));
-                }
-                if let Some(q) = quote_left_open(ioe) {
-                    return Err(ExchangeError::Rows(vec![RowError {
-                        file: label.into(),
-                        line: q.line,
-                        column: "header".into(),
-                        reason: q.to_string(),
-                    }]));
-                }
-            }
-            return Err(csv_err(e));
-        }
-        Ok(read) => read,
-    };
-    if !header_read {
-        return Err(ExchangeError::Rows(vec![RowError {
-            file: label.into(),
-            line: 1,
-            column: "header".into(),
-            reason: "the file has no header line".into(),
-        }]));
-    }
+    read_header(label, &mut reader, &mut rec)?;
     let header = parse_header(kind, label, &rec, mapping).map_err(ExchangeError::Rows)?;
     let mut rejects = rejects.map(|path| Rejects {
         path,
@@ -258,40 +171,35 @@ fn import_inner<R: Read>(
             Ok(false) => break,
             Err(e) => {
                 if let csv::ErrorKind::Io(ioe) = e.kind() {
-                    if let Some(t) = too_long(ioe) {
-                        // The rest of the file cannot be read safely: nothing is imported.
+                    // The rest of the file cannot be read safely: nothing is imported.
+                    let unsafe_rest = too_long(ioe)
+                        .map(|t| (t.line, "row".to_string(), t.to_string()))
+                        // Everything after the quote was read into one cell.
+                        .or_else(|| {
+                            quote_left_open(ioe)
+                                .map(|q| (q.line, header.name_at(q.field), q.to_string()))
+                        });
+                    if let Some((line, column, reason)) = unsafe_rest {
                         errors.push(RowError {
                             file: label.into(),
-                            line: t.line,
-                            column: "row".into(),
-                            reason: t.to_string(),
+                            line,
+                            column,
+                            reason,
                         });
                         bulk.rollback();
                         return Err(ExchangeError::Rows(errors));
                     }
-                    if let Some(q) = quote_left_open(ioe) {
-                        // Everything after the quote was read into one cell: nothing is imported.
-                        errors.push(RowError {
-                            file: label.into(),
-                            line: q.line,
-                            column: header.name_at(q.field),
-                            reason: q.to_string(),
-                        });
-                        bulk.rollback();
-                        return Err(ExchangeError::Rows(errors));
-                    }
-                    return Err(csv_err(e));
+                    return Err(io_error(label, e.into()));
                 }
                 let line = e.position().map_or(0, |p| p.line());
-                let row_err = RowError {
+                // Not even keep-going passes this row over: its cells are not to hand, so it
+                // could not be written to the rejects file and would be lost.
+                errors.push(RowError {
                     file: label.into(),
                     line,
                     column: "row".into(),
                     reason: format!("cannot read: {e}"),
-                };
-                // Not even keep-going passes this row over: its cells are not to hand, so it
-                // could not be written to the rejects file and would be lost.
-                errors.push(row_err);
+                });
                 continue;
             }
         }
@@ -310,34 +218,7 @@ fn import_inner<R: Read>(
             rounded: 0,
             dates: mapping.map_or(DateOrder::Iso, |m| m.dates),
         };
-        let outcome = if let Some(column) = unclosed_quote(&rec, delimiter, header.width) {
-            let name = header.name_at(column);
-            row.err(
-                &name,
-                "a quote (\") opened in this cell is never closed, so the rows after it were read into \
-                 the cell; close the quote",
-            );
-            None
-        } else if rec.len() != header.width {
-            // Quote what does not fit, so that nothing of the row is lost in the message.
-            let surplus: Vec<String> = rec
-                .iter()
-                .skip(header.width)
-                .map(|c| format!("`{}`", String::from_utf8_lossy(c)))
-                .collect();
-            let extra = if surplus.is_empty() {
-                String::new()
-            } else {
-                format!(" (the extra: {})", surplus.join(", "))
-            };
-            row.err(
-                "row",
-                format!(
-                    "has {} cells but the header names {} columns{extra}",
-                    rec.len(),
-                    header.width
-                ),
-            );
+        let outcome = if misshapen(&mut row, &rec, delimiter, &header) {
             None
         } else {
             importer.row(&mut bulk, &mut row, &mut summary)?
@@ -399,4 +280,143 @@ fn import_inner<R: Read>(
     }
     bulk.commit()?;
     Ok(summary)
+}
+
+/// One error that stops the whole file, at `line`, in `column`.
+fn file_error(label: &str, line: u64, column: &str, reason: String) -> ExchangeError {
+    ExchangeError::Rows(vec![RowError {
+        file: label.into(),
+        line,
+        column: column.into(),
+        reason,
+    }])
+}
+
+/// The file could not be read at all.
+fn io_error(label: &str, source: std::io::Error) -> ExchangeError {
+    ExchangeError::Io {
+        path: PathBuf::from(label),
+        source,
+    }
+}
+
+/// The file's first line, without a UTF-8 byte-order mark; refused when it is too long, the
+/// file is UTF-16 text, or there is nothing in it.
+fn first_line<R: Read>(
+    kind: FileKind,
+    label: &str,
+    input: &mut BufReader<LineGuard<R>>,
+) -> Result<Vec<u8>, ExchangeError> {
+    let mut first = Vec::new();
+    if let Err(e) = input.read_until(b'\n', &mut first) {
+        return Err(match too_long(&e) {
+            Some(t) => file_error(label, 1, "header", t.to_string()),
+            None => io_error(label, e),
+        });
+    }
+    // UTF-16 with a byte-order mark, or without one: ASCII header text then has a zero byte
+    // beside every letter (`u\0n\0i\0t\0`), which no UTF-8 header has. Said once, instead of
+    // an unknown column per garbled name.
+    let zeros = |parity: usize| {
+        first
+            .iter()
+            .skip(parity)
+            .step_by(2)
+            .filter(|&&b| b == 0)
+            .count()
+    };
+    let half = first.len() / 2;
+    let utf16_no_bom = half >= 2 && (zeros(0) * 4 >= half * 3 || zeros(1) * 4 >= half * 3);
+    if first.starts_with(b"\xFF\xFE") || first.starts_with(b"\xFE\xFF") || utf16_no_bom {
+        return Err(file_error(
+            label,
+            1,
+            "column 1",
+            "the file is UTF-16 text; save it as UTF-8 (in a spreadsheet: CSV UTF-8)".into(),
+        ));
+    }
+    let first_line = first
+        .strip_prefix(b"\xEF\xBB\xBF")
+        .unwrap_or(&first)
+        .to_vec();
+    if first_line.iter().all(u8::is_ascii_whitespace) {
+        let expected = specs(kind)
+            .iter()
+            .map(|s| s.name)
+            .collect::<Vec<_>>()
+            .join(", ");
+        return Err(file_error(
+            label,
+            1,
+            "header",
+            format!("the file is empty; a {kind} file starts with a header line naming its columns: {expected}"),
+        ));
+    }
+    Ok(first_line)
+}
+
+/// Reads the header line into `rec`; refused when it is too long, opens a quote it never
+/// closes, or is not there.
+fn read_header<R: Read>(
+    label: &str,
+    reader: &mut csv::Reader<R>,
+    rec: &mut ByteRecord,
+) -> Result<(), ExchangeError> {
+    match reader.read_byte_record(rec) {
+        Ok(true) => Ok(()),
+        Ok(false) => Err(file_error(
+            label,
+            1,
+            "header",
+            "the file has no header line".into(),
+        )),
+        Err(e) => {
+            if let csv::ErrorKind::Io(ioe) = e.kind() {
+                if let Some(t) = too_long(ioe) {
+                    return Err(file_error(label, 1, "header", t.to_string()));
+                }
+                if let Some(q) = quote_left_open(ioe) {
+                    return Err(file_error(label, q.line, "header", q.to_string()));
+                }
+            }
+            Err(io_error(label, e.into()))
+        }
+    }
+}
+
+/// Whether the row is not the header's shape — a quote never closed, or another number of
+/// cells — said on `row`.
+fn misshapen(row: &mut RowReader, rec: &ByteRecord, delimiter: u8, header: &Header) -> bool {
+    if let Some(column) = unclosed_quote(rec, delimiter, header.width) {
+        let name = header.name_at(column);
+        row.err(
+            &name,
+            "a quote (\") opened in this cell is never closed, so the rows after it were read into \
+             the cell; close the quote",
+        );
+        return true;
+    }
+    if rec.len() != header.width {
+        // Quote what does not fit, so that nothing of the row is lost in the message.
+        let surplus: Vec<String> = rec
+            .iter()
+            .skip(header.width)
+            .map(|c| format!("`{}`", String::from_utf8_lossy(c)))
+            .collect();
+        let extra = if surplus.is_empty() {
+            String::new()
+        } else {
+            format!(" (the extra: {})", surplus.join(", "))
+        };
+        row.err(
+            "row",
+            format!(
+                "has {} cells but the header names {} columns{extra}",
+                rec.len(),
+                header.width
+            ),
+        );
+        return true;
+    }
+    false
 }
