@@ -227,6 +227,75 @@ pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: 
         &title,
     );
 
+    let legend = legend_lines(fonts, legend_keys(chart), w);
+    let (plot, ticks) = plot_area(fonts, chart, x, top, w, h, legend.len());
+    value_grid(page, fonts, &plot, &ticks);
+    date_axis(page, fonts, chart, &plot, x, w);
+    let any_point = contents(page, chart, &plot);
+    event_tabs(page, fonts, chart, &plot);
+    limit_labels(page, fonts, chart, &plot);
+    if !any_point {
+        let Plot {
+            plot_x,
+            plot_w,
+            plot_top,
+            plot_h,
+            ..
+        } = plot;
+        let note = fonts.fit(Face::Regular, size::SMALL, &chart.empty_note, plot_w - 4.0);
+        page.text_centred(
+            fonts,
+            Face::Regular,
+            size::SMALL,
+            DARK,
+            plot_x + plot_w / 2.0,
+            plot_top + plot_h / 2.0,
+            &note,
+        );
+    }
+    draw_legend(page, fonts, legend, &plot, x, w);
+}
+
+/// Where a chart's plot sits on the page and what it shows: the box, the value range and the
+/// period, mapped to page coordinates by [`Plot::px`] and [`Plot::py`].
+#[derive(Clone, Copy)]
+struct Plot {
+    plot_x: f32,
+    plot_r: f32,
+    plot_w: f32,
+    plot_top: f32,
+    plot_bottom: f32,
+    plot_h: f32,
+    lo: f64,
+    hi: f64,
+    from: NaiveDate,
+    span_days: f64,
+}
+
+impl Plot {
+    /// The page x of an instant.
+    fn px(&self, at: DateTime<Utc>) -> f32 {
+        self.plot_x + (days_since(self.from, at) / self.span_days) as f32 * self.plot_w
+    }
+
+    /// The page y of a value.
+    fn py(&self, v: f64) -> f32 {
+        self.plot_bottom - ((v - self.lo) / (self.hi - self.lo)) as f32 * self.plot_h
+    }
+}
+
+/// The plot's box and scales, leaving room for the value labels on the left, the limit labels
+/// on the right, the title above and `legend_lines` lines of legend below; with the value
+/// ticks and their labels.
+fn plot_area(
+    fonts: &Fonts,
+    chart: &Chart,
+    x: f32,
+    top: f32,
+    w: f32,
+    h: f32,
+    legend_lines: usize,
+) -> (Plot, Vec<(f64, String)>) {
     // Value range over everything drawn, so no point, band or limit falls off the plot.
     let mut values: Vec<f64> = chart
         .series
@@ -269,10 +338,9 @@ pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: 
             2.0
         };
     let plot_w = (plot_r - plot_x).max(10.0);
-    let legend = legend_lines(fonts, legend_keys(chart), w);
     // Room for the title and for the top tick label, which stands half above its line.
     let plot_top = top + size::SMALL * 1.4 + size::TINY * 0.7;
-    let plot_bottom = top + h - size::TINY * 1.6 - legend.len() as f32 * LEGEND_LINE;
+    let plot_bottom = top + h - size::TINY * 1.6 - legend_lines as f32 * LEGEND_LINE;
     let plot_h = (plot_bottom - plot_top).max(10.0);
 
     // The period runs to the end of its last day.
@@ -284,12 +352,34 @@ pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: 
             .unwrap_or_default(),
     )
     .max(1.0);
-    let px = |at: DateTime<Utc>| plot_x + (days_since(chart.from, at) / span_days) as f32 * plot_w;
-    let py = |v: f64| plot_bottom - ((v - lo) / (hi - lo)) as f32 * plot_h;
+    let plot = Plot {
+        plot_x,
+        plot_r,
+        plot_w,
+        plot_top,
+        plot_bottom,
+        plot_h,
+        lo,
+        hi,
+        from: chart.from,
+        span_days,
+    };
+    (plot, ticks.into_iter().zip(tick_labels).collect())
+}
 
-    // Frame and value grid.
+/// The plot's white box and its value grid with the labels on the left.
+fn value_grid(page: &mut Page, fonts: &Fonts, plot: &Plot, ticks: &[(f64, String)]) {
+    let Plot {
+        plot_x,
+        plot_r,
+        plot_w,
+        plot_top,
+        plot_h,
+        ..
+    } = *plot;
+    let py = |v: f64| plot.py(v);
     page.rect(plot_x, plot_top, plot_w, plot_h, Some(WHITE), None);
-    for (t, label) in ticks.iter().zip(&tick_labels) {
+    for (t, label) in ticks {
         let y = py(*t);
         page.line(plot_x, y, plot_r, y, &Stroke::solid(0.3, FAINT));
         page.text_right(
@@ -302,7 +392,18 @@ pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: 
             label,
         );
     }
-    // Date axis.
+}
+
+/// The date axis: a tick and a faint line at each date, the labels that fit.
+fn date_axis(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot, x: f32, w: f32) {
+    let Plot {
+        plot_x,
+        plot_w,
+        plot_top,
+        plot_bottom,
+        ..
+    } = *plot;
+    let px = |at: DateTime<Utc>| plot.px(at);
     let mut label_end = f32::NEG_INFINITY;
     for (d, label) in date_ticks(fonts, chart.from, chart.to, plot_w) {
         let at = d
@@ -336,7 +437,22 @@ pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: 
             &label,
         );
     }
+}
 
+/// Inside the plot: the baseline band, the limits, the event lines and the series; whether
+/// any point was drawn.
+fn contents(page: &mut Page, chart: &Chart, plot: &Plot) -> bool {
+    let Plot {
+        plot_x,
+        plot_r,
+        plot_w,
+        plot_top,
+        plot_bottom,
+        plot_h,
+        ..
+    } = *plot;
+    let px = |at: DateTime<Utc>| plot.px(at);
+    let py = |v: f64| plot.py(v);
     page.clip(plot_x, plot_top, plot_w, plot_h);
     if let Some(b) = &chart.band {
         let (y1, y2) = (py(b.high), py(b.low));
@@ -388,7 +504,20 @@ pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: 
     }
     page.unclip();
 
-    // Event codes sit on a white tab at the top of their line, inside the plot.
+    any_point
+}
+
+/// Event codes on a white tab at the top of their line, and the plot's frame.
+fn event_tabs(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot) {
+    let Plot {
+        plot_x,
+        plot_r,
+        plot_w,
+        plot_top,
+        plot_h,
+        ..
+    } = *plot;
+    let px = |at: DateTime<Utc>| plot.px(at);
     for e in &chart.events {
         let ex = px(e.at);
         if ex < plot_x - 0.5 || ex > plot_r + 0.5 {
@@ -421,8 +550,17 @@ pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: 
         None,
         Some(&Stroke::solid(0.5, MID)),
     );
+}
 
-    // Limit labels in the right gutter, pushed apart when two limits are close.
+/// Limit labels in the right gutter, pushed apart when two limits are close.
+fn limit_labels(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot) {
+    let Plot {
+        plot_r,
+        plot_top,
+        plot_bottom,
+        ..
+    } = *plot;
+    let py = |v: f64| plot.py(v);
     let mut label_ys: Vec<(f32, &LimitLine)> =
         chart.limits.iter().map(|l| (py(l.value), l)).collect();
     label_ys.sort_by(|a, b| a.0.total_cmp(&b.0));
@@ -443,21 +581,11 @@ pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: 
         );
         last = base;
     }
+}
 
-    if !any_point {
-        let note = fonts.fit(Face::Regular, size::SMALL, &chart.empty_note, plot_w - 4.0);
-        page.text_centred(
-            fonts,
-            Face::Regular,
-            size::SMALL,
-            DARK,
-            plot_x + plot_w / 2.0,
-            plot_top + plot_h / 2.0,
-            &note,
-        );
-    }
-
-    // Legend.
+/// The legend under the plot, a line of keys at a time.
+fn draw_legend(page: &mut Page, fonts: &Fonts, legend: Vec<Vec<Key>>, plot: &Plot, x: f32, w: f32) {
+    let plot_bottom = plot.plot_bottom;
     let mut ly = plot_bottom + size::TINY * 1.6 + size::TINY;
     for line in legend {
         let mut lx = x;
