@@ -235,21 +235,19 @@ pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: 
     event_tabs(page, fonts, chart, &plot);
     limit_labels(page, fonts, chart, &plot);
     if !any_point {
-        let Plot {
-            plot_x,
-            plot_w,
-            plot_top,
-            plot_h,
-            ..
-        } = plot;
-        let note = fonts.fit(Face::Regular, size::SMALL, &chart.empty_note, plot_w - 4.0);
+        let note = fonts.fit(
+            Face::Regular,
+            size::SMALL,
+            &chart.empty_note,
+            plot.width - 4.0,
+        );
         page.text_centred(
             fonts,
             Face::Regular,
             size::SMALL,
             DARK,
-            plot_x + plot_w / 2.0,
-            plot_top + plot_h / 2.0,
+            plot.left + plot.width / 2.0,
+            plot.top + plot.height / 2.0,
             &note,
         );
     }
@@ -260,14 +258,17 @@ pub fn draw(page: &mut Page, fonts: &Fonts, chart: &Chart, x: f32, top: f32, w: 
 /// period, mapped to page coordinates by [`Plot::px`] and [`Plot::py`].
 #[derive(Clone, Copy)]
 struct Plot {
-    plot_x: f32,
-    plot_r: f32,
-    plot_w: f32,
-    plot_top: f32,
-    plot_bottom: f32,
-    plot_h: f32,
+    /// The plot's box on the page, points.
+    left: f32,
+    right: f32,
+    width: f32,
+    top: f32,
+    bottom: f32,
+    height: f32,
+    /// The value range shown, bottom to top.
     lo: f64,
     hi: f64,
+    /// The first day shown and how many days the period spans.
     from: NaiveDate,
     span_days: f64,
 }
@@ -275,12 +276,12 @@ struct Plot {
 impl Plot {
     /// The page x of an instant.
     fn px(&self, at: DateTime<Utc>) -> f32 {
-        self.plot_x + (days_since(self.from, at) / self.span_days) as f32 * self.plot_w
+        self.left + (days_since(self.from, at) / self.span_days) as f32 * self.width
     }
 
     /// The page y of a value.
     fn py(&self, v: f64) -> f32 {
-        self.plot_bottom - ((v - self.lo) / (self.hi - self.lo)) as f32 * self.plot_h
+        self.bottom - ((v - self.lo) / (self.hi - self.lo)) as f32 * self.height
     }
 }
 
@@ -353,12 +354,12 @@ fn plot_area(
     )
     .max(1.0);
     let plot = Plot {
-        plot_x,
-        plot_r,
-        plot_w,
-        plot_top,
-        plot_bottom,
-        plot_h,
+        left: plot_x,
+        right: plot_r,
+        width: plot_w,
+        top: plot_top,
+        bottom: plot_bottom,
+        height: plot_h,
         lo,
         hi,
         from: chart.from,
@@ -369,25 +370,24 @@ fn plot_area(
 
 /// The plot's white box and its value grid with the labels on the left.
 fn value_grid(page: &mut Page, fonts: &Fonts, plot: &Plot, ticks: &[(f64, String)]) {
-    let Plot {
-        plot_x,
-        plot_r,
-        plot_w,
-        plot_top,
-        plot_h,
-        ..
-    } = *plot;
     let py = |v: f64| plot.py(v);
-    page.rect(plot_x, plot_top, plot_w, plot_h, Some(WHITE), None);
+    page.rect(
+        plot.left,
+        plot.top,
+        plot.width,
+        plot.height,
+        Some(WHITE),
+        None,
+    );
     for (t, label) in ticks {
         let y = py(*t);
-        page.line(plot_x, y, plot_r, y, &Stroke::solid(0.3, FAINT));
+        page.line(plot.left, y, plot.right, y, &Stroke::solid(0.3, FAINT));
         page.text_right(
             fonts,
             Face::Regular,
             size::TINY,
             DARK,
-            plot_x - 2.0,
+            plot.left - 2.0,
             y + size::TINY * 0.35,
             label,
         );
@@ -396,16 +396,9 @@ fn value_grid(page: &mut Page, fonts: &Fonts, plot: &Plot, ticks: &[(f64, String
 
 /// The date axis: a tick and a faint line at each date, the labels that fit.
 fn date_axis(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot, x: f32, w: f32) {
-    let Plot {
-        plot_x,
-        plot_w,
-        plot_top,
-        plot_bottom,
-        ..
-    } = *plot;
     let px = |at: DateTime<Utc>| plot.px(at);
     let mut label_end = f32::NEG_INFINITY;
-    for (d, label) in date_ticks(fonts, chart.from, chart.to, plot_w) {
+    for (d, label) in date_ticks(fonts, chart.from, chart.to, plot.width) {
         let at = d
             .and_hms_opt(0, 0, 0)
             .map(|t| t.and_utc())
@@ -413,15 +406,15 @@ fn date_axis(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot, x: f32,
         let tx = px(at);
         page.line(
             tx,
-            plot_bottom,
+            plot.bottom,
             tx,
-            plot_bottom + 2.0,
+            plot.bottom + 2.0,
             &Stroke::solid(0.4, MID),
         );
-        page.line(tx, plot_top, tx, plot_bottom, &Stroke::solid(0.2, FAINT));
+        page.line(tx, plot.top, tx, plot.bottom, &Stroke::solid(0.2, FAINT));
         let lw = fonts.width(Face::Regular, size::TINY, &label);
         // Kept clear of the value labels on the left and inside the box on the right.
-        let lx = (tx - lw / 2.0).max(plot_x - 1.0).min(x + w - lw);
+        let lx = (tx - lw / 2.0).max(plot.left - 1.0).min(x + w - lw);
         // A label pushed against its neighbour is left out; its tick stays.
         if lx < label_end + 3.0 {
             continue;
@@ -433,7 +426,7 @@ fn date_axis(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot, x: f32,
             size::TINY,
             DARK,
             lx,
-            plot_bottom + 2.0 + size::TINY,
+            plot.bottom + 2.0 + size::TINY,
             &label,
         );
     }
@@ -442,37 +435,34 @@ fn date_axis(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot, x: f32,
 /// Inside the plot: the baseline band, the limits, the event lines and the series; whether
 /// any point was drawn.
 fn contents(page: &mut Page, chart: &Chart, plot: &Plot) -> bool {
-    let Plot {
-        plot_x,
-        plot_r,
-        plot_w,
-        plot_top,
-        plot_bottom,
-        plot_h,
-        ..
-    } = *plot;
     let px = |at: DateTime<Utc>| plot.px(at);
     let py = |v: f64| plot.py(v);
-    page.clip(plot_x, plot_top, plot_w, plot_h);
+    page.clip(plot.left, plot.top, plot.width, plot.height);
     if let Some(b) = &chart.band {
         let (y1, y2) = (py(b.high), py(b.low));
         page.rect(
-            plot_x,
+            plot.left,
             y1,
-            plot_w,
+            plot.width,
             (y2 - y1).max(0.5),
             Some(BAND_COLOUR),
             None,
         );
         if let Some(c) = b.centre {
-            page.line(plot_x, py(c), plot_r, py(c), &Stroke::solid(0.5, MID));
+            page.line(
+                plot.left,
+                py(c),
+                plot.right,
+                py(c),
+                &Stroke::solid(0.5, MID),
+            );
         }
     }
     for l in &chart.limits {
         page.line(
-            plot_x,
+            plot.left,
             py(l.value),
-            plot_r,
+            plot.right,
             py(l.value),
             &limit_stroke(l.level),
         );
@@ -481,9 +471,9 @@ fn contents(page: &mut Page, chart: &Chart, plot: &Plot) -> bool {
         let ex = px(e.at);
         page.line(
             ex,
-            plot_top,
+            plot.top,
             ex,
-            plot_bottom,
+            plot.bottom,
             &Stroke::dashed(0.6, DARK, &[1.0, 1.5]),
         );
     }
@@ -509,24 +499,16 @@ fn contents(page: &mut Page, chart: &Chart, plot: &Plot) -> bool {
 
 /// Event codes on a white tab at the top of their line, and the plot's frame.
 fn event_tabs(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot) {
-    let Plot {
-        plot_x,
-        plot_r,
-        plot_w,
-        plot_top,
-        plot_h,
-        ..
-    } = *plot;
     let px = |at: DateTime<Utc>| plot.px(at);
     for e in &chart.events {
         let ex = px(e.at);
-        if ex < plot_x - 0.5 || ex > plot_r + 0.5 {
+        if ex < plot.left - 0.5 || ex > plot.right + 0.5 {
             continue;
         }
         let cw = fonts.width(Face::Bold, size::TINY, &e.code) + 2.0;
         page.rect(
             ex - cw / 2.0,
-            plot_top + 0.5,
+            plot.top + 0.5,
             cw,
             size::TINY * 1.2,
             Some(WHITE),
@@ -538,15 +520,15 @@ fn event_tabs(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot) {
             size::TINY,
             BLACK,
             ex,
-            plot_top + 0.5 + size::TINY,
+            plot.top + 0.5 + size::TINY,
             &e.code,
         );
     }
     page.rect(
-        plot_x,
-        plot_top,
-        plot_w,
-        plot_h,
+        plot.left,
+        plot.top,
+        plot.width,
+        plot.height,
         None,
         Some(&Stroke::solid(0.5, MID)),
     );
@@ -554,12 +536,6 @@ fn event_tabs(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot) {
 
 /// Limit labels in the right gutter, pushed apart when two limits are close.
 fn limit_labels(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot) {
-    let Plot {
-        plot_r,
-        plot_top,
-        plot_bottom,
-        ..
-    } = *plot;
     let py = |v: f64| plot.py(v);
     let mut label_ys: Vec<(f32, &LimitLine)> =
         chart.limits.iter().map(|l| (py(l.value), l)).collect();
@@ -568,14 +544,14 @@ fn limit_labels(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot) {
     for (y, l) in label_ys {
         let base = (y + size::TINY * 0.35)
             .max(last + size::TINY * 1.1)
-            .clamp(plot_top + size::TINY, plot_bottom + size::TINY);
+            .clamp(plot.top + size::TINY, plot.bottom + size::TINY);
         let col = limit_label_colour(l.level);
         page.text(
             fonts,
             Face::Regular,
             size::TINY,
             col,
-            plot_r + 2.0,
+            plot.right + 2.0,
             base,
             &l.label,
         );
@@ -585,8 +561,7 @@ fn limit_labels(page: &mut Page, fonts: &Fonts, chart: &Chart, plot: &Plot) {
 
 /// The legend under the plot, a line of keys at a time.
 fn draw_legend(page: &mut Page, fonts: &Fonts, legend: Vec<Vec<Key>>, plot: &Plot, x: f32, w: f32) {
-    let plot_bottom = plot.plot_bottom;
-    let mut ly = plot_bottom + size::TINY * 1.6 + size::TINY;
+    let mut ly = plot.bottom + size::TINY * 1.6 + size::TINY;
     for line in legend {
         let mut lx = x;
         for key in line {
