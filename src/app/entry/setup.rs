@@ -11,7 +11,8 @@ use crate::model::{
     Fluid, Id, Machine, PumpKind, SensitiveComponent, Settings, StrokeDirection, TimedStroke, Unit,
 };
 use crate::quantity::Kind;
-use crate::units::{Flow, Length, Pressure, Viscosity, Volume};
+use crate::store::Store;
+use crate::units::{Flow, Length, Pressure, UnitSystem, Viscosity, Volume};
 
 /// The shop's settings.
 pub fn shop_settings(shop: &Shop) -> Result<Settings, AppError> {
@@ -427,67 +428,32 @@ pub fn save_record(
     reason: &str,
 ) -> Result<SaveOutcome<Id>, AppError> {
     let store = shop.store();
-    let system = settings(store)?.unit_system;
-    let mut p = Vec::new();
+    let mut f = Form {
+        e,
+        system: settings(store)?.unit_system,
+        p: Vec::new(),
+    };
     if id.is_some() {
         if by.trim().is_empty() {
-            p.push(Problem::refused(
+            f.p.push(Problem::refused(
                 "by",
                 "Changed by: give a name or initials",
             ));
         }
         if reason.trim().is_empty() {
-            p.push(Problem::refused(
+            f.p.push(Problem::refused(
                 "reason",
                 "Reason: say why the record is changed",
             ));
         }
     }
-    let text = |key: &str, label: &str, p: &mut Vec<Problem>| -> String {
-        let t = e.get(key).to_string();
-        if t.is_empty() {
-            p.push(Problem::refused(key, format!("{label} is needed")));
-        }
-        t
-    };
-    let int = |key: &str, p: &mut Vec<Problem>| -> i64 {
-        match e.get(key).parse::<i64>() {
-            Ok(v) => v,
-            Err(_) => {
-                p.push(Problem::refused(key, "a whole number, e.g. 10"));
-                0
-            }
-        }
-    };
-    let q = |key: &str, kind: Kind, p: &mut Vec<Problem>| -> Option<f64> {
-        match read_quantity(e.get(key), kind, system) {
-            Ok(Some(v)) if v <= 0.0 => {
-                p.push(Problem::refused(key, "must be more than zero"));
-                None
-            }
-            Ok(v) => v,
-            Err(m) => {
-                p.push(Problem::refused(key, m));
-                None
-            }
-        }
-    };
-    let archived = e.get("archived") == "yes";
-    let by_t = by.trim();
-    let reason_t = reason.trim();
+    let (by_t, reason_t) = (by.trim(), reason.trim());
+    let id0 = id.unwrap_or(0);
     let result: Result<Id, crate::store::StoreError> = match kind {
         Record::Machine => {
-            let m = Machine {
-                id: id.unwrap_or(0),
-                tag: text("tag", "a tag", &mut p),
-                name: e.get("name").to_string(),
-                kind: e.get("kind").to_string(),
-                route_order: int("route_order", &mut p),
-                notes: e.get("notes").to_string(),
-                archived,
-            };
-            if !p.is_empty() {
-                return Ok(SaveOutcome::Refused(p));
+            let m = machine_of(&mut f, id0);
+            if !f.p.is_empty() {
+                return Ok(SaveOutcome::Refused(f.p));
             }
             match id {
                 Some(id) => store.update_machine(&m, by_t, reason_t).map(|_| id),
@@ -495,94 +461,9 @@ pub fn save_record(
             }
         }
         Record::Unit => {
-            let machine = store
-                .machine_by_tag(e.get("machine"))
-                .map_err(store_error)?;
-            if machine.is_none() {
-                p.push(Problem::refused(
-                    "machine",
-                    "choose the machine the unit belongs to (add machines first)",
-                ));
-            }
-            let fluid_name = e.get("fluid");
-            let fluid = if fluid_name.is_empty() || fluid_name == NO_FLUID {
-                None
-            } else {
-                match store.fluid_by_name(fluid_name).map_err(store_error)? {
-                    Some(f) => Some(f.id),
-                    None => {
-                        p.push(Problem::refused(
-                            "fluid",
-                            format!("no fluid `{fluid_name}`"),
-                        ));
-                        None
-                    }
-                }
-            };
-            let bore = q("bore", Kind::Length, &mut p);
-            let rod = q("rod", Kind::Length, &mut p);
-            let length = q("length", Kind::Length, &mut p);
-            let direction = choice_of(
-                "direction",
-                e,
-                StrokeDirection::ALL,
-                direction_words,
-                &mut p,
-            );
-            if let (Some(b), Some(r)) = (bore, rod) {
-                if r >= b {
-                    p.push(Problem::refused(
-                        "rod",
-                        "the rod must be thinner than the bore",
-                    ));
-                }
-            }
-            if direction == Some(StrokeDirection::Retract) && bore.is_some() && rod.is_none() {
-                p.push(Problem::refused(
-                    "rod",
-                    "a retracting stroke needs the rod diameter (it fills the annulus)",
-                ));
-            }
-            let stroke = match (bore, length) {
-                (Some(b), Some(l)) => Some(TimedStroke {
-                    bore: Length(b),
-                    rod: rod.map(Length),
-                    length: Length(l),
-                    direction: direction.unwrap_or(StrokeDirection::Extend),
-                }),
-                (None, None) => None,
-                _ => {
-                    p.push(Problem::refused(
-                        "length",
-                        "give both the bore and the stroke length, or neither",
-                    ));
-                    None
-                }
-            };
-            let u = Unit {
-                id: id.unwrap_or(0),
-                machine_id: machine.map(|m| m.id).unwrap_or(0),
-                tag: text("tag", "a unit tag", &mut p),
-                pump_kind: choice_of("pump_kind", e, PumpKind::ALL, pump_words, &mut p)
-                    .unwrap_or(PumpKind::Gear),
-                rated_flow: q("rated_flow", Kind::Flow, &mut p).map(Flow),
-                relief: q("relief", Kind::Pressure, &mut p).map(Pressure),
-                reservoir: q("reservoir", Kind::Volume, &mut p).map(Volume),
-                sensitive_component: choice_of(
-                    "sensitive",
-                    e,
-                    SensitiveComponent::ALL,
-                    component_words,
-                    &mut p,
-                )
-                .unwrap_or(SensitiveComponent::Cylinder),
-                fluid_id: fluid,
-                stroke,
-                route_order: int("route_order", &mut p),
-                archived,
-            };
-            if !p.is_empty() {
-                return Ok(SaveOutcome::Refused(p));
+            let u = unit_of(&mut f, store, id0)?;
+            if !f.p.is_empty() {
+                return Ok(SaveOutcome::Refused(f.p));
             }
             match id {
                 Some(id) => store.update_unit(&u, by_t, reason_t).map(|_| id),
@@ -590,55 +471,13 @@ pub fn save_record(
             }
         }
         Record::Fluid => {
-            let vg = match e.get("iso_vg") {
-                "" => None,
-                t => match t.parse::<u32>() {
-                    Ok(v) => Some(v),
-                    Err(_) => {
-                        p.push(Problem::refused(
-                            "iso_vg",
-                            "a grade is a whole number, e.g. 46",
-                        ));
-                        None
-                    }
-                },
-            };
-            let kv40 = q("kv40", Kind::Viscosity, &mut p);
-            let kv100 = q("kv100", Kind::Viscosity, &mut p);
-            if let (Some(a), Some(b)) = (kv40, kv100) {
-                if b >= a {
-                    p.push(Problem::refused(
-                        "kv100",
-                        "KV100 must be below KV40: oil thins as it warms",
-                    ));
-                }
-            }
-            let acid = match read_number(e.get("acid")) {
-                Ok(Some(v)) if v < 0.0 => {
-                    p.push(Problem::refused("acid", "cannot be negative"));
-                    None
-                }
-                Ok(v) => v,
-                Err(m) => {
-                    p.push(Problem::refused("acid", m));
-                    None
-                }
-            };
-            let f = Fluid {
-                id: id.unwrap_or(0),
-                name: text("name", "a name", &mut p),
-                iso_vg: vg,
-                kv40_new: kv40.map(Viscosity),
-                kv100_new: kv100.map(Viscosity),
-                acid_new_mgkoh_g: acid,
-                base_type: e.get("base_type").to_string(),
-            };
-            if !p.is_empty() {
-                return Ok(SaveOutcome::Refused(p));
+            let fl = fluid_of(&mut f, id0);
+            if !f.p.is_empty() {
+                return Ok(SaveOutcome::Refused(f.p));
             }
             match id {
-                Some(id) => store.update_fluid(&f, by_t, reason_t).map(|_| id),
-                None => store.insert_fluid(&f),
+                Some(id) => store.update_fluid(&fl, by_t, reason_t).map(|_| id),
+                None => store.insert_fluid(&fl),
             }
         }
     };
@@ -648,6 +487,206 @@ pub fn save_record(
             AppError::BadInput(m) => Ok(SaveOutcome::Refused(vec![Problem::refused("", m)])),
             other => Err(other),
         },
+    }
+}
+
+/// A setup form being read: what was typed, the shop's units, and the problems found so far.
+struct Form<'a> {
+    e: &'a Entered,
+    system: UnitSystem,
+    p: Vec<Problem>,
+}
+
+impl Form<'_> {
+    /// A field that must not be empty.
+    fn text(&mut self, key: &str, label: &str) -> String {
+        let t = self.e.get(key).to_string();
+        if t.is_empty() {
+            self.p
+                .push(Problem::refused(key, format!("{label} is needed")));
+        }
+        t
+    }
+
+    /// A whole number.
+    fn int(&mut self, key: &str) -> i64 {
+        match self.e.get(key).parse::<i64>() {
+            Ok(v) => v,
+            Err(_) => {
+                self.p
+                    .push(Problem::refused(key, "a whole number, e.g. 10"));
+                0
+            }
+        }
+    }
+
+    /// A quantity in the shop's units, SI; more than zero where given.
+    fn q(&mut self, key: &str, kind: Kind) -> Option<f64> {
+        match read_quantity(self.e.get(key), kind, self.system) {
+            Ok(Some(v)) if v <= 0.0 => {
+                self.p.push(Problem::refused(key, "must be more than zero"));
+                None
+            }
+            Ok(v) => v,
+            Err(m) => {
+                self.p.push(Problem::refused(key, m));
+                None
+            }
+        }
+    }
+
+    fn archived(&self) -> bool {
+        self.e.get("archived") == "yes"
+    }
+}
+
+/// A machine from its form.
+fn machine_of(f: &mut Form, id: Id) -> Machine {
+    Machine {
+        id,
+        tag: f.text("tag", "a tag"),
+        name: f.e.get("name").to_string(),
+        kind: f.e.get("kind").to_string(),
+        route_order: f.int("route_order"),
+        notes: f.e.get("notes").to_string(),
+        archived: f.archived(),
+    }
+}
+
+/// A unit from its form: its machine and fluid by name, its timed stroke checked whole.
+fn unit_of(f: &mut Form, store: &Store, id: Id) -> Result<Unit, AppError> {
+    let machine = store
+        .machine_by_tag(f.e.get("machine"))
+        .map_err(store_error)?;
+    if machine.is_none() {
+        f.p.push(Problem::refused(
+            "machine",
+            "choose the machine the unit belongs to (add machines first)",
+        ));
+    }
+    let fluid_name = f.e.get("fluid");
+    let fluid = if fluid_name.is_empty() || fluid_name == NO_FLUID {
+        None
+    } else {
+        match store.fluid_by_name(fluid_name).map_err(store_error)? {
+            Some(f) => Some(f.id),
+            None => {
+                f.p.push(Problem::refused(
+                    "fluid",
+                    format!("no fluid `{fluid_name}`"),
+                ));
+                None
+            }
+        }
+    };
+    let bore = f.q("bore", Kind::Length);
+    let rod = f.q("rod", Kind::Length);
+    let length = f.q("length", Kind::Length);
+    let direction = choice_of(
+        "direction",
+        f.e,
+        StrokeDirection::ALL,
+        direction_words,
+        &mut f.p,
+    );
+    if let (Some(b), Some(r)) = (bore, rod) {
+        if r >= b {
+            f.p.push(Problem::refused(
+                "rod",
+                "the rod must be thinner than the bore",
+            ));
+        }
+    }
+    if direction == Some(StrokeDirection::Retract) && bore.is_some() && rod.is_none() {
+        f.p.push(Problem::refused(
+            "rod",
+            "a retracting stroke needs the rod diameter (it fills the annulus)",
+        ));
+    }
+    let stroke = match (bore, length) {
+        (Some(b), Some(l)) => Some(TimedStroke {
+            bore: Length(b),
+            rod: rod.map(Length),
+            length: Length(l),
+            direction: direction.unwrap_or(StrokeDirection::Extend),
+        }),
+        (None, None) => None,
+        _ => {
+            f.p.push(Problem::refused(
+                "length",
+                "give both the bore and the stroke length, or neither",
+            ));
+            None
+        }
+    };
+    Ok(Unit {
+        id,
+        machine_id: machine.map(|m| m.id).unwrap_or(0),
+        tag: f.text("tag", "a unit tag"),
+        pump_kind: choice_of("pump_kind", f.e, PumpKind::ALL, pump_words, &mut f.p)
+            .unwrap_or(PumpKind::Gear),
+        rated_flow: f.q("rated_flow", Kind::Flow).map(Flow),
+        relief: f.q("relief", Kind::Pressure).map(Pressure),
+        reservoir: f.q("reservoir", Kind::Volume).map(Volume),
+        sensitive_component: choice_of(
+            "sensitive",
+            f.e,
+            SensitiveComponent::ALL,
+            component_words,
+            &mut f.p,
+        )
+        .unwrap_or(SensitiveComponent::Cylinder),
+        fluid_id: fluid,
+        stroke,
+        route_order: f.int("route_order"),
+        archived: f.archived(),
+    })
+}
+
+/// A fluid from its form; KV100 below KV40.
+fn fluid_of(f: &mut Form, id: Id) -> Fluid {
+    let vg = match f.e.get("iso_vg") {
+        "" => None,
+        t => match t.parse::<u32>() {
+            Ok(v) => Some(v),
+            Err(_) => {
+                f.p.push(Problem::refused(
+                    "iso_vg",
+                    "a grade is a whole number, e.g. 46",
+                ));
+                None
+            }
+        },
+    };
+    let kv40 = f.q("kv40", Kind::Viscosity);
+    let kv100 = f.q("kv100", Kind::Viscosity);
+    if let (Some(a), Some(b)) = (kv40, kv100) {
+        if b >= a {
+            f.p.push(Problem::refused(
+                "kv100",
+                "KV100 must be below KV40: oil thins as it warms",
+            ));
+        }
+    }
+    let acid = match read_number(f.e.get("acid")) {
+        Ok(Some(v)) if v < 0.0 => {
+            f.p.push(Problem::refused("acid", "cannot be negative"));
+            None
+        }
+        Ok(v) => v,
+        Err(m) => {
+            f.p.push(Problem::refused("acid", m));
+            None
+        }
+    };
+    Fluid {
+        id,
+        name: f.text("name", "a name"),
+        iso_vg: vg,
+        kv40_new: kv40.map(Viscosity),
+        kv100_new: kv100.map(Viscosity),
+        acid_new_mgkoh_g: acid,
+        base_type: f.e.get("base_type").to_string(),
     }
 }
 

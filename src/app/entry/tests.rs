@@ -580,3 +580,71 @@ fn an_hour_meter_below_the_last_reading_is_asked_about_kept_when_confirmed_and_r
     let hint = &form.fields.iter().find(|f| f.key == "hours").unwrap().hint;
     assert!(hint.starts_with("12 h · 7 d ago"), "{hint}");
 }
+
+#[test]
+fn setup_records_are_refused_on_each_field_at_fault_and_saved_when_sound() {
+    let (_dir, shop) = demo();
+    let fields = |out: &SaveOutcome<crate::model::Id>| -> Vec<String> {
+        match out {
+            SaveOutcome::Refused(p) => p.iter().map(|p| p.field.clone()).collect(),
+            other => panic!("expected a refusal, got {other:?}"),
+        }
+    };
+    // A machine without a tag and with a route order that is no number.
+    let out = save_record(
+        &shop,
+        Record::Machine,
+        None,
+        &entered(&[("tag", ""), ("route_order", "ten")]),
+        "",
+        "",
+    )
+    .unwrap();
+    assert_eq!(fields(&out), vec!["tag", "route_order"]);
+
+    // A fluid whose KV100 is not below its KV40 (oil thins as it warms).
+    let oil = [
+        ("name", "Bench oil 46"),
+        ("iso_vg", "46"),
+        ("kv40", "46"),
+        ("kv100", "50"),
+        ("acid", "0.4"),
+    ];
+    let out = save_record(&shop, Record::Fluid, None, &entered(&oil), "", "").unwrap();
+    assert_eq!(fields(&out), vec!["kv100"]);
+    let mut sound = entered(&oil);
+    sound.set("kv100", "6.8");
+    let id = match save_record(&shop, Record::Fluid, None, &sound, "", "").unwrap() {
+        SaveOutcome::Saved(id) => id,
+        other => panic!("{other:?}"),
+    };
+    let stored = shop.store().fluid_by_name("Bench oil 46").unwrap().unwrap();
+    assert_eq!(stored.id, id);
+    assert_eq!(stored.iso_vg, Some(46));
+
+    // A unit on no machine, without a tag, its rod as thick as its bore.
+    let out = save_record(
+        &shop,
+        Record::Unit,
+        None,
+        &entered(&[
+            ("machine", "no such machine"),
+            ("tag", ""),
+            ("bore", "100"),
+            ("rod", "100"),
+            ("length", "200"),
+            ("route_order", "1"),
+        ]),
+        "",
+        "",
+    )
+    .unwrap();
+    let f = fields(&out);
+    for want in ["machine", "rod", "tag"] {
+        assert!(f.iter().any(|x| x == want), "{want} in {f:?}");
+    }
+
+    // Changing a stored record needs who and why, before anything else.
+    let out = save_record(&shop, Record::Fluid, Some(id), &sound, " ", "").unwrap();
+    assert_eq!(fields(&out)[..2], ["by", "reason"]);
+}
