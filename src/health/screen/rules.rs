@@ -363,25 +363,24 @@ impl SampleScreen {
     /// Median and robust σ (floored) of the last `WINDOW` accepted values of a field, when
     /// there are at least `MIN_ACID_HISTORY`.
     pub(super) fn recent(&self, f: Field) -> Option<(f64, f64)> {
-        let acc = &self.accepted[sample_idx(f)?];
-        if acc.len() < MIN_ACID_HISTORY {
-            return None;
-        }
-        let last = &acc[acc.len().saturating_sub(WINDOW)..];
-        let (m, s) = stats::median_and_mad_sigma(last)?;
-        Some((m, s.max(FLOOR_ACID_LN)))
+        self.recent_floored(f, FLOOR_ACID_LN)
     }
 
     /// Median and robust σ of the same values for the slip-shape rule, the σ floored at
     /// `FLOOR_ACID_SHAPE_LN`.
     pub(super) fn recent_for_shape(&self, f: Field) -> Option<(f64, f64)> {
+        self.recent_floored(f, FLOOR_ACID_SHAPE_LN)
+    }
+
+    /// Median and robust σ of the last `WINDOW` accepted values, σ at least `floor`.
+    fn recent_floored(&self, f: Field, floor: f64) -> Option<(f64, f64)> {
         let acc = &self.accepted[sample_idx(f)?];
         if acc.len() < MIN_ACID_HISTORY {
             return None;
         }
         let last = &acc[acc.len().saturating_sub(WINDOW)..];
         let (m, s) = stats::median_and_mad_sigma(last)?;
-        Some((m, s.max(FLOOR_ACID_SHAPE_LN)))
+        Some((m, s.max(floor)))
     }
 
     pub(super) fn push(&mut self, f: Field, v: f64) {
