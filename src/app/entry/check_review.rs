@@ -252,6 +252,88 @@ pub(super) fn judge_check(
     zone: Zone,
 ) -> CheckReview {
     let mut p = Vec::new();
+    let t = typed(entered, system, &mut p);
+    frame_questions(&t, base.taken_at, around, system, zone, &mut p);
+    let Typed {
+        res,
+        amb,
+        pressure,
+        stroke,
+        cycle,
+        case_drain,
+        oil_level,
+        filter,
+        hours,
+    } = t;
+    let note = entered.get("note").to_string();
+    let any = res.is_some()
+        || amb.is_some()
+        || pressure.is_some()
+        || stroke.is_some()
+        || cycle.is_some()
+        || case_drain.is_some()
+        || oil_level.is_some()
+        || filter.is_some()
+        || hours.is_some();
+    if !any && note.is_empty() && p.is_empty() {
+        p.push(Problem::refused(
+            "",
+            "nothing was entered; type at least one reading, or skip the unit",
+        ));
+    }
+    let refused = p.iter().any(|x| x.verdict == Verdict::Refused);
+    let check = Check {
+        reservoir_temp: res.map(Temperature),
+        ambient_temp: amb.map(Temperature),
+        pressure: pressure.map(Pressure),
+        stroke_time: stroke.map(Seconds),
+        // A form without the field (an older correction) keeps the stored cycle time.
+        cycle_time: cycle.map(Seconds).or(base.cycle_time),
+        oil_level,
+        filter,
+        hours,
+        case_drain: case_drain.map(Flow),
+        note,
+        ..base
+    };
+    // One rule for the form, the importer and the engine: the screening of readings against
+    // the unit's frame (relief setting, ambient above oil, a stroke several times the usual,
+    // case drain above rated flow) and its own recent history. Each suspicion asks; a field
+    // already refused or questioned above is asked about once.
+    let others: Vec<Check> = earlier
+        .iter()
+        .filter(|c| c.id != check.id)
+        .cloned()
+        .collect();
+    for sus in health::screen::check(unit, &others, events, &check, system) {
+        let key = sus.field.key();
+        if !p.iter().any(|x| x.field == key) {
+            p.push(Problem::unusual(key, sus.reason));
+        }
+    }
+    p.sort_by_key(|x| std::cmp::Reverse(x.verdict));
+    CheckReview {
+        check: (!refused).then_some(check),
+        problems: p,
+    }
+}
+
+/// The readings of a walk-round form, read in the shop's units (SI); a cell that cannot be
+/// read is refused on `p` and left out.
+struct Typed {
+    res: Option<f64>,
+    amb: Option<f64>,
+    pressure: Option<f64>,
+    stroke: Option<f64>,
+    cycle: Option<f64>,
+    case_drain: Option<f64>,
+    oil_level: Option<OilLevel>,
+    filter: Option<FilterState>,
+    hours: Option<f64>,
+}
+
+/// Reads each cell of the form.
+fn typed(entered: &Entered, system: UnitSystem, p: &mut Vec<Problem>) -> Typed {
     let q = |key: &str, kind: Kind, p: &mut Vec<Problem>| -> Option<f64> {
         match read_quantity(entered.get(key), kind, system) {
             Ok(v) => v,
@@ -261,12 +343,12 @@ pub(super) fn judge_check(
             }
         }
     };
-    let res = q("reservoir_temp", Kind::Temperature, &mut p);
-    let amb = q("ambient_temp", Kind::Temperature, &mut p);
-    let pressure = q("pressure", Kind::Pressure, &mut p);
-    let stroke = q("stroke_time", Kind::Time, &mut p);
-    let cycle = q("cycle_time", Kind::Time, &mut p);
-    let case_drain = q("case_drain", Kind::Flow, &mut p);
+    let res = q("reservoir_temp", Kind::Temperature, p);
+    let amb = q("ambient_temp", Kind::Temperature, p);
+    let pressure = q("pressure", Kind::Pressure, p);
+    let stroke = q("stroke_time", Kind::Time, p);
+    let cycle = q("cycle_time", Kind::Time, p);
+    let case_drain = q("case_drain", Kind::Flow, p);
     let oil_level = read_oil_level(entered.get("oil_level")).unwrap_or_else(|e| {
         p.push(Problem::refused("oil_level", e));
         None
@@ -279,11 +361,41 @@ pub(super) fn judge_check(
         p.push(Problem::refused("hours", e));
         None
     });
+    Typed {
+        res,
+        amb,
+        pressure,
+        stroke,
+        cycle,
+        case_drain,
+        oil_level,
+        filter,
+        hours,
+    }
+}
 
+/// Each reading against the physical bounds of a press circuit and what a person can time,
+/// and the hour meter against the readings around it (the rule of marking work done).
+fn frame_questions(
+    t: &Typed,
+    at: chrono::DateTime<chrono::Utc>,
+    around: &HourMeterAround,
+    system: UnitSystem,
+    zone: Zone,
+    p: &mut Vec<Problem>,
+) {
+    let Typed {
+        res,
+        amb,
+        pressure,
+        stroke,
+        case_drain,
+        hours,
+        ..
+    } = *t;
     let res_ok =
-        res.filter(|&t| bound_temp("reservoir_temp", "Reservoir temperature", t, system, &mut p));
-    let amb_ok =
-        amb.filter(|&t| bound_temp("ambient_temp", "Ambient temperature", t, system, &mut p));
+        res.filter(|&t| bound_temp("reservoir_temp", "Reservoir temperature", t, system, p));
+    let amb_ok = amb.filter(|&t| bound_temp("ambient_temp", "Ambient temperature", t, system, p));
     if let Some(t) = res_ok {
         if Temperature(t).c() > OIL_HOT_C {
             p.push(Problem::unusual(
@@ -359,7 +471,7 @@ pub(super) fn judge_check(
         } else {
             // One rule with marking work done: the readings around it, checks and work done.
             p.extend(
-                crate::app::work::hour_meter_questions(h, base.taken_at, around, zone)
+                crate::app::work::hour_meter_questions(h, at, around, zone)
                     .into_iter()
                     .map(|q| Problem::unusual("hours", q)),
             );
@@ -372,57 +484,6 @@ pub(super) fn judge_check(
                 "a case-drain flow cannot be negative",
             ));
         }
-    }
-    let note = entered.get("note").to_string();
-    let any = res.is_some()
-        || amb.is_some()
-        || pressure.is_some()
-        || stroke.is_some()
-        || cycle.is_some()
-        || case_drain.is_some()
-        || oil_level.is_some()
-        || filter.is_some()
-        || hours.is_some();
-    if !any && note.is_empty() && p.is_empty() {
-        p.push(Problem::refused(
-            "",
-            "nothing was entered; type at least one reading, or skip the unit",
-        ));
-    }
-    let refused = p.iter().any(|x| x.verdict == Verdict::Refused);
-    let check = Check {
-        reservoir_temp: res.map(Temperature),
-        ambient_temp: amb.map(Temperature),
-        pressure: pressure.map(Pressure),
-        stroke_time: stroke.map(Seconds),
-        // A form without the field (an older correction) keeps the stored cycle time.
-        cycle_time: cycle.map(Seconds).or(base.cycle_time),
-        oil_level,
-        filter,
-        hours,
-        case_drain: case_drain.map(Flow),
-        note,
-        ..base
-    };
-    // One rule for the form, the importer and the engine: the screening of readings against
-    // the unit's frame (relief setting, ambient above oil, a stroke several times the usual,
-    // case drain above rated flow) and its own recent history. Each suspicion asks; a field
-    // already refused or questioned above is asked about once.
-    let others: Vec<Check> = earlier
-        .iter()
-        .filter(|c| c.id != check.id)
-        .cloned()
-        .collect();
-    for sus in health::screen::check(unit, &others, events, &check, system) {
-        let key = sus.field.key();
-        if !p.iter().any(|x| x.field == key) {
-            p.push(Problem::unusual(key, sus.reason));
-        }
-    }
-    p.sort_by_key(|x| std::cmp::Reverse(x.verdict));
-    CheckReview {
-        check: (!refused).then_some(check),
-        problems: p,
     }
 }
 
