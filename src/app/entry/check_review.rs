@@ -254,27 +254,16 @@ pub(super) fn judge_check(
     let mut p = Vec::new();
     let t = typed(entered, system, &mut p);
     frame_questions(&t, base.taken_at, around, system, zone, &mut p);
-    let Typed {
-        res,
-        amb,
-        pressure,
-        stroke,
-        cycle,
-        case_drain,
-        oil_level,
-        filter,
-        hours,
-    } = t;
     let note = entered.get("note").to_string();
-    let any = res.is_some()
-        || amb.is_some()
-        || pressure.is_some()
-        || stroke.is_some()
-        || cycle.is_some()
-        || case_drain.is_some()
-        || oil_level.is_some()
-        || filter.is_some()
-        || hours.is_some();
+    let any = t.res.is_some()
+        || t.amb.is_some()
+        || t.pressure.is_some()
+        || t.stroke.is_some()
+        || t.cycle.is_some()
+        || t.case_drain.is_some()
+        || t.oil_level.is_some()
+        || t.filter.is_some()
+        || t.hours.is_some();
     if !any && note.is_empty() && p.is_empty() {
         p.push(Problem::refused(
             "",
@@ -283,16 +272,16 @@ pub(super) fn judge_check(
     }
     let refused = p.iter().any(|x| x.verdict == Verdict::Refused);
     let check = Check {
-        reservoir_temp: res.map(Temperature),
-        ambient_temp: amb.map(Temperature),
-        pressure: pressure.map(Pressure),
-        stroke_time: stroke.map(Seconds),
+        reservoir_temp: t.res.map(Temperature),
+        ambient_temp: t.amb.map(Temperature),
+        pressure: t.pressure.map(Pressure),
+        stroke_time: t.stroke.map(Seconds),
         // A form without the field (an older correction) keeps the stored cycle time.
-        cycle_time: cycle.map(Seconds).or(base.cycle_time),
-        oil_level,
-        filter,
-        hours,
-        case_drain: case_drain.map(Flow),
+        cycle_time: t.cycle.map(Seconds).or(base.cycle_time),
+        oil_level: t.oil_level,
+        filter: t.filter,
+        hours: t.hours,
+        case_drain: t.case_drain.map(Flow),
         note,
         ..base
     };
