@@ -115,101 +115,8 @@ pub fn review_sample(
         p.push(Problem::refused("sampled_at", e));
         now.trunc_subsecs(0)
     });
-    let visc = |key: &str, p: &mut Vec<Problem>| -> Option<f64> {
-        match read_quantity(entered.get(key), Kind::Viscosity, system) {
-            Ok(Some(v)) if v <= 0.0 => {
-                p.push(Problem::refused(key, "a viscosity must be more than zero"));
-                None
-            }
-            Ok(v) => v,
-            Err(e) => {
-                p.push(Problem::refused(key, e));
-                None
-            }
-        }
-    };
-    let kv40 = visc("kv40", &mut p);
-    let kv100 = visc("kv100", &mut p);
-    let visc_value = visc("visc_value", &mut p);
-    let visc_temp = match read_quantity(entered.get("visc_temp"), Kind::Temperature, system) {
-        Ok(v) => v.filter(|&t| bound_temp("visc_temp", "Viscosity temperature", t, system, &mut p)),
-        Err(e) => {
-            p.push(Problem::refused("visc_temp", e));
-            None
-        }
-    };
-    if let (Some(a), Some(b)) = (kv40, kv100) {
-        if b >= a {
-            p.push(Problem::refused(
-                "kv100",
-                format!(
-                    "viscosity at 100 °C ({:.1} cSt) must be below that at 40 °C ({:.1} cSt): oil thins as it warms",
-                    Viscosity(b).cst(),
-                    Viscosity(a).cst()
-                ),
-            ));
-        }
-    }
-    let visc_reading = match (visc_value, visc_temp) {
-        (Some(v), Some(t)) => Some(ViscReading {
-            visc: Viscosity(v),
-            at: Temperature(t),
-        }),
-        (Some(_), None) if entered.get("visc_temp").is_empty() => {
-            p.push(Problem::refused(
-                "visc_temp",
-                "give the temperature the field viscosity was read at",
-            ));
-            None
-        }
-        (None, Some(_)) if entered.get("visc_value").is_empty() => {
-            p.push(Problem::refused(
-                "visc_value",
-                "give the viscosity read at that temperature",
-            ));
-            None
-        }
-        _ => None,
-    };
-    let mut counts = [None; 3];
-    for (i, key) in ["count_4", "count_6", "count_14"].iter().enumerate() {
-        match read_number(entered.get(key)) {
-            Ok(Some(v)) if v < 0.0 => {
-                p.push(Problem::refused(key, "a particle count cannot be negative"))
-            }
-            Ok(v) => counts[i] = v,
-            Err(e) => p.push(Problem::refused(key, e)),
-        }
-    }
-    let sizes = ["4", "6", "14"];
-    for i in 0..3 {
-        for j in i + 1..3 {
-            if let (Some(a), Some(b)) = (counts[i], counts[j]) {
-                if b > a {
-                    p.push(Problem::refused(
-                        ["count_4", "count_6", "count_14"][j],
-                        format!(
-                            "counts cannot rise with particle size: ≥{} µm {b} per mL is more than ≥{} µm {a} per mL \
-                             (every particle ≥{} µm is also ≥{} µm)",
-                            sizes[j], sizes[i], sizes[j], sizes[i]
-                        ),
-                    ));
-                }
-            }
-        }
-    }
-    let code_text = entered.get("iso4406");
-    let iso4406 = if code_text.is_empty() {
-        None
-    } else {
-        match code_text.parse::<Iso4406Code>() {
-            Ok(c) => Some(c.to_string()),
-            Err(e) => {
-                p.push(Problem::refused("iso4406", e.to_string()));
-                None
-            }
-        }
-    };
+    let (kv40, kv100, visc_reading) = viscosities(entered, system, &mut p);
+    let (counts, iso4406) = particle_counts(entered, &mut p);
     let plain = |key: &str, p: &mut Vec<Problem>| -> Option<f64> {
         match read_number(entered.get(key)) {
             Ok(Some(v)) if v < 0.0 => {
@@ -289,6 +196,117 @@ pub fn review_sample(
         problems: p,
         preview: Some(preview),
     })
+}
+
+/// The viscosities of a sample: KV40 and KV100 (KV100 below KV40), and a field reading with
+/// the temperature it was read at, both or neither.
+fn viscosities(
+    entered: &Entered,
+    system: UnitSystem,
+    p: &mut Vec<Problem>,
+) -> (Option<f64>, Option<f64>, Option<ViscReading>) {
+    let visc = |key: &str, p: &mut Vec<Problem>| -> Option<f64> {
+        match read_quantity(entered.get(key), Kind::Viscosity, system) {
+            Ok(Some(v)) if v <= 0.0 => {
+                p.push(Problem::refused(key, "a viscosity must be more than zero"));
+                None
+            }
+            Ok(v) => v,
+            Err(e) => {
+                p.push(Problem::refused(key, e));
+                None
+            }
+        }
+    };
+    let kv40 = visc("kv40", p);
+    let kv100 = visc("kv100", p);
+    let visc_value = visc("visc_value", p);
+    let visc_temp = match read_quantity(entered.get("visc_temp"), Kind::Temperature, system) {
+        Ok(v) => v.filter(|&t| bound_temp("visc_temp", "Viscosity temperature", t, system, p)),
+        Err(e) => {
+            p.push(Problem::refused("visc_temp", e));
+            None
+        }
+    };
+    if let (Some(a), Some(b)) = (kv40, kv100) {
+        if b >= a {
+            p.push(Problem::refused(
+                "kv100",
+                format!(
+                    "viscosity at 100 °C ({:.1} cSt) must be below that at 40 °C ({:.1} cSt): oil thins as it warms",
+                    Viscosity(b).cst(),
+                    Viscosity(a).cst()
+                ),
+            ));
+        }
+    }
+    let visc_reading = match (visc_value, visc_temp) {
+        (Some(v), Some(t)) => Some(ViscReading {
+            visc: Viscosity(v),
+            at: Temperature(t),
+        }),
+        (Some(_), None) if entered.get("visc_temp").is_empty() => {
+            p.push(Problem::refused(
+                "visc_temp",
+                "give the temperature the field viscosity was read at",
+            ));
+            None
+        }
+        (None, Some(_)) if entered.get("visc_value").is_empty() => {
+            p.push(Problem::refused(
+                "visc_value",
+                "give the viscosity read at that temperature",
+            ));
+            None
+        }
+        _ => None,
+    };
+    (kv40, kv100, visc_reading)
+}
+
+/// The particle counts per mL at ≥4, ≥6 and ≥14 µm (never rising with size) and an ISO 4406
+/// code as typed.
+fn particle_counts(entered: &Entered, p: &mut Vec<Problem>) -> ([Option<f64>; 3], Option<String>) {
+    let mut counts = [None; 3];
+    for (i, key) in ["count_4", "count_6", "count_14"].iter().enumerate() {
+        match read_number(entered.get(key)) {
+            Ok(Some(v)) if v < 0.0 => {
+                p.push(Problem::refused(key, "a particle count cannot be negative"))
+            }
+            Ok(v) => counts[i] = v,
+            Err(e) => p.push(Problem::refused(key, e)),
+        }
+    }
+    let sizes = ["4", "6", "14"];
+    for i in 0..3 {
+        for j in i + 1..3 {
+            if let (Some(a), Some(b)) = (counts[i], counts[j]) {
+                if b > a {
+                    p.push(Problem::refused(
+                        ["count_4", "count_6", "count_14"][j],
+                        format!(
+                            "counts cannot rise with particle size: ≥{} µm {b} per mL is more than ≥{} µm {a} per mL \
+                             (every particle ≥{} µm is also ≥{} µm)",
+                            sizes[j], sizes[i], sizes[j], sizes[i]
+                        ),
+                    ));
+                }
+            }
+        }
+    }
+    let code_text = entered.get("iso4406");
+    let iso4406 = if code_text.is_empty() {
+        None
+    } else {
+        match code_text.parse::<Iso4406Code>() {
+            Ok(c) => Some(c.to_string()),
+            Err(e) => {
+                p.push(Problem::refused("iso4406", e.to_string()));
+                None
+            }
+        }
+    };
+    (counts, iso4406)
 }
 
 /// The model's sample has no author field: the name goes at the front of the note.

@@ -321,6 +321,28 @@ fn a_sample_preview_derives_the_code_and_refuses_rising_counts() {
     let e = entered(&[("kv40", "46"), ("kv100", "50")]);
     let r = review_sample(&shop, u.id, &e, Utc::now()).unwrap();
     assert!(r.problems.iter().any(|p| p.field == "kv100"));
+    // A field viscosity needs the temperature it was read at, and the other way round.
+    let e = entered(&[("visc_value", "52"), ("by", "T. T")]);
+    let r = review_sample(&shop, u.id, &e, Utc::now()).unwrap();
+    assert!(r
+        .problems
+        .iter()
+        .any(|p| p.field == "visc_temp" && p.verdict == Verdict::Refused));
+    let e = entered(&[("visc_temp", "35"), ("by", "T. T")]);
+    let r = review_sample(&shop, u.id, &e, Utc::now()).unwrap();
+    assert!(r
+        .problems
+        .iter()
+        .any(|p| p.field == "visc_value" && p.verdict == Verdict::Refused));
+    let e = entered(&[("visc_value", "52"), ("visc_temp", "35"), ("by", "T. T")]);
+    let r = review_sample(&shop, u.id, &e, Utc::now()).unwrap();
+    let reading = r
+        .sample
+        .and_then(|s| s.visc_reading)
+        .expect("a field reading");
+    // 35 °C is 308.15 K (NIST SP 811: T/K = t/°C + 273.15); 52 cSt is 52 × 10⁻⁶ m²/s.
+    assert!((reading.at.si() - 308.15).abs() < 1e-9);
+    assert!((reading.visc.si() - 52e-6).abs() < 1e-15);
 }
 
 #[test]
