@@ -384,19 +384,8 @@ fn judge_sample_edit(
             }
         }
     };
-    let plain = |key: &str, p: &mut Vec<Problem>| match read_number(e.get(key)) {
-        Ok(Some(v)) if v < 0.0 => {
-            p.push(Problem::refused(key, "cannot be negative"));
-            None
-        }
-        Ok(v) => v,
-        Err(m) => {
-            p.push(Problem::refused(key, m));
-            None
-        }
-    };
-    let water = plain("water_ppm", p);
-    let acid = plain("acid", p);
+    let water = non_negative("water_ppm", e.get("water_ppm"), p);
+    let acid = non_negative("acid", e.get("acid"), p);
     Some(Sample {
         kv40,
         kv100,

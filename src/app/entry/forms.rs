@@ -227,6 +227,22 @@ pub(super) fn read_number(text: &str) -> Result<Option<f64>, String> {
 }
 
 /// A required name (who did it): the text trimmed, refused when blank.
+/// A plain number typed in field `key` that cannot be negative (water, acid number); a
+/// refusal on `p` and `None` where it cannot be read or is below zero.
+pub(super) fn non_negative(key: &str, text: &str, p: &mut Vec<Problem>) -> Option<f64> {
+    match read_number(text) {
+        Ok(Some(v)) if v < 0.0 => {
+            p.push(Problem::refused(key, "cannot be negative"));
+            None
+        }
+        Ok(v) => v,
+        Err(m) => {
+            p.push(Problem::refused(key, m));
+            None
+        }
+    }
+}
+
 pub(super) fn need(what: &str, text: &str) -> Result<String, AppError> {
     let t = text.trim();
     if t.is_empty() {

@@ -117,21 +117,8 @@ pub fn review_sample(
     });
     let (kv40, kv100, visc_reading) = viscosities(entered, system, &mut p);
     let (counts, iso4406) = particle_counts(entered, &mut p);
-    let plain = |key: &str, p: &mut Vec<Problem>| -> Option<f64> {
-        match read_number(entered.get(key)) {
-            Ok(Some(v)) if v < 0.0 => {
-                p.push(Problem::refused(key, "cannot be negative"));
-                None
-            }
-            Ok(v) => v,
-            Err(e) => {
-                p.push(Problem::refused(key, e));
-                None
-            }
-        }
-    };
-    let water = plain("water_ppm", &mut p);
-    let acid = plain("acid", &mut p);
+    let water = non_negative("water_ppm", entered.get("water_ppm"), &mut p);
+    let acid = non_negative("acid", entered.get("acid"), &mut p);
     let by = entered.get("by").to_string();
     let any = kv40.is_some()
         || kv100.is_some()

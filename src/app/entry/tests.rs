@@ -334,6 +334,24 @@ fn a_sample_preview_derives_the_code_and_refuses_rising_counts() {
         .problems
         .iter()
         .any(|p| p.field == "visc_value" && p.verdict == Verdict::Refused));
+    // Water and acid number cannot be negative; a figure that is no number is refused too.
+    let e = entered(&[("water_ppm", "-5"), ("acid", "0.4x"), ("by", "T. T")]);
+    let r = review_sample(&shop, u.id, &e, Utc::now()).unwrap();
+    for key in ["water_ppm", "acid"] {
+        assert!(
+            r.problems
+                .iter()
+                .any(|p| p.field == key && p.verdict == Verdict::Refused),
+            "{key}: {:?}",
+            r.problems
+        );
+    }
+    let e = entered(&[("water_ppm", "120"), ("acid", "0.4"), ("by", "T. T")]);
+    let s = review_sample(&shop, u.id, &e, Utc::now())
+        .unwrap()
+        .sample
+        .unwrap();
+    assert_eq!((s.water_ppm, s.acid_mgkoh_g), (Some(120.0), Some(0.4)));
     let e = entered(&[("visc_value", "52"), ("visc_temp", "35"), ("by", "T. T")]);
     let r = review_sample(&shop, u.id, &e, Utc::now()).unwrap();
     let reading = r
