@@ -80,14 +80,28 @@ pub const FLOOR_ACID_LN: f64 = 0.2;
 /// (Hampel's usual limit of 3, the papers above), where undoing the slip lands within
 /// `RUN_SIGMAS` of the median. A real change of that size would have to fall, by chance, on
 /// the swapped digits of an ordinary reading. Applied to the acid number, which moves slowly
-/// between samples. Not to water: a real ingress often reads like that (410 ppm over a usual
-/// 140), so holding it would cost the detection a sample later.
+/// between samples, and to water. A real ingress can read like that too (410 ppm over a usual
+/// 140), so a questioned water content is not hidden: its flag shows at watch, and reaches act
+/// only once a resample or a person confirms it (`flags`). Either field's reading right after
+/// an accepted one already beyond `RUN_SIGMAS` on the same side is a run, not a slip, and is
+/// not questioned for its shape.
 pub const SHAPE_SIGMAS: f64 = 3.0;
 /// The acid numbers' robust σ for the slip-shape rule is floored here, half of
 /// `FLOOR_ACID_LN`: the floor there sets how far a lone reading may go before it is questioned
 /// at all; here undoing the slip must also land close to the usual reading (common practice,
 /// no published source).
 pub const FLOOR_ACID_SHAPE_LN: f64 = 0.1;
+/// The water contents' robust σ for the slip-shape rule, on the logarithm, is floored here: a
+/// lab's repeated Karl Fischer results on one oil scatter by several per cent, and the water
+/// of a sound unit moves a little more with the season and its breather (from memory). With
+/// `RUN_SIGMAS` undoing the slip must land within 1.22 times the recent ones' median.
+pub const FLOOR_WATER_SHAPE_LN: f64 = 0.1;
+/// A water content is questioned for its shape only at least this many times (or under this
+/// many-th of) its recent median: a sound unit's water wanders by half as much again between
+/// samples with the season and its breather, and a smaller slip leaves it on the same side of
+/// the 200 and 500 ppm limits over the usual 50 to 200 ppm (common practice, no published
+/// source). 170 typed as 710 is 4.2 times; 91 typed as 9.1 a tenth.
+pub const WATER_SHAPE_FACTOR: f64 = 2.0;
 /// A working pressure more than this fraction above the relief setting cannot be held by the
 /// circuit (gauge tolerance; the entry form's own margin).
 pub const OVER_RELIEF: f64 = 0.10;
@@ -464,10 +478,13 @@ fn screen_samples(
             if w.shape {
                 // Questioned for its shape: a next sample beyond `SHAPE_SIGMAS` on the same
                 // side and close to it shows the level has moved.
-                let moved = st
-                    .recent_for_shape(w.field)
-                    .is_some_and(|(m, sd)| (x - m) * w.side > SHAPE_SIGMAS * sd);
-                if moved && (x - w.value).abs() <= SIGMAS * w.sigma {
+                let moved = st.recent_for_shape(w.field).is_some_and(|(m, sd)| {
+                    (x - m) * w.side > 0.0 && shape_far(w.field, (x - m).abs(), sd)
+                });
+                // Water is confirmed by any such sample: an ingress may go on rising well
+                // past the questioned figure by the next sample.
+                let close = shape_only(w.field) || (x - w.value).abs() <= SIGMAS * w.sigma;
+                if moved && close {
                     out[w.at].confirmed = Some(ConfirmedBy::NextReading { at: s.sampled_at });
                     agrees.push((w.field, w.value));
                 }
@@ -494,7 +511,11 @@ fn screen_samples(
                 held.push(f.field);
                 let x = sample_hist_value(s, f.field);
                 let mut hist = st.recent(f.field);
-                let mut side = x.and_then(|x| outside(x, hist)).unwrap_or(0.0);
+                let mut side = if shape_only(f.field) {
+                    0.0
+                } else {
+                    x.and_then(|x| outside(x, hist)).unwrap_or(0.0)
+                };
                 let shape = side == 0.0 && x.is_some_and(|x| st.slip_shaped(f.field, x).is_some());
                 if shape {
                     hist = st.recent_for_shape(f.field);
@@ -525,6 +546,40 @@ fn screen_samples(
         st.accept(s, &held);
     }
     st
+}
+
+/// A water content questioned for its shape (or its frame) and what became of it: while
+/// unconfirmed the water flag shows it at watch at most; once a next sample has confirmed it,
+/// its own level counts at that sample (the resample that confirms 680 ppm may itself read
+/// 490, under the act limit, while the water has plainly risen).
+#[derive(Clone, Debug, PartialEq)]
+pub struct QuestionedWater {
+    pub sample_id: Id,
+    pub ppm: f64,
+    /// When the next sample confirmed it; `None` while it is not confirmed.
+    pub confirmed_at: Option<DateTime<Utc>>,
+}
+
+/// The water contents of `h` questioned and not confirmed by a person (who makes a reading
+/// count as it stands, at its own date).
+pub fn questioned_water(h: &UnitHistory, suspects: &[SuspectReading]) -> Vec<QuestionedWater> {
+    suspects
+        .iter()
+        .filter(|s| s.record == Record::Sample && s.field == Field::Water)
+        .filter_map(|s| {
+            let confirmed_at = match &s.confirmed {
+                None => None,
+                Some(ConfirmedBy::NextReading { at }) => Some(*at),
+                Some(ConfirmedBy::Person { .. }) => return None,
+            };
+            let x = h.samples.iter().find(|x| x.id == s.id)?;
+            Some(QuestionedWater {
+                sample_id: s.id,
+                ppm: x.water_ppm?,
+                confirmed_at,
+            })
+        })
+        .collect()
 }
 
 /// The history with every unconfirmed suspect field taken out (set to nothing), as the

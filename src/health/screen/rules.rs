@@ -332,16 +332,21 @@ pub fn sample(fluid: Option<&Fluid>, s: &Sample, sys: UnitSystem) -> Vec<Suspici
 }
 
 /// The fields of a sample judged against their own history, on their logarithm: the acid
-/// number only. Water is not: a real ingress moves it as far between two quarterly samples as
-/// a slip does (from under 100 ppm to 590 in the simulated shops), so holding it back until
-/// the next sample costs a detection whenever that resample falls just under the limit; the
-/// frame (more than 1 % water) still applies. An acid number rises over months.
-pub(super) const SAMPLE_HISTORY_FIELDS: [Field; 1] = [Field::Acid];
+/// number, which rises over months, and water by its slip shape only (`shape_only`).
+pub(super) const SAMPLE_HISTORY_FIELDS: [Field; 2] = [Field::Acid, Field::Water];
+
+/// Whether a sample field is questioned only for its slip shape, never merely for being far
+/// from its history: a real water ingress moves the water as far between two quarterly samples
+/// as a slip does (from under 100 ppm to 590), and only the shape tells the two apart.
+pub(super) fn shape_only(f: Field) -> bool {
+    f == Field::Water
+}
 
 /// A sample field's value as its history judges it: the logarithm of a positive figure.
 pub(super) fn sample_hist_value(s: &Sample, f: Field) -> Option<f64> {
     match f {
         Field::Acid => s.acid_mgkoh_g,
+        Field::Water => s.water_ppm,
         _ => None,
     }
     .filter(|v| v.is_finite() && *v > 0.0)
@@ -352,11 +357,64 @@ fn sample_idx(f: Field) -> Option<usize> {
     SAMPLE_HISTORY_FIELDS.iter().position(|&g| g == f)
 }
 
+/// Whether a reading `d` (on the logarithm) from its history's median, robust σ `s`, is far
+/// enough for the slip-shape rule: beyond `SHAPE_SIGMAS`, and for water at least
+/// `WATER_SHAPE_FACTOR` times. A next sample as far on the same side confirms a questioned one.
+pub(super) fn shape_far(f: Field, d: f64, s: f64) -> bool {
+    d > SHAPE_SIGMAS * s && (f != Field::Water || d >= WATER_SHAPE_FACTOR.ln())
+}
+
+/// The σ floor of a sample field's slip-shape rule.
+fn shape_floor(f: Field) -> f64 {
+    if f == Field::Water {
+        FLOOR_WATER_SHAPE_LN
+    } else {
+        FLOOR_ACID_SHAPE_LN
+    }
+}
+
+/// Median and robust σ (at least `floor`) of the last `WINDOW` of `acc`, when there are at
+/// least `MIN_ACID_HISTORY`.
+fn floored_stats(acc: &[f64], floor: f64) -> Option<(f64, f64)> {
+    if acc.len() < MIN_ACID_HISTORY {
+        return None;
+    }
+    let last = &acc[acc.len().saturating_sub(WINDOW)..];
+    let (m, s) = stats::median_and_mad_sigma(last)?;
+    Some((m, s.max(floor)))
+}
+
+/// What is asked of a sample figure `x` shaped like a typing slip of `meant`, the usual level
+/// being `usual`.
+fn shape_reason(f: Field, x: f64, meant: (f64, slips::Slip), usual: f64) -> String {
+    let how = match meant.1 {
+        slips::Slip::Swapped => "with two figures swapped",
+        slips::Slip::Decimal => "with the decimal point one place off",
+    };
+    if f == Field::Water {
+        format!(
+            "A water content of {} ppm reads like {} ppm {how} (the unit's recent samples: median {} \
+             ppm): is it right? Until it is confirmed its flag stays at watch.",
+            crate::health::text::num(x, 0),
+            crate::health::text::num(meant.0, 1),
+            crate::health::text::num(usual, 0),
+        )
+    } else {
+        format!(
+            "An acid number of {} mg KOH/g reads like {} {how} (the unit's recent samples: median {} \
+             mg KOH/g): is it right?",
+            crate::health::text::num(x, 3),
+            crate::health::text::num(meant.0, 3),
+            crate::health::text::num(usual, 2),
+        )
+    }
+}
+
 /// The state of the screen of one unit's samples in one era, sample by sample in time order.
 #[derive(Default)]
 pub(super) struct SampleScreen {
     /// Accepted logarithms per history field, oldest first.
-    accepted: [Vec<f64>; 1],
+    accepted: [Vec<f64>; 2],
 }
 
 impl SampleScreen {
@@ -367,20 +425,29 @@ impl SampleScreen {
     }
 
     /// Median and robust σ of the same values for the slip-shape rule, the σ floored at
-    /// `FLOOR_ACID_SHAPE_LN`.
+    /// `FLOOR_ACID_SHAPE_LN` or `FLOOR_WATER_SHAPE_LN`.
     pub(super) fn recent_for_shape(&self, f: Field) -> Option<(f64, f64)> {
-        self.recent_floored(f, FLOOR_ACID_SHAPE_LN)
+        self.recent_floored(f, shape_floor(f))
     }
 
     /// Median and robust σ of the last `WINDOW` accepted values, σ at least `floor`.
     fn recent_floored(&self, f: Field, floor: f64) -> Option<(f64, f64)> {
         let acc = &self.accepted[sample_idx(f)?];
-        if acc.len() < MIN_ACID_HISTORY {
-            return None;
-        }
-        let last = &acc[acc.len().saturating_sub(WINDOW)..];
-        let (m, s) = stats::median_and_mad_sigma(last)?;
-        Some((m, s.max(floor)))
+        floored_stats(acc, floor)
+    }
+
+    /// Whether the last accepted value of a field stood beyond `RUN_SIGMAS` (shape σ) of the
+    /// ones before it on the side `side`: a reading after it on that side is a run, not a
+    /// lone slip.
+    fn after_a_step(&self, f: Field, side: f64) -> bool {
+        let Some(acc) = sample_idx(f).map(|i| &self.accepted[i]) else {
+            return false;
+        };
+        let Some((last, before)) = acc.split_last() else {
+            return false;
+        };
+        floored_stats(before, shape_floor(f))
+            .is_some_and(|(m, s)| (last - m) * side > RUN_SIGMAS * s)
     }
 
     pub(super) fn push(&mut self, f: Field, v: f64) {
@@ -405,21 +472,16 @@ impl SampleScreen {
             let (Some(x), Some((m, sigma))) = (sample_hist_value(s, f), self.recent(f)) else {
                 continue;
             };
-            let Some(side) = outside(x, Some((m, sigma))) else {
+            let beyond = if shape_only(f) {
+                None
+            } else {
+                outside(x, Some((m, sigma)))
+            };
+            let Some(side) = beyond else {
                 if let Some(meant) = self.slip_shaped(f, x) {
                     out.push(Suspicion {
                         field: f,
-                        reason: format!(
-                            "An acid number of {} mg KOH/g reads like {} {} (the unit's recent samples: \
-                             median {} mg KOH/g): is it right?",
-                            crate::health::text::num(x.exp(), 3),
-                            crate::health::text::num(meant.0, 3),
-                            match meant.1 {
-                                slips::Slip::Swapped => "with two figures swapped",
-                                slips::Slip::Decimal => "with the decimal point one place off",
-                            },
-                            crate::health::text::num(m.exp(), 2),
-                        ),
+                        reason: shape_reason(f, x.exp(), meant, m.exp()),
                     });
                 }
                 continue;
@@ -446,7 +508,7 @@ impl SampleScreen {
     /// slip lands within `RUN_SIGMAS` of their median (the nearest such figure).
     pub(super) fn slip_shaped(&self, f: Field, x: f64) -> Option<(f64, slips::Slip)> {
         let (m, s) = self.recent_for_shape(f)?;
-        if (x - m).abs() <= SHAPE_SIGMAS * s {
+        if !shape_far(f, (x - m).abs(), s) || self.after_a_step(f, (x - m).signum()) {
             return None;
         }
         slips::undone(x.exp())

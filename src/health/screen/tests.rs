@@ -313,10 +313,69 @@ fn an_acid_number_with_two_figures_swapped_is_questioned_until_the_next_sample_s
     // same; 6.6 and 0.066 are far) is no question.
     let h = sampled(&[100.0; 5], &[0.43, 0.40, 0.46, 0.44, 0.66], None);
     assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
-    // Water keeps to its frame: 710 ppm over a usual 170 reads like 170 swapped, but a
-    // real ingress reads like that as often.
-    let h = sampled(&[160.0, 175.0, 170.0, 710.0], &[0.4; 4], None);
+}
+
+#[test]
+fn a_water_content_shaped_like_a_slip_is_questioned_until_a_resample_shows_the_water_has_risen() {
+    // 160, 175, 170, then 710: ln(710 / 170) = 1.43 from the median, beyond 3σ (σ floored at
+    // 0.1) and over twice it; 170 with the 7 and 1 swapped back lies on the median (by hand).
+    let h = sampled(&[160.0, 175.0, 170.0, 710.0, 165.0], &[0.4; 5], None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 4), vec![(Field::Water, false)], "{s:?}");
+    assert!(
+        s[0].reason
+            .contains("710 ppm reads like 170 ppm with two figures swapped"),
+        "{}",
+        s[0].reason
+    );
+    // The resample at 165 confirms nothing; the 710 stays out of the history, acid untouched.
+    assert!(fields(&s, 5).is_empty());
+    let m = without_unconfirmed(&h, &s);
+    assert_eq!(m.samples[3].water_ppm, None);
+    assert_eq!(m.samples[3].acid_mgkoh_g, Some(0.4));
+    let q = QuestionedWater {
+        sample_id: 4,
+        ppm: 710.0,
+        confirmed_at: None,
+    };
+    assert_eq!(questioned_water(&h, &s), vec![q.clone()]);
+    // The sample form asks the same of it.
+    let mut before = h.clone();
+    let new = before.samples.remove(3);
+    before.samples.truncate(3);
+    let asked: Vec<Field> = sample_in(&before, &new, UnitSystem::Metric)
+        .into_iter()
+        .map(|x| x.field)
+        .collect();
+    assert_eq!(asked, vec![Field::Water]);
+    // A real ingress: a resample at 900, again over twice the median on the same side,
+    // confirms it (an ingress may go on rising past the questioned figure).
+    let h = sampled(&[160.0, 175.0, 170.0, 710.0, 900.0], &[0.4; 5], None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 4), vec![(Field::Water, true)], "{s:?}");
+    let confirmed_at = Some(h.samples[4].sampled_at);
+    assert_eq!(
+        questioned_water(&h, &s),
+        vec![QuestionedWater { confirmed_at, ..q }]
+    );
+    // A slipped decimal point downwards: 9.1 for 91 is questioned; a next sample of 60 is
+    // under the median but not half of it, so it confirms nothing.
+    let h = sampled(&[90.0, 95.0, 88.0, 9.1, 60.0], &[0.4; 5], None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 4), vec![(Field::Water, false)], "{s:?}");
+    assert!(s[0].reason.contains("decimal point"), "{}", s[0].reason);
+    // Ordinary scatter is no question even where a swap lands on the median: 150 over a
+    // usual 100 (105 swapped) is not twice it.
+    let h = sampled(&[95.0, 120.0, 100.0, 150.0], &[0.4; 4], None);
     assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
+    // Nor is a water content right after one already well above the ones before it: 1050
+    // (105 with the point slipped) after 100, 110, 105 and 260 is the second of a run
+    // (ln(260 / 105) = 0.91 beyond 2σ = 0.2); after 108 instead of 260 it is questioned.
+    let h = sampled(&[100.0, 110.0, 105.0, 260.0, 1050.0], &[0.4; 5], None);
+    assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
+    let h = sampled(&[100.0, 110.0, 105.0, 108.0, 1050.0], &[0.4; 5], None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 5), vec![(Field::Water, false)], "{s:?}");
 }
 
 /// Eight ordinary weeks as `steady_weeks`, with a case drain of 2.2 to 2.6 L/min, then
