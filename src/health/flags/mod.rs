@@ -12,6 +12,7 @@ use super::baseline::BaselineIndicator;
 use super::indicators::{CheckPoint, Computed, Dim, Restart, SamplePoint};
 use super::limits::{LimitKey, Limits};
 use super::plan::WorkItem;
+use super::screen::QuestionedWater;
 use super::text::{flow, num, tdiff, temp, visc};
 use super::{Calendar, State};
 use crate::model::{Acknowledgement, EventKind, FilterState, OilLevel, UnitHistory};

@@ -4,11 +4,18 @@
 use super::*;
 
 /// Raises the condition flags of one unit (all kinds but `overdue`, which comes from the plan).
-pub fn raise(h: &UnitHistory, c: &Computed, limits: &Limits, sys: UnitSystem) -> Vec<Flag> {
+/// `questioned_water` holds the water contents the screen questioned (see `water_points`).
+pub fn raise(
+    h: &UnitHistory,
+    c: &Computed,
+    limits: &Limits,
+    sys: UnitSystem,
+    questioned_water: &[QuestionedWater],
+) -> Vec<Flag> {
     let mut r = Raised { c, out: Vec::new() };
     check_levels(&mut r, limits, sys);
     reservoir_temperature(&mut r, h, limits, sys);
-    sample_flags(&mut r, limits, sys);
+    sample_flags(&mut r, limits, sys, questioned_water);
     filter_and_oil_level(&mut r, h);
     drift(&mut r, limits, sys);
     let mut out = r.out;
@@ -214,7 +221,12 @@ fn reservoir_temperature(r: &mut Raised, h: &UnitHistory, limits: &Limits, sys: 
 }
 
 /// Viscosity, cleanliness, water and acid number: the era's samples.
-fn sample_flags(r: &mut Raised, limits: &Limits, sys: UnitSystem) {
+fn sample_flags(
+    r: &mut Raised,
+    limits: &Limits,
+    sys: UnitSystem,
+    questioned_water: &[QuestionedWater],
+) {
     let c = r.c;
     let pct = |v: Option<f64>| num(v.unwrap_or(0.0).abs(), 1);
 
@@ -341,7 +353,29 @@ fn sample_flags(r: &mut Raised, limits: &Limits, sys: UnitSystem) {
     );
     let mut water = graded_samples(&c.samples, limits, LimitKey::WaterPpm, |s| s.water_ppm);
     let water_by = act_on_trend(&mut water, limits.get(LimitKey::WaterPpm).act, horizon_days);
+    let WaterPoints {
+        points: water,
+        held,
+        carried,
+    } = water_points(water, &c.samples, questioned_water, limits);
     r.push(FlagKind::Water, water, &|g| {
+        if held.contains(&g.at) {
+            return format!(
+                "Water at {} ppm, questioned as a possible typing slip and held at watch until it is \
+                 confirmed: check the lab's report, then confirm the figure or resample; if it stands, find \
+                 the ingress — breather and desiccant, cooler, rod seals, wash-down.",
+                num(g.value.unwrap_or(0.0), 0)
+            );
+        }
+        if let Some(now) = carried.iter().find(|x| x.0 == g.at).map(|x| x.1) {
+            return format!(
+                "Water at {} ppm, confirmed by the next sample's {} ppm (limit {} ppm): find the ingress \
+                 first — breather and desiccant, cooler, rod seals, wash-down — then dry or change the fluid.",
+                num(g.value.unwrap_or(0.0), 0),
+                num(now, 0),
+                num(g.limit.unwrap_or(0.0), 0)
+            );
+        }
         let now = c.samples.iter().rev().find_map(|s| s.water_ppm);
         let what = match (water_by, now) {
             (Some(by), Some(now)) if g.state == State::Act => format!(
@@ -610,4 +644,75 @@ fn baselines_and_restarts(out: &mut [Flag], c: &Computed) {
             .find(|r| r.flag_kinds().contains(&f.kind))
             .cloned();
     }
+}
+
+/// The water contents graded for the flag: the accepted ones (`water`, trends applied), with
+/// each questioned one of the era's samples still unconfirmed put in its place, graded by its
+/// limits but never above watch. A reading that may be a typing slip raises no act until a
+/// resample or a person confirms it, yet a real ingress that happens to read like one is not
+/// hidden meanwhile; the questioned readings take no part in the trend. One that a next
+/// sample confirmed counts at that sample where it grades higher.
+fn water_points(
+    water: Vec<Graded>,
+    samples: &[SamplePoint],
+    questioned: &[QuestionedWater],
+    limits: &Limits,
+) -> WaterPoints {
+    let mut points = water;
+    let mut held = Vec::new();
+    let mut carried = Vec::new();
+    for q in questioned {
+        if !samples.iter().any(|s| s.sample_id == q.sample_id) {
+            continue; // another era's
+        }
+        let (state, limit) = grade(limits, LimitKey::WaterPpm, q.ppm);
+        match q.confirmed_at {
+            None => {
+                let Some(s) = samples.iter().find(|s| s.sample_id == q.sample_id) else {
+                    continue;
+                };
+                let (state, limit) = if state == State::Act {
+                    let l = limits.get(LimitKey::WaterPpm);
+                    (State::Watch, l.watch.or(l.act))
+                } else {
+                    (state, limit)
+                };
+                held.push(s.at);
+                points.push(Graded {
+                    at: s.at,
+                    state,
+                    value: Some(q.ppm),
+                    limit,
+                });
+            }
+            Some(at) => {
+                if let Some(p) = points.iter_mut().find(|p| p.at == at) {
+                    if state > p.state {
+                        carried.push((at, p.value.unwrap_or(0.0)));
+                        *p = Graded {
+                            at,
+                            state,
+                            value: Some(q.ppm),
+                            limit,
+                        };
+                    }
+                }
+            }
+        }
+    }
+    points.sort_by_key(|g| g.at);
+    WaterPoints {
+        points,
+        held,
+        carried,
+    }
+}
+
+/// The water contents graded for the flag (`water_points`).
+struct WaterPoints {
+    points: Vec<Graded>,
+    /// When the questioned, unconfirmed ones were taken.
+    held: Vec<DateTime<Utc>>,
+    /// The samples graded by a questioned reading they confirmed, with their own water, ppm.
+    carried: Vec<(DateTime<Utc>, f64)>,
 }
