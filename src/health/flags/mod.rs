@@ -9,8 +9,8 @@ use chrono::{DateTime, NaiveDate, Utc};
 use serde::{Deserialize, Serialize};
 
 use super::baseline::BaselineIndicator;
-use super::indicators::{CheckPoint, Computed, Dim, Restart, SamplePoint};
-use super::limits::{LimitKey, Limits};
+use super::indicators::{CheckPoint, Computed, Dim, DriftPoint, Restart, SamplePoint};
+use super::limits::{Limit, LimitKey, Limits};
 use super::plan::WorkItem;
 use super::screen::QuestionedWater;
 use super::text::{flow, num, tdiff, temp, visc};

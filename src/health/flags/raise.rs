@@ -19,7 +19,7 @@ pub fn raise(
     filter_and_oil_level(&mut r, h);
     drift(&mut r, limits, sys);
     let mut out = r.out;
-    drift_figure(&mut out, c);
+    drift_figure(&mut out, c, limits);
     baselines_and_restarts(&mut out, c);
     out
 }
@@ -538,7 +538,7 @@ fn drift(r: &mut Raised, limits: &Limits, sys: UnitSystem) {
         .collect();
     r.push(FlagKind::Drift, drift, &|g| {
         let p = c.checks.iter().rev().find(|p| !p.drift.is_empty());
-        let d = p.and_then(|p| p.drift.iter().max_by_key(|d| d.run));
+        let d = p.and_then(|p| raising_drift(p, &dl, g.state));
         let what = match d {
             Some(d) => {
                 let (name, fmt): (&str, Box<dyn Fn(f64) -> String>) = match d.indicator {
@@ -592,7 +592,7 @@ fn drift(r: &mut Raised, limits: &Limits, sys: UnitSystem) {
                     .unwrap_or_default();
                 format!(
                     "{name} has run {side} its baseline {b} for {} checks (EWMA {}, limit {}){here}",
-                    num(g.value.unwrap_or(0.0), 0),
+                    d.run,
                     fmt(d.ewma),
                     fmt(d.ewma_limit)
                 )
@@ -603,12 +603,34 @@ fn drift(r: &mut Raised, limits: &Limits, sys: UnitSystem) {
     });
 }
 
+/// The indicator's drift that raised a drift flag at `state` on the check `p`: at act, the
+/// longest run of those long enough for act and material (`drift`); else the longest run.
+/// The flag's sentence and figure both name it, so a heat rise that acts is not shown as the
+/// flow drift beside it that ran longer without being material.
+pub(super) fn raising_drift<'a>(
+    p: &'a CheckPoint,
+    dl: &Limit,
+    state: State,
+) -> Option<&'a DriftPoint> {
+    let longest = p.drift.iter().max_by_key(|d| d.run);
+    let acting = p
+        .drift
+        .iter()
+        .filter(|d| dl.grade(d.run as f64) == Some(true) && d.material)
+        .max_by_key(|d| d.run);
+    match state {
+        State::Act => acting.or(longest),
+        _ => longest,
+    }
+}
+
 /// The drift flag's figure.
-fn drift_figure(out: &mut [Flag], c: &Computed) {
+fn drift_figure(out: &mut [Flag], c: &Computed, limits: &Limits) {
     // The drift flag's figure: the EWMA of the indicator that drifted, its limit and baseline.
+    let dl = limits.get(LimitKey::DriftChecks);
     if let Some(f) = out.iter_mut().find(|f| f.kind == FlagKind::Drift) {
         let p = c.checks.iter().rev().find(|p| !p.drift.is_empty());
-        if let Some(d) = p.and_then(|p| p.drift.iter().max_by_key(|d| d.run)) {
+        if let Some(d) = p.and_then(|p| raising_drift(p, &dl, f.state)) {
             let dim = match d.indicator {
                 BaselineIndicator::HeatRise => Dim::TempDiff,
                 BaselineIndicator::LeakConductance => Dim::Ratio,

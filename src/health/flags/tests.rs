@@ -170,3 +170,36 @@ fn a_trend_past_watch_that_reaches_act_by_the_next_sample_raises_act() {
     ];
     assert_eq!(act_on_trend(&mut pts, None, 30.0), None);
 }
+
+fn drifted(indicator: BaselineIndicator, run: usize, material: bool) -> DriftPoint {
+    DriftPoint {
+        indicator,
+        ewma: 0.0,
+        ewma_limit: 0.0,
+        cusum_sigma: 0.0,
+        signal: true,
+        run,
+        material,
+        shift_here_pct: None,
+    }
+}
+
+#[test]
+fn a_drift_flag_at_act_names_the_drift_that_raised_it() {
+    // The flow has signalled for 8 checks without a material shift, the heat rise for 6 with
+    // one, the case drain for 2 with one (act needs 3 checks with the built-in limits, watch
+    // 2): the act is the heat rise's, and the flag names it; at watch the longest run stands.
+    let dl = Limits::builtin().get(LimitKey::DriftChecks);
+    assert_eq!((dl.grade(2.0), dl.grade(3.0)), (Some(false), Some(true)));
+    let p = CheckPoint {
+        drift: vec![
+            drifted(BaselineIndicator::CorrectedFlow, 8, false),
+            drifted(BaselineIndicator::HeatRise, 6, true),
+            drifted(BaselineIndicator::CaseDrain, 2, true),
+        ],
+        ..CheckPoint::default()
+    };
+    let at = |s| super::raise::raising_drift(&p, &dl, s).map(|d| d.indicator);
+    assert_eq!(at(State::Act), Some(BaselineIndicator::HeatRise));
+    assert_eq!(at(State::Watch), Some(BaselineIndicator::CorrectedFlow));
+}
