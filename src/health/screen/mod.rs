@@ -38,6 +38,10 @@ pub const MIN_HISTORY: usize = 3;
 /// (a sample a month or a quarter: waiting for a third lets the era's third sample through
 /// unscreened).
 pub const MIN_ACID_HISTORY: usize = 2;
+/// The slip-shape rule (`SHAPE_SIGMAS`) needs only one earlier sample of the era: undoing the
+/// slip must land on that one, with its spread at the rule's floor, and the era's second
+/// sample is then screened too (an acid number of 5.0 for 0.50 after one of 0.47).
+pub const MIN_SHAPE_HISTORY: usize = 1;
 /// A reading further than this many robust σ from the median of its recent history is
 /// questioned. The rule is Hampel's identifier (median ± t · 1.4826 · MAD; F. R. Hampel 1974,
 /// L. Davies and U. Gather, "The identification of multiple outliers", JASA 1993), with t

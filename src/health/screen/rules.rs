@@ -374,9 +374,9 @@ fn shape_floor(f: Field) -> f64 {
 }
 
 /// Median and robust σ (at least `floor`) of the last `WINDOW` of `acc`, when there are at
-/// least `MIN_ACID_HISTORY`.
-fn floored_stats(acc: &[f64], floor: f64) -> Option<(f64, f64)> {
-    if acc.len() < MIN_ACID_HISTORY {
+/// least `min`.
+fn floored_stats(acc: &[f64], floor: f64, min: usize) -> Option<(f64, f64)> {
+    if acc.len() < min.max(1) {
         return None;
     }
     let last = &acc[acc.len().saturating_sub(WINDOW)..];
@@ -421,19 +421,20 @@ impl SampleScreen {
     /// Median and robust σ (floored) of the last `WINDOW` accepted values of a field, when
     /// there are at least `MIN_ACID_HISTORY`.
     pub(super) fn recent(&self, f: Field) -> Option<(f64, f64)> {
-        self.recent_floored(f, FLOOR_ACID_LN)
+        self.recent_floored(f, FLOOR_ACID_LN, MIN_ACID_HISTORY)
     }
 
     /// Median and robust σ of the same values for the slip-shape rule, the σ floored at
-    /// `FLOOR_ACID_SHAPE_LN` or `FLOOR_WATER_SHAPE_LN`.
+    /// `FLOOR_ACID_SHAPE_LN` or `FLOOR_WATER_SHAPE_LN`, from `MIN_SHAPE_HISTORY` on.
     pub(super) fn recent_for_shape(&self, f: Field) -> Option<(f64, f64)> {
-        self.recent_floored(f, shape_floor(f))
+        self.recent_floored(f, shape_floor(f), MIN_SHAPE_HISTORY)
     }
 
-    /// Median and robust σ of the last `WINDOW` accepted values, σ at least `floor`.
-    fn recent_floored(&self, f: Field, floor: f64) -> Option<(f64, f64)> {
+    /// Median and robust σ of the last `WINDOW` accepted values, σ at least `floor`, when
+    /// there are at least `min`.
+    fn recent_floored(&self, f: Field, floor: f64, min: usize) -> Option<(f64, f64)> {
         let acc = &self.accepted[sample_idx(f)?];
-        floored_stats(acc, floor)
+        floored_stats(acc, floor, min)
     }
 
     /// Whether the last accepted value of a field stood beyond `RUN_SIGMAS` (shape σ) of the
@@ -446,7 +447,7 @@ impl SampleScreen {
         let Some((last, before)) = acc.split_last() else {
             return false;
         };
-        floored_stats(before, shape_floor(f))
+        floored_stats(before, shape_floor(f), MIN_SHAPE_HISTORY)
             .is_some_and(|(m, s)| (last - m) * side > RUN_SIGMAS * s)
     }
 
@@ -469,16 +470,17 @@ impl SampleScreen {
             if out.iter().any(|x| x.field == f) {
                 continue;
             }
-            let (Some(x), Some((m, sigma))) = (sample_hist_value(s, f), self.recent(f)) else {
+            let Some(x) = sample_hist_value(s, f) else {
                 continue;
             };
-            let beyond = if shape_only(f) {
-                None
-            } else {
-                outside(x, Some((m, sigma)))
+            let beyond = match self.recent(f) {
+                Some(h) if !shape_only(f) => outside(x, Some(h)).map(|side| (side, h.0)),
+                _ => None,
             };
-            let Some(side) = beyond else {
-                if let Some(meant) = self.slip_shaped(f, x) {
+            let Some((side, m)) = beyond else {
+                if let (Some(meant), Some((m, _))) =
+                    (self.slip_shaped(f, x), self.recent_for_shape(f))
+                {
                     out.push(Suspicion {
                         field: f,
                         reason: shape_reason(f, x.exp(), meant, m.exp()),

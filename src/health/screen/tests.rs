@@ -236,11 +236,24 @@ fn a_slipped_decimal_in_an_acid_number_is_questioned_against_the_unit_s_own_samp
         .collect();
     assert_eq!(asked, vec![Field::Acid]);
     // Two earlier samples of the era are enough (the floor sets the spread): 0.40 typed as
-    // 4.0 at the era's third sample, ln(4.0 / 0.405) = 2.29 beyond 1.0; after one, not yet.
+    // 4.0 at the era's third sample, ln(4.0 / 0.405) = 2.29 beyond 1.0.
     let h = sampled(&[100.0; 3], &[0.41, 0.40, 4.0], None);
     let s = screen_history(&h, None, UnitSystem::Metric);
     assert_eq!(fields(&s, 3), vec![(Field::Acid, false)]);
+    assert!(s[0].reason.contains("times above"), "{}", s[0].reason);
+    // After one, only the slip's shape is asked about: 4.0 reads like 0.40 with the point
+    // slipped, ln(0.40 / 0.41) = −0.025 within 2 σ = 0.2 of the one before it; 1.3, 3.2
+    // times that one, is no slip of it (13, 0.13 and 3.1 are all far) and is no question yet.
     let h = sampled(&[100.0; 2], &[0.41, 4.0], None);
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 2), vec![(Field::Acid, false)]);
+    assert!(
+        s[0].reason
+            .contains("reads like 0.4 with the decimal point"),
+        "{}",
+        s[0].reason
+    );
+    let h = sampled(&[100.0; 2], &[0.41, 1.3], None);
     assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
     // A tenth (0.04 for 0.40) is questioned as well: below.
     let h = sampled(&[100.0; 4], &[0.40, 0.42, 0.38, 0.04], None);
