@@ -117,6 +117,15 @@ pub const STROKE_FACTOR: f64 = 3.0;
 /// A KV40 further than this fraction from the new oil's is a wrong unit, a wrong oil or a slip
 /// (the entry form's own threshold).
 pub const KV40_FAR: f64 = 0.5;
+/// A sample's KV40 and KV100 giving a viscosity index further than this from the new oil's
+/// are not one oil's pair: a lab's scatter of about 1 % on each moves the index by a few
+/// points, an oil's ageing and an ordinary top-up by little more, and shear of a
+/// viscosity-index improver by up to about 20 (from memory); a KV40 with two figures swapped
+/// beside its true KV100 by 40 or more (common practice, no published source, for the 30).
+pub const VI_FAR: f64 = 30.0;
+/// …and undoing one slip in the KV40 must bring the index within this of the new oil's,
+/// twice a lab's scatter (from memory): then the KV40 is the figure in doubt.
+pub const VI_NEAR: f64 = 15.0;
 /// More than 1 % water is free water or a figure not in ppm.
 pub const WATER_MAX_PPM: f64 = 10_000.0;
 /// An acid number above this is rare in hydraulic oil, mg KOH/g.

@@ -3,6 +3,7 @@
 //! like a slip; it keeps no record of what was confirmed.
 
 use super::*;
+use crate::physics::viscosity::viscosity_index;
 
 /// The fields of a check judged against their own history.
 pub(super) const HISTORY_FIELDS: [Field; 5] = [
@@ -291,6 +292,14 @@ pub fn sample(fluid: Option<&Fluid>, s: &Sample, sys: UnitSystem) -> Vec<Suspici
             ),
         });
     }
+    if let Some(reason) = kv40_off_its_pair(fluid, s, sys) {
+        if !out.iter().any(|x| x.field == Field::Kv40) {
+            out.push(Suspicion {
+                field: Field::Kv40,
+                reason,
+            });
+        }
+    }
     if s.kv40.is_none() {
         let w = fluid.and_then(|f| Walther::from_kv40_kv100(f.kv40_new?, f.kv100_new?).ok());
         if let (Some(r), Some(w)) = (s.visc_reading, w) {
@@ -329,6 +338,51 @@ pub fn sample(fluid: Option<&Fluid>, s: &Sample, sys: UnitSystem) -> Vec<Suspici
         });
     }
     out
+}
+
+/// What is asked of a sample whose KV40 and KV100 give a viscosity index (ASTM D2270) more
+/// than `VI_FAR` from the new oil's, where undoing one typing slip in the KV40 (`slips`)
+/// brings it within `VI_NEAR` of it: the two viscosities of one oil move together (ageing, a
+/// top-up, shear), a figure mistyped in one of them does not (31.8 cSt typed as 38.1 beside a
+/// KV100 of 5.29 reads as a VI of 52, the oil's being 102). `None` when either is missing,
+/// the pair is consistent, or no slip of the KV40 explains it (a slip in the KV100, say).
+fn kv40_off_its_pair(fluid: Option<&Fluid>, s: &Sample, sys: UnitSystem) -> Option<String> {
+    let f = fluid?;
+    let (k40, k100, n40, n100) = (s.kv40?, s.kv100?, f.kv40_new?, f.kv100_new?);
+    let vi = viscosity_index(k40, k100).ok()?.vi;
+    let vi_new = viscosity_index(n40, n100).ok()?.vi;
+    if (vi - vi_new).abs() <= VI_FAR {
+        return None;
+    }
+    // The figure meant must also lie nearer the new oil's KV40 than the one typed: a slip in
+    // the KV100 can make a sound KV40's swapped figure fit the index by chance (5.46 typed as
+    // 4.56 beside 32.4, which as 23.4 would fit).
+    let from_new = |c: f64| (c / n40.cst() - 1.0).abs();
+    let (meant, slip, vi_meant) = slips::undone(k40.cst())
+        .into_iter()
+        .filter(|(c, _)| from_new(*c) < from_new(k40.cst()))
+        .filter_map(|(c, slip)| {
+            let v = viscosity_index(crate::units::Viscosity::from_cst(c), k100)
+                .ok()?
+                .vi;
+            Some((c, slip, v))
+        })
+        .filter(|(_, _, v)| (v - vi_new).abs() <= VI_NEAR)
+        .min_by(|a, b| (a.2 - vi_new).abs().total_cmp(&(b.2 - vi_new).abs()))?;
+    Some(format!(
+        "KV40 {} beside a KV100 of {} gives a viscosity index of {}, the new oil's being {}; as {} \
+         ({}) it would give {}: is the KV40 right?",
+        visc(k40.si(), sys),
+        visc(k100.si(), sys),
+        crate::health::text::num(vi, 0),
+        crate::health::text::num(vi_new, 0),
+        visc(crate::units::Viscosity::from_cst(meant).si(), sys),
+        match slip {
+            slips::Slip::Swapped => "two figures swapped",
+            slips::Slip::Decimal => "the decimal point one place off",
+        },
+        crate::health::text::num(vi_meant, 0),
+    ))
 }
 
 /// The fields of a sample judged against their own history, on their logarithm: the acid

@@ -181,6 +181,44 @@ fn samples_far_from_the_fluid_are_questioned() {
     assert_eq!(sample_rule(&f, &s), vec![Field::ViscReading]);
 }
 
+#[test]
+fn a_kv40_that_does_not_fit_its_kv100_is_questioned_where_a_slip_explains_it() {
+    // New oil 46 / 6.8 cSt: a viscosity index of 102 (the crate's ASTM D2270 computation,
+    // checked against the standard's worked examples and the `chemicals` package in
+    // tests/reference). The indexes below are the same computation's; the decisions are by
+    // hand from them.
+    let f = fluid(1);
+    let mut s = crate::health::testutil::sample(1, crate::health::testutil::t("2024-03-01"));
+    let pair = |s: &mut Sample, kv40: f64, kv100: f64| {
+        s.kv40 = Some(Viscosity::from_cst(kv40));
+        s.kv100 = Some(Viscosity::from_cst(kv100));
+    };
+    // 46.1 typed as 64.1 beside its KV100 of 6.83: an index of 37; as 46.1 it gives 102.
+    pair(&mut s, 64.1, 6.83);
+    let got = crate::health::screen::sample(Some(&f), &s, UnitSystem::Metric);
+    assert_eq!(got.len(), 1, "{got:?}");
+    assert_eq!(got[0].field, Field::Kv40);
+    assert!(
+        got[0].reason.contains("as 46.10 cSt (two figures swapped)"),
+        "{}",
+        got[0].reason
+    );
+    // A real thinning moves both (36.8 / 5.98: an index of 106), a thicker top-up too
+    // (50.6 / 7.48): no question.
+    for (kv40, kv100) in [(36.8, 5.98), (50.6, 7.48)] {
+        pair(&mut s, kv40, kv100);
+        assert!(sample_rule(&f, &s).is_empty(), "{kv40} / {kv100}");
+    }
+    // The KV100 mistyped (6.8 as 8.6) beside a sound KV40: the index is far off, but no slip
+    // of the KV40 that lies nearer the new oil's explains it, so the KV40 is not blamed.
+    pair(&mut s, 46.0, 8.6);
+    assert!(sample_rule(&f, &s).is_empty());
+    // Without the KV100 there is no pair to judge.
+    s.kv100 = None;
+    s.kv40 = Some(Viscosity::from_cst(64.1));
+    assert!(sample_rule(&f, &s).is_empty());
+}
+
 fn sample_rule(f: &Fluid, s: &Sample) -> Vec<Field> {
     crate::health::screen::sample(Some(f), s, UnitSystem::Metric)
         .into_iter()
