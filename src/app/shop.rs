@@ -562,7 +562,7 @@ pub(crate) fn store_error_is_input(e: &StoreError) -> bool {
 /// Fills `summary.questioned` with the readings of this import that the screening questions
 /// (the same rule as the entry forms and the health engine, `health::screen`): each imported
 /// check or sample is judged against the unit's history and physical frame as stored now. The
-/// rows stay stored, unconfirmed; the engine leaves them out of baselines and flags until a
+/// rows stay stored, unconfirmed; the engine leaves them out of baselines and detectors until a
 /// person or the next reading confirms them. Only the units the import wrote to are read.
 pub fn mark_questioned(
     store: &crate::store::Store,
@@ -607,7 +607,7 @@ pub fn questioned_lines(summary: &ImportSummary) -> Vec<String> {
     }
     let n = summary.questioned.len();
     let mut lines = vec![format!(
-        "{n} reading{} questioned and kept unconfirmed (left out of baselines and flags until \
+        "{n} reading{} questioned and kept unconfirmed (left out of baselines and detectors until \
          confirmed; `sumpbook confirm`, or Confirm on the unit page):",
         if n == 1 { "" } else { "s" }
     )];

@@ -65,7 +65,7 @@ pub fn draw(l: &mut Layout, doc: &ReportDoc) {
             size::TINY,
             DARK,
             0.0,
-            "Kept but left out of baselines and flags until a person or the next reading confirms them.",
+            "Kept but left out of baselines and detectors until a person or the next reading confirms them.",
         );
         for q in &doc.questioned {
             l.paragraph(Face::Regular, size::SMALL, DARK, 0.0, q);

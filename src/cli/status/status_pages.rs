@@ -139,7 +139,7 @@ fn fleet_table(out: &mut dyn Write, f: &FleetStatus, zone: Zone) -> Result<(), F
         writeln!(out)?;
         writeln!(
             out,
-            "Questioned readings, not confirmed (left out of baselines and flags; `sumpbook confirm` keeps one)"
+            "Questioned readings, not confirmed (left out of baselines and detectors; `sumpbook confirm` keeps one)"
         )?;
         for (u, s) in open {
             suspect_line(out, &u.unit, s, zone)?;

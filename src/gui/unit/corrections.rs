@@ -136,7 +136,7 @@ fn show_suspicion(ctx: &Rc<Ctx>, a: &UnitAdapter, which: Reading, id: i64) {
         .iter()
         .map(|q| {
             let state = match &q.confirmed {
-                None => "not confirmed: left out of baselines and flags".to_string(),
+                None => "not confirmed: left out of baselines and detectors".to_string(),
                 Some(c) => {
                     let (by, at) = status::confirmed_by_text(c);
                     format!(
