@@ -13,7 +13,7 @@ pub(super) fn questioned_text(q: &SuspectReading, zone: Zone) -> String {
         Record::Sample => "sample",
     };
     let state = match &q.confirmed {
-        None => "not confirmed: left out of baselines and flags".to_string(),
+        None => "not confirmed: left out of baselines and detectors".to_string(),
         Some(c) => {
             let (by, at) = crate::app::status::confirmed_by_text(c);
             format!("confirmed by {by} {}", zone.show_date(at))
@@ -47,7 +47,7 @@ pub(super) fn questioned_remarks(u: &UnitStatus, zone: Zone) -> Vec<String> {
     let n = open.len();
     vec![format!(
         "Questioned, not confirmed: {n} reading{} (latest: {} of {}), left out of baselines and \
-         flags until confirmed.",
+         detectors until confirmed.",
         if n == 1 { "" } else { "s" },
         q.field.label(),
         format!("{record} {}", zone.show_marked(q.at))
@@ -72,6 +72,7 @@ fn feeds(field: ScreenField, key: &str) -> bool {
         F::Kv40 | F::ViscReading => key == "kv40",
         F::Water => key == "water",
         F::Acid => key == "acid_rise",
+        F::Count4 | F::Count6 | F::Count14 => key == "cleanliness",
     }
 }
 

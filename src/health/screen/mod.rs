@@ -100,6 +100,16 @@ pub const FLOOR_ACID_SHAPE_LN: f64 = 0.1;
 /// of a sound unit moves a little more with the season and its breather (from memory). With
 /// `RUN_SIGMAS` undoing the slip must land within 1.22 times the recent ones' median.
 pub const FLOOR_WATER_SHAPE_LN: f64 = 0.1;
+/// The particle counts' robust σ for the slip-shape rule, on the logarithm, is floored here:
+/// undoing the slip must land within 1.5 times the recent median. A count is questioned for
+/// its shape only at least `COUNT_SHAPE_FACTOR` times (or under that many-th of) its recent
+/// median, two ISO 4406 range numbers, the act limit over target: a lab's or a bench
+/// counter's counts of one oil scatter by up to a range number between samples (from memory),
+/// and a smaller slip seldom moves the verdict. And only while the sample's other two sizes
+/// stay within that of theirs: dirt that gets in brings every size with it, a mistyped figure
+/// moves one (common practice, no published source).
+pub const FLOOR_COUNT_SHAPE_LN: f64 = 0.2;
+pub const COUNT_SHAPE_FACTOR: f64 = 4.0;
 /// A water content is questioned for its shape only at least this many times (or under this
 /// many-th of) its recent median: a sound unit's water wanders by half as much again between
 /// samples with the season and its breather, and a smaller slip leaves it on the same side of
@@ -146,6 +156,13 @@ pub enum Field {
     #[serde(rename = "water_ppm")]
     Water,
     Acid,
+    /// The particle counts per mL at ≥4, ≥6 and ≥14 µm(c).
+    #[serde(rename = "count_4")]
+    Count4,
+    #[serde(rename = "count_6")]
+    Count6,
+    #[serde(rename = "count_14")]
+    Count14,
 }
 
 impl Field {
@@ -160,6 +177,9 @@ impl Field {
             Field::ViscReading => "visc_reading",
             Field::Water => "water_ppm",
             Field::Acid => "acid",
+            Field::Count4 => "count_4",
+            Field::Count6 => "count_6",
+            Field::Count14 => "count_14",
         }
     }
 
@@ -174,6 +194,9 @@ impl Field {
             Field::ViscReading => "field viscosity reading",
             Field::Water => "water",
             Field::Acid => "acid number",
+            Field::Count4 => "particle count ≥4 µm(c)",
+            Field::Count6 => "particle count ≥6 µm(c)",
+            Field::Count14 => "particle count ≥14 µm(c)",
         }
     }
 }
@@ -620,6 +643,9 @@ pub fn without_unconfirmed(h: &UnitHistory, suspects: &[SuspectReading]) -> Unit
                         Field::ViscReading => x.visc_reading = None,
                         Field::Water => x.water_ppm = None,
                         Field::Acid => x.acid_mgkoh_g = None,
+                        Field::Count4 => x.counts_per_ml[0] = None,
+                        Field::Count6 => x.counts_per_ml[1] = None,
+                        Field::Count14 => x.counts_per_ml[2] = None,
                         _ => {}
                     }
                 }

@@ -98,6 +98,77 @@ pub(super) fn decimal_shaped(f: Field, x: f64, hist: Option<(f64, f64)>) -> bool
             .any(|c| (c - m).abs() <= RUN_SIGMAS * s)
 }
 
+/// A reading as the person typed it: in the shop's units (°C or °F, bar or psi, L/min or
+/// GPM, seconds), where a typing slip is made.
+fn typed(f: Field, si: f64, sys: UnitSystem) -> Option<f64> {
+    use crate::units::{Flow, Pressure, Temperature};
+    let us = sys == UnitSystem::Us;
+    Some(match f {
+        Field::ReservoirTemp | Field::AmbientTemp if us => Temperature(si).f(),
+        Field::ReservoirTemp | Field::AmbientTemp => Temperature(si).c(),
+        Field::Pressure if us => Pressure(si).psi(),
+        Field::Pressure => Pressure(si).bar(),
+        Field::StrokeTime => si,
+        Field::CaseDrain if us => Flow(si).gpm(),
+        Field::CaseDrain => Flow(si).lpm(),
+        _ => return None,
+    })
+}
+
+/// The SI value of a figure typed in the shop's units (`typed` undone).
+fn from_typed(f: Field, x: f64, sys: UnitSystem) -> f64 {
+    use crate::units::{Flow, Pressure, Temperature};
+    let us = sys == UnitSystem::Us;
+    match f {
+        Field::ReservoirTemp | Field::AmbientTemp if us => Temperature::from_f(x).si(),
+        Field::ReservoirTemp | Field::AmbientTemp => Temperature::from_c(x).si(),
+        Field::Pressure if us => Pressure::from_psi(x).si(),
+        Field::Pressure => Pressure::from_bar(x).si(),
+        Field::CaseDrain if us => Flow::from_gpm(x).si(),
+        Field::CaseDrain => Flow::from_lpm(x).si(),
+        _ => x,
+    }
+}
+
+/// What is asked of a reading at one of a unit's first checks, before its history holds
+/// `MIN_HISTORY` readings to judge it by: one further than `SIGMAS` floored σ from the median
+/// of those before it and shaped like a typing slip of them (`slips`: undone, it lands within
+/// `RUN_SIGMAS` floored σ of that median) — an oil at 92.9 °C typed for 29.9 at the second
+/// check. A reading merely far from so few is not asked about: a new unit's first weeks may
+/// rightly differ. `accepted` holds the earlier readings as the history judges them.
+fn early_slip(f: Field, si: f64, accepted: &[f64], sys: UnitSystem) -> Option<String> {
+    let m = stats::median(accepted)?;
+    let s = floor(f);
+    let as_hist = |v: f64| {
+        if on_log(f) {
+            (v > 0.0).then(|| v.ln())
+        } else {
+            Some(v)
+        }
+    };
+    if (as_hist(si)? - m).abs() <= SIGMAS * s {
+        return None;
+    }
+    let (meant, slip, _) = slips::undone(typed(f, si, sys)?)
+        .into_iter()
+        .filter_map(|(v, slip)| {
+            let d = (as_hist(from_typed(f, v, sys))? - m).abs();
+            (d <= RUN_SIGMAS * s).then_some((v, slip, d))
+        })
+        .min_by(|a, b| a.2.total_cmp(&b.2))?;
+    Some(format!(
+        "{} {} reads like {} {} (this unit's first readings: median {}): is it right?",
+        capital(f.label()),
+        show(f, si, sys),
+        show(f, from_typed(f, meant, sys), sys),
+        match slip {
+            slips::Slip::Swapped => "with two figures swapped",
+            slips::Slip::Decimal => "with the decimal point one place off",
+        },
+        show(f, from_hist(f, m), sys),
+    ))
+}
+
 /// The state of the screen of one unit's checks, reading by reading in time order.
 #[derive(Default)]
 pub(super) struct CheckScreen {
@@ -127,6 +198,13 @@ impl CheckScreen {
             };
             let i = idx(f);
             let hist = recent(f, &self.accepted[i]);
+            if hist.is_none() {
+                if let Some(reason) = early_slip(f, shown, &self.accepted[i], sys) {
+                    history_hit[i] = true;
+                    out.push(Suspicion { field: f, reason });
+                }
+                continue;
+            }
             let Some(side) = outside(x, hist) else {
                 continue;
             };
@@ -386,14 +464,25 @@ fn kv40_off_its_pair(fluid: Option<&Fluid>, s: &Sample, sys: UnitSystem) -> Opti
 }
 
 /// The fields of a sample judged against their own history, on their logarithm: the acid
-/// number, which rises over months, and water by its slip shape only (`shape_only`).
-pub(super) const SAMPLE_HISTORY_FIELDS: [Field; 2] = [Field::Acid, Field::Water];
+/// number, which rises over months, and water and the particle counts by their slip shape only
+/// (`shape_only`).
+pub(super) const SAMPLE_HISTORY_FIELDS: [Field; 5] = [
+    Field::Acid,
+    Field::Water,
+    Field::Count4,
+    Field::Count6,
+    Field::Count14,
+];
+
+/// The particle count fields, smallest size first.
+const COUNTS: [Field; 3] = [Field::Count4, Field::Count6, Field::Count14];
 
 /// Whether a sample field is questioned only for its slip shape, never merely for being far
 /// from its history: a real water ingress moves the water as far between two quarterly samples
-/// as a slip does (from under 100 ppm to 590), and only the shape tells the two apart.
+/// as a slip does (from under 100 ppm to 590), dirt getting in moves the counts by range
+/// numbers, and only the shape tells them from a slip.
 pub(super) fn shape_only(f: Field) -> bool {
-    f == Field::Water
+    f == Field::Water || COUNTS.contains(&f)
 }
 
 /// A sample field's value as its history judges it: the logarithm of a positive figure.
@@ -401,6 +490,9 @@ pub(super) fn sample_hist_value(s: &Sample, f: Field) -> Option<f64> {
     match f {
         Field::Acid => s.acid_mgkoh_g,
         Field::Water => s.water_ppm,
+        Field::Count4 => s.counts_per_ml[0],
+        Field::Count6 => s.counts_per_ml[1],
+        Field::Count14 => s.counts_per_ml[2],
         _ => None,
     }
     .filter(|v| v.is_finite() && *v > 0.0)
@@ -415,15 +507,20 @@ fn sample_idx(f: Field) -> Option<usize> {
 /// enough for the slip-shape rule: beyond `SHAPE_SIGMAS`, and for water at least
 /// `WATER_SHAPE_FACTOR` times. A next sample as far on the same side confirms a questioned one.
 pub(super) fn shape_far(f: Field, d: f64, s: f64) -> bool {
-    d > SHAPE_SIGMAS * s && (f != Field::Water || d >= WATER_SHAPE_FACTOR.ln())
+    let factor = match f {
+        Field::Water => WATER_SHAPE_FACTOR,
+        Field::Count4 | Field::Count6 | Field::Count14 => COUNT_SHAPE_FACTOR,
+        _ => 1.0,
+    };
+    d > SHAPE_SIGMAS * s && d >= factor.ln()
 }
 
 /// The σ floor of a sample field's slip-shape rule.
 fn shape_floor(f: Field) -> f64 {
-    if f == Field::Water {
-        FLOOR_WATER_SHAPE_LN
-    } else {
-        FLOOR_ACID_SHAPE_LN
+    match f {
+        Field::Water => FLOOR_WATER_SHAPE_LN,
+        Field::Count4 | Field::Count6 | Field::Count14 => FLOOR_COUNT_SHAPE_LN,
+        _ => FLOOR_ACID_SHAPE_LN,
     }
 }
 
@@ -445,6 +542,16 @@ fn shape_reason(f: Field, x: f64, meant: (f64, slips::Slip), usual: f64) -> Stri
         slips::Slip::Swapped => "with two figures swapped",
         slips::Slip::Decimal => "with the decimal point one place off",
     };
+    if COUNTS.contains(&f) {
+        return format!(
+            "A {} of {} per mL reads like {} {how}, while the sample's other sizes kept to theirs (the \
+             unit's recent samples: median {}): is it right?",
+            f.label(),
+            crate::health::text::num(x, 1),
+            crate::health::text::num(meant.0, 1),
+            crate::health::text::num(usual, 1),
+        );
+    }
     if f == Field::Water {
         format!(
             "A water content of {} ppm reads like {} ppm {how} (the unit's recent samples: median {} \
@@ -468,7 +575,7 @@ fn shape_reason(f: Field, x: f64, meant: (f64, slips::Slip), usual: f64) -> Stri
 #[derive(Default)]
 pub(super) struct SampleScreen {
     /// Accepted logarithms per history field, oldest first.
-    accepted: [Vec<f64>; 2],
+    accepted: [Vec<f64>; 5],
 }
 
 impl SampleScreen {
@@ -489,6 +596,18 @@ impl SampleScreen {
     fn recent_floored(&self, f: Field, floor: f64, min: usize) -> Option<(f64, f64)> {
         let acc = &self.accepted[sample_idx(f)?];
         floored_stats(acc, floor, min)
+    }
+
+    /// Whether the sample's particle counts other than `f` are all given and each within the
+    /// slip-shape rule's reach of its own recent median (`shape_far` not reached): a count
+    /// that moved alone.
+    fn other_counts_kept(&self, s: &Sample, f: Field) -> bool {
+        COUNTS.iter().filter(|&&g| g != f).all(|&g| {
+            match (sample_hist_value(s, g), self.recent_for_shape(g)) {
+                (Some(x), Some((m, sd))) => !shape_far(g, (x - m).abs(), sd),
+                _ => false,
+            }
+        })
     }
 
     /// Whether the last accepted value of a field stood beyond `RUN_SIGMAS` (shape σ) of the
@@ -532,6 +651,9 @@ impl SampleScreen {
                 _ => None,
             };
             let Some((side, m)) = beyond else {
+                if COUNTS.contains(&f) && !self.other_counts_kept(s, f) {
+                    continue;
+                }
                 if let (Some(meant), Some((m, _))) =
                     (self.slip_shaped(f, x), self.recent_for_shape(f))
                 {
