@@ -176,22 +176,25 @@ fn a_fluid_change_starts_a_new_era_and_baseline() {
     assert!(r.indicators.kv40_drift_pct.unwrap().abs() < 1e-12);
 }
 
+/// A press with one check and a sample every 13 weeks from week 1 (ids 1…), of `ppm` water.
+fn with_water(ppm: &[f64]) -> UnitHistory {
+    let mut h = press();
+    h.checks.push(check(1, week(0)));
+    for (i, v) in ppm.iter().enumerate() {
+        let mut s = sample(i as i64 + 1, week(1 + 13 * i as i64));
+        s.water_ppm = Some(*v);
+        h.samples.push(s);
+    }
+    h
+}
+
 #[test]
 fn water_rising_on_three_samples_acts_before_it_reaches_the_act_limit() {
     let l = Limits::builtin();
     // Samples every 13 weeks (the default sample interval): 100, 250, 400 ppm. The last is
     // at watch (> 200, ≤ 500); at 150 ppm a quarter it is at 550 ppm by the next sample due,
     // past the act limit of 500 ppm: act, with the projection as the flag's figure.
-    let run = |ppm: [f64; 3]| {
-        let mut h = press();
-        h.checks.push(check(1, week(0)));
-        for (i, v) in ppm.iter().enumerate() {
-            let mut s = sample(i as i64 + 1, week(1 + 13 * i as i64));
-            s.water_ppm = Some(*v);
-            h.samples.push(s);
-        }
-        eval(&h, &l, week(28))
-    };
+    let run = |ppm: [f64; 3]| eval(&with_water(&ppm), &l, week(28));
     let r = run([100.0, 250.0, 400.0]);
     let f = r.flags.iter().find(|f| f.kind == FlagKind::Water).unwrap();
     assert_eq!(f.state, State::Act);
@@ -213,16 +216,7 @@ fn a_water_content_questioned_as_a_slip_is_at_watch_until_a_resample_confirms_it
     // Quarterly samples at 160, 175, 170 ppm, then 710: it reads like 170 with two figures
     // swapped (`screen`), so it is held out of the history, yet shown: at watch, not act,
     // whatever its level (500 ppm is the act limit).
-    let run = |ppm: &[f64]| {
-        let mut h = press();
-        h.checks.push(check(1, week(0)));
-        for (i, v) in ppm.iter().enumerate() {
-            let mut s = sample(i as i64 + 1, week(1 + 13 * i as i64));
-            s.water_ppm = Some(*v);
-            h.samples.push(s);
-        }
-        eval(&h, &l, week(1 + 13 * ppm.len() as i64))
-    };
+    let run = |ppm: &[f64]| eval(&with_water(ppm), &l, week(1 + 13 * ppm.len() as i64));
     let r = run(&[160.0, 175.0, 170.0, 710.0]);
     let f = r.flags.iter().find(|f| f.kind == FlagKind::Water).unwrap();
     assert_eq!(f.state, State::Watch);
@@ -252,19 +246,11 @@ fn a_water_content_questioned_as_a_slip_is_at_watch_until_a_resample_confirms_it
         f.what
     );
     // A person confirms the 710 at entry: it acts at once.
-    let mut h = press();
-    h.checks.push(check(1, week(0)));
-    for (i, v) in [160.0, 175.0, 170.0, 710.0].iter().enumerate() {
-        let mut s = sample(i as i64 + 1, week(1 + 13 * i as i64));
-        s.water_ppm = Some(*v);
-        if i == 3 {
-            s.confirmed = Some(crate::model::Confirmation {
-                by: "T. Tech".into(),
-                at: week(40),
-            });
-        }
-        h.samples.push(s);
-    }
+    let mut h = with_water(&[160.0, 175.0, 170.0, 710.0]);
+    h.samples[3].confirmed = Some(crate::model::Confirmation {
+        by: "T. Tech".into(),
+        at: week(40),
+    });
     assert_eq!(
         state_of(&eval(&h, &l, week(53)), FlagKind::Water),
         State::Act
