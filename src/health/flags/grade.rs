@@ -165,12 +165,18 @@ pub(super) const TREND_SAMPLES: usize = 3;
 /// scatter of a lab result from raising it (common practice, no published source). The slope is
 /// `physics::stats::linear_trend`'s, checked against scipy.
 ///
+/// The projection must clear `act` by its own standard error, σ·√(1 + step²/Sxx) — the
+/// latest reading's scatter and the slope's over the run, ordinary least squares — with σ the
+/// readings' scatter, `scatter` of the latest value: a lab's repeatability, so that an oil
+/// ageing slowly past watch is not carried past act by the scatter of three results.
+///
 /// The escalated point carries the projected value and the act limit as its figure. Returns the
 /// date the last point's projection is for, when the last point was escalated.
 pub(super) fn act_on_trend(
     points: &mut [Graded],
     act: Option<f64>,
     horizon_days: f64,
+    scatter: &dyn Fn(f64) -> f64,
 ) -> Option<DateTime<Utc>> {
     let act = act?;
     // The readings as graded by their limits alone: an escalated point's projection is no
@@ -207,7 +213,18 @@ pub(super) fn act_on_trend(
         let spacing = days(p.at) / (TREND_SAMPLES - 1) as f64;
         let step = horizon_days.min(spacing).max(0.0);
         let ahead = away[away.len() - 1] + fit.slope * step;
-        if ahead >= act {
+        // The projection's standard error: the latest reading's scatter and the slope's over
+        // the run, step·σ/√Sxx (ordinary least squares).
+        let sigma = scatter(away[away.len() - 1].abs());
+        let t: Vec<f64> = line.iter().map(|q| q.0).collect();
+        let mean_t = t.iter().sum::<f64>() / t.len() as f64;
+        let sxx: f64 = t.iter().map(|x| (x - mean_t).powi(2)).sum();
+        let se = if sxx > 0.0 {
+            sigma * (1.0 + step * step / sxx).sqrt()
+        } else {
+            sigma
+        };
+        if ahead - se >= act {
             points[i].state = State::Act;
             points[i].value = Some(ahead.copysign(side));
             points[i].limit = Some(act.copysign(side));

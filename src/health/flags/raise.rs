@@ -256,7 +256,8 @@ fn sample_flags(
             })
         })
         .collect();
-    let visc_by = act_on_trend(&mut visc_points, kv.act, horizon_days);
+    // A lab's KV40 of one oil repeats within about 1 % (from memory).
+    let visc_by = act_on_trend(&mut visc_points, kv.act, horizon_days, &|_| 1.0);
     r.push(FlagKind::Viscosity, visc_points, &|g| {
         let s = c.samples.iter().rev().find(|s| s.kv40_drift_pct.is_some());
         let new = c.fluid.as_ref().and_then(|f| f.kv40_new).map(|v| v.si());
@@ -352,7 +353,13 @@ fn sample_flags(
         },
     );
     let mut water = graded_samples(&c.samples, limits, LimitKey::WaterPpm, |s| s.water_ppm);
-    let water_by = act_on_trend(&mut water, limits.get(LimitKey::WaterPpm).act, horizon_days);
+    let water_by = act_on_trend(
+        &mut water,
+        limits.get(LimitKey::WaterPpm).act,
+        horizon_days,
+        // Karl Fischer water results repeat within about a tenth at these levels (from memory).
+        &|v| 0.1 * v,
+    );
     let WaterPoints {
         points: water,
         held,
@@ -404,6 +411,8 @@ fn sample_flags(
         &mut acid,
         limits.get(LimitKey::AcidRiseMgKohG).act,
         horizon_days,
+        // An acid number repeats within about 0.05 mg KOH/g at these levels (from memory).
+        &|_| 0.05,
     );
     r.push(FlagKind::Acid, acid, &|g| {
         let now = c.samples.iter().rev().find_map(|s| s.acid_rise);

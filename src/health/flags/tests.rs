@@ -107,7 +107,7 @@ fn a_trend_past_watch_that_reaches_act_by_the_next_sample_raises_act() {
         gv(11, Watch, 250.0),
         gv(21, Watch, 400.0),
     ];
-    let by = act_on_trend(&mut pts, Some(500.0), 30.0);
+    let by = act_on_trend(&mut pts, Some(500.0), 30.0, &|_| 0.0);
     assert_eq!(by, Some(g(31, Steady).at));
     assert_eq!(pts[2].state, Act);
     assert!((pts[2].value.unwrap() - 550.0).abs() < 1e-9);
@@ -119,7 +119,7 @@ fn a_trend_past_watch_that_reaches_act_by_the_next_sample_raises_act() {
         gv(11, Watch, 250.0),
         gv(21, Watch, 400.0),
     ];
-    assert_eq!(act_on_trend(&mut pts, Some(500.0), 5.0), None);
+    assert_eq!(act_on_trend(&mut pts, Some(500.0), 5.0, &|_| 0.0), None);
     assert_eq!(pts[2].state, Watch);
     // A value that fell back on the way is no run, however steep the line.
     let mut pts = [
@@ -127,23 +127,23 @@ fn a_trend_past_watch_that_reaches_act_by_the_next_sample_raises_act() {
         gv(11, Watch, 420.0),
         gv(21, Watch, 400.0),
     ];
-    assert_eq!(act_on_trend(&mut pts, Some(500.0), 30.0), None);
+    assert_eq!(act_on_trend(&mut pts, Some(500.0), 30.0, &|_| 0.0), None);
     assert_eq!(pts[2].state, Watch);
     // Only two samples: no run yet.
     let mut pts = [gv(11, Watch, 250.0), gv(21, Watch, 400.0)];
-    assert_eq!(act_on_trend(&mut pts, Some(500.0), 30.0), None);
+    assert_eq!(act_on_trend(&mut pts, Some(500.0), 30.0, &|_| 0.0), None);
     // A drift below new runs the same way on its own side: −2, −5, −8 % with 10 % act.
     let mut pts = [
         gv(1, Steady, -2.0),
         gv(11, Watch, -5.0),
         gv(21, Watch, -8.0),
     ];
-    assert!(act_on_trend(&mut pts, Some(10.0), 30.0).is_some());
+    assert!(act_on_trend(&mut pts, Some(10.0), 30.0, &|_| 0.0).is_some());
     assert_eq!((pts[2].value, pts[2].limit), (Some(-11.0), Some(-10.0)));
     // A drift may pass through new on its way: +2, −5, −8 % lie on a least-squares line of
     // −0.5 % a day (Sxy = −100 over Sxx = 200, worked by hand), −13 % ten days on.
     let mut pts = [gv(1, Steady, 2.0), gv(11, Watch, -5.0), gv(21, Watch, -8.0)];
-    assert!(act_on_trend(&mut pts, Some(10.0), 30.0).is_some());
+    assert!(act_on_trend(&mut pts, Some(10.0), 30.0, &|_| 0.0).is_some());
     assert!((pts[2].value.unwrap() + 13.0).abs() < 1e-9);
     // Back towards new on the way is no run.
     let mut pts = [
@@ -151,7 +151,7 @@ fn a_trend_past_watch_that_reaches_act_by_the_next_sample_raises_act() {
         gv(11, Watch, -5.0),
         gv(21, Watch, -8.0),
     ];
-    assert_eq!(act_on_trend(&mut pts, Some(10.0), 30.0), None);
+    assert_eq!(act_on_trend(&mut pts, Some(10.0), 30.0, &|_| 0.0), None);
     // A later point is judged on the readings, not on an earlier point's projection; and
     // only the last point's date is returned.
     let mut pts = [
@@ -160,15 +160,28 @@ fn a_trend_past_watch_that_reaches_act_by_the_next_sample_raises_act() {
         gv(21, Watch, 400.0),
         gv(31, Watch, 300.0),
     ];
-    assert_eq!(act_on_trend(&mut pts, Some(500.0), 30.0), None);
+    assert_eq!(act_on_trend(&mut pts, Some(500.0), 30.0, &|_| 0.0), None);
     assert_eq!((pts[2].state, pts[3].state), (Act, Watch));
+    // The projection must clear the limit by its own standard error: the latest reading's
+    // scatter σ and the slope's, σ·√(1 + step²/Sxx) with Sxx = 10² + 0 + 10² = 200 and a
+    // 10-day step, 1.2247 σ (by hand). At σ = 40 ppm (a tenth of 400) that is 49.0, and
+    // 550 − 49.0 clears 500: act; at σ = 60 it is 73.5, and 476.5 does not: watch.
+    for (sigma, want) in [(40.0, Act), (60.0, Watch)] {
+        let mut pts = [
+            gv(1, Steady, 100.0),
+            gv(11, Watch, 250.0),
+            gv(21, Watch, 400.0),
+        ];
+        act_on_trend(&mut pts, Some(500.0), 30.0, &|_| sigma);
+        assert_eq!(pts[2].state, want, "σ {sigma}");
+    }
     // Without an act limit nothing is raised.
     let mut pts = [
         gv(1, Steady, 100.0),
         gv(11, Watch, 250.0),
         gv(21, Watch, 400.0),
     ];
-    assert_eq!(act_on_trend(&mut pts, None, 30.0), None);
+    assert_eq!(act_on_trend(&mut pts, None, 30.0, &|_| 0.0), None);
 }
 
 fn drifted(indicator: BaselineIndicator, run: usize, material: bool) -> DriftPoint {
