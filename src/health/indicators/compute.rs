@@ -313,6 +313,12 @@ fn heat_load(
     let (displacement, reference) = (flow.displacement, flow.reference);
     let admitted = |p: &CheckPoint| stage.admitted(p);
     let series_of = |ind: BaselineIndicator, points: &[CheckPoint]| stage.series_of(ind, points);
+    // No pump seals better than about this share of its displacement at working pressure
+    // (the best piston pumps' volumetric efficiency, about 98 %, from memory): where the rated
+    // flow standing for the displacement is a little under the true one, the flow baseline
+    // leaves no leakage at all, and the heat thin summer oil's leakage makes would go
+    // unpredicted.
+    const MIN_LEAK_SHARE: f64 = 0.02;
     // Heat rise at the baseline's pressure and oil (`HeatLoad`). Its model takes the pump's
     // leakage at the reference from the flow baseline (displacement less the corrected flow);
     // without a flow model, the heat load goes with the pressure alone.
@@ -320,7 +326,7 @@ fn heat_load(
         let leak_ref = match (displacement, reference) {
             (Some(d), Some(_)) => baseline
                 .get(BaselineIndicator::CorrectedFlow)
-                .map(|b| (d - b.value).max(0.0)),
+                .map(|b| (d - b.value).max(MIN_LEAK_SHARE * d)),
             _ => None,
         };
         let model = match (displacement, reference, leak_ref) {
