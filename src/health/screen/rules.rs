@@ -504,8 +504,9 @@ fn sample_idx(f: Field) -> Option<usize> {
 }
 
 /// Whether a reading `d` (on the logarithm) from its history's median, robust σ `s`, is far
-/// enough for the slip-shape rule: beyond `SHAPE_SIGMAS`, and for water at least
-/// `WATER_SHAPE_FACTOR` times. A next sample as far on the same side confirms a questioned one.
+/// enough for the slip-shape rule: beyond `SHAPE_SIGMAS`, and at least `WATER_SHAPE_FACTOR`
+/// times for water, `COUNT_SHAPE_FACTOR` for a particle count. A next sample as far on the same
+/// side confirms a questioned one.
 pub(super) fn shape_far(f: Field, d: f64, s: f64) -> bool {
     let factor = match f {
         Field::Water => WATER_SHAPE_FACTOR,
@@ -585,8 +586,8 @@ impl SampleScreen {
         self.recent_floored(f, FLOOR_ACID_LN, MIN_ACID_HISTORY)
     }
 
-    /// Median and robust σ of the same values for the slip-shape rule, the σ floored at
-    /// `FLOOR_ACID_SHAPE_LN` or `FLOOR_WATER_SHAPE_LN`, from `MIN_SHAPE_HISTORY` on.
+    /// Median and robust σ of the same values for the slip-shape rule, the σ floored at the
+    /// field's `shape_floor`, from `MIN_SHAPE_HISTORY` on.
     pub(super) fn recent_for_shape(&self, f: Field) -> Option<(f64, f64)> {
         self.recent_floored(f, shape_floor(f), MIN_SHAPE_HISTORY)
     }
