@@ -458,7 +458,7 @@ fn against_baseline(points: &mut [CheckPoint], baseline: &Baseline, restarts: &[
             .and_then(|(g, gb)| ratio(g, gb))
         {
             p.leak_ratio = Some(v);
-            lr.push(v);
+            lr.push(weighed_from_thick_oil(v, p.flow_scale));
             p.leak_ratio_median = confirmed_level(&lr);
         }
         if let (Some(c), Some(cb)) = (
@@ -478,6 +478,19 @@ fn against_baseline(points: &mut [CheckPoint], baseline: &Baseline, restarts: &[
             hd.push(v);
             p.heat_rise_drift_median = confirmed_level(&hd);
         }
+    }
+}
+
+/// A leak-conductance ratio as its flag weighs it. The conductance is a property of the pump,
+/// the same whatever the oil, but its estimate from a check in oil thicker than the
+/// reference's (k > 1, `flow_scale`) divides the leakage by a p/ν k times smaller and so
+/// carries the stopwatch's scatter k times over: its departure from the baseline is weighed by
+/// 1/k, as the drift detectors weigh the corrected flow (the standardised statistic of a chart
+/// with unequal variances, Montgomery). A check in thinner oil keeps its full weight.
+pub(super) fn weighed_from_thick_oil(ratio: f64, k: Option<f64>) -> f64 {
+    match k.filter(|k| *k > 1.0 && k.is_finite()) {
+        Some(k) => 1.0 + (ratio - 1.0) / k,
+        None => ratio,
     }
 }
 
@@ -575,5 +588,22 @@ fn sudden_losses(
                 p.sudden_loss_pct = Some(sudden_loss(first, second, watch_pct));
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::weighed_from_thick_oil;
+
+    #[test]
+    fn a_leak_ratio_from_thick_oil_is_weighed_by_its_scatter() {
+        // By hand: 2.5× the baseline from oil three times the reference's leakage scale is a
+        // departure of 1.5, weighed by 1/3: 1.5×. From thinner oil (k = 0.5) or with no scale
+        // it stands as read; below the baseline the same (0.7× at k = 2 is 0.85×).
+        let near = |a: f64, b: f64| (a - b).abs() < 1e-12;
+        assert!(near(weighed_from_thick_oil(2.5, Some(3.0)), 1.5));
+        assert!(near(weighed_from_thick_oil(2.5, Some(0.5)), 2.5));
+        assert!(near(weighed_from_thick_oil(2.5, None), 2.5));
+        assert!(near(weighed_from_thick_oil(0.7, Some(2.0)), 0.85));
     }
 }
