@@ -84,18 +84,16 @@ fn check_levels(r: &mut Raised, limits: &Limits, sys: UnitSystem) {
                 );
             }
             // At the reference conditions (the baseline's oil viscosity and pressure) where the
-            // flow can be corrected to them, as the lost flow itself is.
+            // flow can be corrected to them, as the lost flow itself is. The flow given is the
+            // one the flag's level stands for (the confirmed level of the last checks), not the
+            // last check's alone, so the two figures of the sentence agree.
             let corrected = base(BaselineIndicator::CorrectedFlow).is_some();
-            let now = if corrected {
-                c.checks.iter().rev().find_map(|p| p.corrected_flow)
-            } else {
-                c.checks.iter().rev().find_map(|p| p.effective_flow)
-            };
             let b = if corrected {
                 base(BaselineIndicator::CorrectedFlow)
             } else {
                 base(BaselineIndicator::EffectiveFlow)
             };
+            let now = b.zip(g.value).map(|(b, lost)| b * (1.0 - lost / 100.0));
             let from = match (now, b) {
                 (Some(n), Some(b)) => format!(" ({} against {})", flow(n, sys), flow(b, sys)),
                 _ => String::new(),

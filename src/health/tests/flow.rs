@@ -36,6 +36,28 @@ fn lost_flow_at_below_and_above_its_limits() {
 }
 
 #[test]
+fn a_lost_flow_flag_gives_the_flow_its_level_stands_for() {
+    // Three checks at 5.0 s (20 % lost: 1 − 4/5), then one back at 4.0 s: the median of the
+    // last 3 is still 20 %, and the sentence gives the flow that stands for, 0.8 × 37.70 =
+    // 30.16 L/min against the baseline's 37.70 (12π L/min, by hand), not the last check's.
+    let mut h = stroke_history(5.0);
+    h.checks.push(timed(8, 7, 4.0, 45.0, 20.0));
+    let r = eval(&h, &Limits::builtin(), week(7));
+    let f = r
+        .flags
+        .iter()
+        .find(|f| f.kind == FlagKind::LostFlow)
+        .expect("a lost-flow flag");
+    assert_eq!(f.state, State::Act);
+    assert!(
+        f.what
+            .contains("down 20 % on the baseline (30.2 L/min against 37.7 L/min)"),
+        "{}",
+        f.what
+    );
+}
+
+#[test]
 fn effective_flow_and_volumetric_efficiency_of_the_timed_stroke() {
     let r = eval(&stroke_history(4.0), &Limits::builtin(), week(6));
     // Q = V/t = 0.0008π m³ / 4 s = 0.0002π m³/s = 12π L/min = 37.699 L/min (by hand);
