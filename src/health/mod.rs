@@ -242,7 +242,10 @@ pub fn evaluate(
 
     // Readings that look like slips are kept out of everything below until confirmed.
     let suspects = screen::screen_history(h, fluid.as_ref(), units);
-    let questioned_water = screen::questioned_water(h, &suspects);
+    let questioned = flags::Questioned {
+        water: screen::questioned_water(h, &suspects),
+        strokes: screen::questioned_strokes(h, &suspects),
+    };
     let masked;
     let h: &UnitHistory = if suspects.iter().any(|s| s.confirmed.is_none()) {
         masked = screen::without_unconfirmed(h, &suspects);
@@ -253,7 +256,7 @@ pub fn evaluate(
 
     let mut computed = indicators::compute(h, era.as_ref(), fluid.as_ref(), limits);
     computed.calendar = calendar;
-    let mut flags = flags::raise(h, &computed, limits, units, &questioned_water);
+    let mut flags = flags::raise(h, &computed, limits, units, &questioned);
     let work = plan::plan(h, &computed, &flags, limits, at);
     flags.extend(flags::overdue(&work, limits, at, calendar));
     flags::mark_acknowledged(&mut flags, &h.acknowledgements);

@@ -12,16 +12,19 @@ use super::baseline::BaselineIndicator;
 use super::indicators::{CheckPoint, Computed, Dim, DriftPoint, Restart, SamplePoint};
 use super::limits::{Limit, LimitKey, Limits};
 use super::plan::WorkItem;
-use super::screen::QuestionedWater;
-use super::text::{flow, num, tdiff, temp, visc};
+use super::screen::{QuestionedStroke, QuestionedWater};
+use super::text::{flow, num, seconds, tdiff, temp, visc};
 use super::{Calendar, State};
 use crate::model::{Acknowledgement, EventKind, FilterState, OilLevel, UnitHistory};
 use crate::units::UnitSystem;
 
 mod grade;
+mod questioned;
 mod raise;
 
 use grade::*;
+pub use questioned::Questioned;
+use questioned::{stroke_points, water_points, WaterPoints};
 pub use raise::raise;
 #[cfg(test)]
 mod tests;

@@ -4,18 +4,19 @@
 use super::*;
 
 /// Raises the condition flags of one unit (all kinds but `overdue`, which comes from the plan).
-/// `questioned_water` holds the water contents the screen questioned (see `water_points`).
+/// `questioned` holds the readings the screen questioned that a flag still shows, at watch at
+/// most (see `water_points` and `stroke_points`).
 pub fn raise(
     h: &UnitHistory,
     c: &Computed,
     limits: &Limits,
     sys: UnitSystem,
-    questioned_water: &[QuestionedWater],
+    questioned: &Questioned,
 ) -> Vec<Flag> {
     let mut r = Raised { c, out: Vec::new() };
-    check_levels(&mut r, limits, sys);
+    check_levels(&mut r, limits, sys, &questioned.strokes);
     reservoir_temperature(&mut r, h, limits, sys);
-    sample_flags(&mut r, limits, sys, questioned_water);
+    sample_flags(&mut r, limits, sys, &questioned.water);
     filter_and_oil_level(&mut r, h);
     drift(&mut r, limits, sys);
     let mut out = r.out;
@@ -47,28 +48,40 @@ impl Raised<'_> {
 }
 
 /// Lost flow, leak conductance, case drain and heat rise: the checks against the era's baseline.
-fn check_levels(r: &mut Raised, limits: &Limits, sys: UnitSystem) {
+fn check_levels(r: &mut Raised, limits: &Limits, sys: UnitSystem, strokes: &[QuestionedStroke]) {
     let c = r.c;
     let pct = |v: Option<f64>| num(v.unwrap_or(0.0).abs(), 1);
     let base = |i: BaselineIndicator| c.baseline.get(i).map(|b| b.value);
 
     // Checks against the era baseline (median of the last 3).
+    // Lost flow at the reference conditions, or a sudden loss of the timed flow over two
+    // checks (a step such as a relief valve starting to pass oil, which heats the oil and so
+    // hides part of itself in the correction), whichever is larger.
+    let lost = graded_levels(
+        &c.checks,
+        limits,
+        LimitKey::LostFlowPct,
+        |p| p.lost_flow_pct.or(p.sudden_loss_pct),
+        |p| match (p.lost_flow_median_pct, p.sudden_loss_pct) {
+            (Some(a), Some(b)) => Some(a.max(b)),
+            (a, b) => a.or(b),
+        },
+    );
+    let (lost, held) = stroke_points(lost, c, strokes, limits);
     r.push(
         FlagKind::LostFlow,
-        // Lost flow at the reference conditions, or a sudden loss of the timed flow over two
-        // checks (a step such as a relief valve starting to pass oil, which heats the oil
-        // and so hides part of itself in the correction), whichever is larger.
-        graded_levels(
-            &c.checks,
-            limits,
-            LimitKey::LostFlowPct,
-            |p| p.lost_flow_pct.or(p.sudden_loss_pct),
-            |p| match (p.lost_flow_median_pct, p.sudden_loss_pct) {
-                (Some(a), Some(b)) => Some(a.max(b)),
-                (a, b) => a.or(b),
-            },
-        ),
+        lost,
         &|g| {
+            if let Some(q) = held.iter().find(|q| q.0 == g.at).map(|q| q.1) {
+                return format!(
+                    "The timed stroke of {} (the usual {}) would lose {} % of the baseline flow, questioned and \
+                     held at watch until the next check or a person confirms it: time the stroke again; if it \
+                     stands, check the relief valve for bypass first (a hot spot, a hissing valve), then the pump.",
+                    seconds(q.stroke_s),
+                    seconds(q.usual_s),
+                    pct(g.value)
+                );
+            }
             // Raised by a sudden loss of the timed flow: say so, with its own figure (the flows
             // of the baseline would contradict it).
             let at = c.checks.iter().rev().find(|p| p.at == g.at);
@@ -673,75 +686,4 @@ fn baselines_and_restarts(out: &mut [Flag], c: &Computed) {
             .find(|r| r.flag_kinds().contains(&f.kind))
             .cloned();
     }
-}
-
-/// The water contents graded for the flag: the accepted ones (`water`, trends applied), with
-/// each questioned one of the era's samples still unconfirmed put in its place, graded by its
-/// limits but never above watch. A reading that may be a typing slip raises no act until a
-/// resample or a person confirms it, yet a real ingress that happens to read like one is not
-/// hidden meanwhile; the questioned readings take no part in the trend. One that a next
-/// sample confirmed counts at that sample where it grades higher.
-fn water_points(
-    water: Vec<Graded>,
-    samples: &[SamplePoint],
-    questioned: &[QuestionedWater],
-    limits: &Limits,
-) -> WaterPoints {
-    let mut points = water;
-    let mut held = Vec::new();
-    let mut carried = Vec::new();
-    for q in questioned {
-        if !samples.iter().any(|s| s.sample_id == q.sample_id) {
-            continue; // another era's
-        }
-        let (state, limit) = grade(limits, LimitKey::WaterPpm, q.ppm);
-        match q.confirmed_at {
-            None => {
-                let Some(s) = samples.iter().find(|s| s.sample_id == q.sample_id) else {
-                    continue;
-                };
-                let (state, limit) = if state == State::Act {
-                    let l = limits.get(LimitKey::WaterPpm);
-                    (State::Watch, l.watch.or(l.act))
-                } else {
-                    (state, limit)
-                };
-                held.push(s.at);
-                points.push(Graded {
-                    at: s.at,
-                    state,
-                    value: Some(q.ppm),
-                    limit,
-                });
-            }
-            Some(at) => {
-                if let Some(p) = points.iter_mut().find(|p| p.at == at) {
-                    if state > p.state {
-                        carried.push((at, p.value.unwrap_or(0.0)));
-                        *p = Graded {
-                            at,
-                            state,
-                            value: Some(q.ppm),
-                            limit,
-                        };
-                    }
-                }
-            }
-        }
-    }
-    points.sort_by_key(|g| g.at);
-    WaterPoints {
-        points,
-        held,
-        carried,
-    }
-}
-
-/// The water contents graded for the flag (`water_points`).
-struct WaterPoints {
-    points: Vec<Graded>,
-    /// When the questioned, unconfirmed ones were taken.
-    held: Vec<DateTime<Utc>>,
-    /// The samples graded by a questioned reading they confirmed, with their own water, ppm.
-    carried: Vec<(DateTime<Utc>, f64)>,
 }

@@ -112,6 +112,12 @@ pub fn compute(
         baseline_needs: n_min,
         fit: flow.fit,
         restarts,
+        displacement: flow.displacement,
+        stroke_volume: unit
+            .stroke
+            .as_ref()
+            .and_then(|s| hyd::displaced_volume(s).ok())
+            .map(|v| v.si()),
         ..Computed::default()
     };
     c.hours_per_day = hours_per_day(h);

@@ -258,6 +258,32 @@ pub struct Computed {
     pub fit: Option<hyd::LeakageFit>,
     /// Maintenance in the era that restarted detectors and flags, in time order.
     pub restarts: Vec<Restart>,
+    /// The displacement the flows are corrected with, m³/s (`displacement_of`).
+    pub displacement: Option<f64>,
+    /// The oil volume of the timed stroke, m³.
+    pub stroke_volume: Option<f64>,
+}
+
+impl Computed {
+    /// The flow a stroke timed at `stroke_s` on the check `p` gives as the era's flows are
+    /// judged: at the reference conditions (D − (D − Q)·k, as the corrected flows) where the
+    /// baseline is a corrected flow, `None` if this check cannot be corrected (its oil
+    /// temperature or pressure missing or held); as timed where the era's flows are not
+    /// corrected at all; m³/s.
+    pub fn flow_at_reference(&self, p: &CheckPoint, stroke_s: f64) -> Option<f64> {
+        use super::baseline::BaselineIndicator;
+        let q = self.stroke_volume.filter(|_| stroke_s > 0.0)? / stroke_s;
+        if self
+            .baseline
+            .get(BaselineIndicator::CorrectedFlow)
+            .is_some()
+        {
+            let (d, k) = (self.displacement?, p.flow_scale?);
+            Some(d - (d - q) * k)
+        } else {
+            Some(q)
+        }
+    }
 }
 
 /// The mean oil viscosity and pressure of the baseline checks: corrected flows are the flows

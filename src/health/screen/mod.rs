@@ -618,6 +618,54 @@ pub fn questioned_water(h: &UnitHistory, suspects: &[SuspectReading]) -> Vec<Que
         .collect()
 }
 
+/// A timed stroke questioned and not yet confirmed, slower than the unit's usual: the lost-flow
+/// flag shows it at watch at most, at the flow it gives at the reference conditions (a relief
+/// valve starting to pass oil slows the stroke in one step, and the check it shows in should
+/// not read as steady while the next is awaited; a hot week's slower stroke, which the
+/// correction explains, shows nothing).
+#[derive(Clone, Debug, PartialEq)]
+pub struct QuestionedStroke {
+    pub check_id: Id,
+    /// The stroke time as read, s.
+    pub stroke_s: f64,
+    /// The median of the up to `WINDOW` accepted stroke times before it, s.
+    pub usual_s: f64,
+}
+
+/// The timed strokes of `h` questioned, not confirmed, and slower than the median of the
+/// accepted ones before them.
+pub fn questioned_strokes(h: &UnitHistory, suspects: &[SuspectReading]) -> Vec<QuestionedStroke> {
+    let held = |id: Id| {
+        suspects.iter().any(|s| {
+            s.confirmed.is_none()
+                && s.record == Record::Check
+                && s.field == Field::StrokeTime
+                && s.id == id
+        })
+    };
+    let mut out = Vec::new();
+    for (i, c) in h.checks.iter().enumerate() {
+        let Some(t) = c.stroke_time.map(|t| t.si()).filter(|_| held(c.id)) else {
+            continue;
+        };
+        let before: Vec<f64> = h.checks[..i]
+            .iter()
+            .rev()
+            .filter(|b| !held(b.id))
+            .filter_map(|b| b.stroke_time.map(|t| t.si()))
+            .take(WINDOW)
+            .collect();
+        if let Some(usual) = stats::median(&before).filter(|u| t > *u) {
+            out.push(QuestionedStroke {
+                check_id: c.id,
+                stroke_s: t,
+                usual_s: usual,
+            });
+        }
+    }
+    out
+}
+
 /// The history with every unconfirmed suspect field taken out (set to nothing), as the
 /// baselines, detectors and flags are to see it.
 pub fn without_unconfirmed(h: &UnitHistory, suspects: &[SuspectReading]) -> UnitHistory {
