@@ -210,6 +210,7 @@ fn flow_model(stage: &Stage, points: &mut [CheckPoint], rated: Option<Flow>) -> 
         (pts.len() >= n_min)
             .then(|| hyd::fit_leakage(&pts))
             .flatten()
+            .filter(|f| plausible_fit(f, rated.map(|r| r.si())))
     });
     let leak_margin = limits
         .get(LimitKey::LeakConductanceRatio)

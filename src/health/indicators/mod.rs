@@ -60,6 +60,24 @@ fn well_determined(f: &hyd::LeakageFit, margin: f64) -> bool {
     2.0 * f.conductance_se <= margin * f.conductance
 }
 
+/// How far a leakage fit's displacement may stand from the rated flow and still be believed,
+/// as a share of the rated flow: a pump's displacement and its motor's speed are within a few
+/// per cent of what the register's rated flow says (common practice, no published source).
+pub const DISPLACEMENT_BAND: f64 = 0.05;
+
+/// Whether a leakage fit's displacement is one the pump could have: within `DISPLACEMENT_BAND`
+/// of the rated flow where that is known. A fit over a few weeks takes in more than leakage
+/// (two people timing the stroke a little differently in the cold and the warm weeks tilt its
+/// line), and its displacement then stands well off the pump's; carried to oil far thicker or
+/// thinner than the baseline's, that error grows with the distance and reads as wear or as
+/// a gain. Such a fit is set aside and the rated flow stands for the displacement.
+pub fn plausible_fit(f: &hyd::LeakageFit, rated: Option<f64>) -> bool {
+    match rated.filter(|r| *r > 0.0) {
+        Some(r) => (f.displacement / r - 1.0).abs() <= DISPLACEMENT_BAND,
+        None => true,
+    }
+}
+
 /// The displacement the flow is corrected with (m³/s): the era's leakage fit where it is well
 /// determined, else the rated flow, else a looser fit. A loose fit's displacement is often
 /// well above the pump's, and carried to warmer oil it takes a pump's wear for the season's

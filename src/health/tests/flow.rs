@@ -304,6 +304,61 @@ fn a_loose_leakage_fit_does_not_override_the_rated_flow() {
 }
 
 #[test]
+fn a_leakage_fit_whose_displacement_the_pump_cannot_have_is_set_aside() {
+    // The pump (40 L/min rated) delivers Q = 40 − 0.04·p L/min (p in bar) at 45 °C. Twelve
+    // baseline checks alternate between 100 bar (36 L/min, timed true) and 50 bar (38 L/min,
+    // timed by someone who stops the watch 6 % early: read as 38/0.94 = 40.43 L/min). The
+    // line through those readings has a displacement of 36 + 100·(40.43 − 36)/50 = 44.85 L/min,
+    // 12 % over the rated flow (`DISPLACEMENT_BAND` 5 %): set aside. Three checks at 30 bar
+    // (38.8 L/min, timed true) are then corrected with the rated 40 to the reference of
+    // 75 bar (k = 75/30 = 2.5): 40 − (40 − 38.8)·2.5 = 37.0 L/min, against the baseline's
+    // median of 37.0 (100 bar: 40 − 4·0.75) and 40.64 (50 bar: 40 + 0.43·1.5), 38.82: lost
+    // 4.7 %, steady. The tilted line would have read 44.85 − 6.05·2.5 = 29.7 L/min there,
+    // 22 % lost: a healthy pump at act. All worked by hand.
+    use crate::health::indicators::{plausible_fit, DISPLACEMENT_BAND};
+    let fit = |d: f64| crate::physics::hydraulics::LeakageFit {
+        displacement: d,
+        displacement_se: 0.1,
+        conductance: 1.0,
+        conductance_se: 0.01,
+        residual_sd: 0.1,
+        n: 12,
+    };
+    assert!(plausible_fit(&fit(41.9), Some(40.0)));
+    assert!(plausible_fit(&fit(38.1), Some(40.0)));
+    assert!(!plausible_fit(&fit(44.85), Some(40.0)));
+    assert!(!plausible_fit(
+        &fit(40.0 * (1.0 - DISPLACEMENT_BAND) - 0.01),
+        Some(40.0)
+    ));
+    assert!(plausible_fit(&fit(44.85), None));
+
+    let vol_l = press_volume_m3() * 1000.0;
+    let at = |id: i64, w: i64, q_lpm: f64, bias: f64, bar: f64| {
+        let mut c = timed(id, w, vol_l / q_lpm * 60.0 * bias, 45.0, 20.0);
+        c.pressure = Some(crate::units::Pressure::from_bar(bar));
+        c
+    };
+    let mut h = press();
+    for w in 0..12 {
+        h.checks.push(match w % 2 {
+            0 => at(w + 1, w, 36.0, 1.0, 100.0),
+            _ => at(w + 1, w, 38.0, 0.94, 50.0),
+        });
+    }
+    for w in 12..15 {
+        h.checks.push(at(w + 1, w, 38.8, 1.0, 30.0));
+    }
+    let r = eval(&h, &Limits::builtin(), week(14));
+    assert!(r.suspects.is_empty(), "{:?}", r.suspects);
+    let lost = r.checks.last().and_then(|p| p.lost_flow_pct).unwrap();
+    let want = 100.0 * (1.0 - 37.0 / ((37.0 + 40.0 + (40.0 - 38.0 / 0.94) * -1.5) / 2.0));
+    assert!((lost - want).abs() < 0.05, "{lost} against {want}");
+    assert_eq!(state_of(&r, FlagKind::LostFlow), State::Steady);
+    assert_eq!(state_of(&r, FlagKind::LeakConductance), State::Steady);
+}
+
+#[test]
 fn a_questioned_slower_stroke_shows_at_watch_until_the_next_check_confirms_it() {
     // Eight checks at 4.0 s, then 5.5 s at the same oil and pressure: ln(5.5/4) = 0.32 beyond
     // Hampel's 5 floored σ (0.2), so it is questioned and held. At the baseline's own oil it
