@@ -16,7 +16,7 @@ use sumpbook::physics::hydraulics::{
     piston_speed,
 };
 use sumpbook::physics::oil_life::equivalent_hours;
-use sumpbook::physics::stats::{linear_trend, median_of_last, Cusum, Ewma, Side};
+use sumpbook::physics::stats::{linear_trend, median_of_last, step_ahead_se, Cusum, Ewma, Side};
 use sumpbook::physics::viscosity::{
     d2270_l_h, iso_vg_band, iso_vg_of, viscosity_index, ViProcedure, Walther, T100, T40,
 };
@@ -487,6 +487,21 @@ fn floats(v: &serde_json::Value) -> Vec<f64> {
 
 fn close(a: f64, b: f64) -> bool {
     (a - b).abs() <= 1e-9 * a.abs().max(b.abs()).max(1.0)
+}
+
+#[test]
+fn a_step_ahead_carries_the_standard_error_numpy_gives() {
+    // numpy: σ·|c|, c the step-ahead value's weights on the readings (the slope's row of the
+    // design matrix's pseudo-inverse), tests/reference/make_stats_cases.py.
+    for case in fixture()["ahead"].as_array().unwrap() {
+        let xs = floats(&case["x"]);
+        let se = step_ahead_se(
+            &xs,
+            case["step"].as_f64().unwrap(),
+            case["sigma"].as_f64().unwrap(),
+        );
+        assert!(close(se, case["se"].as_f64().unwrap()), "{xs:?}: {se}");
+    }
 }
 
 #[test]

@@ -183,6 +183,26 @@ pub fn line_fit(points: &[(f64, f64)]) -> Result<LineFit, PhysicsError> {
     })
 }
 
+/// The standard error of a value carried `step` ahead from the latest of readings taken at
+/// `xs` along their least-squares slope, y_n + step · b, every reading with the scatter
+/// `sigma`: σ · √(1 + step²/Sxx + 2 · step · (x_n − x̄)/Sxx). The last term is the latest
+/// reading's covariance with the slope, σ² (x_n − x̄)/Sxx (it pulls the slope its own way):
+/// left out, three evenly spaced readings carried one spacing ahead would seem to carry
+/// 1.22 σ rather than 1.58 σ. The variance of a linear combination of the readings (ordinary
+/// least squares, any regression text). Without spread in x, the latest reading's σ alone.
+pub fn step_ahead_se(xs: &[f64], step: f64, sigma: f64) -> f64 {
+    let (Some(&last), n) = (xs.last(), xs.len() as f64) else {
+        return sigma;
+    };
+    let mean = xs.iter().sum::<f64>() / n;
+    let sxx: f64 = xs.iter().map(|x| (x - mean).powi(2)).sum();
+    if sxx > 0.0 {
+        sigma * (1.0 + (step * step + 2.0 * step * (last - mean)) / sxx).sqrt()
+    } else {
+        sigma
+    }
+}
+
 const SECONDS_PER_WEEK: f64 = 7.0 * 86_400.0;
 
 /// A trend over dated values, x in weeks since the first point.

@@ -8,6 +8,10 @@ on fixed series, for sumpbook's physics::stats to be checked against.
   starts the EWMA at the baseline mean; limits mu0 +/- L*sigma*sqrt(lambda/(2-lambda)*(1-(1-lambda)^(2i)))
   with numpy (Montgomery, Introduction to Statistical Quality Control, EWMA chart).
 - median of the last n: numpy.median.
+- the standard error of a step ahead from the latest reading, y_n + step * slope, every reading
+  with the same scatter sigma: sigma * |c| with c = e_n + step * (the slope's row of numpy's
+  pseudo-inverse of the design matrix [1, x]), the variance of a linear combination of the
+  readings (the covariance of y_n with the slope included).
 
 Run from the repository root:  python3 tests/reference/make_stats_cases.py
 Needs:  pip install numpy scipy pandas
@@ -74,6 +78,23 @@ def ewma_case(c):
     return dict(c, z=z.tolist(), lower=(mu - half).tolist(), upper=(mu + half).tolist())
 
 
+AHEAD_SERIES = [
+    {"x": [0.0, 28.0, 56.0], "step": 28.0, "sigma": 1.0},
+    {"x": [0.0, 10.0, 20.0], "step": 10.0, "sigma": 40.0},
+    {"x": [0.0, 21.0, 63.0], "step": 30.0, "sigma": 0.1},
+    {"x": [3.0, 5.0, 6.0, 11.0], "step": 2.5, "sigma": 2.0},
+]
+
+
+def ahead_case(c):
+    x = np.asarray(c["x"], float)
+    design = np.column_stack([np.ones_like(x), x])
+    slope_row = np.linalg.pinv(design)[1]
+    comb = c["step"] * slope_row
+    comb[-1] += 1.0
+    return dict(c, se=float(c["sigma"] * np.linalg.norm(comb)))
+
+
 def main() -> None:
     doc = {
         "source": f"numpy {np.__version__}, scipy {scipy.__version__}, pandas {pd.__version__}; "
@@ -81,6 +102,7 @@ def main() -> None:
         "trend": [trend_case(c) for c in TREND_SERIES],
         "ewma": [ewma_case(c) for c in EWMA_SERIES],
         "median": [dict(c, median=float(np.median(c["x"][-c["n"]:]))) for c in MEDIAN_SERIES],
+        "ahead": [ahead_case(c) for c in AHEAD_SERIES],
     }
     OUT.write_text(json.dumps(doc, indent=1) + "\n", encoding="utf-8")
     print(f"wrote {OUT}")

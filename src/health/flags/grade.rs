@@ -213,17 +213,11 @@ pub(super) fn act_on_trend(
         let spacing = days(p.at) / (TREND_SAMPLES - 1) as f64;
         let step = horizon_days.min(spacing).max(0.0);
         let ahead = away[away.len() - 1] + fit.slope * step;
-        // The projection's standard error: the latest reading's scatter and the slope's over
-        // the run, step·σ/√Sxx (ordinary least squares).
+        // The projection's standard error: the latest reading's scatter, the slope's over the
+        // run, and their covariance (`physics::stats::step_ahead_se`).
         let sigma = scatter(away[away.len() - 1].abs());
         let t: Vec<f64> = line.iter().map(|q| q.0).collect();
-        let mean_t = t.iter().sum::<f64>() / t.len() as f64;
-        let sxx: f64 = t.iter().map(|x| (x - mean_t).powi(2)).sum();
-        let se = if sxx > 0.0 {
-            sigma * (1.0 + step * step / sxx).sqrt()
-        } else {
-            sigma
-        };
+        let se = crate::physics::stats::step_ahead_se(&t, step, sigma);
         if ahead - se >= act {
             points[i].state = State::Act;
             points[i].value = Some(ahead.copysign(side));

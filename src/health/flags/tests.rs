@@ -163,10 +163,11 @@ fn a_trend_past_watch_that_reaches_act_by_the_next_sample_raises_act() {
     assert_eq!(act_on_trend(&mut pts, Some(500.0), 30.0, &|_| 0.0), None);
     assert_eq!((pts[2].state, pts[3].state), (Act, Watch));
     // The projection must clear the limit by its own standard error: the latest reading's
-    // scatter σ and the slope's, σ·√(1 + step²/Sxx) with Sxx = 10² + 0 + 10² = 200 and a
-    // 10-day step, 1.2247 σ (by hand). At σ = 40 ppm (a tenth of 400) that is 49.0, and
-    // 550 − 49.0 clears 500: act; at σ = 60 it is 73.5, and 476.5 does not: watch.
-    for (sigma, want) in [(40.0, Act), (60.0, Watch)] {
+    // scatter σ, the slope's and their covariance, σ·√(1 + (step² + 2·step·(x_n − x̄))/Sxx)
+    // with Sxx = 10² + 0 + 10² = 200, x_n − x̄ = 10 and a 10-day step, √2.5 σ = 1.5811 σ (by
+    // hand; numpy's in tests/reference/stats_cases.json, "ahead"). At σ = 30 ppm that is
+    // 47.4, and 550 − 47.4 clears 500: act; at σ = 40 it is 63.2, and 486.8 does not: watch.
+    for (sigma, want) in [(30.0, Act), (40.0, Watch)] {
         let mut pts = [
             gv(1, Steady, 100.0),
             gv(11, Watch, 250.0),

@@ -191,20 +191,27 @@ fn with_water(ppm: &[f64]) -> UnitHistory {
 #[test]
 fn water_rising_on_three_samples_acts_before_it_reaches_the_act_limit() {
     let l = Limits::builtin();
-    // Samples every 13 weeks (the default sample interval): 100, 250, 400 ppm. The last is
-    // at watch (> 200, ≤ 500); at 150 ppm a quarter it is at 550 ppm by the next sample due,
-    // past the act limit of 500 ppm: act, with the projection as the flag's figure.
+    // Samples every 13 weeks (the default sample interval): 100, 270, 440 ppm. The last is
+    // at watch (> 200, ≤ 500); at 170 ppm a quarter it is at 610 ppm by the next sample due,
+    // past the act limit of 500 ppm by more than its standard error (a tenth of 440 as the
+    // lab's scatter, × √2.5 for three evenly spaced samples carried one spacing ahead: 69.6,
+    // by hand): act, with the projection as the flag's figure.
     let run = |ppm: [f64; 3]| eval(&with_water(&ppm), &l, week(28));
-    let r = run([100.0, 250.0, 400.0]);
+    let r = run([100.0, 270.0, 440.0]);
     let f = r.flags.iter().find(|f| f.kind == FlagKind::Water).unwrap();
     assert_eq!(f.state, State::Act);
     let fig = f.figure.clone().unwrap();
-    assert!((fig.value - 550.0).abs() < 1e-6, "{}", fig.value);
+    assert!((fig.value - 610.0).abs() < 1e-6, "{}", fig.value);
     assert_eq!(fig.limit, Some(500.0));
-    assert!(f.what.contains("400 ppm and rising"), "{}", f.what);
-    assert!(f.what.contains("550 ppm by"), "{}", f.what);
-    // Slower (350 by the next sample) or not a run: watch, at the reading itself.
-    for ppm in [[250.0, 300.0, 350.0], [100.0, 420.0, 400.0]] {
+    assert!(f.what.contains("440 ppm and rising"), "{}", f.what);
+    assert!(f.what.contains("610 ppm by"), "{}", f.what);
+    // Slower (550 by the next sample, 63.2 of error: 486.8), slower still (350 by the next
+    // sample) or not a run: watch, at the reading itself.
+    for ppm in [
+        [100.0, 250.0, 400.0],
+        [250.0, 300.0, 350.0],
+        [100.0, 420.0, 400.0],
+    ] {
         let r = run(ppm);
         assert_eq!(state_of(&r, FlagKind::Water), State::Watch, "{ppm:?}");
     }
