@@ -109,7 +109,7 @@ pub(super) fn stroke_points<'a>(
             continue;
         }
         let Some(lost) = base
-            .zip(c.flow_at_reference(p, q.stroke_s))
+            .zip(c.flow_at_reference(p, q.stroke_s, (q.oil_temp, q.pressure)))
             .map(|(b, f)| (1.0 - f / b) * 100.0)
         else {
             continue;

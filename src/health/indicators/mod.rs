@@ -285,10 +285,16 @@ pub struct Computed {
 impl Computed {
     /// The flow a stroke timed at `stroke_s` on the check `p` gives as the era's flows are
     /// judged: at the reference conditions (D − (D − Q)·k, as the corrected flows) where the
-    /// baseline is a corrected flow, `None` if this check cannot be corrected (its oil
-    /// temperature or pressure missing or held); as timed where the era's flows are not
+    /// baseline is a corrected flow — k from the check's oil and pressure, or, where the
+    /// screen held those, from `read`, the oil temperature (K) and pressure (Pa) as read —
+    /// `None` if this check cannot be corrected; as timed where the era's flows are not
     /// corrected at all; m³/s.
-    pub fn flow_at_reference(&self, p: &CheckPoint, stroke_s: f64) -> Option<f64> {
+    pub fn flow_at_reference(
+        &self,
+        p: &CheckPoint,
+        stroke_s: f64,
+        read: (Option<f64>, Option<f64>),
+    ) -> Option<f64> {
         use super::baseline::BaselineIndicator;
         let q = self.stroke_volume.filter(|_| stroke_s > 0.0)? / stroke_s;
         if self
@@ -296,11 +302,24 @@ impl Computed {
             .get(BaselineIndicator::CorrectedFlow)
             .is_some()
         {
-            let (d, k) = (self.displacement?, p.flow_scale?);
+            let k = p.flow_scale.or_else(|| self.scale_at(read.0?, read.1?))?;
+            let d = self.displacement?;
             Some(d - (d - q) * k)
         } else {
             Some(q)
         }
+    }
+
+    /// The leakage scale k = (ν/ν_ref)·(p_ref/p) of an oil at `oil_temp_k` and a pressure
+    /// `pressure_pa`, as each check's `flow_scale` (the fluid's viscosity line).
+    fn scale_at(&self, oil_temp_k: f64, pressure_pa: f64) -> Option<f64> {
+        let f = self.fluid.as_ref()?;
+        let w =
+            crate::physics::viscosity::Walther::from_kv40_kv100(f.kv40_new?, f.kv100_new?).ok()?;
+        let nu = w.at(crate::units::Temperature(oil_temp_k)).si();
+        let r = self.reference?;
+        (nu.is_finite() && nu > 0.0 && pressure_pa > 0.0)
+            .then(|| nu / r.viscosity * r.pressure / pressure_pa)
     }
 }
 

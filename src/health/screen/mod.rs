@@ -264,6 +264,17 @@ impl Pending {
         let close = (x - self.value).abs() <= SIGMAS * self.sigma.max(floor);
         again && side == self.side && (self.side == 0.0 || close)
     }
+
+    /// Whether the next check's reading `x`, not questioned itself, still leans the same way:
+    /// beyond `RUN_SIGMAS` of the history on this one's side and within `SIGMAS` of it. Two
+    /// readings in a row beyond two σ on one side are a run (the Western Electric zone rule
+    /// the screen already takes a run's second reading by): a relief valve that starts to pass
+    /// oil slows the stroke a lot one week and a little less the next, on a colder oil.
+    fn leaned_on_by(&self, x: f64, hist: Option<(f64, f64)>, floor: f64) -> bool {
+        let Some((m, s)) = hist else { return false };
+        let close = (x - self.value).abs() <= SIGMAS * self.sigma.max(floor);
+        !self.shape && self.side != 0.0 && (x - m) * self.side > RUN_SIGMAS * s && close
+    }
 }
 
 /// A person's confirmation of a check, where the record carries one.
@@ -379,7 +390,8 @@ fn screen_checks(
             };
             let again = found.iter().any(|s| s.field == w.field);
             let hist = recent(w.field, &st.accepted[idx(w.field)]);
-            if !w.confirmed_by(x, again, hist, floor(w.field)) {
+            let leaned = !again && w.leaned_on_by(x, hist, floor(w.field));
+            if !leaned && !w.confirmed_by(x, again, hist, floor(w.field)) {
                 return false;
             }
             // A reading that itself looks like a slipped decimal point confirms nothing on
@@ -630,6 +642,11 @@ pub struct QuestionedStroke {
     pub stroke_s: f64,
     /// The median of the up to `WINDOW` accepted stroke times before it, s.
     pub usual_s: f64,
+    /// The check's oil temperature (K) and pressure (Pa) as read, held or not: a relief valve
+    /// that starts to pass oil heats the oil as it slows the stroke, and the screen may hold
+    /// both readings of that check; the stroke is still judged at the oil it was timed in.
+    pub oil_temp: Option<f64>,
+    pub pressure: Option<f64>,
 }
 
 /// The timed strokes of `h` questioned, not confirmed, and slower than the median of the
@@ -660,6 +677,8 @@ pub fn questioned_strokes(h: &UnitHistory, suspects: &[SuspectReading]) -> Vec<Q
                 check_id: c.id,
                 stroke_s: t,
                 usual_s: usual,
+                oil_temp: c.reservoir_temp.map(|v| v.si()),
+                pressure: c.pressure.map(|v| v.si()).filter(|v| *v > 0.0),
             });
         }
     }

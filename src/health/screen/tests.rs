@@ -87,6 +87,35 @@ fn a_step_is_confirmed_by_the_next_check_and_the_new_level_is_then_accepted() {
 }
 
 #[test]
+fn a_questioned_reading_is_confirmed_by_a_next_one_still_leaning_its_way() {
+    // 4.0 s with its spread floored at 0.04 in ln (Hampel's limit 0.2, run limit 0.08).
+    // 5.0 s is ln 1.25 = 0.223 above: questioned. A next 4.5 s, ln 1.125 = 0.118 above the
+    // history, is not questioned itself, but it is beyond 2σ on the same side and within 5σ
+    // of the held reading (ln 5.0/4.5 = 0.105): two readings in a row beyond 2σ, a run, and
+    // the held one is confirmed (the Western Electric zone rule; by hand).
+    let mut h = steady_weeks();
+    let with = |h: &mut UnitHistory, times: &[f64]| {
+        h.checks.truncate(8);
+        for (i, t) in times.iter().enumerate() {
+            let mut c = timed(9 + i as Id, 8 + i as i64, *t, 45.0, 20.0);
+            c.pressure = Some(Pressure::from_bar(90.0));
+            h.checks.push(c);
+        }
+        screen_history(h, None, UnitSystem::Metric)
+    };
+    let s = with(&mut h, &[5.0, 4.5]);
+    assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, true)]);
+    assert!(fields(&s, 10).is_empty(), "{s:?}");
+    // 4.3 s is ln 1.075 = 0.072 above: within 2σ, no run, and the 5.0 s stays held.
+    let s = with(&mut h, &[5.0, 4.3]);
+    assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, false)]);
+    // A slipped decimal point (40 s for 4.0) is not confirmed by a slow 4.5 s: 4.5 lies far
+    // more than 5σ from 40 (ln 40/4.5 = 2.18).
+    let s = with(&mut h, &[40.0, 4.5]);
+    assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, false)]);
+}
+
+#[test]
 fn the_second_of_a_run_on_one_side_is_not_a_slip() {
     // The stroke history: 4.0 s with its spread floored at 0.04 in ln (Hampel's limit
     // 5 · 0.04 = 0.2, run limit 2 · 0.04 = 0.08). 4.4 s is ln 1.1 = 0.095 above: accepted,
