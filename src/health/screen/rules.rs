@@ -216,8 +216,12 @@ impl CheckScreen {
                     continue;
                 }
             }
-            // The second of a run on one side (`RUN_SIGMAS`), short of a gross slip.
-            if self.leaning[i] == Some(side) && (x - m).abs() <= RUN_GROSS * SIGMAS * s {
+            // The second of a run on one side (`RUN_SIGMAS`), short of a gross slip, and no
+            // leap from the run's first reading (`run_step`).
+            if self.leaning[i] == Some(side)
+                && (x - m).abs() <= RUN_GROSS * SIGMAS * s
+                && run_step(f, x, &self.accepted[i])
+            {
                 continue;
             }
             history_hit[i] = true;
@@ -334,6 +338,24 @@ impl CheckScreen {
             self.accepted[i].push(x);
         }
     }
+}
+
+/// Whether `x` follows on from the last accepted reading as the recent readings follow on from
+/// each other: its step from the last lies within `SIGMAS` robust σ of their usual step (the
+/// median and 1.4826 · MAD of the last `WINDOW` steps, over √2 for one reading's scatter,
+/// floored). A season moves a field steadily — an oil warming with the spring rises a few
+/// kelvin a week, so the readings' own spread about their median is wide and a slip that
+/// lands inside it still leaps away from the week before (84.8 °C for 48.8 after 47.0). The
+/// differences take the steady movement out (a robust noise estimate from first differences,
+/// common practice, no published source).
+pub(super) fn run_step(f: Field, x: f64, accepted: &[f64]) -> bool {
+    let last = &accepted[accepted.len().saturating_sub(WINDOW + 1)..];
+    let steps: Vec<f64> = last.windows(2).map(|w| w[1] - w[0]).collect();
+    let (Some(&prev), Some((m, s))) = (last.last(), stats::median_and_mad_sigma(&steps)) else {
+        return true;
+    };
+    let sigma = (s / std::f64::consts::SQRT_2).max(floor(f));
+    (x - prev - m).abs() <= SIGMAS * sigma
 }
 
 pub(super) fn capital(s: &str) -> String {

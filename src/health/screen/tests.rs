@@ -142,6 +142,27 @@ fn the_second_of_a_run_on_one_side_is_not_a_slip() {
 }
 
 #[test]
+fn a_slip_inside_a_warming_run_is_still_questioned() {
+    // The oil warms with the spring: 30, 31.8, 31.6, 29.8, 35.5, 39.2, 43.7, 43.2 °C, then
+    // 47.0 (beyond 2σ of those: median 33.65, σ 1.4826 · 3.75 = 5.56; a run starts), then
+    // 84.8 typed for 48.8. Against the last eight (median 37.35, σ 1.4826 · 5.8 = 8.60) it is
+    // beyond Hampel's 5σ (43.0) yet within 1.5 times that, and it is the second on the warm
+    // side; but the readings step by a median 2.75 K with σ 1.4826 · 2.35/√2 = 2.46 K
+    // (floored 2.5 K), and 84.8 leaps 37.8 K from 47.0: no run, questioned (by hand).
+    let mut h = press();
+    let oil = [30.0, 31.8, 31.6, 29.8, 35.5, 39.2, 43.7, 43.2, 47.0, 84.8];
+    for (w, t) in oil.iter().enumerate() {
+        h.checks.push(timed(w as Id + 1, w as i64, 4.0, *t, 12.0));
+    }
+    let s = screen_history(&h, None, UnitSystem::Metric);
+    assert_eq!(fields(&s, 10), vec![(Field::ReservoirTemp, false)], "{s:?}");
+    assert!(fields(&s, 9).is_empty(), "{s:?}");
+    // Typed right, 48.8 is within the history: nothing questioned.
+    h.checks[9].reservoir_temp = Some(Temperature::from_c(48.8));
+    assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
+}
+
+#[test]
 fn the_physical_frame_is_checked_from_the_first_reading() {
     let mut h = press();
     // 1000 bar on a unit relieved at 100 bar; ambient 94 °C beside oil at 26 °C.
