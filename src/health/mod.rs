@@ -245,6 +245,7 @@ pub fn evaluate(
     let questioned = flags::Questioned {
         water: screen::questioned_water(h, &suspects),
         strokes: screen::questioned_strokes(h, &suspects),
+        temps: screen::questioned_temps(h, &suspects),
     };
     let masked;
     let h: &UnitHistory = if suspects.iter().any(|s| s.confirmed.is_none()) {

@@ -12,7 +12,7 @@ use super::baseline::BaselineIndicator;
 use super::indicators::{CheckPoint, Computed, Dim, DriftPoint, Restart, SamplePoint};
 use super::limits::{Limit, LimitKey, Limits};
 use super::plan::WorkItem;
-use super::screen::{QuestionedStroke, QuestionedWater};
+use super::screen::{QuestionedStroke, QuestionedTemp, QuestionedWater};
 use super::text::{flow, num, seconds, tdiff, temp, visc};
 use super::{Calendar, State};
 use crate::model::{Acknowledgement, EventKind, FilterState, OilLevel, UnitHistory};

@@ -1,6 +1,6 @@
 //! The questioned readings a flag still shows, at watch at most, until a next reading or a
-//! person confirms them: a water content that reads like a typing slip, and a slower timed
-//! stroke the screen holds as far from the usual. Grading only; what is questioned is the
+//! person confirms them: a water content that reads like a typing slip, a slower timed stroke
+//! and a hotter oil the screen holds as far from the usual. Grading only; what is questioned is the
 //! screen's to say.
 
 use super::*;
@@ -10,6 +10,7 @@ use super::*;
 pub struct Questioned {
     pub water: Vec<QuestionedWater>,
     pub strokes: Vec<QuestionedStroke>,
+    pub temps: Vec<QuestionedTemp>,
 }
 
 /// The water contents graded for the flag: the accepted ones (`water`, trends applied), with

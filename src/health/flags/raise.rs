@@ -15,7 +15,7 @@ pub fn raise(
 ) -> Vec<Flag> {
     let mut r = Raised { c, out: Vec::new() };
     check_levels(&mut r, limits, sys, &questioned.strokes);
-    reservoir_temperature(&mut r, h, limits, sys);
+    reservoir_temperature(&mut r, h, limits, sys, &questioned.temps);
     sample_flags(&mut r, limits, sys, &questioned.water);
     filter_and_oil_level(&mut r, h);
     drift(&mut r, limits, sys);
@@ -190,16 +190,48 @@ fn check_levels(r: &mut Raised, limits: &Limits, sys: UnitSystem, strokes: &[Que
 }
 
 /// The reservoir temperature at every check, against absolute limits.
-fn reservoir_temperature(r: &mut Raised, h: &UnitHistory, limits: &Limits, sys: UnitSystem) {
+fn reservoir_temperature(
+    r: &mut Raised,
+    h: &UnitHistory,
+    limits: &Limits,
+    sys: UnitSystem,
+    questioned: &[QuestionedTemp],
+) {
     // Reservoir temperature: every check, against absolute limits. A single reading at act
-    // shows watch until the next check confirms it; above the ceiling it is act at once.
+    // shows watch until the next check confirms it; above the ceiling it is act at once. A
+    // reading the screen holds (`h` has it taken out) is still shown, graded by the same
+    // limits but never above watch, until the next check or a person confirms it: an oil that
+    // may be far hotter than usual is worth a second look before anyone works on the circuit,
+    // and a slip acts on nothing. It confirms no reading after it.
     let ceiling = limits.get(LimitKey::ReservoirTempCeilingC);
     let mut prev_act = false;
+    let mut held = Vec::new();
     let temps: Vec<Graded> = h
         .checks
         .iter()
         .filter_map(|ch| {
-            let t = ch.reservoir_temp?.c();
+            let Some(t) = ch.reservoir_temp.map(|t| t.c()) else {
+                let q = questioned.iter().find(|q| q.check_id == ch.id)?;
+                let t = crate::units::Temperature(q.temp_k).c();
+                prev_act = false;
+                let (state, limit) = grade(limits, LimitKey::ReservoirTempC, t);
+                let ceiling_hit = ceiling.grade(t) == Some(true);
+                let (state, limit) = if state == State::Act || ceiling_hit {
+                    (
+                        State::Watch,
+                        limits.get(LimitKey::ReservoirTempC).watch.or(limit),
+                    )
+                } else {
+                    (state, limit)
+                };
+                held.push(ch.taken_at);
+                return Some(Graded {
+                    at: ch.taken_at,
+                    state,
+                    value: Some(t),
+                    limit,
+                });
+            };
             let (mut state, mut limit) = grade(limits, LimitKey::ReservoirTempC, t);
             let at_act = state == State::Act;
             if at_act && !prev_act {
@@ -222,6 +254,16 @@ fn reservoir_temperature(r: &mut Raised, h: &UnitHistory, limits: &Limits, sys: 
     r.push(FlagKind::ReservoirTemp, temps, &|g| {
         let v = g.value.unwrap_or(0.0) + crate::units::KELVIN_AT_0C;
         let l = g.limit.unwrap_or(0.0) + crate::units::KELVIN_AT_0C;
+        if held.contains(&g.at) {
+            return format!(
+                "Reservoir oil read at {} (limit {}), far from this unit's usual, questioned and held at watch \
+                 until the next check or a person confirms it: read the oil temperature again; if it stands, \
+                 check the cooler and its fan or water, the oil level and the relief setting, and let the oil \
+                 cool before work on the circuit.",
+                temp(v, sys),
+                temp(l, sys)
+            );
+        }
         format!(
             "Reservoir oil at {} (limit {}): check the cooler and its fan or water, the oil level and the relief \
              setting, and let the oil cool before work on the circuit.",

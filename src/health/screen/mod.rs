@@ -685,6 +685,33 @@ pub fn questioned_strokes(h: &UnitHistory, suspects: &[SuspectReading]) -> Vec<Q
     out
 }
 
+/// One questioned oil temperature not yet confirmed, as read (`questioned_temps`).
+#[derive(Clone, Debug, PartialEq)]
+pub struct QuestionedTemp {
+    pub check_id: Id,
+    /// The reservoir temperature as read, K.
+    pub temp_k: f64,
+}
+
+/// The reservoir temperatures of `h` questioned and not confirmed: hot oil burns and cooks,
+/// and one that may be a slip is still shown (at watch at most) until the next check or a
+/// person says.
+pub fn questioned_temps(h: &UnitHistory, suspects: &[SuspectReading]) -> Vec<QuestionedTemp> {
+    suspects
+        .iter()
+        .filter(|s| {
+            s.confirmed.is_none() && s.record == Record::Check && s.field == Field::ReservoirTemp
+        })
+        .filter_map(|s| {
+            let c = h.checks.iter().find(|c| c.id == s.id)?;
+            Some(QuestionedTemp {
+                check_id: c.id,
+                temp_k: c.reservoir_temp?.si(),
+            })
+        })
+        .collect()
+}
+
 /// The history with every unconfirmed suspect field taken out (set to nothing), as the
 /// baselines, detectors and flags are to see it.
 pub fn without_unconfirmed(h: &UnitHistory, suspects: &[SuspectReading]) -> UnitHistory {

@@ -124,6 +124,43 @@ fn reservoir_temperature_at_below_and_above_its_limits() {
 }
 
 #[test]
+fn a_questioned_hot_oil_shows_at_watch_until_the_next_check_confirms_it() {
+    // Eight checks with the oil at 45 °C, then 88 °C: 43 K over a median whose spread is
+    // floored at 2.5 K (Hampel's limit 12.5 K), so the screen holds it. It is still shown, at
+    // watch, not at the 82 °C ceiling's act, with the question in the sentence.
+    let mut h = press();
+    for w in 0..8 {
+        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
+    }
+    h.checks.push(timed(9, 8, 4.0, 88.0, 20.0));
+    let r = eval(&h, &Limits::builtin(), week(8));
+    assert_eq!(r.suspects.len(), 1, "{:?}", r.suspects);
+    let f = r
+        .flags
+        .iter()
+        .find(|f| f.kind == FlagKind::ReservoirTemp)
+        .expect("an oil temperature flag");
+    assert_eq!(f.state, State::Watch);
+    let fig = f.figure.clone().expect("a figure");
+    assert!((fig.value - Temperature::from_c(88.0).si()).abs() < 1e-9);
+    assert!(
+        f.what.contains("questioned and held at watch"),
+        "{}",
+        f.what
+    );
+    assert!(f.next_step.contains("let the oil cool"), "{}", f.next_step);
+    // The next check back at 45 °C: nothing shows.
+    h.checks.push(timed(10, 9, 4.0, 45.0, 20.0));
+    let r = eval(&h, &Limits::builtin(), week(9));
+    assert_eq!(state_of(&r, FlagKind::ReservoirTemp), State::Steady);
+    // The next check at 88.5 °C confirms it (held too, on the same side, close to it): both
+    // count, and above the ceiling that is act.
+    h.checks[9] = timed(10, 9, 4.0, 88.5, 20.0);
+    let r = eval(&h, &Limits::builtin(), week(9));
+    assert_eq!(state_of(&r, FlagKind::ReservoirTemp), State::Act);
+}
+
+#[test]
 fn a_drift_signal_needs_the_next_check_to_confirm_it_and_three_to_act() {
     // Worked by hand (Montgomery's EWMA λ = 0.2, L = 3 and tabular CUSUM k = 0.5, h = 5,
     // with the baseline's own standard error added): baseline ΔT 19, 21, 19, 21 K (the
