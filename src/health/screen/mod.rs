@@ -258,11 +258,14 @@ impl Pending {
     /// Whether the next reading `x` of the field (`again`: questioned itself) confirms this
     /// one against the history `hist` it is now judged on: a frame break repeated, or a
     /// reading out of the same history on the same side and within `SIGMAS` of this one (σ
-    /// at least `floor`) — a real change, not a slip.
+    /// at least `floor`) or further out still — a real change, not a slip.
     fn confirmed_by(&self, x: f64, again: bool, hist: Option<(f64, f64)>, floor: f64) -> bool {
         let side = outside(x, hist).unwrap_or(0.0);
         let close = (x - self.value).abs() <= SIGMAS * self.sigma.max(floor);
-        again && side == self.side && (self.side == 0.0 || close)
+        // Or further out still on the same side: a cooler that fails, or a relief valve that
+        // passes more each week, takes the oil from 88 °C to 139 °C, a leap no slip repeats.
+        let further = (x - self.value) * self.side >= 0.0;
+        again && side == self.side && (self.side == 0.0 || close || further)
     }
 
     /// Whether the next check's reading `x`, not questioned itself, still leans the same way:

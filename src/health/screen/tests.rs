@@ -116,6 +116,30 @@ fn a_questioned_reading_is_confirmed_by_a_next_one_still_leaning_its_way() {
 }
 
 #[test]
+fn a_questioned_reading_is_confirmed_by_a_next_one_further_out_on_its_side() {
+    // 4.0 s (Hampel's limit 0.2 in ln). 5.5 s is ln 1.375 = 0.318 above: questioned. 8.0 s
+    // next is ln 2 = 0.693 above, questioned too and on the same side, though not within 5σ
+    // of the 5.5 s (ln 8/5.5 = 0.375): further out still, as a relief valve passing more each
+    // week would take it; both are confirmed. A next 3.0 s (the other side) confirms nothing.
+    let mut h = steady_weeks();
+    let with = |h: &mut UnitHistory, times: &[f64]| {
+        h.checks.truncate(8);
+        for (i, t) in times.iter().enumerate() {
+            let mut c = timed(9 + i as Id, 8 + i as i64, *t, 45.0, 20.0);
+            c.pressure = Some(Pressure::from_bar(90.0));
+            h.checks.push(c);
+        }
+        screen_history(h, None, UnitSystem::Metric)
+    };
+    let s = with(&mut h, &[5.5, 8.0]);
+    assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, true)], "{s:?}");
+    assert_eq!(fields(&s, 10), vec![(Field::StrokeTime, true)], "{s:?}");
+    let s = with(&mut h, &[5.5, 3.0]);
+    assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, false)], "{s:?}");
+    assert_eq!(fields(&s, 10), vec![(Field::StrokeTime, false)], "{s:?}");
+}
+
+#[test]
 fn the_second_of_a_run_on_one_side_is_not_a_slip() {
     // The stroke history: 4.0 s with its spread floored at 0.04 in ln (Hampel's limit
     // 5 · 0.04 = 0.2, run limit 2 · 0.04 = 0.08). 4.4 s is ln 1.1 = 0.095 above: accepted,
