@@ -15,6 +15,18 @@ fn steady_weeks() -> UnitHistory {
     h
 }
 
+/// The screening of `steady_weeks` followed by checks timed at `times` (s), same oil and
+/// pressure, ids 9 on.
+fn after_steady(times: &[f64]) -> Vec<SuspectReading> {
+    let mut h = steady_weeks();
+    for (i, t) in times.iter().enumerate() {
+        let mut c = timed(9 + i as Id, 8 + i as i64, *t, 45.0, 20.0);
+        c.pressure = Some(Pressure::from_bar(90.0));
+        h.checks.push(c);
+    }
+    screen_history(&h, None, UnitSystem::Metric)
+}
+
 /// Asserts that the first questioned reading's reason says `text`.
 fn says(s: &[SuspectReading], text: &str) {
     let reason = s.first().map(|q| q.reason.as_str()).unwrap_or_default();
@@ -93,25 +105,15 @@ fn a_questioned_reading_is_confirmed_by_a_next_one_still_leaning_its_way() {
     // history, is not questioned itself, but it is beyond 2σ on the same side and within 5σ
     // of the held reading (ln 5.0/4.5 = 0.105): two readings in a row beyond 2σ, a run, and
     // the held one is confirmed (the Western Electric zone rule; by hand).
-    let mut h = steady_weeks();
-    let with = |h: &mut UnitHistory, times: &[f64]| {
-        h.checks.truncate(8);
-        for (i, t) in times.iter().enumerate() {
-            let mut c = timed(9 + i as Id, 8 + i as i64, *t, 45.0, 20.0);
-            c.pressure = Some(Pressure::from_bar(90.0));
-            h.checks.push(c);
-        }
-        screen_history(h, None, UnitSystem::Metric)
-    };
-    let s = with(&mut h, &[5.0, 4.5]);
+    let s = after_steady(&[5.0, 4.5]);
     assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, true)]);
     assert!(fields(&s, 10).is_empty(), "{s:?}");
     // 4.3 s is ln 1.075 = 0.072 above: within 2σ, no run, and the 5.0 s stays held.
-    let s = with(&mut h, &[5.0, 4.3]);
+    let s = after_steady(&[5.0, 4.3]);
     assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, false)]);
     // A slipped decimal point (40 s for 4.0) is not confirmed by a slow 4.5 s: 4.5 lies far
     // more than 5σ from 40 (ln 40/4.5 = 2.18).
-    let s = with(&mut h, &[40.0, 4.5]);
+    let s = after_steady(&[40.0, 4.5]);
     assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, false)]);
 }
 
@@ -121,20 +123,10 @@ fn a_questioned_reading_is_confirmed_by_a_next_one_further_out_on_its_side() {
     // next is ln 2 = 0.693 above, questioned too and on the same side, though not within 5σ
     // of the 5.5 s (ln 8/5.5 = 0.375): further out still, as a relief valve passing more each
     // week would take it; both are confirmed. A next 3.0 s (the other side) confirms nothing.
-    let mut h = steady_weeks();
-    let with = |h: &mut UnitHistory, times: &[f64]| {
-        h.checks.truncate(8);
-        for (i, t) in times.iter().enumerate() {
-            let mut c = timed(9 + i as Id, 8 + i as i64, *t, 45.0, 20.0);
-            c.pressure = Some(Pressure::from_bar(90.0));
-            h.checks.push(c);
-        }
-        screen_history(h, None, UnitSystem::Metric)
-    };
-    let s = with(&mut h, &[5.5, 8.0]);
+    let s = after_steady(&[5.5, 8.0]);
     assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, true)], "{s:?}");
     assert_eq!(fields(&s, 10), vec![(Field::StrokeTime, true)], "{s:?}");
-    let s = with(&mut h, &[5.5, 3.0]);
+    let s = after_steady(&[5.5, 3.0]);
     assert_eq!(fields(&s, 9), vec![(Field::StrokeTime, false)], "{s:?}");
     assert_eq!(fields(&s, 10), vec![(Field::StrokeTime, false)], "{s:?}");
 }

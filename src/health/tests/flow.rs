@@ -393,18 +393,8 @@ fn a_questioned_slower_stroke_is_judged_at_the_oil_it_was_timed_in_even_where_th
             && held_fields.contains(&crate::health::screen::Field::ReservoirTemp),
         "{held_fields:?}"
     );
-    let f = r
-        .flags
-        .iter()
-        .find(|f| f.kind == FlagKind::LostFlow)
-        .expect("a lost-flow flag");
-    assert_eq!(f.state, State::Watch);
-    let fig = f.figure.clone().expect("a figure");
-    assert!(
-        (fig.value - want).abs() < 1e-6,
-        "{} against {want}",
-        fig.value
-    );
+    let (_, v) = at_watch(&r, FlagKind::LostFlow);
+    assert!((v - want).abs() < 1e-6, "{v} against {want}");
 }
 
 #[test]
@@ -420,17 +410,8 @@ fn a_questioned_slower_stroke_shows_at_watch_until_the_next_check_confirms_it() 
     h.checks.push(timed(9, 8, 5.5, 45.0, 20.0));
     let r = eval(&h, &Limits::builtin(), week(8));
     assert_eq!(r.suspects.len(), 1, "{:?}", r.suspects);
-    let f = r
-        .flags
-        .iter()
-        .find(|f| f.kind == FlagKind::LostFlow)
-        .expect("a lost-flow flag");
-    assert_eq!(f.state, State::Watch);
-    let fig = f.figure.clone().expect("a figure");
-    assert!(
-        (fig.value - (1.0 - 4.0 / 5.5) * 100.0).abs() < 1e-9,
-        "{fig:?}"
-    );
+    let (f, v) = at_watch(&r, FlagKind::LostFlow);
+    assert!((v - (1.0 - 4.0 / 5.5) * 100.0).abs() < 1e-9, "{v}");
     assert!(
         f.what.contains("questioned and held at watch"),
         "{}",

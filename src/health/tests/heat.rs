@@ -135,14 +135,8 @@ fn a_questioned_hot_oil_shows_at_watch_until_the_next_check_confirms_it() {
     h.checks.push(timed(9, 8, 4.0, 88.0, 20.0));
     let r = eval(&h, &Limits::builtin(), week(8));
     assert_eq!(r.suspects.len(), 1, "{:?}", r.suspects);
-    let f = r
-        .flags
-        .iter()
-        .find(|f| f.kind == FlagKind::ReservoirTemp)
-        .expect("an oil temperature flag");
-    assert_eq!(f.state, State::Watch);
-    let fig = f.figure.clone().expect("a figure");
-    assert!((fig.value - Temperature::from_c(88.0).si()).abs() < 1e-9);
+    let (f, v) = at_watch(&r, FlagKind::ReservoirTemp);
+    assert!((v - Temperature::from_c(88.0).si()).abs() < 1e-9, "{v}");
     assert!(
         f.what.contains("questioned and held at watch"),
         "{}",

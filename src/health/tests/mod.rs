@@ -24,6 +24,18 @@ pub(super) fn state_of(health: &UnitHealth, kind: FlagKind) -> State {
         .unwrap_or(State::Steady)
 }
 
+/// The flag of `kind`, which must be at watch, and its figure's value.
+pub(super) fn at_watch(health: &UnitHealth, kind: FlagKind) -> (&Flag, f64) {
+    let f = health
+        .flags
+        .iter()
+        .find(|f| f.kind == kind)
+        .unwrap_or_else(|| panic!("no {kind:?} flag"));
+    assert_eq!(f.state, State::Watch, "{kind:?}");
+    let v = f.figure.as_ref().map(|g| g.value).expect("a figure");
+    (f, v)
+}
+
 pub(super) fn week(w: i64) -> DateTime<Utc> {
     t("2024-01-01") + chrono::Duration::weeks(w)
 }
