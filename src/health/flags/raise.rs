@@ -273,20 +273,27 @@ fn reservoir_temperature(
     });
 }
 
-/// Viscosity, cleanliness, water and acid number: the era's samples.
+/// Viscosity, cleanliness, water and acid number: the era's samples against the new oil and
+/// the target.
 fn sample_flags(
     r: &mut Raised,
     limits: &Limits,
     sys: UnitSystem,
     questioned_water: &[QuestionedWater],
 ) {
-    let c = r.c;
-    let pct = |v: Option<f64>| num(v.unwrap_or(0.0).abs(), 1);
-
-    // Samples of the era against the new oil and the target.
-    let kv = limits.get(LimitKey::Kv40DriftPct);
     // The time to the next sample due: how far a trend is carried before it must act.
     let horizon_days = limits.value(LimitKey::SampleIntervalWeeks) * 7.0;
+    viscosity(r, limits, sys, horizon_days);
+    cleanliness(r, limits);
+    water(r, limits, horizon_days, questioned_water);
+    acid(r, limits, horizon_days);
+}
+
+/// KV40 against the new oil's, its ISO VG band, and its trend to the act limit.
+fn viscosity(r: &mut Raised, limits: &Limits, sys: UnitSystem, horizon_days: f64) {
+    let c = r.c;
+    let pct = |v: Option<f64>| num(v.unwrap_or(0.0).abs(), 1);
+    let kv = limits.get(LimitKey::Kv40DriftPct);
     let mut visc_points: Vec<Graded> = c
         .samples
         .iter()
@@ -352,6 +359,11 @@ fn sample_flags(
             }
         )
     });
+}
+
+/// The ISO 4406 code against the target, over the samples since the last filter change.
+fn cleanliness(r: &mut Raised, limits: &Limits) {
+    let c = r.c;
     // Cleanliness: the samples since the last filter change of the era (those before it no
     // longer stand for the oil).
     let filtered_since = c
@@ -405,6 +417,11 @@ fn sample_flags(
             )
         },
     );
+}
+
+/// Water: the accepted contents with their trend, and the questioned ones at watch at most.
+fn water(r: &mut Raised, limits: &Limits, horizon_days: f64, questioned_water: &[QuestionedWater]) {
+    let c = r.c;
     let mut water = graded_samples(&c.samples, limits, LimitKey::WaterPpm, |s| s.water_ppm);
     let water_by = act_on_trend(
         &mut water,
@@ -457,6 +474,11 @@ fn sample_flags(
              wash-down — then dry or change the fluid."
         )
     });
+}
+
+/// The acid number's rise on the new oil, and its trend to the act limit.
+fn acid(r: &mut Raised, limits: &Limits, horizon_days: f64) {
+    let c = r.c;
     let mut acid = graded_samples(&c.samples, limits, LimitKey::AcidRiseMgKohG, |s| {
         s.acid_rise
     });
