@@ -131,8 +131,9 @@ pub const KV40_FAR: f64 = 0.5;
 /// are not one oil's pair: a lab's scatter of about 1 % on each moves the index by a few
 /// points, an oil's ageing and an ordinary top-up by little more, and shear of a
 /// viscosity-index improver by up to about 20 (from memory); a KV40 with two figures swapped
-/// beside its true KV100 by 40 or more (common practice, no published source, for the 30).
-pub const VI_FAR: f64 = 30.0;
+/// beside its true KV100 by 25 to 40 or more (common practice, no published source, for the
+/// 25: the shear's 20 and a lab's scatter).
+pub const VI_FAR: f64 = 25.0;
 /// …and undoing one slip in the KV40 must bring the index within this of the new oil's,
 /// twice a lab's scatter (from memory): then the KV40 is the figure in doubt.
 pub const VI_NEAR: f64 = 15.0;

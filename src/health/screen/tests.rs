@@ -286,6 +286,13 @@ fn a_kv40_that_does_not_fit_its_kv100_is_questioned_where_a_slip_explains_it() {
         "{}",
         got[0].reason
     );
+    // Nearer the band's edge: 46.0 typed as 40.6 beside a KV100 of 6.9 gives an index of
+    // 128.8, 27.2 from the new oil's 101.6 (past `VI_FAR`, 25); as 46.0, 105.5: questioned.
+    // 40.6 beside 6.8 gives 124.5, 22.9 off: within the band, no question.
+    pair(&mut s, 40.6, 6.9);
+    assert_eq!(sample_rule(&f, &s), vec![Field::Kv40]);
+    pair(&mut s, 40.6, 6.8);
+    assert!(sample_rule(&f, &s).is_empty());
     // A real thinning moves both (36.8 / 5.98: an index of 106), a thicker top-up too
     // (50.6 / 7.48): no question.
     for (kv40, kv100) in [(36.8, 5.98), (50.6, 7.48)] {
