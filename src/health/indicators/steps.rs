@@ -37,7 +37,7 @@ impl Stroke {
 }
 
 /// How far below what the checks `before` give (%) one stroke `now` is. In a hall warmer than
-/// at the checks before (their median) by at least `warmer` K, with the displacement `d`
+/// at the checks before (the median of more than half of them) by at least `warmer` K, with the displacement `d`
 /// known and every check's oil and pressure read, the expected flow is `d` less the leakage
 /// of the checks before — the median of their conductances (d − q)/(p/ν), never below zero —
 /// moved to `now`'s pressure and oil: laminar gap leakage goes as p/ν (Hagen–Poiseuille), so
@@ -46,8 +46,13 @@ impl Stroke {
 /// that heats its own oil (a fouling cooler, a path to tank) loses the flow its thinner oil
 /// leaks as part of its fault. None with no reference.
 pub fn loss_against(before: &[Stroke], now: &Stroke, d: Option<f64>, warmer: f64) -> Option<f64> {
-    let halls: Option<Vec<f64>> = before.iter().map(|s| s.ambient).collect();
-    let hot_spell = match (now.ambient, halls.as_deref().and_then(stats::median)) {
+    // The hall of the checks before: the median of the air temperatures read, where most of
+    // them were (one the screen held, a slip such as 92.9 °C for 29.9, leaves the rest).
+    let halls: Vec<f64> = before.iter().filter_map(|s| s.ambient).collect();
+    let hall = (2 * halls.len() > before.len())
+        .then(|| stats::median(&halls))
+        .flatten();
+    let hot_spell = match (now.ambient, hall) {
         (Some(a), Some(m)) => a - m >= warmer,
         _ => false,
     };
@@ -248,6 +253,19 @@ mod tests {
         assert_eq!(
             loss_against(&gap, &s(90.0, 290.0, 350.0), Some(100.0), 5.0),
             plain
+        );
+        // One check before without its hall (the screen held a slip of it): the hall is the
+        // median of the other three, and the hot spell is read as before.
+        let mut held_air = before;
+        held_air[1].ambient = None;
+        let again = loss_against(&held_air, &s(90.0, 290.0, 350.0), Some(100.0), 5.0).unwrap();
+        assert!(again.abs() < 1e-9, "{again}");
+        // With most of them without it there is no hall to compare: the plain reading.
+        held_air[0].ambient = None;
+        held_air[2].ambient = None;
+        assert_eq!(
+            loss_against(&held_air, &s(90.0, 290.0, 350.0), Some(100.0), 5.0),
+            Some(own)
         );
         // Timed flows above the displacement (negative conductance) count as no leakage.
         let over = [s(101.0, 280.0, 300.0); 4];
