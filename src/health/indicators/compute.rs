@@ -580,6 +580,7 @@ fn sudden_losses(
                 p: p.pressure,
                 nu: p.viscosity_at_temp,
                 ambient: p.ambient_temp,
+                scale: p.flow_scale.filter(|_| corrected_sudden),
             },
         ));
         let n = strokes.len();

@@ -27,6 +27,8 @@ pub struct Stroke {
     pub p: Option<f64>,
     pub nu: Option<f64>,
     pub ambient: Option<f64>,
+    /// Where `flow` is the corrected flow: the leakage scale k it was moved by (`flow_scale`).
+    pub scale: Option<f64>,
 }
 
 impl Stroke {
@@ -44,7 +46,8 @@ impl Stroke {
 /// a hot spell's thinner oil takes its share from the expectation while a relief valve
 /// starting to pass oil shows in full. Else `now.flow` against the median of theirs: a unit
 /// that heats its own oil (a fouling cooler, a path to tank) loses the flow its thinner oil
-/// leaks as part of its fault. None with no reference.
+/// leaks as part of its fault; a corrected flow from oil thicker than the reference's is
+/// weighed by 1/k there. None with no reference.
 pub fn loss_against(before: &[Stroke], now: &Stroke, d: Option<f64>, warmer: f64) -> Option<f64> {
     // The hall of the checks before: the median of the air temperatures read, where most of
     // them were (one the screen held, a slip such as 92.9 °C for 29.9, leaves the rest).
@@ -67,7 +70,16 @@ pub fn loss_against(before: &[Stroke], now: &Stroke, d: Option<f64>, warmer: f64
             now.flow,
         ),
     };
-    expected.filter(|e| *e > 0.0).map(|e| (1.0 - q / e) * 100.0)
+    // A corrected flow from oil thicker than the reference's carries the stopwatch's scatter
+    // k times over (its leakage was multiplied by k): its departure is weighed by 1/k, as the
+    // leak conductance and the drift detectors weigh it.
+    let weigh = match (hot_spell, now.scale) {
+        (false, Some(k)) if k > 1.0 && k.is_finite() => 1.0 / k,
+        _ => 1.0,
+    };
+    expected
+        .filter(|e| *e > 0.0)
+        .map(|e| (1.0 - q / e) * 100.0 * weigh)
 }
 
 /// Where a step in flow and heat began, if one did: the first of two checks in a row whose
@@ -232,6 +244,7 @@ mod tests {
             p: Some(1.0),
             nu: Some(1.0 / (oil - 250.0)),
             ambient: Some(ambient),
+            scale: None,
         };
         let before = [s(95.0, 280.0, 300.0); 4];
         // A hot spell, the hall 10 K warmer and the oil at 350 K: p/ν = 100, leakage 10,
@@ -271,6 +284,26 @@ mod tests {
         let over = [s(101.0, 280.0, 300.0); 4];
         let none = loss_against(&over, &s(90.0, 290.0, 350.0), Some(100.0), 5.0).unwrap();
         assert!((none - 10.0).abs() < 1e-9, "{none}");
+    }
+
+    #[test]
+    fn a_sudden_loss_of_a_corrected_flow_from_thick_oil_is_weighed_by_its_scale() {
+        // By hand: four corrected flows of 100 before, then 80 corrected from oil whose
+        // leakage was scaled by k = 2 to the reference: 20 % below, weighed by 1/2: 10 %. From
+        // thinner oil (k = 0.5), or a timed flow (no scale), it stands at 20 %.
+        let s = |flow: f64, scale: Option<f64>| Stroke {
+            q: flow,
+            flow,
+            p: Some(1.0),
+            nu: Some(1.0),
+            ambient: Some(290.0),
+            scale,
+        };
+        let before = [s(100.0, Some(1.0)); 4];
+        let at = |k: Option<f64>| loss_against(&before, &s(80.0, k), Some(110.0), 5.0).unwrap();
+        assert!((at(Some(2.0)) - 10.0).abs() < 1e-9, "{}", at(Some(2.0)));
+        assert!((at(Some(0.5)) - 20.0).abs() < 1e-9, "{}", at(Some(0.5)));
+        assert!((at(None) - 20.0).abs() < 1e-9, "{}", at(None));
     }
 
     #[test]
