@@ -197,7 +197,12 @@ pub(super) fn act_on_trend(
         // new (a batch a little off its data sheet) and move steadily through it.
         let side = values[values.len() - 1].signum();
         let away: Vec<f64> = values.iter().map(|v| v * side).collect();
-        if away.windows(2).any(|w| w[1] <= w[0]) {
+        // Each step further from good, and by a move the lab can tell from its own scatter:
+        // 46.3, 46.2, then 41.7 cSt is one step (a slip, or a top-up), not a run of three.
+        if away.windows(2).any(|w| {
+            let step = w[1] - w[0];
+            step <= 0.0 || step < scatter(w[1].abs())
+        }) {
             continue;
         }
         let first = run[0].at;

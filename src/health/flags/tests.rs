@@ -176,6 +176,19 @@ fn a_trend_past_watch_that_reaches_act_by_the_next_sample_raises_act() {
         act_on_trend(&mut pts, Some(500.0), 30.0, &|_| sigma);
         assert_eq!(pts[2].state, want, "σ {sigma}");
     }
+    // Each step must be a move the lab can tell (here σ = 1, a KV40 drift in %): −0.5, −0.7,
+    // −9.3 is one step after a move of 0.2, no run; −3.5, −6.4, −9.3 moves 2.9 a sample and,
+    // carried the 14 days of its spacing, is at −12.2, clearing −10 by more than its √2.5 σ
+    // (1.58): act (by hand).
+    for (first, second, want) in [(-0.5, -0.7, Watch), (-3.5, -6.4, Act)] {
+        let mut pts = [
+            gv(1, Steady, first),
+            gv(15, Watch, second),
+            gv(29, Watch, -9.3),
+        ];
+        act_on_trend(&mut pts, Some(10.0), 30.0, &|_| 1.0);
+        assert_eq!(pts[2].state, want, "{first}, {second}");
+    }
     // Without an act limit nothing is raised.
     let mut pts = [
         gv(1, Steady, 100.0),
