@@ -118,12 +118,24 @@ fn pts(v: impl Iterator<Item = (DateTime<Utc>, Option<f64>)>) -> Vec<SeriesPoint
         .collect()
 }
 
+/// Every tile's spec: the checks' indicators, then the samples'.
 fn specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
+    let mut out = check_specs(c, limits);
+    out.extend(sample_specs(c, limits));
+    out
+}
+
+/// The latest point of a series, as a tile shows it.
+fn last(v: &[SeriesPoint]) -> Option<(DateTime<Utc>, f64)> {
+    v.last().map(|p| (p.at, p.value))
+}
+
+/// The tiles of the walk-round checks: flows, heat, leak conductance, case drain, oil
+/// temperature.
+fn check_specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
     use crate::health::flags::FlagKind as K;
     let lim = |k: LimitKey| limits.get(k);
     let ck = |f: fn(&CheckPoint) -> Option<f64>| pts(c.checks.iter().map(|p| (p.at, f(p))));
-    let sk = |f: &dyn Fn(&SamplePoint) -> Option<f64>| pts(c.samples.iter().map(|p| (p.at, f(p))));
-    let last = |v: &[SeriesPoint]| v.last().map(|p| (p.at, p.value));
     let bl = |i: BaselineIndicator| c.baseline.get(i).map(|b| (b.value, b.spread));
     let mut out = Vec::new();
 
@@ -264,6 +276,16 @@ fn specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
             .into_iter()
             .collect(),
     });
+
+    out
+}
+
+/// The tiles of the fluid samples: KV40, cleanliness, water, acid number.
+fn sample_specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
+    use crate::health::flags::FlagKind as K;
+    let lim = |k: LimitKey| limits.get(k);
+    let sk = |f: &dyn Fn(&SamplePoint) -> Option<f64>| pts(c.samples.iter().map(|p| (p.at, f(p))));
+    let mut out = Vec::new();
 
     let kv = sk(&|p| p.kv40);
     let kl = lim(LimitKey::Kv40DriftPct);
