@@ -4,7 +4,7 @@
 use super::*;
 
 /// Maintenance that restarts the detectors and flags of what it addresses: a cooler clean the
-/// heat rise; a repair the flow, leakage and case drain, and the heat rise too (what passed oil
+/// heat rise and the corrected flow's drift; a repair the flow, leakage and case drain, and the heat rise too (what passed oil
 /// to tank — a relief or directional valve — heated it as much as it robbed the stroke); a
 /// filter change the cleanliness (its samples before the change no longer stand for the oil). Fluid changes and rebuilds start a
 /// new era instead.
@@ -18,7 +18,14 @@ pub struct Restart {
 impl Restart {
     pub fn addresses(&self, ind: BaselineIndicator) -> bool {
         match self.event {
-            EventKind::CoolerClean => ind == BaselineIndicator::HeatRise,
+            // The flow corrected to the reference was read through oil the fouled cooler had
+            // thinned, where the correction is least sure (its error grows with the distance
+            // from the reference oil): what its detectors summed then does not describe the
+            // cooled unit.
+            EventKind::CoolerClean => matches!(
+                ind,
+                BaselineIndicator::HeatRise | BaselineIndicator::CorrectedFlow
+            ),
             EventKind::Repair => true,
             _ => false,
         }
@@ -408,5 +415,46 @@ mod tests {
             pts[6].drift
         );
         assert!(!pts[6].drift[0].signal);
+    }
+
+    #[test]
+    fn a_cooler_clean_restarts_the_corrected_flows_detectors_too() {
+        // Six checks whose flow, corrected to the baseline's oil, reads 95 against a baseline
+        // of 100 (entered by hand, spread 2.5), then a cooler clean and a check at 100: the
+        // EWMA starts afresh from the baseline, 100 + 0.2 · (100 − 100) = 100 (by hand).
+        // Those six were read through oil the fouled cooler had thinned, where the
+        // correction is least sure.
+        let b = by_hand(BaselineIndicator::CorrectedFlow, 100.0, 2.5);
+        let mut pts: Vec<CheckPoint> = (0..7)
+            .map(|w| CheckPoint {
+                check_id: w,
+                at: t("2024-01-08") + chrono::Duration::weeks(w),
+                corrected_flow: Some(if w < 6 { 95.0 } else { 100.0 }),
+                flow_scale: Some(1.0),
+                ..CheckPoint::default()
+            })
+            .collect();
+        let clean = Restart {
+            at: pts[5].at + chrono::Duration::days(2),
+            event_id: 1,
+            event: EventKind::CoolerClean,
+        };
+        run_detectors(
+            &mut pts,
+            &b,
+            &Limits::builtin(),
+            std::slice::from_ref(&clean),
+            None,
+        );
+        assert!(pts[5].drift[0].ewma < 97.5, "{:?}", pts[5].drift);
+        assert!(
+            (pts[6].drift[0].ewma - 100.0).abs() < 1e-9,
+            "{:?}",
+            pts[6].drift
+        );
+        // A clean touches neither the pump's leakage nor its case drain.
+        assert!(clean.addresses(BaselineIndicator::CorrectedFlow));
+        assert!(!clean.addresses(BaselineIndicator::CaseDrain));
+        assert!(!clean.addresses(BaselineIndicator::EffectiveFlow));
     }
 }
