@@ -14,7 +14,7 @@ pub use crate::health::plan::{CAUTION_SHORT, SAFETY_CAUTIONS, WALK_ROUND_CAUTION
 pub use crate::health::screen::Record;
 pub use crate::health::{Flag, FlagKind, NotJudged, State, SuspectReading, WorkKind};
 pub use crate::report::Paper;
-pub use crate::sim::score::FaultFigures;
+pub use crate::sim::score::{Chance, Detection, FaultFigures};
 pub use crate::sim::shop::Params as SimParams;
 pub use crate::store::roles::ShopRole;
 

@@ -10,7 +10,7 @@ use clap::Args;
 
 use super::Failure;
 use crate::app::sim::{make_sim_shop, score_sim, SimReport};
-use crate::app::vocab::{FaultFigures, SimParams as Params};
+use crate::app::vocab::{Chance, Detection, FaultFigures, SimParams as Params};
 
 #[derive(Args, Debug, Clone, PartialEq)]
 pub struct SimShopArgs {
@@ -120,7 +120,12 @@ fn delay(median: Option<f64>, worst: Option<i64>) -> String {
 fn fault_row(f: Option<&FaultFigures>) -> [String; 3] {
     match f {
         Some(f) => [
-            format!("{}/{}", f.found, f.planted),
+            format!(
+                "{}/{}{}",
+                f.found,
+                f.judged,
+                if f.planted > f.judged { "*" } else { "" }
+            ),
             delay(f.median_delay, f.worst_delay),
             delay(f.median_watch_delay, f.worst_watch_delay),
         ],
@@ -261,6 +266,30 @@ pub fn print_report(r: &SimReport, out: &mut dyn Write) -> std::io::Result<()> {
             b[0],
             b[1],
             b[2]
+        )?;
+    }
+    // The faults left out of the found counts and delays above (the starred counts).
+    for d in e.detections.iter().filter(|d| d.chance != Chance::Judged) {
+        let shown = |x: Option<&Detection>| match x {
+            Some(x) if x.act_delay.is_some() => "act",
+            Some(x) if x.watch_delay.is_some() => "watch",
+            _ => "nothing",
+        };
+        let theirs = f
+            .detections
+            .iter()
+            .find(|x| x.unit == d.unit && x.kind == d.kind);
+        writeln!(
+            out,
+            "  * {} {}: {}; sumpbook {}, fixed {}",
+            d.unit,
+            d.kind.as_str(),
+            match d.chance {
+                Chance::OneCheck => "a step repaired after its one check (found if at watch)",
+                _ => "repaired before any check",
+            },
+            shown(Some(d)),
+            shown(theirs)
         )?;
     }
     writeln!(out)?;

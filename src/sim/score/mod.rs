@@ -176,6 +176,34 @@ pub struct Detection {
     pub watch_delay: Option<i64>,
     /// Checks taken from the detectable week up to and including the first act week.
     pub checks_to_act: Option<usize>,
+    /// What the checks before the repair allow a rule to show (`Chance`).
+    pub chance: Chance,
+}
+
+/// What the checks a fault had before its repair (or the end) allow a rule to show. A step
+/// seen at one check can only be shown at watch there: act waits for the check that confirms
+/// it (a lone far reading is how a typing slip looks too), and a fault repaired before any
+/// check is invisible to every rule. Such faults are counted apart, for both rules alike.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Chance {
+    /// Enough checks to be found at act.
+    Judged,
+    /// A step repaired after its first check: found when that check shows it at watch.
+    OneCheck,
+    /// No check between the onset and the repair.
+    NoCheck,
+}
+
+impl Chance {
+    /// The chance of a fault of `kind` with `checks` checks from its onset to its repair.
+    pub fn of(kind: FaultKind, checks: usize) -> Chance {
+        match checks {
+            0 => Chance::NoCheck,
+            1 if kind.is_step() => Chance::OneCheck,
+            _ => Chance::Judged,
+        }
+    }
 }
 
 /// Figures per fault kind.
@@ -183,8 +211,17 @@ pub struct Detection {
 pub struct FaultFigures {
     pub kind: FaultKind,
     pub planted: usize,
+    /// Faults with enough checks to be found at act ([`Chance::Judged`]), and those of them
+    /// at act between their onset and their repair.
+    pub judged: usize,
     pub found: usize,
-    /// Median and worst act delay in weeks, a missed fault counting as never (`None`).
+    /// Steps repaired after their first check, and those of them at watch on it.
+    pub one_check: usize,
+    pub one_check_at_watch: usize,
+    /// Faults repaired before any check.
+    pub no_check: usize,
+    /// Over the judged faults: median and worst act delay in weeks, a missed fault counting
+    /// as never (`None`).
     pub median_delay: Option<f64>,
     pub worst_delay: Option<i64>,
     pub median_watch_delay: Option<f64>,
@@ -342,6 +379,11 @@ pub fn score(
             let act = first_at(ACT);
             let watch = first_at(WATCH);
             let d = ft.detectable_week as i64;
+            let with_fault = if end > ft.onset_week {
+                checks_between(&f.checked, ft.onset_week, end - 1)
+            } else {
+                0
+            };
             s.detections.push(Detection {
                 unit: f.truth.unit.clone(),
                 kind: ft.kind,
@@ -355,6 +397,7 @@ pub fn score(
                         checks_between(&f.checked, ft.detectable_week, w)
                     }
                 }),
+                chance: Chance::of(ft.kind, with_fault),
             });
             if let Some(r) = ft.repair_week {
                 let clear = |lv: &[u8], lvl: u8| {
@@ -392,10 +435,12 @@ pub fn score(
     s.flag_length_median = median(&as_f(&flag_lengths));
     s.flag_length_worst = flag_lengths.iter().copied().max();
     for kind in FaultKind::ALL {
-        let ds: Vec<&Detection> = s.detections.iter().filter(|d| d.kind == kind).collect();
-        if ds.is_empty() {
+        let all: Vec<&Detection> = s.detections.iter().filter(|d| d.kind == kind).collect();
+        if all.is_empty() {
             continue;
         }
+        let with = |c: Chance| all.iter().filter(move |d| d.chance == c);
+        let ds: Vec<&Detection> = with(Chance::Judged).copied().collect();
         let never = |x: Option<i64>| x.map_or(f64::INFINITY, |v| v as f64);
         let worst = |xs: Vec<Option<i64>>| -> Option<i64> {
             if xs.iter().any(Option::is_none) {
@@ -406,8 +451,14 @@ pub fn score(
         };
         s.faults.push(FaultFigures {
             kind,
-            planted: ds.len(),
+            planted: all.len(),
+            judged: ds.len(),
             found: ds.iter().filter(|d| d.act_delay.is_some()).count(),
+            one_check: with(Chance::OneCheck).count(),
+            one_check_at_watch: with(Chance::OneCheck)
+                .filter(|d| d.watch_delay.is_some())
+                .count(),
+            no_check: with(Chance::NoCheck).count(),
             median_delay: median(&ds.iter().map(|d| never(d.act_delay)).collect::<Vec<_>>())
                 .filter(|m| m.is_finite()),
             worst_delay: worst(ds.iter().map(|d| d.act_delay).collect()),
@@ -471,12 +522,24 @@ pub fn verdicts(e: &Scores, f: &Scores) -> Vec<Verdict> {
         ),
         pass: worst_clear.is_some_and(|c| c <= 2),
     });
-    let found: usize = e.faults.iter().map(|x| x.found).sum();
-    let planted: usize = e.faults.iter().map(|x| x.planted).sum();
+    let sum = |f: fn(&FaultFigures) -> usize| e.faults.iter().map(f).sum::<usize>();
+    let (found, judged) = (sum(|x| x.found), sum(|x| x.judged));
+    let (one, one_watch, none) = (
+        sum(|x| x.one_check),
+        sum(|x| x.one_check_at_watch),
+        sum(|x| x.no_check),
+    );
+    let mut figure = format!("{found} / {judged}");
+    if one > 0 {
+        figure += &format!("; repaired after one check: {one_watch} / {one} at watch");
+    }
+    if none > 0 {
+        figure += &format!("; {none} repaired before any check");
+    }
     out.push(Verdict {
         target: "every planted fault found (act)".into(),
-        figure: format!("{found} / {planted}"),
-        pass: found == planted,
+        figure,
+        pass: found == judged && one_watch == one,
     });
     for ef in &e.faults {
         let ff = f.faults.iter().find(|x| x.kind == ef.kind);

@@ -279,3 +279,91 @@ fn a_fault_never_at_act_is_missed_and_fails_its_target() {
             .pass
     );
 }
+
+/// A relief valve bypass from `onset` repaired in `repair`, on a unit checked in the weeks
+/// of `checked` (of 10).
+fn bypass(unit: &str, onset: usize, repair: usize) -> UnitTruth {
+    UnitTruth {
+        unit: unit.into(),
+        healthy: false,
+        fault: Some(Fault {
+            kind: FaultKind::ReliefBypass,
+            onset_week: onset,
+            detectable_week: onset,
+            repair_week: Some(repair),
+            repair_event: Some("repair".into()),
+        }),
+    }
+}
+
+#[test]
+fn a_step_repaired_after_one_check_is_found_at_watch_and_one_never_checked_is_left_out() {
+    // A: onset week 3, weeks 3 and 4 missed, one check (week 5) before the repair in week 6:
+    // at watch on it. B: onset week 3, repaired in week 5 with weeks 3 and 4 missed: no check
+    // at all. C: onset week 2, checked every week, at act on its second check (week 3).
+    let truth = truth_of(
+        vec![bypass("A", 3, 6), bypass("B", 3, 5), bypass("C", 2, 8)],
+        vec![],
+        10,
+    );
+    let gaps = vec![true, true, true, false, false, true, true, true, true, true];
+    let facts = vec![
+        UnitFacts {
+            truth: &truth.units[0],
+            checked: gaps.clone(),
+        },
+        UnitFacts {
+            truth: &truth.units[1],
+            checked: gaps,
+        },
+        UnitFacts {
+            truth: &truth.units[2],
+            checked: vec![true; 10],
+        },
+    ];
+    let a: Timeline = [0, 0, 0, 0, 0, 1, 0, 0, 0, 0].map(wf).to_vec();
+    let b: Timeline = [0; 10].map(wf).to_vec();
+    let c: Timeline = [0, 0, 1, 2, 2, 2, 2, 2, 0, 0].map(wf).to_vec();
+    let s = score("s", &truth, &facts, &[a.clone(), b.clone(), c.clone()]);
+    let chances: Vec<Chance> = s.detections.iter().map(|d| d.chance).collect();
+    assert_eq!(
+        chances,
+        vec![Chance::OneCheck, Chance::NoCheck, Chance::Judged]
+    );
+    let f = &s.faults[0];
+    assert_eq!(
+        (
+            f.planted,
+            f.judged,
+            f.found,
+            f.one_check,
+            f.one_check_at_watch,
+            f.no_check
+        ),
+        (3, 1, 1, 1, 1, 1)
+    );
+    // Only the judged fault counts in the delays: act in week 3, onset 2 → +1, second check.
+    assert_eq!(
+        (f.median_delay, f.worst_checks_to_act),
+        (Some(1.0), Some(2))
+    );
+    let v = verdicts(&s, &s);
+    let found = v
+        .iter()
+        .find(|v| v.target.starts_with("every planted"))
+        .unwrap();
+    assert!(found.pass, "{found:?}");
+    assert!(found.figure.contains("1 / 1 at watch"), "{found:?}");
+    // The one check not at watch: the target is missed.
+    let quiet = score("q", &truth, &facts, &[b.clone(), b, c]);
+    let v = verdicts(&quiet, &quiet);
+    assert!(
+        !v.iter()
+            .find(|v| v.target.starts_with("every planted"))
+            .unwrap()
+            .pass
+    );
+    // A developing fault with a single check is judged as any other.
+    assert_eq!(Chance::of(FaultKind::PumpWear, 1), Chance::Judged);
+    assert_eq!(Chance::of(FaultKind::PumpWear, 0), Chance::NoCheck);
+}
