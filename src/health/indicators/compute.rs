@@ -84,7 +84,15 @@ pub fn compute(
     against_baseline(&mut points, &baseline, &restarts);
     run_detectors(&mut points, &baseline, limits, &restarts, flow.displacement);
     let leak_resolved = leak_resolved(&baseline, flow.fit_judged.is_some(), rated, limits);
-    sudden_losses(&mut points, &restarts, &flow, leak_resolved, rated, limits);
+    sudden_losses(
+        &mut points,
+        &restarts,
+        &flow,
+        (heat_load, walther),
+        leak_resolved,
+        rated,
+        limits,
+    );
 
     // The target goes by working pressure: the relief setting, or the highest pressure logged.
     let target = era.map(|_| {
@@ -541,6 +549,7 @@ fn sudden_losses(
     points: &mut [CheckPoint],
     restarts: &[Restart],
     flow: &FlowModel,
+    (heat_load, walther): (Option<HeatLoad>, Option<Walther>),
     leak_resolved: Option<bool>,
     rated: Option<Flow>,
     limits: &Limits,
@@ -581,6 +590,7 @@ fn sudden_losses(
                 nu: p.viscosity_at_temp,
                 ambient: p.ambient_temp,
                 scale: p.flow_scale.filter(|_| corrected_sudden),
+                nu_sound: sound_viscosity(p, heat_load, walther, warmer),
             },
         ));
         let n = strokes.len();
@@ -599,9 +609,68 @@ fn sudden_losses(
     }
 }
 
+/// The oil's viscosity at a check as far as a sound unit's own heat explains it: the one read,
+/// or, where the oil reads hotter than a sound unit settles at the check's pressure in its hall
+/// (`HeatLoad::settled_rise`), the settled oil's. None where the heat model cannot place it,
+/// and where the oil reads hotter than that by `beyond` K or more: a unit heating its own oil
+/// (a fouled cooler, a path to tank) is not excused its job either.
+fn sound_viscosity(
+    p: &CheckPoint,
+    heat_load: Option<HeatLoad>,
+    walther: Option<Walther>,
+    beyond: f64,
+) -> Option<f64> {
+    let (m, w, read) = (heat_load?, walther?, p.viscosity_at_temp?);
+    let oil = |t: f64| Some(w.at(Temperature(t)).si()).filter(|v| v.is_finite() && *v > 0.0);
+    let ambient = p.ambient_temp?;
+    let settled = ambient + m.settled_rise(p.pressure?, ambient, oil)?;
+    if p.reservoir_temp? - settled >= beyond {
+        return None;
+    }
+    Some(read.max(oil(settled)?))
+}
+
 #[cfg(test)]
 mod tests {
     use super::weighed_from_thick_oil;
+    use super::{sound_viscosity, CheckPoint, HeatLoad, Temperature, Viscosity, Walther};
+
+    #[test]
+    fn the_oil_a_sound_units_heat_explains_is_capped_at_where_it_settles() {
+        // A heat load going with the pressure alone, R chosen by hand so that a sound unit
+        // settles 20 K over the hall at 100 bar: R · p = 20 K (the load at p is p · 1), so in
+        // a hall at 20 °C it settles at 40 °C. An ISO VG 46 oil (46 and 6.8 cSt).
+        let m = HeatLoad {
+            resistance: Some(20.0 / 100.0e5),
+            ..HeatLoad::pressure_only(100.0e5)
+        };
+        let w = Walther::from_kv40_kv100(Viscosity::from_cst(46.0), Viscosity::from_cst(6.8))
+            .expect("a valid oil");
+        let nu = |c: f64| w.at(Temperature::from_c(c)).si();
+        let at = |read_c: f64| {
+            let p = CheckPoint {
+                reservoir_temp: Some(Temperature::from_c(read_c).si()),
+                ambient_temp: Some(Temperature::from_c(20.0).si()),
+                pressure: Some(100.0e5),
+                viscosity_at_temp: Some(nu(read_c)),
+                ..CheckPoint::default()
+            };
+            sound_viscosity(&p, Some(m), Some(w), 5.0)
+        };
+        let near = |a: Option<f64>, b: f64| a.is_some_and(|a| (a / b - 1.0).abs() < 1e-6);
+        // Cooler than it settles (the oil not yet settled): as read.
+        assert!(near(at(35.0), nu(35.0)), "{:?}", at(35.0));
+        // 3 K hotter: only the settled oil's thinning is explained.
+        assert!(near(at(43.0), nu(40.0)), "{:?}", at(43.0));
+        // 5 K hotter or more (the watch limit given): a unit heating its own oil, nothing.
+        assert_eq!(at(45.0), None);
+        // No heat model: nothing either.
+        let p = CheckPoint {
+            viscosity_at_temp: Some(nu(35.0)),
+            ..CheckPoint::default()
+        };
+        assert_eq!(sound_viscosity(&p, None, Some(w), 5.0), None);
+    }
 
     #[test]
     fn a_leak_ratio_from_thick_oil_is_weighed_by_its_scatter() {

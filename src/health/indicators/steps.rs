@@ -29,6 +29,10 @@ pub struct Stroke {
     pub ambient: Option<f64>,
     /// Where `flow` is the corrected flow: the leakage scale k it was moved by (`flow_scale`).
     pub scale: Option<f64>,
+    /// The oil's viscosity as far as a sound unit's own heat explains it: `nu`, or where the
+    /// oil reads hotter than a sound unit settles at this pressure in this hall
+    /// (`HeatLoad::settled_rise`), the settled oil's. None where the heat model cannot tell.
+    pub nu_sound: Option<f64>,
 }
 
 impl Stroke {
@@ -36,18 +40,26 @@ impl Stroke {
     fn x(&self) -> Option<f64> {
         Some(self.p? / self.nu.filter(|n| *n > 0.0)?).filter(|x| x.is_finite() && *x > 0.0)
     }
+
+    /// p/ν with the oil a sound unit's own heat explains (`nu_sound`).
+    fn x_sound(&self) -> Option<f64> {
+        Some(self.p? / self.nu_sound.filter(|n| *n > 0.0)?).filter(|x| x.is_finite() && *x > 0.0)
+    }
 }
 
-/// How far below what the checks `before` give (%) one stroke `now` is. In a hall warmer than
-/// at the checks before (the median of more than half of them) by at least `warmer` K, with the displacement `d`
-/// known and every check's oil and pressure read, the expected flow is `d` less the leakage
-/// of the checks before — the median of their conductances (d − q)/(p/ν), never below zero —
-/// moved to `now`'s pressure and oil: laminar gap leakage goes as p/ν (Hagen–Poiseuille), so
-/// a hot spell's thinner oil takes its share from the expectation while a relief valve
-/// starting to pass oil shows in full. Else `now.flow` against the median of theirs: a unit
-/// that heats its own oil (a fouling cooler, a path to tank) loses the flow its thinner oil
-/// leaks as part of its fault; a corrected flow from oil thicker than the reference's is
-/// weighed by 1/k there. None with no reference.
+/// How far below what the checks `before` give (%) one stroke `now` is. With the displacement
+/// `d` known and every check's oil and pressure read, the expected flow is `d` less the
+/// leakage of the checks before — the median of their conductances (d − q)/(p/ν), never below
+/// zero — moved to `now`'s pressure and to the oil a sound unit's own heat explains
+/// (`Stroke::nu_sound`): laminar gap leakage goes as p/ν (Hagen–Poiseuille), so a harder job,
+/// and the warmer oil it brings, take their share from the expectation, while a relief valve
+/// starting to pass oil shows in full. In a hall warmer than at the checks before (the median
+/// of more than half of them) by at least `warmer` K, the oil as read is taken: a hot spell
+/// thins it. Else (the heat model cannot tell, or the oil reads well above what a sound unit
+/// settles at) `now.flow` against the median of theirs: a unit that heats its own oil (a
+/// fouling cooler, a path to tank) loses the flow its thinner oil leaks as part of its fault;
+/// a corrected flow from oil thicker than the reference's is weighed by 1/k there. None with
+/// no reference.
 pub fn loss_against(before: &[Stroke], now: &Stroke, d: Option<f64>, warmer: f64) -> Option<f64> {
     // The hall of the checks before: the median of the air temperatures read, where most of
     // them were (one the screen held, a slip such as 92.9 °C for 29.9, leaves the rest).
@@ -63,7 +75,8 @@ pub fn loss_against(before: &[Stroke], now: &Stroke, d: Option<f64>, warmer: f64
         .iter()
         .map(|s| Some(((d? - s.q) / s.x()?).max(0.0)))
         .collect();
-    let (expected, q) = match (hot_spell, d, gs, now.x()) {
+    let x_now = if hot_spell { now.x() } else { now.x_sound() };
+    let (expected, q) = match (hot_spell || now.nu_sound.is_some(), d, gs, x_now) {
         (true, Some(d), Some(gs), Some(x)) => (stats::median(&gs).map(|g| d - g * x), now.q),
         _ => (
             stats::median(&before.iter().map(|s| s.flow).collect::<Vec<_>>()),
@@ -73,7 +86,7 @@ pub fn loss_against(before: &[Stroke], now: &Stroke, d: Option<f64>, warmer: f64
     // A corrected flow from oil thicker than the reference's carries the stopwatch's scatter
     // k times over (its leakage was multiplied by k): its departure is weighed by 1/k, as the
     // leak conductance and the drift detectors weigh it.
-    let weigh = match (hot_spell, now.scale) {
+    let weigh = match (hot_spell || now.nu_sound.is_some(), now.scale) {
         (false, Some(k)) if k > 1.0 && k.is_finite() => 1.0 / k,
         _ => 1.0,
     };
@@ -245,6 +258,7 @@ mod tests {
             nu: Some(1.0 / (oil - 250.0)),
             ambient: Some(ambient),
             scale: None,
+            nu_sound: None,
         };
         let before = [s(95.0, 280.0, 300.0); 4];
         // A hot spell, the hall 10 K warmer and the oil at 350 K: p/ν = 100, leakage 10,
@@ -298,6 +312,7 @@ mod tests {
             nu: Some(1.0),
             ambient: Some(290.0),
             scale,
+            nu_sound: None,
         };
         let before = [s(100.0, Some(1.0)); 4];
         let at = |k: Option<f64>| loss_against(&before, &s(80.0, k), Some(110.0), 5.0).unwrap();
@@ -314,5 +329,35 @@ mod tests {
         assert_eq!(sudden_loss(5.0, 20.0, Some(8.0)), 5.0);
         assert_eq!(sudden_loss(20.0, 16.0, Some(8.0)), 16.0);
         assert_eq!(sudden_loss(9.0, 20.0, None), 9.0);
+    }
+
+    #[test]
+    fn a_harder_job_takes_its_share_from_a_sudden_loss_expectation() {
+        // Worked by hand, as the hot-spell case: displacement 100, four checks at 95 with
+        // p/ν = 50 (conductance 0.1), all in the same hall. A job at 1.4 times the pressure
+        // with the oil a sound unit settles at: p/ν = 70, leakage 7, 93 expected; 93 timed is
+        // no loss, where against the flow before it reads 1 − 93/95 = 2.105 %.
+        let s = |q: f64, p: f64, nu_sound: Option<f64>| Stroke {
+            q,
+            flow: q,
+            p: Some(p),
+            nu: Some(1.0 / 50.0),
+            ambient: Some(290.0),
+            scale: None,
+            nu_sound,
+        };
+        let before = [s(95.0, 1.0, Some(1.0 / 50.0)); 4];
+        let job = loss_against(&before, &s(93.0, 1.4, Some(1.0 / 50.0)), Some(100.0), 5.0);
+        assert!(job.is_some_and(|l| l.abs() < 1e-9), "{job:?}");
+        // Where the heat model cannot tell (or the oil reads well above a sound unit's), the
+        // flow before is the expectation.
+        let plain = loss_against(&before, &s(93.0, 1.4, None), Some(100.0), 5.0).unwrap();
+        assert!((plain - 200.0 / 95.0).abs() < 1e-9, "{plain}");
+        // A relief valve passing oil at that job: 73 timed, 1 − 73/93 = 21.51 %.
+        let bypass = loss_against(&before, &s(73.0, 1.4, Some(1.0 / 50.0)), Some(100.0), 5.0);
+        assert!(
+            bypass.is_some_and(|l| (l - 2000.0 / 93.0).abs() < 1e-9),
+            "{bypass:?}"
+        );
     }
 }
