@@ -556,12 +556,14 @@ fn sudden_losses(
 ) {
     let (fit_judged, leak_margin) = (flow.fit_judged, flow.leak_margin);
     // Sudden loss: two checks in a row well below what the weeks just before them give
-    // (`loss_against`): compared on the flow corrected to the reference conditions where the
-    // leakage is resolved (a hot week moves a leaky pump's timed flow), as timed where it is
-    // not; in a hall warmer than at the checks before, against their leakage moved to the
-    // check's oil. The displacement is the era's fit where it is well determined, else the
-    // rated flow: a loose fit's displacement, carried to a hot week's p/ν, would expect a
-    // loss that hides a real one.
+    // (`loss_against`): their leakage moved to the check's pressure and to the oil a sound
+    // unit's own heat explains (`sound_viscosity`; in a hall warmer than at the checks before,
+    // the oil as read). Where the heat model cannot tell, or the oil reads well above a sound
+    // unit's, compared on the flow corrected to the reference conditions where the leakage is
+    // resolved (a hot week moves a leaky pump's timed flow), as timed where it is not. The
+    // displacement is the era's fit where it is well determined, else the rated flow: a loose
+    // fit's displacement, carried to a hot week's p/ν, would expect a loss that hides a real
+    // one.
     let watch_pct = limits.get(LimitKey::LostFlowPct).watch;
     let warmer = limits.get(LimitKey::HeatRiseDriftK).watch.unwrap_or(5.0);
     let corrected_sudden = leak_resolved == Some(true);
