@@ -377,6 +377,41 @@ mod tests {
         assert!(!shifted_seven(0.4, None).material);
     }
 
+    /// Seven weekly checks of one indicator against its baseline `b` — the first six reading
+    /// `before`, the seventh `after` (`set` puts a reading on a check) — with `event` done two
+    /// days after the sixth, run through the detectors; and the restart.
+    fn six_then_event(
+        b: &Baseline,
+        set: fn(&mut CheckPoint, f64),
+        (before, after): (f64, f64),
+        event: EventKind,
+    ) -> (Vec<CheckPoint>, Restart) {
+        let mut pts: Vec<CheckPoint> = (0..7)
+            .map(|w| {
+                let mut p = CheckPoint {
+                    check_id: w,
+                    at: t("2024-01-08") + chrono::Duration::weeks(w),
+                    ..CheckPoint::default()
+                };
+                set(&mut p, if w < 6 { before } else { after });
+                p
+            })
+            .collect();
+        let restart = Restart {
+            at: pts[5].at + chrono::Duration::days(2),
+            event_id: 1,
+            event,
+        };
+        run_detectors(
+            &mut pts,
+            b,
+            &Limits::builtin(),
+            std::slice::from_ref(&restart),
+            None,
+        );
+        (pts, restart)
+    }
+
     #[test]
     fn a_repair_restarts_the_heat_rise_detectors() {
         // A heat rise of 30 K against a baseline of 20 K (entered by hand) for six checks, a
@@ -384,30 +419,14 @@ mod tests {
         // EWMA starts afresh from the baseline, 20 + 0.2 · (20 − 20) = 20 (by hand), where
         // without the restart it would carry the shift on.
         let b = by_hand(BaselineIndicator::HeatRise, 20.0, 2.0);
-        let mut pts: Vec<CheckPoint> = (0..7)
-            .map(|w| CheckPoint {
-                check_id: w,
-                at: t("2024-01-08") + chrono::Duration::weeks(w),
-                heat_rise_corrected: Some(if w < 6 { 30.0 } else { 20.0 }),
-                heat_rise: Some(if w < 6 { 30.0 } else { 20.0 }),
-                ..CheckPoint::default()
-            })
-            .collect();
-        let repair = Restart {
-            at: pts[5].at + chrono::Duration::days(2),
-            event_id: 1,
-            event: EventKind::Repair,
+        let heat = |p: &mut CheckPoint, v: f64| {
+            p.heat_rise_corrected = Some(v);
+            p.heat_rise = Some(v);
         };
+        let (pts, repair) = six_then_event(&b, heat, (30.0, 20.0), EventKind::Repair);
         assert!(repair
             .flag_kinds()
             .contains(&crate::health::flags::FlagKind::HeatRise));
-        run_detectors(
-            &mut pts,
-            &b,
-            &Limits::builtin(),
-            std::slice::from_ref(&repair),
-            None,
-        );
         assert!(pts[5].drift[0].ewma > 25.0, "{:?}", pts[5].drift);
         assert!(
             (pts[6].drift[0].ewma - 20.0).abs() < 1e-9,
@@ -425,27 +444,11 @@ mod tests {
         // Those six were read through oil the fouled cooler had thinned, where the
         // correction is least sure.
         let b = by_hand(BaselineIndicator::CorrectedFlow, 100.0, 2.5);
-        let mut pts: Vec<CheckPoint> = (0..7)
-            .map(|w| CheckPoint {
-                check_id: w,
-                at: t("2024-01-08") + chrono::Duration::weeks(w),
-                corrected_flow: Some(if w < 6 { 95.0 } else { 100.0 }),
-                flow_scale: Some(1.0),
-                ..CheckPoint::default()
-            })
-            .collect();
-        let clean = Restart {
-            at: pts[5].at + chrono::Duration::days(2),
-            event_id: 1,
-            event: EventKind::CoolerClean,
+        let flow = |p: &mut CheckPoint, v: f64| {
+            p.corrected_flow = Some(v);
+            p.flow_scale = Some(1.0);
         };
-        run_detectors(
-            &mut pts,
-            &b,
-            &Limits::builtin(),
-            std::slice::from_ref(&clean),
-            None,
-        );
+        let (pts, clean) = six_then_event(&b, flow, (95.0, 100.0), EventKind::CoolerClean);
         assert!(pts[5].drift[0].ewma < 97.5, "{:?}", pts[5].drift);
         assert!(
             (pts[6].drift[0].ewma - 100.0).abs() < 1e-9,
