@@ -133,6 +133,16 @@ fn a_tiny_simulated_shop_goes_through_import_status_and_scoring() {
             "water_ingress"
         ]
     );
+    // A fault seen at the check carries the sound unit's checks from its onset; one seen in
+    // the oil does not.
+    for u in units.iter().filter(|u| u["healthy"] == false) {
+        let twin = u["fault"]["twin"].as_array().map_or(0, Vec::len);
+        let at_check = matches!(
+            u["fault"]["kind"].as_str(),
+            Some("pump_wear" | "cooler_fouling" | "relief_bypass")
+        );
+        assert_eq!(twin > 0, at_check, "{u}");
+    }
     let healthy = units
         .iter()
         .find(|u| u["healthy"] == true)
@@ -173,6 +183,14 @@ fn a_tiny_simulated_shop_goes_through_import_status_and_scoring() {
         .as_u64()
         .unwrap_or(0);
     assert!(stroke_acts >= 1, "{}", report["fixed"]);
+    let shared = report["fixed_shared_with_sound"].as_array().unwrap();
+    let compared: Vec<&str> = shared.iter().filter_map(|x| x["kind"].as_str()).collect();
+    assert!(
+        compared
+            .iter()
+            .all(|k| ["pump_wear", "cooler_fouling", "relief_bypass"].contains(k)),
+        "{shared:?}"
+    );
     // The text report names every target.
     let text = ok(d, &["sim-score", "--dir", shop_s]);
     for needle in [

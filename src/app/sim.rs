@@ -29,8 +29,8 @@ use crate::model::{Id, UnitHistory};
 use crate::outfile;
 use crate::physics::cleanliness::{code_from_counts, target_for, Iso4406Code};
 use crate::sim::score::{
-    fixed_rule, score, verdicts, Scores, Timeline, UnitFacts, UnitReadings, Verdict, WeekFlags,
-    ACT, WATCH,
+    fixed_rule, score, shared_with_sound, sound_readings, verdicts, Scores, SoundShare, Timeline,
+    UnitFacts, UnitReadings, Verdict, WeekFlags, ACT, WATCH,
 };
 use crate::sim::shop::{simulate, Params, SimShop};
 use crate::sim::truth::Truth;
@@ -175,6 +175,9 @@ pub struct SimReport {
     pub fixed: Scores,
     /// The targets, judged on sumpbook against the fixed rule.
     pub verdicts: Vec<Verdict>,
+    /// The fixed rule's first acts on faults seen at the check that it raises on the same
+    /// unit without its fault too (for reading its delays; no target rests on it).
+    pub fixed_shared_with_sound: Vec<SoundShare>,
     /// Healthy unit-weeks with an `overdue` flag at act (late planned work), left out of the
     /// scores.
     pub overdue_act_weeks: usize,
@@ -326,6 +329,7 @@ pub fn score_sim(dir: &Path) -> Result<SimReport, AppError> {
     }
     let mut facts = Vec::new();
     let mut fixed = Vec::new();
+    let mut fixed_sound = Vec::new();
     for u in &truth.units {
         let h = by_tag.get(u.unit.as_str()).ok_or_else(|| {
             AppError::BadInput(format!(
@@ -340,10 +344,20 @@ pub fn score_sim(dir: &Path) -> Result<SimReport, AppError> {
             checked[c.0] = true;
         }
         fixed.push(fixed_rule(&r, n));
+        fixed_sound.push(
+            u.fault
+                .as_ref()
+                .filter(|f| !f.twin.is_empty())
+                .map(|f| fixed_rule(&sound_readings(&r, &f.twin), n)),
+        );
         facts.push(UnitFacts { truth: u, checked });
     }
     let sumpbook = score("sumpbook", &truth, &facts, &engine);
-    let fixed = score("fixed limits", &truth, &facts, &fixed);
+    let fixed_scores = score("fixed limits", &truth, &facts, &fixed);
+    let units: Vec<_> = truth.units.iter().collect();
+    let fixed_shared_with_sound =
+        shared_with_sound(&units, &fixed_scores.detections, &fixed, &fixed_sound);
+    let fixed = fixed_scores;
     let verdicts = verdicts(&sumpbook, &fixed);
     Ok(SimReport {
         set: truth.set.clone(),
@@ -353,6 +367,7 @@ pub fn score_sim(dir: &Path) -> Result<SimReport, AppError> {
         sumpbook,
         fixed,
         verdicts,
+        fixed_shared_with_sound,
         overdue_act_weeks,
     })
 }

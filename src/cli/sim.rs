@@ -268,6 +268,18 @@ pub fn print_report(r: &SimReport, out: &mut dyn Write) -> std::io::Result<()> {
             b[2]
         )?;
     }
+    for sh in &r.fixed_shared_with_sound {
+        writeln!(
+            out,
+            "  fixed rule, {}: first act raised on the same unit without the fault too in {} of {}; \
+             counting the first act it does not share, median delay {}",
+            sh.kind.as_str(),
+            sh.shared,
+            sh.compared,
+            sh.median_delay_own
+                .map_or_else(|| "never".to_string(), |d| format!("{d:+.1} wk"))
+        )?;
+    }
     // The faults left out of the found counts and delays above (the starred counts).
     for d in e.detections.iter().filter(|d| d.chance != Chance::Judged) {
         let shown = |x: Option<&Detection>| match x {

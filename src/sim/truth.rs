@@ -100,6 +100,20 @@ pub struct Fault {
     /// The event kind that records the repair (`rebuild`, `repair`, `cooler_clean`,
     /// `filter_change`, `fluid_change`).
     pub repair_event: Option<String>,
+    /// For a fault seen at the check (pump wear, cooler fouling, relief valve bypass): each
+    /// check from the onset to the repair as the same unit without the fault would have read,
+    /// so a rule's act on the faulty unit can be told from one it raises on the sound unit too.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub twin: Vec<TwinCheck>,
+}
+
+/// One check of a faulty unit as the same unit without its fault would have read it: the same
+/// person, stopwatch and thermometer, at the oil and flow the sound unit has.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TwinCheck {
+    pub week: usize,
+    pub stroke_time_s: f64,
+    pub reservoir_temp_c: f64,
 }
 
 /// One unit of the simulated shop.

@@ -584,5 +584,8 @@ pub fn verdicts(e: &Scores, f: &Scores) -> Vec<Verdict> {
     out
 }
 
+mod sound;
+pub use sound::{shared_with_sound, sound_readings, SoundShare};
+
 #[cfg(test)]
 mod tests;

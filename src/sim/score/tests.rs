@@ -4,7 +4,7 @@ use super::*;
 use crate::sim::truth::{Fault, Slip};
 use chrono::NaiveDate;
 
-fn wf(level: u8) -> WeekFlags {
+pub(super) fn wf(level: u8) -> WeekFlags {
     WeekFlags {
         level,
         act_kinds: if level == ACT {
@@ -90,7 +90,29 @@ fn a_fixed_rule_stroke_reference_needs_four_strokes() {
     assert!(fixed_rule(&r, 2).iter().all(|w| w.level == NONE));
 }
 
-fn truth_of(units: Vec<UnitTruth>, slips: Vec<Slip>, weeks: usize) -> Truth {
+/// A unit with a planted fault of `kind` from `onset`, detectable in `detectable`, repaired
+/// in `repair` (left in place with `None`).
+pub(super) fn with_fault(
+    unit: &str,
+    kind: FaultKind,
+    (onset, detectable): (usize, usize),
+    repair: Option<(usize, &str)>,
+) -> UnitTruth {
+    UnitTruth {
+        unit: unit.into(),
+        healthy: false,
+        fault: Some(Fault {
+            kind,
+            onset_week: onset,
+            detectable_week: detectable,
+            repair_week: repair.map(|r| r.0),
+            repair_event: repair.map(|r| r.1.to_string()),
+            twin: vec![],
+        }),
+    }
+}
+
+pub(super) fn truth_of(units: Vec<UnitTruth>, slips: Vec<Slip>, weeks: usize) -> Truth {
     Truth {
         set: "t".into(),
         seed: 0,
@@ -120,6 +142,7 @@ fn scores_of_a_hand_made_fleet() {
             detectable_week: 5,
             repair_week: Some(8),
             repair_event: Some("rebuild".into()),
+            twin: vec![],
         }),
     };
     let slip = Slip {
@@ -187,6 +210,7 @@ fn after_a_repair_only_the_flags_the_fault_can_raise_are_waited_for() {
             detectable_week: 2,
             repair_week: Some(4),
             repair_event: Some("repair".into()),
+            twin: vec![],
         }),
     };
     let truth = truth_of(vec![faulty], vec![], 8);
@@ -208,17 +232,7 @@ fn after_a_repair_only_the_flags_the_fault_can_raise_are_waited_for() {
     assert_eq!(s.checks_to_clear_any, vec![None]);
     // A fault is found only by a flag it can raise: a dirt ingress under a summer's
     // stroke-time act is not found by it.
-    let dirt = UnitTruth {
-        unit: "D".into(),
-        healthy: false,
-        fault: Some(Fault {
-            kind: FaultKind::ParticleIngress,
-            onset_week: 1,
-            detectable_week: 3,
-            repair_week: None,
-            repair_event: None,
-        }),
-    };
+    let dirt = with_fault("D", FaultKind::ParticleIngress, (1, 3), None);
     let truth = truth_of(vec![dirt], vec![], 6);
     let facts = vec![UnitFacts {
         truth: &truth.units[0],
@@ -246,6 +260,7 @@ fn a_fault_never_at_act_is_missed_and_fails_its_target() {
             detectable_week: 2,
             repair_week: None,
             repair_event: None,
+            twin: vec![],
         }),
     };
     let truth = truth_of(vec![faulty], vec![], 5);
@@ -283,17 +298,12 @@ fn a_fault_never_at_act_is_missed_and_fails_its_target() {
 /// A relief valve bypass from `onset` repaired in `repair`, on a unit checked in the weeks
 /// of `checked` (of 10).
 fn bypass(unit: &str, onset: usize, repair: usize) -> UnitTruth {
-    UnitTruth {
-        unit: unit.into(),
-        healthy: false,
-        fault: Some(Fault {
-            kind: FaultKind::ReliefBypass,
-            onset_week: onset,
-            detectable_week: onset,
-            repair_week: Some(repair),
-            repair_event: Some("repair".into()),
-        }),
-    }
+    with_fault(
+        unit,
+        FaultKind::ReliefBypass,
+        (onset, onset),
+        Some((repair, "repair")),
+    )
 }
 
 #[test]

@@ -14,7 +14,7 @@ use crate::model::{
 };
 use crate::physics::cleanliness::{code_from_counts, ranges_above};
 use crate::physics::viscosity::Walther;
-use crate::sim::truth::{Fault, FaultKind, Slip, UnitTruth};
+use crate::sim::truth::{Fault, FaultKind, Slip, TwinCheck, UnitTruth};
 
 /// Where a unit's week-by-week state is kept while it is simulated.
 struct Run {
@@ -92,6 +92,8 @@ struct Week {
     oil: Walther,
     vf: f64,
     t_ss: f64,
+    /// Where the oil of the same unit without its fault would settle.
+    t_ss_sound: f64,
     level: [f64; 3],
     water_true: f64,
 }
@@ -147,6 +149,7 @@ pub(super) fn simulate_unit(
     let route_seconds = 6 * 3600 + i as i64 * 150;
     let mut detectable = None;
     let mut slips: Vec<SlipMade> = Vec::new();
+    let mut twin: Vec<TwinCheck> = Vec::new();
 
     for (w, &hall) in weather.iter().enumerate() {
         let day = p.week_day(w);
@@ -234,7 +237,14 @@ pub(super) fn simulate_unit(
                 shut,
                 filter_alert,
             };
-            record_check(p, &pl, &ids, &check, &wk, &run, r, &mut slips, shop);
+            // A fault seen at the check: what the same check would have read without it.
+            let seen_at_check = planted.as_ref().is_some_and(|pf| {
+                !sample_borne(pf.kind) && w >= pf.onset && pf.repair.is_none_or(|rw| w < rw)
+            });
+            let twin_now = seen_at_check.then_some(&mut twin);
+            record_check(
+                p, &pl, &ids, &check, &wk, &run, r, &mut slips, twin_now, shop,
+            );
             if run.sample_pending {
                 let beyond = record_sample(
                     p,
@@ -262,7 +272,7 @@ pub(super) fn simulate_unit(
         week_passes(&pl, &ids, day, hours_week, &mut run, r, shop);
     }
 
-    record_truth(p, &ids, planted, detectable, slips, shop)
+    record_truth(p, &ids, (planted, detectable, twin), slips, shop)
 }
 
 /// The unit's machine and its register entry, and the oil in service when the record begins.
@@ -455,6 +465,7 @@ fn conditions(
     )
     .map_err(|e| e.to_string())?;
     let t_ss = pl.settle(amb, p_job, duty, &f, &oil);
+    let t_ss_sound = pl.settle(amb, p_job, duty, &healthy_now, &oil_now);
     // Particles: the unit's level, cleaner for a few weeks after a filter change, dirtier
     // for a few days after new oil goes in, plus an ingress.
     let filter_effect = -0.6 * (-run.weeks_since_filter / 4.0).exp();
@@ -470,6 +481,7 @@ fn conditions(
         oil,
         vf,
         t_ss,
+        t_ss_sound,
         level,
         water_true,
     })
@@ -497,30 +509,45 @@ fn record_check(
     run: &Run,
     r: &mut Rng,
     slips: &mut Vec<SlipMade>,
+    twin: Option<&mut Vec<TwinCheck>>,
     shop: &mut SimShop,
 ) {
     let person = (ck.w / 4 + ck.i / 40) % PEOPLE.len();
     // The oil at the moment of the check: seldom exactly settled; after a shutdown it has only
     // just been started.
-    let t_oil = if ck.shut {
-        wk.amb + 0.35 * (wk.t_ss - wk.amb) + 1.0 * r.normal()
-    } else {
-        wk.t_ss + 1.5 * r.normal()
+    let unsettled = r.normal();
+    let oil_at = |settled: f64| {
+        if ck.shut {
+            wk.amb + 0.35 * (settled - wk.amb) + 1.0 * unsettled
+        } else {
+            settled + 1.5 * unsettled
+        }
     };
+    let t_oil = oil_at(wk.t_ss);
     let p_now = wk.p_job * (1.0 + 0.015 * r.normal());
     let q = pl.flow(p_now, t_oil, &wk.f, &wk.oil);
-    let stroke_t = pl.volume / q * (1.0 + HABIT[person] + pl.stopwatch_sd * r.normal());
+    let timing = 1.0 + HABIT[person] + pl.stopwatch_sd * r.normal();
+    let stroke_t = pl.volume / q * timing;
     let case_drain =
         matches!(pl.pump, PumpKind::PistonFixed | PumpKind::PistonVariable).then(|| {
             let leak = pl.leak(p_now, t_oil, wk.f.g, &wk.oil);
             Flow((pl.case_share * leak + pl.case_lube) * (1.0 + 0.05 * r.normal())).lpm()
         });
+    let thermometer = 0.3 * r.normal();
+    // The same check on the same unit without its fault: the same person, stopwatch and
+    // thermometer, at the oil and flow the sound unit has (what the fixed rule would have read
+    // there).
+    if let Some(twin) = twin {
+        let t_sound = oil_at(wk.t_ss_sound);
+        let q_sound = pl.flow(p_now, t_sound, &wk.healthy_now, &wk.oil_now);
+        twin.push(TwinCheck {
+            week: ck.w,
+            stroke_time_s: round_to(pl.volume / q_sound * timing, 0.01),
+            reservoir_temp_c: round_to(t_sound + thermometer, 0.1),
+        });
+    }
     let mut vals: Vec<(&'static str, f64, f64)> = vec![
-        (
-            "reservoir_temp_c",
-            round_to(t_oil + 0.3 * r.normal(), 0.1),
-            0.1,
-        ),
+        ("reservoir_temp_c", round_to(t_oil + thermometer, 0.1), 0.1),
         (
             "ambient_temp_c",
             round_to(wk.amb + 0.4 * r.normal(), 0.1),
@@ -704,8 +731,7 @@ fn week_passes(
 fn record_truth(
     p: &Params,
     ids: &Ids,
-    planted: Option<Planted>,
-    detectable: Option<usize>,
+    (planted, detectable, twin): (Option<Planted>, Option<usize>, Vec<TwinCheck>),
     slips: Vec<SlipMade>,
     shop: &mut SimShop,
 ) -> Result<(), String> {
@@ -726,6 +752,7 @@ fn record_truth(
                 }
                 .to_string()
             }),
+            twin,
         }),
         (Some(pf), None) => {
             return Err(format!(
