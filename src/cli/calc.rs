@@ -212,197 +212,258 @@ fn emit<T: serde::Serialize>(
 /// Runs `sumpbook calc …`, writing the result to `out`.
 pub fn run(args: &CalcArgs, out: &mut dyn std::io::Write) -> Result<(), Failure> {
     match &args.command {
-        CalcCommand::Vi { kv40, kv100 } => {
-            let kv40 = arg("KV40", parse_viscosity(kv40))?;
-            let kv100 = arg("KV100", parse_viscosity(kv100))?;
-            let r = calc::vi(kv40, kv100)?;
-            let human = format!(
-                "VI {} ({:.2}, procedure {})",
-                r.vi_rounded, r.vi, r.procedure
-            );
-            emit(out, args.json, &r, human)
-        }
+        CalcCommand::Vi { kv40, kv100 } => vi(kv40, kv100, args.json, out),
         CalcCommand::Visc {
             kv40,
             kv100,
             at,
             reading,
             reading_at,
-        } => {
-            let kv40 = arg("--kv40", parse_viscosity(kv40))?;
-            let kv100 = arg("--kv100", parse_viscosity(kv100))?;
-            match (at, reading, reading_at) {
-                (Some(at), None, None) => {
-                    let t = arg("--at", parse_temperature(at))?;
-                    let r = calc::visc_at(kv40, kv100, t)?;
-                    let human = format!(
-                        "{:.2} cSt at {} / {} (ASTM D341 line through KV40 {} and KV100 {})",
-                        r.cst,
-                        show(Quantity::Temperature(t), Unit::Celsius),
-                        show(Quantity::Temperature(t), Unit::Fahrenheit),
-                        show(Quantity::Viscosity(kv40), Unit::Centistoke),
-                        show(Quantity::Viscosity(kv100), Unit::Centistoke),
-                    );
-                    emit(out, args.json, &r, human)
-                }
-                (None, Some(reading), Some(reading_at)) => {
-                    let v = arg("--reading", parse_viscosity(reading))?;
-                    let t = arg("--reading-at", parse_temperature(reading_at))?;
-                    let r = calc::kv40_from_reading(kv40, kv100, v, t)?;
-                    let human = format!(
-                        "KV40 equivalent {:.2} cSt ({} at {}, along the D341 slope of KV40 {} / KV100 {})",
-                        r.kv40_cst,
-                        show(Quantity::Viscosity(v), Unit::Centistoke),
-                        show(Quantity::Temperature(t), Unit::Celsius),
-                        show(Quantity::Viscosity(kv40), Unit::Centistoke),
-                        show(Quantity::Viscosity(kv100), Unit::Centistoke),
-                    );
-                    emit(out, args.json, &r, human)
-                }
-                _ => Err(Failure::bad_input(
-                    "give --at TEMP for the viscosity at a temperature, or --reading CST --reading-at TEMP \
-                     for the KV40 equivalent of a reading",
-                )),
-            }
-        }
+        } => visc(kv40, kv100, at, reading, reading_at, args.json, out),
         CalcCommand::Iso4406 {
             c4,
             c6,
             c14,
             counted: raw,
-        } => {
-            let counts = [
-                count("C4 (≥4 µm)", c4)?,
-                count("C6 (≥6 µm)", c6)?,
-                count("C14 (≥14 µm)", c14)?,
-            ];
-            let n = match raw.as_deref() {
-                None => None,
-                Some([a, b, c]) => Some([counted("N4", a)?, counted("N6", b)?, counted("N14", c)?]),
-                Some(_) => {
-                    return Err(Failure::bad_input(
-                        "--counted takes three numbers: N4 N6 N14",
-                    ))
-                }
-            };
-            let r = calc::iso4406(counts, n)?;
-            let human = format!("ISO 4406 {}", r.code);
-            emit(out, args.json, &r, human)
-        }
+        } => iso4406(c4, c6, c14, raw, args.json, out),
         CalcCommand::Flow {
             bore,
             stroke,
             time,
             rod,
             retract,
-        } => {
-            let input = calc::FlowInput {
-                bore: arg("--bore", parse_length(bore))?,
-                stroke: arg("--stroke", parse_length(stroke))?,
-                time: arg("--time", parse_time(time))?,
-                rod: rod
-                    .as_deref()
-                    .map(|r| arg("--rod", parse_length(r)))
-                    .transpose()?,
-                retract: *retract,
-            };
-            let r = calc::flow(&input)?;
-            let human = format!(
-                "{:.2} L/min ({:.2} GPM); {:.3} L ({:.3} gal) per stroke",
-                r.lpm,
-                r.gpm,
-                r.litres,
-                r.litres / crate::units::M3_PER_US_GAL / 1000.0
-            );
-            emit(out, args.json, &r, human)
-        }
-        CalcCommand::Power { flow, pressure } => {
-            let q = arg("--flow", parse_flow(flow))?;
-            let p = arg("--pressure", parse_pressure(pressure))?;
-            let r = calc::power(q, p)?;
-            let human = format!(
-                "{:.2} hp ({:.2} kW); as heat {:.0} BTU/h",
-                r.hp, r.kw, r.btu_per_h
-            );
-            emit(out, args.json, &r, human)
-        }
+        } => flow(bore, stroke, time, rod, retract, args.json, out),
+        CalcCommand::Power { flow, pressure } => power(flow, pressure, args.json, out),
         CalcCommand::Force {
             bore,
             rod,
             pressure,
             load,
-        } => {
-            let bore = arg("--bore", parse_length(bore))?;
-            let rod = rod
-                .as_deref()
-                .map(|r| arg("--rod", parse_length(r)))
-                .transpose()?;
-            let question = match (pressure, load) {
-                (Some(p), None) => {
-                    calc::ForceQuestion::AtPressure(arg("--pressure", parse_pressure(p))?)
-                }
-                (None, Some(l)) => calc::ForceQuestion::ForLoad(arg("--load", parse_force(l))?),
-                _ => return Err(Failure::bad_input("give --pressure or --load")),
-            };
-            let r = calc::force(bore, rod, question)?;
-            let side = if rod.is_some() {
-                "annulus"
-            } else {
-                "full bore"
-            };
-            let human = match question {
-                calc::ForceQuestion::AtPressure(_) => format!(
-                    "{:.2} kN ({:.0} lbf) at {:.1} bar ({:.0} psi) on {:.1} mm² ({:.3} in², {side})",
-                    r.kn, r.lbf, r.bar, r.psi, r.area_mm2, r.area_in2
-                ),
-                calc::ForceQuestion::ForLoad(_) => format!(
-                    "{:.1} bar ({:.0} psi) for {:.2} kN ({:.0} lbf) on {:.1} mm² ({:.3} in², {side}); friction and back pressure not included",
-                    r.bar, r.psi, r.kn, r.lbf, r.area_mm2, r.area_in2
-                ),
-            };
-            emit(out, args.json, &r, human)
-        }
+        } => force(bore, rod, pressure, load, args.json, out),
         CalcCommand::Velocity {
             flow,
             id,
             line,
             range,
-        } => {
-            let q = arg("--flow", parse_flow(flow))?;
-            let d = arg("--id", parse_length(id))?;
-            let line = line.map(|l| match l {
-                Line::Suction => calc::LineKind::Suction,
-                Line::Return => calc::LineKind::Return,
-                Line::Pressure => calc::LineKind::Pressure,
-            });
-            let range = match range.as_deref() {
-                None => None,
-                Some([lo, hi]) => Some((
-                    arg("--range LOW", parse_speed(lo))?,
-                    arg("--range HIGH", parse_speed(hi))?,
-                )),
-                Some(_) => return Err(Failure::bad_input("--range takes two speeds: LOW HIGH")),
-            };
-            let r = calc::velocity(q, d, line, range)?;
-            let mut human = format!("{:.2} m/s ({:.1} ft/s)", r.m_s, r.ft_s);
-            if let (Some(lo), Some(hi), Some(v)) = (r.low_m_s, r.high_m_s, r.verdict) {
-                let whose = if range.is_some() {
-                    "the range given".to_string()
-                } else {
-                    format!(
-                        "the usual range for a {} line (common practice)",
-                        format!("{:?}", r.line.unwrap_or(calc::LineKind::Pressure)).to_lowercase()
-                    )
-                };
-                human.push_str(&format!(
-                    "; {v} {whose}, {lo:.1}–{hi:.1} m/s ({:.0}–{:.0} ft/s)",
-                    lo / crate::units::M_PER_FT,
-                    hi / crate::units::M_PER_FT
-                ));
-            }
-            emit(out, args.json, &r, human)
-        }
+        } => velocity(flow, id, line, range, args.json, out),
     }
+}
+
+/// The viscosity index of KV40 and KV100.
+fn vi(kv40: &str, kv100: &str, json: bool, out: &mut dyn std::io::Write) -> Result<(), Failure> {
+    let kv40 = arg("KV40", parse_viscosity(kv40))?;
+    let kv100 = arg("KV100", parse_viscosity(kv100))?;
+    let r = calc::vi(kv40, kv100)?;
+    let human = format!(
+        "VI {} ({:.2}, procedure {})",
+        r.vi_rounded, r.vi, r.procedure
+    );
+    emit(out, json, &r, human)
+}
+
+/// The viscosity at a temperature, or the KV40 equivalent of a reading.
+fn visc(
+    kv40: &str,
+    kv100: &str,
+    at: &Option<String>,
+    reading: &Option<String>,
+    reading_at: &Option<String>,
+    json: bool,
+    out: &mut dyn std::io::Write,
+) -> Result<(), Failure> {
+    let kv40 = arg("--kv40", parse_viscosity(kv40))?;
+    let kv100 = arg("--kv100", parse_viscosity(kv100))?;
+    match (at, reading, reading_at) {
+        (Some(at), None, None) => {
+            let t = arg("--at", parse_temperature(at))?;
+            let r = calc::visc_at(kv40, kv100, t)?;
+            let human = format!(
+                "{:.2} cSt at {} / {} (ASTM D341 line through KV40 {} and KV100 {})",
+                r.cst,
+                show(Quantity::Temperature(t), Unit::Celsius),
+                show(Quantity::Temperature(t), Unit::Fahrenheit),
+                show(Quantity::Viscosity(kv40), Unit::Centistoke),
+                show(Quantity::Viscosity(kv100), Unit::Centistoke),
+            );
+            emit(out, json, &r, human)
+        }
+        (None, Some(reading), Some(reading_at)) => {
+            let v = arg("--reading", parse_viscosity(reading))?;
+            let t = arg("--reading-at", parse_temperature(reading_at))?;
+            let r = calc::kv40_from_reading(kv40, kv100, v, t)?;
+            let human = format!(
+                "KV40 equivalent {:.2} cSt ({} at {}, along the D341 slope of KV40 {} / KV100 {})",
+                r.kv40_cst,
+                show(Quantity::Viscosity(v), Unit::Centistoke),
+                show(Quantity::Temperature(t), Unit::Celsius),
+                show(Quantity::Viscosity(kv40), Unit::Centistoke),
+                show(Quantity::Viscosity(kv100), Unit::Centistoke),
+            );
+            emit(out, json, &r, human)
+        }
+        _ => Err(Failure::bad_input(
+            "give --at TEMP for the viscosity at a temperature, or --reading CST --reading-at TEMP \
+             for the KV40 equivalent of a reading",
+        )),
+    }
+}
+
+/// The ISO 4406 code of three counts per mL, with the particles counted where given.
+fn iso4406(
+    c4: &str,
+    c6: &str,
+    c14: &str,
+    raw: &Option<Vec<String>>,
+    json: bool,
+    out: &mut dyn std::io::Write,
+) -> Result<(), Failure> {
+    let counts = [
+        count("C4 (≥4 µm)", c4)?,
+        count("C6 (≥6 µm)", c6)?,
+        count("C14 (≥14 µm)", c14)?,
+    ];
+    let n = match raw.as_deref() {
+        None => None,
+        Some([a, b, c]) => Some([counted("N4", a)?, counted("N6", b)?, counted("N14", c)?]),
+        Some(_) => {
+            return Err(Failure::bad_input(
+                "--counted takes three numbers: N4 N6 N14",
+            ))
+        }
+    };
+    let r = calc::iso4406(counts, n)?;
+    let human = format!("ISO 4406 {}", r.code);
+    emit(out, json, &r, human)
+}
+
+/// The effective flow of a timed stroke.
+fn flow(
+    bore: &str,
+    stroke: &str,
+    time: &str,
+    rod: &Option<String>,
+    retract: &bool,
+    json: bool,
+    out: &mut dyn std::io::Write,
+) -> Result<(), Failure> {
+    let input = calc::FlowInput {
+        bore: arg("--bore", parse_length(bore))?,
+        stroke: arg("--stroke", parse_length(stroke))?,
+        time: arg("--time", parse_time(time))?,
+        rod: rod
+            .as_deref()
+            .map(|r| arg("--rod", parse_length(r)))
+            .transpose()?,
+        retract: *retract,
+    };
+    let r = calc::flow(&input)?;
+    let human = format!(
+        "{:.2} L/min ({:.2} GPM); {:.3} L ({:.3} gal) per stroke",
+        r.lpm,
+        r.gpm,
+        r.litres,
+        r.litres / crate::units::M3_PER_US_GAL / 1000.0
+    );
+    emit(out, json, &r, human)
+}
+
+/// Hydraulic power, and its heat across a relief valve.
+fn power(
+    flow: &str,
+    pressure: &str,
+    json: bool,
+    out: &mut dyn std::io::Write,
+) -> Result<(), Failure> {
+    let q = arg("--flow", parse_flow(flow))?;
+    let p = arg("--pressure", parse_pressure(pressure))?;
+    let r = calc::power(q, p)?;
+    let human = format!(
+        "{:.2} hp ({:.2} kW); as heat {:.0} BTU/h",
+        r.hp, r.kw, r.btu_per_h
+    );
+    emit(out, json, &r, human)
+}
+
+/// Cylinder force at a pressure, or the pressure a load needs.
+fn force(
+    bore: &str,
+    rod: &Option<String>,
+    pressure: &Option<String>,
+    load: &Option<String>,
+    json: bool,
+    out: &mut dyn std::io::Write,
+) -> Result<(), Failure> {
+    let bore = arg("--bore", parse_length(bore))?;
+    let rod = rod
+        .as_deref()
+        .map(|r| arg("--rod", parse_length(r)))
+        .transpose()?;
+    let question = match (pressure, load) {
+        (Some(p), None) => calc::ForceQuestion::AtPressure(arg("--pressure", parse_pressure(p))?),
+        (None, Some(l)) => calc::ForceQuestion::ForLoad(arg("--load", parse_force(l))?),
+        _ => return Err(Failure::bad_input("give --pressure or --load")),
+    };
+    let r = calc::force(bore, rod, question)?;
+    let side = if rod.is_some() {
+        "annulus"
+    } else {
+        "full bore"
+    };
+    let human = match question {
+        calc::ForceQuestion::AtPressure(_) => format!(
+            "{:.2} kN ({:.0} lbf) at {:.1} bar ({:.0} psi) on {:.1} mm² ({:.3} in², {side})",
+            r.kn, r.lbf, r.bar, r.psi, r.area_mm2, r.area_in2
+        ),
+        calc::ForceQuestion::ForLoad(_) => format!(
+            "{:.1} bar ({:.0} psi) for {:.2} kN ({:.0} lbf) on {:.1} mm² ({:.3} in², {side}); friction and back pressure not included",
+            r.bar, r.psi, r.kn, r.lbf, r.area_mm2, r.area_in2
+        ),
+    };
+    emit(out, json, &r, human)
+}
+
+/// Mean oil speed in a line against its usual range or the one given.
+fn velocity(
+    flow: &str,
+    id: &str,
+    line: &Option<Line>,
+    range: &Option<Vec<String>>,
+    json: bool,
+    out: &mut dyn std::io::Write,
+) -> Result<(), Failure> {
+    let q = arg("--flow", parse_flow(flow))?;
+    let d = arg("--id", parse_length(id))?;
+    let line = line.map(|l| match l {
+        Line::Suction => calc::LineKind::Suction,
+        Line::Return => calc::LineKind::Return,
+        Line::Pressure => calc::LineKind::Pressure,
+    });
+    let range = match range.as_deref() {
+        None => None,
+        Some([lo, hi]) => Some((
+            arg("--range LOW", parse_speed(lo))?,
+            arg("--range HIGH", parse_speed(hi))?,
+        )),
+        Some(_) => return Err(Failure::bad_input("--range takes two speeds: LOW HIGH")),
+    };
+    let r = calc::velocity(q, d, line, range)?;
+    let mut human = format!("{:.2} m/s ({:.1} ft/s)", r.m_s, r.ft_s);
+    if let (Some(lo), Some(hi), Some(v)) = (r.low_m_s, r.high_m_s, r.verdict) {
+        let whose = if range.is_some() {
+            "the range given".to_string()
+        } else {
+            format!(
+                "the usual range for a {} line (common practice)",
+                format!("{:?}", r.line.unwrap_or(calc::LineKind::Pressure)).to_lowercase()
+            )
+        };
+        human.push_str(&format!(
+            "; {v} {whose}, {lo:.1}–{hi:.1} m/s ({:.0}–{:.0} ft/s)",
+            lo / crate::units::M_PER_FT,
+            hi / crate::units::M_PER_FT
+        ));
+    }
+    emit(out, json, &r, human)
 }
 
 #[cfg(test)]
