@@ -177,188 +177,217 @@ const YES_NO: [&str; 2] = ["no", "yes"];
 /// The fields of a setup record (`id` `None`: a new one), filled with its values.
 pub fn record_fields(shop: &Shop, kind: Record, id: Option<Id>) -> Result<Vec<Field>, AppError> {
     let store = shop.store();
-    let system = settings(store)?.unit_system;
-    let missing = || AppError::BadInput("that record is no longer stored".to_string());
-    Ok(match kind {
-        Record::Machine => {
-            let m = match id {
-                Some(id) => store
-                    .machine(id)
-                    .map_err(store_error)?
-                    .ok_or_else(missing)?,
-                None => Machine {
-                    id: 0,
-                    tag: String::new(),
-                    name: String::new(),
-                    kind: "press".into(),
-                    route_order: store
-                        .machines()
-                        .map_err(store_error)?
-                        .iter()
-                        .map(|m| m.route_order)
-                        .max()
-                        .unwrap_or(0)
-                        + 10,
-                    notes: String::new(),
-                    archived: false,
-                },
-            };
-            vec![
-                Field::text("tag", "Tag")
-                    .with_value(m.tag)
-                    .with_placeholder("e.g. PR-07"),
-                Field::text("name", "Name").with_value(m.name),
-                Field::text("kind", "Kind")
-                    .with_value(m.kind)
-                    .with_hint("press, press brake, …"),
-                Field::text("route_order", "Route order").with_value(m.route_order.to_string()),
-                Field::text("notes", "Notes").with_value(m.notes),
-                Field::choice(
-                    "archived",
-                    "Archived",
-                    &YES_NO,
-                    YES_NO[usize::from(m.archived)],
-                ),
-            ]
-        }
-        Record::Unit => {
-            let machines = store.machines().map_err(store_error)?;
-            let fluids = store.fluids().map_err(store_error)?;
-            let u = match id {
-                Some(id) => store.unit(id).map_err(store_error)?.ok_or_else(missing)?,
-                None => Unit {
-                    id: 0,
-                    machine_id: machines.first().map(|m| m.id).unwrap_or(0),
-                    tag: String::new(),
-                    pump_kind: PumpKind::Gear,
-                    rated_flow: None,
-                    relief: None,
-                    reservoir: None,
-                    sensitive_component: SensitiveComponent::Cylinder,
-                    fluid_id: None,
-                    stroke: None,
-                    route_order: store
-                        .units()
-                        .map_err(store_error)?
-                        .iter()
-                        .map(|u| u.route_order)
-                        .max()
-                        .unwrap_or(0)
-                        + 10,
-                    archived: false,
-                },
-            };
-            let machine_tags: Vec<&str> = machines.iter().map(|m| m.tag.as_str()).collect();
-            let mtag = machines
+    match kind {
+        Record::Machine => machine_fields(store, id),
+        Record::Unit => unit_fields(store, id, settings(store)?.unit_system),
+        Record::Fluid => fluid_fields(store, id),
+    }
+}
+
+/// What a form shows for a record the store no longer holds.
+fn no_longer_stored() -> AppError {
+    AppError::BadInput("that record is no longer stored".to_string())
+}
+
+/// A machine's fields; a new one is a press at the end of the route.
+fn machine_fields(store: &Store, id: Option<Id>) -> Result<Vec<Field>, AppError> {
+    let m = match id {
+        Some(id) => store
+            .machine(id)
+            .map_err(store_error)?
+            .ok_or_else(no_longer_stored)?,
+        None => Machine {
+            id: 0,
+            tag: String::new(),
+            name: String::new(),
+            kind: "press".into(),
+            route_order: store
+                .machines()
+                .map_err(store_error)?
                 .iter()
-                .find(|m| m.id == u.machine_id)
-                .map(|m| m.tag.clone())
-                .unwrap_or_default();
-            let mut fluid_names: Vec<&str> = vec![NO_FLUID];
-            fluid_names.extend(fluids.iter().map(|f| f.name.as_str()));
-            let fname = u
-                .fluid_id
-                .and_then(|id| fluids.iter().find(|f| f.id == id))
-                .map(|f| f.name.clone())
-                .unwrap_or(NO_FLUID.into());
-            let pumps: Vec<&str> = PumpKind::ALL.iter().map(|k| pump_words(*k)).collect();
-            let comps: Vec<&str> = SensitiveComponent::ALL
+                .map(|m| m.route_order)
+                .max()
+                .unwrap_or(0)
+                + 10,
+            notes: String::new(),
+            archived: false,
+        },
+    };
+    let fields = vec![
+        Field::text("tag", "Tag")
+            .with_value(m.tag)
+            .with_placeholder("e.g. PR-07"),
+        Field::text("name", "Name").with_value(m.name),
+        Field::text("kind", "Kind")
+            .with_value(m.kind)
+            .with_hint("press, press brake, …"),
+        Field::text("route_order", "Route order").with_value(m.route_order.to_string()),
+        Field::text("notes", "Notes").with_value(m.notes),
+        Field::choice(
+            "archived",
+            "Archived",
+            &YES_NO,
+            YES_NO[usize::from(m.archived)],
+        ),
+    ];
+    Ok(fields)
+}
+
+/// A unit's fields, quantities in the shop's unit system; a new one is on the first machine,
+/// at the end of the route.
+fn unit_fields(store: &Store, id: Option<Id>, system: UnitSystem) -> Result<Vec<Field>, AppError> {
+    let machines = store.machines().map_err(store_error)?;
+    let fluids = store.fluids().map_err(store_error)?;
+    let u = match id {
+        Some(id) => store
+            .unit(id)
+            .map_err(store_error)?
+            .ok_or_else(no_longer_stored)?,
+        None => Unit {
+            id: 0,
+            machine_id: machines.first().map(|m| m.id).unwrap_or(0),
+            tag: String::new(),
+            pump_kind: PumpKind::Gear,
+            rated_flow: None,
+            relief: None,
+            reservoir: None,
+            sensitive_component: SensitiveComponent::Cylinder,
+            fluid_id: None,
+            stroke: None,
+            route_order: store
+                .units()
+                .map_err(store_error)?
                 .iter()
-                .map(|k| component_words(*k))
-                .collect();
-            let dirs: Vec<&str> = StrokeDirection::ALL
-                .iter()
-                .map(|k| direction_words(*k))
-                .collect();
-            let s = u.stroke;
-            vec![
-                Field::choice("machine", "Machine", &machine_tags, &mtag),
-                Field::text("tag", "Unit tag")
-                    .with_value(u.tag)
-                    .with_placeholder("e.g. PR-07-A"),
-                Field::choice("pump_kind", "Pump", &pumps, pump_words(u.pump_kind)),
-                Field::quantity("rated_flow", "Rated pump flow", Kind::Flow, system)
-                    .with_value(q_text(Kind::Flow, u.rated_flow.map(|q| q.si()), system)),
-                Field::quantity("relief", "Relief setting", Kind::Pressure, system)
-                    .with_value(q_text(Kind::Pressure, u.relief.map(|p| p.si()), system)),
-                Field::quantity("reservoir", "Reservoir volume", Kind::Volume, system)
-                    .with_value(q_text(Kind::Volume, u.reservoir.map(|v| v.si()), system)),
-                Field::choice(
-                    "sensitive",
-                    "Most sensitive component",
-                    &comps,
-                    component_words(u.sensitive_component),
-                ),
-                Field::choice("fluid", "Fluid in service", &fluid_names, &fname),
-                Field::quantity("bore", "Timed stroke: bore", Kind::Length, system)
-                    .with_value(q_text(Kind::Length, s.map(|s| s.bore.si()), system)),
-                Field::quantity("rod", "Timed stroke: rod", Kind::Length, system)
-                    .with_value(q_text(
-                        Kind::Length,
-                        s.and_then(|s| s.rod).map(|r| r.si()),
-                        system,
-                    ))
-                    .with_hint("needed to retract"),
-                Field::quantity("length", "Timed stroke: length", Kind::Length, system)
-                    .with_value(q_text(Kind::Length, s.map(|s| s.length.si()), system)),
-                Field::choice(
-                    "direction",
-                    "Timed stroke: direction",
-                    &dirs,
-                    direction_words(s.map(|s| s.direction).unwrap_or(StrokeDirection::Extend)),
-                ),
-                Field::text("route_order", "Route order").with_value(u.route_order.to_string()),
-                Field::choice(
-                    "archived",
-                    "Archived",
-                    &YES_NO,
-                    YES_NO[usize::from(u.archived)],
-                ),
-            ]
+                .map(|u| u.route_order)
+                .max()
+                .unwrap_or(0)
+                + 10,
+            archived: false,
+        },
+    };
+    let machine_tags: Vec<&str> = machines.iter().map(|m| m.tag.as_str()).collect();
+    let mtag = machines
+        .iter()
+        .find(|m| m.id == u.machine_id)
+        .map(|m| m.tag.clone())
+        .unwrap_or_default();
+    let mut fluid_names: Vec<&str> = vec![NO_FLUID];
+    fluid_names.extend(fluids.iter().map(|f| f.name.as_str()));
+    let fname = u
+        .fluid_id
+        .and_then(|id| fluids.iter().find(|f| f.id == id))
+        .map(|f| f.name.clone())
+        .unwrap_or(NO_FLUID.into());
+    let pumps: Vec<&str> = PumpKind::ALL.iter().map(|k| pump_words(*k)).collect();
+    let comps: Vec<&str> = SensitiveComponent::ALL
+        .iter()
+        .map(|k| component_words(*k))
+        .collect();
+    let dirs: Vec<&str> = StrokeDirection::ALL
+        .iter()
+        .map(|k| direction_words(*k))
+        .collect();
+    let s = u.stroke;
+    let fields =
+        vec![
+            Field::choice("machine", "Machine", &machine_tags, &mtag),
+            Field::text("tag", "Unit tag")
+                .with_value(u.tag)
+                .with_placeholder("e.g. PR-07-A"),
+            Field::choice("pump_kind", "Pump", &pumps, pump_words(u.pump_kind)),
+            Field::quantity("rated_flow", "Rated pump flow", Kind::Flow, system)
+                .with_value(q_text(Kind::Flow, u.rated_flow.map(|q| q.si()), system)),
+            Field::quantity("relief", "Relief setting", Kind::Pressure, system).with_value(q_text(
+                Kind::Pressure,
+                u.relief.map(|p| p.si()),
+                system,
+            )),
+            Field::quantity("reservoir", "Reservoir volume", Kind::Volume, system)
+                .with_value(q_text(Kind::Volume, u.reservoir.map(|v| v.si()), system)),
+            Field::choice(
+                "sensitive",
+                "Most sensitive component",
+                &comps,
+                component_words(u.sensitive_component),
+            ),
+            Field::choice("fluid", "Fluid in service", &fluid_names, &fname),
+            Field::quantity("bore", "Timed stroke: bore", Kind::Length, system).with_value(q_text(
+                Kind::Length,
+                s.map(|s| s.bore.si()),
+                system,
+            )),
+            Field::quantity("rod", "Timed stroke: rod", Kind::Length, system)
+                .with_value(q_text(
+                    Kind::Length,
+                    s.and_then(|s| s.rod).map(|r| r.si()),
+                    system,
+                ))
+                .with_hint("needed to retract"),
+            Field::quantity("length", "Timed stroke: length", Kind::Length, system)
+                .with_value(q_text(Kind::Length, s.map(|s| s.length.si()), system)),
+            Field::choice(
+                "direction",
+                "Timed stroke: direction",
+                &dirs,
+                direction_words(s.map(|s| s.direction).unwrap_or(StrokeDirection::Extend)),
+            ),
+            Field::text("route_order", "Route order").with_value(u.route_order.to_string()),
+            Field::choice(
+                "archived",
+                "Archived",
+                &YES_NO,
+                YES_NO[usize::from(u.archived)],
+            ),
+        ];
+    Ok(fields)
+}
+
+/// A fluid's fields; a new one is a mineral oil.
+fn fluid_fields(store: &Store, id: Option<Id>) -> Result<Vec<Field>, AppError> {
+    let f = match id {
+        Some(id) => store
+            .fluid(id)
+            .map_err(store_error)?
+            .ok_or_else(no_longer_stored)?,
+        None => Fluid {
+            id: 0,
+            name: String::new(),
+            iso_vg: None,
+            kv40_new: None,
+            kv100_new: None,
+            acid_new_mgkoh_g: None,
+            base_type: "mineral".into(),
+        },
+    };
+    let cst = |v: Option<Viscosity>| {
+        v.map(|v| format!("{}", crate::store::columns::tidy(v.cst())))
+            .unwrap_or_default()
+    };
+    let fields = vec![
+        Field::text("name", "Name").with_value(f.name),
+        Field::text("iso_vg", "ISO VG")
+            .with_value(f.iso_vg.map(|v| v.to_string()).unwrap_or_default())
+            .with_hint("e.g. 46"),
+        Field {
+            unit: "cSt".into(),
+            ..Field::text("kv40", "KV40 of new oil")
         }
-        Record::Fluid => {
-            let f = match id {
-                Some(id) => store.fluid(id).map_err(store_error)?.ok_or_else(missing)?,
-                None => Fluid {
-                    id: 0,
-                    name: String::new(),
-                    iso_vg: None,
-                    kv40_new: None,
-                    kv100_new: None,
-                    acid_new_mgkoh_g: None,
-                    base_type: "mineral".into(),
-                },
-            };
-            let cst = |v: Option<Viscosity>| {
-                v.map(|v| format!("{}", crate::store::columns::tidy(v.cst())))
-                    .unwrap_or_default()
-            };
-            vec![
-                Field::text("name", "Name").with_value(f.name),
-                Field::text("iso_vg", "ISO VG")
-                    .with_value(f.iso_vg.map(|v| v.to_string()).unwrap_or_default())
-                    .with_hint("e.g. 46"),
-                Field {
-                    unit: "cSt".into(),
-                    ..Field::text("kv40", "KV40 of new oil")
-                }
-                .with_value(cst(f.kv40_new)),
-                Field {
-                    unit: "cSt".into(),
-                    ..Field::text("kv100", "KV100 of new oil")
-                }
-                .with_value(cst(f.kv100_new)),
-                Field {
-                    unit: "mg KOH/g".into(),
-                    ..Field::text("acid", "Acid number of new oil")
-                }
-                .with_value(n_text(f.acid_new_mgkoh_g)),
-                Field::text("base_type", "Base type")
-                    .with_value(f.base_type)
-                    .with_hint("mineral, ester, …"),
-            ]
+        .with_value(cst(f.kv40_new)),
+        Field {
+            unit: "cSt".into(),
+            ..Field::text("kv100", "KV100 of new oil")
         }
-    })
+        .with_value(cst(f.kv100_new)),
+        Field {
+            unit: "mg KOH/g".into(),
+            ..Field::text("acid", "Acid number of new oil")
+        }
+        .with_value(n_text(f.acid_new_mgkoh_g)),
+        Field::text("base_type", "Base type")
+            .with_value(f.base_type)
+            .with_hint("mineral, ester, …"),
+    ];
+    Ok(fields)
 }
 
 /// What a pump kind is called on a form (its stored name is a code).
