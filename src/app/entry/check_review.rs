@@ -170,11 +170,7 @@ pub fn check_form(shop: &Shop, unit_id: Id, now: DateTime<Utc>) -> Result<CheckF
                     .map(|(v, at)| format!("{v} · {}", ago(at, now)))
                     .unwrap_or(FILTER_HINT.into()),
             ),
-        Field {
-            unit: "h".into(),
-            ..Field::text("hours", "Hour meter")
-        }
-        .with_hint(
+        Field::in_unit("hours", "Hour meter", "h").with_hint(
             // The last reading by a check or by work done, as the question after it uses.
             store
                 .hour_meter_around(unit_id, now, None)

@@ -64,11 +64,7 @@ pub fn reading_fields(shop: &Shop, which: Reading, id: Id) -> Result<Vec<Field>,
                     .with_value(c.oil_level.map(|v| v.to_string()).unwrap_or_default()),
                 Field::text("filter", "Filter")
                     .with_value(c.filter.map(|v| v.to_string()).unwrap_or_default()),
-                Field {
-                    unit: "h".into(),
-                    ..Field::text("hours", "Hour meter")
-                }
-                .with_value(n_text(c.hours)),
+                Field::in_unit("hours", "Hour meter", "h").with_value(n_text(c.hours)),
                 Field::quantity("case_drain", "Case drain", Kind::Flow, system).with_value(q_text(
                     Kind::Flow,
                     c.case_drain.map(|q| q.si()),
@@ -84,43 +80,17 @@ pub fn reading_fields(shop: &Shop, which: Reading, id: Id) -> Result<Vec<Field>,
                     .unwrap_or_default()
             };
             vec![
-                Field {
-                    unit: "cSt".into(),
-                    ..Field::text("kv40", "KV40")
-                }
-                .with_value(cst(s.kv40)),
-                Field {
-                    unit: "cSt".into(),
-                    ..Field::text("kv100", "KV100")
-                }
-                .with_value(cst(s.kv100)),
-                Field {
-                    unit: "/mL".into(),
-                    ..Field::text("count_4", "≥4 µm(c)")
-                }
-                .with_value(n_text(s.counts_per_ml[0])),
-                Field {
-                    unit: "/mL".into(),
-                    ..Field::text("count_6", "≥6 µm(c)")
-                }
-                .with_value(n_text(s.counts_per_ml[1])),
-                Field {
-                    unit: "/mL".into(),
-                    ..Field::text("count_14", "≥14 µm(c)")
-                }
-                .with_value(n_text(s.counts_per_ml[2])),
+                Field::in_unit("kv40", "KV40", "cSt").with_value(cst(s.kv40)),
+                Field::in_unit("kv100", "KV100", "cSt").with_value(cst(s.kv100)),
+                Field::in_unit("count_4", "≥4 µm(c)", "/mL").with_value(n_text(s.counts_per_ml[0])),
+                Field::in_unit("count_6", "≥6 µm(c)", "/mL").with_value(n_text(s.counts_per_ml[1])),
+                Field::in_unit("count_14", "≥14 µm(c)", "/mL")
+                    .with_value(n_text(s.counts_per_ml[2])),
                 Field::text("iso4406", "ISO 4406 code")
                     .with_value(s.iso4406.clone().unwrap_or_default()),
-                Field {
-                    unit: "ppm".into(),
-                    ..Field::text("water_ppm", "Water")
-                }
-                .with_value(n_text(s.water_ppm)),
-                Field {
-                    unit: "mg KOH/g".into(),
-                    ..Field::text("acid", "Acid number")
-                }
-                .with_value(n_text(s.acid_mgkoh_g)),
+                Field::in_unit("water_ppm", "Water", "ppm").with_value(n_text(s.water_ppm)),
+                Field::in_unit("acid", "Acid number", "mg KOH/g")
+                    .with_value(n_text(s.acid_mgkoh_g)),
                 Field::text("lab_ref", "Lab reference").with_value(s.lab_ref),
                 Field::text("note", "Note").with_value(s.note),
             ]
@@ -140,11 +110,8 @@ pub fn reading_fields(shop: &Shop, which: Reading, id: Id) -> Result<Vec<Field>,
                     system,
                 )),
                 Field::text("by", "Done by").with_value(e.by),
-                Field {
-                    unit: "h".into(),
-                    ..Field::text("hours", "Hour meter")
-                }
-                .with_value(d.hours.map(|h| h.to_string()).unwrap_or_default()),
+                Field::in_unit("hours", "Hour meter", "h")
+                    .with_value(d.hours.map(|h| h.to_string()).unwrap_or_default()),
                 Field::text("filter_part", "Filter part").with_value(d.filter_part),
                 Field::text("work_order", "Work order").with_value(d.work_order),
                 Field::text("note", "Note").with_value(e.note),

@@ -109,6 +109,13 @@ impl Field {
             ..Field::default()
         }
     }
+    /// A number read in a fixed unit whatever the shop's unit system (cSt, ppm, counts per mL).
+    pub(super) fn in_unit(key: &str, label: &str, unit: &str) -> Self {
+        Field {
+            unit: unit.into(),
+            ..Field::text(key, label)
+        }
+    }
     pub(super) fn quantity(key: &str, label: &str, kind: Kind, system: UnitSystem) -> Self {
         Field {
             key: key.into(),

@@ -23,49 +23,23 @@ pub fn sample_fields(system: UnitSystem) -> Vec<Field> {
             .with_placeholder("YYYY-MM-DD HH:MM")
             .with_hint("blank = now"),
         Field::text("lab_ref", "Lab or bench reference"),
-        Field {
-            unit: "cSt".into(),
-            ..Field::text("kv40", "Viscosity at 40 °C (KV40)")
-        },
-        Field {
-            unit: "cSt".into(),
-            ..Field::text("kv100", "Viscosity at 100 °C")
-        }
-        .with_hint("optional"),
-        Field {
-            unit: "cSt".into(),
-            ..Field::text("visc_value", "Field viscosity reading")
-        }
-        .with_hint("instead of KV40"),
+        Field::in_unit("kv40", "Viscosity at 40 °C (KV40)", "cSt"),
+        Field::in_unit("kv100", "Viscosity at 100 °C", "cSt").with_hint("optional"),
+        Field::in_unit("visc_value", "Field viscosity reading", "cSt").with_hint("instead of KV40"),
         Field::quantity(
             "visc_temp",
             "… read at temperature",
             Kind::Temperature,
             system,
         ),
-        Field {
-            unit: "/mL".into(),
-            ..Field::text("count_4", "Particles ≥4 µm(c)")
-        },
-        Field {
-            unit: "/mL".into(),
-            ..Field::text("count_6", "Particles ≥6 µm(c)")
-        },
-        Field {
-            unit: "/mL".into(),
-            ..Field::text("count_14", "Particles ≥14 µm(c)")
-        },
+        Field::in_unit("count_4", "Particles ≥4 µm(c)", "/mL"),
+        Field::in_unit("count_6", "Particles ≥6 µm(c)", "/mL"),
+        Field::in_unit("count_14", "Particles ≥14 µm(c)", "/mL"),
         Field::text("iso4406", "or ISO 4406 code")
             .with_placeholder("18/16/13")
             .with_hint("when no counts"),
-        Field {
-            unit: "ppm".into(),
-            ..Field::text("water_ppm", "Water")
-        },
-        Field {
-            unit: "mg KOH/g".into(),
-            ..Field::text("acid", "Acid number")
-        },
+        Field::in_unit("water_ppm", "Water", "ppm"),
+        Field::in_unit("acid", "Acid number", "mg KOH/g"),
         Field::text("by", "Sampled by").with_placeholder("name or initials"),
         Field::text("note", "Note"),
     ]

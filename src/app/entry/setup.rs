@@ -368,21 +368,10 @@ fn fluid_fields(store: &Store, id: Option<Id>) -> Result<Vec<Field>, AppError> {
         Field::text("iso_vg", "ISO VG")
             .with_value(f.iso_vg.map(|v| v.to_string()).unwrap_or_default())
             .with_hint("e.g. 46"),
-        Field {
-            unit: "cSt".into(),
-            ..Field::text("kv40", "KV40 of new oil")
-        }
-        .with_value(cst(f.kv40_new)),
-        Field {
-            unit: "cSt".into(),
-            ..Field::text("kv100", "KV100 of new oil")
-        }
-        .with_value(cst(f.kv100_new)),
-        Field {
-            unit: "mg KOH/g".into(),
-            ..Field::text("acid", "Acid number of new oil")
-        }
-        .with_value(n_text(f.acid_new_mgkoh_g)),
+        Field::in_unit("kv40", "KV40 of new oil", "cSt").with_value(cst(f.kv40_new)),
+        Field::in_unit("kv100", "KV100 of new oil", "cSt").with_value(cst(f.kv100_new)),
+        Field::in_unit("acid", "Acid number of new oil", "mg KOH/g")
+            .with_value(n_text(f.acid_new_mgkoh_g)),
         Field::text("base_type", "Base type")
             .with_value(f.base_type)
             .with_hint("mineral, ester, …"),
