@@ -81,19 +81,23 @@ pub fn loss_against(before: &[Stroke], now: &Stroke, d: Option<f64>, warmer: f64
         .map(|s| Some(((d? - s.q) / s.x()?).max(0.0)))
         .collect();
     let x_now = if hot_spell { now.x() } else { now.x_sound() };
-    let (expected, q) = match (hot_spell || now.nu_sound.is_some(), d, gs, x_now) {
-        (true, Some(d), Some(gs), Some(x)) => (stats::median(&gs).map(|g| d - g * x), now.q),
-        _ => (
+    let moved = match (hot_spell || now.nu_sound.is_some(), d, gs, x_now) {
+        (true, Some(d), Some(gs), Some(x)) => Some(stats::median(&gs).map(|g| d - g * x)),
+        _ => None,
+    };
+    let (expected, q, weigh) = match moved {
+        Some(e) => (e, now.q, 1.0),
+        None => (
             stats::median(&before.iter().map(|s| s.flow).collect::<Vec<_>>()),
             now.flow,
+            // A corrected flow from oil thicker than the reference's carries the stopwatch's
+            // scatter k times over (its leakage was multiplied by k): its departure is weighed
+            // by 1/k, as the leak conductance and the drift detectors weigh it.
+            match now.scale {
+                Some(k) if k > 1.0 && k.is_finite() => 1.0 / k,
+                _ => 1.0,
+            },
         ),
-    };
-    // A corrected flow from oil thicker than the reference's carries the stopwatch's scatter
-    // k times over (its leakage was multiplied by k): its departure is weighed by 1/k, as the
-    // leak conductance and the drift detectors weigh it.
-    let weigh = match (hot_spell || now.nu_sound.is_some(), now.scale) {
-        (false, Some(k)) if k > 1.0 && k.is_finite() => 1.0 / k,
-        _ => 1.0,
     };
     expected
         .filter(|e| *e > 0.0)
