@@ -10,6 +10,7 @@
 use std::sync::Once;
 
 use chrono::{DateTime, Utc};
+use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
@@ -237,6 +238,25 @@ fn draw(
         .draw()
         .map_err(err)?;
 
+    draw_guides(&mut chart, input, (x0, x1), (y0, y1))?;
+    draw_readings(&mut chart, input)?;
+    draw_labels(root, &chart, input, (x1, y1), &small)?;
+    Ok(())
+}
+
+/// The plotting area of a chart: days across, the indicator's value up.
+type Plot<'a, 'b> =
+    ChartContext<'a, BitMapBackend<'b>, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+
+/// What the readings are read against: the baseline band and line, the event markers and the
+/// limit and target lines over the whole width `(x0, x1)` and height `(y0, y1)`.
+fn draw_guides(
+    chart: &mut Plot<'_, '_>,
+    input: &ChartInput<'_>,
+    (x0, x1): (f64, f64),
+    (y0, y1): (f64, f64),
+) -> Result<(), ChartError> {
+    let spec = input.spec;
     // Baseline band and line
     if let Some(band) = &spec.band {
         if band.high > band.low {
@@ -295,7 +315,11 @@ fn draw(
             .draw_series(LineSeries::new([(x0, v), (x1, v)], ACT.stroke_width(3)))
             .map_err(err)?;
     }
-    // Readings
+    Ok(())
+}
+
+/// The readings, one line per series with its own marker shape.
+fn draw_readings(chart: &mut Plot<'_, '_>, input: &ChartInput<'_>) -> Result<(), ChartError> {
     for (i, (_, points)) in input.lines.iter().enumerate() {
         let c = LINES[i % LINES.len()];
         chart
@@ -325,6 +349,19 @@ fn draw(
         }
     }
 
+    Ok(())
+}
+
+/// The labels of the limit lines at the right edge `x1`, of the baseline, and of the event
+/// markers along the top `y1`.
+fn draw_labels(
+    root: &DrawingArea<BitMapBackend<'_>, Shift>,
+    chart: &Plot<'_, '_>,
+    input: &ChartInput<'_>,
+    (x1, y1): (f64, f64),
+    small: &TextStyle<'_>,
+) -> Result<(), ChartError> {
+    let spec = input.spec;
     // Labels at the right edge of limit lines and the top of event markers, in pixels
     let area = chart.plotting_area();
     let label_at = |x: f64, y: f64| area.map_coordinate(&(x, y));
