@@ -247,6 +247,26 @@ pub fn print_report(r: &SimReport, out: &mut dyn Write) -> std::io::Result<()> {
     for (a, b, c) in &rows {
         writeln!(out, "{a:<w0$} {b:<w1$} {c}")?;
     }
+    print_faults(r, out)?;
+    print_false_acts(r, out)?;
+    writeln!(out)?;
+    writeln!(out, "targets (sumpbook):")?;
+    for v in &r.verdicts {
+        writeln!(
+            out,
+            "  {:<4} {:<58} {}",
+            if v.pass { "PASS" } else { "MISS" },
+            v.target,
+            v.figure
+        )?;
+    }
+    Ok(())
+}
+
+/// The per-fault table, the fixed rule's acts the sound unit shares, and the faults counted
+/// apart.
+fn print_faults(r: &SimReport, out: &mut dyn Write) -> std::io::Result<()> {
+    let (e, f) = (&r.sumpbook, &r.fixed);
     writeln!(out)?;
     writeln!(
         out,
@@ -304,6 +324,12 @@ pub fn print_report(r: &SimReport, out: &mut dyn Write) -> std::io::Result<()> {
             shown(theirs)
         )?;
     }
+    Ok(())
+}
+
+/// The false acts on healthy units by the kinds that raised them, and the acts after a slip.
+fn print_false_acts(r: &SimReport, out: &mut dyn Write) -> std::io::Result<()> {
+    let (e, f) = (&r.sumpbook, &r.fixed);
     writeln!(out)?;
     writeln!(
         out,
@@ -335,16 +361,5 @@ pub fn print_report(r: &SimReport, out: &mut dyn Write) -> std::io::Result<()> {
         "  (left out: {} healthy unit-weeks with late planned work at act)",
         r.overdue_act_weeks
     )?;
-    writeln!(out)?;
-    writeln!(out, "targets (sumpbook):")?;
-    for v in &r.verdicts {
-        writeln!(
-            out,
-            "  {:<4} {:<58} {}",
-            if v.pass { "PASS" } else { "MISS" },
-            v.target,
-            v.figure
-        )?;
-    }
     Ok(())
 }

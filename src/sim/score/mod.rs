@@ -434,8 +434,15 @@ pub fn score(
     s.act_length_worst = act_lengths.iter().copied().max();
     s.flag_length_median = median(&as_f(&flag_lengths));
     s.flag_length_worst = flag_lengths.iter().copied().max();
+    s.faults = per_kind(&s.detections);
+    s
+}
+
+/// The figures of each fault kind planted, from its faults' detections.
+fn per_kind(detections: &[Detection]) -> Vec<FaultFigures> {
+    let mut out = Vec::new();
     for kind in FaultKind::ALL {
-        let all: Vec<&Detection> = s.detections.iter().filter(|d| d.kind == kind).collect();
+        let all: Vec<&Detection> = detections.iter().filter(|d| d.kind == kind).collect();
         if all.is_empty() {
             continue;
         }
@@ -449,7 +456,7 @@ pub fn score(
                 xs.into_iter().flatten().max()
             }
         };
-        s.faults.push(FaultFigures {
+        out.push(FaultFigures {
             kind,
             planted: all.len(),
             judged: ds.len(),
@@ -474,7 +481,7 @@ pub fn score(
             },
         });
     }
-    s
+    out
 }
 
 /// One target of the benchmark with its verdict.
