@@ -212,7 +212,16 @@ fn emit<T: serde::Serialize>(
 /// Runs `sumpbook calc …`, writing the result to `out`.
 pub fn run(args: &CalcArgs, out: &mut dyn std::io::Write) -> Result<(), Failure> {
     match &args.command {
-        CalcCommand::Vi { kv40, kv100 } => vi(kv40, kv100, args.json, out),
+        CalcCommand::Vi { kv40, kv100 } => {
+            let kv40 = arg("KV40", parse_viscosity(kv40))?;
+            let kv100 = arg("KV100", parse_viscosity(kv100))?;
+            let r = calc::vi(kv40, kv100)?;
+            let human = format!(
+                "VI {} ({:.2}, procedure {})",
+                r.vi_rounded, r.vi, r.procedure
+            );
+            emit(out, args.json, &r, human)
+        }
         CalcCommand::Visc {
             kv40,
             kv100,
@@ -233,7 +242,16 @@ pub fn run(args: &CalcArgs, out: &mut dyn std::io::Write) -> Result<(), Failure>
             rod,
             retract,
         } => flow(bore, stroke, time, rod, retract, args.json, out),
-        CalcCommand::Power { flow, pressure } => power(flow, pressure, args.json, out),
+        CalcCommand::Power { flow, pressure } => {
+            let q = arg("--flow", parse_flow(flow))?;
+            let p = arg("--pressure", parse_pressure(pressure))?;
+            let r = calc::power(q, p)?;
+            let human = format!(
+                "{:.2} hp ({:.2} kW); as heat {:.0} BTU/h",
+                r.hp, r.kw, r.btu_per_h
+            );
+            emit(out, args.json, &r, human)
+        }
         CalcCommand::Force {
             bore,
             rod,
@@ -247,18 +265,6 @@ pub fn run(args: &CalcArgs, out: &mut dyn std::io::Write) -> Result<(), Failure>
             range,
         } => velocity(flow, id, line, range, args.json, out),
     }
-}
-
-/// The viscosity index of KV40 and KV100.
-fn vi(kv40: &str, kv100: &str, json: bool, out: &mut dyn std::io::Write) -> Result<(), Failure> {
-    let kv40 = arg("KV40", parse_viscosity(kv40))?;
-    let kv100 = arg("KV100", parse_viscosity(kv100))?;
-    let r = calc::vi(kv40, kv100)?;
-    let human = format!(
-        "VI {} ({:.2}, procedure {})",
-        r.vi_rounded, r.vi, r.procedure
-    );
-    emit(out, json, &r, human)
 }
 
 /// The viscosity at a temperature, or the KV40 equivalent of a reading.
@@ -363,23 +369,6 @@ fn flow(
         r.gpm,
         r.litres,
         r.litres / crate::units::M3_PER_US_GAL / 1000.0
-    );
-    emit(out, json, &r, human)
-}
-
-/// Hydraulic power, and its heat across a relief valve.
-fn power(
-    flow: &str,
-    pressure: &str,
-    json: bool,
-    out: &mut dyn std::io::Write,
-) -> Result<(), Failure> {
-    let q = arg("--flow", parse_flow(flow))?;
-    let p = arg("--pressure", parse_pressure(pressure))?;
-    let r = calc::power(q, p)?;
-    let human = format!(
-        "{:.2} hp ({:.2} kW); as heat {:.0} BTU/h",
-        r.hp, r.kw, r.btu_per_h
     );
     emit(out, json, &r, human)
 }

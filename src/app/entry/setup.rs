@@ -11,7 +11,7 @@ use crate::model::{
     Fluid, Id, Machine, PumpKind, SensitiveComponent, Settings, StrokeDirection, TimedStroke, Unit,
 };
 use crate::quantity::Kind;
-use crate::store::Store;
+use crate::store::{Store, StoreError};
 use crate::units::{Flow, Length, Pressure, UnitSystem, Viscosity, Volume};
 
 /// The shop's settings.
@@ -184,18 +184,17 @@ pub fn record_fields(shop: &Shop, kind: Record, id: Option<Id>) -> Result<Vec<Fi
     }
 }
 
-/// What a form shows for a record the store no longer holds.
-fn no_longer_stored() -> AppError {
-    AppError::BadInput("that record is no longer stored".to_string())
+/// A record read from the store, or what a form shows where the store no longer holds it.
+fn stored<T>(found: Result<Option<T>, StoreError>) -> Result<T, AppError> {
+    found
+        .map_err(store_error)?
+        .ok_or_else(|| AppError::BadInput("that record is no longer stored".to_string()))
 }
 
 /// A machine's fields; a new one is a press at the end of the route.
 fn machine_fields(store: &Store, id: Option<Id>) -> Result<Vec<Field>, AppError> {
     let m = match id {
-        Some(id) => store
-            .machine(id)
-            .map_err(store_error)?
-            .ok_or_else(no_longer_stored)?,
+        Some(id) => stored(store.machine(id))?,
         None => Machine {
             id: 0,
             tag: String::new(),
@@ -239,10 +238,7 @@ fn unit_fields(store: &Store, id: Option<Id>, system: UnitSystem) -> Result<Vec<
     let machines = store.machines().map_err(store_error)?;
     let fluids = store.fluids().map_err(store_error)?;
     let u = match id {
-        Some(id) => store
-            .unit(id)
-            .map_err(store_error)?
-            .ok_or_else(no_longer_stored)?,
+        Some(id) => stored(store.unit(id))?,
         None => Unit {
             id: 0,
             machine_id: machines.first().map(|m| m.id).unwrap_or(0),
@@ -345,10 +341,7 @@ fn unit_fields(store: &Store, id: Option<Id>, system: UnitSystem) -> Result<Vec<
 /// A fluid's fields; a new one is a mineral oil.
 fn fluid_fields(store: &Store, id: Option<Id>) -> Result<Vec<Field>, AppError> {
     let f = match id {
-        Some(id) => store
-            .fluid(id)
-            .map_err(store_error)?
-            .ok_or_else(no_longer_stored)?,
+        Some(id) => stored(store.fluid(id))?,
         None => Fluid {
             id: 0,
             name: String::new(),
