@@ -613,23 +613,29 @@ fn sudden_losses(
 
 /// The oil's viscosity at a check as far as a sound unit's own heat explains it: the one read,
 /// or, where the oil reads hotter than a sound unit settles at the check's pressure in its hall
-/// (`HeatLoad::settled_rise`), the settled oil's. None where the heat model cannot place it,
-/// and where the oil reads hotter than that by `beyond` K or more: a unit heating its own oil
-/// (a fouled cooler, a path to tank) is not excused its job either.
+/// (`HeatLoad::settled_rise`) or was not read, the settled oil's. None where the heat model
+/// cannot place it, and where the oil reads hotter than that by `beyond` K or more: a unit
+/// heating its own oil (a fouled cooler, a path to tank) is not excused its job either.
 fn sound_viscosity(
     p: &CheckPoint,
     heat_load: Option<HeatLoad>,
     walther: Option<Walther>,
     beyond: f64,
 ) -> Option<f64> {
-    let (m, w, read) = (heat_load?, walther?, p.viscosity_at_temp?);
+    let (m, w) = (heat_load?, walther?);
     let oil = |t: f64| Some(w.at(Temperature(t)).si()).filter(|v| v.is_finite() && *v > 0.0);
     let ambient = p.ambient_temp?;
     let settled = ambient + m.settled_rise(p.pressure?, ambient, oil)?;
-    if p.reservoir_temp? - settled >= beyond {
+    let sound = oil(settled)?;
+    // No oil temperature (not read, or held by the screen as a possible slip): the settled
+    // oil's, which excuses what the job and the hall explain and nothing of a fault's heat.
+    let (Some(t), Some(read)) = (p.reservoir_temp, p.viscosity_at_temp) else {
+        return Some(sound);
+    };
+    if t - settled >= beyond {
         return None;
     }
-    Some(read.max(oil(settled)?))
+    Some(read.max(sound))
 }
 
 #[cfg(test)]
@@ -666,6 +672,16 @@ mod tests {
         assert!(near(at(43.0), nu(40.0)), "{:?}", at(43.0));
         // 5 K hotter or more (the watch limit given): a unit heating its own oil, nothing.
         assert_eq!(at(45.0), None);
+        // No oil temperature (held as a slip, or not read): the settled oil's.
+        let held = CheckPoint {
+            ambient_temp: Some(Temperature::from_c(20.0).si()),
+            pressure: Some(100.0e5),
+            ..CheckPoint::default()
+        };
+        assert!(near(
+            sound_viscosity(&held, Some(m), Some(w), 5.0),
+            nu(40.0)
+        ));
         // No heat model: nothing either.
         let p = CheckPoint {
             viscosity_at_temp: Some(nu(35.0)),

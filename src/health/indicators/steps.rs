@@ -53,9 +53,10 @@ impl Stroke {
 }
 
 /// How far below what the checks `before` give (%) one stroke `now` is. With the displacement
-/// `d` known and every check's oil and pressure read, the expected flow is `d` less the
-/// leakage of the checks before — the median of their conductances (d − q)/(p/ν), never below
-/// zero — moved to `now`'s pressure and to the oil a sound unit's own heat explains
+/// `d` known and every check's pressure read, the expected flow is `d` less the leakage of the
+/// checks before — the median of their conductances (d − q)/(p/ν), never below zero, a check
+/// whose oil was not read (or was held as a slip) taken at the oil a sound unit settles at —
+/// moved to `now`'s pressure and to the oil a sound unit's own heat explains
 /// (`Stroke::nu_sound`): laminar gap leakage goes as p/ν (Hagen–Poiseuille), so a harder job,
 /// and the warmer oil it brings, take their share from the expectation, while a relief valve
 /// starting to pass oil shows in full. In a hall warmer than at the checks before (the median
@@ -78,9 +79,13 @@ pub fn loss_against(before: &[Stroke], now: &Stroke, d: Option<f64>, warmer: f64
     };
     let gs: Option<Vec<f64>> = before
         .iter()
-        .map(|s| Some(((d? - s.q) / s.x()?).max(0.0)))
+        .map(|s| Some(((d? - s.q) / s.x().or(s.x_sound())?).max(0.0)))
         .collect();
-    let x_now = if hot_spell { now.x() } else { now.x_sound() };
+    let x_now = if hot_spell {
+        now.x().or(now.x_sound())
+    } else {
+        now.x_sound()
+    };
     let moved = match (hot_spell || now.nu_sound.is_some(), d, gs, x_now) {
         (true, Some(d), Some(gs), Some(x)) => Some(stats::median(&gs).map(|g| d - g * x)),
         _ => None,
