@@ -200,6 +200,25 @@ impl Baseline {
     pub fn is_empty(&self) -> bool {
         self.values.is_empty()
     }
+
+    /// The flow the lost flow is judged on: the flow corrected to the reference conditions
+    /// where it has a baseline (so the seasons and the job pressure do not move it), unless a
+    /// person entered the timed flow's baseline by hand and not the corrected one's (what a
+    /// person says the pump gives wins over a computed figure); else the timed flow.
+    pub fn lost_flow_base(&self) -> BaselineIndicator {
+        let by_hand = |i: BaselineIndicator| {
+            self.get(i)
+                .is_some_and(|b| matches!(b.source, BaselineSource::Manual { .. }))
+        };
+        if self.get(BaselineIndicator::CorrectedFlow).is_some()
+            && (by_hand(BaselineIndicator::CorrectedFlow)
+                || !by_hand(BaselineIndicator::EffectiveFlow))
+        {
+            BaselineIndicator::CorrectedFlow
+        } else {
+            BaselineIndicator::EffectiveFlow
+        }
+    }
 }
 
 /// Mean and sample standard deviation (n − 1); the spread of a single value is 0.

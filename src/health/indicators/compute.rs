@@ -427,20 +427,9 @@ fn against_baseline(points: &mut [CheckPoint], baseline: &Baseline, restarts: &[
     // Values against the baseline, and the confirmed level of the last 3 (see
     // `confirmed_level`). Lost flow is taken at the reference conditions where the flow can be
     // corrected, so the seasons and the job pressure do not move it.
-    let by_hand = |i: BaselineIndicator| {
-        baseline
-            .get(i)
-            .is_some_and(|b| matches!(b.source, BaselineSource::Manual { .. }))
-    };
     // A flow entered by hand is what a person says the pump gives: it wins over a computed
-    // corrected one.
-    let lost_base = if base(BaselineIndicator::CorrectedFlow).is_some()
-        && (by_hand(BaselineIndicator::CorrectedFlow) || !by_hand(BaselineIndicator::EffectiveFlow))
-    {
-        BaselineIndicator::CorrectedFlow
-    } else {
-        BaselineIndicator::EffectiveFlow
-    };
+    // corrected one (`Baseline::lost_flow_base`).
+    let lost_base = baseline.lost_flow_base();
     let (mut lf, mut lr, mut cd, mut hd) = (Vec::new(), Vec::new(), Vec::new(), Vec::new());
     let mut prev_at: Option<DateTime<Utc>> = None;
     for p in points.iter_mut() {
@@ -465,6 +454,11 @@ fn against_baseline(points: &mut [CheckPoint], baseline: &Baseline, restarts: &[
                 lf.push(v);
                 p.lost_flow_median_pct = confirmed_level(&lf);
             }
+        } else if p.effective_flow.is_some() && base(lost_base).is_some() {
+            // A timed stroke that cannot be corrected (its oil temperature not read, or held
+            // as a possible slip) judges nothing: the level stands where the last corrected
+            // check left it, so a questioned reading neither raises the flag nor clears it.
+            p.lost_flow_median_pct = confirmed_level(&lf);
         }
         let ratio = |g: f64, gb: f64| hyd::LeakConductance(g).ratio_to(hyd::LeakConductance(gb));
         if let Some(v) = p

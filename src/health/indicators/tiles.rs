@@ -156,23 +156,32 @@ fn check_specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
 
     let flow = ck(|p| p.effective_flow);
     let qb = bl(BaselineIndicator::EffectiveFlow);
+    // The lost-flow limits as flows, where the lost flow is judged on the timed flow. Where it
+    // is judged on the flow corrected to the baseline's oil and pressure, a line on the timed
+    // flow would be crossed by a sound pump's summer strokes while its flag says otherwise:
+    // the limits are then on the lost flow's own tile and chart only.
+    let timed_judged = c.baseline.lost_flow_base() == BaselineIndicator::EffectiveFlow;
+    let as_flow = |pct: Option<f64>| -> Vec<f64> {
+        qb.iter()
+            .filter(|_| timed_judged)
+            .flat_map(|b| pct.map(|w| b.0 * (1.0 - w / 100.0)))
+            .collect()
+    };
     out.push(Spec {
         key: "effective_flow",
-        label: "Effective flow",
+        label: if timed_judged {
+            "Effective flow"
+        } else {
+            "Effective flow as timed"
+        },
         dim: Dim::Flow,
         flag: Some(K::LostFlow),
         value: last(&flow),
         points: flow,
         text: None,
         baseline: qb,
-        watch: qb
-            .iter()
-            .flat_map(|b| l.watch.map(|w| b.0 * (1.0 - w / 100.0)))
-            .collect(),
-        act: qb
-            .iter()
-            .flat_map(|b| l.act.map(|a| b.0 * (1.0 - a / 100.0)))
-            .collect(),
+        watch: as_flow(l.watch),
+        act: as_flow(l.act),
     });
 
     let corrected = ck(|p| p.corrected_flow);

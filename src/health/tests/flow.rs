@@ -426,3 +426,62 @@ fn a_questioned_slower_stroke_shows_at_watch_until_the_next_check_confirms_it() 
     let r = eval(&h, &Limits::builtin(), week(9));
     assert_eq!(state_of(&r, FlagKind::LostFlow), State::Steady);
 }
+
+#[test]
+fn the_effective_flow_chart_draws_the_limits_only_where_the_lost_flow_is_judged_on_it() {
+    // With the oil and pressure read, the lost flow is judged on the flow corrected to the
+    // baseline's oil and pressure: a limit line on the timed flow would be crossed by a sound
+    // pump's summer strokes while its flag says otherwise, so the timed flow's chart has none
+    // and the lost flow's keeps its 8 and 15 % (docs/engineering.md, "Default limits").
+    let r = eval(&stroke_history(4.0), &Limits::builtin(), week(6));
+    let series = |r: &UnitHealth, key: &str| {
+        r.series
+            .iter()
+            .find(|s| s.key == key)
+            .cloned()
+            .expect("the series")
+    };
+    let timed = series(&r, "effective_flow");
+    assert_eq!(timed.label, "Effective flow as timed");
+    assert!(timed.watch.is_empty() && timed.act.is_empty(), "{timed:?}");
+    let lost = series(&r, "lost_flow");
+    assert_eq!((lost.watch, lost.act), (vec![8.0], vec![15.0]));
+    // Without an oil temperature nothing is corrected: the lost flow is judged on the timed
+    // flow, and its limits are drawn on it as flows, 12π L/min less 8 and 15 % (by hand).
+    let mut h = stroke_history(4.0);
+    for c in &mut h.checks {
+        c.reservoir_temp = None;
+    }
+    let r = eval(&h, &Limits::builtin(), week(6));
+    let timed = series(&r, "effective_flow");
+    assert_eq!(timed.label, "Effective flow");
+    let q = Flow::from_lpm(12.0 * std::f64::consts::PI).si();
+    assert_eq!(timed.watch.len(), 1);
+    assert!((timed.watch[0] - q * 0.92).abs() < 1e-12, "{timed:?}");
+    assert!((timed.act[0] - q * 0.85).abs() < 1e-12, "{timed:?}");
+}
+
+#[test]
+fn a_check_whose_flow_cannot_be_corrected_neither_raises_nor_clears_the_lost_flow_flag() {
+    // A loss growing slowly (no step for the sudden loss to see) to 20 % (5.0 s against
+    // 4.0 s: 1 − 4/5, by hand), then a check at 5.0 s with no oil temperature (not read, or
+    // held as a slip): its flow cannot be moved to the baseline's oil, so the level stands at
+    // 20 % and the flag stays at act.
+    // The baseline forms from the first 12 checks, all at 4.0 s.
+    let mut h = press();
+    let times = std::iter::repeat_n(4.0, 12).chain([4.4, 4.6, 4.8, 4.9, 5.0, 5.0]);
+    for (w, t) in times.enumerate() {
+        h.checks.push(timed(w as Id + 1, w as i64, t, 45.0, 20.0));
+    }
+    let mut blind = timed(19, 18, 5.0, 45.0, 20.0);
+    blind.reservoir_temp = None;
+    h.checks.push(blind);
+    let r = eval(&h, &Limits::builtin(), week(18));
+    let f = r
+        .flags
+        .iter()
+        .find(|f| f.kind == FlagKind::LostFlow)
+        .expect("the lost-flow flag stays");
+    assert_eq!(f.state, State::Act);
+    assert!(f.what.contains("down 20 %"), "{}", f.what);
+}
