@@ -43,11 +43,7 @@ fn a_lost_flow_flag_gives_the_flow_its_level_stands_for() {
     let mut h = stroke_history(5.0);
     h.checks.push(timed(8, 7, 4.0, 45.0, 20.0));
     let r = eval(&h, &Limits::builtin(), week(7));
-    let f = r
-        .flags
-        .iter()
-        .find(|f| f.kind == FlagKind::LostFlow)
-        .expect("a lost-flow flag");
+    let f = flag_of(&r, FlagKind::LostFlow);
     assert_eq!(f.state, State::Act);
     assert!(
         f.what
@@ -477,11 +473,7 @@ fn a_check_whose_flow_cannot_be_corrected_neither_raises_nor_clears_the_lost_flo
     blind.reservoir_temp = None;
     h.checks.push(blind);
     let r = eval(&h, &Limits::builtin(), week(18));
-    let f = r
-        .flags
-        .iter()
-        .find(|f| f.kind == FlagKind::LostFlow)
-        .expect("the lost-flow flag stays");
+    let f = flag_of(&r, FlagKind::LostFlow);
     assert_eq!(f.state, State::Act);
     assert!(f.what.contains("down 20 %"), "{}", f.what);
 }

@@ -15,6 +15,15 @@ pub(super) fn eval(h: &UnitHistory, limits: &Limits, at: DateTime<Utc>) -> UnitH
     evaluate(h, &[], limits, at, UnitSystem::Metric, Calendar::default())
 }
 
+/// The flag of `kind`, which the test expects to be raised.
+pub(super) fn flag_of(health: &UnitHealth, kind: FlagKind) -> &Flag {
+    health
+        .flags
+        .iter()
+        .find(|f| f.kind == kind)
+        .unwrap_or_else(|| panic!("a {kind:?} flag in {:?}", health.flags))
+}
+
 pub(super) fn state_of(health: &UnitHealth, kind: FlagKind) -> State {
     health
         .flags
