@@ -377,11 +377,7 @@ fn a_questioned_slower_stroke_is_judged_at_the_oil_it_was_timed_in_even_where_th
     let want = (1.0 - (40.0 - (40.0 - held) * k) / base) * 100.0;
     assert!((want - 8.5).abs() < 0.01, "{want}");
 
-    let mut h = press();
-    for w in 0..8 {
-        h.checks.push(timed(w + 1, w, 4.0, 50.0, 20.0));
-    }
-    h.checks.push(timed(9, 8, 6.0, 80.0, 20.0));
+    let h = eight_then(50.0, timed(9, 8, 6.0, 80.0, 20.0));
     let r = eval(&h, &Limits::builtin(), week(8));
     let held_fields: Vec<_> = r.suspects.iter().map(|s| s.field).collect();
     assert!(
@@ -399,11 +395,7 @@ fn a_questioned_slower_stroke_shows_at_watch_until_the_next_check_confirms_it() 
     // Hampel's 5 floored σ (0.2), so it is questioned and held. At the baseline's own oil it
     // would lose 1 − 4/5.5 = 27.3 % of the flow (by hand): shown at watch, not act, with the
     // question in the sentence.
-    let mut h = press();
-    for w in 0..8 {
-        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
-    }
-    h.checks.push(timed(9, 8, 5.5, 45.0, 20.0));
+    let mut h = eight_then(45.0, timed(9, 8, 5.5, 45.0, 20.0));
     let r = eval(&h, &Limits::builtin(), week(8));
     assert_eq!(r.suspects.len(), 1, "{:?}", r.suspects);
     let (f, v) = at_watch(&r, FlagKind::LostFlow);

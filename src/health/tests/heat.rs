@@ -128,11 +128,7 @@ fn a_questioned_hot_oil_shows_at_watch_until_the_next_check_confirms_it() {
     // Eight checks with the oil at 45 °C, then 88 °C: 43 K over a median whose spread is
     // floored at 2.5 K (Hampel's limit 12.5 K), so the screen holds it. It is still shown, at
     // watch, not at the 82 °C ceiling's act, with the question in the sentence.
-    let mut h = press();
-    for w in 0..8 {
-        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
-    }
-    h.checks.push(timed(9, 8, 4.0, 88.0, 20.0));
+    let mut h = eight_then(45.0, timed(9, 8, 4.0, 88.0, 20.0));
     let r = eval(&h, &Limits::builtin(), week(8));
     assert_eq!(r.suspects.len(), 1, "{:?}", r.suspects);
     let (f, v) = at_watch(&r, FlagKind::ReservoirTemp);

@@ -8,11 +8,22 @@ mod state;
 
 use super::testutil::*;
 use super::*;
-use crate::model::{Acknowledgement, EventKind, FilterState, OilLevel};
+use crate::model::{Acknowledgement, Check, EventKind, FilterState, OilLevel};
 use crate::units::{Flow, Temperature, Viscosity};
 
 pub(super) fn eval(h: &UnitHistory, limits: &Limits, at: DateTime<Utc>) -> UnitHealth {
     evaluate(h, &[], limits, at, UnitSystem::Metric, Calendar::default())
+}
+
+/// Eight weekly checks at 4.0 s with the oil at `oil_c` (20 °C hall), then the ninth, `odd`:
+/// the set-up of the screen's hold tests.
+pub(super) fn eight_then(oil_c: f64, odd: Check) -> UnitHistory {
+    let mut h = press();
+    for w in 0..8 {
+        h.checks.push(timed(w + 1, w, 4.0, oil_c, 20.0));
+    }
+    h.checks.push(odd);
+    h
 }
 
 /// The flag of `kind`, which the test expects to be raised.
