@@ -153,6 +153,33 @@ fn note(s: &Series, empty: &str, sys: UnitSystem) -> String {
     }
 }
 
+/// The effective-flow chart with the flow corrected to the baseline's oil and pressure beside
+/// the timed one: the season and the job move the timed strokes, the corrected ones move only
+/// with the pump. Where the lost flow is judged on the corrected flow (its series carries the
+/// limits), the band, the limit lines and the note are the corrected flow's, so the chart
+/// shows the figure the lost-flow flag was raised on.
+fn with_corrected(
+    chart: &mut ChartSpec,
+    c: &Series,
+    points: Vec<(DateTime<Utc>, f64)>,
+    sys: UnitSystem,
+) {
+    if points.is_empty() {
+        return;
+    }
+    chart.title = "Effective flow, timed and corrected to baseline oil".into();
+    chart.series[0].label = "as timed".into();
+    chart.series.push(SeriesSpec {
+        label: "corrected".into(),
+        points,
+    });
+    if !(c.watch.is_empty() && c.act.is_empty()) {
+        chart.band = band(c, "baseline ± 2σ", sys);
+        chart.limits = limits(c, sys);
+        chart.note = note(c, &chart.empty_note, sys).replacen("latest", "latest corrected", 1);
+    }
+}
+
 /// The charts of a unit over `window`, in the shop's units: effective flow, lost flow, heat
 /// rise, KV40, cleanliness over target and the ISO 4406 code by size, each where the engine
 /// gives its series. A face shows those it has room for.
@@ -227,7 +254,7 @@ pub fn unit_charts(
         } else {
             band(s, band_label, sys)
         };
-        out.push(ChartSpec {
+        let mut chart = ChartSpec {
             key,
             title: s.label.clone(),
             unit: chart_unit(s.dim, sys),
@@ -240,7 +267,13 @@ pub fn unit_charts(
             events: marks.clone(),
             note: note(s, &empty_note, sys),
             empty_note,
-        });
+        };
+        if key == "effective_flow" {
+            if let Some(c) = find("corrected_flow") {
+                with_corrected(&mut chart, c, points(c), sys);
+            }
+        }
+        out.push(chart);
     }
     let sizes = [
         ("iso4406_4um", "≥4 µm(c)"),
@@ -283,4 +316,101 @@ pub fn unit_charts(
         });
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::health::indicators::SeriesPoint;
+
+    const LPM: f64 = 1.0 / 60_000.0;
+
+    fn at(day: i64) -> DateTime<Utc> {
+        DateTime::<Utc>::from_timestamp(day * 86_400, 0).expect("a day")
+    }
+
+    fn timed_chart() -> ChartSpec {
+        ChartSpec {
+            key: "effective_flow",
+            title: "Effective flow as timed".into(),
+            unit: "L/min".into(),
+            series: vec![SeriesSpec {
+                label: "effective flow".into(),
+                points: vec![(at(0), 104.0), (at(7), 90.0)],
+            }],
+            band: None,
+            limits: Vec::new(),
+            events: Vec::new(),
+            empty_note: "no timed strokes in this era".into(),
+            note: "latest 90.0 L/min".into(),
+        }
+    }
+
+    fn corrected(watch: Vec<f64>, act: Vec<f64>) -> Series {
+        Series {
+            key: "corrected_flow".into(),
+            label: "Effective flow corrected to baseline oil".into(),
+            dim: Dim::Flow,
+            points: [(0, 103.8), (7, 95.5)]
+                .map(|(d, v)| SeriesPoint {
+                    at: at(d),
+                    value: v * LPM,
+                })
+                .to_vec(),
+            baseline: Some(104.0 * LPM),
+            baseline_spread: Some(1.5 * LPM),
+            watch,
+            act,
+        }
+    }
+
+    #[test]
+    fn the_flow_chart_shows_the_corrected_flow_with_the_limits_it_is_judged_by() {
+        // A corrected baseline of 104 L/min, spread 1.5: band 101–107 L/min (± 2σ), and the
+        // lost flow's 8 and 15 % as flows, 95.68 and 88.4 L/min (by hand).
+        let c = corrected(vec![104.0 * 0.92 * LPM], vec![104.0 * 0.85 * LPM]);
+        let mut chart = timed_chart();
+        let points = vec![(at(0), 103.8), (at(7), 95.5)];
+        with_corrected(&mut chart, &c, points.clone(), UnitSystem::Metric);
+        assert_eq!(chart.series.len(), 2);
+        assert_eq!(chart.series[0].label, "as timed");
+        assert_eq!(chart.series[1].points, points);
+        let band = chart.band.expect("the corrected band");
+        assert!((band.low - 101.0).abs() < 1e-9 && (band.high - 107.0).abs() < 1e-9);
+        let lines: Vec<(f64, Option<State>)> =
+            chart.limits.iter().map(|l| (l.value, l.level)).collect();
+        assert_eq!(lines.len(), 2);
+        assert!((lines[0].0 - 95.68).abs() < 1e-9 && lines[0].1 == Some(State::Watch));
+        assert!((lines[1].0 - 88.4).abs() < 1e-9 && lines[1].1 == Some(State::Act));
+        assert!(
+            chart.note.starts_with("latest corrected 95.5"),
+            "{}",
+            chart.note
+        );
+    }
+
+    #[test]
+    fn a_corrected_flow_the_lost_flow_is_not_judged_on_leaves_the_limits_alone() {
+        // The lost flow judged on the timed flow (a hand-entered baseline): the corrected
+        // series is drawn, the timed flow's band and note stand.
+        let mut chart = timed_chart();
+        with_corrected(
+            &mut chart,
+            &corrected(Vec::new(), Vec::new()),
+            vec![(at(0), 103.8)],
+            UnitSystem::Metric,
+        );
+        assert_eq!(chart.series.len(), 2);
+        assert!(chart.band.is_none() && chart.limits.is_empty());
+        assert_eq!(chart.note, "latest 90.0 L/min");
+        // No corrected point in the window: the chart is left as it was.
+        let mut chart = timed_chart();
+        with_corrected(
+            &mut chart,
+            &corrected(Vec::new(), Vec::new()),
+            Vec::new(),
+            UnitSystem::Metric,
+        );
+        assert_eq!(chart, timed_chart());
+    }
 }

@@ -161,12 +161,14 @@ fn check_specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
     // flow would be crossed by a sound pump's summer strokes while its flag says otherwise:
     // the limits are then on the lost flow's own tile and chart only.
     let timed_judged = c.baseline.lost_flow_base() == BaselineIndicator::EffectiveFlow;
-    let as_flow = |pct: Option<f64>| -> Vec<f64> {
-        qb.iter()
-            .filter(|_| timed_judged)
+    // A lost-flow limit as a flow on the baseline `base` of the flow it is judged on.
+    let on = |base: Option<(f64, f64)>, judged: bool, pct: Option<f64>| -> Vec<f64> {
+        base.iter()
+            .filter(|_| judged)
             .flat_map(|b| pct.map(|w| b.0 * (1.0 - w / 100.0)))
             .collect()
     };
+    let as_flow = |pct: Option<f64>| on(qb, timed_judged, pct);
     out.push(Spec {
         key: "effective_flow",
         label: if timed_judged {
@@ -187,6 +189,9 @@ fn check_specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
     let corrected = ck(|p| p.corrected_flow);
     if !corrected.is_empty() {
         let cb = bl(BaselineIndicator::CorrectedFlow);
+        // Where the lost flow is judged on this flow, its limits are drawn here as flows: the
+        // line a sound pump's corrected strokes stay above, whatever the season.
+        let judged = !timed_judged;
         out.push(Spec {
             key: "corrected_flow",
             label: "Effective flow corrected to baseline oil",
@@ -196,8 +201,8 @@ fn check_specs(c: &Computed, limits: &Limits) -> Vec<Spec> {
             points: corrected,
             text: None,
             baseline: cb,
-            watch: Vec::new(),
-            act: Vec::new(),
+            watch: on(cb, judged, l.watch),
+            act: on(cb, judged, l.act),
         });
     }
 

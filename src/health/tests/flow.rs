@@ -434,6 +434,19 @@ fn the_effective_flow_chart_draws_the_limits_only_where_the_lost_flow_is_judged_
     assert!(timed.watch.is_empty() && timed.act.is_empty(), "{timed:?}");
     let lost = series(&r, "lost_flow");
     assert_eq!((lost.watch, lost.act), (vec![8.0], vec![15.0]));
+    // The flow it is judged on, corrected to the baseline's oil and pressure, carries them as
+    // flows: its baseline less 8 and 15 % (by hand).
+    let corrected = series(&r, "corrected_flow");
+    let cb = corrected.baseline.expect("a corrected baseline");
+    assert_eq!(corrected.watch.len(), 1);
+    assert!(
+        (corrected.watch[0] - cb * 0.92).abs() < 1e-12,
+        "{corrected:?}"
+    );
+    assert!(
+        (corrected.act[0] - cb * 0.85).abs() < 1e-12,
+        "{corrected:?}"
+    );
     // Without an oil temperature nothing is corrected: the lost flow is judged on the timed
     // flow, and its limits are drawn on it as flows, 12π L/min less 8 and 15 % (by hand).
     let mut h = stroke_history(4.0);
@@ -443,6 +456,7 @@ fn the_effective_flow_chart_draws_the_limits_only_where_the_lost_flow_is_judged_
     let r = eval(&h, &Limits::builtin(), week(6));
     let timed = series(&r, "effective_flow");
     assert_eq!(timed.label, "Effective flow");
+    assert!(r.series.iter().all(|s| s.key != "corrected_flow"));
     let q = Flow::from_lpm(12.0 * std::f64::consts::PI).si();
     assert_eq!(timed.watch.len(), 1);
     assert!((timed.watch[0] - q * 0.92).abs() < 1e-12, "{timed:?}");
