@@ -1089,3 +1089,114 @@ fn kept_evaluations_on_a_server_follow_direct_sql() {
     status(first.units.len(), "a shop-wide limit written in SQL");
     assert!(count(&url, "kept_evaluations") >= first.units.len() as i64);
 }
+
+#[test]
+fn a_login_reads_only_the_evaluations_it_kept_itself() {
+    // Every role may keep evaluations, so a technician could once rewrite, in plain SQL, the
+    // kept evaluation a supervisor's board reads. Each login now keeps and reads its own
+    // (schema 10): a technician's forgery reaches its own board and nobody else's.
+    let Some(admin_url) = server() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let url = new_database();
+    ok(d, &["--db", &url, "demo"]);
+    ok(d, &["--db", &url, "roles", "--create"]);
+    let tech = login_as(d, admin_url, &url, "keeper_tech", "technician");
+    let sup = login_as(d, admin_url, &url, "keeper_sup", "supervisor");
+    let states = |db: &str| -> Vec<(String, String)> {
+        let out = ok(d, &["--db", db, "status", "--json"]);
+        let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+        v["units"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|u| {
+                (
+                    u["unit"].as_str().unwrap().to_string(),
+                    u["state"].as_str().unwrap().to_string(),
+                )
+            })
+            .collect()
+    };
+    let truth = states(&sup);
+    assert_eq!(states(&tech), truth);
+    let kept_by = |login_url: &str| -> i64 {
+        let user = login_url
+            .split("://")
+            .nth(1)
+            .unwrap()
+            .split('@')
+            .next()
+            .unwrap();
+        admin(&url)
+            .query_one(
+                "SELECT count(*) FROM kept_evaluations WHERE kept_by = $1",
+                &[&user],
+            )
+            .unwrap()
+            .get(0)
+    };
+    let units = truth.len() as i64;
+    assert_eq!(
+        (kept_by(&sup), kept_by(&tech)),
+        (units, units),
+        "each kept its own"
+    );
+
+    // The technician gives the unit at act the kept evaluation of a unit at watch.
+    let (at_act, _) = truth.iter().find(|(_, s)| s == "act").unwrap().clone();
+    let (at_watch, _) = truth.iter().find(|(_, s)| s == "watch").unwrap().clone();
+    let mut as_tech = postgres::Client::connect(&tech, postgres::NoTls).unwrap();
+    let id_of = |c: &mut postgres::Client, tag: &str| -> i64 {
+        c.query_one("SELECT id FROM units WHERE tag = $1", &[&tag])
+            .unwrap()
+            .get(0)
+    };
+    let (act_id, watch_id) = (id_of(&mut as_tech, &at_act), id_of(&mut as_tech, &at_watch));
+    let changed = as_tech
+        .execute(
+            "UPDATE kept_evaluations SET body = \
+             (SELECT body FROM kept_evaluations WHERE unit_id = $2 AND slot = 0) \
+             WHERE unit_id = $1",
+            &[&act_id, &watch_id],
+        )
+        .unwrap();
+    assert_eq!(
+        changed, 1,
+        "only its own row of that unit is the technician's to change"
+    );
+    // The forgery works on the technician's own board (so this test would see it elsewhere)…
+    let forged = states(&tech);
+    assert_ne!(
+        forged.iter().find(|(u, _)| *u == at_act).unwrap().1,
+        "act",
+        "{forged:?}"
+    );
+    // …and not on the supervisor's, nor does an update of every row, a row written in the
+    // supervisor's name (refused by the server) or a deletion of every row.
+    assert_eq!(states(&sup), truth);
+    as_tech
+        .execute("UPDATE kept_evaluations SET body = 'x'", &[])
+        .unwrap();
+    let sup_user = sup.split("://").nth(1).unwrap().split('@').next().unwrap();
+    let err = as_tech
+        .execute(
+            "INSERT INTO kept_evaluations \
+             (unit_id, slot, unit_rev, shop_rev, engine, evaluated_at, holds_until, body, kept_by) \
+             SELECT unit_id, 1, unit_rev, shop_rev, engine, evaluated_at, holds_until, body, $1 \
+             FROM kept_evaluations",
+            &[&sup_user],
+        )
+        .unwrap_err();
+    assert!(format!("{err:?}").contains("row-level security"), "{err:?}");
+    assert_eq!(states(&sup), truth);
+    as_tech
+        .execute("DELETE FROM kept_evaluations", &[])
+        .unwrap();
+    assert_eq!(
+        kept_by(&sup),
+        units,
+        "the supervisor's rows are not the technician's to delete"
+    );
+    assert_eq!(states(&sup), truth);
+}

@@ -45,23 +45,36 @@ pub struct KeptEvaluation {
 /// slot first: a join would leave the way to the planner, and a server's planner, misled by
 /// statistics taken before the table was filled, was measured joining every counter with every
 /// kept row (a million comparisons, 80 ms), or with fitting ones reading the whole kept table,
-/// dead rows of earlier evaluations included (12 ms), where the look-ups take 2 ms.
-const KEPT_SQL: &str = "SELECT r.unit_id, r.rev, s.rev, coalesce(\
-     (SELECT k.body FROM kept_evaluations k WHERE k.unit_id = r.unit_id AND k.slot = 0 \
-      AND k.unit_rev = r.rev AND k.shop_rev = s.rev AND k.engine = ?1 \
-      AND k.evaluated_at <= ?2 AND ?2 < k.holds_until), \
-     (SELECT k.body FROM kept_evaluations k WHERE k.unit_id = r.unit_id AND k.slot = 1 \
-      AND k.unit_rev = r.rev AND k.shop_rev = s.rev AND k.engine = ?1 \
-      AND k.evaluated_at <= ?2 AND ?2 < k.holds_until)) \
-     FROM eval_revisions r \
-     JOIN eval_revisions s ON s.unit_id = 0 \
-     WHERE r.unit_id <> 0";
+/// dead rows of earlier evaluations included (12 ms), where the look-ups take 2 ms. On a server
+/// only the signed-in login's own rows are read (`OWN_ROWS`).
+fn kept_sql(server: bool) -> String {
+    let own = if server { OWN_ROWS } else { "" };
+    format!(
+        "SELECT r.unit_id, r.rev, s.rev, coalesce(\
+         (SELECT k.body FROM kept_evaluations k WHERE k.unit_id = r.unit_id AND k.slot = 0{own} \
+          AND k.unit_rev = r.rev AND k.shop_rev = s.rev AND k.engine = ?1 \
+          AND k.evaluated_at <= ?2 AND ?2 < k.holds_until), \
+         (SELECT k.body FROM kept_evaluations k WHERE k.unit_id = r.unit_id AND k.slot = 1{own} \
+          AND k.unit_rev = r.rev AND k.shop_rev = s.rev AND k.engine = ?1 \
+          AND k.evaluated_at <= ?2 AND ?2 < k.holds_until)) \
+         FROM eval_revisions r \
+         JOIN eval_revisions s ON s.unit_id = 0 \
+         WHERE r.unit_id <> 0"
+    )
+}
+
+/// On a server each login keeps its own evaluations (schema 10: `kept_by`, the session's user,
+/// and row-level security to match), so that no signed-in role can show another login a kept
+/// evaluation of its own making; the schema's owner, whom the server's policy does not bind,
+/// reads its own rows only by this condition too.
+const OWN_ROWS: &str = " AND k.kept_by = session_user";
 
 /// Kept evaluations written by one statement (one round trip to a server).
 const KEEP_ROWS: usize = 50;
 
-/// Writes `rows` kept evaluations, replacing what is kept in their slots.
-fn keep_sql(rows: usize) -> String {
+/// Writes `rows` kept evaluations, replacing what is kept in their slots (on a server, the
+/// signed-in login's slots: `kept_by` is the session's user by default).
+fn keep_sql(rows: usize, server: bool) -> String {
     let values: Vec<String> = (0..rows)
         .map(|r| {
             let p: Vec<String> = (1..=8).map(|c| format!("?{}", r * 8 + c)).collect();
@@ -72,11 +85,12 @@ fn keep_sql(rows: usize) -> String {
         "INSERT INTO kept_evaluations \
          (unit_id, slot, unit_rev, shop_rev, engine, evaluated_at, holds_until, body) \
          VALUES {} \
-         ON CONFLICT (unit_id, slot) DO UPDATE SET unit_rev = excluded.unit_rev, \
+         ON CONFLICT (unit_id, slot{}) DO UPDATE SET unit_rev = excluded.unit_rev, \
          shop_rev = excluded.shop_rev, engine = excluded.engine, \
          evaluated_at = excluded.evaluated_at, holds_until = excluded.holds_until, \
          body = excluded.body",
-        values.join(", ")
+        values.join(", "),
+        if server { ", kept_by" } else { "" }
     )
 }
 
@@ -93,17 +107,18 @@ impl Store {
         let at = fmt_time_stamp(&at);
         let mut out = KeptRead::default();
         self.count();
-        self.db.stream::<E>(KEPT_SQL, params![engine, at], |r| {
-            let unit: Id = r.get(0)?;
-            let rev: i64 = r.get(1)?;
-            out.shop_rev = Some(r.get(2)?);
-            if out.units.insert(unit, rev).is_none() {
-                if let Some(body) = r.text(3)? {
-                    f(unit, body)?;
+        self.db
+            .stream::<E>(&kept_sql(self.is_server()), params![engine, at], |r| {
+                let unit: Id = r.get(0)?;
+                let rev: i64 = r.get(1)?;
+                out.shop_rev = Some(r.get(2)?);
+                if out.units.insert(unit, rev).is_none() {
+                    if let Some(body) = r.text(3)? {
+                        f(unit, body)?;
+                    }
                 }
-            }
-            Ok(())
-        })?;
+                Ok(())
+            })?;
         if out.shop_rev.is_none() {
             // No unit yet: the shop-wide counter alone.
             out.shop_rev = self.query_opt(
@@ -163,7 +178,7 @@ impl Store {
                         &k.body,
                     ]);
                 }
-                self.exec(&keep_sql(part.len()), &values)?;
+                self.exec(&keep_sql(part.len(), self.is_server()), &values)?;
             }
             tx.commit()
         })();

@@ -1,0 +1,7 @@
+-- sumpbook schema, version 10: nothing changes in a shop file.
+--
+-- The server's version 10 keeps each login's evaluations apart, so that no signed-in role can
+-- show another login a kept evaluation of its own making. A shop file has one writer at a time
+-- and no logins (whoever can write the file can do everything), so its kept evaluations stay
+-- as they are; the version is raised with the server's, whose migrations are numbered one for
+-- one with these.
