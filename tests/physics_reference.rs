@@ -550,7 +550,7 @@ fn ewma_matches_pandas() {
     for case in fixture()["ewma"].as_array().unwrap() {
         let name = case["name"].as_str().unwrap();
         let get = |k: &str| case[k].as_f64().unwrap();
-        let mut chart = if get("lambda") == 0.2 && get("L") == 3.0 {
+        let mut chart = if get("lambda") == Ewma::LAMBDA && get("L") == Ewma::L {
             Ewma::new(get("mean"), get("sigma")).unwrap()
         } else {
             Ewma::with_params(get("mean"), get("sigma"), get("lambda"), get("L")).unwrap()

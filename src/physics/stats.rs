@@ -296,8 +296,9 @@ pub struct Ewma {
 }
 
 impl Ewma {
-    /// Defaults (docs/engineering.md, "Computations", drift detectors): λ = 0.2, L = 3.
-    pub const LAMBDA: f64 = 0.2;
+    /// Defaults (docs/engineering.md, "Computations", drift detectors): λ = 0.25, L = 3, as
+    /// the shop's limits start with (`health::limits`).
+    pub const LAMBDA: f64 = 0.25;
     pub const L: f64 = 3.0;
 
     /// A chart on a baseline of mean `mean` and standard deviation `sigma`, default λ and L.

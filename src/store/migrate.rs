@@ -177,6 +177,6 @@ mod tests {
     #[test]
     fn every_migration_applies_in_memory() {
         MIGRATIONS.validate().unwrap();
-        assert_eq!(Store::latest_schema_version(), 9);
+        assert_eq!(Store::latest_schema_version(), 10);
     }
 }

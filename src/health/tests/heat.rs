@@ -152,14 +152,15 @@ fn a_questioned_hot_oil_shows_at_watch_until_the_next_check_confirms_it() {
 
 #[test]
 fn a_drift_signal_needs_the_next_check_to_confirm_it_and_three_to_act() {
-    // Worked by hand (Montgomery's EWMA λ = 0.2, L = 3 and tabular CUSUM k = 0.5, h = 5,
+    // Worked by hand (Montgomery's EWMA λ = 0.25, L = 3 and tabular CUSUM k = 0.5, h = 5,
     // with the baseline's own standard error added): baseline ΔT 19, 21, 19, 21 K (the
     // baseline held at 4 checks here) → median 20 K, MAD 1 K, σ = 1.4826 K (the floor is
     // set to 1 K), se of the median = 1.2533·σ/√4 = 0.92906 K.
     // CUSUM K = 0.5σ + se = 1.67037, H = 5σ = 7.41301. With 24 K, C⁺ grows by
     // 4 − 1.67037 = 2.32963 a check: 2.330, 4.659, 6.989, 9.319 (> H: signal at the 4th).
-    // EWMA z = 20.8, 21.44, 21.952, 22.362, 22.689 stays inside 20 + 3·√(σ_z² + se²)
-    // (≥ 22.93). Each 24 K reading is beyond 20 + K. So the run is 0, 0, 0, 1, 2, 3.
+    // EWMA z = 21, 21.75, 22.313, 22.734, 23.051 stays inside 20 + 3·√(σ_z² + se²)
+    // (23.00 at the first, 23.23 at the fifth). Each 24 K reading is beyond 20 + K. So the
+    // run is 0, 0, 0, 1, 2, 3.
     let l = Limits::builtin()
         .with(LimitKey::MinSpreadHeatK, None, Some(1.0))
         .with(LimitKey::BaselineChecksMax, None, Some(4.0));
@@ -183,14 +184,15 @@ fn a_drift_signal_needs_the_next_check_to_confirm_it_and_three_to_act() {
     let r = eval(&heat_history(&[24.0; 4]), &l, week(7));
     let d = &r.checks.last().unwrap().drift[0];
     assert_eq!((d.signal, d.run), (true, 1));
-    assert!((d.ewma - 22.3616).abs() < 1e-9);
-    let half = 3.0 * (sigma * sigma * 0.2 / 1.8 * (1.0 - 0.8f64.powi(8)) + se * se).sqrt();
+    assert!((d.ewma - 22.734375).abs() < 1e-9);
+    let half = 3.0 * (sigma * sigma * 0.25 / 1.75 * (1.0 - 0.75f64.powi(8)) + se * se).sqrt();
     assert!((d.ewma_limit - (20.0 + half)).abs() < 1e-9);
     let c4 = 4.0 * (24.0 - 20.0 - 0.5 * sigma - se);
     assert!((d.cusum_sigma - c4 / sigma).abs() < 1e-9);
     // A 7 K step: signals from the 2nd check (C⁺ = 2·(7 − 1.67) > H), a run of 3 at the
-    // 4th, but the EWMA 20 + 7·(1 − 0.8ⁱ) passes +5 K only at i = 6 (5.17 K): act there.
-    for (n, want) in [(4, State::Watch), (5, State::Watch), (6, State::Act)] {
+    // 4th, but the EWMA 20 + 7·(1 − 0.75ⁱ) passes +5 K only at i = 5 (5.34 K; 4.79 K at
+    // i = 4): act there.
+    for (n, want) in [(4, State::Watch), (5, State::Act), (6, State::Act)] {
         let r = eval(&heat_history(&vec![27.0; n]), &l, week(3 + n as i64));
         assert_eq!(state_of(&r, FlagKind::Drift), want, "{n} checks at 27 K");
     }
@@ -199,7 +201,7 @@ fn a_drift_signal_needs_the_next_check_to_confirm_it_and_three_to_act() {
     let f = r.flags.iter().find(|f| f.kind == FlagKind::Drift).unwrap();
     let fig = f.figure.as_ref().unwrap();
     assert_eq!(fig.dim, indicators::Dim::TempDiff);
-    assert!((fig.value - (0.2 * 24.0 + 0.8 * 22.3616)).abs() < 1e-9);
+    assert!((fig.value - (0.25 * 24.0 + 0.75 * 22.734375)).abs() < 1e-9);
     assert_eq!(fig.baseline, Some(20.0));
     // One normal check after the signals ends the run at once: the reading is back.
     let r = eval(
