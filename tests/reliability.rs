@@ -1202,6 +1202,13 @@ fn shop_at_version(path: &Path, version: usize) {
         ))
         .unwrap();
     }
+    conn.execute_batch(&fixture_rows(version)).unwrap();
+}
+
+/// The fixture rows of schema `version`: `tests/migrations/data-vN.sql`, after the rows of the
+/// fixture it names in a line `-- builds on data-vM.sql` (valid at the later version too), so
+/// that a version adds only what it changed.
+fn fixture_rows(version: usize) -> String {
     let data =
         Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("tests/migrations/data-v{version}.sql"));
     let rows = std::fs::read_to_string(&data).unwrap_or_else(|_| {
@@ -1210,7 +1217,17 @@ fn shop_at_version(path: &Path, version: usize) {
             data.display()
         )
     });
-    conn.execute_batch(&rows).unwrap();
+    let base = rows.lines().find_map(|l| {
+        l.strip_prefix("-- builds on data-v")?
+            .split_once(".sql")?
+            .0
+            .parse::<usize>()
+            .ok()
+    });
+    match base {
+        Some(earlier) if earlier < version => format!("{}\n{rows}", fixture_rows(earlier)),
+        _ => rows,
+    }
 }
 
 /// Every row of every table as the columns it had at the older version, so that an upgrade

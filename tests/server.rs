@@ -40,6 +40,14 @@ fn login_as(d: &Path, admin_url: &str, url: &str, name: &str, role: &str) -> Str
     as_user(url, &name)
 }
 
+/// A new database holding the demo shop, with the shop's roles made; its address.
+fn demo_shop_with_roles(d: &Path) -> String {
+    let url = new_database();
+    ok(d, &["--db", &url, "demo"]);
+    ok(d, &["--db", &url, "roles", "--create"]);
+    url
+}
+
 /// The unit tags of a shop, from its own export.
 fn unit_tags(dir: &Path, db: &str) -> Vec<String> {
     let csv = ok(dir, &["--db", db, "export", "units"]);
@@ -941,9 +949,7 @@ fn a_deleted_check_is_restored_by_an_engineer_and_refused_to_a_technician() {
     let Some(admin_url) = server() else { return };
     let dir = tempfile::tempdir().unwrap();
     let d = dir.path();
-    let url = new_database();
-    ok(d, &["--db", &url, "demo"]);
-    ok(d, &["--db", &url, "roles", "--create"]);
+    let url = demo_shop_with_roles(d);
     let (tech, eng) = (
         login_as(d, admin_url, &url, "rtechnician", "technician"),
         login_as(d, admin_url, &url, "rengineer", "engineer"),
@@ -1098,9 +1104,7 @@ fn a_login_reads_only_the_evaluations_it_kept_itself() {
     let Some(admin_url) = server() else { return };
     let dir = tempfile::tempdir().unwrap();
     let d = dir.path();
-    let url = new_database();
-    ok(d, &["--db", &url, "demo"]);
-    ok(d, &["--db", &url, "roles", "--create"]);
+    let url = demo_shop_with_roles(d);
     let tech = login_as(d, admin_url, &url, "keeper_tech", "technician");
     let sup = login_as(d, admin_url, &url, "keeper_sup", "supervisor");
     let states = |db: &str| -> Vec<(String, String)> {
