@@ -1163,9 +1163,17 @@ fn figures_that_rest_on_a_corrected_reading_are_marked_and_the_corrections_liste
         pb.contains("(put back)") && pb.contains("not a twin"),
         "{pb}"
     );
-    // The other unit had nothing corrected: no list, no mark.
+    // The other unit had nothing corrected: no list, no mark (its flow chart's "corrected"
+    // is the flow corrected to the baseline's oil, not a corrected reading).
     assert!(!dp.contains("Corrections in the period"), "{dp}");
-    assert!(!dp.contains("corrected"), "{dp}");
+    for mark in [
+        "check corrected",
+        "sample corrected",
+        "of its checks corrected",
+    ] {
+        assert!(!dp.contains(mark), "{mark}: {dp}");
+    }
+    assert!(pb.contains("check corrected") && pb.contains("of its checks corrected"));
     assert_nothing_overflows_or_overlaps(&out);
 }
 
