@@ -77,10 +77,18 @@ pub fn loss_against(before: &[Stroke], now: &Stroke, d: Option<f64>, warmer: f64
         (Some(a), Some(m)) => a - m >= warmer,
         _ => false,
     };
-    let gs: Option<Vec<f64>> = before
-        .iter()
-        .map(|s| Some(((d? - s.q) / s.x().or(s.x_sound())?).max(0.0)))
-        .collect();
+    // The conductances of the checks before whose leakage can be told: a check whose
+    // pressure was not read (or was held as a slip) has none and is left out, as a questioned
+    // reading feeds no detector, while at least `SUDDEN_BEFORE_MIN` of them remain (all of
+    // them, of fewer checks); else none.
+    let gs: Option<Vec<f64>> = d
+        .map(|d| {
+            before
+                .iter()
+                .filter_map(|s| Some(((d - s.q) / s.x().or(s.x_sound())?).max(0.0)))
+                .collect::<Vec<f64>>()
+        })
+        .filter(|g| g.len() >= SUDDEN_BEFORE_MIN.min(before.len()));
     let x_now = if hot_spell {
         now.x().or(now.x_sound())
     } else {
@@ -293,6 +301,20 @@ mod tests {
         gap[0].nu = None;
         assert_eq!(
             loss_against(&gap, &s(90.0, 290.0, 350.0), Some(100.0), 5.0),
+            plain
+        );
+        // Six checks before, one without its pressure (not read, or held as a slip): its
+        // leakage cannot be told and it is left out; the five others give the same
+        // expectation, and the hot spell is read as before. With three of them out, fewer than
+        // SUDDEN_BEFORE_MIN remain: the plain reading.
+        let mut six = [s(95.0, 280.0, 300.0); 6];
+        six[2].p = None;
+        let moved = loss_against(&six, &s(90.0, 290.0, 350.0), Some(100.0), 5.0).unwrap();
+        assert!(moved.abs() < 1e-9, "{moved}");
+        six[0].p = None;
+        six[4].p = None;
+        assert_eq!(
+            loss_against(&six, &s(90.0, 290.0, 350.0), Some(100.0), 5.0),
             plain
         );
         // One check before without its hall (the screen held a slip of it): the hall is the
