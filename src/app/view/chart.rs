@@ -141,14 +141,15 @@ fn limits(s: &Series, sys: UnitSystem) -> Vec<LimitSpec> {
     out
 }
 
-fn note(s: &Series, empty: &str, sys: UnitSystem) -> String {
+/// `latest 36.4 L/min, act at 30.0 L/min` (`latest` as `what` names the reading), or `empty`.
+fn note(s: &Series, what: &str, empty: &str, sys: UnitSystem) -> String {
     match (s.points.last(), s.act.first()) {
         (Some(p), Some(a)) => format!(
-            "latest {}, act at {}",
+            "{what} {}, act at {}",
             figures::text(s.dim, p.value, sys),
             figures::text(s.dim, *a, sys)
         ),
-        (Some(p), None) => format!("latest {}", figures::text(s.dim, p.value, sys)),
+        (Some(p), None) => format!("{what} {}", figures::text(s.dim, p.value, sys)),
         _ => empty.to_string(),
     }
 }
@@ -176,7 +177,7 @@ fn with_corrected(
     if !(c.watch.is_empty() && c.act.is_empty()) {
         chart.band = band(c, "baseline ± 2σ", sys);
         chart.limits = limits(c, sys);
-        chart.note = note(c, &chart.empty_note, sys).replacen("latest", "latest corrected", 1);
+        chart.note = note(c, "latest corrected", &chart.empty_note, sys);
     }
 }
 
@@ -265,7 +266,7 @@ pub fn unit_charts(
             band,
             limits: limits(s, sys),
             events: marks.clone(),
-            note: note(s, &empty_note, sys),
+            note: note(s, "latest", &empty_note, sys),
             empty_note,
         };
         if key == "effective_flow" {
