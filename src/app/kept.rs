@@ -30,7 +30,7 @@ use form::Kept;
 
 /// Raised by hand when the engine's rules or the kept form (`form`) change in a way the
 /// program's build would not show (it is part of [`engine`], beside the build's own identity).
-const RULES_EDITION: u32 = 16;
+const RULES_EDITION: u32 = 17;
 
 /// The engine that computes an evaluation: the rules' edition, the program's version and the
 /// identity of the running program file (its size and time of change), so that any other

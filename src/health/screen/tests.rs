@@ -619,3 +619,50 @@ fn a_particle_count_that_moved_alone_like_a_slip_is_questioned() {
     let s = screen_history(&counted(&counts), None, UnitSystem::Metric);
     assert_eq!(fields(&s, 4), vec![(Field::Count14, true)], "{s:?}");
 }
+
+#[test]
+fn a_first_samples_count_off_the_usual_shape_is_questioned_where_one_slip_explains_it() {
+    // ISO 4406 Table 1 scale numbers (by hand): 163 per mL is 15 (over 160 to 320), 45.1 is
+    // 13 (over 40 to 80), 41 is 13: the 14 µm count 0 range numbers under the 6 µm one.
+    // Undone, 14 (two figures swapped) is 11 and 4.1 (the decimal point) is 10, gaps of 2 and
+    // 3; the nearer figure is named.
+    let first = |counts: &[[f64; 3]]| {
+        let mut h = press();
+        let t0 = crate::health::testutil::t("2024-01-01");
+        for (i, c) in counts.iter().enumerate() {
+            let at = t0 + chrono::Duration::weeks(2 * i as i64);
+            let mut s = crate::health::testutil::sample(i as Id + 1, at);
+            s.counts_per_ml = [Some(c[0]), Some(c[1]), Some(c[2])];
+            h.samples.push(s);
+        }
+        screen_history(&h, None, UnitSystem::Metric)
+    };
+    let s = first(&[[163.0, 45.1, 41.0], [204.0, 46.0, 3.6]]);
+    assert_eq!(fields(&s, 1), vec![(Field::Count14, false)], "{s:?}");
+    says(&s, "as 14 (two figures swapped) would make them 15/13/11");
+    assert!(fields(&s, 2).is_empty(), "{s:?}");
+    // 1015, 300 and 93.6 are 17, 15 and 14; 39.6 (two figures swapped) is 12.
+    let s = first(&[[1015.0, 300.0, 93.6]]);
+    says(&s, "as 39.6 (two figures swapped) would make them 17/15/12");
+    // The count to blame is the one whose slip makes every gap usual: 157, 5.93 and 4.5 are
+    // 14 (over 80 to 160), 10 and 9 (gaps 4 and 1); the 6 µm count as 59.3 is 13 (gaps 1 and
+    // 4), while the 14 µm count as 0.45 (6) would leave the gap of 4 under the 4 µm count.
+    let s = first(&[[157.0, 5.93, 4.5]]);
+    assert_eq!(fields(&s, 1), vec![(Field::Count6, false)], "{s:?}");
+    says(
+        &s,
+        "as 59.3 (the decimal point one place off) would make them 14/13/9",
+    );
+    // The usual shape (1015, 300 and 40: 17, 15 and 12) is no question.
+    assert!(first(&[[1015.0, 300.0, 40.0]]).is_empty());
+    // Off the shape at both gaps, which no one count can mend (300, 290 and 280 are all 15:
+    // the 6 µm count would have to be 12 to 14 for the one gap and 17 to 19 for the other):
+    // no question.
+    assert!(first(&[[300.0, 290.0, 280.0]]).is_empty());
+    // Coarse debris read the same way at the next sample confirms the first.
+    let s = first(&[[163.0, 45.1, 41.0], [170.0, 47.0, 42.0]]);
+    assert_eq!(fields(&s, 1), vec![(Field::Count14, true)], "{s:?}");
+    // With an earlier count in the era the history's own rule judges it, not this one.
+    let s = first(&[[160.0, 44.0, 4.0], [163.0, 45.1, 41.0]]);
+    assert!(s.iter().all(|x| !x.reason.contains("usual shape")), "{s:?}");
+}
