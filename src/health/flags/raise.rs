@@ -47,6 +47,31 @@ impl Raised<'_> {
     }
 }
 
+/// The lost-flow points with a sudden loss at a check whose job cannot be told
+/// (`CheckPoint::sudden_job_unknown`) held at watch, where the sudden loss is what lifts it to
+/// act: its flow is compared with the checks before as read, and a harder job reads as a loss
+/// too, so it shows and waits for the next check, as a questioned stroke does.
+fn unknown_jobs_at_watch(
+    mut points: Vec<Graded>,
+    checks: &[CheckPoint],
+    limits: &Limits,
+) -> Vec<Graded> {
+    let l = limits.get(LimitKey::LostFlowPct);
+    for g in points.iter_mut().filter(|g| g.state == State::Act) {
+        let Some(p) = checks.iter().rev().find(|p| p.at == g.at) else {
+            continue;
+        };
+        let by_median = p
+            .lost_flow_median_pct
+            .map(|m| grade(limits, LimitKey::LostFlowPct, m).0);
+        if p.sudden_job_unknown && by_median != Some(State::Act) {
+            g.state = State::Watch;
+            g.limit = l.watch.or(l.act);
+        }
+    }
+    points
+}
+
 /// Lost flow, leak conductance, case drain and heat rise: the checks against the era's baseline.
 fn check_levels(r: &mut Raised, limits: &Limits, sys: UnitSystem, strokes: &[QuestionedStroke]) {
     let c = r.c;
@@ -67,6 +92,7 @@ fn check_levels(r: &mut Raised, limits: &Limits, sys: UnitSystem, strokes: &[Que
             (a, b) => a.or(b),
         },
     );
+    let lost = unknown_jobs_at_watch(lost, &c.checks, limits);
     let (lost, held) = stroke_points(lost, c, strokes, limits);
     r.push(
         FlagKind::LostFlow,
@@ -89,6 +115,15 @@ fn check_levels(r: &mut Raised, limits: &Limits, sys: UnitSystem, strokes: &[Que
                 p.sudden_loss_pct
                     .filter(|s| p.lost_flow_median_pct.is_none_or(|m| *s > m))
             }) {
+                if at.is_some_and(|p| p.sudden_job_unknown) {
+                    return format!(
+                        "The timed flow fell {} % below the checks before it, but this check's working \
+                         pressure is questioned or was not read, so a harder job cannot be told from a \
+                         loss: held at watch until the next check. Time the stroke again at a known \
+                         pressure; if it stands, check the relief valve for bypass first.",
+                        num(s, 1)
+                    );
+                }
                 return format!(
                     "The timed flow fell {} % below the checks before it, at two checks in a row: a step rather \
                      than slow wear; check the relief valve for bypass first (a hot spot, a hissing valve), then \

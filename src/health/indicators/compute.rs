@@ -595,11 +595,18 @@ fn sudden_losses(
                 .iter()
                 .map(|s| s.1)
                 .collect();
+            // A check whose job cannot be told (its pressure held or not read) confirms no
+            // step: as the first of two it makes none, as the second it shows at watch at
+            // most (`sudden_job_unknown`).
+            if job_unknown(&before, &strokes[n - 2].1) {
+                continue;
+            }
             if let (Some(first), Some(second)) = (
                 loss_against(&before, &strokes[n - 2].1, sudden_d, warmer),
                 loss_against(&before, &strokes[n - 1].1, sudden_d, warmer),
             ) {
                 p.sudden_loss_pct = Some(sudden_loss(first, second, watch_pct));
+                p.sudden_job_unknown = job_unknown(&before, &strokes[n - 1].1);
             }
         }
     }

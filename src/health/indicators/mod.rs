@@ -39,7 +39,7 @@ pub use heat::HeatLoad;
 use hours::{equiv_hours_per_day, equivalent_over, hour_readings};
 pub(crate) use hours::{hours_at, hours_per_day};
 pub use steps::{confirmed_level, step_at, sudden_loss};
-use steps::{loss_against, Stroke};
+use steps::{job_unknown, loss_against, Stroke};
 use summary::summarise;
 pub use tiles::{series, tiles, trend, Dim, Direction, Forecast, Series, SeriesPoint, Tile, Trend};
 
@@ -171,6 +171,12 @@ pub struct CheckPoint {
     /// conditions where the leakage is resolved, else as timed): the seasons do not move a
     /// flow that far in two weeks; a relief valve starting to pass oil does.
     pub sudden_loss_pct: Option<f64>,
+    /// Whether this check's working pressure was not read, or was held as a slip, among checks
+    /// whose pressure was read (`steps::job_unknown`): its sudden loss compares its flow with
+    /// theirs as read, and a harder job would read as a loss too, so it shows at watch at most
+    /// and confirms no step.
+    #[serde(default)]
+    pub sudden_job_unknown: bool,
     pub filter: Option<FilterState>,
     pub oil_level: Option<OilLevel>,
     pub drift: Vec<DriftPoint>,

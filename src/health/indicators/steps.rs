@@ -52,6 +52,16 @@ impl Stroke {
     }
 }
 
+/// Whether `now`'s job cannot be told against the checks `before` it: its own pressure was
+/// not read, or was held as a slip, where most of theirs were read. A harder job reads as a
+/// loss against them (150 bar typed as 15 on a check 30 % above the jobs before), so such a
+/// check confirms no sudden loss, as a questioned reading feeds no detector; a unit whose
+/// pressure is never read is compared on its flows. Such a check's loss is the plain
+/// comparison, which the lost-flow flag shows at watch at most; it confirms no step.
+pub fn job_unknown(before: &[Stroke], now: &Stroke) -> bool {
+    now.p.is_none() && 2 * before.iter().filter(|s| s.p.is_some()).count() > before.len()
+}
+
 /// How far below what the checks `before` give (%) one stroke `now` is. With the displacement
 /// `d` known and every check's pressure read, the expected flow is `d` less the leakage of the
 /// checks before — the median of their conductances (d − q)/(p/ν), never below zero, a check
@@ -399,5 +409,22 @@ mod tests {
             bypass.is_some_and(|l| (l - 2000.0 / 93.0).abs() < 1e-9),
             "{bypass:?}"
         );
+        // The same check with its pressure held (or not read): its job cannot be told, and it
+        // is compared with the flow before it, reading the harder job as 2.1 %.
+        let held = Stroke {
+            p: None,
+            ..s(93.0, 1.4, Some(1.0 / 50.0))
+        };
+        assert!(job_unknown(&before, &held));
+        let plain_held = loss_against(&before, &held, Some(100.0), 5.0).unwrap();
+        assert!((plain_held - 200.0 / 95.0).abs() < 1e-9, "{plain_held}");
+        // A unit whose pressure is never read is compared on its flows.
+        let unread = |q: f64| Stroke {
+            p: None,
+            ..s(q, 1.0, None)
+        };
+        assert!(!job_unknown(&[unread(95.0); 4], &unread(93.0)));
+        let never = loss_against(&[unread(95.0); 4], &unread(93.0), Some(100.0), 5.0).unwrap();
+        assert!((never - 200.0 / 95.0).abs() < 1e-9, "{never}");
     }
 }

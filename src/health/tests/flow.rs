@@ -180,6 +180,33 @@ fn a_sudden_loss_of_flow_is_act_at_the_second_check() {
 }
 
 #[test]
+fn a_check_whose_pressure_is_held_neither_confirms_nor_clears_a_sudden_loss() {
+    // As above, a relief valve passing oil from week 12 (5.0 s against 4.0 s, 20 % by hand),
+    // but the second slow check's pressure is typed 10 bar for 100, which the screen holds: its
+    // job cannot be told (a harder one would read as a loss too), so its fall shows at watch
+    // and confirms nothing; the next slow check, its pressure read, confirms the step.
+    let mut h = press();
+    for w in 0..12 {
+        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
+    }
+    h.checks.push(timed(13, 12, 5.0, 45.0, 20.0));
+    let mut slip = timed(14, 13, 5.0, 45.0, 20.0);
+    slip.pressure = Some(crate::units::Pressure::from_bar(10.0));
+    h.checks.push(slip);
+    let r = eval(&h, &Limits::builtin(), week(13));
+    assert_eq!(state_of(&r, FlagKind::LostFlow), State::Watch);
+    let f = r.flags.iter().find(|f| f.kind == FlagKind::LostFlow);
+    assert!(
+        f.is_some_and(|f| f.message.starts_with("The timed flow fell 20 % below")
+            && f.message.contains("working pressure is questioned")),
+        "{f:?}"
+    );
+    h.checks.push(timed(15, 14, 5.0, 45.0, 20.0));
+    let r = eval(&h, &Limits::builtin(), week(14));
+    assert_eq!(state_of(&r, FlagKind::LostFlow), State::Act);
+}
+
+#[test]
 fn a_flag_raised_by_a_sudden_loss_shows_the_sudden_loss() {
     // Twelve checks at 4.0 s and 45 °C oil, then two at 5.0 s with the oil at 60 °C in the same
     // hall. The timed flow fell 20 % (4/5, by hand); the flow corrected to the baseline's oil
