@@ -566,23 +566,27 @@ fn a_slip_at_a_unit_s_first_checks_is_questioned_by_its_shape() {
     assert!(screen_history(&h, None, UnitSystem::Metric).is_empty());
 }
 
+/// A press with one sample per `every_weeks` weeks, each with the particle counts per mL at
+/// ≥4, ≥6 and ≥14 µm(c) given.
+fn with_counts(counts: &[[f64; 3]], every_weeks: i64) -> UnitHistory {
+    let mut h = press();
+    let t0 = crate::health::testutil::t("2024-01-01");
+    for (i, c) in counts.iter().enumerate() {
+        let at = t0 + chrono::Duration::weeks(every_weeks * i as i64);
+        let mut s = crate::health::testutil::sample(i as Id + 1, at);
+        s.counts_per_ml = [Some(c[0]), Some(c[1]), Some(c[2])];
+        h.samples.push(s);
+    }
+    h
+}
+
 #[test]
 fn a_particle_count_that_moved_alone_like_a_slip_is_questioned() {
     // Quarterly counts at ≥4, ≥6, ≥14 µm(c) of about 1200, 400 and 35 per mL, then one with
     // 349 at 14 µm: ten times its median (two range numbers are four times), reading like
     // 34.9 with the point slipped, while 1235 and 436 kept to theirs (by hand). The next
     // sample reads 36 there: it stays questioned and out of the code.
-    let counted = |counts: &[[f64; 3]]| {
-        let mut h = press();
-        let t0 = crate::health::testutil::t("2024-01-01");
-        for (i, c) in counts.iter().enumerate() {
-            let at = t0 + chrono::Duration::weeks(13 * i as i64);
-            let mut s = crate::health::testutil::sample(i as Id + 1, at);
-            s.counts_per_ml = [Some(c[0]), Some(c[1]), Some(c[2])];
-            h.samples.push(s);
-        }
-        h
-    };
+    let counted = |counts: &[[f64; 3]]| with_counts(counts, 13);
     let usual = [
         [1200.0, 400.0, 35.0],
         [1150.0, 380.0, 33.0],
@@ -626,17 +630,8 @@ fn a_first_samples_count_off_the_usual_shape_is_questioned_where_one_slip_explai
     // 13 (over 40 to 80), 41 is 13: the 14 µm count 0 range numbers under the 6 µm one.
     // Undone, 14 (two figures swapped) is 11 and 4.1 (the decimal point) is 10, gaps of 2 and
     // 3; the nearer figure is named.
-    let first = |counts: &[[f64; 3]]| {
-        let mut h = press();
-        let t0 = crate::health::testutil::t("2024-01-01");
-        for (i, c) in counts.iter().enumerate() {
-            let at = t0 + chrono::Duration::weeks(2 * i as i64);
-            let mut s = crate::health::testutil::sample(i as Id + 1, at);
-            s.counts_per_ml = [Some(c[0]), Some(c[1]), Some(c[2])];
-            h.samples.push(s);
-        }
-        screen_history(&h, None, UnitSystem::Metric)
-    };
+    let first =
+        |counts: &[[f64; 3]]| screen_history(&with_counts(counts, 2), None, UnitSystem::Metric);
     let s = first(&[[163.0, 45.1, 41.0], [204.0, 46.0, 3.6]]);
     assert_eq!(fields(&s, 1), vec![(Field::Count14, false)], "{s:?}");
     says(&s, "as 14 (two figures swapped) would make them 15/13/11");

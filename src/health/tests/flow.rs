@@ -152,6 +152,16 @@ fn case_drain_at_below_and_above_its_limits() {
     }
 }
 
+/// A press with twelve weekly checks timed at 4.0 s, oil at 45 °C in a 20 °C hall: the
+/// baseline the sudden-loss tests step from.
+fn twelve_at_four() -> UnitHistory {
+    let mut h = press();
+    for w in 0..12 {
+        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
+    }
+    h
+}
+
 #[test]
 fn a_sudden_loss_of_flow_is_act_at_the_second_check() {
     // Twelve checks at 4.0 s (the baseline), then a relief valve starts to pass oil: the
@@ -160,10 +170,7 @@ fn a_sudden_loss_of_flow_is_act_at_the_second_check() {
     // check is held out by the screen (a 25 % step, beyond ×/÷ 1.22) until the second
     // confirms it — shown meanwhile at watch, not act — and the second is where the two slow
     // checks make the sudden loss.
-    let mut h = press();
-    for w in 0..12 {
-        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
-    }
+    let mut h = twelve_at_four();
     h.checks.push(timed(13, 12, 5.0, 45.0, 20.0));
     let r = eval(&h, &Limits::builtin(), week(12));
     assert_eq!(state_of(&r, FlagKind::LostFlow), State::Watch);
@@ -185,10 +192,7 @@ fn a_check_whose_pressure_is_held_neither_confirms_nor_clears_a_sudden_loss() {
     // but the second slow check's pressure is typed 10 bar for 100, which the screen holds: its
     // job cannot be told (a harder one would read as a loss too), so its fall shows at watch
     // and confirms nothing; the next slow check, its pressure read, confirms the step.
-    let mut h = press();
-    for w in 0..12 {
-        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
-    }
+    let mut h = twelve_at_four();
     h.checks.push(timed(13, 12, 5.0, 45.0, 20.0));
     let mut slip = timed(14, 13, 5.0, 45.0, 20.0);
     slip.pressure = Some(crate::units::Pressure::from_bar(10.0));
@@ -212,10 +216,7 @@ fn a_flag_raised_by_a_sudden_loss_shows_the_sudden_loss() {
     // hall. The timed flow fell 20 % (4/5, by hand); the flow corrected to the baseline's oil
     // takes part of it for the thinner oil, so the lost flow reads less, and the flag stands on
     // the sudden loss: its message gives that figure, not the corrected flows.
-    let mut h = press();
-    for w in 0..12 {
-        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
-    }
+    let mut h = twelve_at_four();
     for w in 12..14 {
         h.checks.push(timed(w + 1, w, 5.0, 60.0, 20.0));
     }
@@ -285,10 +286,7 @@ fn a_step_seen_at_watch_and_confirmed_beyond_act_is_act_at_the_second_check() {
     // The 5.0 s is the second of a run on the slow side, so the screen does not hold it;
     // the sudden loss takes the later check's 20 % since the earlier already showed the
     // watch limit (worked by hand).
-    let mut h = press();
-    for w in 0..12 {
-        h.checks.push(timed(w + 1, w, 4.0, 45.0, 20.0));
-    }
+    let mut h = twelve_at_four();
     h.checks.push(timed(13, 12, 4.4, 45.0, 20.0));
     h.checks.push(timed(14, 13, 5.0, 45.0, 20.0));
     let r = eval(&h, &Limits::builtin(), week(13));
