@@ -55,9 +55,9 @@ impl Stroke {
 /// Whether `now`'s job cannot be told against the checks `before` it: its own pressure was
 /// not read, or was held as a slip, where most of theirs were read. A harder job reads as a
 /// loss against them (150 bar typed as 15 on a check 30 % above the jobs before), so such a
-/// check confirms no sudden loss, as a questioned reading feeds no detector; a unit whose
-/// pressure is never read is compared on its flows. Such a check's loss is the plain
-/// comparison, which the lost-flow flag shows at watch at most; it confirms no step.
+/// check's loss, the plain comparison, shows at watch at most and confirms no step, as a
+/// questioned reading feeds no detector. A unit whose pressure is never read is compared on
+/// its flows as usual.
 pub fn job_unknown(before: &[Stroke], now: &Stroke) -> bool {
     now.p.is_none() && 2 * before.iter().filter(|s| s.p.is_some()).count() > before.len()
 }
