@@ -272,15 +272,17 @@ fn count_off_its_sample(s: &Sample) -> Option<(Field, String)> {
         })
         .min_by(|a, b| (a.2 / a.1).ln().abs().total_cmp(&(b.2 / b.1).ln().abs()))
         .map(|(i, _, c, slip)| (i, c, slip))?;
+    // Written as ISO 4406 writes its scale numbers (`>28` above the table).
     let code = |c: [Option<f64>; 3]| -> String {
         c.iter()
             .map(|x| {
-                x.and_then(range_number)
+                x.and_then(|v| crate::physics::cleanliness::scale_number(v).ok())
                     .map_or("-".to_string(), |r| r.to_string())
             })
             .collect::<Vec<_>>()
             .join("/")
     };
+    let [(lo46, hi46), (lo614, hi614)] = COUNT_GAPS_USUAL;
     let mut fixed = counts;
     fixed[i] = Some(meant);
     let field = COUNTS[i];
@@ -293,9 +295,9 @@ fn count_off_its_sample(s: &Sample) -> Option<(Field, String)> {
         field,
         format!(
             "The particle counts {shown} per mL (scale numbers {}) fall off the usual shape of an \
-             oil's counts, where the ≥6 µm(c) count stands 1 to 3 range numbers under the ≥4 µm(c) \
-             one and the ≥14 µm(c) count 2 to 4 under the ≥6 µm(c) one; the {} as {} ({}) would \
-             make them {}: is it right?",
+             oil's counts, where the ≥6 µm(c) count stands {lo46} to {hi46} range numbers under the \
+             ≥4 µm(c) one and the ≥14 µm(c) count {lo614} to {hi614} under the ≥6 µm(c) one; the {} \
+             as {} ({}) would make them {}: is it right?",
             code(counts),
             field.label(),
             crate::health::text::num(meant, 2),
