@@ -228,11 +228,9 @@ fn shape_reason(f: Field, x: f64, meant: (f64, slips::Slip), usual: f64) -> Stri
 
 /// The ISO 4406 range number of a count per mL (above 28 counts as 29).
 fn range_number(count_per_ml: f64) -> Option<i32> {
-    use crate::physics::cleanliness::{scale_number, Scale};
-    match scale_number(count_per_ml).ok()? {
-        Scale::Number(n) => Some(i32::from(n)),
-        Scale::Above28 => Some(29),
-    }
+    crate::physics::cleanliness::scale_number(count_per_ml)
+        .ok()
+        .map(crate::physics::cleanliness::Scale::rank)
 }
 
 /// The count of a sample that falls off the usual shape of an oil's counts
